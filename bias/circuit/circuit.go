@@ -1,0 +1,145 @@
+package circuit
+
+import "qpoint/bias/diode"
+
+// Ground is the name of the reference node.
+const Ground = "gnd"
+
+// Pos is a place in the circuit file, 1-based.
+type Pos struct {
+	Line, Col int
+}
+
+// Kind is the type of a part.
+type Kind int
+
+const (
+	Resistor Kind = iota
+	Capacitor
+	Inductor
+	VoltageSource
+	CurrentSource
+	Diode
+)
+
+// String returns the kind as written in the circuit file's `type` key.
+func (k Kind) String() string {
+	switch k {
+	case Resistor:
+		return "resistor"
+	case Capacitor:
+		return "capacitor"
+	case Inductor:
+		return "inductor"
+	case VoltageSource:
+		return "voltage_source"
+	case CurrentSource:
+		return "current_source"
+	case Diode:
+		return "diode"
+	}
+	return "unknown"
+}
+
+// Part is one element of the circuit.
+//
+// Nodes holds the two terminals in the order that fixes the part's sign
+// convention:
+//
+//	resistor, capacitor, inductor: between[0], between[1]
+//	voltage_source: plus, minus (Value = V(plus) - V(minus))
+//	current_source: from, to (Value amperes flow from `from` through the
+//	                source into `to`)
+//	diode: anode, cathode
+type Part struct {
+	Kind  Kind
+	Name  string
+	Nodes [2]string
+	Value float64 // ohm, F, H, V or A; unused for diodes
+	Model string  // diode model name; diodes only
+	Pos   Pos     // position of the part's entry in the file
+}
+
+// Model is a named diode model.
+type Model struct {
+	Name   string
+	Params diode.Params
+	Pos    Pos
+}
+
+// Port is a place where a generator or load with a real reference impedance
+// connects between Node and Return.
+type Port struct {
+	Name      string
+	Node      string
+	Return    string  // Ground unless the file gives `return`
+	Impedance float64 // reference impedance in ohm, > 0
+	// ACCoupled keeps the port out of the DC solve (`coupling: ac`).
+	ACCoupled bool
+	Pos       Pos
+}
+
+// Level is a signal level: the available power of a port's generator in dBm,
+// or a peak voltage.
+type Level struct {
+	DBm       float64
+	PeakVolts float64
+	IsPower   bool // true: DBm holds the level; false: PeakVolts does
+}
+
+// Response holds the file's defaults for a frequency response.
+type Response struct {
+	Set       bool
+	FromHz    float64
+	ToHz      float64
+	PerDecade int // points per decade; zero when Points is used
+	Points    int // linear point count; zero when PerDecade is used
+	Pos       Pos
+}
+
+// Distortion holds the file's defaults for a distortion analysis.
+type Distortion struct {
+	Set          bool
+	Input        string // port name
+	Output       string // port or node name
+	OutputIsPort bool   // Output names a port (a port wins over a node of the same name)
+	FrequencyHz  float64
+	Level        Level
+	SecondToneHz float64 // zero when not given
+	Pos          Pos
+}
+
+// Study holds the file's defaults for a bias study.
+type Study struct {
+	Set   bool
+	Vary  string // "PART.value", "MODEL.parameter_name" or "temperature"
+	From  float64
+	To    float64
+	Steps int
+	Log   bool
+	Pos   Pos
+}
+
+// Analysis holds the optional analysis defaults.
+type Analysis struct {
+	Response   Response
+	Distortion Distortion
+	Study      Study
+}
+
+// Circuit is a loaded and checked circuit file. All values are in SI base
+// units; temperatures in kelvin.
+type Circuit struct {
+	File         string // path or name the circuit was loaded from
+	Name         string
+	TemperatureK float64
+	Models       map[string]*Model
+	ModelOrder   []string // model names in file order
+	Parts        []Part
+	Ports        []Port
+	Probes       []string
+	Analysis     Analysis
+	// Nodes lists every node other than Ground, in order of first
+	// appearance in the file.
+	Nodes []string
+}

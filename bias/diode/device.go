@@ -1,0 +1,238 @@
+package diode
+
+import (
+	"fmt"
+	"math"
+)
+
+// depletionKnee is the fraction of V_bi up to which the depletion charge
+// follows the textbook law exactly; above it the capacitance continues as a
+// quadratic that matches C_j, dC_j/dv and d²C_j/dv² at the knee, so charge,
+// capacitance and their first two derivatives stay continuous as the
+// junction nears and passes V_bi, where the textbook law has a pole.
+const depletionKnee = 0.5
+
+// maxExpArg bounds the argument of the junction exponentials. Beyond it a
+// law continues along its tangent so that a Newton iterate far from any
+// solution cannot overflow; no physical bias comes near it (e^200 I_S is
+// more than 1e60 A even for I_S = 1e-27 A).
+const maxExpArg = 200
+
+// Device is a diode model at one temperature: the parameters of Params
+// scaled to TempK, ready for evaluation.
+type Device struct {
+	Params Params  // as given, valid at Params.MeasuredAtK
+	TempK  float64 // temperature the laws below hold at
+
+	ThermalVoltage      float64 // V_T = kT/q
+	SaturationCurrent   float64 // I_S(T)
+	BuiltInPotential    float64 // V_bi(T)
+	ZeroBiasCapacitance float64 // C_j0(T)
+
+	nvt float64 // n V_T
+
+	// Notes lists anything the temperature scaling had to clamp.
+	Notes []string
+}
+
+// New returns the device of model p at temperature tempK.
+//
+// The saturation current follows
+//
+//	I_S(T) = I_S(T0) (T/T0)^(p/n) exp((q E_g / (n k)) (1/T0 - 1/T))
+//
+// (Gray, Hurst, Lewis, Meyer, 5th ed., 2009, ch. 1). The built-in potential
+// follows from V_bi = (kT/q) ln(N_A N_D / n_i²) with n_i² ∝ T³ exp(-E_g/kT)
+// (Sze and Ng, 3rd ed., 2007, ch. 1-2), holding E_g constant:
+//
+//	V_bi(T) = E_g + (T/T0) (V_bi(T0) - E_g) - 3 V_T ln(T/T0)
+//
+// and the zero-bias capacitance scales as C_j0 ∝ V_bi^(-m), the depletion
+// width law. Breakdown voltage, series resistance and transit time are held
+// constant.
+func New(p Params, tempK float64) *Device {
+	d := &Device{Params: p, TempK: tempK}
+	d.ThermalVoltage = ThermalVoltage(tempK)
+	d.nvt = p.Ideality * d.ThermalVoltage
+
+	t0 := p.MeasuredAtK
+	ratio := tempK / t0
+	vt0 := Boltzmann / Charge // volts per kelvin
+	d.SaturationCurrent = p.SaturationCurrent * math.Pow(ratio, p.SaturationExponent/p.Ideality) *
+		math.Exp(p.GapEnergy/(p.Ideality*vt0)*(1/t0-1/tempK))
+
+	vbi := p.GapEnergy + ratio*(p.BuiltInPotential-p.GapEnergy) - 3*d.ThermalVoltage*math.Log(ratio)
+	// The law is for a junction between two doped regions; far from T0 or
+	// with an unusual E_g it can leave the physical range. Keep V_bi
+	// positive and say so.
+	floor := 0.1 * p.BuiltInPotential
+	if vbi < floor {
+		d.Notes = append(d.Notes, fmt.Sprintf("built-in potential at %.2f K computes to %.3g V; held at %.3g V", tempK, vbi, floor))
+		vbi = floor
+	}
+	d.BuiltInPotential = vbi
+	d.ZeroBiasCapacitance = p.ZeroBiasCapacitance * math.Pow(p.BuiltInPotential/vbi, p.Grading)
+	return d
+}
+
+// NVT returns n V_T, the junction's exponential voltage scale.
+func (d *Device) NVT() float64 { return d.nvt }
+
+// expLaw returns s·exp(a) and its first three derivatives with respect to a,
+// continuing along the tangent beyond maxExpArg.
+func expLaw(a float64) (e, e1, e2, e3 float64) {
+	if a <= maxExpArg {
+		e = math.Exp(a)
+		return e, e, e, e
+	}
+	em := math.Exp(maxExpArg)
+	return em * (1 + a - maxExpArg), em, 0, 0
+}
+
+// ForwardCurrent returns the ideal junction current
+//
+//	i_f(v) = I_S (exp(v / (n V_T)) - 1)
+//
+// without the breakdown knee.
+func (d *Device) ForwardCurrent(v float64) Law {
+	e, e1, e2, e3 := expLaw(v / d.nvt)
+	is := d.SaturationCurrent
+	return Law{
+		Value: is * (e - 1),
+		D1:    is * e1 / d.nvt,
+		D2:    is * e2 / (d.nvt * d.nvt),
+		D3:    is * e3 / (d.nvt * d.nvt * d.nvt),
+	}
+}
+
+// BreakdownCurrent returns the reverse knee current
+//
+//	i_b(v) = -I_BV (exp(-(v + V_BV) / (n V_T)) - exp(-V_BV / (n V_T)))
+//
+// which equals -I_BV (to within I_BV e^(-V_BV/nV_T)) at v = -V_BV and is
+// exactly zero at v = 0. It is zero for a model without a knee.
+func (d *Device) BreakdownCurrent(v float64) Law {
+	bv := d.Params.BreakdownVoltage
+	if bv <= 0 {
+		return Law{}
+	}
+	ibv := d.Params.BreakdownCurrent
+	e, e1, e2, e3 := expLaw(-(v + bv) / d.nvt)
+	e0 := math.Exp(-bv / d.nvt)
+	k := d.nvt
+	return Law{
+		Value: -ibv * (e - e0),
+		D1:    ibv * e1 / k,
+		D2:    -ibv * e2 / (k * k),
+		D3:    ibv * e3 / (k * k * k),
+	}
+}
+
+// Current returns the junction current i(v) = i_f(v) + i_b(v), positive from
+// anode to cathode through the junction.
+func (d *Device) Current(v float64) Law {
+	return d.ForwardCurrent(v).Add(d.BreakdownCurrent(v))
+}
+
+// DepletionCharge returns the depletion charge q_j(v) with q_j(0) = 0.
+// Up to v = V_bi/2 it is the textbook law (Sze and Ng, ch. 2)
+//
+//	q_j(v) = C_j0 V_bi / (1 - m) [1 - (1 - v/V_bi)^(1-m)],  dq_j/dv = C_j0 / (1 - v/V_bi)^m
+//
+// and above V_bi/2 the capacitance continues as the quadratic with the same
+// value, slope and curvature at V_bi/2, so that q_j and its first three
+// derivatives are continuous everywhere.
+func (d *Device) DepletionCharge(v float64) Law {
+	cj0 := d.ZeroBiasCapacitance
+	if cj0 == 0 {
+		return Law{}
+	}
+	vb, m := d.BuiltInPotential, d.Params.Grading
+	v1 := depletionKnee * vb
+	if v <= v1 {
+		return textbookDepletion(v, cj0, vb, m)
+	}
+	k := textbookDepletion(v1, cj0, vb, m)
+	dv := v - v1
+	return Law{
+		Value: k.Value + k.D1*dv + k.D2*dv*dv/2 + k.D3*dv*dv*dv/6,
+		D1:    k.D1 + k.D2*dv + k.D3*dv*dv/2,
+		D2:    k.D2 + k.D3*dv,
+		D3:    k.D3,
+	}
+}
+
+func textbookDepletion(v, cj0, vb, m float64) Law {
+	u := 1 - v/vb
+	um := math.Pow(u, -m) // (1 - v/V_bi)^-m
+	return Law{
+		Value: cj0 * vb / (1 - m) * (1 - u*um),
+		D1:    cj0 * um,
+		D2:    cj0 * m / vb * um / u,
+		D3:    cj0 * m * (m + 1) / (vb * vb) * um / (u * u),
+	}
+}
+
+// DiffusionCharge returns the stored minority-carrier charge
+// q_d(v) = tau_T i_f(v), whose derivative is the diffusion capacitance
+// tau_T g_d (Sze and Ng, ch. 2). The breakdown current stores none.
+func (d *Device) DiffusionCharge(v float64) Law {
+	tau := d.Params.TransitTime
+	if tau == 0 {
+		return Law{}
+	}
+	return d.ForwardCurrent(v).Scale(tau)
+}
+
+// Charge returns the total junction charge q_j(v) + q_d(v).
+func (d *Device) Charge(v float64) Law {
+	return d.DepletionCharge(v).Add(d.DiffusionCharge(v))
+}
+
+// CriticalVoltage returns the junction voltage above which a Newton step is
+// limited: n V_T ln(n V_T / (√2 I_S)), where the exponential's curvature
+// makes a full linear step unsafe (Vlach and Singhal, 2nd ed., 1994).
+func (d *Device) CriticalVoltage() float64 {
+	return d.nvt * math.Log(d.nvt/(math.Sqrt2*d.SaturationCurrent))
+}
+
+// Limit returns the junction voltage a Newton iteration should use next when
+// the linear solve proposes vNew after vOld: above the critical voltage a
+// forward step is replaced by the logarithmic step that keeps the
+// exponential's growth linear in the iteration count, and the same rule,
+// mirrored about -V_BV, applies into breakdown (junction-voltage limiting,
+// Vlach and Singhal, "Computer Methods for Circuit Analysis and Design",
+// 2nd ed., 1994). It reports whether vNew was changed.
+func (d *Device) Limit(vNew, vOld float64) (float64, bool) {
+	v, limited := limitExp(vNew, vOld, d.nvt, d.CriticalVoltage())
+	if limited {
+		return v, true
+	}
+	bv := d.Params.BreakdownVoltage
+	if bv > 0 && vNew < -bv+d.nvt {
+		vc := d.nvt * math.Log(d.nvt/(math.Sqrt2*d.Params.BreakdownCurrent))
+		// In the mirrored variable u = -(v + V_BV) the knee behaves like a
+		// forward junction with saturation current I_BV.
+		u, lim := limitExp(-(vNew + bv), -(vOld + bv), d.nvt, vc)
+		if lim {
+			return -(u + bv), true
+		}
+	}
+	return vNew, false
+}
+
+// limitExp is the logarithmic step limit for an exponential with voltage
+// scale s and critical voltage vc.
+func limitExp(vNew, vOld, s, vc float64) (float64, bool) {
+	if vNew <= vc || vNew <= 0 || math.Abs(vNew-vOld) <= 2*s {
+		return vNew, false
+	}
+	if vOld > 0 {
+		arg := 1 + (vNew-vOld)/s
+		if arg > 0 {
+			return vOld + s*math.Log(arg), true
+		}
+		return vc, true
+	}
+	return s * math.Log(vNew/s), true
+}

@@ -1,0 +1,190 @@
+package bias
+
+import (
+	"errors"
+	"fmt"
+	"math"
+)
+
+// Convergence tolerances. Our circuits are small, so the solution is driven
+// to near machine precision: loose tolerances buy nothing.
+const (
+	relTol      = 1e-9  // relative change of a node voltage or branch current
+	voltAbsTol  = 1e-12 // V
+	currAbsTol  = 1e-15 // A, branch currents
+	kclAbsTol   = 1e-12 // A
+	kclRelTol   = 1e-9  // of the sum of current magnitudes at the node
+	branchTol   = 1e-9  // relative voltage error on source branches
+	stepRelTol  = 1e-7  // intermediate steps of a homotopy need less
+	maxVoltStep = 1e6   // V: an iterate beyond this has diverged
+)
+
+var (
+	errSingular   = errors.New("the Jacobian is singular")
+	errDiverged   = errors.New("the iterate diverged")
+	errIterations = errors.New("iteration limit reached")
+)
+
+// state is one Newton iterate: the unknowns and the junction voltages the
+// device laws were last linearised at.
+type state struct {
+	x  []float64
+	vl []float64
+}
+
+func (s *system) newState() *state {
+	return &state{x: make([]float64, s.n), vl: make([]float64, len(s.junctions))}
+}
+
+func (st *state) copyFrom(o *state) {
+	copy(st.x, o.x)
+	copy(st.vl, o.vl)
+}
+
+// scratch holds work vectors reused across iterations.
+type scratch struct {
+	b, vj, r, scale []float64
+}
+
+func (s *system) newScratch() *scratch {
+	return &scratch{
+		b:     make([]float64, s.n),
+		vj:    make([]float64, len(s.junctions)),
+		r:     make([]float64, s.n),
+		scale: make([]float64, s.n),
+	}
+}
+
+// newton iterates from st with sources scaled by lambda and a conductance
+// gmin from every node to ground. With lambda = 1 and gmin = 0 it stops only
+// when the update is below relTol and the KCL residual of the circuit as
+// described is within tolerance; for an aided system the update alone must
+// be below stepRelTol. It returns the iterations used.
+func (s *system) newton(st *state, lambda, gmin float64, maxIter int, w *scratch) (int, error) {
+	final := lambda == 1 && gmin == 0
+	rel := relTol
+	if !final {
+		rel = stepRelTol
+	}
+	for it := 1; it <= maxIter; it++ {
+		s.junctionVoltages(st.x, w.vj)
+		limited := false
+		for k, j := range s.junctions {
+			v, lim := j.dev.Limit(w.vj[k], st.vl[k])
+			st.vl[k] = v
+			limited = limited || lim
+		}
+		s.assemble(st.vl, lambda, gmin, w.b)
+		if err := s.mat.Factor(); err != nil {
+			return it, errSingular
+		}
+		s.mat.Solve(w.b)
+		small := true
+		for i, xn := range w.b {
+			if math.IsNaN(xn) || math.IsInf(xn, 0) || (i < s.nNodes && math.Abs(xn) > maxVoltStep) {
+				return it, errDiverged
+			}
+			tol := rel * math.Abs(xn)
+			if i < s.nNodes {
+				tol += voltAbsTol
+			} else {
+				tol += currAbsTol
+			}
+			if math.Abs(xn-st.x[i]) > tol {
+				small = false
+			}
+		}
+		copy(st.x, w.b)
+		if limited || !small {
+			continue
+		}
+		if !final {
+			return it, nil
+		}
+		if ratio, _ := s.kclRatio(st.x, w); ratio <= 1 {
+			return it, nil
+		}
+	}
+	return maxIter, errIterations
+}
+
+// kclRatio returns the largest ratio of residual to tolerance over all rows
+// at x, and the largest node residual in amperes.
+func (s *system) kclRatio(x []float64, w *scratch) (ratio, worst float64) {
+	s.residual(x, w.r, w.scale)
+	for i := range w.r {
+		var tol float64
+		if i < s.nNodes {
+			tol = kclAbsTol + kclRelTol*w.scale[i]
+			worst = math.Max(worst, math.Abs(w.r[i]))
+		} else {
+			tol = branchTol*w.scale[i] + voltAbsTol
+		}
+		ratio = math.Max(ratio, math.Abs(w.r[i])/tol)
+	}
+	return ratio, worst
+}
+
+// conductanceStepping solves with a large gmin and steps it down to zero,
+// shrinking the step when a solve fails.
+func (s *system) conductanceStepping(st *state, maxIter int, w *scratch) (int, error) {
+	total := 0
+	gmin, factor := 1e-2, 10.0
+	good := s.newState()
+	// First find a solution at the largest gmin, from the given start.
+	n, err := s.newton(st, 1, gmin, maxIter, w)
+	total += n
+	if err != nil {
+		return total, fmt.Errorf("no solution even with %g S from every node to ground: %w", gmin, err)
+	}
+	good.copyFrom(st)
+	for gmin > 0 {
+		next := gmin / factor
+		if next < 1e-14 {
+			next = 0
+		}
+		n, err := s.newton(st, 1, next, maxIter, w)
+		total += n
+		if err == nil {
+			good.copyFrom(st)
+			gmin = next
+			factor = math.Min(factor*2, 100)
+			continue
+		}
+		st.copyFrom(good)
+		factor = math.Sqrt(factor)
+		if factor < 1.05 {
+			return total, fmt.Errorf("stalled at %g S from every node to ground: %w", gmin, err)
+		}
+	}
+	return total, nil
+}
+
+// sourceStepping ramps every source from zero, where the solution is all
+// zeros, to full value.
+func (s *system) sourceStepping(st *state, maxIter int, w *scratch) (int, error) {
+	total := 0
+	clear(st.x)
+	clear(st.vl)
+	good := s.newState()
+	lambda, step := 0.0, 0.05
+	for lambda < 1 {
+		next := math.Min(1, lambda+step)
+		n, err := s.newton(st, next, 0, maxIter, w)
+		total += n
+		if err == nil {
+			good.copyFrom(st)
+			lambda = next
+			step = math.Min(step*2, 0.25)
+			continue
+		}
+		st.copyFrom(good)
+		step /= 4
+		if step < 1e-7 {
+			return total, fmt.Errorf("stalled with sources at %.3g%% of their values: %w", 100*lambda, err)
+		}
+	}
+	// The last step ran at stepRelTol; finish at full precision.
+	n, err := s.newton(st, 1, 0, maxIter, w)
+	return total + n, err
+}

@@ -1,0 +1,160 @@
+package bias
+
+import (
+	"math"
+
+	"qpoint/bias/circuit"
+	"qpoint/bias/diode"
+)
+
+// Point is a DC operating point.
+type Point struct {
+	Circuit      *circuit.Circuit
+	TemperatureK float64
+	Nodes        []Node   // every named node but ground, in file order
+	Sources      []Source // voltage and current sources, in file order
+	Inductors    []Source // DC current of each inductor, in file order
+	Diodes       []Diode  // in file order
+	Warnings     []Warning
+	Stats        Stats
+
+	x     []float64 // the solution vector, for continuation
+	vl    []float64
+	shape int // number of unknowns, to check a continuation start fits
+}
+
+// Node is a node voltage with respect to ground.
+type Node struct {
+	Name    string
+	Voltage float64 // V
+}
+
+// Source is the DC current of a source or inductor.
+type Source struct {
+	Name string
+	Kind circuit.Kind
+	// Current flows into the part's plus (voltage source), to (current
+	// source) or first (inductor) terminal from the circuit. A source that
+	// delivers power has a negative current.
+	Current float64 // A
+}
+
+// Diode is a diode's Q point.
+type Diode struct {
+	Name   string
+	Model  string
+	Device *diode.Device // the model at the point's temperature
+
+	Voltage         float64 // V, anode minus cathode at the terminals
+	JunctionVoltage float64 // V, excluding the drop on R_S
+	Current         float64 // A, anode to cathode, the junction's own current
+
+	// Conductance is g_d = dI/dV of the intrinsic junction, and
+	// DynamicResistance its inverse (+Inf when the conductance underflows).
+	Conductance          float64 // S
+	DynamicResistance    float64 // ohm
+	JunctionCapacitance  float64 // F, depletion, dq_j/dv
+	DiffusionCapacitance float64 // F, tau_T g_d of the forward current
+	Power                float64 // W, dissipated: Voltage × Current
+
+	// Fractions of the model's ratings: forward current over max_current,
+	// reverse voltage over max_reverse_voltage, power over max_power. NaN
+	// where the model gives no such rating.
+	CurrentFraction        float64
+	ReverseVoltageFraction float64
+	PowerFraction          float64
+
+	// InBreakdown is true where the breakdown knee's current exceeds the
+	// ideal junction's saturation current: the junction is in reverse
+	// breakdown.
+	InBreakdown bool
+}
+
+// Voltage returns the voltage of the named node, 0 for ground, and whether
+// the node exists.
+func (p *Point) Voltage(name string) (float64, bool) {
+	if name == circuit.Ground {
+		return 0, true
+	}
+	for _, n := range p.Nodes {
+		if n.Name == name {
+			return n.Voltage, true
+		}
+	}
+	return 0, false
+}
+
+func (s *system) point(st *state) *Point {
+	c := s.c
+	p := &Point{Circuit: c, TemperatureK: s.tempK, shape: s.n}
+	p.x = append([]float64(nil), st.x...)
+	p.vl = append([]float64(nil), st.vl...)
+	for i, name := range c.Nodes {
+		p.Nodes = append(p.Nodes, Node{name, st.x[i]})
+	}
+	for _, v := range s.vsources {
+		part := c.Parts[v.part]
+		src := Source{Name: part.Name, Kind: part.Kind, Current: st.x[v.br]}
+		if part.Kind == circuit.Inductor {
+			p.Inductors = append(p.Inductors, src)
+		} else {
+			p.Sources = append(p.Sources, src)
+		}
+	}
+	for _, i := range s.isources {
+		part := c.Parts[i.part]
+		p.Sources = append(p.Sources, Source{Name: part.Name, Kind: part.Kind, Current: -i.value})
+	}
+	// Keep sources in file order whatever their kind.
+	order := map[string]int{}
+	for i, part := range c.Parts {
+		order[part.Name] = i
+	}
+	sortByFileOrder(p.Sources, order)
+
+	for _, j := range s.junctions {
+		part := c.Parts[j.part]
+		vj := volt(st.x, j.internal) - volt(st.x, j.cathode)
+		vt := volt(st.x, j.anode) - volt(st.x, j.cathode)
+		i := j.dev.Current(vj)
+		d := Diode{
+			Name:                 part.Name,
+			Model:                part.Model,
+			Device:               j.dev,
+			Voltage:              vt,
+			JunctionVoltage:      vj,
+			Current:              i.Value,
+			Conductance:          i.D1,
+			DynamicResistance:    1 / i.D1,
+			JunctionCapacitance:  j.dev.DepletionCharge(vj).D1,
+			DiffusionCapacitance: j.dev.DiffusionCharge(vj).D1,
+			Power:                vt * i.Value,
+		}
+		if i.D1 == 0 {
+			d.DynamicResistance = math.Inf(1)
+		}
+		d.InBreakdown = -j.dev.BreakdownCurrent(vj).Value > j.dev.SaturationCurrent
+		r := j.dev.Params.Ratings
+		d.CurrentFraction = fraction(math.Max(i.Value, 0), r.MaxCurrent)
+		d.ReverseVoltageFraction = fraction(math.Max(-vt, 0), r.MaxReverseVoltage)
+		d.PowerFraction = fraction(d.Power, r.MaxPower)
+		p.Diodes = append(p.Diodes, d)
+	}
+	p.Warnings = cautions(p)
+	return p
+}
+
+func fraction(v, rating float64) float64 {
+	if rating <= 0 {
+		return math.NaN()
+	}
+	return v / rating
+}
+
+func sortByFileOrder(s []Source, order map[string]int) {
+	for i := 1; i < len(s); i++ {
+		for j := i; j > 0 && order[s[j].Name] < order[s[j-1].Name]; j-- {
+			s[j], s[j-1] = s[j-1], s[j]
+		}
+	}
+}

@@ -1,0 +1,285 @@
+package bias
+
+import (
+	"fmt"
+
+	"qpoint/bias/band"
+	"qpoint/bias/circuit"
+	"qpoint/bias/diode"
+)
+
+const ground = -1
+
+// conductance is a linear resistance between unknowns a and b.
+type conductance struct {
+	a, b int
+	g    float64
+}
+
+// vsource fixes v(plus) - v(minus) = value and carries the branch current
+// (into plus from the circuit) as unknown br. Inductors are vsources of zero
+// value at DC.
+type vsource struct {
+	plus, minus, br int
+	value           float64
+	part            int // index into circuit.Parts
+}
+
+// isource drives value amperes from `from` through itself into `to`.
+type isource struct {
+	from, to int
+	value    float64
+	part     int
+}
+
+// junction is a diode's intrinsic junction between its internal anode and
+// its cathode; the series resistance, if any, is a conductance from the
+// terminal anode to the internal one.
+type junction struct {
+	anode, internal, cathode int // anode is the terminal; internal == anode when R_S = 0
+	dev                      *diode.Device
+	part                     int
+}
+
+// system is the circuit in modified nodal form at one temperature.
+type system struct {
+	c      *circuit.Circuit
+	tempK  float64
+	nNodes int // node unknowns, including internal diode nodes
+	n      int // all unknowns
+	names  []string
+
+	conds     []conductance
+	vsources  []vsource
+	isources  []isource
+	junctions []junction
+
+	edges [][2]int // structure of the matrix, for the band ordering
+	mat   *band.Matrix
+}
+
+func newSystem(c *circuit.Circuit, tempK float64) (*system, error) {
+	s := &system{c: c, tempK: tempK}
+	index := map[string]int{circuit.Ground: ground}
+	for _, name := range c.Nodes {
+		index[name] = len(s.names)
+		s.names = append(s.names, name)
+	}
+	node := func(name string) (int, error) {
+		i, ok := index[name]
+		if !ok {
+			return 0, fmt.Errorf("node %q is not in the circuit's node list", name)
+		}
+		return i, nil
+	}
+	// Internal diode nodes come after the named ones.
+	devices := map[string]*diode.Device{}
+	for pi, p := range c.Parts {
+		if p.Kind != circuit.Diode {
+			continue
+		}
+		m, ok := c.Models[p.Model]
+		if !ok {
+			return nil, fmt.Errorf("diode %s: unknown model %q", p.Name, p.Model)
+		}
+		dev, ok := devices[p.Model]
+		if !ok {
+			dev = diode.New(m.Params, tempK)
+			devices[p.Model] = dev
+		}
+		a, err := node(p.Nodes[0])
+		if err != nil {
+			return nil, err
+		}
+		k, err := node(p.Nodes[1])
+		if err != nil {
+			return nil, err
+		}
+		j := junction{anode: a, internal: a, cathode: k, dev: dev, part: pi}
+		if rs := m.Params.SeriesResistance; rs > 0 {
+			j.internal = len(s.names)
+			s.names = append(s.names, p.Name+"#junction")
+			s.conds = append(s.conds, conductance{a, j.internal, 1 / rs})
+		}
+		s.junctions = append(s.junctions, j)
+	}
+	s.nNodes = len(s.names)
+	s.n = s.nNodes
+
+	for pi, p := range c.Parts {
+		if p.Kind == circuit.Diode {
+			continue
+		}
+		a, err := node(p.Nodes[0])
+		if err != nil {
+			return nil, err
+		}
+		b, err := node(p.Nodes[1])
+		if err != nil {
+			return nil, err
+		}
+		switch p.Kind {
+		case circuit.Resistor:
+			s.conds = append(s.conds, conductance{a, b, 1 / p.Value})
+		case circuit.Capacitor:
+			// Open at DC.
+		case circuit.Inductor:
+			s.vsources = append(s.vsources, vsource{a, b, s.n, 0, pi})
+			s.n++
+		case circuit.VoltageSource:
+			s.vsources = append(s.vsources, vsource{a, b, s.n, p.Value, pi})
+			s.n++
+		case circuit.CurrentSource:
+			s.isources = append(s.isources, isource{a, b, p.Value, pi})
+		}
+	}
+	for _, p := range c.Ports {
+		if p.ACCoupled {
+			continue
+		}
+		a, err := node(p.Node)
+		if err != nil {
+			return nil, err
+		}
+		ret := p.Return
+		if ret == "" {
+			ret = circuit.Ground
+		}
+		b, err := node(ret)
+		if err != nil {
+			return nil, err
+		}
+		s.conds = append(s.conds, conductance{a, b, 1 / p.Impedance})
+	}
+
+	for i := 0; i < s.nNodes; i++ {
+		s.edges = append(s.edges, [2]int{i, i})
+	}
+	for _, c := range s.conds {
+		s.edges = append(s.edges, [2]int{c.a, c.b})
+	}
+	for _, v := range s.vsources {
+		s.edges = append(s.edges, [2]int{v.plus, v.br}, [2]int{v.minus, v.br}, [2]int{v.plus, v.minus})
+	}
+	for _, j := range s.junctions {
+		s.edges = append(s.edges, [2]int{j.internal, j.cathode})
+	}
+	perm := band.Order(s.n, s.edges)
+	kl, ku := band.Widths(perm, s.edges)
+	s.mat = band.New(perm, kl, ku)
+	return s, nil
+}
+
+// volt returns the voltage of unknown i in x (zero for ground).
+func volt(x []float64, i int) float64 {
+	if i == ground {
+		return 0
+	}
+	return x[i]
+}
+
+// add adds v to entry (i, j) of the matrix unless either index is ground.
+func (s *system) add(i, j int, v float64) {
+	if i == ground || j == ground {
+		return
+	}
+	s.mat.Add(i, j, v)
+}
+
+func addRHS(b []float64, i int, v float64) {
+	if i != ground {
+		b[i] += v
+	}
+}
+
+// junctionVoltages writes each junction's intrinsic voltage at x into vj.
+func (s *system) junctionVoltages(x, vj []float64) {
+	for k, j := range s.junctions {
+		vj[k] = volt(x, j.internal) - volt(x, j.cathode)
+	}
+}
+
+// assemble builds the Newton system at the junction voltages vl: the
+// matrix in s.mat and the right-hand side in b, whose solution is the next
+// iterate. lambda scales every independent source; gmin is a conductance
+// from every node unknown to ground.
+func (s *system) assemble(vl []float64, lambda, gmin float64, b []float64) {
+	s.mat.Zero()
+	clear(b)
+	for _, c := range s.conds {
+		s.add(c.a, c.a, c.g)
+		s.add(c.b, c.b, c.g)
+		s.add(c.a, c.b, -c.g)
+		s.add(c.b, c.a, -c.g)
+	}
+	for _, v := range s.vsources {
+		s.add(v.plus, v.br, 1)
+		s.add(v.minus, v.br, -1)
+		s.add(v.br, v.plus, 1)
+		s.add(v.br, v.minus, -1)
+		b[v.br] = lambda * v.value
+	}
+	for _, src := range s.isources {
+		addRHS(b, src.from, -lambda*src.value)
+		addRHS(b, src.to, lambda*src.value)
+	}
+	for k, j := range s.junctions {
+		i := j.dev.Current(vl[k])
+		g := i.D1
+		ieq := i.Value - g*vl[k]
+		s.add(j.internal, j.internal, g)
+		s.add(j.cathode, j.cathode, g)
+		s.add(j.internal, j.cathode, -g)
+		s.add(j.cathode, j.internal, -g)
+		addRHS(b, j.internal, -ieq)
+		addRHS(b, j.cathode, ieq)
+	}
+	if gmin > 0 {
+		for i := 0; i < s.nNodes; i++ {
+			s.mat.Add(i, i, gmin)
+		}
+	}
+}
+
+// residual returns the KCL residual of the circuit as described (no aids,
+// sources at full value) at x: r[i] is the net current leaving node i
+// through the parts, and scale[i] the sum of the magnitudes of those
+// currents, the size the residual is judged against. Branch rows hold the
+// voltage error of each source.
+func (s *system) residual(x, r, scale []float64) {
+	clear(r)
+	clear(scale)
+	flow := func(a, b int, i float64) {
+		if a != ground {
+			r[a] += i
+			scale[a] += abs(i)
+		}
+		if b != ground {
+			r[b] -= i
+			scale[b] += abs(i)
+		}
+	}
+	for _, c := range s.conds {
+		flow(c.a, c.b, c.g*(volt(x, c.a)-volt(x, c.b)))
+	}
+	for _, v := range s.vsources {
+		flow(v.plus, v.minus, x[v.br])
+		vp, vm := volt(x, v.plus), volt(x, v.minus)
+		r[v.br] = vp - vm - v.value
+		scale[v.br] = max(abs(vp), abs(vm), abs(v.value))
+	}
+	for _, src := range s.isources {
+		flow(src.from, src.to, src.value)
+	}
+	for _, j := range s.junctions {
+		v := volt(x, j.internal) - volt(x, j.cathode)
+		flow(j.internal, j.cathode, j.dev.Current(v).Value)
+	}
+}
+
+func abs(x float64) float64 {
+	if x < 0 {
+		return -x
+	}
+	return x
+}
