@@ -1,0 +1,172 @@
+package main
+
+import (
+	"errors"
+	"fmt"
+	"io"
+	"math"
+
+	"github.com/spf13/cobra"
+
+	"qpoint/bias"
+	"qpoint/bias/circuit"
+	"qpoint/bias/diode"
+	"qpoint/bias/si"
+)
+
+func newBiasCmd() *cobra.Command {
+	var asJSON bool
+	var temperature string
+	cmd := &cobra.Command{
+		Use:   "bias FILE",
+		Short: "Find the DC operating point: node voltages and every diode's Q point",
+		Long: `bias solves the circuit at DC and prints the node voltages, the source
+currents and, for each diode, its Q point: terminal and junction voltage,
+current, dynamic resistance, junction and diffusion capacitance, dissipated
+power and the fraction of each rating used. Cautions follow the tables.
+
+Exit status: 0 solved, 1 no operating point found (the message says what
+was tried), 2 bad input or usage.`,
+		Example: `  qpoint bias testdata/demo/detector.yaml
+  qpoint bias mixer.yaml --temperature 85C
+  qpoint bias mixer.yaml --json > mixer-bias.json`,
+		Args: exactFile,
+		RunE: func(cmd *cobra.Command, args []string) error {
+			c, err := loadCircuit(args[0])
+			if err != nil {
+				return err
+			}
+			var s bias.Settings
+			if temperature != "" {
+				tk, err := circuit.ParseValue(temperature, circuit.Temperature)
+				if err != nil {
+					return inputError(fmt.Errorf("flag --temperature: %w", err))
+				}
+				s.TemperatureK = tk
+			}
+			p, err := bias.Solve(c, s)
+			if err != nil {
+				return analysisError(err)
+			}
+			if asJSON {
+				return writeJSON(cmd.OutOrStdout(), biasDocument(p))
+			}
+			writeBias(cmd.OutOrStdout(), p)
+			return nil
+		},
+	}
+	cmd.Flags().BoolVar(&asJSON, "json", false, "print one JSON document (SI units) instead of tables")
+	cmd.Flags().StringVar(&temperature, "temperature", "", "circuit temperature, overriding the file's (e.g. 85C or 358.15K)")
+	return cmd
+}
+
+// exactFile accepts exactly one argument, the circuit file.
+func exactFile(cmd *cobra.Command, args []string) error {
+	if len(args) != 1 {
+		return inputError(fmt.Errorf("%s needs exactly one circuit file, got %d arguments; e.g. qpoint %s testdata/demo/detector.yaml", cmd.Name(), len(args), cmd.Name()))
+	}
+	return nil
+}
+
+// loadCircuit reads a circuit file; every failure is an input error.
+func loadCircuit(path string) (*circuit.Circuit, error) {
+	c, err := circuit.Load(path)
+	if err != nil {
+		var list circuit.ErrorList
+		if errors.As(err, &list) && len(list) > 1 {
+			return nil, inputError(fmt.Errorf("%d problems in the circuit file:\n%w", len(list), err))
+		}
+		return nil, inputError(err)
+	}
+	return c, nil
+}
+
+func celsius(k float64) float64 { return k - diode.ZeroCelsius }
+
+// writeBias prints the operating point as tables.
+func writeBias(w io.Writer, p *bias.Point) {
+	c := p.Circuit
+	fmt.Fprintf(w, "%s\n", c.Name)
+	fmt.Fprintf(w, "  file         %s\n", c.File)
+	fmt.Fprintf(w, "  temperature  %.2f °C (%.2f K)\n", celsius(p.TemperatureK), p.TemperatureK)
+	fmt.Fprintf(w, "  solved by    %s in %s; largest current imbalance %s\n",
+		p.Stats.Strategy, plural(p.Stats.Iterations, "iteration"), si.Format(p.Stats.Residual, "A", 2))
+
+	nodes := &table{title: "Node voltages", header: []string{"node", "voltage"}}
+	for _, n := range p.Nodes {
+		nodes.add(n.Name, si.Format(n.Voltage, "V", 5))
+	}
+	nodes.write(w)
+
+	if len(p.Sources)+len(p.Inductors) > 0 {
+		src := &table{title: "Source and inductor currents (into the + / to / first terminal)", header: []string{"part", "kind", "current"}}
+		for _, s := range p.Sources {
+			src.add(s.Name, s.Kind.String(), si.Format(s.Current, "A", 4))
+		}
+		for _, s := range p.Inductors {
+			src.add(s.Name, s.Kind.String(), si.Format(s.Current, "A", 4))
+		}
+		src.write(w)
+	}
+
+	// One column per diode reads well for the few diodes a bias network
+	// has; wide circuits print in blocks of six.
+	const perBlock = 6
+	for start := 0; start < len(p.Diodes); start += perBlock {
+		ds := p.Diodes[start:min(start+perBlock, len(p.Diodes))]
+		t := &table{title: "Diode Q points", header: []string{"quantity"}}
+		if start > 0 {
+			t.title = ""
+		}
+		for _, d := range ds {
+			t.header = append(t.header, d.Name)
+		}
+		row := func(name string, f func(d bias.Diode) string) {
+			cells := []string{name}
+			for _, d := range ds {
+				cells = append(cells, f(d))
+			}
+			t.add(cells...)
+		}
+		row("model", func(d bias.Diode) string { return d.Model })
+		row("terminal voltage", func(d bias.Diode) string { return si.Format(d.Voltage, "V", 5) })
+		row("junction voltage", func(d bias.Diode) string { return si.Format(d.JunctionVoltage, "V", 5) })
+		row("current", func(d bias.Diode) string { return si.Format(d.Current, "A", 4) })
+		row("dynamic resistance", func(d bias.Diode) string { return si.Format(d.DynamicResistance, "Ω", 4) })
+		row("series resistance", func(d bias.Diode) string { return si.Format(d.Device.Params.SeriesResistance, "Ω", 4) })
+		row("junction capacitance", func(d bias.Diode) string { return si.Format(d.JunctionCapacitance, "F", 4) })
+		row("diffusion capacitance", func(d bias.Diode) string { return si.Format(d.DiffusionCapacitance, "F", 4) })
+		row("power", func(d bias.Diode) string { return si.Format(d.Power, "W", 3) })
+		row("of current rating", func(d bias.Diode) string { return percent(d.CurrentFraction) })
+		row("of reverse-voltage rating", func(d bias.Diode) string { return percent(d.ReverseVoltageFraction) })
+		row("of power rating", func(d bias.Diode) string { return percent(d.PowerFraction) })
+		t.write(w)
+	}
+
+	if len(p.Warnings) > 0 {
+		fmt.Fprintf(w, "\nCautions\n")
+		for _, x := range p.Warnings {
+			fmt.Fprintf(w, "  ! %s: %s\n", x.Part, x.Message)
+		}
+	}
+	fmt.Fprintln(w)
+}
+
+func percent(f float64) string {
+	switch {
+	case math.IsNaN(f):
+		return "no rating"
+	case f == 0:
+		return "0 %"
+	case f < 0.001:
+		return "<0.1 %"
+	}
+	return fmt.Sprintf("%.1f %%", 100*f)
+}
+
+func plural(n int, word string) string {
+	if n == 1 {
+		return fmt.Sprintf("%d %s", n, word)
+	}
+	return fmt.Sprintf("%d %ss", n, word)
+}

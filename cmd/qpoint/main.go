@@ -1,0 +1,88 @@
+// Command qpoint finds the DC operating point of every diode in a bias
+// network and, from there, what the circuit does to a small signal.
+//
+// Run `qpoint --help` for the commands, or `qpoint demo` for a tour.
+package main
+
+import (
+	"errors"
+	"fmt"
+	"io"
+	"os"
+
+	"github.com/spf13/cobra"
+)
+
+// Exit codes.
+const (
+	exitOK       = 0
+	exitAnalysis = 1 // the analysis ran and failed
+	exitInput    = 2 // bad input or usage
+)
+
+// exitError carries an exit code with an error.
+type exitError struct {
+	code int
+	err  error
+}
+
+func (e *exitError) Error() string { return e.err.Error() }
+func (e *exitError) Unwrap() error { return e.err }
+
+func inputError(err error) error    { return &exitError{exitInput, err} }
+func analysisError(err error) error { return &exitError{exitAnalysis, err} }
+
+func main() {
+	os.Exit(run(os.Args[1:], os.Stdout, os.Stderr))
+}
+
+// run executes the command line args and returns the exit code. No panic
+// escapes: one is reported as an internal error.
+func run(args []string, stdout, stderr io.Writer) (code int) {
+	defer func() {
+		if r := recover(); r != nil {
+			fmt.Fprintf(stderr, "qpoint: internal error: %v\nPlease report this with the circuit file that caused it.\n", r)
+			code = exitAnalysis
+		}
+	}()
+	root := newRoot(stdout, stderr)
+	root.SetArgs(args)
+	err := root.Execute()
+	if err == nil {
+		return exitOK
+	}
+	fmt.Fprintln(stderr, "qpoint:", err)
+	var e *exitError
+	if errors.As(err, &e) {
+		return e.code
+	}
+	// Cobra's own errors are about flags and arguments.
+	fmt.Fprintln(stderr, "Run 'qpoint --help' for usage.")
+	return exitInput
+}
+
+func newRoot(stdout, stderr io.Writer) *cobra.Command {
+	root := &cobra.Command{
+		Use:   "qpoint",
+		Short: "Bias points and small-signal behaviour of diode circuits",
+		Long: `qpoint reads one circuit file describing a diode bias network (detector,
+mixer, attenuator, limiter), finds the DC operating point of every diode,
+and reports what the circuit does at that point.
+
+Results are model estimates: confirm them by measurement before relying on
+them, and let the parts' ratings and your local practice govern.`,
+		Example: `  qpoint demo                         run every built-in demo circuit
+  qpoint bias detector.yaml           node voltages and diode Q points
+  qpoint bias detector.yaml --json    the same as one JSON document
+  qpoint bias mixer.yaml --temperature 85C`,
+		SilenceUsage:  true,
+		SilenceErrors: true,
+	}
+	root.SetOut(stdout)
+	root.SetErr(stderr)
+	root.SetFlagErrorFunc(func(c *cobra.Command, err error) error {
+		return inputError(fmt.Errorf("%w (see 'qpoint %s --help')", err, c.Name()))
+	})
+	root.AddCommand(newBiasCmd(), newDemoCmd())
+	return root
+}

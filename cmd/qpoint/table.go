@@ -1,0 +1,57 @@
+package main
+
+import (
+	"fmt"
+	"io"
+	"strings"
+	"unicode/utf8"
+)
+
+// table is a plain-text table: a title, a header row and aligned columns.
+// The first column is left-aligned (names), the rest right-aligned (values).
+type table struct {
+	title  string
+	header []string
+	rows   [][]string
+}
+
+func (t *table) add(cells ...string) { t.rows = append(t.rows, cells) }
+
+func (t *table) write(w io.Writer) {
+	widths := make([]int, len(t.header))
+	for _, row := range append([][]string{t.header}, t.rows...) {
+		for i, c := range row {
+			if i < len(widths) {
+				widths[i] = max(widths[i], utf8.RuneCountInString(c))
+			}
+		}
+	}
+	if t.title != "" {
+		fmt.Fprintf(w, "\n%s\n", t.title)
+	}
+	line := func(row []string) {
+		var b strings.Builder
+		b.WriteString("  ")
+		for i, c := range row {
+			if i >= len(widths) {
+				break
+			}
+			pad := strings.Repeat(" ", widths[i]-utf8.RuneCountInString(c))
+			if i == 0 {
+				b.WriteString(c + pad)
+			} else {
+				b.WriteString("   " + pad + c)
+			}
+		}
+		fmt.Fprintln(w, strings.TrimRight(b.String(), " "))
+	}
+	line(t.header)
+	rule := make([]string, len(widths))
+	for i, n := range widths {
+		rule[i] = strings.Repeat("─", n)
+	}
+	line(rule)
+	for _, r := range t.rows {
+		line(r)
+	}
+}
