@@ -70,6 +70,7 @@ func exactFile(cmd *cobra.Command, args []string) error {
 
 // loadCircuit reads a circuit file; every failure is an input error.
 func loadCircuit(path string) (*circuit.Circuit, error) {
+	inputs = append(inputs, path)
 	c, err := circuit.Load(path)
 	if err != nil {
 		var list circuit.ErrorList

@@ -1,0 +1,85 @@
+package ac
+
+import (
+	"errors"
+	"math/cmplx"
+)
+
+// errSingular reports a singular network matrix at some frequency.
+var errSingular = errors.New("the network matrix is singular")
+
+// lu is a dense complex LU factorisation with partial pivoting, row-major,
+// reused across frequencies (Golub and Van Loan, "Matrix Computations",
+// 4th ed., 2013, algorithm 3.4.1).
+type lu struct {
+	n   int
+	a   []complex128
+	piv []int
+}
+
+func newLU(n int) *lu {
+	return &lu{n: n, a: make([]complex128, n*n), piv: make([]int, n)}
+}
+
+// factor factors the matrix held in f.a in place.
+func (f *lu) factor() error {
+	n, a := f.n, f.a
+	for k := 0; k < n; k++ {
+		p, big := k, cmplx.Abs(a[k*n+k])
+		for i := k + 1; i < n; i++ {
+			if v := cmplx.Abs(a[i*n+k]); v > big {
+				p, big = i, v
+			}
+		}
+		f.piv[k] = p
+		if big == 0 {
+			return errSingular
+		}
+		if p != k {
+			rk, rp := a[k*n:(k+1)*n], a[p*n:(p+1)*n]
+			for j := range rk {
+				rk[j], rp[j] = rp[j], rk[j]
+			}
+		}
+		inv := 1 / a[k*n+k]
+		rowK := a[k*n : (k+1)*n]
+		for i := k + 1; i < n; i++ {
+			rowI := a[i*n : (i+1)*n]
+			l := rowI[k] * inv
+			rowI[k] = l
+			if l == 0 {
+				continue
+			}
+			for j := k + 1; j < n; j++ {
+				rowI[j] -= l * rowK[j]
+			}
+		}
+	}
+	return nil
+}
+
+// solve overwrites b with the solution of A x = b.
+func (f *lu) solve(b []complex128) {
+	n, a := f.n, f.a
+	for k := 0; k < n; k++ {
+		if p := f.piv[k]; p != k {
+			b[k], b[p] = b[p], b[k]
+		}
+	}
+	for i := 1; i < n; i++ {
+		row := a[i*n : i*n+i]
+		s := b[i]
+		for j, l := range row {
+			s -= l * b[j]
+		}
+		b[i] = s
+	}
+	for i := n - 1; i >= 0; i-- {
+		row := a[i*n : (i+1)*n]
+		s := b[i]
+		for j := i + 1; j < n; j++ {
+			s -= row[j] * b[j]
+		}
+		b[i] = s / row[i]
+	}
+}

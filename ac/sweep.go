@@ -1,0 +1,175 @@
+package ac
+
+import (
+	"fmt"
+	"math"
+	"math/cmplx"
+
+	"qpoint/smallsignal"
+)
+
+// Point is the response of the network at one frequency.
+type Point struct {
+	FrequencyHz float64
+	// S[i][j] is S_(i+1)(j+1), every port terminated in its reference
+	// impedance.
+	S [][]complex128
+	// InputImpedance[i] looks into port i with the other ports terminated.
+	InputImpedance []complex128
+	// Probes[k] is the voltage of probe node k when port 1's generator has
+	// an EMF of 1 V peak behind its reference impedance.
+	Probes []complex128
+	// GroupDelay is -d(arg S21)/dw in seconds (of S11 for a one-port).
+	GroupDelay float64
+}
+
+// PortInfo names a port and its reference impedance.
+type PortInfo struct {
+	Name      string
+	Impedance float64 // ohm
+}
+
+// Settings control a sweep. The zero value uses the circuit's own ports
+// and probes.
+type Settings struct {
+	// Reference replaces the ports' reference impedances (one per port,
+	// each > 0) for the S-parameters and terminations.
+	Reference []float64
+	// Probes lists the nodes whose transfer is reported; nil means the
+	// circuit's own probes.
+	Probes []string
+}
+
+// Response is a whole sweep held in memory.
+type Response struct {
+	Ports  []PortInfo
+	Probes []string
+	Points []Point
+}
+
+// Run sweeps nw over freqs and returns every point.
+func Run(nw *smallsignal.Network, freqs []float64, s Settings) (*Response, error) {
+	r := &Response{}
+	ports, probes, err := Sweep(nw, freqs, s, func(p Point) error {
+		r.Points = append(r.Points, p)
+		return nil
+	})
+	r.Ports, r.Probes = ports, probes
+	return r, err
+}
+
+// Sweep computes the response at each frequency in turn and hands it to
+// visit, so that a writer can stream a long sweep without holding it. It
+// returns the ports and probe names the points refer to. visit's error
+// stops the sweep and is returned.
+func Sweep(nw *smallsignal.Network, freqs []float64, s Settings, visit func(Point) error) ([]PortInfo, []string, error) {
+	if len(nw.Ports) == 0 {
+		return nil, nil, fmt.Errorf("the circuit has no ports; add a `ports:` entry to drive and load it")
+	}
+	ref := make([]float64, len(nw.Ports))
+	for i, p := range nw.Ports {
+		ref[i] = p.Impedance
+	}
+	if s.Reference != nil {
+		if len(s.Reference) != len(nw.Ports) {
+			return nil, nil, fmt.Errorf("%d reference impedances given for %d ports", len(s.Reference), len(nw.Ports))
+		}
+		for i, z := range s.Reference {
+			if !(z > 0) || math.IsInf(z, 0) {
+				return nil, nil, fmt.Errorf("reference impedance %g ohm for port %s: must be a positive real number", z, nw.Ports[i].Name)
+			}
+		}
+		nw = nw.WithReferences(s.Reference)
+		copy(ref, s.Reference)
+	}
+	probes := s.Probes
+	if probes == nil {
+		probes = nw.Point.Circuit.Probes
+	}
+	for _, name := range probes {
+		if _, ok := nw.NodeVoltage(name, make([]complex128, nw.N)); !ok {
+			return nil, nil, fmt.Errorf("probe %q is not a node of the circuit", name)
+		}
+	}
+	ports := make([]PortInfo, len(nw.Ports))
+	for i, p := range nw.Ports {
+		ports[i] = PortInfo{p.Name, ref[i]}
+	}
+
+	n, np := nw.N, len(nw.Ports)
+	f := newLU(n)
+	g, c := nw.G.RawMatrix(), nw.C.RawMatrix()
+	x := make([][]complex128, np)
+	for i := range x {
+		x[i] = make([]complex128, n)
+	}
+	dx := make([]complex128, n)
+	for _, hz := range freqs {
+		if err := CheckFrequency(hz); err != nil {
+			return ports, probes, err
+		}
+		w := 2 * math.Pi * hz
+		for i := 0; i < n; i++ {
+			for j := 0; j < n; j++ {
+				f.a[i*n+j] = complex(g.Data[i*g.Stride+j], w*c.Data[i*c.Stride+j])
+			}
+		}
+		if err := f.factor(); err != nil {
+			return ports, probes, fmt.Errorf("at %g Hz: %w", hz, err)
+		}
+		pt := Point{FrequencyHz: hz, S: make([][]complex128, np), InputImpedance: make([]complex128, np)}
+		for i := range pt.S {
+			pt.S[i] = make([]complex128, np)
+		}
+		for j := 0; j < np; j++ {
+			nw.Excitation(j, 1, x[j])
+			f.solve(x[j])
+			for i := 0; i < np; i++ {
+				v := nw.PortVoltage(i, x[j])
+				sij := 2 * v * complex(math.Sqrt(ref[j]/ref[i]), 0)
+				if i == j {
+					sij--
+				}
+				pt.S[i][j] = sij
+			}
+		}
+		for i := 0; i < np; i++ {
+			sii := pt.S[i][i]
+			pt.InputImpedance[i] = complex(ref[i], 0) * (1 + sii) / (1 - sii)
+		}
+		for _, name := range probes {
+			v, _ := nw.NodeVoltage(name, x[0])
+			pt.Probes = append(pt.Probes, v)
+		}
+		// Group delay from the exact derivative dx/dw = -Y⁻¹ (jC x) for
+		// the port-1 excitation.
+		for i := 0; i < n; i++ {
+			var s complex128
+			row := c.Data[i*c.Stride : i*c.Stride+n]
+			for j, cij := range row {
+				if cij != 0 {
+					s += complex(cij, 0) * x[0][j]
+				}
+			}
+			dx[i] = -1i * s
+		}
+		f.solve(dx)
+		out := 0
+		if np > 1 {
+			out = 1
+		}
+		dv := nw.PortVoltage(out, dx)
+		// S21 = k V and S11 = 2 V - 1: both derivatives follow from dV/dw.
+		sv := pt.S[out][0]
+		dS := 2 * dv * complex(math.Sqrt(ref[0]/ref[out]), 0)
+		if sv != 0 && !cmplx.IsNaN(sv) {
+			pt.GroupDelay = -imag(dS / sv)
+		} else {
+			pt.GroupDelay = math.NaN()
+		}
+		if err := visit(pt); err != nil {
+			return ports, probes, err
+		}
+	}
+	return ports, probes, nil
+}

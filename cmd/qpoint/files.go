@@ -1,0 +1,72 @@
+package main
+
+import (
+	"bufio"
+	"errors"
+	"fmt"
+	"io"
+	"os"
+	"path/filepath"
+)
+
+// inputs lists the files the current command reads, so that no output is
+// ever written over one of them.
+var inputs []string
+
+// writeFileAtomic writes a whole file or nothing: the content goes to a
+// temporary file in the same directory, which is synced and renamed over
+// path only when write succeeded. An interrupted or failed write leaves
+// any old file at path untouched.
+func writeFileAtomic(path string, write func(w io.Writer) error) (err error) {
+	if err := refuseInput(path); err != nil {
+		return err
+	}
+	dir := filepath.Dir(path)
+	tmp, err := os.CreateTemp(dir, "."+filepath.Base(path)+".*.partial")
+	if err != nil {
+		return fmt.Errorf("cannot write %s: %w", path, err)
+	}
+	defer func() {
+		if err != nil {
+			tmp.Close()
+			os.Remove(tmp.Name())
+		}
+	}()
+	bw := bufio.NewWriter(tmp)
+	if err := write(bw); err != nil {
+		return fmt.Errorf("writing %s: %w", path, err)
+	}
+	if err := bw.Flush(); err != nil {
+		return fmt.Errorf("writing %s: %w", path, err)
+	}
+	if err := tmp.Sync(); err != nil {
+		return fmt.Errorf("writing %s: %w", path, err)
+	}
+	if err := tmp.Close(); err != nil {
+		return fmt.Errorf("writing %s: %w", path, err)
+	}
+	if err := os.Chmod(tmp.Name(), 0o644); err != nil {
+		return fmt.Errorf("writing %s: %w", path, err)
+	}
+	if err := os.Rename(tmp.Name(), path); err != nil {
+		return fmt.Errorf("writing %s: %w", path, err)
+	}
+	return nil
+}
+
+// refuseInput fails when path names one of the command's input files.
+func refuseInput(path string) error {
+	out, err := os.Stat(path)
+	if errors.Is(err, os.ErrNotExist) {
+		return nil
+	}
+	if err != nil {
+		return nil // let the write report it
+	}
+	for _, in := range inputs {
+		if st, err := os.Stat(in); err == nil && os.SameFile(st, out) {
+			return inputError(fmt.Errorf("refusing to write %s: it is the input file; choose another output name", path))
+		}
+	}
+	return nil
+}

@@ -1,0 +1,452 @@
+package main
+
+import (
+	"encoding/csv"
+	"fmt"
+	"io"
+	"math"
+	"math/cmplx"
+	"strconv"
+	"strings"
+
+	"github.com/spf13/cobra"
+
+	"qpoint/ac"
+	"qpoint/bias"
+	"qpoint/bias/circuit"
+	"qpoint/bias/si"
+	"qpoint/smallsignal"
+)
+
+// Defaults when neither flags nor the file's analysis section give a sweep.
+const (
+	defaultFromHz    = 1e6
+	defaultToHz      = 10e9
+	defaultPerDecade = 20
+)
+
+type responseFlags struct {
+	from, to    string
+	perDecade   int
+	points      int
+	reference   string
+	temperature string
+	asJSON      bool
+	csvPath     string
+	touchstone  string
+	format      string
+	plotsDir    string
+	rows        int
+}
+
+func newResponseCmd() *cobra.Command {
+	var fl responseFlags
+	cmd := &cobra.Command{
+		Use:   "response FILE",
+		Short: "Small-signal frequency response at the bias point: S-parameters, impedance, probes",
+		Long: `response solves the bias point, linearises every diode there and sweeps the
+network over frequency. It prints a table at a handful of frequencies:
+|S21| and its angle, port 1's return loss and VSWR, and port 1's input
+impedance R + jX with the other ports terminated. The full sweep goes to
+--json, --csv, a Touchstone file (--touchstone) and figures (--plots).
+
+The sweep comes from the flags, else from the file's analysis.response,
+else 1 MHz to 10 GHz at 20 points per decade.`,
+		Example: `  qpoint response testdata/demo/detector.yaml
+  qpoint response attenuator.yaml --from 100MHz --to 3GHz --per-decade 100
+  qpoint response mixer.yaml --touchstone mixer.s3p --format ma
+  qpoint response detector.yaml --plots figures/ --csv detector.csv`,
+		Args: exactFile,
+		RunE: func(cmd *cobra.Command, args []string) error {
+			return runResponse(cmd, args[0], &fl)
+		},
+	}
+	f := cmd.Flags()
+	f.StringVar(&fl.from, "from", "", "lowest frequency, e.g. 10MHz")
+	f.StringVar(&fl.to, "to", "", "highest frequency, e.g. 6GHz")
+	f.IntVar(&fl.perDecade, "per-decade", 0, "points per decade on a logarithmic grid")
+	f.IntVar(&fl.points, "points", 0, "number of points on a linear grid (instead of --per-decade)")
+	f.StringVar(&fl.reference, "reference", "", "reference impedances in ohms, one for all ports or one per port: 50 or 50,75")
+	f.StringVar(&fl.temperature, "temperature", "", "circuit temperature, overriding the file's (e.g. 85C)")
+	f.BoolVar(&fl.asJSON, "json", false, "print one JSON document (SI units) instead of the table")
+	f.StringVar(&fl.csvPath, "csv", "", "write every point to this CSV file")
+	f.StringVar(&fl.touchstone, "touchstone", "", "write a Touchstone file (.sNp) of the S-parameters")
+	f.StringVar(&fl.format, "format", "ri", "Touchstone number format: ri, ma or db")
+	f.StringVar(&fl.plotsDir, "plots", "", "write the response figures (SVG and PNG) into this directory")
+	f.IntVar(&fl.rows, "rows", 9, "rows in the printed table")
+	return cmd
+}
+
+// sweepGrid resolves the frequency grid from flags, then the file, then
+// the defaults.
+func sweepGrid(c *circuit.Circuit, fl *responseFlags) ([]float64, error) {
+	from, to := defaultFromHz, defaultToHz
+	perDecade, points := defaultPerDecade, 0
+	if r := c.Analysis.Response; r.Set {
+		from, to = r.FromHz, r.ToHz
+		perDecade, points = r.PerDecade, r.Points
+	}
+	if fl.from != "" {
+		v, err := circuit.ParseValue(fl.from, circuit.Frequency)
+		if err != nil {
+			return nil, inputError(fmt.Errorf("flag --from: %w", err))
+		}
+		from = v
+	}
+	if fl.to != "" {
+		v, err := circuit.ParseValue(fl.to, circuit.Frequency)
+		if err != nil {
+			return nil, inputError(fmt.Errorf("flag --to: %w", err))
+		}
+		to = v
+	}
+	if fl.perDecade != 0 && fl.points != 0 {
+		return nil, inputError(fmt.Errorf("flags --per-decade and --points: give one grid, not both"))
+	}
+	if fl.perDecade != 0 {
+		perDecade, points = fl.perDecade, 0
+	}
+	if fl.points != 0 {
+		perDecade, points = 0, fl.points
+	}
+	var grid []float64
+	var err error
+	if points > 0 {
+		grid, err = ac.LinearGrid(from, to, points)
+	} else {
+		grid, err = ac.LogGrid(from, to, perDecade)
+	}
+	if err != nil {
+		return nil, inputError(fmt.Errorf("flags --from/--to/--per-decade/--points: %w; accepted: 1mHz to 1THz, rising, at least one point", err))
+	}
+	return grid, nil
+}
+
+func parseReference(s string, ports int) ([]float64, error) {
+	if s == "" {
+		return nil, nil
+	}
+	parts := strings.Split(s, ",")
+	var z []float64
+	for _, p := range parts {
+		v, err := circuit.ParseValue(strings.TrimSpace(p), circuit.Resistance)
+		if err != nil || !(v > 0) {
+			return nil, inputError(fmt.Errorf("flag --reference: `%s` is not a positive resistance; accepted: ohms, one value or one per port, e.g. 50 or 50,75", p))
+		}
+		z = append(z, v)
+	}
+	if len(z) == 1 {
+		for len(z) < ports {
+			z = append(z, z[0])
+		}
+	}
+	if len(z) != ports {
+		return nil, inputError(fmt.Errorf("flag --reference: %d impedances for %d ports; accepted: one value for all ports or one per port", len(z), ports))
+	}
+	return z, nil
+}
+
+func solveWithTemperature(c *circuit.Circuit, temperature string) (*bias.Point, error) {
+	var s bias.Settings
+	if temperature != "" {
+		tk, err := circuit.ParseValue(temperature, circuit.Temperature)
+		if err != nil {
+			return nil, inputError(fmt.Errorf("flag --temperature: %w", err))
+		}
+		s.TemperatureK = tk
+	}
+	p, err := bias.Solve(c, s)
+	if err != nil {
+		return nil, analysisError(err)
+	}
+	return p, nil
+}
+
+func runResponse(cmd *cobra.Command, path string, fl *responseFlags) error {
+	c, err := loadCircuit(path)
+	if err != nil {
+		return err
+	}
+	if len(c.Ports) == 0 {
+		return inputError(fmt.Errorf("%s: the circuit has no ports; a response needs at least one (add a `ports:` list)", path))
+	}
+	grid, err := sweepGrid(c, fl)
+	if err != nil {
+		return err
+	}
+	ref, err := parseReference(fl.reference, len(c.Ports))
+	if err != nil {
+		return err
+	}
+	format, err := parseTouchstoneFormat(fl.format)
+	if err != nil {
+		return err
+	}
+	p, err := solveWithTemperature(c, fl.temperature)
+	if err != nil {
+		return err
+	}
+	nw, err := smallsignal.New(p)
+	if err != nil {
+		return analysisError(err)
+	}
+	r, err := ac.Run(nw, grid, ac.Settings{Reference: ref})
+	if err != nil {
+		return analysisError(err)
+	}
+	if fl.csvPath != "" {
+		if err := writeFileAtomic(fl.csvPath, func(w io.Writer) error { return writeResponseCSV(w, r) }); err != nil {
+			return err
+		}
+	}
+	if fl.touchstone != "" {
+		if err := writeFileAtomic(fl.touchstone, func(w io.Writer) error {
+			return writeTouchstone(w, c, r, format)
+		}); err != nil {
+			return err
+		}
+	}
+	if fl.plotsDir != "" {
+		if err := writeResponsePlots(fl.plotsDir, r); err != nil {
+			return err
+		}
+	}
+	out := cmd.OutOrStdout()
+	if fl.asJSON {
+		return writeJSON(out, responseDocument(r))
+	}
+	writeResponseTable(out, c, p, r, fl.rows)
+	for _, x := range []struct{ what, path string }{{"CSV", fl.csvPath}, {"Touchstone", fl.touchstone}, {"figures", fl.plotsDir}} {
+		if x.path != "" {
+			fmt.Fprintf(out, "%s written to %s\n", x.what, x.path)
+		}
+	}
+	return nil
+}
+
+// pickRows chooses up to n points spread evenly over the sweep's index
+// range, always including the first and last.
+func pickRows(total, n int) []int {
+	if n < 2 || total <= n {
+		idx := make([]int, total)
+		for i := range idx {
+			idx[i] = i
+		}
+		return idx
+	}
+	var idx []int
+	for k := 0; k < n; k++ {
+		i := int(math.Round(float64(k) * float64(total-1) / float64(n-1)))
+		if len(idx) == 0 || idx[len(idx)-1] != i {
+			idx = append(idx, i)
+		}
+	}
+	return idx
+}
+
+func db(x complex128) float64  { return 20 * math.Log10(cmplx.Abs(x)) }
+func deg(x complex128) float64 { return cmplx.Phase(x) * 180 / math.Pi }
+
+func formatDB(v float64) string {
+	if math.IsInf(v, -1) {
+		return "-∞"
+	}
+	if math.IsNaN(v) || math.IsInf(v, 1) {
+		return "—"
+	}
+	// Below -200 dB a transfer is numerical noise of a perfectly balanced
+	// or isolated network, not a figure to read.
+	if v < -200 {
+		return "< -200"
+	}
+	return strconv.FormatFloat(v, 'f', 2, 64)
+}
+
+func formatImpedance(z complex128) string {
+	if cmplx.IsInf(z) || cmplx.IsNaN(z) {
+		return "open"
+	}
+	sign := "+"
+	x := imag(z)
+	if x < 0 {
+		sign = "−"
+		x = -x
+	}
+	return fmt.Sprintf("%s %s j%s", si.Format(real(z), "Ω", 4), sign, si.Format(x, "Ω", 4))
+}
+
+func writeResponseTable(w io.Writer, c *circuit.Circuit, p *bias.Point, r *ac.Response, rows int) {
+	fmt.Fprintf(w, "%s\n", c.Name)
+	fmt.Fprintf(w, "  file         %s\n", c.File)
+	fmt.Fprintf(w, "  bias         solved at %.2f °C by %s", celsius(p.TemperatureK), p.Stats.Strategy)
+	for _, d := range p.Diodes {
+		fmt.Fprintf(w, "; %s at %s", d.Name, si.Format(d.Current, "A", 3))
+	}
+	fmt.Fprintln(w)
+	var ports []string
+	for _, port := range r.Ports {
+		ports = append(ports, fmt.Sprintf("%s (%s)", port.Name, si.Format(port.Impedance, "Ω", 4)))
+	}
+	fmt.Fprintf(w, "  ports        %s\n", strings.Join(ports, ", "))
+	first, last := r.Points[0].FrequencyHz, r.Points[len(r.Points)-1].FrequencyHz
+	fmt.Fprintf(w, "  sweep        %d points, %s to %s\n", len(r.Points), si.Format(first, "Hz", 4), si.Format(last, "Hz", 4))
+
+	two := len(r.Ports) > 1
+	name1 := r.Ports[0].Name
+	t := &table{title: "Response"}
+	t.header = []string{"frequency"}
+	if two {
+		t.header = append(t.header, fmt.Sprintf("|S21| dB (%s→%s)", name1, r.Ports[1].Name), "∠S21 °")
+	}
+	t.header = append(t.header, fmt.Sprintf("return loss dB (%s)", name1), "VSWR", fmt.Sprintf("input impedance (%s)", name1))
+	for _, name := range r.Probes {
+		t.header = append(t.header, fmt.Sprintf("%s dB", name))
+	}
+	for _, i := range pickRows(len(r.Points), rows) {
+		pt := r.Points[i]
+		cells := []string{si.Format(pt.FrequencyHz, "Hz", 4)}
+		if two {
+			angle := strconv.FormatFloat(deg(pt.S[1][0]), 'f', 1, 64)
+			if db(pt.S[1][0]) < -200 {
+				angle = "—"
+			}
+			cells = append(cells, formatDB(db(pt.S[1][0])), angle)
+		}
+		g := cmplx.Abs(pt.S[0][0])
+		vswr := "∞"
+		if g < 1 {
+			vswr = strconv.FormatFloat((1+g)/(1-g), 'f', 2, 64)
+		}
+		cells = append(cells, formatDB(-db(pt.S[0][0])), vswr, formatImpedance(pt.InputImpedance[0]))
+		for _, v := range pt.Probes {
+			cells = append(cells, formatDB(db(v)))
+		}
+		t.add(cells...)
+	}
+	t.write(w)
+	if len(r.Probes) > 0 {
+		fmt.Fprintf(w, "  probes: node voltage for a 1 V (peak) EMF behind port %s's reference impedance, in dB re 1 V\n", name1)
+	}
+	fmt.Fprintln(w)
+}
+
+// writeResponseCSV writes one row per frequency with a header naming each
+// column and its unit.
+func writeResponseCSV(w io.Writer, r *ac.Response) error {
+	cw := csv.NewWriter(w)
+	header := []string{"frequency_Hz"}
+	n := len(r.Ports)
+	for i := 0; i < n; i++ {
+		for j := 0; j < n; j++ {
+			header = append(header, fmt.Sprintf("S%d%d_re", i+1, j+1), fmt.Sprintf("S%d%d_im", i+1, j+1))
+		}
+	}
+	for i := 0; i < n; i++ {
+		header = append(header, fmt.Sprintf("Zin%d_re_ohm", i+1), fmt.Sprintf("Zin%d_im_ohm", i+1))
+	}
+	for _, p := range r.Probes {
+		header = append(header, fmt.Sprintf("probe_%s_re_V", p), fmt.Sprintf("probe_%s_im_V", p))
+	}
+	header = append(header, "group_delay_s")
+	if err := cw.Write(header); err != nil {
+		return err
+	}
+	g := func(v float64) string { return strconv.FormatFloat(v, 'g', -1, 64) }
+	for _, pt := range r.Points {
+		row := []string{g(pt.FrequencyHz)}
+		for i := 0; i < n; i++ {
+			for j := 0; j < n; j++ {
+				row = append(row, g(real(pt.S[i][j])), g(imag(pt.S[i][j])))
+			}
+		}
+		for _, z := range pt.InputImpedance {
+			row = append(row, g(real(z)), g(imag(z)))
+		}
+		for _, v := range pt.Probes {
+			row = append(row, g(real(v)), g(imag(v)))
+		}
+		row = append(row, g(pt.GroupDelay))
+		if err := cw.Write(row); err != nil {
+			return err
+		}
+	}
+	cw.Flush()
+	return cw.Error()
+}
+
+// complexJSON encodes a complex number as [re, im], or null when either
+// part is not finite.
+type complexJSON complex128
+
+func (c complexJSON) MarshalJSON() ([]byte, error) {
+	re, im := real(c), imag(c)
+	if math.IsNaN(re) || math.IsInf(re, 0) || math.IsNaN(im) || math.IsInf(im, 0) {
+		return []byte("null"), nil
+	}
+	return []byte("[" + strconv.FormatFloat(re, 'g', -1, 64) + "," + strconv.FormatFloat(im, 'g', -1, 64) + "]"), nil
+}
+
+type orderedComplex struct {
+	keys   []string
+	values []complexJSON
+}
+
+func (o orderedComplex) MarshalJSON() ([]byte, error) {
+	var b strings.Builder
+	b.WriteByte('{')
+	for i, k := range o.keys {
+		if i > 0 {
+			b.WriteByte(',')
+		}
+		b.WriteString(strconv.Quote(k))
+		b.WriteByte(':')
+		v, _ := o.values[i].MarshalJSON()
+		b.Write(v)
+	}
+	b.WriteByte('}')
+	return []byte(b.String()), nil
+}
+
+type responsePointJSON struct {
+	Frequency      number          `json:"frequency"`
+	S              [][]complexJSON `json:"s"`
+	InputImpedance []complexJSON   `json:"input_impedance"`
+	Probes         orderedComplex  `json:"probes"`
+	GroupDelay     number          `json:"group_delay"`
+}
+
+type portJSON struct {
+	Name      string `json:"name"`
+	Impedance number `json:"impedance"`
+}
+
+type responseJSON struct {
+	Ports  []portJSON          `json:"ports"`
+	Points []responsePointJSON `json:"points"`
+}
+
+func responseDocument(r *ac.Response) *responseJSON {
+	d := &responseJSON{}
+	for _, p := range r.Ports {
+		d.Ports = append(d.Ports, portJSON{p.Name, number(p.Impedance)})
+	}
+	for _, pt := range r.Points {
+		j := responsePointJSON{Frequency: number(pt.FrequencyHz), GroupDelay: number(pt.GroupDelay)}
+		for _, row := range pt.S {
+			var jr []complexJSON
+			for _, v := range row {
+				jr = append(jr, complexJSON(v))
+			}
+			j.S = append(j.S, jr)
+		}
+		for _, z := range pt.InputImpedance {
+			j.InputImpedance = append(j.InputImpedance, complexJSON(z))
+		}
+		for k, name := range r.Probes {
+			j.Probes.keys = append(j.Probes.keys, name)
+			j.Probes.values = append(j.Probes.values, complexJSON(pt.Probes[k]))
+		}
+		d.Points = append(d.Points, j)
+	}
+	return d
+}

@@ -1,0 +1,265 @@
+package smallsignal
+
+import (
+	"fmt"
+
+	"gonum.org/v1/gonum/mat"
+
+	"qpoint/bias"
+	"qpoint/bias/circuit"
+)
+
+// Ground is the index used for the reference node.
+const Ground = -1
+
+// Network is a circuit linearised at a bias point, Y(s) = G + sC, in
+// modified nodal form. Unknowns are the named nodes (in file order), then
+// each diode's internal junction node where it has series resistance, then
+// one branch current per inductor and per voltage source.
+type Network struct {
+	Point *bias.Point
+	N     int        // number of unknowns
+	G, C  *mat.Dense // N×N
+	Names []string   // name of each unknown
+
+	Nodes  map[string]int // named node -> unknown index
+	Ports  []Port
+	Diodes []Diode
+}
+
+// Port is a port of the network, terminated in its reference impedance.
+type Port struct {
+	Name       string
+	Node       int // unknown index of the port node
+	Return     int // unknown index of the return node (Ground for gnd)
+	Impedance  float64
+	NodeName   string
+	ReturnName string
+}
+
+// Diode is a diode's small-signal model at its Q point.
+type Diode struct {
+	Name     string
+	Anode    int // terminal anode
+	Junction int // internal anode: equals Anode when R_S = 0
+	Cathode  int
+
+	SeriesResistance float64 // ohm
+	// Taylor coefficients of the junction current and charge about the Q
+	// point: g_k = (1/k!) d^k I/dV^k, c_k = (1/k!) d^k Q/dV^k. g1 is the
+	// junction conductance g_d; c1 is the total capacitance C_j + C_d.
+	G1, G2, G3 float64
+	C1, C2, C3 float64
+	// JunctionCapacitance and DiffusionCapacitance split c1.
+	JunctionCapacitance  float64
+	DiffusionCapacitance float64
+}
+
+// New linearises the circuit at point p.
+func New(p *bias.Point) (*Network, error) {
+	c := p.Circuit
+	nw := &Network{Point: p, Nodes: map[string]int{}}
+	for _, name := range c.Nodes {
+		nw.Nodes[name] = len(nw.Names)
+		nw.Names = append(nw.Names, name)
+	}
+	node := func(name string) (int, error) {
+		if name == circuit.Ground {
+			return Ground, nil
+		}
+		i, ok := nw.Nodes[name]
+		if !ok {
+			return 0, fmt.Errorf("smallsignal: node %q is not in the circuit", name)
+		}
+		return i, nil
+	}
+	qp := map[string]bias.Diode{}
+	for _, d := range p.Diodes {
+		qp[d.Name] = d
+	}
+
+	type branch struct {
+		a, b int
+		l    float64 // inductance; zero for a voltage source
+	}
+	type twoTerm struct {
+		a, b int
+		v    float64
+	}
+	var conds, caps []twoTerm
+	var branches []branch
+
+	for _, part := range c.Parts {
+		a, err := node(part.Nodes[0])
+		if err != nil {
+			return nil, err
+		}
+		b, err := node(part.Nodes[1])
+		if err != nil {
+			return nil, err
+		}
+		switch part.Kind {
+		case circuit.Resistor:
+			conds = append(conds, twoTerm{a, b, 1 / part.Value})
+		case circuit.Capacitor:
+			caps = append(caps, twoTerm{a, b, part.Value})
+		case circuit.Inductor:
+			branches = append(branches, branch{a, b, part.Value})
+		case circuit.VoltageSource:
+			branches = append(branches, branch{a, b, 0}) // a DC source is a short to signals
+		case circuit.CurrentSource:
+			// A DC current source is an open circuit to signals.
+		case circuit.Diode:
+			q, ok := qp[part.Name]
+			if !ok {
+				return nil, fmt.Errorf("smallsignal: diode %s has no Q point", part.Name)
+			}
+			dev := q.Device
+			d := Diode{Name: part.Name, Anode: a, Junction: a, Cathode: b, SeriesResistance: dev.Params.SeriesResistance}
+			if d.SeriesResistance > 0 {
+				d.Junction = len(nw.Names)
+				nw.Names = append(nw.Names, part.Name+"#junction")
+				conds = append(conds, twoTerm{a, d.Junction, 1 / d.SeriesResistance})
+			}
+			d.G1, d.G2, d.G3 = dev.Current(q.JunctionVoltage).Taylor()
+			d.C1, d.C2, d.C3 = dev.Charge(q.JunctionVoltage).Taylor()
+			d.JunctionCapacitance = dev.DepletionCharge(q.JunctionVoltage).D1
+			d.DiffusionCapacitance = dev.DiffusionCharge(q.JunctionVoltage).D1
+			conds = append(conds, twoTerm{d.Junction, b, d.G1})
+			caps = append(caps, twoTerm{d.Junction, b, d.C1})
+			nw.Diodes = append(nw.Diodes, d)
+		}
+	}
+	for _, port := range c.Ports {
+		a, err := node(port.Node)
+		if err != nil {
+			return nil, err
+		}
+		ret := port.Return
+		if ret == "" {
+			ret = circuit.Ground
+		}
+		b, err := node(ret)
+		if err != nil {
+			return nil, err
+		}
+		nw.Ports = append(nw.Ports, Port{Name: port.Name, Node: a, Return: b, Impedance: port.Impedance, NodeName: port.Node, ReturnName: ret})
+		conds = append(conds, twoTerm{a, b, 1 / port.Impedance})
+	}
+
+	nNodes := len(nw.Names)
+	nw.Names = append(nw.Names, make([]string, len(branches))...)
+	nw.N = len(nw.Names)
+	n := nw.N
+	if n == 0 {
+		return nil, fmt.Errorf("smallsignal: the circuit has no unknowns")
+	}
+	nw.G = mat.NewDense(n, n, nil)
+	nw.C = mat.NewDense(n, n, nil)
+	stamp := func(m *mat.Dense, a, b int, v float64) {
+		if a != Ground {
+			m.Set(a, a, m.At(a, a)+v)
+		}
+		if b != Ground {
+			m.Set(b, b, m.At(b, b)+v)
+		}
+		if a != Ground && b != Ground {
+			m.Set(a, b, m.At(a, b)-v)
+			m.Set(b, a, m.At(b, a)-v)
+		}
+	}
+	for _, t := range conds {
+		stamp(nw.G, t.a, t.b, t.v)
+	}
+	for _, t := range caps {
+		stamp(nw.C, t.a, t.b, t.v)
+	}
+	// Branch k carries current i from a to b through the part:
+	// KCL rows get +i at a and -i at b; the branch row states
+	// v_a - v_b - s L i = 0.
+	k := nNodes
+	bi := 0
+	for _, part := range c.Parts {
+		if part.Kind != circuit.Inductor && part.Kind != circuit.VoltageSource {
+			continue
+		}
+		br := branches[bi]
+		bi++
+		nw.Names[k] = part.Name + "#current"
+		if br.a != Ground {
+			nw.G.Set(br.a, k, 1)
+			nw.G.Set(k, br.a, 1)
+		}
+		if br.b != Ground {
+			nw.G.Set(br.b, k, -1)
+			nw.G.Set(k, br.b, -1)
+		}
+		nw.C.Set(k, k, -br.l)
+		k++
+	}
+	return nw, nil
+}
+
+// Excitation returns the right-hand side that drives port i with a
+// generator of EMF emf (peak volts) behind its reference impedance: a Norton
+// current emf/Z0 into the port node and out of its return.
+func (nw *Network) Excitation(i int, emf complex128, b []complex128) {
+	clear(b)
+	p := nw.Ports[i]
+	j := emf / complex(p.Impedance, 0)
+	if p.Node != Ground {
+		b[p.Node] += j
+	}
+	if p.Return != Ground {
+		b[p.Return] -= j
+	}
+}
+
+// PortVoltage returns the voltage across port i in the solution x.
+func (nw *Network) PortVoltage(i int, x []complex128) complex128 {
+	p := nw.Ports[i]
+	return at(x, p.Node) - at(x, p.Return)
+}
+
+// NodeVoltage returns the named node's voltage in x.
+func (nw *Network) NodeVoltage(name string, x []complex128) (complex128, bool) {
+	if name == circuit.Ground {
+		return 0, true
+	}
+	i, ok := nw.Nodes[name]
+	if !ok {
+		return 0, false
+	}
+	return x[i], true
+}
+
+func at(x []complex128, i int) complex128 {
+	if i == Ground {
+		return 0
+	}
+	return x[i]
+}
+
+// WithReferences returns a copy of the network whose ports are terminated
+// in the impedances z (one per port) instead of their own.
+func (nw *Network) WithReferences(z []float64) *Network {
+	out := *nw
+	out.G = mat.DenseCopyOf(nw.G)
+	out.Ports = append([]Port(nil), nw.Ports...)
+	for i, p := range out.Ports {
+		d := 1/z[i] - 1/p.Impedance
+		a, b := p.Node, p.Return
+		if a != Ground {
+			out.G.Set(a, a, out.G.At(a, a)+d)
+		}
+		if b != Ground {
+			out.G.Set(b, b, out.G.At(b, b)+d)
+		}
+		if a != Ground && b != Ground {
+			out.G.Set(a, b, out.G.At(a, b)-d)
+			out.G.Set(b, a, out.G.At(b, a)-d)
+		}
+		out.Ports[i].Impedance = z[i]
+	}
+	return &out
+}
