@@ -1,0 +1,223 @@
+package circuit
+
+import (
+	"fmt"
+	"strings"
+
+	"gopkg.in/yaml.v3"
+)
+
+// topology checks what the DC operating point needs from the circuit's
+// connections: a reference node, a DC path from every node to it, and no
+// loop made of voltage sources and inductors alone (a short at DC, which
+// leaves the current around it undetermined).
+func (l *loader) topology(partsKey *yaml.Node) {
+	index := make(map[string]int, len(l.c.Nodes)+1)
+	index[Ground] = 0
+	for i, name := range l.c.Nodes {
+		index[name] = i + 1
+	}
+	if !l.touchesGround {
+		l.errorf(partsKey, "no part connects to `%s`, the reference node%s; accepted: at least one part with a terminal on gnd",
+			Ground, groundHint(l.c.Nodes))
+	} else {
+		l.floatingNodes(index)
+	}
+	l.sourceLoops(index)
+}
+
+// groundHint points at node names that look as if they were meant as the
+// reference node.
+func groundHint(nodes []string) string {
+	for _, n := range nodes {
+		if strings.EqualFold(n, Ground) || strings.EqualFold(n, "ground") || n == "0" {
+			return fmt.Sprintf(" (node `%s` is an ordinary node; the reference is named `%s`)", n, Ground)
+		}
+	}
+	return ""
+}
+
+// conductsDC tells whether a part of kind k carries a DC current that its
+// terminal voltages determine, and so ties its nodes together at DC.
+func conductsDC(k Kind) bool {
+	return k == Resistor || k == Inductor || k == VoltageSource || k == Diode
+}
+
+// floatingNodes reports groups of nodes with no DC path to gnd, one error per
+// group, at the first current source feeding the group or else at the first
+// part touching it.
+func (l *loader) floatingNodes(index map[string]int) {
+	uf := newUnionFind(len(index))
+	for _, p := range l.c.Parts {
+		if conductsDC(p.Kind) {
+			uf.union(index[p.Nodes[0]], index[p.Nodes[1]])
+		}
+	}
+	// A dc-coupled port is its reference impedance at DC.
+	for _, p := range l.c.Ports {
+		if !p.ACCoupled {
+			uf.union(index[p.Node], index[p.Return])
+		}
+	}
+	ground := uf.find(0)
+	var roots []int
+	groups := map[int][]string{}
+	for _, name := range l.c.Nodes {
+		r := uf.find(index[name])
+		if r == ground {
+			continue
+		}
+		if _, ok := groups[r]; !ok {
+			roots = append(roots, r)
+		}
+		groups[r] = append(groups[r], name)
+	}
+	// One pass over the parts finds, for each group, the part to point at
+	// and the current sources feeding it.
+	first := map[int]*Part{}
+	feeders := map[int][]string{}
+	for i := range l.c.Parts {
+		p := &l.c.Parts[i]
+		for j, node := range p.Nodes {
+			r := uf.find(index[node])
+			if r == ground || (j == 1 && r == uf.find(index[p.Nodes[0]])) {
+				continue
+			}
+			if p.Kind == CurrentSource {
+				if len(feeders[r]) == 0 {
+					first[r] = p
+				}
+				feeders[r] = append(feeders[r], p.Name)
+			} else if first[r] == nil {
+				first[r] = p
+			}
+		}
+	}
+	for _, r := range roots {
+		nodes := groups[r]
+		subject, verb := fmt.Sprintf("node %s has", nameList(nodes, 8)), "is"
+		if len(nodes) > 1 {
+			subject, verb = fmt.Sprintf("nodes %s have", nameList(nodes, 8)), "are"
+		}
+		hint := groundHint(nodes)
+		if first[r] == nil {
+			continue // cannot happen: every node comes from a part
+		}
+		at := first[r].Pos
+		if len(feeders[r]) > 0 {
+			l.errorAt(at.Line, at.Col,
+				"%s no DC path to gnd and %s fed only by current sources (%s)%s; accepted: a resistive path to gnd, e.g. a resistor from `%s` to gnd",
+				subject, verb, strings.Join(feeders[r], ", "), hint, nodes[0])
+			continue
+		}
+		l.errorAt(at.Line, at.Col,
+			"%s no DC path to gnd, only capacitors or ac-coupled ports reach it%s; accepted: a DC path to gnd through a resistor, inductor, diode, voltage source or dc-coupled port",
+			subject, hint)
+	}
+}
+
+// sourceLoops reports each loop made only of voltage sources and inductors,
+// at the part that closes it, naming every part in the loop.
+func (l *loader) sourceLoops(index map[string]int) {
+	type edge struct{ to, part int }
+	uf := newUnionFind(len(index))
+	adj := make([][]edge, len(index))
+	via := make([]edge, len(index)) // via[node] is the tree edge the walk reached it by
+	seen := make([]bool, len(index))
+	var touched []int
+	for i, p := range l.c.Parts {
+		if p.Kind != VoltageSource && p.Kind != Inductor {
+			continue
+		}
+		a, b := index[p.Nodes[0]], index[p.Nodes[1]]
+		if a == b {
+			continue // already reported as a part shorted on itself
+		}
+		if uf.find(a) != uf.find(b) {
+			uf.union(a, b)
+			adj[a] = append(adj[a], edge{b, i})
+			adj[b] = append(adj[b], edge{a, i})
+			continue
+		}
+		// a and b are already joined by a tree of sources and inductors:
+		// walk it to name the parts of the loop. The buffers are shared
+		// between loops and reset where they were touched.
+		for _, x := range touched {
+			seen[x] = false
+		}
+		touched = append(touched[:0], a)
+		seen[a] = true
+		queue := []int{a}
+		for len(queue) > 0 && !seen[b] {
+			x := queue[0]
+			queue = queue[1:]
+			for _, e := range adj[x] {
+				if !seen[e.to] {
+					seen[e.to] = true
+					touched = append(touched, e.to)
+					via[e.to] = edge{x, e.part}
+					queue = append(queue, e.to)
+				}
+			}
+		}
+		names := []string{p.Name}
+		sources, inductors := 0, 0
+		count := func(k Kind) {
+			if k == VoltageSource {
+				sources++
+			} else {
+				inductors++
+			}
+		}
+		count(p.Kind)
+		for x := b; x != a; x = via[x].to {
+			q := l.c.Parts[via[x].part]
+			names = append(names, q.Name)
+			count(q.Kind)
+		}
+		what := "voltage sources and inductors"
+		switch {
+		case inductors == 0:
+			what = "voltage sources"
+		case sources == 0:
+			what = "inductors"
+		}
+		l.errorAt(p.Pos.Line, p.Pos.Col,
+			"%s %s form a loop with nothing else in it, a short circuit at DC where the current around the loop is undetermined; accepted: a resistor or other part in every such loop, e.g. a source's internal resistance",
+			what, nameList(names, 12))
+	}
+}
+
+// unionFind joins nodes into connected groups (R. E. Tarjan, "Efficiency of
+// a good but not linear set union algorithm", J. ACM 22 (1975) 215).
+type unionFind struct {
+	parent, size []int
+}
+
+func newUnionFind(n int) *unionFind {
+	u := &unionFind{parent: make([]int, n), size: make([]int, n)}
+	for i := range u.parent {
+		u.parent[i], u.size[i] = i, 1
+	}
+	return u
+}
+
+func (u *unionFind) find(x int) int {
+	for u.parent[x] != x {
+		u.parent[x] = u.parent[u.parent[x]] // path halving
+		x = u.parent[x]
+	}
+	return x
+}
+
+func (u *unionFind) union(a, b int) {
+	a, b = u.find(a), u.find(b)
+	if a == b {
+		return
+	}
+	if u.size[a] < u.size[b] {
+		a, b = b, a
+	}
+	u.parent[b] = a
+	u.size[a] += u.size[b]
+}
