@@ -38,7 +38,9 @@ func (n *net) part(k circuit.Kind, name, a, b string, value float64) *net {
 	return n
 }
 
-func (n *net) R(name, a, b string, ohm float64) *net { return n.part(circuit.Resistor, name, a, b, ohm) }
+func (n *net) R(name, a, b string, ohm float64) *net {
+	return n.part(circuit.Resistor, name, a, b, ohm)
+}
 func (n *net) V(name, plus, minus string, v float64) *net {
 	return n.part(circuit.VoltageSource, name, plus, minus, v)
 }

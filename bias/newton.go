@@ -43,7 +43,7 @@ func (st *state) copyFrom(o *state) {
 
 // scratch holds work vectors reused across iterations.
 type scratch struct {
-	b, vj, r, scale []float64
+	b, vj, r, scale, floor []float64
 }
 
 func (s *system) newScratch() *scratch {
@@ -52,6 +52,7 @@ func (s *system) newScratch() *scratch {
 		vj:    make([]float64, len(s.junctions)),
 		r:     make([]float64, s.n),
 		scale: make([]float64, s.n),
+		floor: make([]float64, s.n),
 	}
 }
 
@@ -109,13 +110,15 @@ func (s *system) newton(st *state, lambda, gmin float64, maxIter int, w *scratch
 }
 
 // kclRatio returns the largest ratio of residual to tolerance over all rows
-// at x, and the largest node residual in amperes.
+// at x, and the largest node residual in amperes. A node's tolerance is
+// 1e-12 A + 1e-9 × (sum of current magnitudes at the node), raised to the
+// rounding floor of its currents where that is larger.
 func (s *system) kclRatio(x []float64, w *scratch) (ratio, worst float64) {
-	s.residual(x, w.r, w.scale)
+	s.residual(x, w.r, w.scale, w.floor)
 	for i := range w.r {
 		var tol float64
 		if i < s.nNodes {
-			tol = kclAbsTol + kclRelTol*w.scale[i]
+			tol = kclAbsTol + kclRelTol*w.scale[i] + w.floor[i]
 			worst = math.Max(worst, math.Abs(w.r[i]))
 		} else {
 			tol = branchTol*w.scale[i] + voltAbsTol

@@ -52,7 +52,9 @@ type Stats struct {
 	Iterations int      // Newton iterations over every strategy tried
 	// Residual is the largest KCL residual over all nodes in amperes, and
 	// ResidualRatio the largest ratio of a node's residual to its
-	// tolerance 1e-12 A + 1e-9 × (sum of current magnitudes at the node);
+	// tolerance 1e-12 A + 1e-9 × (sum of current magnitudes at the node),
+	// plus the rounding floor of those currents (16 ε g (|v_a| + |v_b|)
+	// per part, which only milliohm parts at volts make noticeable);
 	// converged points have a ratio at most 1.
 	Residual      float64
 	ResidualRatio float64

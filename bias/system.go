@@ -241,14 +241,21 @@ func (s *system) assemble(vl []float64, lambda, gmin float64, b []float64) {
 	}
 }
 
+// roundoff is the multiple of the machine epsilon allowed for rounding in
+// a current computed as g·(v_a - v_b).
+const roundoff = 16 * 0x1p-52
+
 // residual returns the KCL residual of the circuit as described (no aids,
 // sources at full value) at x: r[i] is the net current leaving node i
 // through the parts, and scale[i] the sum of the magnitudes of those
-// currents, the size the residual is judged against. Branch rows hold the
-// voltage error of each source.
-func (s *system) residual(x, r, scale []float64) {
+// currents, the size the residual is judged against. floor[i] is the
+// rounding floor of the residual: a current g·(v_a - v_b) cannot be known
+// better than g·(|v_a| + |v_b|)·ε, which matters for milliohm parts at
+// volts. Branch rows hold the voltage error of each source.
+func (s *system) residual(x, r, scale, floor []float64) {
 	clear(r)
 	clear(scale)
+	clear(floor)
 	flow := func(a, b int, i float64) {
 		if a != ground {
 			r[a] += i
@@ -259,8 +266,18 @@ func (s *system) residual(x, r, scale []float64) {
 			scale[b] += abs(i)
 		}
 	}
+	rounding := func(a, b int, g float64) {
+		e := roundoff * g * (abs(volt(x, a)) + abs(volt(x, b)))
+		if a != ground {
+			floor[a] += e
+		}
+		if b != ground {
+			floor[b] += e
+		}
+	}
 	for _, c := range s.conds {
 		flow(c.a, c.b, c.g*(volt(x, c.a)-volt(x, c.b)))
+		rounding(c.a, c.b, c.g)
 	}
 	for _, v := range s.vsources {
 		flow(v.plus, v.minus, x[v.br])
@@ -273,7 +290,9 @@ func (s *system) residual(x, r, scale []float64) {
 	}
 	for _, j := range s.junctions {
 		v := volt(x, j.internal) - volt(x, j.cathode)
-		flow(j.internal, j.cathode, j.dev.Current(v).Value)
+		i := j.dev.Current(v)
+		flow(j.internal, j.cathode, i.Value)
+		rounding(j.internal, j.cathode, abs(i.D1))
 	}
 }
 

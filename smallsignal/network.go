@@ -7,6 +7,7 @@ import (
 
 	"qpoint/bias"
 	"qpoint/bias/circuit"
+	"qpoint/bias/diode"
 )
 
 // Ground is the index used for the reference node.
@@ -25,6 +26,13 @@ type Network struct {
 	Nodes  map[string]int // named node -> unknown index
 	Ports  []Port
 	Diodes []Diode
+
+	// The large-signal view of the same unknowns, for time-domain
+	// analysis: the linear parts alone (no diode stamps), the right-hand
+	// side of the DC sources, and the DC solution.
+	GLinear, CLinear *mat.Dense
+	Sources          []float64 // DC source vector: f(x) = GLinear x + i_diodes(x) - Sources
+	Bias             []float64 // the operating point in this layout
 }
 
 // Port is a port of the network, terminated in its reference impedance.
@@ -35,6 +43,9 @@ type Port struct {
 	Impedance  float64
 	NodeName   string
 	ReturnName string
+	// ACCoupled ports sit behind an ideal DC block: they terminate the
+	// network at every frequency but zero.
+	ACCoupled bool
 }
 
 // Diode is a diode's small-signal model at its Q point.
@@ -45,6 +56,8 @@ type Diode struct {
 	Cathode  int
 
 	SeriesResistance float64 // ohm
+	Device           *diode.Device
+	JunctionVoltage  float64 // V at the Q point
 	// Taylor coefficients of the junction current and charge about the Q
 	// point: g_k = (1/k!) d^k I/dV^k, c_k = (1/k!) d^k Q/dV^k. g1 is the
 	// junction conductance g_d; c1 is the total capacitance C_j + C_d.
@@ -86,8 +99,9 @@ func New(p *bias.Point) (*Network, error) {
 		a, b int
 		v    float64
 	}
-	var conds, caps []twoTerm
+	var conds, caps, diodeConds, diodeCaps []twoTerm
 	var branches []branch
+	var isrc []twoTerm
 
 	for _, part := range c.Parts {
 		a, err := node(part.Nodes[0])
@@ -109,13 +123,15 @@ func New(p *bias.Point) (*Network, error) {
 			branches = append(branches, branch{a, b, 0}) // a DC source is a short to signals
 		case circuit.CurrentSource:
 			// A DC current source is an open circuit to signals.
+			isrc = append(isrc, twoTerm{a, b, part.Value})
 		case circuit.Diode:
 			q, ok := qp[part.Name]
 			if !ok {
 				return nil, fmt.Errorf("smallsignal: diode %s has no Q point", part.Name)
 			}
 			dev := q.Device
-			d := Diode{Name: part.Name, Anode: a, Junction: a, Cathode: b, SeriesResistance: dev.Params.SeriesResistance}
+			d := Diode{Name: part.Name, Anode: a, Junction: a, Cathode: b, SeriesResistance: dev.Params.SeriesResistance,
+				Device: dev, JunctionVoltage: q.JunctionVoltage}
 			if d.SeriesResistance > 0 {
 				d.Junction = len(nw.Names)
 				nw.Names = append(nw.Names, part.Name+"#junction")
@@ -125,8 +141,8 @@ func New(p *bias.Point) (*Network, error) {
 			d.C1, d.C2, d.C3 = dev.Charge(q.JunctionVoltage).Taylor()
 			d.JunctionCapacitance = dev.DepletionCharge(q.JunctionVoltage).D1
 			d.DiffusionCapacitance = dev.DiffusionCharge(q.JunctionVoltage).D1
-			conds = append(conds, twoTerm{d.Junction, b, d.G1})
-			caps = append(caps, twoTerm{d.Junction, b, d.C1})
+			diodeConds = append(diodeConds, twoTerm{d.Junction, b, d.G1})
+			diodeCaps = append(diodeCaps, twoTerm{d.Junction, b, d.C1})
 			nw.Diodes = append(nw.Diodes, d)
 		}
 	}
@@ -143,7 +159,7 @@ func New(p *bias.Point) (*Network, error) {
 		if err != nil {
 			return nil, err
 		}
-		nw.Ports = append(nw.Ports, Port{Name: port.Name, Node: a, Return: b, Impedance: port.Impedance, NodeName: port.Node, ReturnName: ret})
+		nw.Ports = append(nw.Ports, Port{Name: port.Name, Node: a, Return: b, Impedance: port.Impedance, NodeName: port.Node, ReturnName: ret, ACCoupled: port.ACCoupled})
 		conds = append(conds, twoTerm{a, b, 1 / port.Impedance})
 	}
 
@@ -156,23 +172,53 @@ func New(p *bias.Point) (*Network, error) {
 	}
 	nw.G = mat.NewDense(n, n, nil)
 	nw.C = mat.NewDense(n, n, nil)
-	stamp := func(m *mat.Dense, a, b int, v float64) {
-		if a != Ground {
-			m.Set(a, a, m.At(a, a)+v)
-		}
-		if b != Ground {
-			m.Set(b, b, m.At(b, b)+v)
-		}
-		if a != Ground && b != Ground {
-			m.Set(a, b, m.At(a, b)-v)
-			m.Set(b, a, m.At(b, a)-v)
-		}
-	}
 	for _, t := range conds {
-		stamp(nw.G, t.a, t.b, t.v)
+		stampConductance(nw.G, t.a, t.b, t.v)
 	}
 	for _, t := range caps {
-		stamp(nw.C, t.a, t.b, t.v)
+		stampConductance(nw.C, t.a, t.b, t.v)
+	}
+	// Branch rows are linear; stamp them, copy the linear parts, then add
+	// the diodes' small-signal stamps.
+	defer func() {
+		nw.GLinear = mat.DenseCopyOf(nw.G)
+		nw.CLinear = mat.DenseCopyOf(nw.C)
+		for _, t := range diodeConds {
+			stampConductance(nw.G, t.a, t.b, t.v)
+		}
+		for _, t := range diodeCaps {
+			stampConductance(nw.C, t.a, t.b, t.v)
+		}
+	}()
+	nw.Sources = make([]float64, n)
+	for _, t := range isrc {
+		// Value amperes leave `from` (a) and enter `to` (b).
+		if t.a != Ground {
+			nw.Sources[t.a] -= t.v
+		}
+		if t.b != Ground {
+			nw.Sources[t.b] += t.v
+		}
+	}
+	nw.Bias = make([]float64, n)
+	for _, nd := range p.Nodes {
+		nw.Bias[nw.Nodes[nd.Name]] = nd.Voltage
+	}
+	for _, d := range nw.Diodes {
+		if d.Junction != d.Anode {
+			vc := 0.0
+			if d.Cathode != Ground {
+				vc = nw.Bias[d.Cathode]
+			}
+			nw.Bias[d.Junction] = vc + d.JunctionVoltage
+		}
+	}
+	branchCurrent := map[string]float64{}
+	for _, s := range p.Sources {
+		branchCurrent[s.Name] = s.Current
+	}
+	for _, s := range p.Inductors {
+		branchCurrent[s.Name] = s.Current
 	}
 	// Branch k carries current i from a to b through the part:
 	// KCL rows get +i at a and -i at b; the branch row states
@@ -186,6 +232,10 @@ func New(p *bias.Point) (*Network, error) {
 		br := branches[bi]
 		bi++
 		nw.Names[k] = part.Name + "#current"
+		nw.Bias[k] = branchCurrent[part.Name]
+		if part.Kind == circuit.VoltageSource {
+			nw.Sources[k] = part.Value
+		}
 		if br.a != Ground {
 			nw.G.Set(br.a, k, 1)
 			nw.G.Set(k, br.a, 1)
@@ -240,6 +290,31 @@ func at(x []complex128, i int) complex128 {
 	return x[i]
 }
 
+// GDC returns the conductance matrix at zero frequency: G without the
+// terminations of AC-coupled ports, whose DC blocks are open at DC.
+func (nw *Network) GDC() *mat.Dense {
+	g := mat.DenseCopyOf(nw.G)
+	for _, p := range nw.Ports {
+		if p.ACCoupled {
+			stampConductance(g, p.Node, p.Return, -1/p.Impedance)
+		}
+	}
+	return g
+}
+
+func stampConductance(m *mat.Dense, a, b int, v float64) {
+	if a != Ground {
+		m.Set(a, a, m.At(a, a)+v)
+	}
+	if b != Ground {
+		m.Set(b, b, m.At(b, b)+v)
+	}
+	if a != Ground && b != Ground {
+		m.Set(a, b, m.At(a, b)-v)
+		m.Set(b, a, m.At(b, a)-v)
+	}
+}
+
 // WithReferences returns a copy of the network whose ports are terminated
 // in the impedances z (one per port) instead of their own.
 func (nw *Network) WithReferences(z []float64) *Network {
@@ -247,18 +322,7 @@ func (nw *Network) WithReferences(z []float64) *Network {
 	out.G = mat.DenseCopyOf(nw.G)
 	out.Ports = append([]Port(nil), nw.Ports...)
 	for i, p := range out.Ports {
-		d := 1/z[i] - 1/p.Impedance
-		a, b := p.Node, p.Return
-		if a != Ground {
-			out.G.Set(a, a, out.G.At(a, a)+d)
-		}
-		if b != Ground {
-			out.G.Set(b, b, out.G.At(b, b)+d)
-		}
-		if a != Ground && b != Ground {
-			out.G.Set(a, b, out.G.At(a, b)-d)
-			out.G.Set(b, a, out.G.At(b, a)-d)
-		}
+		stampConductance(out.G, p.Node, p.Return, 1/z[i]-1/p.Impedance)
 		out.Ports[i].Impedance = z[i]
 	}
 	return &out

@@ -275,6 +275,14 @@ func nameList(names []string, max int) string {
 	return strings.Join(quoted, ", ")
 }
 
+// plainList joins names without quotes, cut after max of them.
+func plainList(names []string, max int) string {
+	if len(names) > max {
+		return strings.Join(names[:max], ", ") + fmt.Sprintf(" and %d more", len(names)-max)
+	}
+	return strings.Join(names, ", ")
+}
+
 // didYouMean returns " (did you mean `X`?)" for a near miss among names.
 func didYouMean(word string, names []string) string {
 	if s := suggest(word, names); s != "" {

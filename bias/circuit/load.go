@@ -75,7 +75,9 @@ type loader struct {
 
 	// nodeAt is the first place each node other than gnd appears in parts.
 	nodeAt map[string]Pos
-	// touchesGround tells whether some part has a terminal on gnd.
+	// touchesGround tells whether some part or port connects to gnd. A
+	// port counts: a two-port of series parts between ports returned to
+	// gnd is a whole circuit.
 	touchesGround bool
 	// partsComplete is false when some part could not be read far enough
 	// to know its kind and both terminals; topology and node references

@@ -210,6 +210,13 @@ func TestParseInline(t *testing.T) {
 		{"ac port floats node", "parts:\n" + rc + "  - {type: capacitor, name: C1, between: [a, b], value: 1p}\nports:\n  - {name: p, node: b, impedance: 50, coupling: ac}\n",
 			[]want{{"3:5", "node `b` has no DC path to gnd, only capacitors or ac-coupled ports reach it"}}},
 		{"port in DC path", "parts:\n" + rc + "  - {type: capacitor, name: C1, between: [a, b], value: 1p}\nports:\n  - {name: p, node: b, impedance: 50}\n", nil},
+		// A series part between two ports returned to gnd is a whole
+		// circuit: the ports' impedances are its DC path.
+		{"series between ports", "parts:\n  - {type: resistor, name: R, between: [a, b], value: 33}\nports:\n" +
+			"  - {name: p1, node: a, impedance: 50}\n  - {name: p2, node: b, impedance: 50}\n", nil},
+		{"series between ac ports", "parts:\n  - {type: resistor, name: R, between: [a, b], value: 33}\nports:\n" +
+			"  - {name: p1, node: a, impedance: 50, coupling: ac}\n  - {name: p2, node: b, impedance: 50, coupling: ac}\n",
+			[]want{{"2:5", "nodes `a`, `b` have no DC path to gnd, only capacitors or ac-coupled ports reach it"}}},
 		{"port to gnd", "parts:\n" + rc + "ports:\n  - {name: p, node: gnd, impedance: 50}\n",
 			[]want{{"4:21", "`node` of port `p` is `gnd`, the reference node"}}},
 		{"two floating groups", "parts:\n" + rc +

@@ -95,6 +95,9 @@ func (l *loader) port(i int, n *yaml.Node) (p Port, ok bool) {
 			}
 		}
 	}
+	if ok && p.Return == Ground {
+		l.touchesGround = true
+	}
 	return p, ok
 }
 

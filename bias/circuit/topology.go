@@ -18,7 +18,7 @@ func (l *loader) topology(partsKey *yaml.Node) {
 		index[name] = i + 1
 	}
 	if !l.touchesGround {
-		l.errorf(partsKey, "no part connects to `%s`, the reference node%s; accepted: at least one part with a terminal on gnd",
+		l.errorf(partsKey, "no part or port connects to `%s`, the reference node%s; accepted: at least one part with a terminal on gnd, or a port returned to gnd",
 			Ground, groundHint(l.c.Nodes))
 	} else {
 		l.floatingNodes(index)
@@ -31,7 +31,7 @@ func (l *loader) topology(partsKey *yaml.Node) {
 func groundHint(nodes []string) string {
 	for _, n := range nodes {
 		if strings.EqualFold(n, Ground) || strings.EqualFold(n, "ground") || n == "0" {
-			return fmt.Sprintf(" (node `%s` is an ordinary node; the reference is named `%s`)", n, Ground)
+			return fmt.Sprintf(" (node `%s` is an ordinary node, the reference is named `%s`)", n, Ground)
 		}
 	}
 	return ""
@@ -107,7 +107,7 @@ func (l *loader) floatingNodes(index map[string]int) {
 		if len(feeders[r]) > 0 {
 			l.errorAt(at.Line, at.Col,
 				"%s no DC path to gnd and %s fed only by current sources (%s)%s; accepted: a resistive path to gnd, e.g. a resistor from `%s` to gnd",
-				subject, verb, strings.Join(feeders[r], ", "), hint, nodes[0])
+				subject, verb, plainList(feeders[r], 8), hint, nodes[0])
 			continue
 		}
 		l.errorAt(at.Line, at.Col,

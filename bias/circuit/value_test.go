@@ -86,6 +86,8 @@ func TestParseValueExact(t *testing.T) {
 		{"39nH", Inductance, 3.9e-8},
 		{"100uA", Current, 1e-4},
 		{"0.18pF", Capacitance, 1.8e-13},
+		{"27C", Temperature, 300.15},
+		{"-40C", Temperature, 233.15},
 	} {
 		if got, err := ParseValue(tt.in, tt.q); err != nil || got != tt.want {
 			t.Errorf("ParseValue(%q) = %v, %v; want exactly %v", tt.in, got, err, tt.want)
@@ -135,6 +137,7 @@ func TestParseValueErrors(t *testing.T) {
 		{"27", Temperature, "a temperature needs its unit, C or K"},
 		{"-300C", Temperature, "at or below absolute zero"},
 		{"0K", Temperature, "at or below absolute zero"},
+		{"-273.15C", Temperature, "at or below absolute zero"},
 		{"27mC", Temperature, "temperatures take no prefix"},
 		{"80F", Temperature, "`F` is not a temperature unit"},
 		{"nanK", Temperature, "not a finite number"},

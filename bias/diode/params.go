@@ -17,10 +17,10 @@ type Params struct {
 	// BreakdownCurrent is the reverse current at the knee in A.
 	BreakdownCurrent float64
 
-	GapEnergy           float64 // E_g in eV
-	SaturationExponent  float64 // p, temperature exponent of I_S
-	MeasuredAtK         float64 // T0 in K
-	Ratings             Ratings
+	GapEnergy          float64 // E_g in eV
+	SaturationExponent float64 // p, temperature exponent of I_S
+	MeasuredAtK        float64 // T0 in K
+	Ratings            Ratings
 }
 
 // Ratings are the part's absolute limits. A zero field means "not given".
