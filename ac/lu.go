@@ -83,3 +83,41 @@ func (f *lu) solve(b []complex128) {
 		b[i] = s / row[i]
 	}
 }
+
+// solveT overwrites b with the solution of Aᵀ z = b (plain transpose, not
+// conjugate), the adjoint solve that gives every source's transfer to one
+// output at once.
+func (f *lu) solveT(b []complex128) {
+	n, a := f.n, f.a
+	// A = Pᵀ L U, so Aᵀ = Uᵀ Lᵀ P: solve Uᵀ w = b, Lᵀ y = w, z = Pᵀ y.
+	for i := 0; i < n; i++ {
+		s := b[i]
+		for j := 0; j < i; j++ {
+			s -= a[j*n+i] * b[j]
+		}
+		b[i] = s / a[i*n+i]
+	}
+	for i := n - 1; i >= 0; i-- {
+		s := b[i]
+		for j := i + 1; j < n; j++ {
+			s -= a[j*n+i] * b[j]
+		}
+		b[i] = s
+	}
+	for k := n - 1; k >= 0; k-- {
+		if p := f.piv[k]; p != k {
+			b[k], b[p] = b[p], b[k]
+		}
+	}
+}
+
+// load fills the factorisation's matrix with G + jwC (row-major raw data of
+// two n×n matrices).
+func (f *lu) load(g, c []float64, gs, cs int, w float64) {
+	n := f.n
+	for i := 0; i < n; i++ {
+		for j := 0; j < n; j++ {
+			f.a[i*n+j] = complex(g[i*gs+j], w*c[i*cs+j])
+		}
+	}
+}

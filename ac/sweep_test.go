@@ -290,3 +290,12 @@ ports:
 		t.Errorf("group delay %g s, finite difference %g s", got, fd)
 	}
 }
+
+func demo(t *testing.T, name string) string {
+	t.Helper()
+	data, err := os.ReadFile(filepath.Join("..", "testdata", "demo", name+".yaml"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	return string(data)
+}

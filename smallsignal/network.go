@@ -20,6 +20,9 @@ const Ground = -1
 type Network struct {
 	Point *bias.Point
 	N     int        // number of unknowns
+	// NodeUnknowns counts the voltage unknowns (named and internal nodes),
+	// which come first; branch currents follow.
+	NodeUnknowns int
 	G, C  *mat.Dense // N×N
 	Names []string   // name of each unknown
 
@@ -164,6 +167,7 @@ func New(p *bias.Point) (*Network, error) {
 	}
 
 	nNodes := len(nw.Names)
+	nw.NodeUnknowns = nNodes
 	nw.Names = append(nw.Names, make([]string, len(branches))...)
 	nw.N = len(nw.Names)
 	n := nw.N

@@ -1,0 +1,142 @@
+package ac
+
+import (
+	"math"
+	"math/cmplx"
+	"testing"
+
+	"qpoint/bias/diode"
+)
+
+// besselI returns the modified Bessel function I_k(x) by its power series
+// sum_m (x/2)^(2m+k) / (m! (m+k)!), which converges quickly for x <= 3.
+func besselI(k int, x float64) float64 {
+	term := math.Pow(x/2, float64(k))
+	for j := 2; j <= k; j++ {
+		term /= float64(j)
+	}
+	sum := term
+	for m := 1; m < 60; m++ {
+		term *= (x / 2) * (x / 2) / (float64(m) * float64(m+k))
+		sum += term
+	}
+	return sum
+}
+
+// TestBesselTable checks the series against Abramowitz and Stegun,
+// "Handbook of Mathematical Functions", 1964, Table 9.8 (values also in
+// ../shared/design/references.md).
+func TestBesselTable(t *testing.T) {
+	for _, c := range []struct {
+		k    int
+		want float64
+	}{{0, 1.266065878}, {1, 0.565159104}, {2, 0.135747670}, {3, 0.022168425}} {
+		if got := besselI(c.k, 1); math.Abs(got-c.want) > 1e-9 {
+			t.Errorf("I_%d(1) = %.10f, Table 9.8 gives %.9f", c.k, got, c.want)
+		}
+	}
+}
+
+// TestSteadyStateBessel: a junction driven by v = V0 + V cos(wt) carries
+// harmonics 2 I_S e^(V0/nV_T) I_k(x), x = V/(n V_T) (Abramowitz and Stegun
+// eq. 9.6.34), here to 1e-6 relative at x = 0.1, 1 and 3.
+func TestSteadyStateBessel(t *testing.T) {
+	nw := network(t, junctionFixtureTight)
+	vt := diode.ThermalVoltage(300.15)
+	for _, x := range []float64{0.1, 1, 3} {
+		st, err := SteadyState(nw, Drive{Input: 0, Output: Output{Port: -1, Node: "s"}, FrequencyHz: 1e6, EMF: x * vt}, SteadySettings{Samples: 64, Harmonics: 3})
+		if err != nil {
+			t.Fatal(err)
+		}
+		i0 := 1e-14 * math.Exp(0.6/vt)
+		h := st.DiodeCurrents[0]
+		for k := 0; k <= 3; k++ {
+			want := 2 * i0 * besselI(k, x)
+			if k == 0 {
+				want = i0*besselI(0, x) - 1e-14 // the mean includes -I_S
+			}
+			if rel := math.Abs(h[k].Amplitude/want - 1); rel > 1e-6 {
+				t.Errorf("x = %g, harmonic %d: %.10g A, Bessel law %.10g A (relative error %.2g)", x, k, h[k].Amplitude, want, rel)
+			}
+		}
+	}
+}
+
+// junctionFixtureTight drives the junction through 10 nΩ so that the
+// drive is an ideal voltage to better than 1e-7.
+const junctionFixtureTight = `
+temperature: 300.15K
+diode_models:
+  m: {saturation_current: 1e-14, ideality: 1}
+parts:
+  - {type: voltage_source, name: Vb, plus: b, minus: gnd, value: 0.6V}
+  - {type: diode, name: D, anode: a, cathode: s, model: m}
+  - {type: resistor, name: Rsense, between: [s, gnd], value: 1e-8}
+ports:
+  - {name: drive, node: a, return: b, impedance: 1e-8}
+`
+
+// TestVolterraMatchesWaveform: at a small level (-40 dBm, HD3 near
+// -90 dBc) the Volterra estimate and the waveform agree on every harmonic
+// of the detector demo to 0.05 dB. Two independent methods, one in the
+// frequency domain and one in the time domain, check each other.
+func TestVolterraMatchesWaveform(t *testing.T) {
+	nw := network(t, demo(t, "detector"))
+	d := Drive{Input: 0, Output: Output{Port: 1}, FrequencyHz: 2.45e9, EMF: DBmToEMF(-40, 50)}
+	est, err := Volterra(nw, d)
+	if err != nil {
+		t.Fatal(err)
+	}
+	st, err := SteadyState(nw, d, SteadySettings{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	t.Logf("shooting: %d iterations, residual %.2g", st.Iterations, st.Residual)
+	pairs := []struct {
+		name      string
+		est, wave complex128
+	}{
+		{"fundamental", est.Fundamental, st.Output[1].Phasor},
+		{"HD2", est.HD2, st.Output[2].Phasor},
+		{"HD3", est.HD3, st.Output[3].Phasor},
+		{"DC shift", complex(est.DCShift, 0), st.Output[0].Phasor},
+	}
+	for _, p := range pairs {
+		db := 20 * math.Log10(cmplx.Abs(p.wave)/cmplx.Abs(p.est))
+		t.Logf("%s: estimate %.4g, waveform %.4g (%.4f dB)", p.name, cmplx.Abs(p.est), cmplx.Abs(p.wave), db)
+		if math.Abs(db) > 0.05 {
+			t.Errorf("%s: estimate %v, waveform %v differ by %.3f dB", p.name, p.est, p.wave, db)
+		}
+	}
+}
+
+// TestSlowVideoSteadyState: a detector whose video RC is 1000 RF periods
+// reaches steady state in at most 15 shooting iterations.
+func TestSlowVideoSteadyState(t *testing.T) {
+	nw := network(t, `
+diode_models:
+  det: {saturation_current: 3uA, ideality: 1.05, series_resistance: 20, zero_bias_capacitance: 0.18pF, built_in_potential: 0.25V}
+parts:
+  - {type: capacitor, name: Cin, between: [rf, a], value: 10pF}
+  - {type: resistor, name: Rret, between: [a, gnd], value: 1k}
+  - {type: diode, name: D, anode: a, cathode: v, model: det}
+  - {type: capacitor, name: Cv, between: [v, gnd], value: 40.8pF}
+  - {type: resistor, name: Rv, between: [v, gnd], value: 10k}
+ports:
+  - {name: rf, node: rf, impedance: 50}
+probes: [v]
+`)
+	// Rv Cv = 408 ns = 1000 periods at 2.45 GHz.
+	d := Drive{Input: 0, Output: Output{Port: -1, Node: "v"}, FrequencyHz: 2.45e9, EMF: DBmToEMF(-10, 50)}
+	st, err := SteadyState(nw, d, SteadySettings{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if st.Iterations > 15 {
+		t.Errorf("%d shooting iterations over both step sizes, want at most 15", st.Iterations)
+	}
+	t.Logf("%d iterations, DC shift %.4g V, residual %.2g", st.Iterations, st.Output[0].Amplitude, st.Residual)
+	if st.Output[0].Amplitude <= 0 {
+		t.Errorf("a detector's video output must rise with signal: DC shift %g V", st.Output[0].Amplitude)
+	}
+}

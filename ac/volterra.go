@@ -1,0 +1,390 @@
+package ac
+
+import (
+	"fmt"
+	"math"
+	"math/cmplx"
+
+	"qpoint/smallsignal"
+)
+
+// Output selects where distortion is observed: the voltage across a port
+// (Port >= 0) or of a node to ground (Port < 0, Node named).
+type Output struct {
+	Port int
+	Node string
+}
+
+// Drive describes the signal: port Input's generator, of EMF amplitude EMF
+// (peak volts per tone) behind the port's reference impedance, at
+// FrequencyHz, and optionally a second tone of the same EMF at SecondToneHz.
+type Drive struct {
+	Input        int
+	Output       Output
+	FrequencyHz  float64
+	EMF          float64
+	SecondToneHz float64 // zero: one tone
+}
+
+// Product names a distortion product.
+type Product string
+
+// The products of the Volterra estimate.
+const (
+	DC      Product = "dc"       // rectified shift of the output's DC level
+	HD2     Product = "hd2"      // 2 f1
+	HD3     Product = "hd3"      // 3 f1
+	IM2Sum  Product = "im2_sum"  // f1 + f2
+	IM2Diff Product = "im2_diff" // f1 - f2
+	IM3     Product = "im3"      // 2 f1 - f2
+)
+
+// Nonlinearity names the source of a contribution: the junction's current
+// law or its charge law.
+type Nonlinearity string
+
+// The two nonlinearities of a junction.
+const (
+	CurrentLaw Nonlinearity = "current"
+	ChargeLaw  Nonlinearity = "charge"
+)
+
+// Contribution is one diode's share of one product at the output.
+type Contribution struct {
+	Product Product
+	Diode   string
+	Source  Nonlinearity
+	Phasor  complex128 // output phasor this source alone produces, V
+	// Percent is the projection of Phasor on the product's total, in
+	// percent of the total's magnitude; the shares of a product sum to 100.
+	Percent float64
+}
+
+// Estimate is the Volterra (weakly nonlinear) estimate of distortion at the
+// output, to third order. Phasors are peak volts with the cosine reference
+// of the input generator.
+type Estimate struct {
+	Drive Drive
+
+	Fundamental complex128 // output at f1
+	HD2, HD3    complex128 // output at 2 f1 and 3 f1
+	DCShift     float64    // change of the output's DC level, V
+
+	SecondFundamental complex128 // output at f2 (two tones)
+	IM2Sum, IM2Diff   complex128 // output at f1 + f2 and f1 - f2
+	IM3               complex128 // output at 2 f1 - f2
+
+	Contributions []Contribution
+
+	inputZ0, outputZ0 float64 // outputZ0 is zero for a bare node
+}
+
+// dBc returns 20 log10(|p| / |fundamental|).
+func (e *Estimate) dBc(p complex128) float64 {
+	return 20 * math.Log10(cmplx.Abs(p)/cmplx.Abs(e.Fundamental))
+}
+
+// HD2dBc returns the second harmonic relative to the fundamental, in dB.
+func (e *Estimate) HD2dBc() float64 { return e.dBc(e.HD2) }
+
+// HD3dBc returns the third harmonic relative to the fundamental, in dB.
+func (e *Estimate) HD3dBc() float64 { return e.dBc(e.HD3) }
+
+// IM2dBc returns the f1 - f2 product relative to the output at f1, in dB.
+func (e *Estimate) IM2dBc() float64 { return e.dBc(e.IM2Diff) }
+
+// IM3dBc returns the 2 f1 - f2 product relative to the output at f1, in dB.
+func (e *Estimate) IM3dBc() float64 { return e.dBc(e.IM3) }
+
+// InputDBm returns the available power of the input generator per tone:
+// E²/(8 Z0), in dBm.
+func (e *Estimate) InputDBm() float64 { return EMFToDBm(e.Drive.EMF, e.inputZ0) }
+
+// OutputDBm returns the fundamental's power into the output port's
+// reference impedance, |V|²/(2 Z0), in dBm, and false for a bare node.
+func (e *Estimate) OutputDBm() (float64, bool) {
+	if e.outputZ0 == 0 {
+		return 0, false
+	}
+	a := cmplx.Abs(e.Fundamental)
+	return 10 * math.Log10(a*a/(2*e.outputZ0)*1e3), true
+}
+
+// IIP3dBm returns the input third-order intercept, P_in - IM3dBc/2: the
+// fundamental rises 1 dB/dB and the third-order product 3 dB/dB (common
+// practice).
+func (e *Estimate) IIP3dBm() float64 { return e.InputDBm() - e.IM3dBc()/2 }
+
+// OIP3dBm returns the output third-order intercept, P_out - IM3dBc/2, and
+// false for a bare node.
+func (e *Estimate) OIP3dBm() (float64, bool) {
+	p, ok := e.OutputDBm()
+	return p - e.IM3dBc()/2, ok
+}
+
+// IIP2dBm returns the input second-order intercept from the difference
+// product, P_in - IM2dBc.
+func (e *Estimate) IIP2dBm() float64 { return e.InputDBm() - e.IM2dBc() }
+
+// EMFToDBm converts a generator EMF amplitude behind z0 to its available
+// power E²/(8 z0) in dBm.
+func EMFToDBm(emf, z0 float64) float64 {
+	return 10 * math.Log10(emf*emf/(8*z0)*1e3)
+}
+
+// DBmToEMF converts available power in dBm behind z0 to the generator's
+// EMF amplitude, E = sqrt(8 z0 P).
+func DBmToEMF(dbm, z0 float64) float64 {
+	return math.Sqrt(8 * z0 * math.Pow(10, dbm/10) * 1e-3)
+}
+
+// volterra holds the factorisations and vectors of one estimate.
+type volterra struct {
+	nw   *smallsignal.Network
+	n    int
+	out  []complex128 // selects the output: e_out
+	work []complex128
+}
+
+// solveAt solves Y(jw) x = b in place and returns the adjoint vector
+// z = Y(jw)⁻ᵀ e_out. At w = 0 the AC-coupled ports' DC blocks are open.
+func (v *volterra) solveAt(w float64, b []complex128) ([]complex128, error) {
+	f := newLU(v.n)
+	if w == 0 {
+		g := v.nw.GDC().RawMatrix()
+		f.load(g.Data, make([]float64, v.n*v.n), g.Stride, v.n, 0)
+	} else {
+		g, c := v.nw.G.RawMatrix(), v.nw.C.RawMatrix()
+		f.load(g.Data, c.Data, g.Stride, c.Stride, w)
+	}
+	if err := f.factor(); err != nil {
+		return nil, fmt.Errorf("at %g Hz: %w", w/(2*math.Pi), err)
+	}
+	if b != nil {
+		f.solve(b)
+	}
+	z := append([]complex128(nil), v.out...)
+	f.solveT(z)
+	return z, nil
+}
+
+// junction returns diode k's junction phasor in x.
+func (v *volterra) junction(k int, x []complex128) complex128 {
+	d := v.nw.Diodes[k]
+	return at(x, d.Junction) - at(x, d.Cathode)
+}
+
+func at(x []complex128, i int) complex128 {
+	if i < 0 {
+		return 0
+	}
+	return x[i]
+}
+
+// inject adds current i flowing through diode k's junction from its
+// internal anode to its cathode, as the diode's own current does.
+func (v *volterra) inject(k int, i complex128, b []complex128) {
+	d := v.nw.Diodes[k]
+	if d.Junction >= 0 {
+		b[d.Junction] -= i
+	}
+	if d.Cathode >= 0 {
+		b[d.Cathode] += i
+	}
+}
+
+// product assembles the sources of one product (per diode: current part,
+// charge part before the jw factor), solves for the node phasors, and
+// records each source's contribution to the output through the adjoint.
+func (v *volterra) product(p Product, w float64, cur, chg []complex128, scale complex128, est *Estimate) ([]complex128, complex128, error) {
+	b := make([]complex128, v.n)
+	jw := complex(0, w)
+	for k := range v.nw.Diodes {
+		v.inject(k, cur[k]+jw*chg[k], b)
+	}
+	z, err := v.solveAt(w, b)
+	if err != nil {
+		return nil, 0, err
+	}
+	total := v.output(b) * scale
+	var parts []Contribution
+	for k, d := range v.nw.Diodes {
+		t := at(z, d.Junction) - at(z, d.Cathode)
+		parts = append(parts,
+			Contribution{Product: p, Diode: d.Name, Source: CurrentLaw, Phasor: -cur[k] * t * scale},
+			Contribution{Product: p, Diode: d.Name, Source: ChargeLaw, Phasor: -jw * chg[k] * t * scale})
+	}
+	for i := range parts {
+		if total != 0 {
+			parts[i].Percent = 100 * real(parts[i].Phasor*cmplx.Conj(total)) / (cmplx.Abs(total) * cmplx.Abs(total))
+		}
+	}
+	est.Contributions = append(est.Contributions, parts...)
+	return b, total, nil
+}
+
+// output returns the output voltage in the solution x.
+func (v *volterra) output(x []complex128) complex128 {
+	var s complex128
+	for i, e := range v.out {
+		if e != 0 {
+			s += e * x[i]
+		}
+	}
+	return s
+}
+
+// Volterra estimates the distortion the drive produces at the output, to
+// third order in the EMF, by the method of nonlinear currents (Bussgang,
+// Ehrman, Graham, Proc. IEEE 62(8), 1974; Wambacq and Sansen, "Distortion
+// Analysis of Analog Integrated Circuits", 1998). With v_1 each junction's
+// first-order phasor and g_k, c_k the Taylor coefficients of its current
+// and charge, the junction carries, in parallel with itself,
+//
+//	at 2w:  (g2 + j2w c2) v_1²/2        at DC: g2 |v_1|²/2
+//	at 3w:  (g3 + j3w c3) v_1³/4 + (g2 + j3w c2) v_1 v_2
+//
+// and with a second tone v_b at w2: (g2 + j w_s c2) v_a v_b at w1 + w2,
+// (g2 + j w_d c2) v_a v_b* at w1 - w2, and at 2w1 - w2
+// (3/4)(g3 + j w c3) v_a² v_b* + (g2 + j w c2)(v_a v_d + v_2a v_b*).
+// Each order is solved on the linear network at its own frequency.
+func Volterra(nw *smallsignal.Network, d Drive) (*Estimate, error) {
+	if d.Input < 0 || d.Input >= len(nw.Ports) {
+		return nil, fmt.Errorf("input port %d: the circuit has %d ports", d.Input+1, len(nw.Ports))
+	}
+	if err := CheckFrequency(d.FrequencyHz); err != nil {
+		return nil, err
+	}
+	if d.SecondToneHz != 0 {
+		if err := CheckFrequency(d.SecondToneHz); err != nil {
+			return nil, err
+		}
+		if d.SecondToneHz == d.FrequencyHz {
+			return nil, fmt.Errorf("the second tone must differ from the first (both %g Hz)", d.FrequencyHz)
+		}
+	}
+	v := &volterra{nw: nw, n: nw.N, out: make([]complex128, nw.N)}
+	est := &Estimate{Drive: d, inputZ0: nw.Ports[d.Input].Impedance}
+	if d.Output.Port >= 0 {
+		if d.Output.Port >= len(nw.Ports) {
+			return nil, fmt.Errorf("output port %d: the circuit has %d ports", d.Output.Port+1, len(nw.Ports))
+		}
+		p := nw.Ports[d.Output.Port]
+		if p.Node >= 0 {
+			v.out[p.Node] = 1
+		}
+		if p.Return >= 0 {
+			v.out[p.Return] = -1
+		}
+		est.outputZ0 = p.Impedance
+	} else {
+		i, ok := nw.Nodes[d.Output.Node]
+		if !ok {
+			return nil, fmt.Errorf("output node %q is not in the circuit", d.Output.Node)
+		}
+		v.out[i] = 1
+	}
+
+	w1 := 2 * math.Pi * d.FrequencyHz
+	e := complex(d.EMF, 0)
+	nd := len(nw.Diodes)
+	first := func(w float64) ([]complex128, []complex128, error) {
+		x := make([]complex128, v.n)
+		nw.Excitation(d.Input, 1, x)
+		if _, err := v.solveAt(w, x); err != nil {
+			return nil, nil, err
+		}
+		vj := make([]complex128, nd)
+		for k := range vj {
+			vj[k] = v.junction(k, x)
+		}
+		return x, vj, nil
+	}
+	x1, va, err := first(w1)
+	if err != nil {
+		return nil, err
+	}
+	est.Fundamental = v.output(x1) * e
+
+	cur, chg := make([]complex128, nd), make([]complex128, nd)
+	coef := func(k int) smallsignal.Diode { return nw.Diodes[k] }
+
+	// DC shift: g2 |v1|²/2; charge stores nothing at DC.
+	for k := range cur {
+		cur[k] = complex(coef(k).G2*sqAbs(va[k])/2, 0)
+		chg[k] = 0
+	}
+	_, dc, err := v.product(DC, 0, cur, chg, e*e, est)
+	if err != nil {
+		return nil, err
+	}
+	est.DCShift = real(dc)
+
+	// Second harmonic.
+	for k := range cur {
+		sq := va[k] * va[k] / 2
+		cur[k] = complex(coef(k).G2, 0) * sq
+		chg[k] = complex(coef(k).C2, 0) * sq
+	}
+	x2, hd2, err := v.product(HD2, 2*w1, cur, chg, e*e, est)
+	if err != nil {
+		return nil, err
+	}
+	est.HD2 = hd2
+	v2 := make([]complex128, nd)
+	for k := range v2 {
+		v2[k] = v.junction(k, x2)
+	}
+
+	// Third harmonic.
+	for k := range cur {
+		cube, cross := va[k]*va[k]*va[k]/4, va[k]*v2[k]
+		cur[k] = complex(coef(k).G3, 0)*cube + complex(coef(k).G2, 0)*cross
+		chg[k] = complex(coef(k).C3, 0)*cube + complex(coef(k).C2, 0)*cross
+	}
+	if _, est.HD3, err = v.product(HD3, 3*w1, cur, chg, e*e*e, est); err != nil {
+		return nil, err
+	}
+
+	if d.SecondToneHz == 0 {
+		return est, nil
+	}
+	w2 := 2 * math.Pi * d.SecondToneHz
+	xb, vb, err := first(w2)
+	if err != nil {
+		return nil, err
+	}
+	est.SecondFundamental = v.output(xb) * e
+
+	for k := range cur {
+		p := va[k] * vb[k]
+		cur[k] = complex(coef(k).G2, 0) * p
+		chg[k] = complex(coef(k).C2, 0) * p
+	}
+	if _, est.IM2Sum, err = v.product(IM2Sum, w1+w2, cur, chg, e*e, est); err != nil {
+		return nil, err
+	}
+	for k := range cur {
+		p := va[k] * cmplx.Conj(vb[k])
+		cur[k] = complex(coef(k).G2, 0) * p
+		chg[k] = complex(coef(k).C2, 0) * p
+	}
+	xd, im2d, err := v.product(IM2Diff, w1-w2, cur, chg, e*e, est)
+	if err != nil {
+		return nil, err
+	}
+	est.IM2Diff = im2d
+	for k := range cur {
+		vd := v.junction(k, xd)
+		cube := 0.75 * va[k] * va[k] * cmplx.Conj(vb[k])
+		cross := va[k]*vd + v2[k]*cmplx.Conj(vb[k])
+		cur[k] = complex(coef(k).G3, 0)*cube + complex(coef(k).G2, 0)*cross
+		chg[k] = complex(coef(k).C3, 0)*cube + complex(coef(k).C2, 0)*cross
+	}
+	if _, est.IM3, err = v.product(IM3, 2*w1-w2, cur, chg, e*e*e, est); err != nil {
+		return nil, err
+	}
+	return est, nil
+}
+
+func sqAbs(z complex128) float64 { return real(z)*real(z) + imag(z)*imag(z) }
