@@ -6,6 +6,7 @@ import (
 	"io"
 	"math"
 	"math/cmplx"
+	"path/filepath"
 	"strconv"
 	"strings"
 
@@ -200,6 +201,9 @@ func runResponse(cmd *cobra.Command, path string, fl *responseFlags) error {
 		}
 	}
 	if fl.touchstone != "" {
+		if want := ac.TouchstoneExt(len(r.Ports)); !strings.EqualFold(filepath.Ext(fl.touchstone), want) {
+			return inputError(fmt.Errorf("flag --touchstone: %s has %d ports, so its file should end in %s (got %q)", c.Name, len(r.Ports), want, filepath.Ext(fl.touchstone)))
+		}
 		if err := writeFileAtomic(fl.touchstone, func(w io.Writer) error {
 			return writeTouchstone(w, c, r, format)
 		}); err != nil {

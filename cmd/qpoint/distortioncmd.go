@@ -1,0 +1,560 @@
+package main
+
+import (
+	"fmt"
+	"io"
+	"math"
+	"math/cmplx"
+	"os"
+	"sort"
+	"strconv"
+	"strings"
+
+	"github.com/spf13/cobra"
+
+	"qpoint/ac"
+	"qpoint/bias"
+	"qpoint/bias/circuit"
+	"qpoint/bias/si"
+	"qpoint/smallsignal"
+)
+
+type distortionFlags struct {
+	input, output, frequency, level, secondTone string
+	sweepLevel, sweepFrequency                  string
+	temperature                                 string
+	samples, harmonics                          int
+	noLimit                                     bool
+	asJSON                                      bool
+	plotsDir                                    string
+}
+
+func newDistortionCmd() *cobra.Command {
+	var fl distortionFlags
+	cmd := &cobra.Command{
+		Use:   "distortion FILE",
+		Short: "Distortion at the bias point: Volterra estimates beside a full waveform solve",
+		Long: `distortion drives the input port's generator at the chosen frequency and
+level and reports, at the output port or node:
+
+  estimate   the Volterra (weakly nonlinear) estimate to third order: the
+             fundamental, HD2, HD3 and the DC shift; with --second-tone also
+             IM2, IM3 and the intercept points IIP3, OIP3, IIP2; and which
+             diode and which nonlinearity (current or charge) supplies each
+             product
+  waveform   the full nonlinear circuit solved to periodic steady state and
+             its harmonics, THD and DC shift
+  side by side, with the difference in dB, and the highest input level at
+             which the estimates hold within 0.5 dB: the small-signal
+             validity limit at this bias
+
+A level is the generator's available power (-30dBm) or the peak voltage it
+delivers into a matched load (10mV, the same as -30dBm at 50 Ω).
+Settings come from the flags, else from the file's analysis.distortion.`,
+		Example: `  qpoint distortion testdata/demo/detector.yaml
+  qpoint distortion mixer.yaml --input rf --output if --frequency 1.9GHz --level -20dBm --second-tone 1.91GHz
+  qpoint distortion detector.yaml --sweep-level -50dBm:0dBm:1dB --plots figures/
+  qpoint distortion attenuator.yaml --sweep-frequency 100MHz:3GHz:20 --json`,
+		Args: exactFile,
+		RunE: func(cmd *cobra.Command, args []string) error {
+			return runDistortion(cmd, args[0], &fl)
+		},
+	}
+	f := cmd.Flags()
+	f.StringVar(&fl.input, "input", "", "input port name (default: the file's, else the first port)")
+	f.StringVar(&fl.output, "output", "", "output port or node name (default: the file's, else the last port)")
+	f.StringVar(&fl.frequency, "frequency", "", "signal frequency, e.g. 2.45GHz")
+	f.StringVar(&fl.level, "level", "", "signal level per tone: -30dBm or a peak voltage such as 10mV")
+	f.StringVar(&fl.secondTone, "second-tone", "", "frequency of a second tone of the same level, for IM2, IM3 and intercepts")
+	f.StringVar(&fl.sweepLevel, "sweep-level", "", "solve the waveform over levels FROM:TO:STEP, e.g. -50dBm:0dBm:1dB")
+	f.StringVar(&fl.sweepFrequency, "sweep-frequency", "", "estimate over frequencies FROM:TO:PER-DECADE, e.g. 100MHz:6GHz:20")
+	f.StringVar(&fl.temperature, "temperature", "", "circuit temperature, overriding the file's (e.g. 85C)")
+	f.IntVar(&fl.samples, "samples", 255, "waveform samples per period (the solver also uses 2N+1)")
+	f.IntVar(&fl.harmonics, "harmonics", 5, "highest harmonic order reported from the waveform")
+	f.BoolVar(&fl.noLimit, "no-limit", false, "skip the search for the validity limit")
+	f.BoolVar(&fl.asJSON, "json", false, "print one JSON document (SI units) instead of tables")
+	f.StringVar(&fl.plotsDir, "plots", "", "write the distortion figures (SVG and PNG) into this directory")
+	return cmd
+}
+
+// distortionSetup is a resolved distortion run.
+type distortionSetup struct {
+	c          *circuit.Circuit
+	p          *bias.Point
+	nw         *smallsignal.Network
+	drive      ac.Drive
+	inName     string
+	outName    string
+	levelDBm   float64
+	levelInput string
+}
+
+func resolveDistortion(path string, fl *distortionFlags) (*distortionSetup, error) {
+	c, err := loadCircuit(path)
+	if err != nil {
+		return nil, err
+	}
+	if len(c.Ports) == 0 {
+		return nil, inputError(fmt.Errorf("%s: the circuit has no ports; distortion needs an input port (add a `ports:` list)", path))
+	}
+	def := c.Analysis.Distortion
+	s := &distortionSetup{c: c}
+	in := fl.input
+	if in == "" && def.Set {
+		in = def.Input
+	}
+	if in == "" {
+		in = c.Ports[0].Name
+	}
+	inIdx := -1
+	var names []string
+	for i, p := range c.Ports {
+		names = append(names, p.Name)
+		if p.Name == in {
+			inIdx = i
+		}
+	}
+	if inIdx < 0 {
+		return nil, inputError(fmt.Errorf("flag --input: `%s` is not a port; accepted: %s", in, strings.Join(names, ", ")))
+	}
+	out := fl.output
+	if out == "" && def.Set {
+		out = def.Output
+	}
+	if out == "" {
+		out = c.Ports[len(c.Ports)-1].Name
+	}
+	o := ac.Output{Port: -1, Node: out}
+	for i, p := range c.Ports {
+		if p.Name == out {
+			o = ac.Output{Port: i}
+		}
+	}
+	if o.Port < 0 {
+		found := false
+		for _, n := range c.Nodes {
+			if n == out {
+				found = true
+			}
+		}
+		if !found {
+			return nil, inputError(fmt.Errorf("flag --output: `%s` is neither a port nor a node; accepted ports: %s", out, strings.Join(names, ", ")))
+		}
+	}
+	freq := def.FrequencyHz
+	if fl.frequency != "" {
+		if freq, err = circuit.ParseValue(fl.frequency, circuit.Frequency); err != nil {
+			return nil, inputError(fmt.Errorf("flag --frequency: %w", err))
+		}
+	}
+	if freq == 0 {
+		return nil, inputError(fmt.Errorf("no signal frequency: give --frequency (e.g. 2.45GHz) or analysis.distortion.frequency in the file"))
+	}
+	if err := ac.CheckFrequency(freq); err != nil {
+		return nil, inputError(fmt.Errorf("flag --frequency: %w", err))
+	}
+	lv := def.Level
+	haveLevel := def.Set
+	if fl.level != "" {
+		if lv, err = circuit.ParseLevel(fl.level); err != nil {
+			return nil, inputError(fmt.Errorf("flag --level: %w", err))
+		}
+		haveLevel = true
+	}
+	if !haveLevel {
+		lv = circuit.Level{DBm: -30, IsPower: true}
+	}
+	z0 := c.Ports[inIdx].Impedance
+	if lv.IsPower {
+		s.levelDBm = lv.DBm
+	} else {
+		// A peak voltage is what the generator delivers into a matched
+		// load: half its EMF.
+		s.levelDBm = ac.EMFToDBm(2*lv.PeakVolts, z0)
+	}
+	second := def.SecondToneHz
+	if fl.secondTone != "" {
+		if second, err = circuit.ParseValue(fl.secondTone, circuit.Frequency); err != nil {
+			return nil, inputError(fmt.Errorf("flag --second-tone: %w", err))
+		}
+	}
+	if second != 0 {
+		if err := ac.CheckFrequency(second); err != nil {
+			return nil, inputError(fmt.Errorf("flag --second-tone: %w", err))
+		}
+		if second == freq {
+			return nil, inputError(fmt.Errorf("flag --second-tone: must differ from the signal frequency %s", si.Format(freq, "Hz", 6)))
+		}
+	}
+	s.p, err = solveWithTemperature(c, fl.temperature)
+	if err != nil {
+		return nil, err
+	}
+	s.nw, err = smallsignal.New(s.p)
+	if err != nil {
+		return nil, analysisError(err)
+	}
+	s.drive = ac.Drive{Input: inIdx, Output: o, FrequencyHz: freq, EMF: ac.DBmToEMF(s.levelDBm, z0), SecondToneHz: second}
+	s.inName, s.outName = in, out
+	return s, nil
+}
+
+// parseRange reads FROM:TO:STEP.
+func parseRange(flag, s string, q circuit.Quantity, stepQ circuit.Quantity) (from, to, step float64, err error) {
+	parts := strings.Split(s, ":")
+	if len(parts) != 3 {
+		return 0, 0, 0, inputError(fmt.Errorf("flag --%s: `%s` is not FROM:TO:STEP; e.g. -50dBm:0dBm:1dB", flag, s))
+	}
+	read := func(t string, q circuit.Quantity) (float64, error) {
+		if q == circuit.Dimensionless {
+			t = strings.TrimSuffix(strings.TrimSuffix(t, "dBm"), "dB")
+		}
+		return circuit.ParseValue(strings.TrimSpace(t), q)
+	}
+	if from, err = read(parts[0], q); err == nil {
+		if to, err = read(parts[1], q); err == nil {
+			step, err = read(parts[2], stepQ)
+		}
+	}
+	if err != nil {
+		return 0, 0, 0, inputError(fmt.Errorf("flag --%s: %w", flag, err))
+	}
+	if !(step > 0) || !(to > from) {
+		return 0, 0, 0, inputError(fmt.Errorf("flag --%s: `%s` must rise from FROM to TO with a positive STEP", flag, s))
+	}
+	return from, to, step, nil
+}
+
+func runDistortion(cmd *cobra.Command, path string, fl *distortionFlags) error {
+	s, err := resolveDistortion(path, fl)
+	if err != nil {
+		return err
+	}
+	if fl.harmonics < 3 || fl.harmonics > 50 {
+		return inputError(fmt.Errorf("flag --harmonics: %d; accepted: 3 to 50", fl.harmonics))
+	}
+	settings := ac.SteadySettings{Samples: fl.samples, Harmonics: fl.harmonics}
+	if fl.samples < 4*fl.harmonics+1 || fl.samples > 65536 {
+		return inputError(fmt.Errorf("flag --samples: %d; accepted: at least 4 × harmonics + 1 and at most 65536", fl.samples))
+	}
+	out := cmd.OutOrStdout()
+	doc := &distortionJSON{Input: s.inName, Output: s.outName, Frequency: number(s.drive.FrequencyHz), LevelDBm: number(s.levelDBm)}
+
+	// Frequency sweep of the estimate only.
+	if fl.sweepFrequency != "" {
+		from, to, perDec, err := parseRange("sweep-frequency", fl.sweepFrequency, circuit.Frequency, circuit.Dimensionless)
+		if err != nil {
+			return err
+		}
+		grid, err := ac.LogGrid(from, to, int(perDec))
+		if err != nil {
+			return inputError(fmt.Errorf("flag --sweep-frequency: %w", err))
+		}
+		var rows []frequencyRow
+		for _, f := range grid {
+			d := s.drive
+			d.FrequencyHz = f
+			if d.SecondToneHz != 0 {
+				d.SecondToneHz = f + (s.drive.SecondToneHz - s.drive.FrequencyHz)
+			}
+			e, err := ac.Volterra(s.nw, d)
+			if err != nil {
+				return analysisError(err)
+			}
+			rows = append(rows, frequencyRow{f, e})
+		}
+		if fl.plotsDir != "" {
+			if err := writeDistortionFrequencyPlot(fl.plotsDir, rows); err != nil {
+				return err
+			}
+		}
+		if fl.asJSON {
+			for _, r := range rows {
+				doc.FrequencySweep = append(doc.FrequencySweep, estimateJSONOf(r.est))
+			}
+			return writeJSON(out, doc)
+		}
+		writeDistortionHeader(out, s)
+		writeFrequencySweep(out, rows)
+		return nil
+	}
+
+	est, err := ac.Volterra(s.nw, s.drive)
+	if err != nil {
+		return analysisError(err)
+	}
+	doc.Estimate = estimateJSONOf(est)
+	one := s.drive
+	one.SecondToneHz = 0
+	st, err := ac.SteadyState(s.nw, one, settings)
+	if err != nil {
+		return analysisError(fmt.Errorf("waveform at %.1f dBm: %w", s.levelDBm, err))
+	}
+	doc.Waveform = waveformJSONOf(st)
+	oneEst := est
+	if s.drive.SecondToneHz != 0 {
+		if oneEst, err = ac.Volterra(s.nw, one); err != nil {
+			return analysisError(err)
+		}
+	}
+	cmp := ac.Compare(oneEst, st)
+	for _, c := range cmp {
+		doc.Comparison = append(doc.Comparison, comparisonJSON{c.Order, number(c.Estimate), number(c.Waveform), number(c.DiffDB), c.Trustable})
+	}
+	var limit *ac.Validity
+	if !fl.noLimit {
+		limit, err = ac.ValidityLimit(s.nw, one, s.levelDBm-40, s.levelDBm+40, 0.5, settings)
+		if err == nil {
+			doc.ValidityLimitDBm = number(limit.LevelDBm)
+			doc.ValidityLimitFound = limit.Found
+		}
+	}
+
+	var sweep []ac.LevelPoint
+	var compression float64
+	var compressed bool
+	if fl.sweepLevel != "" {
+		from, to, step, err := parseRange("sweep-level", fl.sweepLevel, circuit.Dimensionless, circuit.Dimensionless)
+		if err != nil {
+			return err
+		}
+		n := int(math.Floor((to-from)/step+1e-9)) + 1
+		if n > 2000 {
+			return inputError(fmt.Errorf("flag --sweep-level: %d levels; accepted: at most 2000", n))
+		}
+		levels := make([]float64, n)
+		for i := range levels {
+			levels[i] = from + float64(i)*step
+		}
+		bar := newProgress(cmd.ErrOrStderr(), "level sweep", n)
+		sweep, err = ac.LevelSweep(s.nw, one, levels, settings, bar.update)
+		bar.done()
+		if err != nil && len(sweep) == 0 {
+			return analysisError(err)
+		}
+		if err != nil {
+			fmt.Fprintf(cmd.ErrOrStderr(), "qpoint: level sweep stopped: %v\n", err)
+		}
+		gain := cmplx.Abs(oneEst.Fundamental) / oneEst.Drive.EMF
+		compression, compressed = ac.Compression(sweep, gain)
+		if compressed {
+			doc.CompressionDBm = number(compression)
+		}
+		for _, p := range sweep {
+			doc.LevelSweep = append(doc.LevelSweep, levelJSON{number(p.LevelDBm), waveformJSONOf(p.Steady)})
+		}
+	}
+	if fl.plotsDir != "" {
+		if err := writeDistortionPlots(fl.plotsDir, s, oneEst, st, sweep); err != nil {
+			return err
+		}
+	}
+	if fl.asJSON {
+		return writeJSON(out, doc)
+	}
+	writeDistortionHeader(out, s)
+	writeEstimate(out, est)
+	writeContributions(out, est)
+	writeWaveform(out, st)
+	writeComparison(out, cmp, limit)
+	if len(sweep) > 0 {
+		writeLevelSweep(out, sweep, oneEst, compression, compressed)
+	}
+	if fl.plotsDir != "" {
+		fmt.Fprintf(out, "figures written to %s\n", fl.plotsDir)
+	}
+	return nil
+}
+
+type frequencyRow struct {
+	f   float64
+	est *ac.Estimate
+}
+
+func writeDistortionHeader(w io.Writer, s *distortionSetup) {
+	fmt.Fprintf(w, "%s\n", s.c.Name)
+	fmt.Fprintf(w, "  file         %s\n", s.c.File)
+	fmt.Fprintf(w, "  bias         solved at %.2f °C by %s", celsius(s.p.TemperatureK), s.p.Stats.Strategy)
+	for _, d := range s.p.Diodes {
+		fmt.Fprintf(w, "; %s at %s", d.Name, si.Format(d.Current, "A", 3))
+	}
+	fmt.Fprintln(w)
+	z0 := s.c.Ports[s.drive.Input].Impedance
+	fmt.Fprintf(w, "  drive        port %s, %s, %.2f dBm available (EMF %s peak behind %s)\n", s.inName,
+		si.Format(s.drive.FrequencyHz, "Hz", 6), s.levelDBm, si.Format(s.drive.EMF, "V", 4), si.Format(z0, "Ω", 4))
+	if s.drive.SecondToneHz != 0 {
+		fmt.Fprintf(w, "               second tone %s at the same level\n", si.Format(s.drive.SecondToneHz, "Hz", 6))
+	}
+	kind := "node"
+	if s.drive.Output.Port >= 0 {
+		kind = "port"
+	}
+	fmt.Fprintf(w, "  output       %s %s\n", kind, s.outName)
+}
+
+func dbc(v float64) string {
+	if math.IsNaN(v) || math.IsInf(v, 0) {
+		return "—"
+	}
+	return strconv.FormatFloat(v, 'f', 1, 64) + " dBc"
+}
+
+func writeEstimate(w io.Writer, e *ac.Estimate) {
+	t := &table{title: "Volterra estimate (third order)", header: []string{"quantity", "value"}}
+	t.add("fundamental", si.Format(cmplx.Abs(e.Fundamental), "V", 4)+" peak")
+	if p, ok := e.OutputDBm(); ok {
+		t.add("fundamental power", fmt.Sprintf("%.2f dBm", p))
+	}
+	t.add("second harmonic", dbc(e.HD2dBc()))
+	t.add("third harmonic", dbc(e.HD3dBc()))
+	t.add("DC shift", si.Format(e.DCShift, "V", 4))
+	if e.Drive.SecondToneHz != 0 {
+		t.add("IM2 at |f2 - f1|", dbc(e.IM2dBc()))
+		t.add("IM3 at 2f1 - f2", dbc(e.IM3dBc()))
+		t.add("input intercept IIP3", fmt.Sprintf("%.2f dBm", e.IIP3dBm()))
+		if o, ok := e.OIP3dBm(); ok {
+			t.add("output intercept OIP3", fmt.Sprintf("%.2f dBm", o))
+		}
+		t.add("input intercept IIP2", fmt.Sprintf("%.2f dBm", e.IIP2dBm()))
+	}
+	t.write(w)
+}
+
+func writeContributions(w io.Writer, e *ac.Estimate) {
+	t := &table{title: "Where the distortion comes from", header: []string{"product", "diode", "nonlinearity", "phasor at output", "share"}}
+	byProduct := map[ac.Product][]ac.Contribution{}
+	var order []ac.Product
+	for _, c := range e.Contributions {
+		if _, ok := byProduct[c.Product]; !ok {
+			order = append(order, c.Product)
+		}
+		byProduct[c.Product] = append(byProduct[c.Product], c)
+	}
+	label := map[ac.Product]string{ac.DC: "DC shift", ac.HD2: "HD2", ac.HD3: "HD3", ac.IM2Sum: "IM2 f1+f2", ac.IM2Diff: "IM2 f1-f2", ac.IM3: "IM3"}
+	for _, p := range order {
+		cs := byProduct[p]
+		sort.SliceStable(cs, func(i, j int) bool { return cmplx.Abs(cs[i].Phasor) > cmplx.Abs(cs[j].Phasor) })
+		for i, c := range cs {
+			if c.Phasor == 0 {
+				continue
+			}
+			name := ""
+			if i == 0 {
+				name = label[p]
+			}
+			t.add(name, c.Diode, string(c.Source), fmt.Sprintf("%s ∠%.0f°", si.Format(cmplx.Abs(c.Phasor), "V", 3), cmplx.Phase(c.Phasor)*180/math.Pi),
+				fmt.Sprintf("%.1f %%", c.Percent))
+		}
+	}
+	t.write(w)
+}
+
+func writeWaveform(w io.Writer, s *ac.Steady) {
+	t := &table{title: fmt.Sprintf("Waveform (periodic steady state, %d and %d samples per period)", s.Samples, 2*s.Samples+1),
+		header: []string{"order", "amplitude", "relative", "phase"}}
+	fund := s.Output[1].Amplitude
+	for _, h := range s.Output {
+		rel, ph := "", ""
+		if h.Order == 0 {
+			t.add("0 (DC shift)", si.Format(h.Amplitude, "V", 4), "", "")
+			continue
+		}
+		rel = dbc(20 * math.Log10(h.Amplitude/fund))
+		if h.Order == 1 {
+			rel = "0 dBc"
+		}
+		ph = fmt.Sprintf("%.1f°", h.PhaseDeg)
+		t.add(strconv.Itoa(h.Order), si.Format(h.Amplitude, "V", 4), rel, ph)
+	}
+	t.write(w)
+	fmt.Fprintf(w, "  THD %.4g %%; %d shooting iterations; periodicity residual %.2g\n", s.THDPercent, s.Iterations, s.Residual)
+}
+
+func writeComparison(w io.Writer, cs []ac.Comparison, v *ac.Validity) {
+	t := &table{title: "Estimate beside waveform", header: []string{"product", "estimate", "waveform", "difference"}}
+	names := map[int]string{0: "DC shift", 1: "fundamental", 2: "2nd harmonic", 3: "3rd harmonic"}
+	for _, c := range cs {
+		diff := fmt.Sprintf("%+.3f dB", c.DiffDB)
+		if !c.Trustable {
+			diff = "below the solver's floor"
+		}
+		t.add(names[c.Order], si.Format(c.Estimate, "V", 4), si.Format(c.Waveform, "V", 4), diff)
+	}
+	t.write(w)
+	if v != nil {
+		if v.Found {
+			fmt.Fprintf(w, "  the estimates hold within %.1f dB up to %.1f dBm available per tone (%d waveform solves)\n", v.TolDB, v.LevelDBm, v.Steps)
+		} else {
+			fmt.Fprintf(w, "  the estimates hold within %.1f dB over every level tried, up to %.1f dBm\n", v.TolDB, v.LevelDBm)
+		}
+	}
+	fmt.Fprintln(w)
+}
+
+func writeLevelSweep(w io.Writer, pts []ac.LevelPoint, e *ac.Estimate, comp float64, ok bool) {
+	t := &table{title: "Level sweep (waveform)", header: []string{"input", "fundamental", "2nd", "3rd", "DC shift", "THD"}}
+	for _, p := range pts {
+		o := p.Steady.Output
+		t.add(fmt.Sprintf("%.1f dBm", p.LevelDBm), si.Format(o[1].Amplitude, "V", 4),
+			dbc(20*math.Log10(o[2].Amplitude/o[1].Amplitude)), dbc(20*math.Log10(o[3].Amplitude/o[1].Amplitude)),
+			si.Format(o[0].Amplitude, "V", 4), fmt.Sprintf("%.3g %%", p.Steady.THDPercent))
+	}
+	t.write(w)
+	if ok {
+		fmt.Fprintf(w, "  1 dB compression at %.2f dBm input\n", comp)
+	} else {
+		fmt.Fprintf(w, "  no 1 dB compression within the sweep\n")
+	}
+	fmt.Fprintln(w)
+}
+
+func writeFrequencySweep(w io.Writer, rows []frequencyRow) {
+	t := &table{title: "Volterra estimate across frequency", header: []string{"frequency", "fundamental", "HD2", "HD3", "DC shift"}}
+	two := len(rows) > 0 && rows[0].est.Drive.SecondToneHz != 0
+	if two {
+		t.header = append(t.header, "IM3", "IIP3")
+	}
+	for _, r := range rows {
+		cells := []string{si.Format(r.f, "Hz", 4), si.Format(cmplx.Abs(r.est.Fundamental), "V", 4), dbc(r.est.HD2dBc()), dbc(r.est.HD3dBc()), si.Format(r.est.DCShift, "V", 4)}
+		if two {
+			cells = append(cells, dbc(r.est.IM3dBc()), fmt.Sprintf("%.2f dBm", r.est.IIP3dBm()))
+		}
+		t.add(cells...)
+	}
+	t.write(w)
+	fmt.Fprintln(w)
+}
+
+// progress draws a bar on standard error when it is a terminal, and
+// nothing otherwise.
+type progress struct {
+	w     io.Writer
+	label string
+	total int
+	on    bool
+}
+
+func newProgress(w io.Writer, label string, total int) *progress {
+	on := false
+	if f, ok := w.(*os.File); ok {
+		if st, err := f.Stat(); err == nil && st.Mode()&os.ModeCharDevice != 0 {
+			on = true
+		}
+	}
+	return &progress{w: w, label: label, total: total, on: on}
+}
+
+func (p *progress) update(done, total int) {
+	if !p.on {
+		return
+	}
+	const width = 30
+	n := width * done / max(total, 1)
+	fmt.Fprintf(p.w, "\r%s [%s%s] %d/%d", p.label, strings.Repeat("█", n), strings.Repeat("·", width-n), done, total)
+}
+
+func (p *progress) done() {
+	if p.on {
+		fmt.Fprint(p.w, "\r\033[K")
+	}
+}
