@@ -56,7 +56,8 @@ type Contribution struct {
 	Source  Nonlinearity
 	Phasor  complex128 // output phasor this source alone produces, V
 	// Percent is the projection of Phasor on the product's total, in
-	// percent of the total's magnitude; the shares of a product sum to 100.
+	// percent of the total's magnitude; the shares of a product sum to
+	// 100. NaN when the product is balanced out (see Estimate.Balanced).
 	Percent float64
 }
 
@@ -77,6 +78,25 @@ type Estimate struct {
 	Contributions []Contribution
 
 	inputZ0, outputZ0 float64 // outputZ0 is zero for a bare node
+	balanced          []Product
+}
+
+// balancedRatio is how far below the sum of its contributions' magnitudes
+// a product must lie to count as cancelled: the contributions of a
+// balanced circuit cancel to rounding, about 1e-16 of each.
+const balancedRatio = 1e-9
+
+// Balanced reports whether the circuit's symmetry cancels product p: its
+// contributions are large but sum to rounding noise. Its level and the
+// intercept built on it are then not meaningful numbers; the product
+// appears in practice only through the parts' mismatch.
+func (e *Estimate) Balanced(p Product) bool {
+	for _, b := range e.balanced {
+		if b == p {
+			return true
+		}
+	}
+	return false
 }
 
 // dBc returns 20 log10(|p| / |fundamental|).
@@ -214,8 +234,18 @@ func (v *volterra) product(p Product, w float64, cur, chg []complex128, scale co
 			Contribution{Product: p, Diode: d.Name, Source: CurrentLaw, Phasor: -cur[k] * t * scale},
 			Contribution{Product: p, Diode: d.Name, Source: ChargeLaw, Phasor: -jw * chg[k] * t * scale})
 	}
+	gross := 0.0
+	for _, c := range parts {
+		gross += cmplx.Abs(c.Phasor)
+	}
+	if cmplx.Abs(total) <= balancedRatio*gross {
+		est.balanced = append(est.balanced, p)
+	}
 	for i := range parts {
-		if total != 0 {
+		switch {
+		case cmplx.Abs(total) <= balancedRatio*gross:
+			parts[i].Percent = math.NaN()
+		case total != 0:
 			parts[i].Percent = 100 * real(parts[i].Phasor*cmplx.Conj(total)) / (cmplx.Abs(total) * cmplx.Abs(total))
 		}
 	}

@@ -399,25 +399,47 @@ func dbc(v float64) string {
 	return strconv.FormatFloat(v, 'f', 1, 64) + " dBc"
 }
 
+// waveDBc prints a waveform harmonic relative to the fundamental, or says
+// it is lost in the solver's numerical floor (about -150 dBc).
+func waveDBc(v float64) string {
+	if v < -150 {
+		return "below floor"
+	}
+	return dbc(v)
+}
+
 func writeEstimate(w io.Writer, e *ac.Estimate) {
 	t := &table{title: "Volterra estimate (third order)", header: []string{"quantity", "value"}}
 	t.add("fundamental", si.Format(cmplx.Abs(e.Fundamental), "V", 4)+" peak")
 	if p, ok := e.OutputDBm(); ok {
 		t.add("fundamental power", fmt.Sprintf("%.2f dBm", p))
 	}
-	t.add("second harmonic", dbc(e.HD2dBc()))
-	t.add("third harmonic", dbc(e.HD3dBc()))
-	t.add("DC shift", si.Format(e.DCShift, "V", 4))
-	if e.Drive.SecondToneHz != 0 {
-		t.add("IM2 at |f2 - f1|", dbc(e.IM2dBc()))
-		t.add("IM3 at 2f1 - f2", dbc(e.IM3dBc()))
-		t.add("input intercept IIP3", fmt.Sprintf("%.2f dBm", e.IIP3dBm()))
-		if o, ok := e.OIP3dBm(); ok {
-			t.add("output intercept OIP3", fmt.Sprintf("%.2f dBm", o))
+	const cancelled = "cancelled by symmetry"
+	pick := func(p ac.Product, v string) string {
+		if e.Balanced(p) {
+			return cancelled
 		}
-		t.add("input intercept IIP2", fmt.Sprintf("%.2f dBm", e.IIP2dBm()))
+		return v
+	}
+	t.add("second harmonic", pick(ac.HD2, dbc(e.HD2dBc())))
+	t.add("third harmonic", pick(ac.HD3, dbc(e.HD3dBc())))
+	t.add("DC shift", pick(ac.DC, si.Format(e.DCShift, "V", 4)))
+	if e.Drive.SecondToneHz != 0 {
+		t.add("IM2 at |f2 - f1|", pick(ac.IM2Diff, dbc(e.IM2dBc())))
+		t.add("IM3 at 2f1 - f2", pick(ac.IM3, dbc(e.IM3dBc())))
+		t.add("input intercept IIP3", pick(ac.IM3, fmt.Sprintf("%.2f dBm", e.IIP3dBm())))
+		if o, ok := e.OIP3dBm(); ok {
+			t.add("output intercept OIP3", pick(ac.IM3, fmt.Sprintf("%.2f dBm", o)))
+		}
+		t.add("input intercept IIP2", pick(ac.IM2Diff, fmt.Sprintf("%.2f dBm", e.IIP2dBm())))
 	}
 	t.write(w)
+	for _, p := range []ac.Product{ac.DC, ac.HD2, ac.HD3, ac.IM2Diff, ac.IM3} {
+		if e.Balanced(p) {
+			fmt.Fprintf(w, "  products marked %q balance out between matched diodes; in a built circuit they follow the parts' mismatch\n", cancelled)
+			break
+		}
+	}
 }
 
 func writeContributions(w io.Writer, e *ac.Estimate) {
@@ -442,8 +464,11 @@ func writeContributions(w io.Writer, e *ac.Estimate) {
 			if i == 0 {
 				name = label[p]
 			}
-			t.add(name, c.Diode, string(c.Source), fmt.Sprintf("%s ∠%.0f°", si.Format(cmplx.Abs(c.Phasor), "V", 3), cmplx.Phase(c.Phasor)*180/math.Pi),
-				fmt.Sprintf("%.1f %%", c.Percent))
+			share := fmt.Sprintf("%.1f %%", c.Percent)
+			if math.IsNaN(c.Percent) {
+				share = "cancels"
+			}
+			t.add(name, c.Diode, string(c.Source), fmt.Sprintf("%s ∠%.0f°", si.Format(cmplx.Abs(c.Phasor), "V", 3), cmplx.Phase(c.Phasor)*180/math.Pi), share)
 		}
 	}
 	t.write(w)
@@ -459,7 +484,7 @@ func writeWaveform(w io.Writer, s *ac.Steady) {
 			t.add("0 (DC shift)", si.Format(h.Amplitude, "V", 4), "", "")
 			continue
 		}
-		rel = dbc(20 * math.Log10(h.Amplitude/fund))
+		rel = waveDBc(20 * math.Log10(h.Amplitude/fund))
 		if h.Order == 1 {
 			rel = "0 dBc"
 		}
@@ -496,7 +521,7 @@ func writeLevelSweep(w io.Writer, pts []ac.LevelPoint, e *ac.Estimate, comp floa
 	for _, p := range pts {
 		o := p.Steady.Output
 		t.add(fmt.Sprintf("%.1f dBm", p.LevelDBm), si.Format(o[1].Amplitude, "V", 4),
-			dbc(20*math.Log10(o[2].Amplitude/o[1].Amplitude)), dbc(20*math.Log10(o[3].Amplitude/o[1].Amplitude)),
+			waveDBc(20*math.Log10(o[2].Amplitude/o[1].Amplitude)), waveDBc(20*math.Log10(o[3].Amplitude/o[1].Amplitude)),
 			si.Format(o[0].Amplitude, "V", 4), fmt.Sprintf("%.3g %%", p.Steady.THDPercent))
 	}
 	t.write(w)

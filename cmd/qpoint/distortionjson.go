@@ -1,7 +1,6 @@
 package main
 
 import (
-	"math"
 	"math/cmplx"
 
 	"qpoint/ac"
@@ -51,7 +50,7 @@ type comparisonJSON struct {
 }
 
 type levelJSON struct {
-	LevelDBm number       `json:"level_dbm"`
+	LevelDBm number        `json:"level_dbm"`
 	Waveform *waveformJSON `json:"waveform"`
 }
 
@@ -107,5 +106,3 @@ func waveformJSONOf(s *ac.Steady) *waveformJSON {
 	}
 	return j
 }
-
-var _ = math.Inf
