@@ -3,6 +3,10 @@ package main
 import (
 	"fmt"
 	"io"
+	"os"
+	"path/filepath"
+
+	"qpoint/plots"
 
 	"qpoint/ac"
 	"qpoint/bias/circuit"
@@ -21,8 +25,24 @@ func writeTouchstone(w io.Writer, c *circuit.Circuit, r *ac.Response, f ac.Forma
 	return ac.WriteTouchstone(w, r.Ports, r.Points, f, comment)
 }
 
+// writeFigures writes each figure as SVG and PNG into dir, creating it.
+func writeFigures(dir string, figs []*plots.Figure) error {
+	if err := os.MkdirAll(dir, 0o755); err != nil {
+		return inputError(fmt.Errorf("flag --plots: %w", err))
+	}
+	for _, f := range figs {
+		for _, format := range []string{"svg", "png"} {
+			path := filepath.Join(dir, f.Name+"."+format)
+			if err := writeFileAtomic(path, func(w io.Writer) error { return plots.Write(w, format, f) }); err != nil {
+				return err
+			}
+		}
+	}
+	return nil
+}
+
 func writeResponsePlots(dir string, r *ac.Response) error {
-	return fmt.Errorf("figures are not built yet")
+	return writeFigures(dir, plots.ResponseFigures(r))
 }
 
 func writeDistortionPlots(dir string, s *distortionSetup, e *ac.Estimate, st *ac.Steady, sweep []ac.LevelPoint) error {

@@ -1,0 +1,313 @@
+package study
+
+import (
+	"errors"
+	"fmt"
+	"math"
+	"math/cmplx"
+	"runtime"
+	"sync"
+
+	"qpoint/ac"
+	"qpoint/bias"
+	"qpoint/bias/circuit"
+	"qpoint/smallsignal"
+)
+
+// chainLength is the number of consecutive steps one worker solves by
+// continuation. It is fixed, not derived from the worker count, so that
+// every step starts from the same point however many workers run.
+const chainLength = 8
+
+// Axis is one varied quantity and its values.
+type Axis struct {
+	Vary   *circuit.Vary
+	Values []float64
+}
+
+// Grid returns n values from from to to, evenly or (log) geometrically
+// spaced.
+func Grid(from, to float64, n int, log bool) ([]float64, error) {
+	if n < 1 {
+		return nil, fmt.Errorf("a study needs at least one step, got %d", n)
+	}
+	if from == to && n > 1 {
+		return nil, fmt.Errorf("the range is empty: from and to are both %g", from)
+	}
+	if log && (from <= 0) != (to <= 0) || log && (from == 0 || to == 0) {
+		return nil, fmt.Errorf("a logarithmic range needs both ends non-zero and of one sign, got %g to %g", from, to)
+	}
+	v := make([]float64, n)
+	for i := range v {
+		f := 0.0
+		if n > 1 {
+			f = float64(i) / float64(n-1)
+		}
+		if log {
+			v[i] = from * math.Pow(to/from, f)
+		} else {
+			v[i] = from + (to-from)*f
+		}
+	}
+	if n > 1 {
+		v[n-1] = to
+	}
+	return v, nil
+}
+
+// Settings describe a study.
+type Settings struct {
+	Axis Axis
+	// Second, when not nil, is a second varied quantity: the study then
+	// covers the grid Axis × Second.
+	Second *Axis
+	// FrequenciesHz are where the response is reported. With
+	// SecondIsFrequency the second axis is frequency instead.
+	FrequenciesHz     []float64
+	SecondIsFrequency bool
+	// Distortion: when Drive.EMF > 0, each step estimates HD2, HD3 and the
+	// DC shift for this drive (frequency taken from Drive).
+	Drive ac.Drive
+	// Workers running steps in parallel; zero means all cores.
+	Workers int
+	// Progress, when not nil, is called after each step with the count
+	// done; calls come from one goroutine at a time.
+	Progress func(done, total int)
+}
+
+// Diode is a diode's state at one step.
+type Diode struct {
+	Name                 string
+	Current              float64 // A
+	Voltage              float64 // V, terminal
+	DynamicResistance    float64 // ohm, junction
+	JunctionCapacitance  float64 // F
+	DiffusionCapacitance float64 // F
+	// Detector figures at each study frequency (Cowley and Sorensen):
+	// current sensitivity β in A/W of power absorbed by the chip, the
+	// open-circuit voltage sensitivity γ = β R_v in V/W, and the video
+	// resistance R_v = r_j + R_S.
+	CurrentSensitivity []float64
+	VoltageSensitivity []float64
+	VideoResistance    float64
+	Warnings           int
+}
+
+// Response is the small-signal response at one frequency.
+type Response struct {
+	FrequencyHz    float64
+	S              [][]complex128
+	InputImpedance []complex128
+	Probes         []complex128
+}
+
+// Step is the study's result at one grid point.
+type Step struct {
+	Index  [2]int     // position on the axes
+	Values [2]float64 // the varied values (the second is zero for one axis)
+
+	Iterations int           // Newton iterations of the bias solve
+	Strategy   bias.Strategy // how the bias converged
+	Diodes     []Diode
+	Responses  []Response // one per study frequency
+	Warnings   []bias.Warning
+
+	// Distortion estimate (when asked for): output fundamental, HD2 and
+	// HD3 in dBc and the DC shift.
+	Fundamental    float64
+	HD2dBc, HD3dBc float64
+	DCShift        float64
+	// DetectorSensitivity is the DC shift at the output per available
+	// input power, V/W, at the drive's frequency: the whole circuit's
+	// voltage sensitivity including its match.
+	DetectorSensitivity float64
+
+	Err error // non-nil when this step could not be solved
+}
+
+// Result is a whole study.
+type Result struct {
+	Settings Settings
+	Circuit  *circuit.Circuit
+	Ports    []ac.PortInfo
+	Probes   []string
+	Steps    []Step // row-major: second axis outer, first axis inner
+	Shape    [2]int // steps along the first and second axes
+	Newton   int    // total Newton iterations
+}
+
+// At returns the step at (i, j).
+func (r *Result) At(i, j int) *Step { return &r.Steps[j*r.Shape[0]+i] }
+
+// Run performs the study.
+func Run(c *circuit.Circuit, s Settings) (*Result, error) {
+	if s.Axis.Vary == nil || len(s.Axis.Values) == 0 {
+		return nil, errors.New("study: nothing to vary")
+	}
+	for _, v := range s.Axis.Values {
+		if err := s.Axis.Vary.Check(v); err != nil {
+			return nil, err
+		}
+	}
+	n0, n1 := len(s.Axis.Values), 1
+	if s.Second != nil {
+		n1 = len(s.Second.Values)
+		if !s.SecondIsFrequency {
+			for _, v := range s.Second.Values {
+				if err := s.Second.Vary.Check(v); err != nil {
+					return nil, err
+				}
+			}
+		}
+	}
+	res := &Result{Settings: s, Circuit: c, Shape: [2]int{n0, n1}, Steps: make([]Step, n0*n1)}
+	for _, p := range c.Ports {
+		res.Ports = append(res.Ports, ac.PortInfo{Name: p.Name, Impedance: p.Impedance})
+	}
+	res.Probes = c.Probes
+
+	// Chains run along the first axis, for each value of the second.
+	type chain struct{ j, from, to int }
+	var chains []chain
+	for j := 0; j < n1; j++ {
+		for i := 0; i < n0; i += chainLength {
+			chains = append(chains, chain{j, i, min(i+chainLength, n0)})
+		}
+	}
+	workers := s.Workers
+	if workers <= 0 {
+		workers = runtime.GOMAXPROCS(0)
+	}
+	work := make(chan chain)
+	var wg sync.WaitGroup
+	var mu sync.Mutex
+	done := 0
+	for w := 0; w < workers; w++ {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			for ch := range work {
+				var prev *bias.Point
+				for i := ch.from; i < ch.to; i++ {
+					st := res.At(i, ch.j)
+					prev = runStep(c, s, i, ch.j, prev, st)
+					if s.Progress != nil {
+						mu.Lock()
+						done++
+						s.Progress(done, len(res.Steps))
+						mu.Unlock()
+					}
+				}
+			}
+		}()
+	}
+	for _, ch := range chains {
+		work <- ch
+	}
+	close(work)
+	wg.Wait()
+	for i := range res.Steps {
+		res.Newton += res.Steps[i].Iterations
+	}
+	return res, nil
+}
+
+// runStep solves one grid point starting from prev and fills st. It
+// returns the bias point for the next step of the chain.
+func runStep(c *circuit.Circuit, s Settings, i, j int, prev *bias.Point, st *Step) *bias.Point {
+	st.Index = [2]int{i, j}
+	st.Values[0] = s.Axis.Values[i]
+	cc, temp := s.Axis.Vary.Apply(c, s.Axis.Values[i])
+	freqs := s.FrequenciesHz
+	if s.Second != nil {
+		st.Values[1] = s.Second.Values[j]
+		if s.SecondIsFrequency {
+			freqs = []float64{s.Second.Values[j]}
+		} else {
+			var t2 float64
+			cc, t2 = s.Second.Vary.Apply(cc, s.Second.Values[j])
+			if s.Second.Vary.Kind == circuit.VaryTemperature {
+				temp = t2
+			}
+		}
+	}
+	p, err := bias.Solve(cc, bias.Settings{TemperatureK: temp, Start: prev})
+	if err != nil {
+		st.Err = err
+		return prev
+	}
+	st.Iterations = p.Stats.Iterations
+	st.Strategy = p.Stats.Strategy
+	st.Warnings = p.Warnings
+	nw, err := smallsignal.New(p)
+	if err != nil {
+		st.Err = err
+		return p
+	}
+	for k, d := range p.Diodes {
+		sd := nw.Diodes[k]
+		dd := Diode{
+			Name: d.Name, Current: d.Current, Voltage: d.Voltage,
+			DynamicResistance: d.DynamicResistance, JunctionCapacitance: d.JunctionCapacitance,
+			DiffusionCapacitance: d.DiffusionCapacitance,
+			VideoResistance:      d.DynamicResistance + sd.SeriesResistance,
+		}
+		for _, f := range freqs {
+			b := Sensitivity(sd, f)
+			dd.CurrentSensitivity = append(dd.CurrentSensitivity, b)
+			dd.VoltageSensitivity = append(dd.VoltageSensitivity, b*dd.VideoResistance)
+		}
+		for _, w := range p.Warnings {
+			if w.Part == d.Name {
+				dd.Warnings++
+			}
+		}
+		st.Diodes = append(st.Diodes, dd)
+	}
+	if len(nw.Ports) > 0 && len(freqs) > 0 {
+		r, err := ac.Run(nw, freqs, ac.Settings{})
+		if err != nil {
+			st.Err = err
+			return p
+		}
+		for _, pt := range r.Points {
+			st.Responses = append(st.Responses, Response{pt.FrequencyHz, pt.S, pt.InputImpedance, pt.Probes})
+		}
+	}
+	if s.Drive.EMF > 0 && len(nw.Ports) > 0 {
+		d := s.Drive
+		d.SecondToneHz = 0
+		e, err := ac.Volterra(nw, d)
+		if err != nil {
+			st.Err = err
+			return p
+		}
+		st.Fundamental = cmplx.Abs(e.Fundamental)
+		st.HD2dBc, st.HD3dBc, st.DCShift = e.HD2dBc(), e.HD3dBc(), e.DCShift
+		pin := d.EMF * d.EMF / (8 * nw.Ports[d.Input].Impedance)
+		st.DetectorSensitivity = e.DCShift / pin
+	}
+	return p
+}
+
+// Sensitivity returns a diode's short-circuit current sensitivity at
+// frequency f in A/W of RF power absorbed by the chip (junction and series
+// resistance):
+//
+//	β = (g2/g1) / (1 + R_S/R_j + ω² C² R_S R_j)
+//
+// where g1, g2 are the junction current's Taylor coefficients (g2/g1 =
+// 1/(2 n V_T) for the ideal law), R_j = 1/g1 and C the junction's total
+// capacitance. The rectified current is g2|v|²/2 for junction voltage v,
+// the power absorbed in the junction |v|²g1/2, and the chip absorbs
+// 1 + R_S/R_j + ω²C²R_S R_j times that; Cowley and Sorensen (1966) give the
+// same frequency roll-off as 1/(1 + ω²C²R_S R_j) and the resistive loss as
+// 1/(1 + R_S/R_j).
+func Sensitivity(d smallsignal.Diode, f float64) float64 {
+	if d.G1 <= 0 {
+		return 0
+	}
+	rj := 1 / d.G1
+	w := 2 * math.Pi * f
+	return (d.G2 / d.G1) / (1 + d.SeriesResistance/rj + w*w*d.C1*d.C1*d.SeriesResistance*rj)
+}
