@@ -371,3 +371,31 @@ func ParseLevel(s string) (Level, error) {
 	}
 	return Level{PeakVolts: num}, nil
 }
+
+// Unit returns the quantity's SI unit symbol as tables and column headers
+// print it ("ohm" spelled out for plain-text files), or "" for a number.
+func (q Quantity) Unit() string {
+	switch q {
+	case Resistance:
+		return "ohm"
+	case Capacitance:
+		return "F"
+	case Inductance:
+		return "H"
+	case Voltage:
+		return "V"
+	case Current:
+		return "A"
+	case Frequency:
+		return "Hz"
+	case Time:
+		return "s"
+	case Power:
+		return "W"
+	case Energy:
+		return "eV"
+	case Temperature:
+		return "K"
+	}
+	return ""
+}

@@ -9,6 +9,7 @@ import (
 	"qpoint/plots"
 
 	"qpoint/ac"
+	"qpoint/ac/study"
 	"qpoint/bias/circuit"
 )
 
@@ -51,4 +52,8 @@ func writeDistortionPlots(dir string, s *distortionSetup, e *ac.Estimate, st *ac
 
 func writeDistortionFrequencyPlot(dir string, rows []frequencyRow) error {
 	return fmt.Errorf("figures are not built yet")
+}
+
+func writeStudyPlots(dir string, r *study.Result, show string) error {
+	return fmt.Errorf("study figures are not built yet")
 }
