@@ -93,11 +93,46 @@ func writeBias(w io.Writer, p *bias.Point) {
 	fmt.Fprintf(w, "  solved by    %s in %s; largest current imbalance %s\n",
 		p.Stats.Strategy, plural(p.Stats.Iterations, "iteration"), si.Format(p.Stats.Residual, "A", 2))
 
+	for _, t := range biasTables(p) {
+		t.write(w)
+	}
+
+	if len(p.Warnings) > 0 {
+		fmt.Fprintf(w, "\nCautions\n")
+		for _, x := range p.Warnings {
+			fmt.Fprintf(w, "  ! %s: %s\n", x.Part, x.Message)
+		}
+	}
+	fmt.Fprintln(w)
+}
+
+func percent(f float64) string {
+	switch {
+	case math.IsNaN(f):
+		return "no rating"
+	case f == 0:
+		return "0 %"
+	case f < 0.001:
+		return "<0.1 %"
+	}
+	return fmt.Sprintf("%.1f %%", 100*f)
+}
+
+func plural(n int, word string) string {
+	if n == 1 {
+		return fmt.Sprintf("%d %s", n, word)
+	}
+	return fmt.Sprintf("%d %ss", n, word)
+}
+
+// biasTables returns the node-voltage, source-current and Q-point tables.
+func biasTables(p *bias.Point) []*table {
+	var tables []*table
 	nodes := &table{title: "Node voltages", header: []string{"node", "voltage"}}
 	for _, n := range p.Nodes {
 		nodes.add(n.Name, si.Format(n.Voltage, "V", 5))
 	}
-	nodes.write(w)
+	tables = append(tables, nodes)
 
 	if len(p.Sources)+len(p.Inductors) > 0 {
 		src := &table{title: "Source and inductor currents (into the + / to / first terminal)", header: []string{"part", "kind", "current"}}
@@ -107,7 +142,7 @@ func writeBias(w io.Writer, p *bias.Point) {
 		for _, s := range p.Inductors {
 			src.add(s.Name, s.Kind.String(), si.Format(s.Current, "A", 4))
 		}
-		src.write(w)
+		tables = append(tables, src)
 	}
 
 	// One column per diode reads well for the few diodes a bias network
@@ -141,33 +176,8 @@ func writeBias(w io.Writer, p *bias.Point) {
 		row("of current rating", func(d bias.Diode) string { return percent(d.CurrentFraction) })
 		row("of reverse-voltage rating", func(d bias.Diode) string { return percent(d.ReverseVoltageFraction) })
 		row("of power rating", func(d bias.Diode) string { return percent(d.PowerFraction) })
-		t.write(w)
+		tables = append(tables, t)
 	}
 
-	if len(p.Warnings) > 0 {
-		fmt.Fprintf(w, "\nCautions\n")
-		for _, x := range p.Warnings {
-			fmt.Fprintf(w, "  ! %s: %s\n", x.Part, x.Message)
-		}
-	}
-	fmt.Fprintln(w)
-}
-
-func percent(f float64) string {
-	switch {
-	case math.IsNaN(f):
-		return "no rating"
-	case f == 0:
-		return "0 %"
-	case f < 0.001:
-		return "<0.1 %"
-	}
-	return fmt.Sprintf("%.1f %%", 100*f)
-}
-
-func plural(n int, word string) string {
-	if n == 1 {
-		return fmt.Sprintf("%d %s", n, word)
-	}
-	return fmt.Sprintf("%d %ss", n, word)
+	return tables
 }

@@ -94,6 +94,14 @@ func resolveDistortion(path string, fl *distortionFlags) (*distortionSetup, erro
 	if err != nil {
 		return nil, err
 	}
+	return resolveDistortionFor(c, fl)
+}
+
+// resolveDistortionFor resolves the flags and the file's defaults for a
+// loaded circuit.
+func resolveDistortionFor(c *circuit.Circuit, fl *distortionFlags) (*distortionSetup, error) {
+	path := c.File
+	var err error
 	if len(c.Ports) == 0 {
 		return nil, inputError(fmt.Errorf("%s: the circuit has no ports; distortion needs an input port (add a `ports:` list)", path))
 	}
@@ -409,6 +417,17 @@ func waveDBc(v float64) string {
 }
 
 func writeEstimate(w io.Writer, e *ac.Estimate) {
+	t, notes := estimateTable(e)
+	t.write(w)
+	for _, n := range notes {
+		fmt.Fprintf(w, "  %s\n", n)
+	}
+}
+
+// estimateTable returns the Volterra estimate as a table, and notes to
+// print under it.
+func estimateTable(e *ac.Estimate) (*table, []string) {
+	var notes []string
 	t := &table{title: "Volterra estimate (third order)", header: []string{"quantity", "value"}}
 	t.add("fundamental", si.Format(cmplx.Abs(e.Fundamental), "V", 4)+" peak")
 	if p, ok := e.OutputDBm(); ok {
@@ -433,16 +452,20 @@ func writeEstimate(w io.Writer, e *ac.Estimate) {
 		}
 		t.add("input intercept IIP2", pick(ac.IM2Diff, fmt.Sprintf("%.2f dBm", e.IIP2dBm())))
 	}
-	t.write(w)
 	for _, p := range []ac.Product{ac.DC, ac.HD2, ac.HD3, ac.IM2Diff, ac.IM3} {
 		if e.Balanced(p) {
-			fmt.Fprintf(w, "  products marked %q balance out between matched diodes; in a built circuit they follow the parts' mismatch\n", cancelled)
+			notes = append(notes, fmt.Sprintf("products marked %q balance out between matched diodes; in a built circuit they follow the parts' mismatch", cancelled))
 			break
 		}
 	}
+	return t, notes
 }
 
 func writeContributions(w io.Writer, e *ac.Estimate) {
+	contributionTable(e).write(w)
+}
+
+func contributionTable(e *ac.Estimate) *table {
 	t := &table{title: "Where the distortion comes from", header: []string{"product", "diode", "nonlinearity", "phasor at output", "share"}}
 	byProduct := map[ac.Product][]ac.Contribution{}
 	var order []ac.Product
@@ -471,10 +494,16 @@ func writeContributions(w io.Writer, e *ac.Estimate) {
 			t.add(name, c.Diode, string(c.Source), fmt.Sprintf("%s ∠%.0f°", si.Format(cmplx.Abs(c.Phasor), "V", 3), cmplx.Phase(c.Phasor)*180/math.Pi), share)
 		}
 	}
-	t.write(w)
+	return t
 }
 
 func writeWaveform(w io.Writer, s *ac.Steady) {
+	t, note := waveformTable(s)
+	t.write(w)
+	fmt.Fprintf(w, "  %s\n", note)
+}
+
+func waveformTable(s *ac.Steady) (*table, string) {
 	t := &table{title: fmt.Sprintf("Waveform (periodic steady state, %d and %d samples per period)", s.Samples, 2*s.Samples+1),
 		header: []string{"order", "amplitude", "relative", "phase"}}
 	fund := s.Output[1].Amplitude
@@ -491,11 +520,19 @@ func writeWaveform(w io.Writer, s *ac.Steady) {
 		ph = fmt.Sprintf("%.1f°", h.PhaseDeg)
 		t.add(strconv.Itoa(h.Order), si.Format(h.Amplitude, "V", 4), rel, ph)
 	}
-	t.write(w)
-	fmt.Fprintf(w, "  THD %.4g %%; %d shooting iterations; periodicity residual %.2g\n", s.THDPercent, s.Iterations, s.Residual)
+	return t, fmt.Sprintf("THD %.4g %%; %d shooting iterations; periodicity residual %.2g", s.THDPercent, s.Iterations, s.Residual)
 }
 
 func writeComparison(w io.Writer, cs []ac.Comparison, v *ac.Validity) {
+	t, note := comparisonTable(cs, v)
+	t.write(w)
+	if note != "" {
+		fmt.Fprintf(w, "  %s\n", note)
+	}
+	fmt.Fprintln(w)
+}
+
+func comparisonTable(cs []ac.Comparison, v *ac.Validity) (*table, string) {
 	t := &table{title: "Estimate beside waveform", header: []string{"product", "estimate", "waveform", "difference"}}
 	names := map[int]string{0: "DC shift", 1: "fundamental", 2: "2nd harmonic", 3: "3rd harmonic"}
 	for _, c := range cs {
@@ -505,18 +542,28 @@ func writeComparison(w io.Writer, cs []ac.Comparison, v *ac.Validity) {
 		}
 		t.add(names[c.Order], si.Format(c.Estimate, "V", 4), si.Format(c.Waveform, "V", 4), diff)
 	}
-	t.write(w)
+	note := ""
 	if v != nil {
 		if v.Found {
-			fmt.Fprintf(w, "  the estimates hold within %.1f dB up to %.1f dBm available per tone (%d waveform solves)\n", v.TolDB, v.LevelDBm, v.Steps)
+			note = fmt.Sprintf("the estimates hold within %.1f dB up to %.1f dBm available per tone (%d waveform solves)", v.TolDB, v.LevelDBm, v.Steps)
 		} else {
-			fmt.Fprintf(w, "  the estimates hold within %.1f dB over every level tried, up to %.1f dBm\n", v.TolDB, v.LevelDBm)
+			note = fmt.Sprintf("the estimates hold within %.1f dB over every level tried, up to %.1f dBm", v.TolDB, v.LevelDBm)
 		}
+	}
+	return t, note
+}
+
+func writeLevelSweep(w io.Writer, pts []ac.LevelPoint, e *ac.Estimate, comp float64, ok bool) {
+	levelSweepTable(pts).write(w)
+	if ok {
+		fmt.Fprintf(w, "  1 dB compression at %.2f dBm input\n", comp)
+	} else {
+		fmt.Fprintf(w, "  no 1 dB compression within the sweep\n")
 	}
 	fmt.Fprintln(w)
 }
 
-func writeLevelSweep(w io.Writer, pts []ac.LevelPoint, e *ac.Estimate, comp float64, ok bool) {
+func levelSweepTable(pts []ac.LevelPoint) *table {
 	t := &table{title: "Level sweep (waveform)", header: []string{"input", "fundamental", "2nd", "3rd", "DC shift", "THD"}}
 	for _, p := range pts {
 		o := p.Steady.Output
@@ -524,13 +571,7 @@ func writeLevelSweep(w io.Writer, pts []ac.LevelPoint, e *ac.Estimate, comp floa
 			waveDBc(20*math.Log10(o[2].Amplitude/o[1].Amplitude)), waveDBc(20*math.Log10(o[3].Amplitude/o[1].Amplitude)),
 			si.Format(o[0].Amplitude, "V", 4), fmt.Sprintf("%.3g %%", p.Steady.THDPercent))
 	}
-	t.write(w)
-	if ok {
-		fmt.Fprintf(w, "  1 dB compression at %.2f dBm input\n", comp)
-	} else {
-		fmt.Fprintf(w, "  no 1 dB compression within the sweep\n")
-	}
-	fmt.Fprintln(w)
+	return t
 }
 
 func writeFrequencySweep(w io.Writer, rows []frequencyRow) {

@@ -158,12 +158,27 @@ func TestTemperatureFlag(t *testing.T) {
 }
 
 func TestDemo(t *testing.T) {
-	out, errs, code := runCLI(t, "demo")
+	dir := t.TempDir()
+	out, errs, code := runCLI(t, "demo", "--dir", dir)
 	if code != 0 {
 		t.Fatalf("exit %d: %s", code, errs)
 	}
 	if strings.Count(out, "Diode Q points") != 4 {
 		t.Errorf("demo printed %d Q-point tables, want 4", strings.Count(out, "Diode Q points"))
+	}
+	for _, name := range []string{"index", "detector", "attenuator", "limiter", "mixer"} {
+		data, err := os.ReadFile(filepath.Join(dir, name+".html"))
+		if err != nil {
+			t.Errorf("demo wrote no %s.html: %v", name, err)
+			continue
+		}
+		if name != "index" {
+			for _, want := range []string{"Operating point", "Small-signal response", "Distortion", "<svg"} {
+				if !strings.Contains(string(data), want) {
+					t.Errorf("%s.html lacks %q", name, want)
+				}
+			}
+		}
 	}
 }
 

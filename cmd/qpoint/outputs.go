@@ -57,3 +57,11 @@ func writeDistortionFrequencyPlot(dir string, rows []frequencyRow) error {
 func writeStudyPlots(dir string, r *study.Result, show string) error {
 	return fmt.Errorf("study figures are not built yet")
 }
+
+func distortionFigures(e *ac.Estimate, st *ac.Steady, sweep []ac.LevelPoint, comp float64, compressed bool) []*plots.Figure {
+	return nil
+}
+
+func studyFigures(r *study.Result, show string) []*plots.Figure {
+	return nil
+}

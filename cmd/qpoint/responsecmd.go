@@ -295,39 +295,8 @@ func writeResponseTable(w io.Writer, c *circuit.Circuit, p *bias.Point, r *ac.Re
 	first, last := r.Points[0].FrequencyHz, r.Points[len(r.Points)-1].FrequencyHz
 	fmt.Fprintf(w, "  sweep        %d points, %s to %s\n", len(r.Points), si.Format(first, "Hz", 4), si.Format(last, "Hz", 4))
 
-	two := len(r.Ports) > 1
+	responseTable(r, rows).write(w)
 	name1 := r.Ports[0].Name
-	t := &table{title: "Response"}
-	t.header = []string{"frequency"}
-	if two {
-		t.header = append(t.header, fmt.Sprintf("|S21| dB (%s→%s)", name1, r.Ports[1].Name), "∠S21 °")
-	}
-	t.header = append(t.header, fmt.Sprintf("return loss dB (%s)", name1), "VSWR", fmt.Sprintf("input impedance (%s)", name1))
-	for _, name := range r.Probes {
-		t.header = append(t.header, fmt.Sprintf("%s dB", name))
-	}
-	for _, i := range pickRows(len(r.Points), rows) {
-		pt := r.Points[i]
-		cells := []string{si.Format(pt.FrequencyHz, "Hz", 4)}
-		if two {
-			angle := strconv.FormatFloat(deg(pt.S[1][0]), 'f', 1, 64)
-			if db(pt.S[1][0]) < -200 {
-				angle = "—"
-			}
-			cells = append(cells, formatDB(db(pt.S[1][0])), angle)
-		}
-		g := cmplx.Abs(pt.S[0][0])
-		vswr := "∞"
-		if g < 1 {
-			vswr = strconv.FormatFloat((1+g)/(1-g), 'f', 2, 64)
-		}
-		cells = append(cells, formatDB(-db(pt.S[0][0])), vswr, formatImpedance(pt.InputImpedance[0]))
-		for _, v := range pt.Probes {
-			cells = append(cells, formatDB(db(v)))
-		}
-		t.add(cells...)
-	}
-	t.write(w)
 	if len(r.Probes) > 0 {
 		fmt.Fprintf(w, "  probes: node voltage for a 1 V (peak) EMF behind port %s's reference impedance, in dB re 1 V\n", name1)
 	}
@@ -453,4 +422,41 @@ func responseDocument(r *ac.Response) *responseJSON {
 		d.Points = append(d.Points, j)
 	}
 	return d
+}
+
+// responseTable returns the response at up to rows frequencies.
+func responseTable(r *ac.Response, rows int) *table {
+	two := len(r.Ports) > 1
+	name1 := r.Ports[0].Name
+	t := &table{title: "Response"}
+	t.header = []string{"frequency"}
+	if two {
+		t.header = append(t.header, fmt.Sprintf("|S21| dB (%s→%s)", name1, r.Ports[1].Name), "∠S21 °")
+	}
+	t.header = append(t.header, fmt.Sprintf("return loss dB (%s)", name1), "VSWR", fmt.Sprintf("input impedance (%s)", name1))
+	for _, name := range r.Probes {
+		t.header = append(t.header, fmt.Sprintf("%s dB", name))
+	}
+	for _, i := range pickRows(len(r.Points), rows) {
+		pt := r.Points[i]
+		cells := []string{si.Format(pt.FrequencyHz, "Hz", 4)}
+		if two {
+			angle := strconv.FormatFloat(deg(pt.S[1][0]), 'f', 1, 64)
+			if db(pt.S[1][0]) < -200 {
+				angle = "—"
+			}
+			cells = append(cells, formatDB(db(pt.S[1][0])), angle)
+		}
+		g := cmplx.Abs(pt.S[0][0])
+		vswr := "∞"
+		if g < 1 {
+			vswr = strconv.FormatFloat((1+g)/(1-g), 'f', 2, 64)
+		}
+		cells = append(cells, formatDB(-db(pt.S[0][0])), vswr, formatImpedance(pt.InputImpedance[0]))
+		for _, v := range pt.Probes {
+			cells = append(cells, formatDB(db(v)))
+		}
+		t.add(cells...)
+	}
+	return t
 }

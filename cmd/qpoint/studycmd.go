@@ -162,6 +162,14 @@ func resolveStudy(path string, fl *studyFlags) (*studySetup, error) {
 	if err != nil {
 		return nil, err
 	}
+	return resolveStudyFor(c, fl)
+}
+
+// resolveStudyFor resolves the flags and the file's defaults for a loaded
+// circuit.
+func resolveStudyFor(c *circuit.Circuit, fl *studyFlags) (*studySetup, error) {
+	path := c.File
+	var err error
 	def := c.Analysis.Study
 	s := &studySetup{c: c}
 	// The file's defaults fill what the flags leave out, when the flags
@@ -320,7 +328,7 @@ func resolveStudy(path string, fl *studyFlags) (*studySetup, error) {
 	def2 := c.Analysis.Distortion
 	levelText := fl.level
 	if levelText != "" || def2.Set {
-		d, err := resolveDistortion(path, &distortionFlags{input: fl.input, output: fl.output, level: levelText,
+		d, err := resolveDistortionFor(c, &distortionFlags{input: fl.input, output: fl.output, level: levelText,
 			frequency: strconv.FormatFloat(firstOr(freqs, def2.FrequencyHz), 'g', -1, 64) + "Hz"})
 		if err != nil {
 			return nil, err
@@ -570,23 +578,7 @@ func writeStudyTable(w io.Writer, r *study.Result, cols []column, elapsed time.D
 	if failed > 0 {
 		fmt.Fprintf(w, "  ! %d steps could not be solved; their rows are blank\n", failed)
 	}
-	t := &table{title: "Study"}
-	for _, col := range cols {
-		t.header = append(t.header, col.title)
-	}
-	for i := range r.Steps {
-		st := &r.Steps[i]
-		var cells []string
-		for k, col := range cols {
-			if st.Err != nil && k >= axisCount(r) {
-				cells = append(cells, "failed")
-				continue
-			}
-			cells = append(cells, formatCell(col.get(st), col.unit))
-		}
-		t.add(cells...)
-	}
-	t.write(w)
+	studyTable(r, cols).write(w)
 	warned := map[string]bool{}
 	for i := range r.Steps {
 		for _, x := range r.Steps[i].Warnings {
@@ -626,4 +618,24 @@ func unitDelta(u string) string {
 		return "Kdelta"
 	}
 	return u
+}
+
+func studyTable(r *study.Result, cols []column) *table {
+	t := &table{title: "Study"}
+	for _, col := range cols {
+		t.header = append(t.header, col.title)
+	}
+	for i := range r.Steps {
+		st := &r.Steps[i]
+		var cells []string
+		for k, col := range cols {
+			if st.Err != nil && k >= axisCount(r) {
+				cells = append(cells, "failed")
+				continue
+			}
+			cells = append(cells, formatCell(col.get(st), col.unit))
+		}
+		t.add(cells...)
+	}
+	return t
 }

@@ -3,6 +3,7 @@ package main
 import (
 	"fmt"
 	"io"
+	"qpoint/plots/report"
 	"strings"
 	"unicode/utf8"
 )
@@ -54,4 +55,14 @@ func (t *table) write(w io.Writer) {
 	for _, r := range t.rows {
 		line(r)
 	}
+}
+
+// report converts the table for the HTML report: the first column holds
+// names, the others values.
+func (t *table) report() *report.Table {
+	rt := &report.Table{Caption: t.title, Header: t.header, Rows: t.rows}
+	for i := range t.header {
+		rt.Align = append(rt.Align, i > 0)
+	}
+	return rt
 }

@@ -1,0 +1,254 @@
+package main
+
+import (
+	"errors"
+	"fmt"
+	"io"
+	"math"
+	"os"
+	"strconv"
+
+	"github.com/spf13/cobra"
+
+	"qpoint/ac/measure"
+	"qpoint/bias/circuit"
+	"qpoint/bias/si"
+)
+
+type waveformFlags struct {
+	sampleRate  string
+	window      string
+	fundamental string
+	harmonics   int
+	asJSON      bool
+}
+
+func newHarmonicsCmd() *cobra.Command {
+	var fl waveformFlags
+	cmd := &cobra.Command{
+		Use:   "harmonics FILE.csv",
+		Short: "Harmonics, THD and SINAD of a waveform captured on an instrument",
+		Long: `harmonics reads a waveform you captured (a detector's output, a limiter's
+clipped sine, a mixer's IF) and measures its harmonic content: the
+fundamental frequency, the amplitude and phase of each harmonic, the total
+harmonic distortion and the ratio of the fundamental to all noise and
+distortion (SINAD).
+
+The file holds two columns, time in seconds and value in volts, or one
+value column with --sample-rate. Commas, semicolons (with decimal commas),
+tabs or spaces separate the columns; a first line of names is skipped and
+'#' starts a comment. Times must be uniformly spaced.
+
+The fundamental is the largest spectral peak above DC unless --fundamental
+gives it; it is then refined by a least-squares fit of all the harmonics,
+so the record need not hold a whole number of periods. Phases are those of
+a cosine at the first sample. Harmonics above half the sample rate are
+shown as absent, never folded back.
+
+Windows: blackman-harris (default; -92 dB sidelobes, needs 4 periods),
+hann (2 periods), flat-top (5 periods), rectangular (1 period).`,
+		Example: `  qpoint harmonics testdata/waveforms/clipped_sine.csv
+  qpoint harmonics capture.csv --harmonics 20 --json
+  qpoint harmonics ripple.csv --sample-rate 2MHz --fundamental 50kHz
+  qpoint harmonics short.csv --window hann`,
+		Args: exactWaveform,
+		RunE: func(cmd *cobra.Command, args []string) error {
+			return runWaveformHarmonics(cmd, args[0], &fl)
+		},
+	}
+	f := cmd.Flags()
+	f.StringVar(&fl.sampleRate, "sample-rate", "", "sample rate of a file with one value column, e.g. 1MHz")
+	f.StringVar(&fl.window, "window", "blackman-harris", "window: blackman-harris, hann, flat-top or rectangular")
+	f.StringVar(&fl.fundamental, "fundamental", "", "fundamental frequency, e.g. 10kHz (default: the largest spectral peak)")
+	f.IntVar(&fl.harmonics, "harmonics", measure.DefaultHarmonics, "highest harmonic order to report")
+	f.BoolVar(&fl.asJSON, "json", false, "print one JSON document (SI units) instead of the tables")
+	return cmd
+}
+
+// exactWaveform accepts exactly one argument, the waveform file.
+func exactWaveform(cmd *cobra.Command, args []string) error {
+	if len(args) != 1 {
+		return inputError(fmt.Errorf("%s needs exactly one waveform file, got %d arguments; e.g. qpoint %s testdata/waveforms/clipped_sine.csv", cmd.Name(), len(args), cmd.Name()))
+	}
+	return nil
+}
+
+func runWaveformHarmonics(cmd *cobra.Command, path string, fl *waveformFlags) error {
+	var opts measure.CSVOptions
+	if fl.sampleRate != "" {
+		v, err := circuit.ParseValue(fl.sampleRate, circuit.Frequency)
+		if err != nil {
+			return inputError(fmt.Errorf("flag --sample-rate: %w", err))
+		}
+		if !(v >= measure.MinSampleRateHz && v <= measure.MaxSampleRateHz) {
+			return inputError(fmt.Errorf("flag --sample-rate: %s; accepted: %s to %s", si.Format(v, "Hz", 4),
+				si.Format(measure.MinSampleRateHz, "Hz", 3), si.Format(measure.MaxSampleRateHz, "Hz", 3)))
+		}
+		opts.SampleRateHz = v
+	}
+	var s measure.Settings
+	win, err := measure.ParseWindow(fl.window)
+	if err != nil {
+		return inputError(fmt.Errorf("flag --window: %w", err))
+	}
+	s.Window = win
+	if fl.fundamental != "" {
+		v, err := circuit.ParseValue(fl.fundamental, circuit.Frequency)
+		if err != nil {
+			return inputError(fmt.Errorf("flag --fundamental: %w", err))
+		}
+		if !(v > 0) {
+			return inputError(fmt.Errorf("flag --fundamental: %s; accepted: a positive frequency, e.g. 10kHz", fl.fundamental))
+		}
+		s.FundamentalHz = v
+	}
+	if fl.harmonics < 1 || fl.harmonics > measure.MaxHarmonics {
+		return inputError(fmt.Errorf("flag --harmonics: %d; accepted: 1 to %d", fl.harmonics, measure.MaxHarmonics))
+	}
+	s.Harmonics = fl.harmonics
+
+	w, err := readWaveformFile(path, opts)
+	if err != nil {
+		return err
+	}
+	r, err := measure.Analyze(w, s)
+	var se *measure.SettingsError
+	switch {
+	case errors.As(err, &se):
+		return inputError(fmt.Errorf("%s: %w", path, err))
+	case err != nil:
+		return analysisError(fmt.Errorf("%s: %w", path, err))
+	}
+	out := cmd.OutOrStdout()
+	if fl.asJSON {
+		return writeJSON(out, waveformHarmonicsDocument(path, w, r))
+	}
+	writeWaveformHarmonics(out, path, w, r)
+	return nil
+}
+
+// readWaveformFile reads a waveform file; every failure is an input error,
+// placed as FILE:LINE:COL.
+func readWaveformFile(path string, opts measure.CSVOptions) (*measure.Waveform, error) {
+	inputs = append(inputs, path)
+	f, err := os.Open(path)
+	if err != nil {
+		return nil, inputError(fmt.Errorf("cannot read the waveform file: %w", err))
+	}
+	defer f.Close()
+	w, err := measure.ReadCSV(f, opts)
+	var pe *measure.ParseError
+	switch {
+	case errors.As(err, &pe):
+		msg := pe.Msg
+		if errors.Is(err, measure.ErrNoSampleRate) {
+			msg = "one value column and no sample rate; accepted: a time column before the values, or --sample-rate (e.g. --sample-rate 1MHz)"
+		}
+		return nil, inputError(fmt.Errorf("%s:%d:%d: %s", path, pe.Line, pe.Column, msg))
+	case err != nil:
+		return nil, inputError(fmt.Errorf("%s: %w", path, err))
+	}
+	return w, nil
+}
+
+func writeWaveformHarmonics(w io.Writer, path string, wf *measure.Waveform, r *measure.Result) {
+	fmt.Fprintf(w, "%s\n", path)
+	fmt.Fprintf(w, "  samples      %d at %s (%s from %s)\n", r.Samples, si.Format(r.SampleRateHz, "Hz", 6),
+		si.Format(wf.DurationS(), "s", 4), si.Format(wf.StartS, "s", 4))
+	how := "given"
+	if r.Searched {
+		how = "found by spectral search and fit"
+	}
+	fmt.Fprintf(w, "  fundamental  %s, %s; %.2f periods captured\n", si.Format(r.FundamentalHz, "Hz", 7), how, r.Periods)
+	fmt.Fprintf(w, "  window       %s\n", r.Window)
+
+	t := &table{title: "Harmonics", header: []string{"order", "frequency", "amplitude", "dBc", "phase °"}}
+	absent := 0
+	for _, h := range r.Harmonics {
+		order := strconv.Itoa(h.Order)
+		if h.Order == 0 {
+			t.add("DC", si.Format(0, "Hz", 4), si.Format(h.AmplitudeV, "V", 5), "", "")
+			continue
+		}
+		if !h.Present {
+			absent++
+			t.add(order, si.Format(h.FrequencyHz, "Hz", 6), "above fs/2", "", "")
+			continue
+		}
+		t.add(order, si.Format(h.FrequencyHz, "Hz", 6), si.Format(h.AmplitudeV, "V", 5),
+			waveformDB(h.DBc), strconv.FormatFloat(h.PhaseDeg, 'f', 2, 64))
+	}
+	t.write(w)
+	fmt.Fprintln(w)
+	last := len(r.Harmonics) - 1 - absent
+	if math.IsNaN(r.THDPercent) {
+		fmt.Fprintf(w, "  total harmonic distortion   — (no harmonic from the 2nd up lies below fs/2)\n")
+	} else {
+		fmt.Fprintf(w, "  total harmonic distortion   %s %% (%s dB), orders 2 to %d\n",
+			strconv.FormatFloat(r.THDPercent, 'g', 4, 64), waveformDB(r.THDdB), last)
+	}
+	fmt.Fprintf(w, "  SINAD                       %s dB\n", waveformDB(r.SINADdB))
+	fmt.Fprintf(w, "  noise and distortion        %s rms\n", si.Format(r.NoiseDistortionRMS, "V", 4))
+	fmt.Fprintf(w, "  %-27s %s rms", fmt.Sprintf("left after orders 0 to %d", last), si.Format(r.NoiseRMS, "V", 4))
+	if !math.IsNaN(r.NoiseDensity) {
+		fmt.Fprintf(w, "; floor %s/√Hz", si.Format(r.NoiseDensity, "V", 3))
+	}
+	fmt.Fprintln(w)
+	if absent > 0 {
+		fmt.Fprintf(w, "  orders %d to %d lie above half the sample rate (%s) and are not measured\n",
+			last+1, len(r.Harmonics)-1, si.Format(r.SampleRateHz/2, "Hz", 4))
+	}
+	fmt.Fprintln(w)
+}
+
+// waveformDB prints a level in dB with two decimals.
+func waveformDB(v float64) string {
+	switch {
+	case math.IsInf(v, -1):
+		return "-∞"
+	case math.IsNaN(v) || math.IsInf(v, 1):
+		return "—"
+	}
+	return strconv.FormatFloat(v, 'f', 2, 64)
+}
+
+type waveformHarmonicJSON struct {
+	Order     int    `json:"order"`
+	Frequency number `json:"frequency"`
+	Amplitude number `json:"amplitude"`
+	Phase     number `json:"phase"`
+	DBc       number `json:"dbc"`
+}
+
+type waveformHarmonicsJSON struct {
+	File                  string                 `json:"file"`
+	Samples               int                    `json:"samples"`
+	SampleRate            number                 `json:"sample_rate"`
+	StartTime             number                 `json:"start_time"`
+	Window                string                 `json:"window"`
+	Fundamental           number                 `json:"fundamental"`
+	FundamentalSearched   bool                   `json:"fundamental_searched"`
+	Periods               number                 `json:"periods"`
+	Harmonics             []waveformHarmonicJSON `json:"harmonics"`
+	THDPercent            number                 `json:"thd_percent"`
+	THDdB                 number                 `json:"thd_db"`
+	SINADdB               number                 `json:"sinad_db"`
+	NoiseAndDistortionRMS number                 `json:"noise_and_distortion_rms"`
+	NoiseRMS              number                 `json:"noise_rms"`
+	NoiseDensity          number                 `json:"noise_density"`
+}
+
+func waveformHarmonicsDocument(path string, w *measure.Waveform, r *measure.Result) *waveformHarmonicsJSON {
+	d := &waveformHarmonicsJSON{
+		File: path, Samples: r.Samples, SampleRate: number(r.SampleRateHz), StartTime: number(w.StartS),
+		Window: r.Window.String(), Fundamental: number(r.FundamentalHz), FundamentalSearched: r.Searched,
+		Periods: number(r.Periods), THDPercent: number(r.THDPercent), THDdB: number(r.THDdB),
+		SINADdB: number(r.SINADdB), NoiseAndDistortionRMS: number(r.NoiseDistortionRMS),
+		NoiseRMS: number(r.NoiseRMS), NoiseDensity: number(r.NoiseDensity),
+	}
+	for _, h := range r.Harmonics {
+		d.Harmonics = append(d.Harmonics, waveformHarmonicJSON{Order: h.Order, Frequency: number(h.FrequencyHz),
+			Amplitude: number(h.AmplitudeV), Phase: number(h.PhaseDeg), DBc: number(h.DBc)})
+	}
+	return d
+}

@@ -1,0 +1,297 @@
+package main
+
+import (
+	"bytes"
+	"fmt"
+	"io"
+	"math"
+	"math/cmplx"
+	"strings"
+
+	"github.com/spf13/cobra"
+
+	"qpoint/ac"
+	"qpoint/ac/study"
+	"qpoint/bias/circuit"
+	"qpoint/bias/si"
+	"qpoint/plots"
+	"qpoint/plots/report"
+	"qpoint/smallsignal"
+)
+
+func newReportCmd() *cobra.Command {
+	var outPath, temperature string
+	cmd := &cobra.Command{
+		Use:   "report FILE -o REPORT.html",
+		Short: "Write one self-contained HTML design report",
+		Long: `report runs every analysis the circuit file's defaults ask for — bias,
+small-signal response, distortion and the study — and writes one HTML page
+with the circuit summary, Q-point and small-signal tables, response figures
+(gain and phase, impedance, Smith chart, group delay), distortion tables and
+figures, the study's figures and every caution. The page carries its figures
+inline and fetches nothing: mail it, archive it, print it.`,
+		Example: `  qpoint report testdata/demo/detector.yaml -o detector.html
+  qpoint report mixer.yaml -o mixer-85C.html --temperature 85C`,
+		Args: exactFile,
+		RunE: func(cmd *cobra.Command, args []string) error {
+			if outPath == "" {
+				return inputError(fmt.Errorf("flag -o is missing: name the HTML file to write, e.g. -o report.html"))
+			}
+			c, err := loadCircuit(args[0])
+			if err != nil {
+				return err
+			}
+			doc, err := buildReport(c, temperature)
+			if err != nil {
+				return err
+			}
+			if err := writeFileAtomic(outPath, func(w io.Writer) error { return report.Write(w, doc) }); err != nil {
+				return err
+			}
+			fmt.Fprintf(cmd.OutOrStdout(), "report written to %s\n", outPath)
+			return nil
+		},
+	}
+	cmd.Flags().StringVarP(&outPath, "output", "o", "", "the HTML file to write")
+	cmd.Flags().StringVar(&temperature, "temperature", "", "circuit temperature, overriding the file's (e.g. 85C)")
+	return cmd
+}
+
+func svgOf(f *plots.Figure) (*report.Figure, error) {
+	var b bytes.Buffer
+	if err := plots.Write(&b, "svg", f); err != nil {
+		return nil, err
+	}
+	return &report.Figure{SVG: b.Bytes()}, nil
+}
+
+// buildReport runs the analyses of the file's defaults and lays out the
+// report.
+func buildReport(c *circuit.Circuit, temperature string) (*report.Document, error) {
+	p, err := solveWithTemperature(c, temperature)
+	if err != nil {
+		return nil, err
+	}
+	doc := &report.Document{
+		Title:    c.Name,
+		Subtitle: fmt.Sprintf("%s · %.2f °C · bias by %s in %s", c.File, celsius(p.TemperatureK), p.Stats.Strategy, plural(p.Stats.Iterations, "iteration")),
+		Footer: []string{
+			"Results are model estimates from the diode models in the circuit file. Confirm them by measurement before relying on them; the parts' ratings and your local practice govern.",
+			"Written by qpoint.",
+		},
+	}
+	for _, w := range p.Warnings {
+		doc.Cautions = append(doc.Cautions, w.Part+": "+w.Message)
+	}
+	for _, d := range p.Diodes {
+		doc.Cards = append(doc.Cards, report.Card{Label: d.Name + " bias", Value: si.Format(d.Current, "A", 3),
+			Detail: fmt.Sprintf("r_d %s, C_j %s", si.Format(d.DynamicResistance, "Ω", 3), si.Format(d.JunctionCapacitance, "F", 3))})
+	}
+
+	// Circuit summary.
+	parts := &table{title: "Parts", header: []string{"name", "type", "terminals", "value / model"}}
+	for _, pt := range c.Parts {
+		val := pt.Model
+		if pt.Kind != circuit.Diode {
+			val = si.Format(pt.Value, map[circuit.Kind]string{circuit.Resistor: "Ω", circuit.Capacitor: "F", circuit.Inductor: "H", circuit.VoltageSource: "V", circuit.CurrentSource: "A"}[pt.Kind], 4)
+		}
+		parts.add(pt.Name, strings.ReplaceAll(pt.Kind.String(), "_", " "), pt.Nodes[0]+" → "+pt.Nodes[1], val)
+	}
+	models := &table{title: "Diode models", header: []string{"model", "I_S", "n", "R_S", "C_j0", "V_bi", "m", "τ_T", "breakdown"}}
+	for _, name := range c.ModelOrder {
+		m := c.Models[name].Params
+		bv := "none"
+		if m.BreakdownVoltage > 0 {
+			bv = si.Format(m.BreakdownVoltage, "V", 3) + " at " + si.Format(m.BreakdownCurrent, "A", 3)
+		}
+		models.add(name, si.Format(m.SaturationCurrent, "A", 3), fmt.Sprintf("%.3g", m.Ideality), si.Format(m.SeriesResistance, "Ω", 3),
+			si.Format(m.ZeroBiasCapacitance, "F", 3), si.Format(m.BuiltInPotential, "V", 3), fmt.Sprintf("%.3g", m.Grading), si.Format(m.TransitTime, "s", 3), bv)
+	}
+	ports := &table{title: "Ports", header: []string{"port", "node", "return", "impedance", "coupling"}}
+	for _, pt := range c.Ports {
+		coupling := "DC"
+		if pt.ACCoupled {
+			coupling = "AC (DC-blocked)"
+		}
+		ports.add(pt.Name, pt.Node, pt.Return, si.Format(pt.Impedance, "Ω", 4), coupling)
+	}
+	sec := report.Section{ID: "circuit", Title: "Circuit", Intro: fmt.Sprintf("%d parts, %d diode models, %d ports.", len(c.Parts), len(c.Models), len(c.Ports))}
+	for _, t := range []*table{parts, models, ports} {
+		sec.Blocks = append(sec.Blocks, report.Block{Table: t.report()})
+	}
+	doc.Sections = append(doc.Sections, sec)
+
+	// Operating point.
+	sec = report.Section{ID: "bias", Title: "Operating point", Intro: fmt.Sprintf("Solved by %s in %s; largest current imbalance %s.",
+		p.Stats.Strategy, plural(p.Stats.Iterations, "iteration"), si.Format(p.Stats.Residual, "A", 2))}
+	for _, t := range biasTables(p) {
+		sec.Blocks = append(sec.Blocks, report.Block{Table: t.report()})
+	}
+	doc.Sections = append(doc.Sections, sec)
+
+	nw, err := smallsignal.New(p)
+	if err != nil {
+		return nil, analysisError(err)
+	}
+	ssm := &table{title: "Small-signal model at the Q point", header: []string{"diode", "g_d", "r_d", "R_S", "C_j", "C_d", "g2", "g3", "c2", "c3"}}
+	for _, d := range nw.Diodes {
+		ssm.add(d.Name, si.Format(d.G1, "S", 4), si.Format(1/d.G1, "Ω", 4), si.Format(d.SeriesResistance, "Ω", 3), si.Format(d.JunctionCapacitance, "F", 4),
+			si.Format(d.DiffusionCapacitance, "F", 4), si.Format(d.G2, "A/V²", 3), si.Format(d.G3, "A/V³", 3), si.Format(d.C2, "F/V", 3), si.Format(d.C3, "F/V²", 3))
+	}
+	doc.Sections = append(doc.Sections, report.Section{ID: "model", Title: "Small-signal model",
+		Intro:  "Each diode is its junction conductance g_d in parallel with C_j + C_d, behind R_S. g2, g3, c2, c3 are the Taylor coefficients of junction current and charge that set its distortion.",
+		Blocks: []report.Block{{Table: ssm.report()}}})
+
+	if len(c.Ports) == 0 {
+		doc.Sections = append(doc.Sections, report.Section{ID: "signal", Title: "Signal analyses", Intro: "The circuit has no ports, so no response, distortion or study is shown."})
+		return doc, nil
+	}
+
+	// Response.
+	grid, err := sweepGrid(c, &responseFlags{})
+	if err != nil {
+		return nil, err
+	}
+	r, err := ac.Run(nw, grid, ac.Settings{})
+	if err != nil {
+		return nil, analysisError(err)
+	}
+	sec = report.Section{ID: "response", Title: "Small-signal response", Intro: fmt.Sprintf("%d points from %s to %s; every port terminated in its reference impedance.",
+		len(r.Points), si.Format(grid[0], "Hz", 4), si.Format(grid[len(grid)-1], "Hz", 4))}
+	for _, f := range plots.ResponseFigures(r) {
+		fig, err := svgOf(f)
+		if err != nil {
+			return nil, analysisError(err)
+		}
+		sec.Blocks = append(sec.Blocks, report.Block{Figure: fig})
+	}
+	sec.Blocks = append(sec.Blocks, report.Block{Table: responseTable(r, 9).report()})
+	doc.Sections = append(doc.Sections, sec)
+
+	// Distortion.
+	ds, err := resolveDistortionFor(c, &distortionFlags{temperature: temperature})
+	if err == nil {
+		ds.c, ds.p, ds.nw = c, p, nw
+		sec, cards, err := distortionSection(ds)
+		if err != nil {
+			return nil, err
+		}
+		doc.Sections = append(doc.Sections, sec)
+		doc.Cards = append(doc.Cards, cards...)
+	}
+
+	// Study.
+	if c.Analysis.Study.Set {
+		sec, err := studySection(c)
+		if err != nil {
+			return nil, err
+		}
+		doc.Sections = append(doc.Sections, sec)
+	}
+	return doc, nil
+}
+
+func distortionSection(s *distortionSetup) (report.Section, []report.Card, error) {
+	sec := report.Section{ID: "distortion", Title: "Distortion",
+		Intro: fmt.Sprintf("Port %s driven at %s, %.1f dBm available; output at %s.", s.inName, si.Format(s.drive.FrequencyHz, "Hz", 5), s.levelDBm, s.outName)}
+	var cards []report.Card
+	est, err := ac.Volterra(s.nw, s.drive)
+	if err != nil {
+		return sec, nil, analysisError(err)
+	}
+	t, notes := estimateTable(est)
+	sec.Blocks = append(sec.Blocks, report.Block{Table: t.report()})
+	for _, n := range notes {
+		sec.Blocks = append(sec.Blocks, report.Block{Note: n})
+	}
+	sec.Blocks = append(sec.Blocks, report.Block{Table: contributionTable(est).report()})
+	one := s.drive
+	one.SecondToneHz = 0
+	oneEst := est
+	if s.drive.SecondToneHz != 0 {
+		if oneEst, err = ac.Volterra(s.nw, one); err != nil {
+			return sec, nil, analysisError(err)
+		}
+	}
+	settings := ac.SteadySettings{Harmonics: 5}
+	st, err := ac.SteadyState(s.nw, one, settings)
+	if err != nil {
+		sec.Blocks = append(sec.Blocks, report.Block{Note: "The waveform solve did not converge at this level: " + err.Error()})
+		return sec, cards, nil
+	}
+	wt, note := waveformTable(st)
+	sec.Blocks = append(sec.Blocks, report.Block{Table: wt.report()}, report.Block{Note: note})
+	limit, lerr := ac.ValidityLimit(s.nw, one, s.levelDBm-40, s.levelDBm+40, 0.5, settings)
+	if lerr != nil {
+		limit = nil
+	}
+	ct, cnote := comparisonTable(ac.Compare(oneEst, st), limit)
+	sec.Blocks = append(sec.Blocks, report.Block{Table: ct.report()})
+	if cnote != "" {
+		sec.Blocks = append(sec.Blocks, report.Block{Note: cnote})
+	}
+	// A level sweep around the chosen level for the figures.
+	var levels []float64
+	for l := s.levelDBm - 30; l <= s.levelDBm+20+1e-9; l += 2 {
+		levels = append(levels, l)
+	}
+	sweep, _ := ac.LevelSweep(s.nw, one, levels, settings, nil)
+	comp, compressed := 0.0, false
+	if len(sweep) > 1 {
+		comp, compressed = ac.Compression(sweep, cmplx.Abs(oneEst.Fundamental)/oneEst.Drive.EMF)
+	}
+	for _, f := range distortionFigures(oneEst, st, sweep, comp, compressed) {
+		fig, err := svgOf(f)
+		if err != nil {
+			return sec, nil, analysisError(err)
+		}
+		sec.Blocks = append(sec.Blocks, report.Block{Figure: fig})
+	}
+	if !est.Balanced(ac.HD2) {
+		cards = append(cards, report.Card{Label: "second harmonic", Value: fmt.Sprintf("%.1f dBc", est.HD2dBc()), Detail: fmt.Sprintf("at %.0f dBm, %s", s.levelDBm, si.Format(s.drive.FrequencyHz, "Hz", 4))})
+	}
+	if limit != nil {
+		cards = append(cards, report.Card{Label: "small-signal limit", Value: fmt.Sprintf("%.1f dBm", limit.LevelDBm), Detail: "estimates within 0.5 dB of the waveform"})
+	}
+	if compressed {
+		cards = append(cards, report.Card{Label: "1 dB compression", Value: fmt.Sprintf("%.1f dBm", comp), Detail: "input, from the waveform"})
+	}
+	return sec, cards, nil
+}
+
+func studySection(c *circuit.Circuit) (report.Section, error) {
+	fl := &studyFlags{}
+	s, err := resolveStudyFor(c, fl)
+	sec := report.Section{ID: "study", Title: "Study"}
+	if err != nil {
+		sec.Intro = "The file's study could not be set up: " + err.Error()
+		return sec, nil
+	}
+	r, err := study.Run(c, s.settings)
+	if err != nil {
+		return sec, analysisError(err)
+	}
+	sec.Intro = fmt.Sprintf("%s from %s to %s in %d steps (%d Newton iterations with continuation).", r.Settings.Axis.Vary.Text,
+		formatCell(r.Settings.Axis.Values[0], r.Settings.Axis.Vary.Quantity.Unit()), formatCell(r.Settings.Axis.Values[len(r.Settings.Axis.Values)-1], r.Settings.Axis.Vary.Quantity.Unit()),
+		len(r.Steps), r.Newton)
+	for _, f := range studyFigures(r, "") {
+		fig, err := svgOf(f)
+		if err != nil {
+			return sec, analysisError(err)
+		}
+		sec.Blocks = append(sec.Blocks, report.Block{Figure: fig})
+	}
+	cols := studyColumns(r)
+	t := studyTable(r, cols)
+	// Keep the report's table readable: at most a dozen rows.
+	if n := len(t.rows); n > 12 {
+		var rows [][]string
+		for k := 0; k < 12; k++ {
+			rows = append(rows, t.rows[int(math.Round(float64(k)*float64(n-1)/11))])
+		}
+		t.rows = rows
+		t.title = fmt.Sprintf("Study (12 of %d steps)", n)
+	}
+	sec.Blocks = append(sec.Blocks, report.Block{Table: t.report()})
+	return sec, nil
+}
