@@ -376,6 +376,7 @@ func (sh *shooter) solve(x0, p []float64, steps, maxIter int) (*period, error) {
 	x0 = append([]float64(nil), x0...)
 	p = append([]float64(nil), p...)
 	var lastRes float64
+	prevStep := math.Inf(1)
 	for it := 1; it <= maxIter; it++ {
 		tr, err := sh.integrate(x0, p, steps, true)
 		if err != nil {
@@ -416,21 +417,31 @@ func (sh *shooter) solve(x0, p []float64, steps, maxIter int) (*period, error) {
 		if err := lu.SolveVecTo(dz, false, mat.NewVecDense(nz, r)); err != nil {
 			return nil, fmt.Errorf("%w: the period map's Jacobian is singular", ErrNoSteadyState)
 		}
-		// Converged when the voltages move by less than 1e-9 relative;
-		// branch currents follow from them (and can carry the rounding of
-		// a milliohm part).
+		// Converged when the voltages move by less than 1e-9 relative (or
+		// 1e-12 of the largest voltage, the rounding level); branch
+		// currents follow from them and can carry the rounding of a
+		// milliohm part. Newton converges quadratically until rounding
+		// stops it: a step that no longer shrinks while the residual is at
+		// the rounding level is converged too.
+		vmax := 0.0
+		for i := 0; i < sh.nw.NodeUnknowns; i++ {
+			vmax = math.Max(vmax, math.Abs(x0[i]))
+		}
+		abs := 1e-12 * math.Max(vmax, 1e-3)
 		step := 0.0
 		for i := 0; i < n; i++ {
 			x0[i] -= dz.AtVec(i)
 			if i < sh.nw.NodeUnknowns {
-				step = math.Max(step, math.Abs(dz.AtVec(i))/(1e-9*math.Abs(x0[i])+1e-12))
+				step = math.Max(step, math.Abs(dz.AtVec(i))/(1e-9*math.Abs(x0[i])+abs))
 			}
 		}
 		for k := range sh.ports {
 			p[k] -= dz.AtVec(n + k)
-			step = math.Max(step, math.Abs(dz.AtVec(n+k))/(1e-9*math.Abs(p[k])+1e-12))
+			step = math.Max(step, math.Abs(dz.AtVec(n+k))/(1e-9*math.Abs(p[k])+abs))
 		}
-		if step <= 1 {
+		stalled := lastRes <= 1e-10 && step < 1e3 && step > prevStep/4
+		prevStep = step
+		if step <= 1 || stalled {
 			// The update is below 1e-9 relative: integrate the final
 			// period once more for the samples.
 			final, err := sh.integrate(x0, p, steps, false)

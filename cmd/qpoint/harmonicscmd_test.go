@@ -185,3 +185,29 @@ func TestHarmonicsBadInput(t *testing.T) {
 		}
 	}
 }
+
+// TestHarmonicsDecimalComma reads semicolons with decimal commas and checks
+// that phases refer to the first sample (t = 1 ms in this file): the file's
+// sin(2π 62.5 kHz (t - 1 ms) + 0.3) is cos(... + 0.3 - π/2), -72.81°.
+func TestHarmonicsDecimalComma(t *testing.T) {
+	out, errs, code := runHarmonicsCLI(t, "--json", filepath.Join(waveformDir, "semicolon_comma.csv"))
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	var doc struct {
+		StartTime   float64 `json:"start_time"`
+		Fundamental float64 `json:"fundamental"`
+		Harmonics   []struct {
+			Amplitude float64 `json:"amplitude"`
+			Phase     float64 `json:"phase"`
+		} `json:"harmonics"`
+	}
+	if err := json.Unmarshal([]byte(out), &doc); err != nil {
+		t.Fatal(err)
+	}
+	wantPhase := (0.3 - math.Pi/2) * 180 / math.Pi
+	h := doc.Harmonics[1]
+	if math.Abs(doc.Fundamental/62.5e3-1) > 1e-6 || math.Abs(h.Amplitude-1) > 1e-5 || math.Abs(h.Phase-wantPhase) > 0.01 || doc.StartTime != 1e-3 {
+		t.Errorf("f0 %g Hz, %g V at %g° from t0 = %g s; want 62.5 kHz, 1 V at %.2f° from 1 ms", doc.Fundamental, h.Amplitude, h.Phase, doc.StartTime, wantPhase)
+	}
+}

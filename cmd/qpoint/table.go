@@ -62,7 +62,23 @@ func (t *table) write(w io.Writer) {
 func (t *table) report() *report.Table {
 	rt := &report.Table{Caption: t.title, Header: t.header, Rows: t.rows}
 	for i := range t.header {
-		rt.Align = append(rt.Align, i > 0)
+		rt.Align = append(rt.Align, i > 0 && numericColumn(t.rows, i))
 	}
 	return rt
+}
+
+// numericColumn reports whether most cells of column i read as numbers.
+func numericColumn(rows [][]string, i int) bool {
+	num, all := 0, 0
+	for _, r := range rows {
+		if i >= len(r) || r[i] == "" {
+			continue
+		}
+		all++
+		c := strings.TrimLeft(r[i], "+-−<> ")
+		if c != "" && (c[0] >= '0' && c[0] <= '9' || c[0] == '.') {
+			num++
+		}
+	}
+	return all > 0 && 2*num >= all
 }

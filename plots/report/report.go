@@ -146,7 +146,7 @@ footer { max-width:980px; margin:0 auto; padding:1rem; color:var(--muted); font-
 {{if .Subtitle}}<p>{{.Subtitle}}</p>{{end}}
 </header>
 <main>
-{{if .Sections}}<nav>{{range .Sections}}<a href="#{{.ID}}">{{.Title}}</a>{{end}}</nav>{{end}}
+{{if .Sections}}<nav>{{range .Sections}}<a href="#{{.ID}}">{{.Title}}</a> {{end}}</nav>{{end}}
 {{if .Cards}}<div class="cards">{{range .Cards}}<div class="card"><div class="label">{{.Label}}</div><div class="value">{{.Value}}</div>{{if .Detail}}<div class="detail">{{.Detail}}</div>{{end}}</div>{{end}}</div>{{end}}
 {{if .Cautions}}<div class="cautions"><h2>Cautions</h2><ul>{{range .Cautions}}<li>{{.}}</li>{{end}}</ul></div>{{end}}
 {{range .Sections}}<section id="{{.ID}}">
