@@ -6,13 +6,14 @@ import (
 	"io"
 	"math"
 	"os"
+	"qpoint/ac"
+	"qpoint/bias/si"
 	"strconv"
 
 	"github.com/spf13/cobra"
 
 	"qpoint/ac/measure"
 	"qpoint/bias/circuit"
-	"qpoint/bias/si"
 )
 
 type waveformFlags struct {
@@ -21,6 +22,8 @@ type waveformFlags struct {
 	fundamental string
 	harmonics   int
 	asJSON      bool
+	// Prediction to compare with: a circuit file and its drive.
+	circuitPath, input, output, level string
 }
 
 func newHarmonicsCmd() *cobra.Command {
@@ -45,12 +48,17 @@ so the record need not hold a whole number of periods. Phases are those of
 a cosine at the first sample. Harmonics above half the sample rate are
 shown as absent, never folded back.
 
+With --circuit the capture is set beside the prediction: the circuit is
+solved to periodic steady state at the measured fundamental, driven at the
+given level, and its output's harmonics are compared order by order.
+
 Windows: blackman-harris (default; -92 dB sidelobes, needs 4 periods),
 hann (2 periods), flat-top (5 periods), rectangular (1 period).`,
 		Example: `  qpoint harmonics testdata/waveforms/clipped_sine.csv
   qpoint harmonics capture.csv --harmonics 20 --json
   qpoint harmonics ripple.csv --sample-rate 2MHz --fundamental 50kHz
-  qpoint harmonics short.csv --window hann`,
+  qpoint harmonics short.csv --window hann
+  qpoint harmonics video.csv --circuit detector.yaml --level -20dBm`,
 		Args: exactWaveform,
 		RunE: func(cmd *cobra.Command, args []string) error {
 			return runWaveformHarmonics(cmd, args[0], &fl)
@@ -62,6 +70,10 @@ hann (2 periods), flat-top (5 periods), rectangular (1 period).`,
 	f.StringVar(&fl.fundamental, "fundamental", "", "fundamental frequency, e.g. 10kHz (default: the largest spectral peak)")
 	f.IntVar(&fl.harmonics, "harmonics", measure.DefaultHarmonics, "highest harmonic order to report")
 	f.BoolVar(&fl.asJSON, "json", false, "print one JSON document (SI units) instead of the tables")
+	f.StringVar(&fl.circuitPath, "circuit", "", "compare with the waveform this circuit file predicts at the measured fundamental")
+	f.StringVar(&fl.input, "input", "", "with --circuit: the input port (default: the file's, else the first)")
+	f.StringVar(&fl.output, "output", "", "with --circuit: the output port or node that was captured (default: the file's)")
+	f.StringVar(&fl.level, "level", "", "with --circuit: the drive level, e.g. -20dBm (default: the file's)")
 	return cmd
 }
 
@@ -119,12 +131,72 @@ func runWaveformHarmonics(cmd *cobra.Command, path string, fl *waveformFlags) er
 	case err != nil:
 		return analysisError(fmt.Errorf("%s: %w", path, err))
 	}
+	var pred *ac.Steady
+	if fl.circuitPath != "" {
+		k := min(fl.harmonics, 25)
+		if pred, err = predictHarmonics(fl, r.FundamentalHz, k); err != nil {
+			return err
+		}
+	}
 	out := cmd.OutOrStdout()
 	if fl.asJSON {
-		return writeJSON(out, waveformHarmonicsDocument(path, w, r))
+		doc := waveformHarmonicsDocument(path, w, r)
+		if pred != nil {
+			doc.Prediction = waveformJSONOf(pred)
+		}
+		return writeJSON(out, doc)
 	}
 	writeWaveformHarmonics(out, path, w, r)
+	if pred != nil {
+		writePredictionComparison(out, fl.circuitPath, r, pred)
+	}
 	return nil
+}
+
+// predictHarmonics solves the circuit's steady state at the measured
+// fundamental with the flags' (or the file's) drive.
+func predictHarmonics(fl *waveformFlags, fundamentalHz float64, k int) (*ac.Steady, error) {
+	ds, err := resolveDistortion(fl.circuitPath, &distortionFlags{input: fl.input, output: fl.output, level: fl.level,
+		frequency: strconv.FormatFloat(fundamentalHz, 'g', -1, 64) + "Hz"})
+	if err != nil {
+		return nil, err
+	}
+	d := ds.drive
+	d.SecondToneHz = 0
+	st, err := ac.SteadyState(ds.nw, d, ac.SteadySettings{Harmonics: k, Samples: max(255, 8*k+1)})
+	if err != nil {
+		return nil, analysisError(fmt.Errorf("prediction from %s at %s: %w", fl.circuitPath, si.Format(fundamentalHz, "Hz", 6), err))
+	}
+	return st, nil
+}
+
+// writePredictionComparison sets measured harmonics beside the predicted
+// ones, each relative to its own fundamental.
+func writePredictionComparison(w io.Writer, circuitPath string, r *measure.Result, p *ac.Steady) {
+	t := &table{title: "Measured beside predicted (" + circuitPath + ")", header: []string{"order", "measured", "predicted", "measured dBc", "predicted dBc", "difference"}}
+	mf, pf := 0.0, p.Output[1].Amplitude
+	for _, h := range r.Harmonics {
+		if h.Order == 1 {
+			mf = h.AmplitudeV
+		}
+	}
+	for _, h := range r.Harmonics {
+		if h.Order < 1 || h.Order >= len(p.Output) || !h.Present {
+			continue
+		}
+		pa := p.Output[h.Order].Amplitude
+		md, pd := 20*math.Log10(h.AmplitudeV/mf), 20*math.Log10(pa/pf)
+		diff := fmt.Sprintf("%+.2f dB", md-pd)
+		if md < -150 || pd < -150 {
+			diff = "—"
+		}
+		if h.Order == 1 {
+			diff = fmt.Sprintf("%+.2f dB", 20*math.Log10(h.AmplitudeV/pa))
+		}
+		t.add(strconv.Itoa(h.Order), si.Format(h.AmplitudeV, "V", 4), si.Format(pa, "V", 4), waveDBc(md), waveDBc(pd), diff)
+	}
+	t.write(w)
+	fmt.Fprintf(w, "  the fundamental's row compares absolute amplitudes; the others compare levels relative to each fundamental\n")
 }
 
 // readWaveformFile reads a waveform file; every failure is an input error,
@@ -236,6 +308,7 @@ type waveformHarmonicsJSON struct {
 	NoiseAndDistortionRMS number                 `json:"noise_and_distortion_rms"`
 	NoiseRMS              number                 `json:"noise_rms"`
 	NoiseDensity          number                 `json:"noise_density"`
+	Prediction            *waveformJSON          `json:"prediction,omitempty"`
 }
 
 func waveformHarmonicsDocument(path string, w *measure.Waveform, r *measure.Result) *waveformHarmonicsJSON {

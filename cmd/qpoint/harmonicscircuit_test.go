@@ -1,0 +1,62 @@
+package main
+
+import (
+	"fmt"
+	"math"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+
+	"qpoint/ac"
+	"qpoint/bias"
+	"qpoint/bias/circuit"
+	"qpoint/smallsignal"
+)
+
+// TestHarmonicsAgainstCircuit: a capture synthesised from the limiter's
+// own predicted waveform (100 MHz, 0 dBm) compares with --circuit to
+// 0.00 dB on every harmonic above the floor.
+func TestHarmonicsAgainstCircuit(t *testing.T) {
+	lim := filepath.Join(demoDir, "limiter.yaml")
+	c, err := circuit.Load(lim)
+	if err != nil {
+		t.Fatal(err)
+	}
+	p, err := bias.Solve(c, bias.Settings{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	nw, err := smallsignal.New(p)
+	if err != nil {
+		t.Fatal(err)
+	}
+	st, err := ac.SteadyState(nw, ac.Drive{Input: 0, Output: ac.Output{Port: 1}, FrequencyHz: 100e6, EMF: ac.DBmToEMF(0, 50)}, ac.SteadySettings{Harmonics: 9})
+	if err != nil {
+		t.Fatal(err)
+	}
+	var b strings.Builder
+	b.WriteString("time,value\n")
+	for i := 0; i < 4000; i++ {
+		tt := float64(i) / 100e6 / 37.3
+		v := st.Output[0].Amplitude
+		for _, h := range st.Output[1:] {
+			v += h.Amplitude * math.Cos(2*math.Pi*float64(h.Order)*100e6*tt+h.PhaseDeg*math.Pi/180)
+		}
+		fmt.Fprintf(&b, "%.12e,%.12e\n", tt, v)
+	}
+	path := filepath.Join(t.TempDir(), "capture.csv")
+	if err := os.WriteFile(path, []byte(b.String()), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	out, errs, code := runCLI(t, "harmonics", path, "--circuit", lim, "--level", "0dBm")
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	for _, order := range []string{"\n  1 ", "\n  3 ", "\n  5 "} {
+		i := strings.LastIndex(out, order)
+		if i < 0 || !strings.Contains(strings.SplitN(out[i+1:], "\n", 2)[0], "0.00 dB") {
+			t.Errorf("order%s: no 0.00 dB difference in\n%s", strings.TrimSpace(order), out)
+		}
+	}
+}
