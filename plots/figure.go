@@ -23,6 +23,9 @@ type Figure struct {
 	Title, Note string
 	// Key lists the traces, laid out in rows under the title.
 	Key []KeyEntry
+	// Scale, when not nil, is the colour scale of a colour map, drawn
+	// beneath the key.
+	Scale *ColourScale
 	// Panels are drawn top to bottom with equal data areas.
 	Panels []*plot.Plot
 	// Width and Height are the size Write renders at.
@@ -68,6 +71,10 @@ func (f *Figure) Draw(c draw.Canvas) {
 	if len(f.Key) > 0 {
 		top -= vg.Points(6)
 		top = f.drawKey(c, top)
+	}
+	if f.Scale != nil {
+		top -= vg.Points(6)
+		top = f.Scale.draw(c, top)
 	}
 	top -= vg.Points(6)
 	body := c

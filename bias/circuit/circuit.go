@@ -77,6 +77,12 @@ type Port struct {
 	// ACCoupled keeps the port out of the DC solve (`coupling: ac`).
 	ACCoupled bool
 	Pos       Pos
+	// NoiseTemperatureK is the temperature of the reference resistance as
+	// a noise source (`noise_temperature`), when NoiseTemperatureSet;
+	// otherwise the standard T0 = 290 K applies. Zero is a noiseless
+	// termination.
+	NoiseTemperatureK   float64
+	NoiseTemperatureSet bool
 }
 
 // Level is a signal level: the available power of a port's generator in dBm,

@@ -204,7 +204,7 @@ func TestParseInline(t *testing.T) {
 		{"duplicate top key", "parts:\n" + rc + "parts:\n" + rc, []want{{"3:1", "key `parts` appears twice in the circuit file, first at line 1"}}},
 		{"alias in value", "x: &v 1k\nparts:\n  - {type: resistor, name: R1, between: [a, gnd], value: *v}\n",
 			[]want{{"1:4", "anchor `&v`"}, {"3:58", "alias `*v`"}}},
-		{"syntax error without line", "parts: \"\x01\"\n", []want{{"1:1", "not valid YAML"}}},
+		{"control character", "parts: \"\x01\"\n", []want{{"1:9", "control character U+0001"}}},
 		{"tab indentation", "parts:\n\t- {type: resistor}\n", []want{{"2:1", "not valid YAML"}}},
 		{"unknown alias", "parts: *nothing\n", []want{{"1:1", "not valid YAML: unknown anchor"}}},
 		{"ac port floats node", "parts:\n" + rc + "  - {type: capacitor, name: C1, between: [a, b], value: 1p}\nports:\n  - {name: p, node: b, impedance: 50, coupling: ac}\n",
@@ -497,5 +497,47 @@ func TestErrorCap(t *testing.T) {
 	}
 	if lines := strings.Count(err.Error(), "\n") + 1; lines != MaxErrors+1 {
 		t.Errorf("error text has %d lines, want %d", lines, MaxErrors+1)
+	}
+}
+
+// TestNoiseKeys reads the flicker-noise keys of a diode model and a port's
+// noise temperature, with their defaults.
+func TestNoiseKeys(t *testing.T) {
+	data := `
+diode_models:
+  plain: {saturation_current: 1n}
+  given: {saturation_current: 1n, flicker_coefficient: 2e-12}
+  both:  {saturation_current: 1n, flicker_coefficient: 2e-12, flicker_exponent: 1.3}
+parts:
+  - {type: diode, name: D1, anode: a, cathode: gnd, model: plain}
+  - {type: diode, name: D2, anode: a, cathode: gnd, model: given}
+  - {type: diode, name: D3, anode: a, cathode: gnd, model: both}
+ports:
+  - {name: antenna, node: a, impedance: 50, noise_temperature: 50K}
+  - {name: load,    node: a, impedance: 50, noise_temperature: 0K}
+  - {name: warm,    node: a, impedance: 50, noise_temperature: 85C}
+  - {name: plain,   node: a, impedance: 50}
+`
+	c, err := Parse("n.yaml", []byte(data))
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, tt := range []struct {
+		model  string
+		k, exp float64
+	}{{"plain", 0, 0}, {"given", 2e-12, 1}, {"both", 2e-12, 1.3}} {
+		p := c.Models[tt.model].Params
+		if p.FlickerCoefficient != tt.k || p.FlickerExponent != tt.exp {
+			t.Errorf("model %s: flicker %g, exponent %g; want %g, %g", tt.model, p.FlickerCoefficient, p.FlickerExponent, tt.k, tt.exp)
+		}
+	}
+	for i, want := range []struct {
+		k   float64
+		set bool
+	}{{50, true}, {0, true}, {358.15, true}, {0, false}} {
+		p := c.Ports[i]
+		if p.NoiseTemperatureK != want.k || p.NoiseTemperatureSet != want.set {
+			t.Errorf("port %s: noise temperature %g K (set %v), want %g K (set %v)", p.Name, p.NoiseTemperatureK, p.NoiseTemperatureSet, want.k, want.set)
+		}
 	}
 }

@@ -24,7 +24,13 @@ var (
 		"a band-gap energy above 0.1 eV and below 10 eV (silicon is about 1.1 eV)"}
 	breakdownRule = rule{func(v float64) bool { return v > 0 }, "not above zero",
 		"the size of the reverse knee as a positive number, e.g. 3.8V for a knee at -3.8 V"}
-	anyFinite = rule{func(float64) bool { return true }, "", ""}
+	anyFinite           = rule{func(float64) bool { return true }, "", ""}
+	flickerExponentRule = rule{func(v float64) bool { return v > 0 && v <= 4 }, "outside 0 to 4",
+		"a flicker exponent above 0 and at most 4 (1 is usual: the flicker density grows with the current)"}
+	// The exponent is raised to T/T0: beyond a few tens even a modest
+	// temperature change would carry I_S out of the float64 range.
+	exponentRule = rule{func(v float64) bool { return v >= -20 && v <= 20 }, "outside -20 to 20",
+		"a temperature exponent from -20 to 20 (about 3 for a pn junction, 2 for a Schottky barrier)"}
 )
 
 // modelKeys lists the numeric keys of a diode model in the order the format
@@ -40,8 +46,10 @@ var modelKeys = []modelKey{
 	{"breakdown_voltage", Voltage, breakdownRule, func(p *diode.Params) *float64 { return &p.BreakdownVoltage }},
 	{"breakdown_current", Current, positive, func(p *diode.Params) *float64 { return &p.BreakdownCurrent }},
 	{"gap_energy", Energy, gapRule, func(p *diode.Params) *float64 { return &p.GapEnergy }},
-	{"saturation_temperature_exponent", Dimensionless, anyFinite, func(p *diode.Params) *float64 { return &p.SaturationExponent }},
+	{"saturation_temperature_exponent", Dimensionless, exponentRule, func(p *diode.Params) *float64 { return &p.SaturationExponent }},
 	{"measured_at", Temperature, positive, func(p *diode.Params) *float64 { return &p.MeasuredAtK }},
+	{"flicker_coefficient", Dimensionless, nonNegative, func(p *diode.Params) *float64 { return &p.FlickerCoefficient }},
+	{"flicker_exponent", Dimensionless, flickerExponentRule, func(p *diode.Params) *float64 { return &p.FlickerExponent }},
 }
 
 // ratingKeys are the keys of a model's `ratings`.
@@ -58,6 +66,10 @@ var ratingKeys = []struct {
 // defaultBreakdownCurrent is the current at the reverse knee when a model
 // gives breakdown_voltage but not breakdown_current.
 const defaultBreakdownCurrent = 1e-3
+
+// defaultFlickerExponent is the exponent of the current in the flicker
+// noise law when a model gives flicker_coefficient alone.
+const defaultFlickerExponent = 1
 
 // ModelParam returns the field of p that the numeric diode-model key sets
 // (saturation_current, ideality, ..., measured_at), or nil when key is not
@@ -143,6 +155,13 @@ func (l *loader) model(n *yaml.Node, name string) diode.Params {
 	}
 	if knee && p.BreakdownCurrent == 0 {
 		p.BreakdownCurrent = defaultBreakdownCurrent
+	}
+	_, flicker := f["flicker_coefficient"]
+	if e, ok := f["flicker_exponent"]; ok && !flicker {
+		l.errorf(e.key, "%s gives `flicker_exponent` without `flicker_coefficient`; accepted: both, or flicker_coefficient alone (the exponent is then 1)", what)
+	}
+	if flicker && p.FlickerExponent == 0 {
+		p.FlickerExponent = defaultFlickerExponent
 	}
 	if e, ok := f["ratings"]; ok {
 		p.Ratings = l.ratings(e.val, what)

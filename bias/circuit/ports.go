@@ -2,11 +2,13 @@ package circuit
 
 import (
 	"fmt"
+	"strconv"
+	"strings"
 
 	"gopkg.in/yaml.v3"
 )
 
-var portKeys = []string{"name", "node", "return", "impedance", "coupling"}
+var portKeys = []string{"name", "node", "return", "impedance", "coupling", "noise_temperature"}
 
 // ports reads the `ports` list.
 func (l *loader) ports(n *yaml.Node) {
@@ -95,10 +97,30 @@ func (l *loader) port(i int, n *yaml.Node) (p Port, ok bool) {
 			}
 		}
 	}
+	if e, has := f["noise_temperature"]; has {
+		if t, good := l.noiseTemperature(e.val, "noise_temperature of "+label); good {
+			p.NoiseTemperatureK, p.NoiseTemperatureSet = t, true
+		}
+	}
 	if ok && p.Return == Ground {
 		l.touchesGround = true
 	}
 	return p, ok
+}
+
+// noiseTemperature reads a port's noise temperature: a temperature written
+// as anywhere in the file, or 0K for a noiseless termination. A physical
+// temperature must lie above absolute zero; a noise temperature may be
+// zero.
+func (l *loader) noiseTemperature(n *yaml.Node, what string) (float64, bool) {
+	if n.Kind == yaml.ScalarNode {
+		if k, ok := strings.CutSuffix(n.Value, "K"); ok {
+			if v, err := strconv.ParseFloat(k, 64); err == nil && v == 0 && strings.Trim(k, "+-0.") == "" {
+				return 0, true
+			}
+		}
+	}
+	return l.quantity(n, Temperature, what)
 }
 
 // portNode reads a node a port connects to. It must be a node of some part;

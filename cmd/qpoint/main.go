@@ -83,6 +83,6 @@ them, and let the parts' ratings and your local practice govern.`,
 	root.SetFlagErrorFunc(func(c *cobra.Command, err error) error {
 		return inputError(fmt.Errorf("%w (see 'qpoint %s --help')", err, c.Name()))
 	})
-	root.AddCommand(newBiasCmd(), newResponseCmd(), newDistortionCmd(), newStudyCmd(), newReportCmd(), newHarmonicsCmd(), newDemoCmd())
+	root.AddCommand(newBiasCmd(), newResponseCmd(), newDistortionCmd(), newStudyCmd(), newNoiseCmd(), newReportCmd(), newHarmonicsCmd(), newDemoCmd())
 	return root
 }

@@ -180,6 +180,14 @@ func buildReport(c *circuit.Circuit, temperature string) (*report.Document, erro
 		doc.Cards = append(doc.Cards, cards...)
 	}
 
+	// Noise.
+	if nsec, ncards, err := noiseSection(c, temperature); err == nil {
+		doc.Sections = append(doc.Sections, nsec)
+		doc.Cards = append(doc.Cards, ncards...)
+	} else {
+		doc.Sections = append(doc.Sections, report.Section{ID: "noise", Title: "Noise", Intro: "The noise analysis could not run: " + err.Error()})
+	}
+
 	// Study.
 	if c.Analysis.Study.Set {
 		sec, err := studySection(c)
