@@ -4,6 +4,16 @@
 // ac.Response and nothing else, so every figure shows exactly what the
 // sweep computed.
 //
+// It also draws the figures of the other analyses, each from that
+// analysis' own results: the harmonics of the steady-state waveform beside
+// the Volterra estimate, the output against input level with the weakly
+// nonlinear asymptotes and the compression point, and distortion against
+// frequency (distortion.go); a study's measures against the varied value,
+// and a colour map of one measure over a study of two quantities on the
+// house sequential Ramp (study.go); and the output noise density and each
+// noise source's share of it (noise.go), which take plain slices so as to
+// depend on no noise analysis type.
+//
 // A figure is a Figure value: one or more panels (gonum/plot plots) stacked
 // top to bottom on a shared frequency axis, a title, a short note and a key
 // of its traces, all in the house style of style.go. Figures draw

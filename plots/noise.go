@@ -63,6 +63,9 @@ func NoiseDensity(freqs []float64, density []float64, unit string, floor float64
 		note = strconv.Itoa(n) + " frequencies"
 	}
 	note = "Spot noise at " + note
+	if n == 0 {
+		note = "No noise values"
+	}
 	if n > 0 {
 		note += " · from " + si.Format(y0, unit, 3) + " to " + si.Format(y1, unit, 3)
 	}

@@ -3,8 +3,10 @@ package main
 import (
 	"fmt"
 	"io"
+	"math/cmplx"
 	"os"
 	"path/filepath"
+	"strings"
 
 	"qpoint/plots"
 
@@ -47,21 +49,114 @@ func writeResponsePlots(dir string, r *ac.Response) error {
 }
 
 func writeDistortionPlots(dir string, s *distortionSetup, e *ac.Estimate, st *ac.Steady, sweep []ac.LevelPoint) error {
-	return fmt.Errorf("figures are not built yet")
+	comp, compressed := 0.0, false
+	if len(sweep) > 1 {
+		comp, compressed = ac.Compression(sweep, cmplx.Abs(e.Fundamental)/e.Drive.EMF)
+	}
+	return writeFigures(dir, distortionFigures(e, st, sweep, comp, compressed))
 }
 
 func writeDistortionFrequencyPlot(dir string, rows []frequencyRow) error {
-	return fmt.Errorf("figures are not built yet")
+	var f []float64
+	var est []*ac.Estimate
+	for _, r := range rows {
+		f = append(f, r.f)
+		est = append(est, r.est)
+	}
+	return writeFigures(dir, []*plots.Figure{plots.DistortionVsFrequency(f, est)})
+}
+
+// distortionFigures returns the harmonic spectrum and, with a level sweep,
+// the output-versus-level figure.
+func distortionFigures(e *ac.Estimate, st *ac.Steady, sweep []ac.LevelPoint, comp float64, compressed bool) []*plots.Figure {
+	figs := []*plots.Figure{plots.HarmonicSpectrum(st, e)}
+	if len(sweep) > 1 {
+		figs = append(figs, plots.LevelSweep(sweep, e, comp, compressed))
+	}
+	return figs
 }
 
 func writeStudyPlots(dir string, r *study.Result, show string) error {
-	return fmt.Errorf("study figures are not built yet")
+	figs := studyFigures(r, show)
+	if len(figs) == 0 {
+		return inputError(fmt.Errorf("flag --show: none of the measures could be drawn"))
+	}
+	return writeFigures(dir, figs)
 }
 
-func distortionFigures(e *ac.Estimate, st *ac.Steady, sweep []ac.LevelPoint, comp float64, compressed bool) []*plots.Figure {
-	return nil
-}
-
+// studyFigures returns the study's curves (one varied quantity) or a heat
+// map per measure (two), for the measures in show or a useful default set.
 func studyFigures(r *study.Result, show string) []*plots.Figure {
-	return nil
+	var ms []*study.Measure
+	if show != "" {
+		for _, t := range strings.Split(show, ",") {
+			if m, err := study.ParseMeasure(strings.TrimSpace(t)); err == nil {
+				ms = append(ms, m)
+			}
+		}
+	} else {
+		ms = defaultStudyMeasures(r)
+	}
+	if len(ms) == 0 {
+		return nil
+	}
+	xl, xu := r.Settings.Axis.Vary.Text, r.Settings.Axis.Vary.Quantity.Unit()
+	if r.Settings.Second == nil {
+		return []*plots.Figure{plots.StudyCurves(r, ms, xl, xu)}
+	}
+	yl, yu := "frequency", "Hz"
+	if !r.Settings.SecondIsFrequency {
+		yl, yu = r.Settings.Second.Vary.Text, r.Settings.Second.Vary.Quantity.Unit()
+	}
+	var figs []*plots.Figure
+	for i, m := range ms {
+		f := plots.HeatMap(r, m, xl, xu, yl, yu)
+		if i > 0 {
+			f.Name = fmt.Sprintf("%s-%d", f.Name, i+1)
+		}
+		figs = append(figs, f)
+		if i == 2 {
+			break
+		}
+	}
+	return figs
+}
+
+// defaultStudyMeasures picks what a designer looks at first: each diode's
+// current, the transmission or match at the first study frequency, and
+// the detector's sensitivity or the distortion when a level is set.
+func defaultStudyMeasures(r *study.Result) []*study.Measure {
+	var texts []string
+	var first *study.Step
+	for i := range r.Steps {
+		if r.Steps[i].Err == nil {
+			first = &r.Steps[i]
+			break
+		}
+	}
+	if first == nil {
+		return nil
+	}
+	for _, d := range first.Diodes {
+		texts = append(texts, "current."+d.Name)
+	}
+	if len(first.Responses) > 0 {
+		if len(r.Ports) > 1 {
+			texts = append(texts, "s21")
+		}
+		texts = append(texts, "s11")
+	}
+	if r.Settings.Drive.EMF > 0 {
+		texts = append(texts, "hd2")
+		if first.DCShift != 0 {
+			texts = append(texts, "sensitivity")
+		}
+	}
+	var ms []*study.Measure
+	for _, t := range texts {
+		if m, err := study.ParseMeasure(t); err == nil {
+			ms = append(ms, m)
+		}
+	}
+	return ms
 }
