@@ -601,7 +601,7 @@ func noiseTable(o *noiseOutcome, rows int) *table {
 func noiseNotes(o *noiseOutcome) []string {
 	notes := []string{"output noise: every source as operated, each port's termination at its noise temperature"}
 	if o.det != nil {
-		notes = append(notes, "noise-equivalent power: output noise over the voltage sensitivity at that video frequency;",
+		notes = append(notes, "noise-equivalent power: output noise over the voltage sensitivity at that video frequency",
 			"video response: that sensitivity relative to its DC value")
 	} else if o.r.Settings.Input >= 0 {
 		notes = append(notes, fmt.Sprintf("input-referred: the circuit's own noise as an EMF in series with port %s's generator", o.s.inName),
