@@ -171,6 +171,13 @@ func runResponse(cmd *cobra.Command, path string, fl *responseFlags) error {
 	if len(c.Ports) == 0 {
 		return inputError(fmt.Errorf("%s: the circuit has no ports; a response needs at least one (add a `ports:` list)", path))
 	}
+	for _, name := range []string{"points", "per-decade"} {
+		if f := cmd.Flags().Lookup(name); f.Changed && f.Value.String() != "" {
+			if v, _ := strconv.Atoi(f.Value.String()); v < 1 {
+				return inputError(fmt.Errorf("flag --%s: %s; accepted: a whole number of at least 1", name, f.Value.String()))
+			}
+		}
+	}
 	grid, err := sweepGrid(c, fl)
 	if err != nil {
 		return err
