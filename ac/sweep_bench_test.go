@@ -1,0 +1,103 @@
+package ac
+
+import (
+	"fmt"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+
+	"qpoint/bias"
+	"qpoint/bias/circuit"
+	"qpoint/smallsignal"
+)
+
+func benchNet(b *testing.B, src string) *smallsignal.Network {
+	b.Helper()
+	c, err := circuit.Parse("bench.yaml", []byte(src))
+	if err != nil {
+		b.Fatal(err)
+	}
+	p, err := bias.Solve(c, bias.Settings{})
+	if err != nil {
+		b.Fatal(err)
+	}
+	nw, err := smallsignal.New(p)
+	if err != nil {
+		b.Fatal(err)
+	}
+	return nw
+}
+
+// BenchmarkDemoSweep times a 1000-point sweep (10 MHz to 10 GHz) of each
+// demo circuit through Sweep, results streamed and dropped.
+func BenchmarkDemoSweep(b *testing.B) {
+	files, _ := filepath.Glob(filepath.Join("..", "testdata", "demo", "*.yaml"))
+	freqs, _ := LogGrid(10e6, 10e9, 333)
+	for _, f := range files {
+		data, err := os.ReadFile(f)
+		if err != nil {
+			b.Fatal(err)
+		}
+		nw := benchNet(b, string(data))
+		b.Run(strings.TrimSuffix(filepath.Base(f), ".yaml"), func(b *testing.B) {
+			for b.Loop() {
+				if _, _, err := Sweep(nw, freqs, Settings{}, func(Point) error { return nil }); err != nil {
+					b.Fatal(err)
+				}
+			}
+			b.ReportMetric(float64(len(freqs)), "points")
+		})
+	}
+}
+
+// rcLadder returns a 200-node RC ladder between two 50 Ω ports.
+func rcLadder(n int) string {
+	var sb strings.Builder
+	sb.WriteString("parts:\n")
+	for i := 0; i < n; i++ {
+		fmt.Fprintf(&sb, "  - {type: resistor, name: R%d, between: [n%d, n%d], value: 10}\n", i, i, i+1)
+		fmt.Fprintf(&sb, "  - {type: capacitor, name: C%d, between: [n%d, gnd], value: 1pF}\n", i, i+1)
+	}
+	fmt.Fprintf(&sb, "ports:\n  - {name: in, node: n0, impedance: 50}\n  - {name: out, node: n%d, impedance: 50}\n", n)
+	return sb.String()
+}
+
+// BenchmarkRCLadderSweep times a 1000-point sweep of a 200-node RC ladder.
+func BenchmarkRCLadderSweep(b *testing.B) {
+	nw := benchNet(b, rcLadder(200))
+	freqs, _ := LogGrid(1e6, 10e9, 250)
+	for b.Loop() {
+		if _, _, err := Sweep(nw, freqs, Settings{}, func(Point) error { return nil }); err != nil {
+			b.Fatal(err)
+		}
+	}
+	b.ReportMetric(float64(len(freqs)), "points")
+}
+
+// BenchmarkVolterraSweep times the distortion estimate (one tone and two
+// tones) of the detector demo at 100 frequencies.
+func BenchmarkVolterraSweep(b *testing.B) {
+	data, err := os.ReadFile(filepath.Join("..", "testdata", "demo", "detector.yaml"))
+	if err != nil {
+		b.Fatal(err)
+	}
+	nw := benchNet(b, string(data))
+	freqs, _ := LogGrid(100e6, 6e9, 56)
+	for _, two := range []bool{false, true} {
+		b.Run(map[bool]string{false: "one-tone", true: "two-tone"}[two], func(b *testing.B) {
+			for b.Loop() {
+				for _, f := range freqs {
+					d := Drive{Input: 0, Output: Output{Port: 1}, FrequencyHz: f, EMF: DBmToEMF(-30, 50)}
+					if two {
+						d.SecondToneHz = f * 1.01
+					}
+					if _, err := Volterra(nw, d); err != nil {
+						b.Fatal(err)
+					}
+				}
+			}
+			b.ReportMetric(float64(len(freqs)), "frequencies")
+		})
+	}
+}
