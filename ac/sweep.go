@@ -62,7 +62,17 @@ func Run(nw *smallsignal.Network, freqs []float64, s Settings) (*Response, error
 // visit, so that a writer can stream a long sweep without holding it. It
 // returns the ports and probe names the points refer to. visit's error
 // stops the sweep and is returned.
+//
+// Each point costs O(n³) by a dense LU of Y(jw), or O(n²) after a one-time
+// reduction of (G, C) to Hessenberg-triangular form (Laub, IEEE Trans.
+// Automatic Control 26(2), 1981); the sweep takes the reduction when the
+// point count repays it and its accuracy check passes, and the LU
+// otherwise. Either way it holds O(n²) numbers whatever the point count.
 func Sweep(nw *smallsignal.Network, freqs []float64, s Settings, visit func(Point) error) ([]PortInfo, []string, error) {
+	return sweep(nw, freqs, s, visit, engineAuto)
+}
+
+func sweep(nw *smallsignal.Network, freqs []float64, s Settings, visit func(Point) error, choice engine) ([]PortInfo, []string, error) {
 	if len(nw.Ports) == 0 {
 		return nil, nil, fmt.Errorf("the circuit has no ports; add a `ports:` entry to drive and load it")
 	}
@@ -96,6 +106,15 @@ func Sweep(nw *smallsignal.Network, freqs []float64, s Settings, visit func(Poin
 		ports[i] = PortInfo{p.Name, ref[i]}
 	}
 
+	// The reduced engine takes the points it can; the LU the rest.
+	done := 0
+	if r := sweepEngine(nw, freqs, ref, probes, choice); r != nil {
+		var err error
+		if done, err = r.sweep(nw, freqs, ref, probes, visit); err != nil || done == len(freqs) {
+			return ports, probes, err
+		}
+	}
+
 	n, np := nw.N, len(nw.Ports)
 	f := newLU(n)
 	g, c := nw.G.RawMatrix(), nw.C.RawMatrix()
@@ -104,7 +123,7 @@ func Sweep(nw *smallsignal.Network, freqs []float64, s Settings, visit func(Poin
 		x[i] = make([]complex128, n)
 	}
 	dx := make([]complex128, n)
-	for _, hz := range freqs {
+	for _, hz := range freqs[done:] {
 		if err := CheckFrequency(hz); err != nil {
 			return ports, probes, err
 		}

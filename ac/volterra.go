@@ -164,20 +164,22 @@ type volterra struct {
 	n    int
 	out  []complex128 // selects the output: e_out
 	work []complex128
+	sys  solver // Y(jw) at the products' frequencies
 }
 
 // solveAt solves Y(jw) x = b in place and returns the adjoint vector
 // z = Y(jw)⁻ᵀ e_out. At w = 0 the AC-coupled ports' DC blocks are open.
 func (v *volterra) solveAt(w float64, b []complex128) ([]complex128, error) {
-	f := newLU(v.n)
+	var f solver = v.sys
 	if w == 0 {
+		lu := newLU(v.n)
 		g := v.nw.GDC().RawMatrix()
-		f.load(g.Data, make([]float64, v.n*v.n), g.Stride, v.n, 0)
-	} else {
-		g, c := v.nw.G.RawMatrix(), v.nw.C.RawMatrix()
-		f.load(g.Data, c.Data, g.Stride, c.Stride, w)
-	}
-	if err := f.factor(); err != nil {
+		lu.load(g.Data, make([]float64, v.n*v.n), g.Stride, v.n, 0)
+		if err := lu.factor(); err != nil {
+			return nil, fmt.Errorf("at %g Hz: %w", w/(2*math.Pi), err)
+		}
+		f = &luSolver{f: lu}
+	} else if err := f.at(w); err != nil {
 		return nil, fmt.Errorf("at %g Hz: %w", w/(2*math.Pi), err)
 	}
 	if b != nil {
@@ -279,6 +281,10 @@ func (v *volterra) output(x []complex128) complex128 {
 // (3/4)(g3 + j w c3) v_a² v_b* + (g2 + j w c2)(v_a v_d + v_2a v_b*).
 // Each order is solved on the linear network at its own frequency.
 func Volterra(nw *smallsignal.Network, d Drive) (*Estimate, error) {
+	return volterraOn(nw, d, engineAuto)
+}
+
+func volterraOn(nw *smallsignal.Network, d Drive, choice engine) (*Estimate, error) {
 	if d.Input < 0 || d.Input >= len(nw.Ports) {
 		return nil, fmt.Errorf("input port %d: the circuit has %d ports", d.Input+1, len(nw.Ports))
 	}
@@ -293,7 +299,15 @@ func Volterra(nw *smallsignal.Network, d Drive) (*Estimate, error) {
 			return nil, fmt.Errorf("the second tone must differ from the first (both %g Hz)", d.FrequencyHz)
 		}
 	}
-	v := &volterra{nw: nw, n: nw.N, out: make([]complex128, nw.N)}
+	// Y(jw) is solved at f1, 2 f1, 3 f1 and, with a second tone, at f2,
+	// f1 + f2, f1 - f2 and 2 f1 - f2: a few points, where the LU is
+	// usually cheaper than a reduction (newSolver decides).
+	freqs := []float64{d.FrequencyHz, 2 * d.FrequencyHz, 3 * d.FrequencyHz}
+	if d.SecondToneHz != 0 {
+		f1, f2 := d.FrequencyHz, d.SecondToneHz
+		freqs = append(freqs, f2, f1+f2, f1-f2, 2*f1-f2)
+	}
+	v := &volterra{nw: nw, n: nw.N, out: make([]complex128, nw.N), sys: newSolver(nw, freqs, choice)}
 	est := &Estimate{Drive: d, inputZ0: nw.Ports[d.Input].Impedance}
 	if d.Output.Port >= 0 {
 		if d.Output.Port >= len(nw.Ports) {

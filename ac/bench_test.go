@@ -1,0 +1,354 @@
+package ac
+
+import (
+	"fmt"
+	"math"
+	"math/rand/v2"
+	"os"
+	"path/filepath"
+	"runtime"
+	"slices"
+	"strings"
+	"testing"
+	"time"
+
+	"gonum.org/v1/gonum/blas"
+	"gonum.org/v1/gonum/blas/cblas128"
+
+	"qpoint/bias"
+	"qpoint/bias/circuit"
+	"qpoint/smallsignal"
+)
+
+// Benchmarks of the sweep engines (BENCHMARKS.md quotes them):
+//
+//	go test -run '^$' -bench 'Engines' -benchtime 1x -count 5 ./ac/
+//	go test -run '^$' -bench 'SteadyState' -count 5 ./ac/
+//
+// and, in package bias, the DC solve of diode ladders:
+//
+//	go test -run '^$' -bench 'Ladder' -count 5 ./bias/
+
+// benchLadder returns the YAML of a diode-loaded LC ladder with exactly n
+// unknowns: k sections (series inductor, shunt capacitor, a Schottky
+// diode with series resistance) between two 50 Ω ports, all diodes biased
+// from a 3.3 V supply through one resistor and the inductors; 3k + 3
+// unknowns, the remainder made up by resistive nodes at the input. The
+// values are invented for the benchmark.
+func benchLadder(n int) string {
+	k := (n - 3) / 3
+	var b strings.Builder
+	b.WriteString(`name: benchmark ladder
+diode_models:
+  sk: {saturation_current: 1uA, ideality: 1.05, series_resistance: 10, zero_bias_capacitance: 0.2pF, built_in_potential: 0.3V, grading_coefficient: 0.5}
+parts:
+  - {type: voltage_source, name: Vcc, plus: vcc, minus: gnd, value: 3.3V}
+  - {type: resistor, name: Rbias, between: [vcc, n0], value: 1k}
+`)
+	for i := 1; i <= k; i++ {
+		fmt.Fprintf(&b, "  - {type: inductor, name: L%d, between: [n%d, n%d], value: 2nH}\n", i, i-1, i)
+		fmt.Fprintf(&b, "  - {type: capacitor, name: C%d, between: [n%d, gnd], value: 0.8pF}\n", i, i)
+		fmt.Fprintf(&b, "  - {type: diode, name: D%d, anode: n%d, cathode: gnd, model: sk}\n", i, i)
+	}
+	for j := 0; j < n-3-3*k; j++ {
+		fmt.Fprintf(&b, "  - {type: resistor, name: X%d, between: [n0, x%d], value: 1k}\n", j, j)
+		fmt.Fprintf(&b, "  - {type: resistor, name: Y%d, between: [x%d, gnd], value: 1k}\n", j, j)
+	}
+	fmt.Fprintf(&b, "ports:\n  - {name: in, node: n0, impedance: 50}\n  - {name: out, node: n%d, impedance: 50}\n", k)
+	return b.String()
+}
+
+// benchNetwork returns a network of exactly n unknowns: the ladder or a
+// random one (randomMNA: couplings everywhere). A random network whose
+// reduction fails the accuracy check over the benchmark's sweep would be
+// swept by the LU; it is skipped, and the count of those skipped is
+// reported as rejected-networks.
+func benchNetwork(b *testing.B, kind string, n int) (nw *smallsignal.Network, rejected int) {
+	b.Helper()
+	switch kind {
+	case "ladder":
+		nw = loadNetwork(b, benchLadder(n))
+		if nw.N != n {
+			b.Fatalf("ladder has %d unknowns, want %d", nw.N, n)
+		}
+		return nw, 0
+	case "random":
+		freqs, _ := LinearGrid(1e6, 10e9, 3)
+		for seed := uint64(0); seed < 1000; seed++ {
+			for nodes := n / 3; nodes <= n; nodes++ {
+				nw = randomMNA(rand.New(rand.NewPCG(41, seed<<20|uint64(nodes))), nodes)
+				if nw.N == n {
+					ref := make([]float64, len(nw.Ports))
+					for i, p := range nw.Ports {
+						ref[i] = p.Impedance
+					}
+					if sweepEngine(nw, freqs, ref, []string{nw.Names[0]}, engineReduced) != nil {
+						return nw, rejected
+					}
+					rejected++
+					break
+				}
+				if nw.N > n {
+					break
+				}
+			}
+		}
+		b.Fatalf("no random network of %d unknowns", n)
+	}
+	return nil, 0
+}
+
+// matVec sets y = A x for the row-major n×n complex A by gonum's Zgemv
+// (cblas128.Gemv, assembly kernels on amd64): the O(n²) floor a per-point
+// cost is measured against.
+func matVec(a, x, y []complex128) {
+	n := len(x)
+	cblas128.Gemv(blas.NoTrans, 1, cblas128.General{Rows: n, Cols: n, Data: a, Stride: n},
+		cblas128.Vector{N: n, Data: x, Inc: 1}, 0, cblas128.Vector{N: n, Data: y, Inc: 1})
+}
+
+// matVecGo is the same product as a plain Go loop, the way the package's
+// own kernels were first written: for context beside Zgemv.
+func matVecGo(a, x, y []complex128) {
+	n := len(x)
+	for i := range y {
+		row := a[i*n : i*n+n]
+		var s complex128
+		for j, v := range row {
+			s += v * x[j]
+		}
+		y[i] = s
+	}
+}
+
+var sink complex128
+
+// BenchmarkEngines measures, for each network and size, the per-point
+// cost of both engines and of one complex matrix-vector product. Others'
+// work shares the machine, so the three are timed in interleaved batches
+// (10 LU points, 2 at n = 500; 100 reduced points, long enough that the
+// LU's eviction of the reduction from cache costs little; 400 products)
+// and each is the sum over its batches: a burst of load falls on all
+// three alike.
+//
+//   - lu-ns/pt: the dense LU sweep, per point (200 points; 20 at n = 500);
+//   - point-ns: one point on the reduced engine, the reduction made;
+//   - matvec-ns: one n×n complex matrix-vector product (gonum's Zgemv);
+//   - matvec-go-ns: the same as a plain Go loop (100 per batch);
+//   - setup-ms: the reduction and its accuracy check (median of three);
+//   - reduced-ns/pt: a 1000-point reduced sweep per point,
+//     point-ns + setup/1000;
+//   - sweep-ns/pt: the same timed end to end, one sweep through Sweep's
+//     own path (more exposed to load: one long interval);
+//   - speedup: lu-ns/pt over reduced-ns/pt;
+//   - point/matvec and pt/matvec: point-ns and reduced-ns/pt over
+//     matvec-ns.
+//
+// Run with -benchtime 1x: one iteration is one full measurement.
+func BenchmarkEngines(b *testing.B) {
+	const points = 1000
+	freqs, err := LinearGrid(1e6, 10e9, points)
+	if err != nil {
+		b.Fatal(err)
+	}
+	for _, kind := range []string{"ladder", "random"} {
+		for _, n := range []int{20, 50, 200, 500} {
+			b.Run(fmt.Sprintf("%s/n=%d", kind, n), func(b *testing.B) {
+				nw, rejected := benchNetwork(b, kind, n)
+				s := Settings{Probes: []string{nw.Names[0]}}
+				ref := make([]float64, len(nw.Ports))
+				for i, p := range nw.Ports {
+					ref[i] = p.Impedance
+				}
+				if sweepEngine(nw, freqs, ref, s.Probes, engineReduced) == nil {
+					b.Fatalf("%s n=%d: the reduction fails its accuracy check", kind, n)
+				}
+				luPoints, luBatch := 200, 10
+				if n >= 500 {
+					luPoints, luBatch = 20, 2
+				}
+				discard := func(Point) error { return nil }
+				a := make([]complex128, n*n)
+				for i := range a {
+					a[i] = complex(float64(i%7), float64(i%5))
+				}
+				x, y := make([]complex128, n), make([]complex128, n)
+				for i := range x {
+					x[i] = complex(1, float64(i))
+				}
+				lo, hi, _ := sweepRange(freqs)
+				setup := func() *reduction {
+					r, err := reduceFor(nw, lo, hi)
+					if err != nil || !r.sweepAccurate(nw, ref, s.Probes, lo, hi) {
+						b.Fatal("reduction failed")
+					}
+					return r
+				}
+				var lu, pt, mv, mvGo, sw, setups []float64
+				for b.Loop() {
+					var tSetup []float64
+					var r *reduction
+					for range 3 {
+						t0 := time.Now()
+						r = setup()
+						tSetup = append(tSetup, float64(time.Since(t0).Nanoseconds()))
+					}
+					ev := r.points(nw, ref, s.Probes)
+					var tLU, tPt, tMV, tGo time.Duration
+					nLU, nPt, nMV := 0, 0, 0
+					for k := 0; nLU < luPoints; k++ {
+						batch := freqs[(k*luBatch)%points : (k*luBatch)%points+luBatch]
+						t0 := time.Now()
+						if _, _, err := sweep(nw, batch, s, discard, engineLU); err != nil {
+							b.Fatal(err)
+						}
+						t1 := time.Now()
+						for j := range 100 {
+							if _, ok := ev.at(freqs[(k*100+j)%points]); !ok {
+								b.Fatal("zero pivot")
+							}
+						}
+						t2 := time.Now()
+						for range 400 {
+							matVec(a, x, y)
+							x, y = y, x
+						}
+						t3 := time.Now()
+						for range 100 {
+							matVecGo(a, x, y)
+							x, y = y, x
+						}
+						t4 := time.Now()
+						sink = x[0]
+						tLU += t1.Sub(t0)
+						tPt += t2.Sub(t1)
+						tMV += t3.Sub(t2)
+						tGo += t4.Sub(t3)
+						nLU, nPt, nMV = nLU+luBatch, nPt+100, nMV+400
+					}
+					t0 := time.Now()
+					if _, _, err := sweep(nw, freqs, s, discard, engineReduced); err != nil {
+						b.Fatal(err)
+					}
+					sw = append(sw, float64(time.Since(t0).Nanoseconds())/points)
+					lu = append(lu, float64(tLU.Nanoseconds())/float64(nLU))
+					pt = append(pt, float64(tPt.Nanoseconds())/float64(nPt))
+					mv = append(mv, float64(tMV.Nanoseconds())/float64(nMV))
+					mvGo = append(mvGo, float64(tGo.Nanoseconds())/float64(nMV/4))
+					setups = append(setups, median(tSetup))
+				}
+				luM, ptM, mvM, setupM := median(lu), median(pt), median(mv), median(setups)
+				red := ptM + setupM/points
+				b.ReportMetric(luM, "lu-ns/pt")
+				b.ReportMetric(ptM, "point-ns")
+				b.ReportMetric(mvM, "matvec-ns")
+				b.ReportMetric(median(mvGo), "matvec-go-ns")
+				b.ReportMetric(setupM/1e6, "setup-ms")
+				b.ReportMetric(red, "reduced-ns/pt")
+				b.ReportMetric(median(sw), "sweep-ns/pt")
+				b.ReportMetric(luM/red, "speedup")
+				b.ReportMetric(ptM/mvM, "point/matvec")
+				b.ReportMetric(float64(rejected), "rejected-networks")
+				b.ReportMetric(red/mvM, "pt/matvec")
+			})
+		}
+	}
+}
+
+func median(v []float64) float64 {
+	s := append([]float64(nil), v...)
+	slices.Sort(s)
+	if len(s)%2 == 1 {
+		return s[len(s)/2]
+	}
+	return (s[len(s)/2-1] + s[len(s)/2]) / 2
+}
+
+// BenchmarkSteadyState: the periodic steady state of the detector demo
+// under its own distortion drive (2.45 GHz at -30 dBm into the rf port,
+// observed at the video port), default settings.
+func BenchmarkSteadyState(b *testing.B) {
+	data, err := os.ReadFile(filepath.Join("..", "testdata", "demo", "detector.yaml"))
+	if err != nil {
+		b.Fatal(err)
+	}
+	nw := loadNetwork(b, string(data))
+	dist := nw.Point.Circuit.Analysis.Distortion
+	in, out := -1, -1
+	for i, p := range nw.Ports {
+		if p.Name == dist.Input {
+			in = i
+		}
+		if p.Name == dist.Output {
+			out = i
+		}
+	}
+	if in < 0 || out < 0 || !dist.Level.IsPower {
+		b.Fatalf("the detector demo's distortion analysis changed: %+v", dist)
+	}
+	d := Drive{Input: in, Output: Output{Port: out}, FrequencyHz: dist.FrequencyHz,
+		EMF: DBmToEMF(dist.Level.DBm, nw.Ports[in].Impedance)}
+	var iters int
+	for b.Loop() {
+		st, err := SteadyState(nw, d, SteadySettings{})
+		if err != nil {
+			b.Fatal(err)
+		}
+		iters = st.Iterations
+	}
+	b.ReportMetric(float64(iters), "newton-iterations")
+}
+
+// loadNetwork loads a circuit from YAML text and linearises it at its
+// bias.
+func loadNetwork(tb testing.TB, src string) *smallsignal.Network {
+	tb.Helper()
+	c, err := circuit.Parse("bench.yaml", []byte(src))
+	if err != nil {
+		tb.Fatal(err)
+	}
+	p, err := bias.Solve(c, bias.Settings{})
+	if err != nil {
+		tb.Fatal(err)
+	}
+	nw, err := smallsignal.New(p)
+	if err != nil {
+		tb.Fatal(err)
+	}
+	return nw
+}
+
+// TestReducedSweepStreams: a reduced sweep allocates per point only the
+// point it hands to visit (the S-matrix, impedances and probes: a few
+// hundred bytes), nothing of order n or n², so a sweep's memory is the
+// reduction's O(n²) whatever its point count.
+func TestReducedSweepStreams(t *testing.T) {
+	rng := rand.New(rand.NewPCG(43, 1))
+	nw := randomMNA(rng, 60)
+	ref := make([]float64, len(nw.Ports))
+	for i, p := range nw.Ports {
+		ref[i] = p.Impedance
+	}
+	r, err := reduceFor(nw, 1e6, 1e9)
+	if err != nil {
+		t.Fatal(err)
+	}
+	bytesFor := func(points int) float64 {
+		freqs, _ := LinearGrid(1e6, 1e9, points)
+		var before, after runtime.MemStats
+		runtime.ReadMemStats(&before)
+		if _, err := r.sweep(nw, freqs, ref, []string{nw.Names[0]}, func(Point) error { return nil }); err != nil {
+			t.Fatal(err)
+		}
+		runtime.ReadMemStats(&after)
+		return float64(after.TotalAlloc - before.TotalAlloc)
+	}
+	small, large := bytesFor(100), bytesFor(1100)
+	perPoint := (large - small) / 1000
+	np := float64(len(nw.Ports))
+	limit := 64 + 48*np + 16*np*np + 32*np + 64 // slice headers, S rows, Z_in, a probe
+	t.Logf("n = %d, %d ports: %.0f bytes per point, %.0f per sweep besides", nw.N, len(nw.Ports), perPoint, small-100*perPoint)
+	if perPoint > limit || math.IsNaN(perPoint) {
+		t.Errorf("%.0f bytes allocated per point, want at most %.0f (the point itself); n² complex would be %d", perPoint, limit, 16*nw.N*nw.N)
+	}
+}

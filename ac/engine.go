@@ -1,0 +1,489 @@
+package ac
+
+import (
+	"fmt"
+	"math"
+	"math/cmplx"
+
+	"gonum.org/v1/gonum/blas/blas64"
+
+	"qpoint/bias/circuit"
+	"qpoint/smallsignal"
+)
+
+// engine names the linear solver behind an analysis over many
+// frequencies.
+type engine int
+
+const (
+	// engineAuto chooses by cost: the reduction when it pays and checks
+	// out, the dense LU otherwise.
+	engineAuto engine = iota
+	// engineLU factors Y(jw) = G + jwC densely at every frequency: O(n³)
+	// per point, nothing shared.
+	engineLU
+	// engineReduced reduces (G, C) once to Hessenberg-triangular form and
+	// solves each frequency in O(n²); it still falls back to the LU when
+	// its accuracy check fails.
+	engineReduced
+)
+
+// The engine choice. The reduction costs O(n³) once and each point
+// O(n²); the LU costs O(n³) at every point. Both the reduction and the
+// LU point grow as n³, so the point count at which the reduction pays for
+// itself hardly depends on n: BenchmarkEngines measured it at 21 to 43
+// points for n = 20 to 500 (reduction and accuracy check against the LU's
+// cost per point; BENCHMARKS.md). Below minReducedN unknowns every method
+// takes microseconds and the LU, which needs no setup, is kept.
+const (
+	minReducedPoints = 48
+	minReducedN      = 12
+)
+
+// reducedPays reports whether a sweep of points frequencies of a network
+// of n unknowns is cheaper with the one-time reduction.
+func reducedPays(n, points int) bool {
+	return n >= minReducedN && points >= minReducedPoints
+}
+
+// Accuracy of the reduced engine, checked before a sweep at its lowest,
+// middle (geometric) and highest frequency: each reported quantity must
+// agree with the same quantity computed from solutions improved by one
+// step of iterative refinement to checkRel of its size (plus checkFloor of
+// its natural scale, for quantities that vanish), or the sweep runs on the
+// LU. The refinement's correction is the estimate of the reduced solve's
+// error; checkRel is one tenth of the 1e-9 the tests hold the two engines
+// to.
+const (
+	checkRel   = 1e-10
+	checkFloor = 1e-13
+)
+
+// sweepRange returns the lowest and highest |f| of a sweep, zero
+// frequencies left out, and false if there are none.
+func sweepRange(freqsHz []float64) (lo, hi float64, ok bool) {
+	lo, hi = math.Inf(1), 0
+	for _, f := range freqsHz {
+		f = math.Abs(f)
+		if f == 0 || math.IsNaN(f) || math.IsInf(f, 0) {
+			continue
+		}
+		lo, hi = math.Min(lo, f), math.Max(hi, f)
+	}
+	return lo, hi, hi > 0
+}
+
+// reduceFor reduces nw for a sweep over [lo, hi] Hz, balancing at the
+// geometric middle of the range.
+func reduceFor(nw *smallsignal.Network, lo, hi float64) (*reduction, error) {
+	return reduce(nw.G, nw.C, 2*math.Pi*math.Sqrt(lo*hi))
+}
+
+// checkFrequencies returns the frequencies the accuracy check probes.
+func checkFrequencies(lo, hi float64) []float64 {
+	if lo == hi {
+		return []float64{lo}
+	}
+	return []float64{lo, math.Sqrt(lo * hi), hi}
+}
+
+// refine returns x for Y(jw) x = b by the reduced engine (factored at w)
+// after one step of iterative refinement, x + Y⁻¹ (b - Y x), the residual
+// taken with the network's own G and C.
+func (r *reduction) refine(nw *smallsignal.Network, w float64, b []complex128) []complex128 {
+	n := r.n
+	x := append([]complex128(nil), b...)
+	r.solve(x)
+	d := make([]complex128, n)
+	g, c := nw.G.RawMatrix(), nw.C.RawMatrix()
+	for i := 0; i < n; i++ {
+		gi, ci := g.Data[i*g.Stride:i*g.Stride+n], c.Data[i*c.Stride:i*c.Stride+n]
+		s := b[i]
+		for j, xj := range x {
+			if gi[j] != 0 || ci[j] != 0 {
+				s -= complex(gi[j], w*ci[j]) * xj
+			}
+		}
+		d[i] = s
+	}
+	r.solve(d)
+	for i := range x {
+		x[i] += d[i]
+	}
+	return x
+}
+
+// refinedPoint computes Sweep's point at hz from refined solutions (see
+// refine): the reference the reduced engine's own points are checked
+// against. The reduction must be factored at hz.
+func (r *reduction) refinedPoint(nw *smallsignal.Network, ref []float64, probes []int, hz float64) Point {
+	w := 2 * math.Pi * hz
+	np := len(nw.Ports)
+	pt := Point{FrequencyHz: hz, S: make([][]complex128, np), InputImpedance: make([]complex128, np)}
+	for i := range pt.S {
+		pt.S[i] = make([]complex128, np)
+	}
+	b := make([]complex128, r.n)
+	var x0 []complex128
+	for j := 0; j < np; j++ {
+		nw.Excitation(j, 1, b)
+		x := r.refine(nw, w, b)
+		if j == 0 {
+			x0 = x
+		}
+		for i := 0; i < np; i++ {
+			pt.S[i][j] = 2*nw.PortVoltage(i, x)*complex(math.Sqrt(ref[j]/ref[i]), 0) - delta(i, j)
+		}
+	}
+	for i := 0; i < np; i++ {
+		sii := pt.S[i][i]
+		pt.InputImpedance[i] = complex(ref[i], 0) * (1 + sii) / (1 - sii)
+	}
+	for _, p := range probes {
+		pt.Probes = append(pt.Probes, at(x0, p))
+	}
+	// dx/dw = -Y⁻¹ jC x.
+	c := nw.C.RawMatrix()
+	for i := 0; i < r.n; i++ {
+		var s complex128
+		for j, cij := range c.Data[i*c.Stride : i*c.Stride+r.n] {
+			if cij != 0 {
+				s += complex(cij, 0) * x0[j]
+			}
+		}
+		b[i] = -1i * s
+	}
+	dx := r.refine(nw, w, b)
+	out := 0
+	if np > 1 {
+		out = 1
+	}
+	sv := pt.S[out][0]
+	dS := 2 * nw.PortVoltage(out, dx) * complex(math.Sqrt(ref[0]/ref[out]), 0)
+	if sv != 0 && !cmplx.IsNaN(sv) {
+		pt.GroupDelay = -imag(dS / sv)
+	} else {
+		pt.GroupDelay = math.NaN()
+	}
+	return pt
+}
+
+func delta(i, j int) complex128 {
+	if i == j {
+		return 1
+	}
+	return 0
+}
+
+// sweepAccurate reports whether the reduced engine's points agree with
+// refined ones (refinedPoint) to checkRel at the check frequencies of
+// [lo, hi] Hz.
+func (r *reduction) sweepAccurate(nw *smallsignal.Network, ref []float64, probes []string, lo, hi float64) bool {
+	idx := make([]int, len(probes))
+	for k, name := range probes {
+		idx[k] = probeIndex(nw, name)
+	}
+	ev := r.points(nw, ref, probes)
+	for _, hz := range checkFrequencies(lo, hi) {
+		p, ok := ev.at(hz)
+		if !ok || pointsDiffer(p, r.refinedPoint(nw, ref, idx, hz), checkRel) != "" {
+			return false
+		}
+	}
+	return true
+}
+
+// pointsDiffer describes the first quantity in which point p differs from
+// q by more than rel relative, or returns "". Quantities that vanish are
+// held to an absolute floor, checkFloor, instead: for the S-parameters
+// (at most 1 in size for a passive network, so this is rounding of the
+// largest), for the probes in volts per volt of EMF, and for Z_in and the
+// group delay the same floor carried through their formulas.
+func pointsDiffer(p, q Point, rel float64) string {
+	const floor = checkFloor
+	for i := range q.S {
+		for j := range q.S[i] {
+			if d := cmplx.Abs(p.S[i][j] - q.S[i][j]); !(d <= rel*cmplx.Abs(q.S[i][j])+floor) {
+				return fmt.Sprintf("at %g Hz: S%d%d = %v against %v", q.FrequencyHz, i+1, j+1, p.S[i][j], q.S[i][j])
+			}
+		}
+		// Z = Z0 (1 + S)/(1 - S): dZ = 2 Z0 dS/(1 - S)². An open port
+		// (S = 1, Z infinite) is held by its S alone.
+		zq := q.InputImpedance[i]
+		if cmplx.IsInf(zq) || cmplx.IsNaN(zq) {
+			continue
+		}
+		z0 := real(zq * (1 - q.S[i][i]) / (1 + q.S[i][i]))
+		zFloor := 2 * math.Abs(z0) * floor / sqAbs(1-q.S[i][i])
+		if d := cmplx.Abs(p.InputImpedance[i] - zq); !(d <= rel*cmplx.Abs(zq)+zFloor) && !math.IsNaN(zFloor) {
+			return fmt.Sprintf("at %g Hz: Z_in%d = %v against %v", q.FrequencyHz, i+1, p.InputImpedance[i], zq)
+		}
+	}
+	for i := range q.Probes {
+		if d := cmplx.Abs(p.Probes[i] - q.Probes[i]); !(d <= rel*cmplx.Abs(q.Probes[i])+floor) {
+			return fmt.Sprintf("at %g Hz: probe %d = %v against %v", q.FrequencyHz, i, p.Probes[i], q.Probes[i])
+		}
+	}
+	out := 0
+	if len(q.S) > 1 {
+		out = 1
+	}
+	s := cmplx.Abs(q.S[out][0])
+	if s == 0 {
+		// An exact zero of the LU (a path its sparsity cuts) is rounding
+		// for the reduction, and its phase has no delay.
+		return ""
+	}
+	// τ = -Im(S'/S): errors floor in S and floor |S'| in S' give
+	// floor |S'/S| / |S|, with |S'/S| taken as |τ| + 1/w.
+	gFloor := floor * (math.Abs(q.GroupDelay) + 1/(2*math.Pi*q.FrequencyHz)) / s
+	if math.IsNaN(q.GroupDelay) != math.IsNaN(p.GroupDelay) || math.Abs(p.GroupDelay-q.GroupDelay) > rel*math.Abs(q.GroupDelay)+gFloor {
+		return fmt.Sprintf("at %g Hz: group delay %g s against %g s", q.FrequencyHz, p.GroupDelay, q.GroupDelay)
+	}
+	return ""
+}
+
+// sweepEngine returns the reduction to run a sweep of freqsHz on, or nil
+// for the dense LU: by cost (reducedPays) unless choice forces a method,
+// and only if the reduction passes its accuracy check.
+func sweepEngine(nw *smallsignal.Network, freqsHz []float64, ref []float64, probes []string, choice engine) *reduction {
+	if choice == engineLU || len(freqsHz) == 0 {
+		return nil
+	}
+	if choice == engineAuto && !reducedPays(nw.N, len(freqsHz)) {
+		return nil
+	}
+	for _, f := range freqsHz {
+		if CheckFrequency(f) != nil {
+			return nil // the LU path reports it where it occurs
+		}
+	}
+	lo, hi, _ := sweepRange(freqsHz)
+	r, err := reduceFor(nw, lo, hi)
+	if err != nil || !r.sweepAccurate(nw, ref, probes, lo, hi) {
+		return nil
+	}
+	return r
+}
+
+// probeIndex returns the unknown of a probe node, smallsignal.Ground for
+// the reference node.
+func probeIndex(nw *smallsignal.Network, name string) int {
+	if name == circuit.Ground {
+		return smallsignal.Ground
+	}
+	return nw.Nodes[name]
+}
+
+// pointEval computes Sweep's points on a reduction. It holds O(n²)
+// numbers, nothing per point.
+type pointEval struct {
+	r    *reduction
+	ref  []float64
+	c, y [][]complex128 // per port: excitation in reduced coordinates; solution
+	vrow [][]float64    // port voltage i = vrow[i]·y
+	prow [][]float64    // probe k's voltage = prow[k]·y
+	dy   []complex128
+}
+
+func (r *reduction) points(nw *smallsignal.Network, ref []float64, probes []string) *pointEval {
+	n, np := r.n, len(nw.Ports)
+	ev := &pointEval{r: r, ref: ref, c: make([][]complex128, np), y: make([][]complex128, np), dy: make([]complex128, n)}
+	// The port excitations in reduced coordinates, c_j = Qᵀ Dr b_j, do
+	// not depend on frequency.
+	b := make([]complex128, n)
+	for j := range ev.c {
+		ev.c[j], ev.y[j] = make([]complex128, n), make([]complex128, n)
+		nw.Excitation(j, 1, b)
+		r.project(b, ev.c[j])
+	}
+	// The rows of Dc Z the outputs need, so no point forms the whole
+	// solution x = Dc Z y.
+	row := func(i int) []float64 {
+		v := make([]float64, n)
+		if i >= 0 {
+			copy(v, r.zs[i*n:i*n+n])
+		}
+		return v
+	}
+	for _, p := range nw.Ports {
+		v := row(p.Node)
+		if p.Return >= 0 {
+			for j, z := range r.zs[p.Return*n : p.Return*n+n] {
+				v[j] -= z
+			}
+		}
+		ev.vrow = append(ev.vrow, v)
+	}
+	for _, name := range probes {
+		ev.prow = append(ev.prow, row(probeIndex(nw, name)))
+	}
+	return ev
+}
+
+// at returns the point at hz, and false where the Hessenberg elimination
+// meets a zero pivot.
+func (ev *pointEval) at(hz float64) (Point, bool) {
+	r, ref := ev.r, ev.ref
+	np := len(ev.c)
+	out := 0
+	if np > 1 {
+		out = 1
+	}
+	// The factorisation also solves the adjoint (H + jwT)ᵀ v = vrow[out]
+	// for the group delay.
+	r.adjRHS = ev.vrow[out]
+	err := r.factor(2 * math.Pi * hz)
+	r.adjRHS = nil
+	if err != nil {
+		return Point{}, false
+	}
+	pt := Point{FrequencyHz: hz, S: make([][]complex128, np), InputImpedance: make([]complex128, np)}
+	for i := range pt.S {
+		pt.S[i] = make([]complex128, np)
+	}
+	for j := range ev.y {
+		copy(ev.y[j], ev.c[j])
+	}
+	for j := 0; j < np; j += 2 {
+		if j+1 < np {
+			r.solveY2(ev.y[j], ev.y[j+1])
+		} else {
+			r.solveY(ev.y[j])
+		}
+	}
+	for j := 0; j < np; j++ {
+		for i := 0; i < np; i++ {
+			v := dotReal(ev.vrow[i], ev.y[j])
+			sij := 2 * v * complex(math.Sqrt(ref[j]/ref[i]), 0)
+			if i == j {
+				sij--
+			}
+			pt.S[i][j] = sij
+		}
+	}
+	for i := 0; i < np; i++ {
+		sii := pt.S[i][i]
+		pt.InputImpedance[i] = complex(ref[i], 0) * (1 + sii) / (1 - sii)
+	}
+	for _, p := range ev.prow {
+		pt.Probes = append(pt.Probes, dotReal(p, ev.y[0]))
+	}
+	// Group delay: dx/dw = -Y⁻¹ jC x, and with C = Dr⁻¹ Q T Zᵀ Dc⁻¹ and
+	// x = Dc Z y this is dy/dw = -j (H + jwT)⁻¹ T y; the output's share,
+	// vrow[out]·dy, is -j vᵀ T y with the adjoint v factor solved.
+	dy := ev.dy
+	r.mulT(ev.y[0], dy)
+	dv := -1i * dotu(r.adj, dy)
+	sv := pt.S[out][0]
+	dS := 2 * dv * complex(math.Sqrt(ref[0]/ref[out]), 0)
+	if sv != 0 && !cmplx.IsNaN(sv) {
+		pt.GroupDelay = -imag(dS / sv)
+	} else {
+		pt.GroupDelay = math.NaN()
+	}
+	return pt, true
+}
+
+// sweep runs Sweep's points on the reduction from freqsHz[0] on and
+// returns how many it visited. It stops early, without an error, at a
+// point it cannot take (a frequency out of range, a zero pivot), for the
+// LU to carry on from there; visit's error is returned.
+func (r *reduction) sweep(nw *smallsignal.Network, freqsHz []float64, ref []float64, probes []string, visit func(Point) error) (int, error) {
+	ev := r.points(nw, ref, probes)
+	for k, hz := range freqsHz {
+		if CheckFrequency(hz) != nil {
+			return k, nil
+		}
+		pt, ok := ev.at(hz)
+		if !ok {
+			return k, nil
+		}
+		if err := visit(pt); err != nil {
+			return k, err
+		}
+	}
+	return len(freqsHz), nil
+}
+
+// solveAccurate reports whether the reduced engine's solutions of
+// Y(jw) x = b for each port's excitation agree with refined ones to
+// checkRel in every unknown, with a floor of checkFloor times the largest,
+// at the check frequencies of [lo, hi] Hz: the check for analyses that use
+// whole solution vectors.
+func (r *reduction) solveAccurate(nw *smallsignal.Network, lo, hi float64) bool {
+	b := make([]complex128, r.n)
+	for _, hz := range checkFrequencies(lo, hi) {
+		w := 2 * math.Pi * hz
+		if r.factor(w) != nil {
+			return false
+		}
+		for j := range nw.Ports {
+			nw.Excitation(j, 1, b)
+			x := append([]complex128(nil), b...)
+			r.solve(x)
+			xr := r.refine(nw, w, b)
+			big := 0.0
+			for _, v := range xr {
+				big = math.Max(big, cmplx.Abs(v))
+			}
+			for i := range x {
+				if !(cmplx.Abs(x[i]-xr[i]) <= checkRel*cmplx.Abs(xr[i])+checkFloor*big) {
+					return false
+				}
+			}
+		}
+	}
+	return true
+}
+
+// solver solves the network's equations at one frequency at a time: the
+// reduced engine or the dense LU behind one interface, for analyses that
+// use whole solution vectors (Volterra products, adjoint noise solves).
+type solver interface {
+	// at factors Y(jw) = G + jwC.
+	at(w float64) error
+	// solve overwrites b with the solution of Y(jw) x = b.
+	solve(b []complex128)
+	// solveT overwrites b with the solution of Y(jw)ᵀ z = b.
+	solveT(b []complex128)
+}
+
+// luSolver is the dense LU as a solver.
+type luSolver struct {
+	f    *lu
+	g, c blas64.General
+}
+
+func newLUSolver(nw *smallsignal.Network) *luSolver {
+	return &luSolver{f: newLU(nw.N), g: nw.G.RawMatrix(), c: nw.C.RawMatrix()}
+}
+
+func (s *luSolver) at(w float64) error {
+	s.f.load(s.g.Data, s.c.Data, s.g.Stride, s.c.Stride, w)
+	return s.f.factor()
+}
+
+func (s *luSolver) solve(b []complex128)  { s.f.solve(b) }
+func (s *luSolver) solveT(b []complex128) { s.f.solveT(b) }
+
+func (r *reduction) at(w float64) error { return r.factor(w) }
+
+// newSolver returns the solver for an analysis that factors Y(jw) at each
+// of freqsHz (in hertz) once: the reduction when choice forces it or when
+// it pays for that many points, and it passes its accuracy check
+// (solveAccurate); the dense LU otherwise.
+func newSolver(nw *smallsignal.Network, freqsHz []float64, choice engine) solver {
+	if choice == engineLU {
+		return newLUSolver(nw)
+	}
+	lo, hi, ok := sweepRange(freqsHz)
+	if !ok || (choice == engineAuto && !reducedPays(nw.N, len(freqsHz))) {
+		return newLUSolver(nw)
+	}
+	r, err := reduceFor(nw, lo, hi)
+	if err != nil || !r.solveAccurate(nw, lo, hi) {
+		return newLUSolver(nw)
+	}
+	return r
+}

@@ -1,0 +1,499 @@
+package ac
+
+import (
+	"errors"
+	"fmt"
+	"math"
+
+	"gonum.org/v1/gonum/blas"
+	"gonum.org/v1/gonum/blas/blas64"
+	blasgonum "gonum.org/v1/gonum/blas/gonum"
+	"gonum.org/v1/gonum/lapack"
+	"gonum.org/v1/gonum/lapack/gonum"
+	"gonum.org/v1/gonum/mat"
+)
+
+// reduction is the pencil G + sC reduced once to Hessenberg-triangular
+// form, so that each frequency costs O(n²) instead of the O(n³) of a dense
+// LU (Laub, "Efficient multivariable frequency response computations",
+// IEEE Trans. Automatic Control 26(2), 1981):
+//
+//	Qᵀ Dr (G + sC) Dc Z = H + sT
+//
+// with Q, Z orthogonal, H upper Hessenberg, T upper triangular (singular
+// where C is: nodes without capacitance, voltage-source branch rows), and
+// Dr, Dc diagonal balancing scalings, powers of two so they are exact. Then
+//
+//	(G + sC)⁻¹  = Dc Z (H + sT)⁻¹ Qᵀ Dr
+//	(G + sC)⁻ᵀ  = Dr Q (H + sT)⁻ᵀ Zᵀ Dc
+//
+// and H + jwT stays upper Hessenberg at every w: Gaussian elimination with
+// partial pivoting only ever swaps adjacent rows, so factoring it costs
+// n²/2 complex multiply-adds and each solve about as much.
+//
+// A reduction holds O(n²) numbers (H, T, Q, Z and one factorisation) and
+// nothing per frequency.
+type reduction struct {
+	n    int
+	h, t []float64 // H upper Hessenberg, T upper triangular, n×n row-major
+	// qs = Dr Q and zs = Dc Z, n×n row-major: the balancing is folded in.
+	qs, zs []float64
+
+	// ht packs H + jT by rows, row i from column max(i-1, 0) at
+	// ht[hoff[i]:hoff[i+1]]: the upper Hessenberg part, one stream for
+	// the elimination to read.
+	ht   []complex128
+	hoff []int
+
+	// The factorisation of H + jwT at the last frequency factored:
+	// P_k swaps rows k and k+1 where swap[k], then row k+1 loses l[k]
+	// times row k; U is upper triangular, urow[k] its row k from the
+	// diagonal on. The rows live in pool, pool[j] holding n - j + 1
+	// entries from column max(j-1, 0): when the pivoting swaps, rows
+	// change places instead of values.
+	urow   [][]complex128
+	pool   [][]complex128
+	inv    []complex128 // 1/U_kk
+	l      []complex128
+	swap   []bool
+	work   []complex128
+	yr, yi []float64 // real and imaginary parts for products with T
+
+	// adjRHS, when set, is a right-hand side c whose adjoint solution
+	// v = (H + jwT)⁻ᵀ c factor leaves in adj: the forward substitution
+	// with Uᵀ runs on each row of U as the elimination makes it, while
+	// the row is in cache.
+	adjRHS []float64
+	adj    []complex128
+}
+
+// blasImpl is gonum's native BLAS, for its assembly kernels.
+var blasImpl blasgonum.Implementation
+
+// errReduction reports a reduction that cannot be used.
+var errReduction = errors.New("reduction unusable")
+
+// reduce computes the Hessenberg-triangular form of G + sC: a balancing
+// of |G| + wRef|C| (Ruiz's iterated row and column equilibration, rounded
+// to powers of two), a QR factorisation with column pivoting of the
+// balanced C (gonum lapack Dgeqp3, Dorgqr), then the reduction of
+// (Q1ᵀ G P, R) by Givens rotations (Dgghrd; Moler and Stewart, "An
+// algorithm for generalized matrix eigenvalue problems", SIAM J. Numer.
+// Anal. 10(2), 1973). Cost O(n³), once.
+func reduce(g, c *mat.Dense, wRef float64) (*reduction, error) {
+	n, nc := g.Dims()
+	if r, cc := c.Dims(); n != nc || r != n || cc != n {
+		return nil, fmt.Errorf("reduction: G and C must be square and alike")
+	}
+	gr, cr := g.RawMatrix(), c.RawMatrix()
+	for i := 0; i < n; i++ {
+		for j := 0; j < n; j++ {
+			if v, u := gr.Data[i*gr.Stride+j], cr.Data[i*cr.Stride+j]; math.IsNaN(v+u) || math.IsInf(v+u, 0) {
+				return nil, fmt.Errorf("reduction: non-finite matrix entry at (%d, %d): %w", i, j, errReduction)
+			}
+		}
+	}
+	dr, dc := balance(gr, cr, n, wRef)
+
+	a := make([]float64, n*n) // Dr G Dc, then Q1ᵀ Dr G Dc P, then H
+	b := make([]float64, n*n) // Dr C Dc, then its QR factors, then T
+	for i := 0; i < n; i++ {
+		for j := 0; j < n; j++ {
+			a[i*n+j] = dr[i] * gr.Data[i*gr.Stride+j] * dc[j]
+			b[i*n+j] = dr[i] * cr.Data[i*cr.Stride+j] * dc[j]
+		}
+	}
+	r := &reduction{n: n}
+	if n == 0 {
+		return r, nil
+	}
+	var impl gonum.Implementation
+	jpvt := make([]int, n)
+	for j := range jpvt {
+		jpvt[j] = -1
+	}
+	tau := make([]float64, n)
+	work := make([]float64, 1)
+	impl.Dgeqp3(n, n, b, n, jpvt, tau, work, -1)
+	lwork := int(work[0])
+	impl.Dorgqr(n, n, n, b, n, tau, work, -1)
+	lwork = max(lwork, int(work[0]), 1)
+	work = make([]float64, lwork)
+
+	impl.Dgeqp3(n, n, b, n, jpvt, tau, work, lwork)
+	t := make([]float64, n*n) // R, then T
+	for i := 0; i < n; i++ {
+		copy(t[i*n+i:i*n+n], b[i*n+i:i*n+n])
+	}
+	q := b // Q1 explicitly, in place of its reflectors
+	impl.Dorgqr(n, n, n, q, n, tau, work, lwork)
+	// Q1ᵀ A P, with P applied first: column j of A P is column jpvt[j] of
+	// A. (Q1ᵀ is applied from the explicit Q1 rather than by Dormqr from
+	// the reflectors: gonum v0.17.0's blocked Dormqr returned a wrong
+	// product on balanced network matrices whose unblocked path and
+	// Dorgqr agreed; see TestReductionReconstructs.)
+	ap := make([]float64, n*n)
+	for i := 0; i < n; i++ {
+		for j := 0; j < n; j++ {
+			ap[i*n+j] = a[i*n+jpvt[j]]
+		}
+	}
+	blas64.Gemm(blas.Trans, blas.NoTrans, 1,
+		blas64.General{Rows: n, Cols: n, Data: q, Stride: n},
+		blas64.General{Rows: n, Cols: n, Data: ap, Stride: n},
+		0, blas64.General{Rows: n, Cols: n, Data: a, Stride: n})
+	z := make([]float64, n*n) // the permutation P as a matrix
+	for j, p := range jpvt {
+		z[p*n+j] = 1
+	}
+	// Q1ᵀ A P = Q2 H Z2ᵀ and R = Q2 T Z2ᵀ; Dgghrd post-multiplies Q1 by
+	// Q2 and P by Z2.
+	impl.Dgghrd(lapack.OrthoPostmul, lapack.OrthoPostmul, n, 0, n-1, a, n, t, n, q, n, z, n)
+	for i := 2; i < n; i++ {
+		clear(a[i*n : i*n+i-1])
+	}
+	for i := 0; i < n; i++ {
+		for j := 0; j < n; j++ {
+			q[i*n+j] *= dr[i]
+			z[i*n+j] *= dc[i]
+		}
+	}
+	r.h, r.t, r.qs, r.zs = a, t, q, z
+	r.alloc()
+	return r, nil
+}
+
+// alloc packs H + jT and makes the factorisation's storage: O(n²),
+// once.
+func (r *reduction) alloc() {
+	n := r.n
+	r.urow = make([][]complex128, n)
+	r.pool = make([][]complex128, n)
+	for j := range r.pool {
+		r.pool[j] = make([]complex128, n-max(j-1, 0))
+	}
+	r.hoff = make([]int, n+1)
+	for i := 0; i < n; i++ {
+		r.hoff[i+1] = r.hoff[i] + n - max(i-1, 0)
+	}
+	r.ht = make([]complex128, r.hoff[n])
+	for i := 0; i < n; i++ {
+		lo := max(i-1, 0)
+		row := r.ht[r.hoff[i]:r.hoff[i+1]]
+		for j := range row {
+			row[j] = complex(r.h[i*n+lo+j], r.t[i*n+lo+j])
+		}
+	}
+	r.inv = make([]complex128, n)
+	r.l = make([]complex128, n)
+	r.swap = make([]bool, n)
+	r.work = make([]complex128, n)
+	r.yr, r.yi = make([]float64, n), make([]float64, n)
+	r.adj = make([]complex128, n)
+}
+
+// balance returns power-of-two row and column scalings dr, dc that bring
+// every row and column of M = |G| + wRef |C| to a largest entry near one
+// (Ruiz, "A scaling algorithm to equilibrate both rows and columns norms
+// in matrices", RAL-TR-2001-034, 2001). Orthogonal reductions bound errors
+// by the norm of the whole matrix; equilibration keeps rows of small
+// admittances (a teraohm bias resistor, a femtofarad) from drowning in the
+// rounding of large ones.
+func balance(g, c blas64.General, n int, wRef float64) (dr, dc []float64) {
+	m := make([]float64, n*n)
+	for i := 0; i < n; i++ {
+		for j := 0; j < n; j++ {
+			m[i*n+j] = math.Abs(g.Data[i*g.Stride+j]) + wRef*math.Abs(c.Data[i*c.Stride+j])
+		}
+	}
+	dr, dc = make([]float64, n), make([]float64, n)
+	for i := range dr {
+		dr[i], dc[i] = 1, 1
+	}
+	colMax := make([]float64, n)
+	for iter := 0; iter < 10; iter++ {
+		clear(colMax)
+		done := true
+		for i := 0; i < n; i++ {
+			rowMax := 0.0
+			for j := 0; j < n; j++ {
+				v := dr[i] * m[i*n+j] * dc[j]
+				rowMax = math.Max(rowMax, v)
+				colMax[j] = math.Max(colMax[j], v)
+			}
+			if rowMax > 0 {
+				dr[i] /= math.Sqrt(rowMax)
+				done = done && math.Abs(rowMax-1) < 0.5
+			}
+		}
+		for j := 0; j < n; j++ {
+			if colMax[j] > 0 {
+				dc[j] /= math.Sqrt(colMax[j])
+				done = done && math.Abs(colMax[j]-1) < 0.5
+			}
+		}
+		if done {
+			break
+		}
+	}
+	pow2 := func(x float64) float64 {
+		if x == 0 || math.IsInf(x, 0) || math.IsNaN(x) {
+			return 1
+		}
+		return math.Exp2(math.Round(math.Log2(x)))
+	}
+	for i := range dr {
+		dr[i], dc[i] = pow2(dr[i]), pow2(dc[i])
+	}
+	return dr, dc
+}
+
+// factor factors H + jwT by Gaussian elimination with partial pivoting,
+// which on an upper Hessenberg matrix eliminates one subdiagonal entry per
+// step (Laub 1981). Row k+1 of H + jwT is untouched until step k, so it is
+// formed as the elimination reaches it: one pass over H and T, and one
+// axpy per step (gonum's Zaxpy).
+func (r *reduction) factor(w float64) error {
+	n := r.n
+	if n == 0 {
+		return nil
+	}
+	// form writes row i of H + jwT, from column max(i-1, 0) on, into v.
+	form := func(i int, v []complex128) {
+		src := r.ht[r.hoff[i]:r.hoff[i+1]]
+		v = v[:len(src)]
+		for j, x := range src {
+			v[j] = complex(real(x), w*imag(x))
+		}
+	}
+	// carried is row k, from column k on, after the steps before k; the
+	// fresh row k+1 goes into pool[k+1], which starts at column k.
+	carried := r.pool[0]
+	form(0, carried)
+	adj := r.adj
+	if r.adjRHS != nil {
+		for i, v := range r.adjRHS[:n] {
+			adj[i] = complex(v, 0)
+		}
+	}
+	for k := 0; k < n-1; k++ {
+		fresh := r.pool[k+1]
+		form(k+1, fresh)
+		p, f := carried[0], fresh[0]
+		pivot, other := carried, fresh
+		r.swap[k] = abs1(f) > abs1(p)
+		if r.swap[k] {
+			pivot, other, p, f = fresh, carried, f, p
+		}
+		if p == 0 {
+			return errSingular
+		}
+		// l = f/p without the runtime's complex division.
+		d := real(p)*real(p) + imag(p)*imag(p)
+		l := f * complex(real(p)/d, -imag(p)/d)
+		r.l[k] = l
+		if m := n - k - 1; m > 0 {
+			axpy(-l, pivot[1:n-k], other[1:n-k])
+		}
+		r.urow[k] = pivot[:n-k]
+		carried = other[1:]
+		if r.adjRHS != nil {
+			// Uᵀ w = c, row k of U is column k of Uᵀ.
+			wk := adj[k] * complex(real(p)/d, -imag(p)/d)
+			adj[k] = wk
+			if m := n - k - 1; m > 0 && wk != 0 {
+				axpy(-wk, pivot[1:n-k], adj[k+1:n])
+			}
+		}
+	}
+	r.urow[n-1] = carried[:1]
+	for k := 0; k < n; k++ {
+		d := r.urow[k][0]
+		if d == 0 || isNaNInf(d) {
+			return errSingular
+		}
+		r.inv[k] = 1 / d
+	}
+	if r.adjRHS != nil {
+		// v = M_0ᵀ ... M_(n-2)ᵀ w, as in solveYT.
+		adj[n-1] *= r.inv[n-1]
+		for k := n - 2; k >= 0; k-- {
+			adj[k] -= r.l[k] * adj[k+1]
+			if r.swap[k] {
+				adj[k], adj[k+1] = adj[k+1], adj[k]
+			}
+		}
+	}
+	return nil
+}
+
+func abs1(z complex128) float64 { return math.Abs(real(z)) + math.Abs(imag(z)) }
+
+func isNaNInf(z complex128) bool {
+	s := real(z) + imag(z)
+	return math.IsNaN(s) || math.IsInf(s, 0)
+}
+
+// solveY overwrites c with the solution of (H + jwT) y = c.
+func (r *reduction) solveY(c []complex128) {
+	n := r.n
+	for k := 0; k < n-1; k++ {
+		if r.swap[k] {
+			c[k], c[k+1] = c[k+1], c[k]
+		}
+		c[k+1] -= r.l[k] * c[k]
+	}
+	for i := n - 1; i >= 0; i-- {
+		c[i] = (c[i] - dotu(r.urow[i][1:], c[i+1:n])) * r.inv[i]
+	}
+}
+
+// solveY2 solves (H + jwT) y = c for two right-hand sides at once, in
+// place.
+func (r *reduction) solveY2(c, d []complex128) {
+	n := r.n
+	for k := 0; k < n-1; k++ {
+		if r.swap[k] {
+			c[k], c[k+1] = c[k+1], c[k]
+			d[k], d[k+1] = d[k+1], d[k]
+		}
+		c[k+1] -= r.l[k] * c[k]
+		d[k+1] -= r.l[k] * d[k]
+	}
+	for i := n - 1; i >= 0; i-- {
+		row := r.urow[i][1:]
+		c[i] = (c[i] - dotu(row, c[i+1:n])) * r.inv[i]
+		d[i] = (d[i] - dotu(row, d[i+1:n])) * r.inv[i]
+	}
+}
+
+// solveYT overwrites c with the solution of (H + jwT)ᵀ v = c (plain
+// transpose). With M_k = L_k P_k and M_(n-2)...M_0 A = U, Aᵀ v = c is
+// Uᵀ w = c followed by v = M_0ᵀ ... M_(n-2)ᵀ w.
+func (r *reduction) solveYT(c []complex128) {
+	n := r.n
+	for j := 0; j < n; j++ {
+		cj := c[j] * r.inv[j]
+		c[j] = cj
+		if cj != 0 && j+1 < n {
+			axpy(-cj, r.urow[j][1:], c[j+1:n])
+		}
+	}
+	for k := n - 2; k >= 0; k-- {
+		c[k] -= r.l[k] * c[k+1]
+		if r.swap[k] {
+			c[k], c[k+1] = c[k+1], c[k]
+		}
+	}
+}
+
+// dotu returns Σ a_j y_j (no conjugate): gonum's Zdotu, whose assembly
+// kernel outruns Go's scalar complex arithmetic on all but short rows.
+func dotu(a, y []complex128) complex128 {
+	if len(a) < shortRow {
+		var s complex128
+		y = y[:len(a)]
+		for j, v := range a {
+			s += v * y[j]
+		}
+		return s
+	}
+	return blasImpl.Zdotu(len(a), a, 1, y, 1)
+}
+
+// shortRow is the length below which Go loops beat the call into
+// gonum's assembly kernels.
+const shortRow = 24
+
+// axpy sets y += alpha x: gonum's Zaxpy but on short rows.
+func axpy(alpha complex128, x, y []complex128) {
+	if len(x) < shortRow {
+		y = y[:len(x)]
+		for j, v := range x {
+			y[j] += alpha * v
+		}
+		return
+	}
+	blasImpl.Zaxpy(len(x), alpha, x, 1, y, 1)
+}
+
+// mulT sets d = T y for the upper triangular T: two real triangular
+// products (gonum's Dtrmv) on the parts of y.
+func (r *reduction) mulT(y, d []complex128) {
+	n := r.n
+	yr, yi := r.yr, r.yi
+	for i, v := range y[:n] {
+		yr[i], yi[i] = real(v), imag(v)
+	}
+	blasImpl.Dtrmv(blas.Upper, blas.NoTrans, blas.NonUnit, n, r.t, n, yr, 1)
+	blasImpl.Dtrmv(blas.Upper, blas.NoTrans, blas.NonUnit, n, r.t, n, yi, 1)
+	for i := range d[:n] {
+		d[i] = complex(yr[i], yi[i])
+	}
+}
+
+// project returns Qᵀ Dr b in y, for b in the network's unknowns.
+func (r *reduction) project(b, y []complex128) {
+	n := r.n
+	clear(y)
+	for i, bi := range b {
+		if bi == 0 {
+			continue
+		}
+		row := r.qs[i*n : i*n+n]
+		for j, q := range row {
+			y[j] += complex(q, 0) * bi
+		}
+	}
+}
+
+// solve overwrites b with the solution x of Y(jw) x = b, Y factored by
+// factor(w): x = Dc Z (H + jwT)⁻¹ Qᵀ Dr b. O(n²).
+func (r *reduction) solve(b []complex128) {
+	n := r.n
+	y := r.work
+	r.project(b, y)
+	r.solveY(y)
+	for i := 0; i < n; i++ {
+		b[i] = dotReal(r.zs[i*n:i*n+n], y)
+	}
+}
+
+// solveT overwrites b with the solution z of Y(jw)ᵀ z = b (plain
+// transpose, the adjoint solve): z = Dr Q (H + jwT)⁻ᵀ Zᵀ Dc b. O(n²).
+func (r *reduction) solveT(b []complex128) {
+	n := r.n
+	v := r.work
+	clear(v)
+	for i, bi := range b {
+		if bi == 0 {
+			continue
+		}
+		row := r.zs[i*n : i*n+n]
+		for j, z := range row {
+			v[j] += complex(z, 0) * bi
+		}
+	}
+	r.solveYT(v)
+	for i := 0; i < n; i++ {
+		b[i] = dotReal(r.qs[i*n:i*n+n], v)
+	}
+}
+
+// dotReal returns Σ a_j y_j for real a.
+func dotReal(a []float64, y []complex128) complex128 {
+	var r0, i0, r1, i1 float64
+	y = y[:len(a)]
+	j := 0
+	for ; j+1 < len(a); j += 2 {
+		r0 += a[j] * real(y[j])
+		i0 += a[j] * imag(y[j])
+		r1 += a[j+1] * real(y[j+1])
+		i1 += a[j+1] * imag(y[j+1])
+	}
+	if j < len(a) {
+		r0 += a[j] * real(y[j])
+		i0 += a[j] * imag(y[j])
+	}
+	return complex(r0+r1, i0+i1)
+}

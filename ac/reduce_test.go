@@ -1,0 +1,598 @@
+package ac
+
+import (
+	"fmt"
+	"math"
+	"math/cmplx"
+	"math/rand/v2"
+	"os"
+	"path/filepath"
+	"testing"
+
+	"gonum.org/v1/gonum/mat"
+
+	"qpoint/smallsignal"
+)
+
+// randomMNA builds a random linearised network in modified nodal form with
+// about nodes node unknowns: a resistor tree to ground (so every node has
+// a DC path), then resistors, capacitors and linearised diodes (g1 in
+// parallel with c1, some behind a series resistance with its own internal
+// node), inductor branches and voltage-source branches (never in a loop
+// of sources), and one to three ports terminated in their reference
+// impedances. Values span the ranges of RF diode circuits: 1 Ω to 1 MΩ,
+// 0.1 pF to 1 nF, 1 nH to 1 µH, junction conductances 10 nS to 100 mS.
+func randomMNA(rng *rand.Rand, nodes int) *smallsignal.Network {
+	logU := func(lo, hi float64) float64 { return math.Pow(10, lo+(hi-lo)*rng.Float64()) }
+	type two struct {
+		a, b int
+		v    float64
+	}
+	var conds, caps []two
+	type branch struct {
+		a, b int
+		l    float64
+	}
+	var branches []branch
+	nn := nodes
+	pick := func() int { // a node or ground (-1)
+		if rng.IntN(6) == 0 {
+			return smallsignal.Ground
+		}
+		return rng.IntN(nodes)
+	}
+	pair := func() (int, int) {
+		for {
+			a, b := pick(), pick()
+			if a != b {
+				return a, b
+			}
+		}
+	}
+	for i := 0; i < nodes; i++ {
+		j := smallsignal.Ground
+		if i > 0 && rng.IntN(4) != 0 {
+			j = rng.IntN(i)
+		}
+		conds = append(conds, two{i, j, 1 / logU(0, 6)})
+	}
+	for e := 0; e < 2*nodes; e++ {
+		a, b := pair()
+		switch rng.IntN(5) {
+		case 0:
+			conds = append(conds, two{a, b, 1 / logU(0, 6)})
+		case 1, 2:
+			caps = append(caps, two{a, b, logU(-13, -9)})
+		case 3: // linearised diode
+			if rng.IntN(2) == 0 { // series resistance: an internal junction node
+				j := nn
+				nn++
+				conds = append(conds, two{a, j, 1 / logU(0, 2)})
+				a = j
+			}
+			conds = append(conds, two{a, b, logU(-8, -1)})
+			caps = append(caps, two{a, b, logU(-13.5, -11)})
+		case 4:
+			branches = append(branches, branch{a, b, logU(-9, -6)})
+		}
+	}
+	// Voltage sources: union-find over their terminals keeps them out of
+	// loops (a loop of ideal sources has no solution).
+	parent := map[int]int{}
+	var find func(int) int
+	find = func(x int) int {
+		if p, ok := parent[x]; ok && p != x {
+			r := find(p)
+			parent[x] = r
+			return r
+		}
+		return x
+	}
+	for s := 0; s < 1+nodes/8; s++ {
+		a, b := pair()
+		if find(a) == find(b) {
+			continue
+		}
+		parent[find(a)] = find(b)
+		branches = append(branches, branch{a, b, 0})
+	}
+	nw := &smallsignal.Network{Nodes: map[string]int{}}
+	for i := 0; i < nn; i++ {
+		name := fmt.Sprintf("n%d", i)
+		nw.Names = append(nw.Names, name)
+		nw.Nodes[name] = i
+	}
+	np := 1 + rng.IntN(3)
+	for p := 0; p < np; p++ {
+		node := rng.IntN(nodes)
+		ret := smallsignal.Ground
+		if rng.IntN(4) == 0 {
+			for ret = rng.IntN(nodes); ret == node; ret = rng.IntN(nodes) {
+			}
+		}
+		z0 := []float64{50, 75, 25, 100}[rng.IntN(4)]
+		nw.Ports = append(nw.Ports, smallsignal.Port{Name: fmt.Sprintf("p%d", p+1), Node: node, Return: ret, Impedance: z0})
+		conds = append(conds, two{node, ret, 1 / z0})
+	}
+	nw.NodeUnknowns = nn
+	n := nn + len(branches)
+	nw.N = n
+	nw.G, nw.C = mat.NewDense(n, n, nil), mat.NewDense(n, n, nil)
+	stamp := func(m *mat.Dense, t two) {
+		if t.a >= 0 {
+			m.Set(t.a, t.a, m.At(t.a, t.a)+t.v)
+		}
+		if t.b >= 0 {
+			m.Set(t.b, t.b, m.At(t.b, t.b)+t.v)
+		}
+		if t.a >= 0 && t.b >= 0 {
+			m.Set(t.a, t.b, m.At(t.a, t.b)-t.v)
+			m.Set(t.b, t.a, m.At(t.b, t.a)-t.v)
+		}
+	}
+	for _, t := range conds {
+		stamp(nw.G, t)
+	}
+	for _, t := range caps {
+		stamp(nw.C, t)
+	}
+	for k, br := range branches {
+		row := nn + k
+		nw.Names = append(nw.Names, fmt.Sprintf("b%d#current", k))
+		if br.a >= 0 {
+			nw.G.Set(br.a, row, 1)
+			nw.G.Set(row, br.a, 1)
+		}
+		if br.b >= 0 {
+			nw.G.Set(br.b, row, -1)
+			nw.G.Set(row, br.b, -1)
+		}
+		nw.C.Set(row, row, -br.l)
+	}
+	return nw
+}
+
+// luSolve solves Y(jw) x = b by the dense LU.
+func luSolve(nw *smallsignal.Network, w float64, b []complex128) error {
+	f := newLU(nw.N)
+	g, c := nw.G.RawMatrix(), nw.C.RawMatrix()
+	f.load(g.Data, c.Data, g.Stride, c.Stride, w)
+	if err := f.factor(); err != nil {
+		return err
+	}
+	f.solve(b)
+	return nil
+}
+
+func maxRel(a, b []complex128) float64 {
+	var d, s float64
+	for i := range a {
+		d = math.Max(d, cmplx.Abs(a[i]-b[i]))
+		s = math.Max(s, cmplx.Abs(b[i]))
+	}
+	return d / s
+}
+
+// sweepWith runs a sweep on the chosen engine and keeps its points.
+func sweepWith(t *testing.T, nw *smallsignal.Network, freqs []float64, s Settings, choice engine) []Point {
+	t.Helper()
+	var pts []Point
+	if _, _, err := sweep(nw, freqs, s, func(p Point) error {
+		pts = append(pts, p)
+		return nil
+	}, choice); err != nil {
+		t.Fatal(err)
+	}
+	return pts
+}
+
+// sweepsDiffer describes the first point and quantity in which two
+// sweeps differ by more than rel relative (see pointsDiffer for the
+// floors of vanishing quantities), or returns "".
+func sweepsDiffer(a, b []Point, rel float64) string {
+	if len(a) != len(b) {
+		return fmt.Sprintf("%d points against %d", len(a), len(b))
+	}
+	for k := range b {
+		if d := pointsDiffer(a[k], b[k], rel); d != "" {
+			return d
+		}
+	}
+	return ""
+}
+
+// TestReducedSweepDemos: on every demo circuit the reduced engine is
+// chosen (its accuracy check passes) and its sweep equals the dense LU's
+// to 1e-9 relative in S, Z_in, probes and group delay.
+func TestReducedSweepDemos(t *testing.T) {
+	files, _ := filepath.Glob("../testdata/demo/*.yaml")
+	if len(files) == 0 {
+		t.Fatal("no demo circuits found")
+	}
+	for _, f := range files {
+		data, err := os.ReadFile(f)
+		if err != nil {
+			t.Fatal(err)
+		}
+		nw := network(t, string(data))
+		freqs, _ := LogGrid(1e3, 1e11, 25)
+		ref := make([]float64, len(nw.Ports))
+		for i, p := range nw.Ports {
+			ref[i] = p.Impedance
+		}
+		probes := nw.Point.Circuit.Probes
+		idx := make([]int, len(probes))
+		for k, name := range probes {
+			idx[k] = probeIndex(nw, name)
+		}
+		if sweepEngine(nw, freqs, ref, probes, engineReduced) == nil {
+			t.Errorf("%s: the reduction failed its accuracy check", f)
+		}
+		red := sweepWith(t, nw, freqs, Settings{}, engineReduced)
+		lu := sweepWith(t, nw, freqs, Settings{}, engineLU)
+		if d := sweepsDiffer(red, lu, 1e-9); d != "" {
+			t.Errorf("%s (n = %d): %s", f, nw.N, d)
+		}
+		t.Logf("%s (n = %d): agree to %.0e", filepath.Base(f), nw.N, agreement(red, lu))
+	}
+}
+
+// agreement returns the smallest power of ten rel at which pointsDiffer
+// finds the sweeps equal, for the log.
+func agreement(a, b []Point) float64 {
+	rel := 1e-16
+	for rel < 1 && sweepsDiffer(a, b, rel) != "" {
+		rel *= 10
+	}
+	return rel
+}
+
+// TestReducedSweepRandom: on random RLC networks with linearised diodes,
+// inductor and voltage-source branches and one to three ports, the sweep
+// on the reduced engine equals the dense LU's to 1e-9 relative; the
+// engine's own accuracy check lets nearly all of them through.
+func TestReducedSweepRandom(t *testing.T) {
+	trials := 200
+	if testing.Short() {
+		trials = 40
+	}
+	reduced, worst := 0, 0.0
+	for trial := 0; trial < trials; trial++ {
+		rng := rand.New(rand.NewPCG(17, uint64(trial)))
+		nw := randomMNA(rng, 2+rng.IntN(60))
+		lo := math.Pow(10, 2+5*rng.Float64())
+		freqs, _ := LogGrid(lo, lo*math.Pow(10, 1+3*rng.Float64()), 4)
+		s := Settings{Probes: []string{nw.Names[rng.IntN(nw.NodeUnknowns)], nw.Names[0], "gnd"}}
+		if rng.IntN(3) == 0 {
+			for range nw.Ports {
+				s.Reference = append(s.Reference, []float64{50, 75, 10}[rng.IntN(3)])
+			}
+		}
+		lu := sweepWith(t, nw, freqs, s, engineLU)
+		use := nw
+		ref := make([]float64, len(nw.Ports))
+		for i, p := range nw.Ports {
+			ref[i] = p.Impedance
+		}
+		if s.Reference != nil {
+			use, ref = nw.WithReferences(s.Reference), s.Reference
+		}
+		if sweepEngine(use, freqs, ref, s.Probes, engineReduced) != nil {
+			reduced++
+		}
+		red := sweepWith(t, nw, freqs, s, engineReduced)
+		if d := sweepsDiffer(red, lu, 1e-9); d != "" {
+			t.Errorf("trial %d (n = %d, %d ports): %s", trial, nw.N, len(nw.Ports), d)
+		}
+		worst = math.Max(worst, agreement(red, lu))
+	}
+	t.Logf("%d of %d random networks ran on the reduction; worst agreement %.0e", reduced, trials, worst)
+	if reduced < trials*9/10 {
+		t.Errorf("only %d of %d random networks passed the reduction's accuracy check", reduced, trials)
+	}
+}
+
+// TestReducedSweepFallback: over the whole supported range, 1 mHz to
+// 1 THz, the balancing cannot suit every frequency and the reduction
+// fails its accuracy check on some random networks. The sweep then runs on
+// the LU, so every sweep still equals the LU's to 1e-9; some must have
+// fallen back, or the test does not test the fallback.
+func TestReducedSweepFallback(t *testing.T) {
+	fell := 0
+	freqs, _ := LogGrid(MinFrequencyHz, MaxFrequencyHz, 2)
+	for trial := 0; trial < 100; trial++ {
+		rng := rand.New(rand.NewPCG(23, uint64(trial)))
+		nw := randomMNA(rng, 2+rng.IntN(60))
+		s := Settings{Probes: []string{nw.Names[rng.IntN(nw.NodeUnknowns)]}}
+		ref := make([]float64, len(nw.Ports))
+		for i, p := range nw.Ports {
+			ref[i] = p.Impedance
+		}
+		if sweepEngine(nw, freqs, ref, s.Probes, engineReduced) == nil {
+			fell++
+		}
+		red := sweepWith(t, nw, freqs, s, engineReduced)
+		lu := sweepWith(t, nw, freqs, s, engineLU)
+		if d := sweepsDiffer(red, lu, 1e-9); d != "" {
+			t.Errorf("trial %d (n = %d): %s", trial, nw.N, d)
+		}
+	}
+	t.Logf("%d of 100 sweeps over 15 decades fell back to the LU", fell)
+	if fell == 0 {
+		t.Error("no sweep fell back to the LU: the fallback is untested")
+	}
+}
+
+// TestReducedSweepHandsOver: a point the reduction cannot take stops its
+// sweep there without an error, and Sweep's LU carries on from it.
+func TestReducedSweepHandsOver(t *testing.T) {
+	rng := rand.New(rand.NewPCG(3, 3))
+	nw := randomMNA(rng, 20)
+	ref := make([]float64, len(nw.Ports))
+	for i, p := range nw.Ports {
+		ref[i] = p.Impedance
+	}
+	r, err := reduceFor(nw, 1e6, 1e9)
+	if err != nil {
+		t.Fatal(err)
+	}
+	visited := 0
+	done, err := r.sweep(nw, []float64{1e6, 1e7, 0, 1e9}, ref, nil, func(Point) error { visited++; return nil })
+	if done != 2 || visited != 2 || err != nil {
+		t.Errorf("reduced sweep over 1 MHz, 10 MHz, 0 Hz, 1 GHz: stopped after %d points (%d visited), error %v; want 2, 2, nil", done, visited, err)
+	}
+	if _, _, err := sweep(nw, []float64{1e6, 1e7, 0, 1e9}, Settings{Probes: []string{}}, func(Point) error { return nil }, engineReduced); err == nil {
+		t.Error("a sweep through 0 Hz: no error")
+	}
+}
+
+// TestSolverAdjoint: the reduced engine's solve and adjoint (transpose)
+// solve, the ones Volterra products and noise use, equal the dense LU's
+// to 1e-9 relative in every unknown (floor 1e-13 of the largest). Whole
+// solution vectors are a stricter test than a sweep's outputs: unknowns
+// far below the largest carry the reduction's normwise rounding, and its
+// accuracy check sends some networks to the LU; most must pass it.
+func TestSolverAdjoint(t *testing.T) {
+	passed := 0
+	defer func() {
+		t.Logf("%d of 40 random networks passed the whole-vector check", passed)
+		if passed < 30 {
+			t.Errorf("only %d of 40 random networks passed the whole-vector check", passed)
+		}
+	}()
+	for trial := 0; trial < 40; trial++ {
+		rng := rand.New(rand.NewPCG(29, uint64(trial)))
+		nw := randomMNA(rng, 2+rng.IntN(50))
+		freqs := []float64{1e6, 3e7, 1e9}
+		red := newSolver(nw, freqs, engineReduced)
+		if _, ok := red.(*reduction); ok {
+			passed++
+		}
+		lu := newSolver(nw, freqs, engineLU)
+		for _, f := range freqs {
+			w := 2 * math.Pi * f
+			if err := red.at(w); err != nil {
+				t.Fatal(err)
+			}
+			if err := lu.at(w); err != nil {
+				t.Fatal(err)
+			}
+			b := make([]complex128, nw.N)
+			for i := range b {
+				b[i] = complex(rng.NormFloat64(), rng.NormFloat64())
+			}
+			for _, tr := range []bool{false, true} {
+				x, y := append([]complex128(nil), b...), append([]complex128(nil), b...)
+				if tr {
+					red.solveT(x)
+					lu.solveT(y)
+				} else {
+					red.solve(x)
+					lu.solve(y)
+				}
+				big := 0.0
+				for _, v := range y {
+					big = math.Max(big, cmplx.Abs(v))
+				}
+				for i := range x {
+					if d := cmplx.Abs(x[i] - y[i]); d > 1e-9*cmplx.Abs(y[i])+1e-13*big {
+						t.Errorf("trial %d at %g Hz (transpose %v): x[%d] = %v, LU gives %v", trial, f, tr, i, x[i], y[i])
+						break
+					}
+				}
+			}
+		}
+	}
+}
+
+// TestVolterraEngines: every demo's two-tone Volterra estimate, products
+// and per-diode contributions, is the same to 1e-9 relative whether its
+// solves at f1, 2f1, 3f1, f2, f1 ± f2 and 2f1 - f2 run on the reduction or
+// the LU.
+func TestVolterraEngines(t *testing.T) {
+	files, _ := filepath.Glob("../testdata/demo/*.yaml")
+	for _, f := range files {
+		data, err := os.ReadFile(f)
+		if err != nil {
+			t.Fatal(err)
+		}
+		nw := network(t, string(data))
+		if len(nw.Diodes) == 0 {
+			continue
+		}
+		f1 := nw.Point.Circuit.Analysis.Distortion.FrequencyHz
+		if f1 == 0 {
+			f1 = 1e9
+		}
+		d := Drive{Input: 0, Output: Output{Port: len(nw.Ports) - 1}, FrequencyHz: f1, SecondToneHz: f1 + 10e6, EMF: 0.05}
+		if len(nw.Ports) == 1 {
+			d.Output = Output{Port: -1, Node: nw.Names[0]}
+		}
+		if _, ok := newSolver(nw, []float64{f1, 2 * f1, 3 * f1, f1 + 10e6, 2*f1 + 10e6, -10e6, f1 - 10e6}, engineReduced).(*reduction); !ok {
+			t.Errorf("%s: the reduction failed its accuracy check", f)
+		}
+		red, err := volterraOn(nw, d, engineReduced)
+		if err != nil {
+			t.Fatal(err)
+		}
+		lu, err := volterraOn(nw, d, engineLU)
+		if err != nil {
+			t.Fatal(err)
+		}
+		// A product's natural scale is the sum of its contributions'
+		// magnitudes: a balanced product cancels to rounding of it.
+		gross := map[Product]float64{}
+		for _, c := range lu.Contributions {
+			gross[c.Product] += cmplx.Abs(c.Phasor)
+		}
+		check := func(what string, a, b complex128, floor float64) {
+			if d := cmplx.Abs(a - b); d > 1e-9*cmplx.Abs(b)+floor {
+				t.Errorf("%s: %s = %v on the reduction, %v on the LU", filepath.Base(f), what, a, b)
+			}
+		}
+		// A product the circuit balances out is rounding of its
+		// contributions on either engine (Estimate.Balanced): its value is
+		// not compared, only that both engines call it balanced.
+		product := func(p Product, a, b complex128) {
+			if !lu.Balanced(p) {
+				check(string(p), a, b, 1e-13*gross[p])
+			}
+		}
+		check("fundamental", red.Fundamental, lu.Fundamental, 0)
+		check("second fundamental", red.SecondFundamental, lu.SecondFundamental, 0)
+		product(HD2, red.HD2, lu.HD2)
+		product(HD3, red.HD3, lu.HD3)
+		product(DC, complex(red.DCShift, 0), complex(lu.DCShift, 0))
+		product(IM2Sum, red.IM2Sum, lu.IM2Sum)
+		product(IM2Diff, red.IM2Diff, lu.IM2Diff)
+		product(IM3, red.IM3, lu.IM3)
+		for k := range lu.Contributions {
+			c := lu.Contributions[k]
+			check(fmt.Sprintf("%s %s %s", c.Product, c.Diode, c.Source), red.Contributions[k].Phasor, c.Phasor, 1e-13*gross[c.Product])
+		}
+		for _, p := range []Product{DC, HD2, HD3, IM2Sum, IM2Diff, IM3} {
+			if red.Balanced(p) != lu.Balanced(p) {
+				t.Errorf("%s: %s balanced %v on the reduction, %v on the LU", filepath.Base(f), p, red.Balanced(p), lu.Balanced(p))
+			}
+		}
+	}
+}
+
+// TestEngineChoice: the cost rule keeps the LU for small networks and
+// short sweeps and takes the reduction for long sweeps of large ones.
+func TestEngineChoice(t *testing.T) {
+	for _, c := range []struct {
+		n, points int
+		want      bool
+	}{
+		{6, 10000, false}, // a demo: microseconds either way
+		{200, 3, false},   // a Volterra estimate
+		{200, 7, false},   // a two-tone one
+		{200, 20, false},  // below the measured break-even, 21 to 43 points
+		{200, 1000, true},
+		{50, 200, true},
+		{500, 100, true},
+	} {
+		if got := reducedPays(c.n, c.points); got != c.want {
+			t.Errorf("n = %d, %d points: reduction pays = %v, want %v", c.n, c.points, got, c.want)
+		}
+	}
+}
+
+// TestReductionReconstructs: the reduction's factors satisfy
+// (Dr Q)ᵀ G (Dc Z) = H and (Dr Q)ᵀ C (Dc Z) = T to rounding, with H upper
+// Hessenberg and T upper triangular: the form of Moler and Stewart, SIAM
+// J. Numer. Anal. 10(2), 1973, here from gonum's Dgeqp3, Dorgqr and
+// Dgghrd.
+func TestReductionReconstructs(t *testing.T) {
+	for trial := 0; trial < 30; trial++ {
+		rng := rand.New(rand.NewPCG(31, uint64(trial)))
+		nw := randomMNA(rng, 2+rng.IntN(80))
+		n := nw.N
+		r, err := reduceFor(nw, 1e6, 1e10)
+		if err != nil {
+			t.Fatal(err)
+		}
+		qs, zs := mat.NewDense(n, n, r.qs), mat.NewDense(n, n, r.zs)
+		for _, c := range []struct {
+			name string
+			a    *mat.Dense
+			want []float64
+		}{{"H", nw.G, r.h}, {"T", nw.C, r.t}} {
+			var got mat.Dense
+			got.Mul(qs.T(), c.a)
+			got.Mul(&got, zs)
+			want := mat.NewDense(n, n, c.want)
+			var d mat.Dense
+			d.Sub(&got, want)
+			if e, s := mat.Norm(&d, 1), mat.Norm(want, 1); e > 1e-13*s {
+				t.Errorf("trial %d (n = %d): |(Dr Q)ᵀ M (Dc Z) - %s| = %g, |%s| = %g", trial, n, c.name, e, c.name, s)
+			}
+			below := 2 // H: zero below the first subdiagonal
+			if c.name == "T" {
+				below = 1
+			}
+			for i := 0; i < n; i++ {
+				for j := 0; j <= i-below; j++ {
+					if c.want[i*n+j] != 0 {
+						t.Fatalf("trial %d: %s[%d][%d] = %g, want 0", trial, c.name, i, j, c.want[i*n+j])
+					}
+				}
+			}
+		}
+	}
+}
+
+// TestHessenbergSolve: the elimination on H + jwT, and its transpose
+// solve, agree with the dense LU of the same matrix; random H, T with
+// zero diagonal entries of T (a singular C) and rows scaled so that
+// partial pivoting swaps.
+func TestHessenbergSolve(t *testing.T) {
+	rng := rand.New(rand.NewPCG(37, 1))
+	for trial := 0; trial < 50; trial++ {
+		n := 1 + rng.IntN(40)
+		r := &reduction{n: n, h: make([]float64, n*n), t: make([]float64, n*n)}
+		for i := 0; i < n; i++ {
+			scale := math.Pow(10, 4*rng.Float64()-2)
+			for j := max(i-1, 0); j < n; j++ {
+				r.h[i*n+j] = scale * rng.NormFloat64()
+				if j >= i && rng.IntN(3) != 0 {
+					r.t[i*n+j] = scale * rng.NormFloat64()
+				}
+			}
+		}
+		r.alloc()
+		w := math.Pow(10, 2*rng.Float64()-1)
+		if err := r.factor(w); err != nil {
+			t.Fatal(err)
+		}
+		f := newLU(n)
+		f.load(r.h, r.t, n, n, w)
+		if err := f.factor(); err != nil {
+			t.Fatal(err)
+		}
+		swaps := 0
+		for _, s := range r.swap[:max(n-1, 0)] {
+			if s {
+				swaps++
+			}
+		}
+		for _, tr := range []bool{false, true} {
+			b := make([]complex128, n)
+			for i := range b {
+				b[i] = complex(rng.NormFloat64(), rng.NormFloat64())
+			}
+			x, y := append([]complex128(nil), b...), append([]complex128(nil), b...)
+			if tr {
+				r.solveYT(x)
+				f.solveT(y)
+			} else {
+				r.solveY(x)
+				f.solve(y)
+			}
+			if d := maxRel(x, y); d > 1e-10 {
+				t.Errorf("trial %d (n = %d, %d swaps, transpose %v): differs from the dense LU by %g", trial, n, swaps, tr, d)
+			}
+		}
+	}
+}
