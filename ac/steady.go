@@ -8,6 +8,7 @@ import (
 	"github.com/mjibson/go-dsp/fft"
 	"gonum.org/v1/gonum/mat"
 
+	"qpoint/bias/diode"
 	"qpoint/smallsignal"
 )
 
@@ -42,7 +43,8 @@ type Steady struct {
 	// Output holds the output's harmonics: order 0 is the change of its DC
 	// level caused by the signal (the DC shift), orders 1..K its phasors.
 	Output []Harmonic
-	// THDPercent is sqrt(sum_k>=2 A_k²) / A_1 in percent.
+	// THDPercent is sqrt(sum_k>=2 A_k²) / A_1 in percent; NaN where the
+	// output carries no fundamental (A_1 = 0), for which THD is undefined.
 	THDPercent float64
 	// DiodeCurrents[k] holds the harmonics of diode k's junction current
 	// (order 0 is its mean, not its change).
@@ -144,7 +146,10 @@ func SteadyState(nw *smallsignal.Network, d Drive, s SteadySettings) (*Steady, e
 	for _, h := range res.Output[2:] {
 		sum += h.Amplitude * h.Amplitude
 	}
-	res.THDPercent = 100 * math.Sqrt(sum) / res.Output[1].Amplitude
+	res.THDPercent = math.NaN()
+	if a1 := res.Output[1].Amplitude; a1 > 0 {
+		res.THDPercent = 100 * math.Sqrt(sum) / a1
+	}
 	for j := range nw.Diodes {
 		res.DiodeCurrents = append(res.DiodeCurrents, richardson(harmonics(coarse.currents[j], k), harmonics(fine.currents[j], k), n, 2*n+1))
 	}
@@ -282,8 +287,11 @@ func (sh *shooter) portVoltage(i int, x []float64) float64 {
 }
 
 // eval computes f(x, t) = G x + i_d(x) - b_dc - b_sig(t, p), q(x), and, if
-// jg and jc are not nil, their Jacobians.
-func (sh *shooter) eval(x []float64, t float64, p []float64, f, q, jg, jc []float64) {
+// jg and jc are not nil, their Jacobians. With vl not nil, each junction's
+// current and charge are taken on their tangents at the junction voltage
+// vl[k] instead of at x: i(vl) + g(vl) (v - vl), so that a Newton step can
+// stand on a limited junction voltage whatever nodes the junction joins.
+func (sh *shooter) eval(x []float64, t float64, p []float64, f, q, jg, jc, vl []float64) {
 	n := sh.n
 	for i := 0; i < n; i++ {
 		var fs, qs float64
@@ -318,7 +326,7 @@ func (sh *shooter) eval(x []float64, t float64, p []float64, f, q, jg, jc []floa
 			f[pt.Return] += j
 		}
 	}
-	for _, d := range sh.nw.Diodes {
+	for k, d := range sh.nw.Diodes {
 		v := 0.0
 		if d.Junction >= 0 {
 			v += x[d.Junction]
@@ -326,7 +334,15 @@ func (sh *shooter) eval(x []float64, t float64, p []float64, f, q, jg, jc []floa
 		if d.Cathode >= 0 {
 			v -= x[d.Cathode]
 		}
-		i, qd := d.Device.Current(v), d.Device.Charge(v)
+		var i, qd diode.Law
+		if vl != nil {
+			u := vl[k]
+			i, qd = d.Device.Current(u), d.Device.Charge(u)
+			i.Value += i.D1 * (v - u)
+			qd.Value += qd.D1 * (v - u)
+		} else {
+			i, qd = d.Device.Current(v), d.Device.Charge(v)
+		}
 		stamp2(f, q, d.Junction, d.Cathode, i.Value, qd.Value)
 		if jg != nil {
 			stampJ(jg, n, d.Junction, d.Cathode, i.D1)
@@ -377,11 +393,35 @@ func (sh *shooter) solve(x0, p []float64, steps, maxIter int) (*period, error) {
 	p = append([]float64(nil), p...)
 	var lastRes float64
 	prevStep := math.Inf(1)
+	// The start the last step was taken from, and that step, so that a
+	// step which carries the period somewhere the time steps cannot follow
+	// can be retraced in halves.
+	var from, fromP, taken []float64
+	lambda, halvings := 1.0, 0
 	for it := 1; it <= maxIter; it++ {
 		tr, err := sh.integrate(x0, p, steps, true)
 		if err != nil {
-			return nil, fmt.Errorf("%w: %v", ErrNoSteadyState, err)
+			// A full Newton step on the period map, taken from far off
+			// (the DC point of a charge pump, say), can land where a
+			// junction sits volts past its knee and a time step's Newton
+			// cannot find its way back. Damped Newton: go back along the
+			// step, halving it, and go on from the first start the
+			// period can be integrated from.
+			if taken == nil || halvings >= maxHalvings {
+				return nil, fmt.Errorf("%w: %v", ErrNoSteadyState, err)
+			}
+			lambda /= 2
+			halvings++
+			for i := range x0 {
+				x0[i] = from[i] - lambda*taken[i]
+			}
+			for k := range p {
+				p[k] = fromP[k] - lambda*taken[n+k]
+			}
+			it--
+			continue
 		}
+		lambda = 1
 		// Residual: x_N - x_0 and, per DC block, p + mean port voltage.
 		r := make([]float64, nz)
 		scale := 0.0
@@ -414,7 +454,7 @@ func (sh *shooter) solve(x0, p []float64, steps, maxIter int) (*period, error) {
 		var lu mat.LU
 		lu.Factorize(jac)
 		dz := mat.NewVecDense(nz, nil)
-		if err := lu.SolveVecTo(dz, false, mat.NewVecDense(nz, r)); err != nil {
+		if err := lu.SolveVecTo(dz, false, mat.NewVecDense(nz, r)); !solved(err) {
 			return nil, fmt.Errorf("%w: the period map's Jacobian is singular", ErrNoSteadyState)
 		}
 		// Converged when the voltages move by less than 1e-9 relative (or
@@ -423,6 +463,8 @@ func (sh *shooter) solve(x0, p []float64, steps, maxIter int) (*period, error) {
 		// milliohm part. Newton converges quadratically until rounding
 		// stops it: a step that no longer shrinks while the residual is at
 		// the rounding level is converged too.
+		from, fromP = append(from[:0], x0...), append(fromP[:0], p...)
+		taken = append(taken[:0], dz.RawVector().Data...)
 		vmax := 0.0
 		for i := 0; i < sh.nw.NodeUnknowns; i++ {
 			vmax = math.Max(vmax, math.Abs(x0[i]))
@@ -455,6 +497,10 @@ func (sh *shooter) solve(x0, p []float64, steps, maxIter int) (*period, error) {
 	return nil, fmt.Errorf("%w in %d shooting iterations (residual %.3g)", ErrNoSteadyState, maxIter, lastRes)
 }
 
+// maxHalvings bounds how often one solve halves a shooting step whose
+// period could not be integrated.
+const maxHalvings = 20
+
 // trajectory is one integrated period.
 type trajectory struct {
 	xN       []float64
@@ -476,7 +522,7 @@ func (sh *shooter) integrate(x0, p []float64, steps int, sens bool) (*trajectory
 	x := append([]float64(nil), x0...)
 	f, q := make([]float64, n), make([]float64, n)
 	jg, jc := make([]float64, n*n), make([]float64, n*n)
-	sh.eval(x, 0, p, f, q, jg, jc)
+	sh.eval(x, 0, p, f, q, jg, jc, nil)
 	// qd holds dq/dt on dynamic rows: the trapezoidal rule's memory.
 	qd := make([]float64, n)
 	for i := range qd {
@@ -563,7 +609,7 @@ func (sh *shooter) integrate(x0, p []float64, steps int, sens bool) (*trajectory
 		converged := false
 		prevWorst := math.Inf(1)
 		for it := 0; it < 100; it++ {
-			sh.eval(xn, t, p, f, q, jg, jc)
+			sh.eval(xn, t, p, f, q, jg, jc, vl)
 			for i := 0; i < n; i++ {
 				r := f[i]
 				if sh.dyn[i] {
@@ -580,15 +626,15 @@ func (sh *shooter) integrate(x0, p []float64, steps int, sens bool) (*trajectory
 			}
 			lu.Factorize(jac)
 			dx := mat.NewVecDense(n, nil)
-			if err := lu.SolveVecTo(dx, false, mat.NewVecDense(n, rhs)); err != nil {
+			if err := lu.SolveVecTo(dx, false, mat.NewVecDense(n, rhs)); !solved(err) {
 				return nil, fmt.Errorf("singular step matrix at t = %g s", t)
 			}
 			// Judge the step on the node voltages: branch currents follow
 			// from them and can carry the rounding of a milliohm part.
 			// Newton converges quadratically until rounding stops it:
-			// accept an update below 1e-14 relative, or one below 1e-11
+			// accept an update below 1e-13 relative, or one below 1e-10
 			// that no longer shrinks.
-			worst := 0.0
+			worst, moved, vmax := 0.0, 0.0, 0.0
 			for i := 0; i < n; i++ {
 				nx := xn[i] + dx.AtVec(i)
 				if math.IsNaN(nx) || math.IsInf(nx, 0) {
@@ -596,25 +642,27 @@ func (sh *shooter) integrate(x0, p []float64, steps int, sens bool) (*trajectory
 				}
 				if i < sh.nw.NodeUnknowns {
 					worst = math.Max(worst, math.Abs(dx.AtVec(i))/(math.Abs(nx)+1e-3))
+					moved = math.Max(moved, math.Abs(dx.AtVec(i)))
+					vmax = math.Max(vmax, math.Abs(nx))
 				}
 				xn[i] = nx
 			}
-			small := worst <= 1e-13 || (worst <= 1e-10 && worst > prevWorst/4)
+			// A node near 0 V beside nodes at volts moves by their
+			// rounding, which can cycle at 1e-10 of its own size: an
+			// update that no longer shrinks and is below 1e-10 of the
+			// largest voltage is at the rounding level too.
+			small := worst <= 1e-13 || ((worst <= 1e-10 || moved <= 1e-10*(vmax+1e-3)) && worst > prevWorst/4)
 			prevWorst = worst
 			// Junction-voltage limiting keeps a step from overshooting
-			// the exponential.
+			// the exponential: the next iteration takes each junction on
+			// its tangent at the limited voltage, as the DC solver does,
+			// rather than moving a node (which the junction may share
+			// with sources and other junctions, or which may be gnd).
 			limited := false
 			for k, d := range sh.nw.Diodes {
-				v := junctionV(xn, d)
-				lv, lim := d.Device.Limit(v, vl[k])
-				if lim {
-					limited = true
-					shift := lv - v
-					if d.Junction >= 0 && d.Junction != d.Cathode {
-						xn[d.Junction] += shift
-					}
-				}
-				vl[k] = junctionV(xn, d)
+				lv, lim := d.Device.Limit(junctionV(xn, d), vl[k])
+				vl[k] = lv
+				limited = limited || lim
 			}
 			if small && !limited {
 				converged = true
@@ -625,7 +673,7 @@ func (sh *shooter) integrate(x0, p []float64, steps int, sens bool) (*trajectory
 			return nil, fmt.Errorf("no convergence within a time step at t = %g s", t)
 		}
 		// Re-evaluate at the converged point for the memory and Jacobians.
-		sh.eval(xn, t, p, f, q, jg, jc)
+		sh.eval(xn, t, p, f, q, jg, jc, nil)
 		if sens {
 			// J S_{n+1} = a C_n S_n + mem Qd_n - df/dp  (dynamic rows)
 			// J S_{n+1} = -df/dp                        (algebraic rows)
@@ -659,7 +707,7 @@ func (sh *shooter) integrate(x0, p []float64, steps int, sens bool) (*trajectory
 				}
 			}
 			var sNext mat.Dense
-			if err := lu.SolveTo(&sNext, false, b); err != nil {
+			if err := lu.SolveTo(&sNext, false, b); !solved(err) {
 				return nil, fmt.Errorf("singular step matrix at t = %g s", t)
 			}
 			raw := sNext.RawMatrix()
@@ -718,6 +766,20 @@ func (sh *shooter) integrate(x0, p []float64, steps int, sens bool) (*trajectory
 	tr.xN = x
 	tr.sN = S
 	return tr, nil
+}
+
+// solved tells whether an LU solve gave a usable solution. gonum reports an
+// estimated condition number above 1e16 as an error, yet solves; a circuit's
+// step matrix, whose rows mix the siemens of a junction in hard conduction
+// with the nanosiemens of a bias resistor, estimates that high while
+// partial pivoting solves it well, and the Newton iterations check the
+// result anyway. Only an exactly singular matrix fails.
+func solved(err error) bool {
+	var c mat.Condition
+	if errors.As(err, &c) {
+		return !math.IsInf(float64(c), 0) && !math.IsNaN(float64(c))
+	}
+	return err == nil
 }
 
 func junctionV(x []float64, d smallsignal.Diode) float64 {

@@ -16,6 +16,7 @@ const (
 	kclRelTol   = 1e-9  // of the sum of current magnitudes at the node
 	branchTol   = 1e-9  // relative voltage error on source branches
 	stepRelTol  = 1e-7  // intermediate steps of a homotopy need less
+	stallTol    = 1e-6  // relative update accepted when rounding stalls Newton and KCL holds
 	maxVoltStep = 1e6   // V: an iterate beyond this has diverged
 )
 
@@ -44,6 +45,7 @@ func (st *state) copyFrom(o *state) {
 // scratch holds work vectors reused across iterations.
 type scratch struct {
 	b, vj, r, scale, floor []float64
+	save                   []float64 // an iterate kept while refine tries a step
 }
 
 func (s *system) newScratch() *scratch {
@@ -53,6 +55,7 @@ func (s *system) newScratch() *scratch {
 		r:     make([]float64, s.n),
 		scale: make([]float64, s.n),
 		floor: make([]float64, s.n),
+		save:  make([]float64, s.n),
 	}
 }
 
@@ -67,6 +70,7 @@ func (s *system) newton(st *state, lambda, gmin float64, maxIter int, w *scratch
 	if !final {
 		rel = stepRelTol
 	}
+	prevWorst := math.Inf(1)
 	for it := 1; it <= maxIter; it++ {
 		s.junctionVoltages(st.x, w.vj)
 		limited := false
@@ -81,6 +85,7 @@ func (s *system) newton(st *state, lambda, gmin float64, maxIter int, w *scratch
 		}
 		s.mat.Solve(w.b)
 		small := true
+		worst := 0.0 // the largest update over its tolerance
 		for i, xn := range w.b {
 			if math.IsNaN(xn) || math.IsInf(xn, 0) || (i < s.nNodes && math.Abs(xn) > maxVoltStep) {
 				return it, errDiverged
@@ -91,22 +96,67 @@ func (s *system) newton(st *state, lambda, gmin float64, maxIter int, w *scratch
 			} else {
 				tol += currAbsTol
 			}
-			if math.Abs(xn-st.x[i]) > tol {
+			if d := math.Abs(xn - st.x[i]); d > tol {
 				small = false
+				worst = math.Max(worst, d/tol)
 			}
 		}
 		copy(st.x, w.b)
-		if limited || !small {
+		if limited {
+			prevWorst = math.Inf(1)
 			continue
+		}
+		if !small {
+			// Rounding can keep the updates from shrinking below relTol:
+			// a node held only by microsiemens beside a branch of
+			// kiloamperes moves by that branch's rounding, divided by its
+			// own small conductance. Once the updates stall below
+			// stallTol and KCL holds, the iterate is as good as float64
+			// allows.
+			stalled := final && worst <= stallTol/relTol && worst > prevWorst/4
+			prevWorst = worst
+			if !stalled {
+				continue
+			}
+			if ratio, _ := s.kclRatio(st.x, w); ratio > 1 && !s.refine(st.x, w) {
+				continue
+			}
+			return it, nil
 		}
 		if !final {
 			return it, nil
 		}
-		if ratio, _ := s.kclRatio(st.x, w); ratio <= 1 {
+		if ratio, _ := s.kclRatio(st.x, w); ratio <= 1 || s.refine(st.x, w) {
 			return it, nil
 		}
 	}
 	return maxIter, errIterations
+}
+
+// refine takes one step of iterative refinement from x, which Newton has
+// converged to: it solves J d = r with the factors of the last Newton
+// matrix, r the residual of the circuit as described at x, and keeps x - d
+// if that meets the KCL tolerance. Elimination with partial pivoting bounds
+// each row's residual only by the largest entries of the whole matrix, so
+// a node of microamperes beside a branch of amperes can miss its own
+// tolerance by their rounding; one step of refinement in the same
+// precision bounds each row's residual by that row's own entries (Skeel,
+// "Iterative refinement implies numerical stability for Gaussian
+// elimination", Math. Comp. 35(151), 1980). It reports whether x was
+// replaced.
+func (s *system) refine(x []float64, w *scratch) bool {
+	copy(w.save, x)
+	s.residual(x, w.r, w.scale, w.floor)
+	copy(w.b, w.r)
+	s.mat.Solve(w.b)
+	for i := range x {
+		x[i] -= w.b[i]
+	}
+	if ratio, _ := s.kclRatio(x, w); ratio <= 1 {
+		return true
+	}
+	copy(x, w.save)
+	return false
 }
 
 // kclRatio returns the largest ratio of residual to tolerance over all rows

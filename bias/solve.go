@@ -34,8 +34,10 @@ func (f *Failure) Error() string {
 // stepping, source stepping), each from the start point, and returns the
 // first that converges with every aid removed. The returned point satisfies
 // KCL at every node to 1e-12 A + 1e-9 × (sum of current magnitudes at the
-// node) and has node voltages converged to 1e-9 relative. When every
-// strategy fails the error is a *Failure.
+// node) and has node voltages converged to 1e-9 relative, or, where the
+// rounding of large currents keeps the updates from shrinking that far,
+// until they stall below 1e-6 relative. When every strategy fails the
+// error is a *Failure.
 func Solve(c *circuit.Circuit, s Settings) (*Point, error) {
 	begin := time.Now()
 	tempK := c.TemperatureK

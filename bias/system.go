@@ -166,9 +166,20 @@ func newSystem(c *circuit.Circuit, tempK float64) (*system, error) {
 	}
 	perm := band.Order(s.n, s.edges)
 	kl, ku := band.Widths(perm, s.edges)
+	if work := float64(s.n) * float64(kl) * float64(kl+ku); work > maxFactorWork {
+		return nil, fmt.Errorf("the circuit's %d unknowns are wired so that no ordering keeps the matrix banded (bandwidth %d): each Newton step would take about %.2g multiply-adds, more than the %.0g this solver allows; accepted: circuits whose nodes can be ordered so that each connects to near neighbours, as chains, ladders and hand-drawn circuits of a few hundred nodes can",
+			s.n, max(kl, ku), work, float64(maxFactorWork))
+	}
 	s.mat = band.New(perm, kl, ku)
 	return s, nil
 }
+
+// maxFactorWork bounds the multiply-adds of one factorisation of the banded
+// Jacobian, n·kl·(kl+ku), to about a tenth of a second. A ladder of 1000
+// diodes needs 4000; a network of a few thousand randomly joined nodes, which
+// fits in a circuit file, would need 1e10 per Newton step and take hours
+// over the iterations of every strategy.
+const maxFactorWork = 1e8
 
 // volt returns the voltage of unknown i in x (zero for ground).
 func volt(x []float64, i int) float64 {

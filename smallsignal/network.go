@@ -19,12 +19,12 @@ const Ground = -1
 // one branch current per inductor and per voltage source.
 type Network struct {
 	Point *bias.Point
-	N     int        // number of unknowns
+	N     int // number of unknowns
 	// NodeUnknowns counts the voltage unknowns (named and internal nodes),
 	// which come first; branch currents follow.
 	NodeUnknowns int
-	G, C  *mat.Dense // N×N
-	Names []string   // name of each unknown
+	G, C         *mat.Dense // N×N
+	Names        []string   // name of each unknown
 
 	Nodes  map[string]int // named node -> unknown index
 	Ports  []Port

@@ -130,6 +130,10 @@ func (l *loader) quantity(n *yaml.Node, q Quantity, what string) (float64, bool)
 		l.wrapf(n, err, "%s", what)
 		return 0, false
 	}
+	if problem := outOfSpan(v, q); problem != "" {
+		l.errorf(n, "%s is `%s`, %s; accepted: %s", what, s, problem, spans[q].words)
+		return 0, false
+	}
 	return v, true
 }
 

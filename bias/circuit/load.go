@@ -125,6 +125,10 @@ func (l *loader) document(data []byte) *yaml.Node {
 		l.errorAt(line, col, "the file is not valid UTF-8 text; accepted: UTF-8 text (save the file as UTF-8)")
 		return nil
 	}
+	if line, col, r, found := firstControl(data); found {
+		l.errorAt(line, col, "the file holds the control character U+%04X here; accepted: printable text, tabs and line breaks", r)
+		return nil
+	}
 	doc, err := decodeOne(data)
 	if err != nil {
 		var second *secondDocument
@@ -138,7 +142,7 @@ func (l *loader) document(data []byte) *yaml.Node {
 		}
 		return nil
 	}
-	if l.rejectAnchors(doc) {
+	if l.rejectAnchors(doc) || l.rejectLong(doc) {
 		return nil
 	}
 	root := doc
@@ -230,6 +234,32 @@ func (l *loader) rejectAnchors(n *yaml.Node) bool {
 	return found
 }
 
+// MaxScalarLength is the most characters one key, name or value may have.
+// The loader quotes what it reads in its messages; the bound keeps a
+// runaway value (a pasted data column, a missing quote) from filling the
+// terminal, and keeps the cost of reading a number linear.
+const MaxScalarLength = 1000
+
+// rejectLong reports every key or value longer than MaxScalarLength
+// characters, without quoting it.
+func (l *loader) rejectLong(n *yaml.Node) bool {
+	found := false
+	var walk func(*yaml.Node)
+	walk = func(n *yaml.Node) {
+		if n.Kind == yaml.ScalarNode {
+			if c := utf8.RuneCountInString(n.Value); c > MaxScalarLength {
+				l.errorf(n, "this key or value is %d characters long; accepted: keys, names and values of up to %d characters", c, MaxScalarLength)
+				found = true
+			}
+		}
+		for _, c := range n.Content {
+			walk(c)
+		}
+	}
+	walk(n)
+	return found
+}
+
 // firstInvalidUTF8 returns the line and column (in characters) of the first
 // byte that is not valid UTF-8.
 func firstInvalidUTF8(data []byte) (line, col int) {
@@ -247,6 +277,28 @@ func firstInvalidUTF8(data []byte) (line, col int) {
 		data = data[size:]
 	}
 	return line, col
+}
+
+// firstControl finds the first character the YAML reader refuses (YAML
+// 1.2, 5.1: the printable set is tab, line feed, carriage return, x20-x7E,
+// x85, xA0-xD7FF, xE000-xFFFD and x10000-x10FFFF) and returns its line and
+// column, so that the message can point at it; the reader's own message
+// names no place. data must be valid UTF-8.
+func firstControl(data []byte) (line, col int, r rune, found bool) {
+	line, col = 1, 1
+	for _, r := range string(data) {
+		switch {
+		case r == '\n':
+			line, col = line+1, 1
+			continue
+		case r == '\t', r == '\r', r >= 0x20 && r <= 0x7E, r == 0x85,
+			r >= 0xA0 && r <= 0xD7FF, r >= 0xE000 && r <= 0xFFFD, r >= 0x10000 && r <= 0x10FFFF:
+		default:
+			return line, col, r, true
+		}
+		col++
+	}
+	return 0, 0, 0, false
 }
 
 // circuit reads the top-level mapping. Sections are read in the order their

@@ -152,6 +152,17 @@ func parseTemperature(d decimal, rest string, fail func(string) (float64, error)
 		}
 		k = v
 	case "C", "°C":
+		if len(d.mantissa) > maxExactDigits {
+			// Exact arithmetic on a mantissa this long costs time
+			// quadratic in its length (seconds for a megabyte of
+			// digits) and cannot change the float64 it rounds to.
+			v, problem := d.value(0)
+			if problem != "" {
+				return fail(problem)
+			}
+			k = v + zeroCelsiusK
+			break
+		}
 		r, ok := new(big.Rat).SetString(d.mantissa + "e" + strconv.Itoa(d.exp))
 		if !ok {
 			return fail("not a decimal number")
@@ -175,6 +186,10 @@ func parseTemperature(d decimal, rest string, fail func(string) (float64, error)
 	}
 	return k, nil
 }
+
+// maxExactDigits bounds the mantissa a Celsius temperature is converted
+// from in exact decimal arithmetic.
+const maxExactDigits = 64
 
 // decimal is a number as written: a mantissa and a power of ten.
 type decimal struct {

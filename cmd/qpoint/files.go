@@ -15,8 +15,8 @@ var inputs []string
 
 // writeFileAtomic writes a whole file or nothing: the content goes to a
 // temporary file in the same directory, which is synced and renamed over
-// path only when write succeeded. An interrupted or failed write leaves
-// any old file at path untouched.
+// path only when write succeeded. A write that fails or panics leaves any
+// old file at path untouched and removes the temporary file.
 func writeFileAtomic(path string, write func(w io.Writer) error) (err error) {
 	if err := refuseInput(path); err != nil {
 		return err
@@ -26,8 +26,11 @@ func writeFileAtomic(path string, write func(w io.Writer) error) (err error) {
 	if err != nil {
 		return fmt.Errorf("cannot write %s: %w", path, err)
 	}
+	// Until the rename, the temporary file goes away on every way out,
+	// a panic in write included (run recovers it, far from here).
+	renamed := false
 	defer func() {
-		if err != nil {
+		if !renamed {
 			tmp.Close()
 			os.Remove(tmp.Name())
 		}
@@ -51,6 +54,7 @@ func writeFileAtomic(path string, write func(w io.Writer) error) (err error) {
 	if err := os.Rename(tmp.Name(), path); err != nil {
 		return fmt.Errorf("writing %s: %w", path, err)
 	}
+	renamed = true
 	return nil
 }
 

@@ -1,0 +1,113 @@
+package bias
+
+import (
+	"fmt"
+	"math"
+	"math/rand/v2"
+	"path/filepath"
+	"strings"
+	"testing"
+	"time"
+
+	"qpoint/bias/circuit"
+)
+
+const hardDir = "../testdata/hard"
+
+// hardFiles returns the circuits of testdata/hard, each of which stresses
+// the solvers in a way its header comment names.
+func hardFiles(t testing.TB) []string {
+	t.Helper()
+	paths, err := filepath.Glob(filepath.Join(hardDir, "*.yaml"))
+	if err != nil || len(paths) < 25 {
+		t.Fatalf("found %d hard circuits in %s, want at least 25: %v", len(paths), hardDir, err)
+	}
+	return paths
+}
+
+// TestHardFiles solves every circuit of testdata/hard. Each must converge,
+// report a residual ratio of at most 1, and satisfy KCL to 1e-12 A + 1e-9
+// relative when recomputed from the reported point alone (checkKCL), with
+// every reported number finite.
+func TestHardFiles(t *testing.T) {
+	for _, path := range hardFiles(t) {
+		t.Run(filepath.Base(path), func(t *testing.T) {
+			c, err := circuit.Load(path)
+			if err != nil {
+				t.Fatal(err)
+			}
+			p, err := Solve(c, Settings{})
+			if err != nil {
+				t.Fatal(err)
+			}
+			if p.Stats.ResidualRatio > 1 {
+				t.Errorf("residual ratio %g, want at most 1 (largest residual %g A)", p.Stats.ResidualRatio, p.Stats.Residual)
+			}
+			checkKCL(t, c, p)
+			checkFinite(t, p)
+			t.Logf("%s in %d iterations, residual %.3g A (ratio %.3g), %v",
+				p.Stats.Strategy, p.Stats.Iterations, p.Stats.Residual, p.Stats.ResidualRatio, p.Stats.Runtime)
+		})
+	}
+}
+
+// checkFinite fails on any reported number that is NaN or infinite, other
+// than a dynamic resistance whose conductance underflows (+Inf by
+// definition, where 1/g overflows).
+func checkFinite(t *testing.T, p *Point) {
+	t.Helper()
+	bad := func(what string, v float64) {
+		if math.IsNaN(v) || math.IsInf(v, 0) {
+			t.Errorf("%s = %g", what, v)
+		}
+	}
+	for _, n := range p.Nodes {
+		bad("voltage of "+n.Name, n.Voltage)
+	}
+	for _, s := range append(append([]Source(nil), p.Sources...), p.Inductors...) {
+		bad("current of "+s.Name, s.Current)
+	}
+	for _, d := range p.Diodes {
+		for what, v := range map[string]float64{"voltage": d.Voltage, "junction voltage": d.JunctionVoltage,
+			"current": d.Current, "conductance": d.Conductance, "junction capacitance": d.JunctionCapacitance,
+			"diffusion capacitance": d.DiffusionCapacitance, "power": d.Power} {
+			bad(d.Name+" "+what, v)
+		}
+		if math.IsNaN(d.DynamicResistance) || (math.IsInf(d.DynamicResistance, 0) && !math.IsInf(1/d.Conductance, 0)) {
+			t.Errorf("%s dynamic resistance = %g with conductance %g", d.Name, d.DynamicResistance, d.Conductance)
+		}
+	}
+}
+
+// TestTangledNetworkRefused: a circuit file of about 270 kB can join a
+// thousand nodes at random, so that no ordering keeps the matrix banded;
+// each Newton step would take seconds and the strategies together hours.
+// Solve refuses it at once, saying why, instead of hanging.
+func TestTangledNetworkRefused(t *testing.T) {
+	rng := rand.New(rand.NewPCG(1, 2))
+	nt := newNet("tangled")
+	nt.model("si", 1e-14, 1)
+	nt.V("V", "n1", circuit.Ground, 1)
+	const nodes = 1000
+	for i := 1; i <= nodes; i++ {
+		nt.R(fmt.Sprintf("T%d", i), fmt.Sprintf("n%d", i), circuit.Ground, 1e3)
+	}
+	for k := 0; k < 3*nodes; k++ {
+		a, b := 1+rng.IntN(nodes), 1+rng.IntN(nodes)
+		if a != b {
+			nt.D(fmt.Sprintf("D%d", k), fmt.Sprintf("n%d", a), fmt.Sprintf("n%d", b), "si")
+		}
+	}
+	start := time.Now()
+	_, err := Solve(nt.c, Settings{})
+	if took := time.Since(start); took > time.Second {
+		t.Errorf("Solve took %v to answer, want under a second", took)
+	}
+	if err == nil || !strings.Contains(err.Error(), "bandwidth") {
+		t.Errorf("Solve: %v; want a refusal naming the bandwidth", err)
+	}
+	// A ladder of the same size stays banded and solves.
+	if _, err := Solve(ladder(nodes).c, Settings{}); err != nil {
+		t.Errorf("ladder of %d: %v", nodes, err)
+	}
+}
