@@ -53,6 +53,10 @@ type Steady struct {
 	// times they are taken at.
 	Times, Waveform []float64
 
+	// Stress holds each diode's extremes over the period, for comparison
+	// with its ratings and breakdown (see Cautions).
+	Stress []DiodeStress
+
 	Iterations int     // shooting-Newton iterations, both step sizes
 	Residual   float64 // final periodicity residual, max |x(T) - x(0)| scaled
 	Samples    int     // samples per period of the coarser solve
@@ -134,6 +138,7 @@ func SteadyState(nw *smallsignal.Network, d Drive, s SteadySettings) (*Steady, e
 		x0:         fine.x0,
 		p:          fine.p,
 	}
+	res.Stress = stress(nw, fine.currents, fine.terminals, fine.junctions)
 	dcOut := 0.0
 	for i, e := range out {
 		dcOut += real(e) * nw.Bias[i]
@@ -383,6 +388,8 @@ type period struct {
 	times      []float64
 	output     []float64   // samples 0..N-1 of the output
 	currents   [][]float64 // per diode, samples 0..N-1 of the junction current
+	terminals  [][]float64 // per diode, samples 0..N-1 of the terminal voltage
+	junctions  [][]float64 // per diode, samples 0..N-1 of the junction voltage
 }
 
 // solve runs shooting-Newton with steps samples per period.
@@ -491,7 +498,7 @@ func (sh *shooter) solve(x0, p []float64, steps, maxIter int) (*period, error) {
 				return nil, fmt.Errorf("%w: %v", ErrNoSteadyState, err)
 			}
 			return &period{x0: x0, p: p, iterations: it, residual: lastRes,
-				times: final.times, output: final.output, currents: final.currents}, nil
+				times: final.times, output: final.output, currents: final.currents, terminals: final.terminals, junctions: final.junctions}, nil
 		}
 	}
 	return nil, fmt.Errorf("%w in %d shooting iterations (residual %.3g)", ErrNoSteadyState, maxIter, lastRes)
@@ -503,13 +510,15 @@ const maxHalvings = 20
 
 // trajectory is one integrated period.
 type trajectory struct {
-	xN       []float64
-	sN       []float64 // dx_N/dz, n × (n+m)
-	meanPort []float64
-	dMean    []float64 // d mean/dz, m × (n+m)
-	times    []float64
-	output   []float64
-	currents [][]float64
+	xN        []float64
+	sN        []float64 // dx_N/dz, n × (n+m)
+	meanPort  []float64
+	dMean     []float64 // d mean/dz, m × (n+m)
+	times     []float64
+	output    []float64
+	currents  [][]float64
+	terminals [][]float64
+	junctions [][]float64
 }
 
 // integrate runs the trapezoidal rule over one period from (x0, p). With
@@ -571,16 +580,24 @@ func (sh *shooter) integrate(x0, p []float64, steps int, sens bool) (*trajectory
 		tr.output = append(tr.output, o)
 		if tr.currents == nil {
 			tr.currents = make([][]float64, len(sh.nw.Diodes))
+			tr.terminals = make([][]float64, len(sh.nw.Diodes))
+			tr.junctions = make([][]float64, len(sh.nw.Diodes))
 		}
 		for k, d := range sh.nw.Diodes {
-			v := 0.0
+			v, vt := 0.0, 0.0
 			if d.Junction >= 0 {
 				v += x[d.Junction]
 			}
+			if d.Anode >= 0 {
+				vt += x[d.Anode]
+			}
 			if d.Cathode >= 0 {
 				v -= x[d.Cathode]
+				vt -= x[d.Cathode]
 			}
 			tr.currents[k] = append(tr.currents[k], d.Device.Current(v).Value)
+			tr.terminals[k] = append(tr.terminals[k], vt)
+			tr.junctions[k] = append(tr.junctions[k], v)
 		}
 	}
 	record(x, 0)

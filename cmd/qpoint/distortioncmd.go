@@ -299,6 +299,7 @@ func runDistortion(cmd *cobra.Command, path string, fl *distortionFlags) error {
 		return analysisError(fmt.Errorf("waveform at %.1f dBm: %w", s.levelDBm, err))
 	}
 	doc.Waveform = waveformJSONOf(st)
+	doc.Cautions = append([]string{}, st.Cautions()...)
 	oneEst := est
 	if s.drive.SecondToneHz != 0 {
 		if oneEst, err = ac.Volterra(s.nw, one); err != nil {
@@ -351,6 +352,7 @@ func runDistortion(cmd *cobra.Command, path string, fl *distortionFlags) error {
 		for _, p := range sweep {
 			doc.LevelSweep = append(doc.LevelSweep, levelJSON{number(p.LevelDBm), waveformJSONOf(p.Steady)})
 		}
+		doc.Cautions = append(doc.Cautions, sweepCautions(sweep)...)
 	}
 	if fl.plotsDir != "" {
 		if err := writeDistortionPlots(fl.plotsDir, s, oneEst, st, sweep); err != nil {
@@ -364,9 +366,11 @@ func runDistortion(cmd *cobra.Command, path string, fl *distortionFlags) error {
 	writeEstimate(out, est)
 	writeContributions(out, est)
 	writeWaveform(out, st)
+	writeCautions(out, st.Cautions())
 	writeComparison(out, cmp, limit)
 	if len(sweep) > 0 {
 		writeLevelSweep(out, sweep, oneEst, compression, compressed)
+		writeCautions(out, sweepCautions(sweep))
 	}
 	if fl.plotsDir != "" {
 		fmt.Fprintf(out, "figures written to %s\n", fl.plotsDir)
@@ -623,4 +627,44 @@ func (p *progress) done() {
 	if p.on {
 		fmt.Fprint(p.w, "\r\033[K")
 	}
+}
+
+// writeCautions prints each caution as its own marked line.
+func writeCautions(w io.Writer, c []string) {
+	if len(c) == 0 {
+		return
+	}
+	fmt.Fprintf(w, "\nCautions (model estimates: the part may be damaged here)\n")
+	for _, x := range c {
+		fmt.Fprintf(w, "  ! %s\n", x)
+	}
+}
+
+// sweepCautions returns, for each kind of overstress met in a level sweep,
+// the lowest level at which it appears.
+func sweepCautions(pts []ac.LevelPoint) []string {
+	seen := map[string]bool{}
+	var out []string
+	for _, p := range pts {
+		for _, c := range p.Steady.Cautions() {
+			kind := cautionKind(c)
+			if seen[kind] {
+				continue
+			}
+			seen[kind] = true
+			out = append(out, fmt.Sprintf("from %.1f dBm: %s", p.LevelDBm, c))
+		}
+	}
+	return out
+}
+
+// cautionKind names a caution by its diode and what it concerns.
+func cautionKind(c string) string {
+	name, rest, _ := strings.Cut(c, ": ")
+	for _, k := range []string{"forward current", "reverse voltage", "dissipation", "breakdown"} {
+		if strings.Contains(rest, k) {
+			return name + "/" + k
+		}
+	}
+	return c
 }

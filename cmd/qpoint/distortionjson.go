@@ -67,6 +67,7 @@ type distortionJSON struct {
 	LevelSweep         []levelJSON      `json:"level_sweep,omitempty"`
 	CompressionDBm     number           `json:"compression_dbm,omitempty"`
 	FrequencySweep     []*estimateJSON  `json:"frequency_sweep,omitempty"`
+	Cautions           []string         `json:"cautions,omitempty"`
 }
 
 func ptr(v float64) *number { n := number(v); return &n }

@@ -229,6 +229,9 @@ func distortionSection(s *distortionSetup) (report.Section, []report.Card, error
 	}
 	wt, note := waveformTable(st)
 	sec.Blocks = append(sec.Blocks, report.Block{Table: wt.report()}, report.Block{Note: note})
+	for _, c := range st.Cautions() {
+		cards = append(cards, report.Card{Label: "caution", Value: "overstress", Detail: c})
+	}
 	limit, lerr := ac.ValidityLimit(s.nw, one, s.levelDBm-40, s.levelDBm+40, 0.5, settings)
 	if lerr != nil {
 		limit = nil
@@ -244,6 +247,9 @@ func distortionSection(s *distortionSetup) (report.Section, []report.Card, error
 		levels = append(levels, l)
 	}
 	sweep, _ := ac.LevelSweep(s.nw, one, levels, settings, nil)
+	if cs := sweepCautions(sweep); len(cs) > 0 {
+		sec.Blocks = append(sec.Blocks, report.Block{Note: "Over the level sweep: " + strings.Join(cs, "; ") + "."})
+	}
 	comp, compressed := 0.0, false
 	if len(sweep) > 1 {
 		comp, compressed = ac.Compression(sweep, cmplx.Abs(oneEst.Fundamental)/oneEst.Drive.EMF)
