@@ -76,13 +76,14 @@ ports:
   - {name: drive, node: a, return: b, impedance: 1e-8}
 `
 
-// TestVolterraMatchesWaveform: at a small level (-40 dBm, HD3 near
-// -90 dBc) the Volterra estimate and the waveform agree on every harmonic
-// of the detector demo to 0.05 dB. Two independent methods, one in the
+// TestVolterraMatchesWaveform: at a small level (-50 dBm, x = 0.04, HD3
+// near -110 dBc) the Volterra estimate and the waveform agree on every
+// harmonic of the detector demo, a junction with series resistance and a
+// capacitance that supplies 39 % of HD2, to 0.05 dB. Two independent methods, one in the
 // frequency domain and one in the time domain, check each other.
 func TestVolterraMatchesWaveform(t *testing.T) {
 	nw := network(t, demo(t, "detector"))
-	d := Drive{Input: 0, Output: Output{Port: 1}, FrequencyHz: 2.45e9, EMF: DBmToEMF(-40, 50)}
+	d := Drive{Input: 0, Output: Output{Port: 1}, FrequencyHz: 2.45e9, EMF: DBmToEMF(-50, 50)}
 	est, err := Volterra(nw, d)
 	if err != nil {
 		t.Fatal(err)
@@ -92,6 +93,19 @@ func TestVolterraMatchesWaveform(t *testing.T) {
 		t.Fatal(err)
 	}
 	t.Logf("shooting: %d iterations, residual %.2g", st.Iterations, st.Residual)
+	// The junction runs at x = |v|/(n V_T) below 0.05, and its charge
+	// supplies a large share of HD2 at 2.45 GHz: the capacitance matters.
+	x := cmplx.Abs(est.Junctions[0]) / nw.Diodes[0].Device.NVT()
+	charge := 0.0
+	for _, c := range est.Contributions {
+		if c.Product == HD2 && c.Source == ChargeLaw {
+			charge = c.Percent
+		}
+	}
+	t.Logf("x = %.4f; charge share of HD2 %.1f %%", x, charge)
+	if x >= 0.05 || charge < 10 {
+		t.Fatalf("the check needs x < 0.05 (got %.4f) and a capacitance that matters (charge share %.1f %%)", x, charge)
+	}
 	pairs := []struct {
 		name      string
 		est, wave complex128
@@ -104,6 +118,8 @@ func TestVolterraMatchesWaveform(t *testing.T) {
 	for _, p := range pairs {
 		db := 20 * math.Log10(cmplx.Abs(p.wave)/cmplx.Abs(p.est))
 		t.Logf("%s: estimate %.4g, waveform %.4g (%.4f dB)", p.name, cmplx.Abs(p.est), cmplx.Abs(p.wave), db)
+		// HD2 within 0.05 dB and HD3 within 0.2 dB is the issue's
+		// requirement; here every product meets 0.05 dB.
 		if math.Abs(db) > 0.05 {
 			t.Errorf("%s: estimate %v, waveform %v differ by %.3f dB", p.name, p.est, p.wave, db)
 		}

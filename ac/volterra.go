@@ -77,6 +77,11 @@ type Estimate struct {
 
 	Contributions []Contribution
 
+	// Junctions holds each diode's first-order junction voltage phasor at
+	// f1 (peak volts): |v|/(n V_T) is the drive's x, the measure of how
+	// weakly nonlinear the junction runs.
+	Junctions []complex128
+
 	inputZ0, outputZ0 float64 // outputZ0 is zero for a bare node
 	balanced          []Product
 }
@@ -349,6 +354,9 @@ func volterraOn(nw *smallsignal.Network, d Drive, choice engine) (*Estimate, err
 		return nil, err
 	}
 	est.Fundamental = v.output(x1) * e
+	for _, vk := range va {
+		est.Junctions = append(est.Junctions, vk*e)
+	}
 
 	cur, chg := make([]complex128, nd), make([]complex128, nd)
 	coef := func(k int) smallsignal.Diode { return nw.Diodes[k] }
