@@ -412,20 +412,7 @@ func responseDocument(r *ac.Response) *responseJSON {
 	}
 	for _, pt := range r.Points {
 		j := responsePointJSON{Frequency: number(pt.FrequencyHz), GroupDelay: number(pt.GroupDelay)}
-		for _, row := range pt.S {
-			var jr []complexJSON
-			for _, v := range row {
-				jr = append(jr, complexJSON(v))
-			}
-			j.S = append(j.S, jr)
-		}
-		for _, z := range pt.InputImpedance {
-			j.InputImpedance = append(j.InputImpedance, complexJSON(z))
-		}
-		for k, name := range r.Probes {
-			j.Probes.keys = append(j.Probes.keys, name)
-			j.Probes.values = append(j.Probes.values, complexJSON(pt.Probes[k]))
-		}
+		j.S, j.InputImpedance, j.Probes = networkJSON(pt.S, pt.InputImpedance, r.Probes, pt.Probes)
 		d.Points = append(d.Points, j)
 	}
 	return d
@@ -466,4 +453,29 @@ func responseTable(r *ac.Response, rows int) *table {
 		t.add(cells...)
 	}
 	return t
+}
+
+// networkJSON converts an S-matrix, input impedances and probe voltages to
+// their JSON forms.
+func networkJSON(s [][]complex128, zin []complex128, probeNames []string, probes []complex128) ([][]complexJSON, []complexJSON, orderedComplex) {
+	var js [][]complexJSON
+	for _, row := range s {
+		var jr []complexJSON
+		for _, v := range row {
+			jr = append(jr, complexJSON(v))
+		}
+		js = append(js, jr)
+	}
+	var jz []complexJSON
+	for _, z := range zin {
+		jz = append(jz, complexJSON(z))
+	}
+	var jp orderedComplex
+	for k, name := range probeNames {
+		if k < len(probes) {
+			jp.keys = append(jp.keys, name)
+			jp.values = append(jp.values, complexJSON(probes[k]))
+		}
+	}
+	return js, jz, jp
 }

@@ -93,20 +93,7 @@ func studyDocument(r *study.Result, cols []column, s *studySetup, sol *study.Sol
 		}
 		for _, resp := range st.Responses {
 			rj := studyResponseJSON{Frequency: number(resp.FrequencyHz)}
-			for _, row := range resp.S {
-				var jr []complexJSON
-				for _, v := range row {
-					jr = append(jr, complexJSON(v))
-				}
-				rj.S = append(rj.S, jr)
-			}
-			for _, z := range resp.InputImpedance {
-				rj.InputImpedance = append(rj.InputImpedance, complexJSON(z))
-			}
-			for k, name := range r.Probes {
-				rj.Probes.keys = append(rj.Probes.keys, name)
-				rj.Probes.values = append(rj.Probes.values, complexJSON(resp.Probes[k]))
-			}
+			rj.S, rj.InputImpedance, rj.Probes = networkJSON(resp.S, resp.InputImpedance, r.Probes, resp.Probes)
 			j.Responses = append(j.Responses, rj)
 		}
 		if r.Settings.Drive.EMF > 0 {
