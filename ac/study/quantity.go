@@ -64,7 +64,7 @@ func ParseMeasure(s string) (*Measure, error) {
 	m := &Measure{Text: s}
 	body := s
 	if at := strings.IndexByte(s, '@'); at >= 0 {
-		f, err := circuit.ParseValue(s[at+1:], circuit.Frequency)
+		f, err := circuit.ParseBounded(s[at+1:], circuit.Frequency)
 		if err != nil {
 			return nil, fmt.Errorf("frequency of `%s`: %w", s, err)
 		}

@@ -379,10 +379,17 @@ func ParseLevel(s string) (Level, error) {
 		return fail(problem)
 	}
 	if power {
+		// -200 dBm is far below any thermal floor; +90 dBm is a megawatt.
+		if num < -200 || num > 90 {
+			return fail("outside -200 dBm to +90 dBm")
+		}
 		return Level{DBm: num, IsPower: true}, nil
 	}
 	if num <= 0 {
 		return fail("a peak voltage must be above zero")
+	}
+	if problem := outOfSpan(num, Voltage); problem != "" {
+		return fail(problem)
 	}
 	return Level{PeakVolts: num}, nil
 }
@@ -413,4 +420,19 @@ func (q Quantity) Unit() string {
 		return "K"
 	}
 	return ""
+}
+
+// ParseBounded reads a value as ParseValue does and also refuses one whose
+// magnitude lies outside what the quantity accepts anywhere in a circuit
+// file (1e-12 to 1e15 ohm, 1 mHz to 1 THz, 1 mK to 1e9 K, ...): command
+// line flags get the same limits as the file.
+func ParseBounded(s string, q Quantity) (float64, error) {
+	v, err := ParseValue(s, q)
+	if err != nil {
+		return 0, err
+	}
+	if problem := outOfSpan(v, q); problem != "" {
+		return 0, &ValueError{Text: s, What: q.String(), Problem: problem, Accepted: spans[q].words}
+	}
+	return v, nil
 }

@@ -38,7 +38,7 @@ was tried), 2 bad input or usage.`,
 			}
 			var s bias.Settings
 			if temperature != "" {
-				tk, err := circuit.ParseValue(temperature, circuit.Temperature)
+				tk, err := circuit.ParseBounded(temperature, circuit.Temperature)
 				if err != nil {
 					return inputError(fmt.Errorf("flag --temperature: %w", err))
 				}

@@ -151,7 +151,7 @@ func resolveDistortionFor(c *circuit.Circuit, fl *distortionFlags) (*distortionS
 	}
 	freq := def.FrequencyHz
 	if fl.frequency != "" {
-		if freq, err = circuit.ParseValue(fl.frequency, circuit.Frequency); err != nil {
+		if freq, err = circuit.ParseBounded(fl.frequency, circuit.Frequency); err != nil {
 			return nil, inputError(fmt.Errorf("flag --frequency: %w", err))
 		}
 	}
@@ -182,7 +182,7 @@ func resolveDistortionFor(c *circuit.Circuit, fl *distortionFlags) (*distortionS
 	}
 	second := def.SecondToneHz
 	if fl.secondTone != "" {
-		if second, err = circuit.ParseValue(fl.secondTone, circuit.Frequency); err != nil {
+		if second, err = circuit.ParseBounded(fl.secondTone, circuit.Frequency); err != nil {
 			return nil, inputError(fmt.Errorf("flag --second-tone: %w", err))
 		}
 	}
@@ -217,7 +217,7 @@ func parseRange(flag, s string, q circuit.Quantity, stepQ circuit.Quantity) (fro
 		if q == circuit.Dimensionless {
 			t = strings.TrimSuffix(strings.TrimSuffix(t, "dBm"), "dB")
 		}
-		return circuit.ParseValue(strings.TrimSpace(t), q)
+		return circuit.ParseBounded(strings.TrimSpace(t), q)
 	}
 	if from, err = read(parts[0], q); err == nil {
 		if to, err = read(parts[1], q); err == nil {

@@ -88,7 +88,7 @@ func exactWaveform(cmd *cobra.Command, args []string) error {
 func runWaveformHarmonics(cmd *cobra.Command, path string, fl *waveformFlags) error {
 	var opts measure.CSVOptions
 	if fl.sampleRate != "" {
-		v, err := circuit.ParseValue(fl.sampleRate, circuit.Frequency)
+		v, err := circuit.ParseBounded(fl.sampleRate, circuit.Frequency)
 		if err != nil {
 			return inputError(fmt.Errorf("flag --sample-rate: %w", err))
 		}
@@ -105,7 +105,7 @@ func runWaveformHarmonics(cmd *cobra.Command, path string, fl *waveformFlags) er
 	}
 	s.Window = win
 	if fl.fundamental != "" {
-		v, err := circuit.ParseValue(fl.fundamental, circuit.Frequency)
+		v, err := circuit.ParseBounded(fl.fundamental, circuit.Frequency)
 		if err != nil {
 			return inputError(fmt.Errorf("flag --fundamental: %w", err))
 		}

@@ -140,14 +140,14 @@ func parseBand(flag, s string, lowDefault float64) (lo, hi float64, err error) {
 	switch {
 	case len(parts) == 1 && lowDefault > 0:
 		lo = lowDefault
-		if hi, err = circuit.ParseValue(strings.TrimSpace(parts[0]), circuit.Frequency); err != nil {
+		if hi, err = circuit.ParseBounded(strings.TrimSpace(parts[0]), circuit.Frequency); err != nil {
 			return bad(err)
 		}
 	case len(parts) == 2:
-		if lo, err = circuit.ParseValue(strings.TrimSpace(parts[0]), circuit.Frequency); err != nil {
+		if lo, err = circuit.ParseBounded(strings.TrimSpace(parts[0]), circuit.Frequency); err != nil {
 			return bad(err)
 		}
-		if hi, err = circuit.ParseValue(strings.TrimSpace(parts[1]), circuit.Frequency); err != nil {
+		if hi, err = circuit.ParseBounded(strings.TrimSpace(parts[1]), circuit.Frequency); err != nil {
 			return bad(err)
 		}
 	default:
@@ -219,7 +219,7 @@ func resolveNoiseFor(c *circuit.Circuit, fl *noiseFlags) (*noiseSetup, error) {
 	s.inName, s.outName = in, out
 
 	if fl.carrier != "" {
-		v, err := circuit.ParseValue(fl.carrier, circuit.Frequency)
+		v, err := circuit.ParseBounded(fl.carrier, circuit.Frequency)
 		if err != nil {
 			return nil, inputError(fmt.Errorf("flag --carrier: %w", err))
 		}

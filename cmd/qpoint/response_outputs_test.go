@@ -207,6 +207,10 @@ func TestResponseBadFlags(t *testing.T) {
 		{[]string{"distortion", det, "--input", "video2"}, "--input"},
 		{[]string{"distortion", det, "--harmonics", "200"}, "--harmonics"},
 		{[]string{"distortion", det, "--level", "loud"}, "--level"},
+		{[]string{"distortion", det, "--level", "1e308dBm"}, "--level"},
+		{[]string{"response", det, "--reference", "1e-320"}, "--reference"},
+		{[]string{"bias", det, "--temperature", "1e308K"}, "--temperature"},
+		{[]string{"response", det, "--to", "1e300Hz"}, "--to"},
 	}
 	for _, c := range cases {
 		_, errs, code := runCLI(t, c.args...)

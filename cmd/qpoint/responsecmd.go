@@ -88,14 +88,14 @@ func sweepGrid(c *circuit.Circuit, fl *responseFlags) ([]float64, error) {
 		perDecade, points = r.PerDecade, r.Points
 	}
 	if fl.from != "" {
-		v, err := circuit.ParseValue(fl.from, circuit.Frequency)
+		v, err := circuit.ParseBounded(fl.from, circuit.Frequency)
 		if err != nil {
 			return nil, inputError(fmt.Errorf("flag --from: %w", err))
 		}
 		from = v
 	}
 	if fl.to != "" {
-		v, err := circuit.ParseValue(fl.to, circuit.Frequency)
+		v, err := circuit.ParseBounded(fl.to, circuit.Frequency)
 		if err != nil {
 			return nil, inputError(fmt.Errorf("flag --to: %w", err))
 		}
@@ -130,7 +130,7 @@ func parseReference(s string, ports int) ([]float64, error) {
 	parts := strings.Split(s, ",")
 	var z []float64
 	for _, p := range parts {
-		v, err := circuit.ParseValue(strings.TrimSpace(p), circuit.Resistance)
+		v, err := circuit.ParseBounded(strings.TrimSpace(p), circuit.Resistance)
 		if err != nil || !(v > 0) {
 			return nil, inputError(fmt.Errorf("flag --reference: `%s` is not a positive resistance; accepted: ohms, one value or one per port, e.g. 50 or 50,75", p))
 		}
@@ -150,7 +150,7 @@ func parseReference(s string, ports int) ([]float64, error) {
 func solveWithTemperature(c *circuit.Circuit, temperature string) (*bias.Point, error) {
 	var s bias.Settings
 	if temperature != "" {
-		tk, err := circuit.ParseValue(temperature, circuit.Temperature)
+		tk, err := circuit.ParseBounded(temperature, circuit.Temperature)
 		if err != nil {
 			return nil, inputError(fmt.Errorf("flag --temperature: %w", err))
 		}

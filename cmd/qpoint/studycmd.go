@@ -116,7 +116,7 @@ func parseAxis(c *circuit.Circuit, flag, what, from, to string, steps int, log b
 		if s == "" {
 			return 0, inputError(fmt.Errorf("flag --%s%s is missing; give the %s of %s as a %s, e.g. %s", name, suffix, name, what, v.Quantity, exampleOf(v.Quantity)))
 		}
-		x, err := circuit.ParseValue(s, v.Quantity)
+		x, err := circuit.ParseBounded(s, v.Quantity)
 		if err != nil {
 			return 0, inputError(fmt.Errorf("flag --%s%s: %w", name, suffix, err))
 		}
@@ -214,7 +214,7 @@ func resolveStudyFor(c *circuit.Circuit, fl *studyFlags) (*studySetup, error) {
 	var freqs []float64
 	if fl.frequencies != "" {
 		for _, t := range strings.Split(fl.frequencies, ",") {
-			f, err := circuit.ParseValue(strings.TrimSpace(t), circuit.Frequency)
+			f, err := circuit.ParseBounded(strings.TrimSpace(t), circuit.Frequency)
 			if err == nil {
 				err = ac.CheckFrequency(f)
 			}
@@ -236,11 +236,11 @@ func resolveStudyFor(c *circuit.Circuit, fl *studyFlags) (*studySetup, error) {
 			return nil, inputError(errors.New("flag --steps2 is missing: a second quantity needs its own --from2, --to2 and --steps2"))
 		}
 		if fl.vary2 == "frequency" {
-			a, err := circuit.ParseValue(fl.from2, circuit.Frequency)
+			a, err := circuit.ParseBounded(fl.from2, circuit.Frequency)
 			if err != nil {
 				return nil, inputError(fmt.Errorf("flag --from2: %w", err))
 			}
-			b, err := circuit.ParseValue(fl.to2, circuit.Frequency)
+			b, err := circuit.ParseBounded(fl.to2, circuit.Frequency)
 			if err != nil {
 				return nil, inputError(fmt.Errorf("flag --to2: %w", err))
 			}
