@@ -2,7 +2,7 @@ package ac
 
 import (
 	"errors"
-	"math/cmplx"
+	"math"
 )
 
 // errSingular reports a singular network matrix at some frequency.
@@ -25,9 +25,11 @@ func newLU(n int) *lu {
 func (f *lu) factor() error {
 	n, a := f.n, f.a
 	for k := 0; k < n; k++ {
-		p, big := k, cmplx.Abs(a[k*n+k])
+		// Pivot on |re| + |im|, as LAPACK's izamax does: as good a size
+		// measure for pivoting as the modulus, without a square root.
+		p, big := k, cabs1(a[k*n+k])
 		for i := k + 1; i < n; i++ {
-			if v := cmplx.Abs(a[i*n+k]); v > big {
+			if v := cabs1(a[i*n+k]); v > big {
 				p, big = i, v
 			}
 		}
@@ -57,6 +59,8 @@ func (f *lu) factor() error {
 	}
 	return nil
 }
+
+func cabs1(z complex128) float64 { return math.Abs(real(z)) + math.Abs(imag(z)) }
 
 // solve overwrites b with the solution of A x = b.
 func (f *lu) solve(b []complex128) {
