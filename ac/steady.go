@@ -65,6 +65,9 @@ type Steady struct {
 	p  []float64
 }
 
+// MaxSteadyUnknowns bounds the size of a circuit SteadyState takes.
+const MaxSteadyUnknowns = 300
+
 // ErrNoSteadyState reports a shooting solve that did not converge.
 var ErrNoSteadyState = errors.New("no periodic steady state found")
 
@@ -90,6 +93,12 @@ func SteadyState(nw *smallsignal.Network, d Drive, s SteadySettings) (*Steady, e
 	}
 	if err := CheckFrequency(d.FrequencyHz); err != nil {
 		return nil, err
+	}
+	// Each time step factors a dense n×n matrix and carries an n×n
+	// sensitivity: O(n³) per step, about 770 steps per solve. Past a few
+	// hundred unknowns one solve takes minutes; say so instead.
+	if nw.N > MaxSteadyUnknowns {
+		return nil, fmt.Errorf("the circuit has %d unknowns; the steady-state solver is dense and takes at most %d", nw.N, MaxSteadyUnknowns)
 	}
 	if d.Input < 0 || d.Input >= len(nw.Ports) {
 		return nil, fmt.Errorf("input port %d: the circuit has %d ports", d.Input+1, len(nw.Ports))
