@@ -364,6 +364,7 @@ func runDistortion(cmd *cobra.Command, path string, fl *distortionFlags) error {
 	}
 	writeDistortionHeader(out, s)
 	writeEstimate(out, est)
+	writeJunctionDrive(out, s, est)
 	writeContributions(out, est)
 	writeWaveform(out, st)
 	writeCautions(out, st.Cautions())
@@ -667,4 +668,19 @@ func cautionKind(c string) string {
 		}
 	}
 	return c
+}
+
+// writeJunctionDrive prints each junction's drive x = |v|/(n V_T) at the
+// fundamental: below about 0.1 the junction runs weakly nonlinear and the
+// estimate holds; near 1 and above it does not.
+func writeJunctionDrive(w io.Writer, s *distortionSetup, e *ac.Estimate) {
+	var parts []string
+	for k, d := range s.nw.Diodes {
+		if k < len(e.Junctions) {
+			parts = append(parts, fmt.Sprintf("%s %.3g", d.Name, cmplx.Abs(e.Junctions[k])/d.Device.NVT()))
+		}
+	}
+	if len(parts) > 0 {
+		fmt.Fprintf(w, "  junction drive x = |v|/(n V_T) at f1: %s\n", strings.Join(parts, ", "))
+	}
 }
