@@ -71,10 +71,14 @@ and reports what the circuit does at that point.
 
 Results are model estimates: confirm them by measurement before relying on
 them, and let the parts' ratings and your local practice govern.`,
-		Example: `  qpoint demo                         run every built-in demo circuit
-  qpoint bias detector.yaml           node voltages and diode Q points
-  qpoint bias detector.yaml --json    the same as one JSON document
-  qpoint bias mixer.yaml --temperature 85C`,
+		Example: `  qpoint demo                                  the built-in circuits, with HTML reports
+  qpoint bias detector.yaml                    node voltages and diode Q points
+  qpoint bias detector.yaml --json             the same as one JSON document
+  qpoint response attenuator.yaml --plots fig  S-parameters, impedance, figures
+  qpoint distortion detector.yaml              Volterra estimate beside the waveform
+  qpoint noise detector.yaml                   noise, NEP, tangential sensitivity
+  qpoint study attenuator.yaml --target "s21=-6dB@900MHz"
+  qpoint report mixer.yaml -o mixer.html       everything in one page`,
 		SilenceUsage:  true,
 		SilenceErrors: true,
 	}

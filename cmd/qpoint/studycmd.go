@@ -63,7 +63,7 @@ video_resistance.D, current_sensitivity.D and voltage_sensitivity.D (@FREQ).
 Steps run in parallel on all cores; the output is the same whatever the
 worker count. Defaults come from the file's analysis.study.`,
 		Example: `  qpoint study testdata/demo/attenuator.yaml --vary Vctl.value --from 0.9V --to 5V --steps 42
-  qpoint study attenuator.yaml --vary Vctl.value --from 0.9V --to 5V --steps 40 --target "s21=-10dB@900MHz"
+  qpoint study attenuator.yaml --vary Vctl.value --from 0.9V --to 5V --steps 40 --target "s21=-6dB@900MHz"
   qpoint study detector.yaml --vary Rbias.value --from 10k --to 1M --steps 30 --log --maximize "sensitivity"
   qpoint study detector.yaml --vary Vcc.value --from 0V --to 3.3V --steps 12 --vary2 temperature --from2 -40C --to2 85C --steps2 6
   qpoint study mixer.yaml --csv mixer-study.csv --plots figures/`,
