@@ -15,5 +15,7 @@
 // change on the step grid and refining it with Brent's method (Brent,
 // "Algorithms for Minimization without Derivatives", 1973, ch. 4);
 // maximisation and minimisation refine the best grid step with golden-
-// section search on its neighbours (ch. 5).
+// section search on its neighbours (ch. 5). gonum has neither a bracketing
+// root finder nor a one-dimensional bounded minimiser (its optimize package
+// works on unbounded multivariate problems), so both are written here.
 package study
