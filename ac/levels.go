@@ -37,7 +37,8 @@ func Compare(e *Estimate, s *Steady) []Comparison {
 			c.Estimate = cmplx.Abs(est[k])
 		}
 		c.DiffDB = 20 * math.Log10(math.Abs(c.Waveform)/math.Abs(c.Estimate))
-		c.Trustable = 20*math.Log10(math.Abs(c.Estimate)/fund) > floorDBc && c.Estimate != 0
+		c.Trustable = 20*math.Log10(math.Abs(c.Estimate)/fund) > floorDBc && c.Estimate != 0 &&
+			math.Abs(c.Estimate) > s.NoiseFloor
 		out = append(out, c)
 	}
 	return out

@@ -57,6 +57,11 @@ type Steady struct {
 	// with its ratings and breakdown (see Cautions).
 	Stress []DiodeStress
 
+	// NoiseFloor is the amplitude below which a harmonic is the solver's
+	// rounding, not the circuit: 1e-12 of the largest of the drive's EMF
+	// and the DC node voltages.
+	NoiseFloor float64
+
 	Iterations int     // shooting-Newton iterations, both step sizes
 	Residual   float64 // final periodicity residual, max |x(T) - x(0)| scaled
 	Samples    int     // samples per period of the coarser solve
@@ -64,6 +69,11 @@ type Steady struct {
 	x0 []float64 // the periodic state, for continuation
 	p  []float64
 }
+
+// floorRel is the steady state's rounding level relative to the circuit's
+// voltage scale: the shooting and time-step tolerances stop near 1e-13 of
+// the node voltages, and the FFT adds its own rounding.
+const floorRel = 1e-12
 
 // MaxSteadyUnknowns bounds the size of a circuit SteadyState takes.
 const MaxSteadyUnknowns = 300
@@ -148,6 +158,11 @@ func SteadyState(nw *smallsignal.Network, d Drive, s SteadySettings) (*Steady, e
 		p:          fine.p,
 	}
 	res.Stress = stress(nw, fine.currents, fine.terminals, fine.junctions)
+	scale := d.EMF
+	for _, v := range nw.Bias[:nw.NodeUnknowns] {
+		scale = math.Max(scale, math.Abs(v))
+	}
+	res.NoiseFloor = floorRel * scale
 	dcOut := 0.0
 	for i, e := range out {
 		dcOut += real(e) * nw.Bias[i]

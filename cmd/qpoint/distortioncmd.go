@@ -434,8 +434,12 @@ func writeEstimate(w io.Writer, e *ac.Estimate) {
 func estimateTable(e *ac.Estimate) (*table, []string) {
 	var notes []string
 	t := &table{title: "Volterra estimate (third order)", header: []string{"quantity", "value"}}
-	t.add("fundamental", si.Format(cmplx.Abs(e.Fundamental), "V", 4)+" peak")
-	if p, ok := e.OutputDBm(); ok {
+	if cmplx.Abs(e.Fundamental) <= 1e-12*e.Drive.EMF {
+		t.add("fundamental", "none: this output is isolated from the input")
+	} else {
+		t.add("fundamental", si.Format(cmplx.Abs(e.Fundamental), "V", 4)+" peak")
+	}
+	if p, ok := e.OutputDBm(); ok && cmplx.Abs(e.Fundamental) > 1e-12*e.Drive.EMF {
 		t.add("fundamental power", fmt.Sprintf("%.2f dBm", p))
 	}
 	const cancelled = "cancelled by symmetry"
@@ -512,6 +516,7 @@ func waveformTable(s *ac.Steady) (*table, string) {
 	t := &table{title: fmt.Sprintf("Waveform (periodic steady state, %d and %d samples per period)", s.Samples, 2*s.Samples+1),
 		header: []string{"order", "amplitude", "relative", "phase"}}
 	fund := s.Output[1].Amplitude
+	isolated := fund <= s.NoiseFloor
 	for _, h := range s.Output {
 		rel, ph := "", ""
 		if h.Order == 0 {
@@ -522,8 +527,15 @@ func waveformTable(s *ac.Steady) (*table, string) {
 		if h.Order == 1 {
 			rel = "0 dBc"
 		}
+		if isolated {
+			rel = "—"
+		}
 		ph = fmt.Sprintf("%.1f°", h.PhaseDeg)
 		t.add(strconv.Itoa(h.Order), si.Format(h.Amplitude, "V", 4), rel, ph)
+	}
+	if isolated {
+		return t, fmt.Sprintf("no signal above the solver's floor (%s) reaches this output: it is isolated from the input; %d shooting iterations",
+			si.Format(s.NoiseFloor, "V", 2), s.Iterations)
 	}
 	return t, fmt.Sprintf("THD %.4g %%; %d shooting iterations; periodicity residual %.2g", s.THDPercent, s.Iterations, s.Residual)
 }
@@ -548,6 +560,13 @@ func comparisonTable(cs []ac.Comparison, v *ac.Validity) (*table, string) {
 		t.add(names[c.Order], si.Format(c.Estimate, "V", 4), si.Format(c.Waveform, "V", 4), diff)
 	}
 	note := ""
+	trusted := false
+	for _, c := range cs {
+		trusted = trusted || c.Trustable
+	}
+	if !trusted {
+		return t, "nothing at this output lies above the solver's floor, so there is nothing to compare"
+	}
 	if v != nil {
 		if v.Found {
 			note = fmt.Sprintf("the estimates hold within %.1f dB up to %.1f dBm available per tone (%d waveform solves)", v.TolDB, v.LevelDBm, v.Steps)
