@@ -65,7 +65,7 @@ Settings come from the flags, else from the file's analysis.distortion.`,
 	f.StringVar(&fl.output, "output", "", "output port or node name (default: the file's, else the last port)")
 	f.StringVar(&fl.frequency, "frequency", "", "signal frequency, e.g. 2.45GHz")
 	f.StringVar(&fl.level, "level", "", "signal level per tone: -30dBm or a peak voltage such as 10mV")
-	f.StringVar(&fl.secondTone, "second-tone", "", "frequency of a second tone of the same level, for IM2, IM3 and intercepts")
+	f.StringVar(&fl.secondTone, "second-tone", "", "frequency of a second tone of the same level, for IM2, IM3 and intercepts; none drops the file's")
 	f.StringVar(&fl.sweepLevel, "sweep-level", "", "solve the waveform over levels FROM:TO:STEP, e.g. -50dBm:0dBm:1dB")
 	f.StringVar(&fl.sweepFrequency, "sweep-frequency", "", "estimate over frequencies FROM:TO:PER-DECADE, e.g. 100MHz:6GHz:20")
 	f.StringVar(&fl.temperature, "temperature", "", "circuit temperature, overriding the file's (e.g. 85C)")
@@ -181,7 +181,9 @@ func resolveDistortionFor(c *circuit.Circuit, fl *distortionFlags) (*distortionS
 		s.levelDBm = ac.EMFToDBm(2*lv.PeakVolts, z0)
 	}
 	second := def.SecondToneHz
-	if fl.secondTone != "" {
+	if fl.secondTone == "none" {
+		second = 0
+	} else if fl.secondTone != "" {
 		if second, err = circuit.ParseBounded(fl.secondTone, circuit.Frequency); err != nil {
 			return nil, inputError(fmt.Errorf("flag --second-tone: %w", err))
 		}
