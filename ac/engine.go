@@ -119,10 +119,7 @@ func (r *reduction) refine(nw *smallsignal.Network, w float64, b []complex128) [
 func (r *reduction) refinedPoint(nw *smallsignal.Network, ref []float64, probes []int, hz float64) Point {
 	w := 2 * math.Pi * hz
 	np := len(nw.Ports)
-	pt := Point{FrequencyHz: hz, S: make([][]complex128, np), InputImpedance: make([]complex128, np)}
-	for i := range pt.S {
-		pt.S[i] = make([]complex128, np)
-	}
+	pt := newPoint(hz, np)
 	b := make([]complex128, r.n)
 	var x0 []complex128
 	for j := 0; j < np; j++ {
@@ -338,10 +335,7 @@ func (ev *pointEval) at(hz float64) (Point, bool) {
 	if err != nil {
 		return Point{}, false
 	}
-	pt := Point{FrequencyHz: hz, S: make([][]complex128, np), InputImpedance: make([]complex128, np)}
-	for i := range pt.S {
-		pt.S[i] = make([]complex128, np)
-	}
+	pt := newPoint(hz, np)
 	for j := range ev.y {
 		copy(ev.y[j], ev.c[j])
 	}

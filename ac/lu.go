@@ -15,10 +15,11 @@ type lu struct {
 	n   int
 	a   []complex128
 	piv []int
+	inv []complex128 // 1/U[k][k]: solves multiply, as complex division is slow
 }
 
 func newLU(n int) *lu {
-	return &lu{n: n, a: make([]complex128, n*n), piv: make([]int, n)}
+	return &lu{n: n, a: make([]complex128, n*n), piv: make([]int, n), inv: make([]complex128, n)}
 }
 
 // factor factors the matrix held in f.a in place.
@@ -44,6 +45,7 @@ func (f *lu) factor() error {
 			}
 		}
 		inv := 1 / a[k*n+k]
+		f.inv[k] = inv
 		rowK := a[k*n : (k+1)*n]
 		for i := k + 1; i < n; i++ {
 			rowI := a[i*n : (i+1)*n]
@@ -84,7 +86,7 @@ func (f *lu) solve(b []complex128) {
 		for j := i + 1; j < n; j++ {
 			s -= row[j] * b[j]
 		}
-		b[i] = s / row[i]
+		b[i] = s * f.inv[i]
 	}
 }
 
@@ -99,7 +101,7 @@ func (f *lu) solveT(b []complex128) {
 		for j := 0; j < i; j++ {
 			s -= a[j*n+i] * b[j]
 		}
-		b[i] = s / a[i*n+i]
+		b[i] = s * f.inv[i]
 	}
 	for i := n - 1; i >= 0; i-- {
 		s := b[i]

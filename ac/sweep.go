@@ -136,10 +136,7 @@ func sweep(nw *smallsignal.Network, freqs []float64, s Settings, visit func(Poin
 		if err := f.factor(); err != nil {
 			return ports, probes, fmt.Errorf("at %g Hz: %w", hz, err)
 		}
-		pt := Point{FrequencyHz: hz, S: make([][]complex128, np), InputImpedance: make([]complex128, np)}
-		for i := range pt.S {
-			pt.S[i] = make([]complex128, np)
-		}
+		pt := newPoint(hz, np)
 		for j := 0; j < np; j++ {
 			nw.Excitation(j, 1, x[j])
 			f.solve(x[j])
@@ -191,4 +188,16 @@ func sweep(nw *smallsignal.Network, freqs []float64, s Settings, visit func(Poin
 		}
 	}
 	return ports, probes, nil
+}
+
+// newPoint returns a Point for np ports whose S-matrix rows and input
+// impedances share one allocation: a long sweep or study keeps millions of
+// points, and one block each keeps the collector's work small.
+func newPoint(hz float64, np int) Point {
+	block := make([]complex128, np*np+np)
+	pt := Point{FrequencyHz: hz, S: make([][]complex128, np), InputImpedance: block[np*np : np*np+np : np*np+np]}
+	for i := range pt.S {
+		pt.S[i] = block[i*np : (i+1)*np : (i+1)*np]
+	}
+	return pt
 }

@@ -265,13 +265,14 @@ func runStep(c *circuit.Circuit, s Settings, i, j int, prev *bias.Point, st *Ste
 		st.Diodes = append(st.Diodes, dd)
 	}
 	if len(nw.Ports) > 0 && len(freqs) > 0 {
-		r, err := ac.Run(nw, freqs, ac.Settings{})
+		st.Responses = make([]Response, 0, len(freqs))
+		_, _, err := ac.Sweep(nw, freqs, ac.Settings{}, func(pt ac.Point) error {
+			st.Responses = append(st.Responses, Response{pt.FrequencyHz, pt.S, pt.InputImpedance, pt.Probes})
+			return nil
+		})
 		if err != nil {
 			st.Err = err
 			return p
-		}
-		for _, pt := range r.Points {
-			st.Responses = append(st.Responses, Response{pt.FrequencyHz, pt.S, pt.InputImpedance, pt.Probes})
 		}
 	}
 	if s.Drive.EMF > 0 && len(nw.Ports) > 0 {
