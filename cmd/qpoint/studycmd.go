@@ -482,7 +482,9 @@ func studyColumns(r *study.Result) []column {
 		}
 		for k, d := range first.Diodes {
 			k := k
-			cols = append(cols, column{d.Name + ".voltage_sensitivity_V/W" + ftag, d.Name + " γ V/W" + tag, "", func(st *study.Step) float64 { return st.Diodes[k].VoltageSensitivity[fi] }})
+			cols = append(cols,
+				column{d.Name + ".current_sensitivity_A/W" + ftag, d.Name + " β A/W" + tag, "", func(st *study.Step) float64 { return st.Diodes[k].CurrentSensitivity[fi] }},
+				column{d.Name + ".voltage_sensitivity_V/W" + ftag, d.Name + " γ V/W" + tag, "", func(st *study.Step) float64 { return st.Diodes[k].VoltageSensitivity[fi] }})
 		}
 	}
 	if r.Settings.Drive.EMF > 0 {
