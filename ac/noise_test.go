@@ -247,14 +247,14 @@ parts:
   - {type: resistor,  name: R, between: [a, gnd], value: 10k}
   - {type: capacitor, name: C, between: [a, gnd], value: 1nF}
 `)
-	fc := 1 / (2 * math.Pi * 10e3 * 1e-9)
+	corner := 1 / (2 * math.Pi * 10e3 * 1e-9)
 	s0 := 4 * diode.Boltzmann * 290 * 10e3
-	for _, band := range [][2]float64{{1, 1e9}, {1e3, 1e5}, {fc, 2 * fc}} {
+	for _, band := range [][2]float64{{1, 1e9}, {1e3, 1e5}, {corner, 2 * corner}} {
 		b, err := IntegrateNoise(nw, nodeOut("a"), band[0], band[1])
 		if err != nil {
 			t.Fatal(err)
 		}
-		want := s0 * fc * (math.Atan(band[1]/fc) - math.Atan(band[0]/fc))
+		want := s0 * corner * (math.Atan(band[1]/corner) - math.Atan(band[0]/corner))
 		t.Logf("RC noise %g–%g Hz: %.8g V² (closed form %.8g), %d per decade", band[0], band[1], b.Total, want, b.PerDecade)
 		if relDiff(b.Total, want) > 1e-5 {
 			t.Errorf("%g–%g Hz: %.10g V², want %.10g", band[0], band[1], b.Total, want)
@@ -403,8 +403,8 @@ func TestDetectorNEP(t *testing.T) {
 	// The video response: at DC it is the Volterra sensitivity; the
 	// video node is R_j in parallel with 1 µF, one pole at
 	// 1/(2π R_j C) (textbook RC low-pass).
-	fc := 1 / (2 * math.Pi * rj * 1e-6)
-	gv, err := VideoSensitivity(nw, s, 1e9, []float64{0, fc})
+	corner := 1 / (2 * math.Pi * rj * 1e-6)
+	gv, err := VideoSensitivity(nw, s, 1e9, []float64{0, corner})
 	if err != nil {
 		t.Fatal(err)
 	}

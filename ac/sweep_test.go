@@ -59,8 +59,8 @@ ports:
   - {name: in, node: in, impedance: 50, coupling: ac}
 probes: [out]
 `)
-	fc := 1 / (2 * math.Pi * 1000 * 10e-9)
-	r := run(t, nw, fc)
+	corner := 1 / (2 * math.Pi * 1000 * 10e-9)
+	r := run(t, nw, corner)
 	h := r.Points[0].Probes[0]
 	db := 20 * math.Log10(cmplx.Abs(h))
 	deg := cmplx.Phase(h) * 180 / math.Pi
@@ -178,10 +178,10 @@ ports:
 	if math.Abs(rd-25.852) > 0.001 {
 		t.Errorf("r_d at 1 mA = %.4f Ω, want 25.852 Ω", rd)
 	}
-	fc := 1 / (2 * math.Pi * rd * d.C1)
-	z := run(t, nw, fc).Points[0].InputImpedance[0]
+	corner := 1 / (2 * math.Pi * rd * d.C1)
+	z := run(t, nw, corner).Points[0].InputImpedance[0]
 	if deg := cmplx.Phase(z) * 180 / math.Pi; math.Abs(deg+45) > 1e-9 || math.Abs(cmplx.Abs(z)-rd/math.Sqrt2) > 1e-9*rd {
-		t.Errorf("at 1/(2π r C) = %g Hz: Z = %v (%.6f°), want |Z| = r/√2 = %g Ω at -45°", fc, z, deg, rd/math.Sqrt2)
+		t.Errorf("at 1/(2π r C) = %g Hz: Z = %v (%.6f°), want |Z| = r/√2 = %g Ω at -45°", corner, z, deg, rd/math.Sqrt2)
 	}
 }
 

@@ -343,11 +343,11 @@ func volterraOn(nw *smallsignal.Network, d Drive, choice engine) (*Estimate, err
 		if _, err := v.solveAt(w, x); err != nil {
 			return nil, nil, err
 		}
-		vj := make([]complex128, nd)
-		for k := range vj {
-			vj[k] = v.junction(k, x)
+		junctions := make([]complex128, nd)
+		for k := range junctions {
+			junctions[k] = v.junction(k, x)
 		}
-		return x, vj, nil
+		return x, junctions, nil
 	}
 	x1, va, err := first(w1)
 	if err != nil {

@@ -324,10 +324,6 @@ func unitProblem(rest string, q Quantity) string {
 			return fmt.Sprintf("the unit is written %s", u)
 		}
 	}
-	switch {
-	case strings.HasPrefix(strings.ToLower(rest), "meg"):
-		return "mega is written M, nothing else is a multiplier"
-	}
 	if q == Dimensionless {
 		return fmt.Sprintf("`%s` after the number is not an SI prefix", rest)
 	}
