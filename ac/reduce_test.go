@@ -152,18 +152,6 @@ func randomMNA(rng *rand.Rand, nodes int) *smallsignal.Network {
 	return nw
 }
 
-// luSolve solves Y(jw) x = b by the dense LU.
-func luSolve(nw *smallsignal.Network, w float64, b []complex128) error {
-	f := newLU(nw.N)
-	g, c := nw.G.RawMatrix(), nw.C.RawMatrix()
-	f.load(g.Data, c.Data, g.Stride, c.Stride, w)
-	if err := f.factor(); err != nil {
-		return err
-	}
-	f.solve(b)
-	return nil
-}
-
 func maxRel(a, b []complex128) float64 {
 	var d, s float64
 	for i := range a {

@@ -303,6 +303,19 @@ func (sh *shooter) initial(start *Steady) ([]float64, []float64) {
 	return x0, p
 }
 
+// drivePort adds to f a voltage v in series with port i's reference
+// impedance: the Norton current v/Z0 enters the port node.
+func (sh *shooter) drivePort(f []float64, i int, v float64) {
+	pt := sh.nw.Ports[i]
+	j := v / pt.Impedance
+	if pt.Node >= 0 {
+		f[pt.Node] -= j
+	}
+	if pt.Return >= 0 {
+		f[pt.Return] += j
+	}
+}
+
 func (sh *shooter) portVoltage(i int, x []float64) float64 {
 	pt := sh.nw.Ports[i]
 	v := 0.0
@@ -338,22 +351,17 @@ func (sh *shooter) eval(x []float64, t float64, p []float64, f, q, jg, jc, vl []
 	}
 	// The input generator, and every DC block's constant voltage in
 	// series with its port's reference impedance.
-	in := sh.nw.Ports[sh.d.Input]
 	e := sh.d.EMF * math.Cos(2*math.Pi*sh.d.FrequencyHz*t)
-	sig := map[int]float64{sh.d.Input: e}
+	inputBlocked := false
 	for k, i := range sh.ports {
-		sig[i] -= p[k]
+		v := -p[k]
+		if i == sh.d.Input {
+			v, inputBlocked = e-p[k], true
+		}
+		sh.drivePort(f, i, v)
 	}
-	_ = in
-	for i, v := range sig {
-		pt := sh.nw.Ports[i]
-		j := v / pt.Impedance
-		if pt.Node >= 0 {
-			f[pt.Node] -= j
-		}
-		if pt.Return >= 0 {
-			f[pt.Return] += j
-		}
+	if !inputBlocked {
+		sh.drivePort(f, sh.d.Input, e)
 	}
 	for k, d := range sh.nw.Diodes {
 		v := 0.0
@@ -632,6 +640,15 @@ func (sh *shooter) integrate(x0, p []float64, steps int, sens bool) (*trajectory
 	var lu mat.LU
 	xn := append([]float64(nil), x...)
 	rhs := make([]float64, n)
+	// Work storage reused by every step: the Newton update and the
+	// sensitivity system and its solution (S and sSpare alternate).
+	rhsVec, dx := mat.NewVecDense(n, rhs), mat.NewVecDense(n, nil)
+	var b, sNext *mat.Dense
+	var sSpare []float64
+	if sens {
+		b, sNext = mat.NewDense(n, nz, nil), mat.NewDense(n, nz, nil)
+		sSpare = make([]float64, n*nz)
+	}
 	vl := make([]float64, len(sh.nw.Diodes))
 	for step := 1; step <= steps; step++ {
 		t := float64(step) * h
@@ -666,8 +683,7 @@ func (sh *shooter) integrate(x0, p []float64, steps int, sens bool) (*trajectory
 				}
 			}
 			lu.Factorize(jac)
-			dx := mat.NewVecDense(n, nil)
-			if err := lu.SolveVecTo(dx, false, mat.NewVecDense(n, rhs)); !solved(err) {
+			if err := lu.SolveVecTo(dx, false, rhsVec); !solved(err) {
 				return nil, fmt.Errorf("singular step matrix at t = %g s", t)
 			}
 			// Judge the step on the node voltages: branch currents follow
@@ -728,7 +744,6 @@ func (sh *shooter) integrate(x0, p []float64, steps int, sens bool) (*trajectory
 				}
 			}
 			lu.Factorize(jac)
-			b := mat.NewDense(n, nz, nil)
 			for i := 0; i < n; i++ {
 				for j := 0; j < nz; j++ {
 					var v float64
@@ -747,13 +762,12 @@ func (sh *shooter) integrate(x0, p []float64, steps int, sens bool) (*trajectory
 					b.Set(i, j, v)
 				}
 			}
-			var sNext mat.Dense
-			if err := lu.SolveTo(&sNext, false, b); !solved(err) {
+			if err := lu.SolveTo(sNext, false, b); !solved(err) {
 				return nil, fmt.Errorf("singular step matrix at t = %g s", t)
 			}
 			raw := sNext.RawMatrix()
 			// Qd_{n+1} = a (C_{n+1} S_{n+1} - C_n S_n) - mem Qd_n.
-			newS := make([]float64, n*nz)
+			newS := sSpare
 			for i := 0; i < n; i++ {
 				copy(newS[i*nz:(i+1)*nz], raw.Data[i*raw.Stride:i*raw.Stride+nz])
 			}
@@ -774,7 +788,7 @@ func (sh *shooter) integrate(x0, p []float64, steps int, sens bool) (*trajectory
 					Qd[i*nz+j] = a*(cn-cp) - mem*Qd[i*nz+j]
 				}
 			}
-			S = newS
+			S, sSpare = newS, S
 			for k, i := range sh.ports {
 				pt := sh.nw.Ports[i]
 				for j := 0; j < nz; j++ {

@@ -29,7 +29,7 @@ func (t LogTicks) Ticks(min, max float64) []plot.Tick {
 	}
 	decades := math.Log10(max / min)
 	if decades < 0.6 {
-		return LinearTicks{Unit: t.Unit}.Ticks(min, max)
+		return LinearTicks(t).Ticks(min, max)
 	}
 	labelled := map[int]bool{1: true}
 	if decades < 2 {

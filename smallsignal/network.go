@@ -182,18 +182,6 @@ func New(p *bias.Point) (*Network, error) {
 	for _, t := range caps {
 		stampConductance(nw.C, t.a, t.b, t.v)
 	}
-	// Branch rows are linear; stamp them, copy the linear parts, then add
-	// the diodes' small-signal stamps.
-	defer func() {
-		nw.GLinear = mat.DenseCopyOf(nw.G)
-		nw.CLinear = mat.DenseCopyOf(nw.C)
-		for _, t := range diodeConds {
-			stampConductance(nw.G, t.a, t.b, t.v)
-		}
-		for _, t := range diodeCaps {
-			stampConductance(nw.C, t.a, t.b, t.v)
-		}
-	}()
 	nw.Sources = make([]float64, n)
 	for _, t := range isrc {
 		// Value amperes leave `from` (a) and enter `to` (b).
@@ -250,6 +238,16 @@ func New(p *bias.Point) (*Network, error) {
 		}
 		nw.C.Set(k, k, -br.l)
 		k++
+	}
+	// Everything so far is linear: keep it for the time-domain solver,
+	// then add the diodes' small-signal stamps.
+	nw.GLinear = mat.DenseCopyOf(nw.G)
+	nw.CLinear = mat.DenseCopyOf(nw.C)
+	for _, t := range diodeConds {
+		stampConductance(nw.G, t.a, t.b, t.v)
+	}
+	for _, t := range diodeCaps {
+		stampConductance(nw.C, t.a, t.b, t.v)
 	}
 	return nw, nil
 }
