@@ -104,6 +104,28 @@ func (e *Estimate) Balanced(p Product) bool {
 	return false
 }
 
+// OneTone returns the estimate as the first tone alone would give it: the
+// one-tone products of a two-tone estimate are the same numbers, so
+// nothing is solved again.
+func (e *Estimate) OneTone() *Estimate {
+	one := *e
+	one.Drive.SecondToneHz = 0
+	one.SecondFundamental, one.IM2Sum, one.IM2Diff, one.IM3 = 0, 0, 0, 0
+	one.Contributions = nil
+	for _, c := range e.Contributions {
+		if c.Product == DC || c.Product == HD2 || c.Product == HD3 {
+			one.Contributions = append(one.Contributions, c)
+		}
+	}
+	one.balanced = nil
+	for _, p := range e.balanced {
+		if p == DC || p == HD2 || p == HD3 {
+			one.balanced = append(one.balanced, p)
+		}
+	}
+	return &one
+}
+
 // dBc returns 20 log10(|p| / |fundamental|).
 func (e *Estimate) dBc(p complex128) float64 {
 	return 20 * math.Log10(cmplx.Abs(p)/cmplx.Abs(e.Fundamental))
@@ -165,11 +187,10 @@ func DBmToEMF(dbm, z0 float64) float64 {
 
 // volterra holds the factorisations and vectors of one estimate.
 type volterra struct {
-	nw   *smallsignal.Network
-	n    int
-	out  []complex128 // selects the output: e_out
-	work []complex128
-	sys  solver // Y(jw) at the products' frequencies
+	nw  *smallsignal.Network
+	n   int
+	out []complex128 // selects the output: e_out
+	sys solver       // Y(jw) at the products' frequencies
 }
 
 // solveAt solves Y(jw) x = b in place and returns the adjoint vector

@@ -81,3 +81,24 @@ func TestContributionsSum(t *testing.T) {
 		}
 	}
 }
+
+// TestOneTone: the one-tone view of a two-tone estimate equals a one-tone
+// estimate solved on its own.
+func TestOneTone(t *testing.T) {
+	nw := network(t, demo(t, "detector"))
+	d := Drive{Input: 0, Output: Output{Port: 1}, FrequencyHz: 2.45e9, EMF: DBmToEMF(-30, 50)}
+	alone, err := Volterra(nw, d)
+	if err != nil {
+		t.Fatal(err)
+	}
+	d.SecondToneHz = 2.46e9
+	two, err := Volterra(nw, d)
+	if err != nil {
+		t.Fatal(err)
+	}
+	one := two.OneTone()
+	if one.Fundamental != alone.Fundamental || one.HD2 != alone.HD2 || one.HD3 != alone.HD3 || one.DCShift != alone.DCShift ||
+		one.Drive != alone.Drive || len(one.Contributions) != len(alone.Contributions) {
+		t.Errorf("one-tone view %+v differs from the one-tone estimate %+v", one, alone)
+	}
+}

@@ -79,14 +79,13 @@ Settings come from the flags, else from the file's analysis.distortion.`,
 
 // distortionSetup is a resolved distortion run.
 type distortionSetup struct {
-	c          *circuit.Circuit
-	p          *bias.Point
-	nw         *smallsignal.Network
-	drive      ac.Drive
-	inName     string
-	outName    string
-	levelDBm   float64
-	levelInput string
+	c        *circuit.Circuit
+	p        *bias.Point
+	nw       *smallsignal.Network
+	drive    ac.Drive
+	inName   string
+	outName  string
+	levelDBm float64
 }
 
 func resolveDistortion(path string, fl *distortionFlags) (*distortionSetup, error) {
@@ -94,12 +93,32 @@ func resolveDistortion(path string, fl *distortionFlags) (*distortionSetup, erro
 	if err != nil {
 		return nil, err
 	}
-	return resolveDistortionFor(c, fl)
+	return resolveDistortionFor(c, fl, nil)
 }
 
 // resolveDistortionFor resolves the flags and the file's defaults for a
-// loaded circuit.
-func resolveDistortionFor(c *circuit.Circuit, fl *distortionFlags) (*distortionSetup, error) {
+// loaded circuit and linearises it at p, solving the bias first when p is
+// nil.
+func resolveDistortionFor(c *circuit.Circuit, fl *distortionFlags, p *bias.Point) (*distortionSetup, error) {
+	s, err := distortionDrive(c, fl)
+	if err != nil {
+		return nil, err
+	}
+	if p == nil {
+		if p, err = solveWithTemperature(c, fl.temperature); err != nil {
+			return nil, err
+		}
+	}
+	s.p = p
+	if s.nw, err = smallsignal.New(p); err != nil {
+		return nil, analysisError(err)
+	}
+	return s, nil
+}
+
+// distortionDrive resolves the input, output and drive from the flags and
+// the file's defaults, without solving anything.
+func distortionDrive(c *circuit.Circuit, fl *distortionFlags) (*distortionSetup, error) {
 	path := c.File
 	var err error
 	if len(c.Ports) == 0 {
@@ -107,48 +126,11 @@ func resolveDistortionFor(c *circuit.Circuit, fl *distortionFlags) (*distortionS
 	}
 	def := c.Analysis.Distortion
 	s := &distortionSetup{c: c}
-	in := fl.input
-	if in == "" && def.Set {
-		in = def.Input
+	sp, err := resolveSignalPath(c, fl.input, fl.output)
+	if err != nil {
+		return nil, err
 	}
-	if in == "" {
-		in = c.Ports[0].Name
-	}
-	inIdx := -1
-	var names []string
-	for i, p := range c.Ports {
-		names = append(names, p.Name)
-		if p.Name == in {
-			inIdx = i
-		}
-	}
-	if inIdx < 0 {
-		return nil, inputError(fmt.Errorf("flag --input: `%s` is not a port; accepted: %s", in, strings.Join(names, ", ")))
-	}
-	out := fl.output
-	if out == "" && def.Set {
-		out = def.Output
-	}
-	if out == "" {
-		out = c.Ports[len(c.Ports)-1].Name
-	}
-	o := ac.Output{Port: -1, Node: out}
-	for i, p := range c.Ports {
-		if p.Name == out {
-			o = ac.Output{Port: i}
-		}
-	}
-	if o.Port < 0 {
-		found := false
-		for _, n := range c.Nodes {
-			if n == out {
-				found = true
-			}
-		}
-		if !found {
-			return nil, inputError(fmt.Errorf("flag --output: `%s` is neither a port nor a node; accepted ports: %s", out, strings.Join(names, ", ")))
-		}
-	}
+	inIdx, in, o, out := sp.in, sp.inName, sp.out, sp.outName
 	freq := def.FrequencyHz
 	if fl.frequency != "" {
 		if freq, err = circuit.ParseBounded(fl.frequency, circuit.Frequency); err != nil {
@@ -195,14 +177,6 @@ func resolveDistortionFor(c *circuit.Circuit, fl *distortionFlags) (*distortionS
 		if second == freq {
 			return nil, inputError(fmt.Errorf("flag --second-tone: must differ from the signal frequency %s", si.Format(freq, "Hz", 6)))
 		}
-	}
-	s.p, err = solveWithTemperature(c, fl.temperature)
-	if err != nil {
-		return nil, err
-	}
-	s.nw, err = smallsignal.New(s.p)
-	if err != nil {
-		return nil, analysisError(err)
 	}
 	s.drive = ac.Drive{Input: inIdx, Output: o, FrequencyHz: freq, EMF: ac.DBmToEMF(s.levelDBm, z0), SecondToneHz: second}
 	s.inName, s.outName = in, out
@@ -302,12 +276,7 @@ func runDistortion(cmd *cobra.Command, path string, fl *distortionFlags) error {
 	}
 	doc.Waveform = waveformJSONOf(st)
 	doc.Cautions = append([]string{}, st.Cautions()...)
-	oneEst := est
-	if s.drive.SecondToneHz != 0 {
-		if oneEst, err = ac.Volterra(s.nw, one); err != nil {
-			return analysisError(err)
-		}
-	}
+	oneEst := est.OneTone()
 	cmp := ac.Compare(oneEst, st)
 	for _, c := range cmp {
 		doc.Comparison = append(doc.Comparison, comparisonJSON{c.Order, number(c.Estimate), number(c.Waveform), number(c.DiffDB), c.Trustable})

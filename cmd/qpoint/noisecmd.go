@@ -160,55 +160,16 @@ func parseBand(flag, s string, lowDefault float64) (lo, hi float64, err error) {
 }
 
 // resolveNoiseFor resolves ports, bias, detector and frequencies for c.
-func resolveNoiseFor(c *circuit.Circuit, fl *noiseFlags) (*noiseSetup, error) {
+// resolveNoiseFor resolves the flags and the file's defaults for a loaded
+// circuit and linearises it at p, solving the bias first when p is nil.
+func resolveNoiseFor(c *circuit.Circuit, fl *noiseFlags, p *bias.Point) (*noiseSetup, error) {
 	s := &noiseSetup{c: c}
 	def := c.Analysis.Distortion
-	var names []string
-	for _, p := range c.Ports {
-		names = append(names, p.Name)
+	sp, err := resolveSignalPath(c, fl.input, fl.output)
+	if err != nil {
+		return nil, err
 	}
-	portIndex := func(name string) int {
-		for i, p := range c.Ports {
-			if p.Name == name {
-				return i
-			}
-		}
-		return -1
-	}
-
-	in := fl.input
-	if in == "" && def.Set {
-		in = def.Input
-	}
-	if in == "" && len(c.Ports) > 0 {
-		in = c.Ports[0].Name
-	}
-	inIdx := -1
-	if in != "" {
-		if inIdx = portIndex(in); inIdx < 0 {
-			return nil, inputError(fmt.Errorf("flag --input: `%s` is not a port; accepted: %s", in, strings.Join(names, ", ")))
-		}
-	}
-	out := fl.output
-	if out == "" && def.Set {
-		out = def.Output
-	}
-	if out == "" && len(c.Ports) > 0 {
-		out = c.Ports[len(c.Ports)-1].Name
-	}
-	if out == "" {
-		return nil, inputError(fmt.Errorf("%s has no ports: give --output NODE, the node whose noise to report", c.File))
-	}
-	o := ac.Output{Port: portIndex(out), Node: out}
-	if o.Port < 0 {
-		found := false
-		for _, n := range c.Nodes {
-			found = found || n == out
-		}
-		if !found {
-			return nil, inputError(fmt.Errorf("flag --output: `%s` is neither a port nor a node; accepted ports: %s; or a node of the circuit", out, strings.Join(names, ", ")))
-		}
-	}
+	inIdx, in, o, out := sp.in, sp.inName, sp.out, sp.outName
 	if o.Port >= 0 && o.Port == inIdx {
 		if fl.input != "" {
 			return nil, inputError(fmt.Errorf("flags --input and --output: both name port `%s`; the output must be another port or a node", in))
@@ -253,11 +214,12 @@ func resolveNoiseFor(c *circuit.Circuit, fl *noiseFlags) (*noiseSetup, error) {
 		return nil, inputError(fmt.Errorf("flags --carrier/--video-bandwidth: detector figures need an input port for the carrier"))
 	}
 
-	var err error
-	s.p, err = solveWithTemperature(c, fl.temperature)
-	if err != nil {
-		return nil, err
+	if p == nil {
+		if p, err = solveWithTemperature(c, fl.temperature); err != nil {
+			return nil, err
+		}
 	}
+	s.p = p
 	s.nw, err = smallsignal.New(s.p)
 	if err != nil {
 		return nil, analysisError(err)
@@ -360,7 +322,7 @@ func runNoise(cmd *cobra.Command, path string, fl *noiseFlags) error {
 	if err != nil {
 		return err
 	}
-	s, err := resolveNoiseFor(c, fl)
+	s, err := resolveNoiseFor(c, fl, nil)
 	if err != nil {
 		return err
 	}
@@ -458,16 +420,6 @@ func temperatureText(k float64) string {
 		return "0 K (noiseless)"
 	}
 	return strconv.FormatFloat(k, 'f', -1, 64) + " K"
-}
-
-// portTemperature returns the noise temperature of port i's termination.
-func portTemperature(r *ac.NoiseResult, i int) float64 {
-	for _, src := range r.Sources {
-		if src.Where == ac.InTermination && src.Port == i {
-			return src.TemperatureK
-		}
-	}
-	return ac.StandardNoiseTemperatureK
 }
 
 func writeNoiseHeader(w io.Writer, s *noiseSetup) {
@@ -883,13 +835,13 @@ func noiseDocument(o *noiseOutcome) *noiseJSON {
 // defaults, the tables of the command, and headline cards (the noise
 // figure at the file's carrier, or a detector's NEP and tangential
 // sensitivity). A circuit without ports gets a section that says so.
-func noiseSection(c *circuit.Circuit, temperature string) (report.Section, []report.Card, error) {
+func noiseSection(c *circuit.Circuit, temperature string, p *bias.Point) (report.Section, []report.Card, error) {
 	sec := report.Section{ID: "noise", Title: "Noise"}
 	if len(c.Ports) == 0 {
 		sec.Intro = "The circuit has no ports, so no noise is shown."
 		return sec, nil, nil
 	}
-	s, err := resolveNoiseFor(c, &noiseFlags{temperature: temperature})
+	s, err := resolveNoiseFor(c, &noiseFlags{temperature: temperature}, p)
 	if err != nil {
 		sec.Intro = "The noise analysis could not be set up: " + err.Error()
 		return sec, nil, nil

@@ -234,7 +234,7 @@ func TestNoiseSection(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	sec, cards, err := noiseSection(c, "")
+	sec, cards, err := noiseSection(c, "", nil)
 	if err != nil {
 		t.Fatal(err)
 	}

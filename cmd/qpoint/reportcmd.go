@@ -169,9 +169,8 @@ func buildReport(c *circuit.Circuit, temperature string) (*report.Document, erro
 	doc.Sections = append(doc.Sections, sec)
 
 	// Distortion.
-	ds, err := resolveDistortionFor(c, &distortionFlags{temperature: temperature})
+	ds, err := resolveDistortionFor(c, &distortionFlags{temperature: temperature}, p)
 	if err == nil {
-		ds.c, ds.p, ds.nw = c, p, nw
 		sec, cards, err := distortionSection(ds)
 		if err != nil {
 			return nil, err
@@ -181,7 +180,7 @@ func buildReport(c *circuit.Circuit, temperature string) (*report.Document, erro
 	}
 
 	// Noise.
-	if nsec, ncards, err := noiseSection(c, temperature); err == nil {
+	if nsec, ncards, err := noiseSection(c, temperature, p); err == nil {
 		doc.Sections = append(doc.Sections, nsec)
 		doc.Cards = append(doc.Cards, ncards...)
 	} else {
@@ -215,12 +214,7 @@ func distortionSection(s *distortionSetup) (report.Section, []report.Card, error
 	sec.Blocks = append(sec.Blocks, report.Block{Table: contributionTable(est).report()})
 	one := s.drive
 	one.SecondToneHz = 0
-	oneEst := est
-	if s.drive.SecondToneHz != 0 {
-		if oneEst, err = ac.Volterra(s.nw, one); err != nil {
-			return sec, nil, analysisError(err)
-		}
-	}
+	oneEst := est.OneTone()
 	settings := ac.SteadySettings{Harmonics: 5}
 	st, err := ac.SteadyState(s.nw, one, settings)
 	if err != nil {

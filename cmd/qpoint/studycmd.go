@@ -328,7 +328,7 @@ func resolveStudyFor(c *circuit.Circuit, fl *studyFlags) (*studySetup, error) {
 	def2 := c.Analysis.Distortion
 	levelText := fl.level
 	if levelText != "" || def2.Set {
-		d, err := resolveDistortionFor(c, &distortionFlags{input: fl.input, output: fl.output, level: levelText,
+		d, err := distortionDrive(c, &distortionFlags{input: fl.input, output: fl.output, level: levelText,
 			frequency: strconv.FormatFloat(firstOr(freqs, def2.FrequencyHz), 'g', -1, 64) + "Hz"})
 		if err != nil {
 			return nil, err
