@@ -15,8 +15,6 @@ import (
 	"gonum.org/v1/gonum/blas"
 	"gonum.org/v1/gonum/blas/cblas128"
 
-	"qpoint/bias"
-	"qpoint/bias/circuit"
 	"qpoint/smallsignal"
 )
 
@@ -67,7 +65,7 @@ func benchNetwork(b *testing.B, kind string, n int) (nw *smallsignal.Network, re
 	b.Helper()
 	switch kind {
 	case "ladder":
-		nw = loadNetwork(b, benchLadder(n))
+		nw = network(b, benchLadder(n))
 		if nw.N != n {
 			b.Fatalf("ladder has %d unknowns, want %d", nw.N, n)
 		}
@@ -272,7 +270,7 @@ func BenchmarkSteadyState(b *testing.B) {
 	if err != nil {
 		b.Fatal(err)
 	}
-	nw := loadNetwork(b, string(data))
+	nw := network(b, string(data))
 	dist := nw.Point.Circuit.Analysis.Distortion
 	in, out := -1, -1
 	for i, p := range nw.Ports {
@@ -297,25 +295,6 @@ func BenchmarkSteadyState(b *testing.B) {
 		iters = st.Iterations
 	}
 	b.ReportMetric(float64(iters), "newton-iterations")
-}
-
-// loadNetwork loads a circuit from YAML text and linearises it at its
-// bias.
-func loadNetwork(tb testing.TB, src string) *smallsignal.Network {
-	tb.Helper()
-	c, err := circuit.Parse("bench.yaml", []byte(src))
-	if err != nil {
-		tb.Fatal(err)
-	}
-	p, err := bias.Solve(c, bias.Settings{})
-	if err != nil {
-		tb.Fatal(err)
-	}
-	nw, err := smallsignal.New(p)
-	if err != nil {
-		tb.Fatal(err)
-	}
-	return nw
 }
 
 // TestReducedSweepStreams: a reduced sweep allocates per point only the

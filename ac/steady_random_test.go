@@ -5,24 +5,15 @@ import (
 	"math"
 	"math/cmplx"
 	"math/rand/v2"
-	"os"
-	"path/filepath"
-	"strconv"
 	"strings"
 	"testing"
 	"time"
 
 	"qpoint/bias"
 	"qpoint/bias/circuit"
+	"qpoint/bias/circuit/circuittest"
 	"qpoint/smallsignal"
 )
-
-// num writes v so that the loader reads back exactly the same float64.
-func num(v float64) string { return strconv.FormatFloat(v, 'g', -1, 64) }
-
-func logUniform(rng *rand.Rand, lo, hi float64) float64 {
-	return lo * math.Pow(hi/lo, rng.Float64())
-}
 
 // randomSteadyFile writes, from seed, the circuit file of a small network
 // of resistors, capacitors, diodes with charge (depletion and diffusion),
@@ -40,15 +31,15 @@ func randomSteadyFile(seed uint64) string {
 	models := 1 + rng.IntN(3)
 	for m := 0; m < models; m++ {
 		fmt.Fprintf(&b, "  m%d: {saturation_current: %s, ideality: %s, zero_bias_capacitance: %s, built_in_potential: %s",
-			m, num(logUniform(rng, 1e-16, 1e-5)), num(1+rng.Float64()), num(logUniform(rng, 1e-14, 1e-11)), num(0.3+0.5*rng.Float64()))
+			m, circuittest.Num(circuittest.LogUniform(rng, 1e-16, 1e-5)), circuittest.Num(1+rng.Float64()), circuittest.Num(circuittest.LogUniform(rng, 1e-14, 1e-11)), circuittest.Num(0.3+0.5*rng.Float64()))
 		if rng.IntN(2) == 0 {
-			fmt.Fprintf(&b, ", series_resistance: %s", num(logUniform(rng, 0.1, 100)))
+			fmt.Fprintf(&b, ", series_resistance: %s", circuittest.Num(circuittest.LogUniform(rng, 0.1, 100)))
 		}
 		if rng.IntN(3) == 0 {
-			fmt.Fprintf(&b, ", transit_time: %s", num(logUniform(rng, 1e-12, 1e-8)))
+			fmt.Fprintf(&b, ", transit_time: %s", circuittest.Num(circuittest.LogUniform(rng, 1e-12, 1e-8)))
 		}
 		if rng.IntN(3) == 0 {
-			fmt.Fprintf(&b, ", breakdown_voltage: %s, breakdown_current: %s", num(2+20*rng.Float64()), num(logUniform(rng, 1e-6, 1e-3)))
+			fmt.Fprintf(&b, ", breakdown_voltage: %s, breakdown_current: %s", circuittest.Num(2+20*rng.Float64()), circuittest.Num(circuittest.LogUniform(rng, 1e-6, 1e-3)))
 		}
 		b.WriteString("}\n")
 	}
@@ -61,13 +52,13 @@ func randomSteadyFile(seed uint64) string {
 	}
 	b.WriteString("parts:\n")
 	for i := 1; i <= nodes; i++ {
-		fmt.Fprintf(&b, "  - {type: resistor, name: Rtree%d, between: [%s, %s], value: %s}\n", i, name(i), name(rng.IntN(i)), num(logUniform(rng, 10, 1e5)))
+		fmt.Fprintf(&b, "  - {type: resistor, name: Rtree%d, between: [%s, %s], value: %s}\n", i, name(i), name(rng.IntN(i)), circuittest.Num(circuittest.LogUniform(rng, 10, 1e5)))
 	}
 	// The supply reaches the network through a resistor: its node is the
 	// only one a source fixes, so junctions cannot close a loop of
 	// sources without a resistor in it.
-	fmt.Fprintf(&b, "  - {type: voltage_source, name: Vsupply, plus: supply, minus: gnd, value: %s}\n", num(10*(rng.Float64()-0.3)))
-	fmt.Fprintf(&b, "  - {type: resistor, name: Rsupply, between: [supply, %s], value: %s}\n", name(1+rng.IntN(nodes)), num(logUniform(rng, 100, 1e5)))
+	fmt.Fprintf(&b, "  - {type: voltage_source, name: Vsupply, plus: supply, minus: gnd, value: %s}\n", circuittest.Num(10*(rng.Float64()-0.3)))
+	fmt.Fprintf(&b, "  - {type: resistor, name: Rsupply, between: [supply, %s], value: %s}\n", name(1+rng.IntN(nodes)), circuittest.Num(circuittest.LogUniform(rng, 100, 1e5)))
 	uf := make([]int, nodes+1)
 	for i := range uf {
 		uf[i] = i
@@ -92,40 +83,21 @@ func randomSteadyFile(seed uint64) string {
 				fmt.Fprintf(&b, "  - {type: diode, name: D%d, anode: %s, cathode: %s, model: m%d}\n", k, name(a), name(c), rng.IntN(models))
 			}
 		case 3, 4:
-			fmt.Fprintf(&b, "  - {type: capacitor, name: C%d, between: [%s, %s], value: %s}\n", k, name(a), name(c), num(logUniform(rng, 1e-12, 1e-8)))
+			fmt.Fprintf(&b, "  - {type: capacitor, name: C%d, between: [%s, %s], value: %s}\n", k, name(a), name(c), circuittest.Num(circuittest.LogUniform(rng, 1e-12, 1e-8)))
 		case 5:
-			fmt.Fprintf(&b, "  - {type: resistor, name: R%d, between: [%s, %s], value: %s}\n", k, name(a), name(c), num(logUniform(rng, 10, 1e5)))
+			fmt.Fprintf(&b, "  - {type: resistor, name: R%d, between: [%s, %s], value: %s}\n", k, name(a), name(c), circuittest.Num(circuittest.LogUniform(rng, 10, 1e5)))
 		}
 	}
 	if diodes == 0 {
 		fmt.Fprintf(&b, "  - {type: diode, name: Dlast, anode: %s, cathode: gnd, model: m0}\n", name(1+rng.IntN(nodes)))
 	}
 	in, out := 1+rng.IntN(nodes), 1+rng.IntN(nodes)
-	fmt.Fprintf(&b, "  - {type: capacitor, name: Cin, between: [rf, %s], value: %s}\n", name(in), num(logUniform(rng, 1e-11, 1e-8)))
+	fmt.Fprintf(&b, "  - {type: capacitor, name: Cin, between: [rf, %s], value: %s}\n", name(in), circuittest.Num(circuittest.LogUniform(rng, 1e-11, 1e-8)))
 	b.WriteString("ports:\n")
 	fmt.Fprintf(&b, "  - {name: rf, node: rf, impedance: 50}\n")
 	fmt.Fprintf(&b, "analysis:\n  distortion: {input: rf, output: %s, frequency: %sHz, level: %sdBm}\n",
-		name(out), num(math.Round(logUniform(rng, 1e6, 3e9))), num(math.Round(-40+50*rng.Float64())))
+		name(out), circuittest.Num(math.Round(circuittest.LogUniform(rng, 1e6, 3e9))), circuittest.Num(math.Round(-40+50*rng.Float64())))
 	return b.String()
-}
-
-// keepFailure writes a failing case's circuit file where it outlives the
-// test ($QPOINT_FAILURES, else qpoint-failures under the system's temporary
-// directory) and returns the path.
-func keepFailure(t *testing.T, name, text string) string {
-	t.Helper()
-	dir := os.Getenv("QPOINT_FAILURES")
-	if dir == "" {
-		dir = filepath.Join(os.TempDir(), "qpoint-failures")
-	}
-	if err := os.MkdirAll(dir, 0o755); err != nil {
-		t.Fatalf("cannot keep the failing circuit: %v", err)
-	}
-	path := filepath.Join(dir, name)
-	if err := os.WriteFile(path, []byte(text), 0o644); err != nil {
-		t.Fatalf("cannot keep the failing circuit: %v", err)
-	}
-	return path
 }
 
 // TestRandomSteadyState: 100 random networks (20 with -short) reach a
@@ -136,24 +108,7 @@ func keepFailure(t *testing.T, name, text string) string {
 // writes the circuit file and names it with its seed; run one seed alone
 // with QPOINT_SEED=N, more with QPOINT_RANDOM_COUNT=N.
 func TestRandomSteadyState(t *testing.T) {
-	first, count := uint64(1), uint64(100)
-	if testing.Short() {
-		count = 20
-	}
-	if s := os.Getenv("QPOINT_RANDOM_COUNT"); s != "" {
-		n, err := strconv.ParseUint(s, 10, 64)
-		if err != nil {
-			t.Fatalf("QPOINT_RANDOM_COUNT=%q: %v", s, err)
-		}
-		count = n
-	}
-	if s := os.Getenv("QPOINT_SEED"); s != "" {
-		n, err := strconv.ParseUint(s, 10, 64)
-		if err != nil {
-			t.Fatalf("QPOINT_SEED=%q: %v", s, err)
-		}
-		first, count = n, 1
-	}
+	first, count := circuittest.Seeds(t, 100, 20)
 	begin := time.Now()
 	failures, iterations := 0, 0
 	for seed := first; seed < first+count; seed++ {
@@ -197,7 +152,7 @@ func TestRandomSteadyState(t *testing.T) {
 		})
 		if !ok {
 			failures++
-			t.Errorf("seed %d failed; its circuit is written to %s (run it alone with QPOINT_SEED=%d)", seed, keepFailure(t, file, text), seed)
+			t.Errorf("seed %d failed; its circuit is written to %s (run it alone with QPOINT_SEED=%d)", seed, circuittest.KeepFailure(t, file, text), seed)
 			if failures >= 5 {
 				t.Fatalf("stopping after %d failures", failures)
 			}

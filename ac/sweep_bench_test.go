@@ -6,28 +6,7 @@ import (
 	"path/filepath"
 	"strings"
 	"testing"
-
-	"qpoint/bias"
-	"qpoint/bias/circuit"
-	"qpoint/smallsignal"
 )
-
-func benchNet(b *testing.B, src string) *smallsignal.Network {
-	b.Helper()
-	c, err := circuit.Parse("bench.yaml", []byte(src))
-	if err != nil {
-		b.Fatal(err)
-	}
-	p, err := bias.Solve(c, bias.Settings{})
-	if err != nil {
-		b.Fatal(err)
-	}
-	nw, err := smallsignal.New(p)
-	if err != nil {
-		b.Fatal(err)
-	}
-	return nw
-}
 
 // BenchmarkDemoSweep times a 1000-point sweep (10 MHz to 10 GHz) of each
 // demo circuit through Sweep, results streamed and dropped.
@@ -39,7 +18,7 @@ func BenchmarkDemoSweep(b *testing.B) {
 		if err != nil {
 			b.Fatal(err)
 		}
-		nw := benchNet(b, string(data))
+		nw := network(b, string(data))
 		b.Run(strings.TrimSuffix(filepath.Base(f), ".yaml"), func(b *testing.B) {
 			for b.Loop() {
 				if _, _, err := Sweep(nw, freqs, Settings{}, func(Point) error { return nil }); err != nil {
@@ -65,7 +44,7 @@ func rcLadder(n int) string {
 
 // BenchmarkRCLadderSweep times a 1000-point sweep of a 200-node RC ladder.
 func BenchmarkRCLadderSweep(b *testing.B) {
-	nw := benchNet(b, rcLadder(200))
+	nw := network(b, rcLadder(200))
 	freqs, _ := LogGrid(1e6, 10e9, 250)
 	for b.Loop() {
 		if _, _, err := Sweep(nw, freqs, Settings{}, func(Point) error { return nil }); err != nil {
@@ -82,7 +61,7 @@ func BenchmarkVolterraSweep(b *testing.B) {
 	if err != nil {
 		b.Fatal(err)
 	}
-	nw := benchNet(b, string(data))
+	nw := network(b, string(data))
 	freqs, _ := LogGrid(100e6, 6e9, 56)
 	for _, two := range []bool{false, true} {
 		b.Run(map[bool]string{false: "one-tone", true: "two-tone"}[two], func(b *testing.B) {

@@ -16,19 +16,19 @@ import (
 )
 
 // network loads a circuit from YAML text and linearises it at its bias.
-func network(t *testing.T, src string) *smallsignal.Network {
-	t.Helper()
+func network(tb testing.TB, src string) *smallsignal.Network {
+	tb.Helper()
 	c, err := circuit.Parse("test.yaml", []byte(src))
 	if err != nil {
-		t.Fatal(err)
+		tb.Fatal(err)
 	}
 	p, err := bias.Solve(c, bias.Settings{})
 	if err != nil {
-		t.Fatal(err)
+		tb.Fatal(err)
 	}
 	nw, err := smallsignal.New(p)
 	if err != nil {
-		t.Fatal(err)
+		tb.Fatal(err)
 	}
 	return nw
 }

@@ -4,23 +4,13 @@ import (
 	"fmt"
 	"math"
 	"math/rand/v2"
-	"os"
-	"path/filepath"
-	"strconv"
 	"strings"
 	"testing"
 	"time"
 
 	"qpoint/bias/circuit"
+	"qpoint/bias/circuit/circuittest"
 )
-
-// num writes v so that the loader reads back exactly the same float64.
-func num(v float64) string { return strconv.FormatFloat(v, 'g', -1, 64) }
-
-// logUniform returns a number spread evenly in log between lo and hi.
-func logUniform(rng *rand.Rand, lo, hi float64) float64 {
-	return lo * math.Pow(hi/lo, rng.Float64())
-}
 
 // randomCircuitFile writes, from seed, the circuit file of a connected
 // network of resistors, diodes, voltage and current sources, inductors,
@@ -36,19 +26,19 @@ func randomCircuitFile(seed uint64) string {
 	var b strings.Builder
 	fmt.Fprintf(&b, "# Random network, seed %d (bias/random_test.go).\n", seed)
 	fmt.Fprintf(&b, "name: random network %d\n", seed)
-	fmt.Fprintf(&b, "temperature: %sK\n", num(math.Round((233.15+160*rng.Float64())*100)/100))
+	fmt.Fprintf(&b, "temperature: %sK\n", circuittest.Num(math.Round((233.15+160*rng.Float64())*100)/100))
 	b.WriteString("diode_models:\n")
 	models := 1 + rng.IntN(4)
 	for m := 0; m < models; m++ {
-		fmt.Fprintf(&b, "  m%d: {saturation_current: %s, ideality: %s", m, num(logUniform(rng, 1e-18, 1e-5)), num(0.9+2.1*rng.Float64()))
+		fmt.Fprintf(&b, "  m%d: {saturation_current: %s, ideality: %s", m, circuittest.Num(circuittest.LogUniform(rng, 1e-18, 1e-5)), circuittest.Num(0.9+2.1*rng.Float64()))
 		if rng.IntN(2) == 0 {
-			fmt.Fprintf(&b, ", series_resistance: %s", num(logUniform(rng, 1e-3, 1e3)))
+			fmt.Fprintf(&b, ", series_resistance: %s", circuittest.Num(circuittest.LogUniform(rng, 1e-3, 1e3)))
 		}
 		if rng.IntN(3) == 0 {
-			fmt.Fprintf(&b, ", breakdown_voltage: %s, breakdown_current: %s", num(1+100*rng.Float64()), num(logUniform(rng, 1e-9, 1e-2)))
+			fmt.Fprintf(&b, ", breakdown_voltage: %s, breakdown_current: %s", circuittest.Num(1+100*rng.Float64()), circuittest.Num(circuittest.LogUniform(rng, 1e-9, 1e-2)))
 		}
 		if rng.IntN(3) == 0 {
-			fmt.Fprintf(&b, ", zero_bias_capacitance: %s, transit_time: %s", num(logUniform(rng, 1e-14, 1e-10)), num(logUniform(rng, 1e-12, 1e-7)))
+			fmt.Fprintf(&b, ", zero_bias_capacitance: %s, transit_time: %s", circuittest.Num(circuittest.LogUniform(rng, 1e-14, 1e-10)), circuittest.Num(circuittest.LogUniform(rng, 1e-12, 1e-7)))
 		}
 		b.WriteString("}\n")
 	}
@@ -66,7 +56,7 @@ func randomCircuitFile(seed uint64) string {
 		fmt.Fprintf(&b, "  - {"+format+"}\n", args...)
 	}
 	for i := 1; i <= nodes; i++ {
-		add("type: resistor, name: Rtree%d, between: [%s, %s], value: %s", i, name(i), name(rng.IntN(i)), num(logUniform(rng, 1, 1e7)))
+		add("type: resistor, name: Rtree%d, between: [%s, %s], value: %s", i, name(i), name(rng.IntN(i)), circuittest.Num(circuittest.LogUniform(rng, 1, 1e7)))
 	}
 	// Voltage sources and inductors join groups of nodes; one that would
 	// close a loop of them is left out.
@@ -90,7 +80,7 @@ func randomCircuitFile(seed uint64) string {
 	}
 	supply := 1 + rng.IntN(nodes)
 	joins(supply, 0)
-	add("type: voltage_source, name: Vmain, plus: %s, minus: gnd, value: %s", name(supply), num(200*(rng.Float64()-0.4)))
+	add("type: voltage_source, name: Vmain, plus: %s, minus: gnd, value: %s", name(supply), circuittest.Num(200*(rng.Float64()-0.4)))
 	type pick struct{ kind, a, c int }
 	var picks []pick
 	for k := 0; k < 2*nodes; k++ {
@@ -103,9 +93,9 @@ func randomCircuitFile(seed uint64) string {
 	for k, p := range picks {
 		switch {
 		case p.kind == 7 && joins(p.a, p.c):
-			add("type: voltage_source, name: V%d, plus: %s, minus: %s, value: %s", k, name(p.a), name(p.c), num(20*(rng.Float64()-0.5)))
+			add("type: voltage_source, name: V%d, plus: %s, minus: %s, value: %s", k, name(p.a), name(p.c), circuittest.Num(20*(rng.Float64()-0.5)))
 		case p.kind == 8 && joins(p.a, p.c):
-			add("type: inductor, name: L%d, between: [%s, %s], value: %s", k, name(p.a), name(p.c), num(logUniform(rng, 1e-9, 1e-3)))
+			add("type: inductor, name: L%d, between: [%s, %s], value: %s", k, name(p.a), name(p.c), circuittest.Num(circuittest.LogUniform(rng, 1e-9, 1e-3)))
 		}
 	}
 	for k, p := range picks {
@@ -121,15 +111,15 @@ func randomCircuitFile(seed uint64) string {
 				add("type: diode, name: D%d, anode: %s, cathode: %s, model: m%d", k, name(a), name(c), rng.IntN(models))
 			}
 		case 4, 5:
-			add("type: resistor, name: R%d, between: [%s, %s], value: %s", k, name(a), name(c), num(logUniform(rng, 1e-1, 1e7)))
+			add("type: resistor, name: R%d, between: [%s, %s], value: %s", k, name(a), name(c), circuittest.Num(circuittest.LogUniform(rng, 1e-1, 1e7)))
 		case 6:
 			// A current source has its own shunt: 0.1 A pushed into
 			// megohms would ask for megavolts, which no supply the
 			// solver accepts delivers.
-			add("type: current_source, name: I%d, from: %s, to: %s, value: %s", k, name(a), name(c), num(logUniform(rng, 1e-9, 1e-1)*float64(1-2*rng.IntN(2))))
-			add("type: resistor, name: Rshunt%d, between: [%s, %s], value: %s", k, name(a), name(c), num(logUniform(rng, 1, 1e4)))
+			add("type: current_source, name: I%d, from: %s, to: %s, value: %s", k, name(a), name(c), circuittest.Num(circuittest.LogUniform(rng, 1e-9, 1e-1)*float64(1-2*rng.IntN(2))))
+			add("type: resistor, name: Rshunt%d, between: [%s, %s], value: %s", k, name(a), name(c), circuittest.Num(circuittest.LogUniform(rng, 1, 1e4)))
 		case 9:
-			add("type: capacitor, name: C%d, between: [%s, %s], value: %s", k, name(a), name(c), num(logUniform(rng, 1e-12, 1e-6)))
+			add("type: capacitor, name: C%d, between: [%s, %s], value: %s", k, name(a), name(c), circuittest.Num(circuittest.LogUniform(rng, 1e-12, 1e-6)))
 		}
 	}
 	if rng.IntN(2) == 0 {
@@ -139,30 +129,10 @@ func randomCircuitFile(seed uint64) string {
 			if rng.IntN(2) == 0 {
 				coupling = "ac"
 			}
-			fmt.Fprintf(&b, "  - {name: p%d, node: %s, impedance: %s, coupling: %s}\n", k, name(1+rng.IntN(nodes)), num(logUniform(rng, 1, 1e6)), coupling)
+			fmt.Fprintf(&b, "  - {name: p%d, node: %s, impedance: %s, coupling: %s}\n", k, name(1+rng.IntN(nodes)), circuittest.Num(circuittest.LogUniform(rng, 1, 1e6)), coupling)
 		}
 	}
 	return b.String()
-}
-
-// keepFailure writes a failing case's circuit file where it outlives the
-// test, so that it can be loaded again (qpoint bias FILE), and returns the
-// path: in $QPOINT_FAILURES when set, else in qpoint-failures under the
-// system's temporary directory.
-func keepFailure(t *testing.T, name, text string) string {
-	t.Helper()
-	dir := os.Getenv("QPOINT_FAILURES")
-	if dir == "" {
-		dir = filepath.Join(os.TempDir(), "qpoint-failures")
-	}
-	if err := os.MkdirAll(dir, 0o755); err != nil {
-		t.Fatalf("cannot keep the failing circuit: %v", err)
-	}
-	path := filepath.Join(dir, name)
-	if err := os.WriteFile(path, []byte(text), 0o644); err != nil {
-		t.Fatalf("cannot keep the failing circuit: %v", err)
-	}
-	return path
 }
 
 // TestRandomCircuitFiles: 1000 random networks (100 with -short), each
@@ -173,24 +143,7 @@ func keepFailure(t *testing.T, name, text string) string {
 // one seed alone with QPOINT_SEED=N, or more cases with
 // QPOINT_RANDOM_COUNT=N.
 func TestRandomCircuitFiles(t *testing.T) {
-	first, count := uint64(1), uint64(1000)
-	if testing.Short() {
-		count = 100
-	}
-	if s := os.Getenv("QPOINT_RANDOM_COUNT"); s != "" {
-		n, err := strconv.ParseUint(s, 10, 64)
-		if err != nil {
-			t.Fatalf("QPOINT_RANDOM_COUNT=%q: %v", s, err)
-		}
-		count = n
-	}
-	if s := os.Getenv("QPOINT_SEED"); s != "" {
-		n, err := strconv.ParseUint(s, 10, 64)
-		if err != nil {
-			t.Fatalf("QPOINT_SEED=%q: %v", s, err)
-		}
-		first, count = n, 1
-	}
+	first, count := circuittest.Seeds(t, 1000, 100)
 	begin := time.Now()
 	strategies := map[Strategy]int{}
 	failures := 0
@@ -215,7 +168,7 @@ func TestRandomCircuitFiles(t *testing.T) {
 		})
 		if !ok {
 			failures++
-			t.Errorf("seed %d failed; its circuit is written to %s (run it alone with QPOINT_SEED=%d)", seed, keepFailure(t, file, text), seed)
+			t.Errorf("seed %d failed; its circuit is written to %s (run it alone with QPOINT_SEED=%d)", seed, circuittest.KeepFailure(t, file, text), seed)
 			if failures >= 5 {
 				t.Fatalf("stopping after %d failures", failures)
 			}
@@ -238,6 +191,15 @@ const eps = 0x1p-52
 // independently of the solver.
 func checkKCLFloor(t *testing.T, c *circuit.Circuit, p *Point) {
 	t.Helper()
+	checkCurrents(t, c, p, true)
+}
+
+// checkKCL is checkKCLFloor without the rounding floor: the strict
+// 1e-12 A + 1e-9 relative, for circuits without milliohm parts at volts.
+func checkKCL(t *testing.T, c *circuit.Circuit, p *Point) { t.Helper(); checkCurrents(t, c, p, false) }
+
+func checkCurrents(t *testing.T, c *circuit.Circuit, p *Point, withFloor bool) {
+	t.Helper()
 	sum, mag, floor := map[string]float64{}, map[string]float64{}, map[string]float64{}
 	flow := func(from, to string, i float64) {
 		sum[from] += i
@@ -253,6 +215,9 @@ func checkKCLFloor(t *testing.T, c *circuit.Circuit, p *Point) {
 		return x
 	}
 	rounding := func(a, b string, g, va, vb float64) {
+		if !withFloor {
+			return
+		}
 		e := 16 * eps * math.Abs(g) * (math.Abs(va) + math.Abs(vb))
 		floor[a] += e
 		floor[b] += e
@@ -303,9 +268,11 @@ func checkKCLFloor(t *testing.T, c *circuit.Circuit, p *Point) {
 				ir := (d.Voltage - d.JunctionVoltage) / rs
 				// The drop on R_S is the difference of two reported
 				// voltages, each rounded to its own size.
-				tol := 1e-12 + 1e-9*(math.Abs(d.Current)+math.Abs(ir)) +
-					16*eps*(math.Abs(v(a))+math.Abs(internal)+math.Abs(d.Voltage)+math.Abs(d.JunctionVoltage))/rs +
-					16*eps*math.Abs(d.Conductance)*(math.Abs(internal)+math.Abs(v(b)))
+				tol := 1e-12 + 1e-9*(math.Abs(d.Current)+math.Abs(ir))
+				if withFloor {
+					tol += 16*eps*(math.Abs(v(a))+math.Abs(internal)+math.Abs(d.Voltage)+math.Abs(d.JunctionVoltage))/rs +
+						16*eps*math.Abs(d.Conductance)*(math.Abs(internal)+math.Abs(v(b)))
+				}
 				if math.Abs(ir-d.Current) > tol {
 					t.Errorf("%s: current in R_S %g A, junction current %g A (tolerance %g A)", part.Name, ir, d.Current, tol)
 				}
