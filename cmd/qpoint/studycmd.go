@@ -557,9 +557,6 @@ func formatCell(v float64, unit string) string {
 	if unit == "K" {
 		return fmt.Sprintf("%.2f °C", v-273.15)
 	}
-	if unit == "Kdelta" {
-		return si.Format(v, "K", 4)
-	}
 	u := unit
 	if u == "ohm" {
 		u = "Ω"
@@ -602,11 +599,11 @@ func writeSolution(w io.Writer, s *studySetup, r *study.Result, sol *study.Solut
 		fmt.Fprintf(w, "Target %s = %g %s\n", s.measure.Text, s.value, s.measure.Unit)
 		fmt.Fprintf(w, "  met at %s = %s (bracket %s to %s, tolerance %s, %d refinements); %s there is %.6g %s\n",
 			what, formatCell(sol.Value, unit), formatCell(sol.Bracket[0], unit), formatCell(sol.Bracket[1], unit),
-			formatCell(sol.Tolerance, unitDelta(unit)), sol.Iterations, s.measure.Text, sol.Measure, s.measure.Unit)
+			formatDifference(sol.Tolerance, unit), sol.Iterations, s.measure.Text, sol.Measure, s.measure.Unit)
 	default:
 		fmt.Fprintf(w, "%s of %s\n", map[string]string{"maximize": "Largest", "minimize": "Smallest"}[s.goal], s.measure.Text)
 		fmt.Fprintf(w, "  %.6g %s at %s = %s (searched %s to %s, tolerance %s)\n", sol.Measure, s.measure.Unit, what,
-			formatCell(sol.Value, unit), formatCell(sol.Bracket[0], unit), formatCell(sol.Bracket[1], unit), formatCell(sol.Tolerance, unitDelta(unit)))
+			formatCell(sol.Value, unit), formatCell(sol.Bracket[0], unit), formatCell(sol.Bracket[1], unit), formatDifference(sol.Tolerance, unit))
 		if sol.AtEdge {
 			fmt.Fprintf(w, "  ! the best value lies at the end of the range; widen it to see whether it improves further\n")
 		}
@@ -614,12 +611,14 @@ func writeSolution(w io.Writer, s *studySetup, r *study.Result, sol *study.Solut
 	fmt.Fprintln(w)
 }
 
-// unitDelta is the unit of a difference: kelvin stay kelvin.
-func unitDelta(u string) string {
-	if u == "K" {
-		return "Kdelta"
+// formatDifference prints a difference of the varied quantity: a
+// temperature difference stays in kelvin rather than becoming a Celsius
+// reading.
+func formatDifference(v float64, unit string) string {
+	if unit == "K" {
+		return si.Format(v, "K", 4)
 	}
-	return u
+	return formatCell(v, unit)
 }
 
 func studyTable(r *study.Result, cols []column) *table {
