@@ -176,8 +176,10 @@ func BenchmarkEngines(b *testing.B) {
 				}
 				lo, hi, _ := sweepRange(freqs)
 				setup := func() *reduction {
-					r, err := reduceFor(nw, lo, hi)
-					if err != nil || !r.sweepAccurate(nw, ref, s.Probes, lo, hi) {
+					r := reduceAccurate(nw, lo, hi, func(r *reduction) bool {
+						return r.sweepAccurate(nw, ref, s.Probes, lo, hi)
+					})
+					if r == nil {
 						b.Fatal("reduction failed")
 					}
 					return r
@@ -308,7 +310,7 @@ func TestReducedSweepStreams(t *testing.T) {
 	for i, p := range nw.Ports {
 		ref[i] = p.Impedance
 	}
-	r, err := reduceFor(nw, 1e6, 1e9)
+	r, err := reduceFor(nw, 1e6, 1e9, formShifted)
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -13,31 +13,44 @@ import (
 	"gonum.org/v1/gonum/mat"
 )
 
-// reduction is the pencil G + sC reduced once to Hessenberg-triangular
-// form, so that each frequency costs O(n²) instead of the O(n³) of a dense
-// LU (Laub, "Efficient multivariable frequency response computations",
-// IEEE Trans. Automatic Control 26(2), 1981):
+// reduction is the pencil G + sC reduced once to a pair of upper
+// Hessenberg matrices, so that each frequency costs O(n²) instead of the
+// O(n³) of a dense LU (Laub, "Efficient multivariable frequency response
+// computations", IEEE Trans. Automatic Control 26(2), 1981):
 //
-//	Qᵀ Dr (G + sC) Dc Z = H + sT
+//	L (G + sC) R = H + sT,   (G + sC)⁻¹ = R (H + sT)⁻¹ L
 //
-// with Q, Z orthogonal, H upper Hessenberg, T upper triangular (singular
-// where C is: nodes without capacitance, voltage-source branch rows), and
-// Dr, Dc diagonal balancing scalings, powers of two so they are exact. Then
-//
-//	(G + sC)⁻¹  = Dc Z (H + sT)⁻¹ Qᵀ Dr
-//	(G + sC)⁻ᵀ  = Dr Q (H + sT)⁻ᵀ Zᵀ Dc
-//
-// and H + jwT stays upper Hessenberg at every w: Gaussian elimination with
+// H + jwT stays upper Hessenberg at every w: Gaussian elimination with
 // partial pivoting only ever swaps adjacent rows, so factoring it costs
 // n²/2 complex multiply-adds and each solve about as much.
 //
-// A reduction holds O(n²) numbers (H, T, Q, Z and one factorisation) and
-// nothing per frequency.
+// Two forms, tried in this order (reduceFor):
+//
+//   - shifted (reduceShifted): with a real shift σ at which K = G + σC is
+//     regular, G + sC = K (I + (s-σ) K⁻¹C); the Hessenberg form of
+//     M = K⁻¹C by orthogonal similarity, M = U Hm Uᵀ (gonum's blocked
+//     Dgehrd), gives H = I - σHm, T = Hm, L = Uᵀ K⁻¹, R = U. This is
+//     Laub's own route, the state matrix replaced by K⁻¹C; it costs
+//     about a quarter of the other at n = 200 (BENCHMARKS.md).
+//   - Hessenberg-triangular (reduceTriangular): Q, Z orthogonal from a
+//     QR factorisation of C and gonum's Dgghrd (Moler and Stewart 1973),
+//     H upper Hessenberg, T upper triangular, L = Qᵀ, R = Z. It needs no
+//     regular K, and takes over where the shifted form fails its check.
+//
+// Both balance first: G and C become Dr G Dc and Dr C Dc, with Dr, Dc
+// diagonal powers of two (exact), folded into L and R.
+//
+// A reduction holds O(n²) numbers (H, T, the basis and one
+// factorisation) and nothing per frequency.
 type reduction struct {
 	n    int
-	h, t []float64 // H upper Hessenberg, T upper triangular, n×n row-major
-	// qs = Dr Q and zs = Dc Z, n×n row-major: the balancing is folded in.
-	qs, zs []float64
+	form reductionForm
+	// H and T, n×n row-major, upper Hessenberg (T upper triangular in
+	// the Hessenberg-triangular form).
+	h, t []float64
+	// basis maps between the network's unknowns and the reduced
+	// coordinates: Y(s)⁻¹ = R (H + sT)⁻¹ L.
+	basis basis
 
 	// ht packs H + jT by rows, row i from column max(i-1, 0) at
 	// ht[hoff[i]:hoff[i+1]]: the upper Hessenberg part, one stream for
@@ -73,26 +86,36 @@ var blasImpl blasgonum.Implementation
 // errReduction reports a reduction that cannot be used.
 var errReduction = errors.New("reduction unusable")
 
-// reduce computes the Hessenberg-triangular form of G + sC: a balancing
-// of |G| + wRef|C| (Ruiz's iterated row and column equilibration, rounded
-// to powers of two), a QR factorisation with column pivoting of the
-// balanced C (gonum lapack Dgeqp3, Dorgqr), then the reduction of
-// (Q1ᵀ G P, R) by Givens rotations (Dgghrd; Moler and Stewart, "An
-// algorithm for generalized matrix eigenvalue problems", SIAM J. Numer.
-// Anal. 10(2), 1973). Cost O(n³), once.
-func reduce(g, c *mat.Dense, wRef float64) (*reduction, error) {
+// checkFinite returns an error for a non-finite entry of G or C.
+func checkFinite(g, c *mat.Dense) (n int, err error) {
 	n, nc := g.Dims()
 	if r, cc := c.Dims(); n != nc || r != n || cc != n {
-		return nil, fmt.Errorf("reduction: G and C must be square and alike")
+		return 0, fmt.Errorf("reduction: G and C must be square and alike")
 	}
 	gr, cr := g.RawMatrix(), c.RawMatrix()
 	for i := 0; i < n; i++ {
 		for j := 0; j < n; j++ {
 			if v, u := gr.Data[i*gr.Stride+j], cr.Data[i*cr.Stride+j]; math.IsNaN(v+u) || math.IsInf(v+u, 0) {
-				return nil, fmt.Errorf("reduction: non-finite matrix entry at (%d, %d): %w", i, j, errReduction)
+				return 0, fmt.Errorf("reduction: non-finite matrix entry at (%d, %d): %w", i, j, errReduction)
 			}
 		}
 	}
+	return n, nil
+}
+
+// reduceTriangular computes the Hessenberg-triangular form of G + sC: a
+// balancing of |G| + wRef|C| (Ruiz's iterated row and column
+// equilibration, rounded to powers of two), a QR factorisation with column
+// pivoting of the balanced C (gonum lapack Dgeqp3, Dorgqr), then the
+// reduction of (Q1ᵀ G P, R) by Givens rotations (Dgghrd; Moler and
+// Stewart, "An algorithm for generalized matrix eigenvalue problems", SIAM
+// J. Numer. Anal. 10(2), 1973). Cost O(n³), once.
+func reduceTriangular(g, c *mat.Dense, wRef float64) (*reduction, error) {
+	n, err := checkFinite(g, c)
+	if err != nil {
+		return nil, err
+	}
+	gr, cr := g.RawMatrix(), c.RawMatrix()
 	dr, dc := balance(gr, cr, n, wRef)
 
 	a := make([]float64, n*n) // Dr G Dc, then Q1ᵀ Dr G Dc P, then H
@@ -103,8 +126,10 @@ func reduce(g, c *mat.Dense, wRef float64) (*reduction, error) {
 			b[i*n+j] = dr[i] * cr.Data[i*cr.Stride+j] * dc[j]
 		}
 	}
-	r := &reduction{n: n}
+	r := &reduction{n: n, form: formTriangular}
 	if n == 0 {
+		r.basis = &explicitBasis{}
+		r.alloc()
 		return r, nil
 	}
 	var impl gonum.Implementation
@@ -158,7 +183,8 @@ func reduce(g, c *mat.Dense, wRef float64) (*reduction, error) {
 			z[i*n+j] *= dc[i]
 		}
 	}
-	r.h, r.t, r.qs, r.zs = a, t, q, z
+	r.h, r.t, r.basis = a, t, &explicitBasis{n: n, qs: q, zs: z}
+	r.form = formTriangular
 	r.alloc()
 	return r, nil
 }
@@ -417,66 +443,85 @@ func axpy(alpha complex128, x, y []complex128) {
 	blasImpl.Zaxpy(len(x), alpha, x, 1, y, 1)
 }
 
-// mulT sets d = T y for the upper triangular T: two real triangular
-// products (gonum's Dtrmv) on the parts of y.
+// mulT sets d = T y for the upper Hessenberg T: per row, two real dot
+// products (gonum's Ddot) with the parts of y.
 func (r *reduction) mulT(y, d []complex128) {
 	n := r.n
 	yr, yi := r.yr, r.yi
 	for i, v := range y[:n] {
 		yr[i], yi[i] = real(v), imag(v)
 	}
-	blasImpl.Dtrmv(blas.Upper, blas.NoTrans, blas.NonUnit, n, r.t, n, yr, 1)
-	blasImpl.Dtrmv(blas.Upper, blas.NoTrans, blas.NonUnit, n, r.t, n, yi, 1)
 	for i := range d[:n] {
-		d[i] = complex(yr[i], yi[i])
+		lo := max(i-1, 0)
+		row := r.t[i*n+lo : i*n+n]
+		d[i] = complex(blasImpl.Ddot(n-lo, row, 1, yr[lo:], 1), blasImpl.Ddot(n-lo, row, 1, yi[lo:], 1))
 	}
 }
 
-// project returns Qᵀ Dr b in y, for b in the network's unknowns.
-func (r *reduction) project(b, y []complex128) {
-	n := r.n
-	clear(y)
-	for i, bi := range b {
+// solve overwrites b with the solution x of Y(jw) x = b, Y factored by
+// factor(w): x = R (H + jwT)⁻¹ L b. O(n²).
+func (r *reduction) solve(b []complex128) {
+	y := r.work
+	r.basis.left(b, y)
+	r.solveY(y)
+	r.basis.right(y, b)
+}
+
+// solveT overwrites b with the solution z of Y(jw)ᵀ z = b (plain
+// transpose, the adjoint solve): z = Lᵀ (H + jwT)⁻ᵀ Rᵀ b. O(n²).
+func (r *reduction) solveT(b []complex128) {
+	v := r.work
+	r.basis.rightT(b, v)
+	r.solveYT(v)
+	r.basis.leftT(v, b)
+}
+
+// basis holds the maps L and R of a reduction, L (G + sC) R = H + sT,
+// and applies them to vectors in O(n²). Vectors of the network's unknowns
+// and of reduced coordinates both have n entries; no method keeps its
+// arguments, and in and out never share storage.
+type basis interface {
+	left(b, y []complex128)   // y = L b
+	leftT(v, b []complex128)  // b = Lᵀ v
+	right(y, x []complex128)  // x = R y
+	rightT(b, v []complex128) // v = Rᵀ b
+	// rightRow sets row to row i of R, real.
+	rightRow(i int, row []float64)
+}
+
+// explicitBasis is L = Qᵀ Dr and R = Dc Z held as matrices: qs = Dr Q and
+// zs = Dc Z, n×n row-major.
+type explicitBasis struct {
+	n      int
+	qs, zs []float64
+}
+
+func (e *explicitBasis) left(b, y []complex128)  { mulTransposed(e.qs, e.n, b, y) }
+func (e *explicitBasis) rightT(b, v []complex128) { mulTransposed(e.zs, e.n, b, v) }
+func (e *explicitBasis) right(y, x []complex128)  { mulReal(e.zs, e.n, y, x) }
+func (e *explicitBasis) leftT(v, b []complex128)  { mulReal(e.qs, e.n, v, b) }
+func (e *explicitBasis) rightRow(i int, row []float64) {
+	copy(row, e.zs[i*e.n:i*e.n+e.n])
+}
+
+// mulTransposed sets y = Aᵀ b for the real n×n row-major A, skipping the
+// zero entries of b (excitations touch a node or two).
+func mulTransposed(a []float64, n int, b, y []complex128) {
+	clear(y[:n])
+	for i, bi := range b[:n] {
 		if bi == 0 {
 			continue
 		}
-		row := r.qs[i*n : i*n+n]
-		for j, q := range row {
+		for j, q := range a[i*n : i*n+n] {
 			y[j] += complex(q, 0) * bi
 		}
 	}
 }
 
-// solve overwrites b with the solution x of Y(jw) x = b, Y factored by
-// factor(w): x = Dc Z (H + jwT)⁻¹ Qᵀ Dr b. O(n²).
-func (r *reduction) solve(b []complex128) {
-	n := r.n
-	y := r.work
-	r.project(b, y)
-	r.solveY(y)
-	for i := 0; i < n; i++ {
-		b[i] = dotReal(r.zs[i*n:i*n+n], y)
-	}
-}
-
-// solveT overwrites b with the solution z of Y(jw)ᵀ z = b (plain
-// transpose, the adjoint solve): z = Dr Q (H + jwT)⁻ᵀ Zᵀ Dc b. O(n²).
-func (r *reduction) solveT(b []complex128) {
-	n := r.n
-	v := r.work
-	clear(v)
-	for i, bi := range b {
-		if bi == 0 {
-			continue
-		}
-		row := r.zs[i*n : i*n+n]
-		for j, z := range row {
-			v[j] += complex(z, 0) * bi
-		}
-	}
-	r.solveYT(v)
-	for i := 0; i < n; i++ {
-		b[i] = dotReal(r.qs[i*n:i*n+n], v)
+// mulReal sets x = A y for the real n×n row-major A.
+func mulReal(a []float64, n int, y, x []complex128) {
+	for i := range x[:n] {
+		x[i] = dotReal(a[i*n:i*n+n], y)
 	}
 }
 

@@ -320,7 +320,7 @@ func TestReducedSweepHandsOver(t *testing.T) {
 	for i, p := range nw.Ports {
 		ref[i] = p.Impedance
 	}
-	r, err := reduceFor(nw, 1e6, 1e9)
+	r, err := reduceFor(nw, 1e6, 1e9, formShifted)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -487,43 +487,70 @@ func TestEngineChoice(t *testing.T) {
 	}
 }
 
-// TestReductionReconstructs: the reduction's factors satisfy
-// (Dr Q)ᵀ G (Dc Z) = H and (Dr Q)ᵀ C (Dc Z) = T to rounding, with H upper
-// Hessenberg and T upper triangular: the form of Moler and Stewart, SIAM
-// J. Numer. Anal. 10(2), 1973, here from gonum's Dgeqp3, Dorgqr and
-// Dgghrd.
+// TestReductionReconstructs: in both forms the reduction's maps satisfy
+// L (G + sC) R = H + sT to rounding (checked column by column through
+// the basis, at s = 0 and at s = j wRef), with H and T upper Hessenberg
+// and, in the Hessenberg-triangular form, T upper triangular: the forms
+// of Laub (IEEE Trans. Automatic Control 26(2), 1981; here with
+// gonum's Dgetrf and Dgehrd) and of Moler and Stewart (SIAM J. Numer.
+// Anal. 10(2), 1973; gonum's Dgeqp3, Dorgqr and Dgghrd).
 func TestReductionReconstructs(t *testing.T) {
 	for trial := 0; trial < 30; trial++ {
 		rng := rand.New(rand.NewPCG(31, uint64(trial)))
 		nw := randomMNA(rng, 2+rng.IntN(80))
 		n := nw.N
-		r, err := reduceFor(nw, 1e6, 1e10)
-		if err != nil {
-			t.Fatal(err)
-		}
-		qs, zs := mat.NewDense(n, n, r.qs), mat.NewDense(n, n, r.zs)
-		for _, c := range []struct {
-			name string
-			a    *mat.Dense
-			want []float64
-		}{{"H", nw.G, r.h}, {"T", nw.C, r.t}} {
-			var got mat.Dense
-			got.Mul(qs.T(), c.a)
-			got.Mul(&got, zs)
-			want := mat.NewDense(n, n, c.want)
-			var d mat.Dense
-			d.Sub(&got, want)
-			if e, s := mat.Norm(&d, 1), mat.Norm(want, 1); e > 1e-13*s {
-				t.Errorf("trial %d (n = %d): |(Dr Q)ᵀ M (Dc Z) - %s| = %g, |%s| = %g", trial, n, c.name, e, c.name, s)
+		for _, form := range []reductionForm{formShifted, formTriangular} {
+			r, err := reduceFor(nw, 1e6, 1e10, form)
+			if err != nil {
+				t.Fatalf("trial %d, %v: %v", trial, form, err)
 			}
-			below := 2 // H: zero below the first subdiagonal
-			if c.name == "T" {
-				below = 1
+			g, c := nw.G.RawMatrix(), nw.C.RawMatrix()
+			wRef := 2 * math.Pi * math.Sqrt(1e6*1e10)
+			for _, w := range []float64{0, wRef} {
+				e, x, y, z := make([]complex128, n), make([]complex128, n), make([]complex128, n), make([]complex128, n)
+				worst, size := 0.0, 0.0
+				for j := 0; j < n; j++ {
+					clear(e)
+					e[j] = 1
+					r.basis.right(e, x)
+					for i := 0; i < n; i++ {
+						var s complex128
+						for k := 0; k < n; k++ {
+							s += complex(g.Data[i*g.Stride+k], w*c.Data[i*c.Stride+k]) * x[k]
+						}
+						y[i] = s
+					}
+					r.basis.left(y, z)
+					for i := 0; i < n; i++ {
+						want := complex(r.h[i*n+j], w*r.t[i*n+j])
+						worst = math.Max(worst, cmplx.Abs(z[i]-want))
+						size = math.Max(size, cmplx.Abs(want))
+					}
+				}
+				// The shifted form's L holds K⁻¹: its rounding grows with
+				// K's condition number.
+				tol := 1e-12
+				if sb, ok := r.basis.(*shiftedBasis); ok {
+					tol = math.Max(tol, 1e-15/sb.rcond)
+				}
+				if worst > tol*size {
+					t.Errorf("trial %d (n = %d), %v, w = %g: |L (G + jwC) R - (H + jwT)| = %g, |H + jwT| = %g, tolerance %g", trial, n, form, w, worst, size, tol)
+				}
 			}
-			for i := 0; i < n; i++ {
-				for j := 0; j <= i-below; j++ {
-					if c.want[i*n+j] != 0 {
-						t.Fatalf("trial %d: %s[%d][%d] = %g, want 0", trial, c.name, i, j, c.want[i*n+j])
+			below := 2 // zero below the first subdiagonal
+			for _, m := range []struct {
+				name  string
+				v     []float64
+				below int
+			}{{"H", r.h, 2}, {"T", r.t, below}} {
+				if form == formTriangular && m.name == "T" {
+					m.below = 1
+				}
+				for i := 0; i < n; i++ {
+					for j := 0; j <= i-m.below; j++ {
+						if m.v[i*n+j] != 0 {
+							t.Fatalf("trial %d, %v: %s[%d][%d] = %g, want 0", trial, form, m.name, i, j, m.v[i*n+j])
+						}
 					}
 				}
 			}
