@@ -335,6 +335,24 @@ type pointEval struct {
 	vrow [][]float64    // port voltage i = vrow[i]·y
 	prow [][]float64    // probe k's voltage = prow[k]·y
 	dy   []complex128
+	// reciprocal: G and C are symmetric, so S is (power waves, real
+	// references): the column of the group delay's output port comes
+	// from its row, which the adjoint solve gives, and that port needs no
+	// solve of its own.
+	reciprocal bool
+	solves     [][]complex128 // the y[j] each point solves for
+}
+
+// symmetric reports whether the square m equals its transpose exactly.
+func symmetric(m blas64.General, n int) bool {
+	for i := 0; i < n; i++ {
+		for j := 0; j < i; j++ {
+			if m.Data[i*m.Stride+j] != m.Data[j*m.Stride+i] {
+				return false
+			}
+		}
+	}
+	return true
 }
 
 func (r *reduction) points(nw *smallsignal.Network, ref []float64, probes []string) *pointEval {
@@ -369,7 +387,25 @@ func (r *reduction) points(nw *smallsignal.Network, ref []float64, probes []stri
 	for _, name := range probes {
 		ev.prow = append(ev.prow, row(probeIndex(nw, name)))
 	}
+	// Modified nodal analysis of resistors, capacitors, inductors,
+	// linearised diodes and independent sources stamps symmetric G and C;
+	// checked, not assumed.
+	ev.reciprocal = np > 1 && symmetric(nw.G.RawMatrix(), n) && symmetric(nw.C.RawMatrix(), n)
+	for j := range ev.y {
+		if !ev.reciprocal || j != groupDelayPort(np) {
+			ev.solves = append(ev.solves, ev.y[j])
+		}
+	}
 	return ev
+}
+
+// groupDelayPort is the port whose response to port 1 the group delay
+// follows: S21's output, or port 1 alone.
+func groupDelayPort(ports int) int {
+	if ports > 1 {
+		return 1
+	}
+	return 0
 }
 
 // at returns the point at hz, and false where the Hessenberg elimination
@@ -377,10 +413,7 @@ func (r *reduction) points(nw *smallsignal.Network, ref []float64, probes []stri
 func (ev *pointEval) at(hz float64) (Point, bool) {
 	r, ref := ev.r, ev.ref
 	np := len(ev.c)
-	out := 0
-	if np > 1 {
-		out = 1
-	}
+	out := groupDelayPort(np)
 	// The factorisation also solves the adjoint (H + jwT)ᵀ v = vrow[out]
 	// for the group delay.
 	r.adjRHS = ev.vrow[out]
@@ -393,21 +426,36 @@ func (ev *pointEval) at(hz float64) (Point, bool) {
 	for j := range ev.y {
 		copy(ev.y[j], ev.c[j])
 	}
-	for j := 0; j < np; j += 2 {
-		if j+1 < np {
-			r.solveY2(ev.y[j], ev.y[j+1])
+	for k := 0; k < len(ev.solves); k += 2 {
+		if k+1 < len(ev.solves) {
+			r.solveY2(ev.solves[k], ev.solves[k+1])
 		} else {
-			r.solveY(ev.y[j])
+			r.solveY(ev.solves[k])
 		}
 	}
+	// S_ij = 2 V_i sqrt(R_j/R_i) - δ_ij for unit EMF at port j, with
+	// V_i = vrow[i]·y_j, or vᵀ c_j for i = out (v the adjoint solution).
 	for j := 0; j < np; j++ {
 		for i := 0; i < np; i++ {
-			v := dotReal(ev.vrow[i], ev.y[j])
+			var v complex128
+			switch {
+			case ev.reciprocal && i == out:
+				v = dotu(r.adj, ev.c[j])
+			case ev.reciprocal && j == out:
+				continue // from row out, below
+			default:
+				v = dotReal(ev.vrow[i], ev.y[j])
+			}
 			sij := 2 * v * complex(math.Sqrt(ref[j]/ref[i]), 0)
 			if i == j {
 				sij--
 			}
 			pt.S[i][j] = sij
+		}
+	}
+	if ev.reciprocal {
+		for i := 0; i < np; i++ {
+			pt.S[i][out] = pt.S[out][i]
 		}
 	}
 	for i := 0; i < np; i++ {

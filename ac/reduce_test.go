@@ -221,7 +221,7 @@ func TestReducedSweepDemos(t *testing.T) {
 		if d := sweepsDiffer(red, lu, 1e-9); d != "" {
 			t.Errorf("%s (n = %d): %s", f, nw.N, d)
 		}
-		t.Logf("%s (n = %d): agree to %.0e", filepath.Base(f), nw.N, agreement(red, lu))
+		t.Logf("%s (n = %d): agree to %.0e relative (absolute floor %g)", filepath.Base(f), nw.N, agreement(red, lu), checkFloor)
 	}
 }
 
@@ -274,7 +274,7 @@ func TestReducedSweepRandom(t *testing.T) {
 		}
 		worst = math.Max(worst, agreement(red, lu))
 	}
-	t.Logf("%d of %d random networks ran on the reduction; worst agreement %.0e", reduced, trials, worst)
+	t.Logf("%d of %d random networks ran on the reduction; worst agreement %.0e relative (absolute floor %g)", reduced, trials, worst, checkFloor)
 	if reduced < trials*9/10 {
 		t.Errorf("only %d of %d random networks passed the reduction's accuracy check", reduced, trials)
 	}
