@@ -127,3 +127,14 @@ func (f *lu) load(g, c []float64, gs, cs int, w float64) {
 		}
 	}
 }
+
+// loadReal fills the factorisation's matrix with the real matrix g
+// (row-major raw data of an n×n matrix of stride gs): Y(0) = G.
+func (f *lu) loadReal(g []float64, gs int) {
+	n := f.n
+	for i := 0; i < n; i++ {
+		for j := 0; j < n; j++ {
+			f.a[i*n+j] = complex(g[i*gs+j], 0)
+		}
+	}
+}

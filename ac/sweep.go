@@ -5,6 +5,7 @@ import (
 	"math"
 	"math/cmplx"
 
+	"qpoint/bias/circuit"
 	"qpoint/smallsignal"
 )
 
@@ -73,13 +74,25 @@ func Sweep(nw *smallsignal.Network, freqs []float64, s Settings, visit func(Poin
 }
 
 func sweep(nw *smallsignal.Network, freqs []float64, s Settings, visit func(Point) error, choice engine) ([]PortInfo, []string, error) {
+	return new(Workspace).sweep(nw, freqs, s, visit, choice)
+}
+
+// Sweep is the package's Sweep in the workspace's storage. The points
+// handed to visit are the caller's to keep; the ports it returns are
+// overwritten by the workspace's next call to Sweep.
+func (ws *Workspace) Sweep(nw *smallsignal.Network, freqs []float64, s Settings, visit func(Point) error) ([]PortInfo, []string, error) {
+	return ws.sweep(nw, freqs, s, visit, engineAuto)
+}
+
+func (ws *Workspace) sweep(nw *smallsignal.Network, freqs []float64, s Settings, visit func(Point) error, choice engine) ([]PortInfo, []string, error) {
 	if len(nw.Ports) == 0 {
 		return nil, nil, fmt.Errorf("the circuit has no ports; add a `ports:` entry to drive and load it")
 	}
-	ref := make([]float64, len(nw.Ports))
-	for i, p := range nw.Ports {
-		ref[i] = p.Impedance
+	ref := ws.reference[:0]
+	for _, p := range nw.Ports {
+		ref = append(ref, p.Impedance)
 	}
+	ws.reference = ref
 	if s.Reference != nil {
 		if len(s.Reference) != len(nw.Ports) {
 			return nil, nil, fmt.Errorf("%d reference impedances given for %d ports", len(s.Reference), len(nw.Ports))
@@ -97,14 +110,15 @@ func sweep(nw *smallsignal.Network, freqs []float64, s Settings, visit func(Poin
 		probes = nw.Point.Circuit.Probes
 	}
 	for _, name := range probes {
-		if _, ok := nw.NodeVoltage(name, make([]complex128, nw.N)); !ok {
+		if _, ok := nw.Nodes[name]; !ok && name != circuit.Ground {
 			return nil, nil, fmt.Errorf("probe %q is not a node of the circuit", name)
 		}
 	}
-	ports := make([]PortInfo, len(nw.Ports))
+	ports := ws.ports[:0]
 	for i, p := range nw.Ports {
-		ports[i] = PortInfo{p.Name, ref[i]}
+		ports = append(ports, PortInfo{p.Name, ref[i]})
 	}
+	ws.ports = ports
 
 	// The reduced engine takes the points it can; the LU the rest.
 	done := 0
@@ -116,13 +130,17 @@ func sweep(nw *smallsignal.Network, freqs []float64, s Settings, visit func(Poin
 	}
 
 	n, np := nw.N, len(nw.Ports)
-	f := newLU(n)
+	f := ws.factorization(n)
 	g, c := nw.G.RawMatrix(), nw.C.RawMatrix()
-	x := make([][]complex128, np)
-	for i := range x {
-		x[i] = make([]complex128, n)
+	if len(ws.solutions) < np {
+		ws.solutions = append(ws.solutions, make([][]complex128, np-len(ws.solutions))...)
 	}
-	dx := make([]complex128, n)
+	x := ws.solutions[:np]
+	for i := range x {
+		x[i] = vector(x[i], n)
+	}
+	ws.slope = vector(ws.slope, n)
+	dx := ws.slope
 	for _, hz := range freqs[done:] {
 		if err := CheckFrequency(hz); err != nil {
 			return ports, probes, err
@@ -136,7 +154,7 @@ func sweep(nw *smallsignal.Network, freqs []float64, s Settings, visit func(Poin
 		if err := f.factor(); err != nil {
 			return ports, probes, fmt.Errorf("at %g Hz: %w", hz, err)
 		}
-		pt := newPoint(hz, np)
+		pt := newPointWithProbes(hz, np, len(probes))
 		for j := 0; j < np; j++ {
 			nw.Excitation(j, 1, x[j])
 			f.solve(x[j])
@@ -193,11 +211,19 @@ func sweep(nw *smallsignal.Network, freqs []float64, s Settings, visit func(Poin
 // newPoint returns a Point for np ports whose S-matrix rows and input
 // impedances share one allocation: a long sweep or study keeps millions of
 // points, and one block each keeps the collector's work small.
-func newPoint(hz float64, np int) Point {
-	block := make([]complex128, np*np+np)
+func newPoint(hz float64, np int) Point { return newPointWithProbes(hz, np, 0) }
+
+// newPointWithProbes is newPoint with room for the voltages of probes
+// probes in the same block: Probes is empty with that capacity (nil when
+// there are none), ready to be appended to.
+func newPointWithProbes(hz float64, np, probes int) Point {
+	block := make([]complex128, np*np+np+probes)
 	pt := Point{FrequencyHz: hz, S: make([][]complex128, np), InputImpedance: block[np*np : np*np+np : np*np+np]}
 	for i := range pt.S {
 		pt.S[i] = block[i*np : (i+1)*np : (i+1)*np]
+	}
+	if probes > 0 {
+		pt.Probes = block[np*np+np : np*np+np : np*np+np+probes]
 	}
 	return pt
 }

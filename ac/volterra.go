@@ -187,32 +187,34 @@ func DBmToEMF(dbm, z0 float64) float64 {
 
 // volterra holds the factorisations and vectors of one estimate.
 type volterra struct {
-	nw  *smallsignal.Network
-	n   int
-	out []complex128 // selects the output: e_out
-	sys solver       // Y(jw) at the products' frequencies
+	nw      *smallsignal.Network
+	n       int
+	out     []complex128 // selects the output: e_out
+	adjoint []complex128 // the last adjoint solution, Y(jw)⁻ᵀ e_out
+	sys     solver       // Y(jw) at the products' frequencies
+	ws      *Workspace   // storage for the products and the DC factorisation
 }
 
 // solveAt solves Y(jw) x = b in place and returns the adjoint vector
-// z = Y(jw)⁻ᵀ e_out. At w = 0 the AC-coupled ports' DC blocks are open.
+// z = Y(jw)⁻ᵀ e_out, which the next call overwrites. At w = 0 the
+// AC-coupled ports' DC blocks are open.
 func (v *volterra) solveAt(w float64, b []complex128) ([]complex128, error) {
 	var f solver = v.sys
 	if w == 0 {
-		lu := newLU(v.n)
-		g := v.nw.GDC().RawMatrix()
-		lu.load(g.Data, make([]float64, v.n*v.n), g.Stride, v.n, 0)
-		if err := lu.factor(); err != nil {
+		dc := v.ws.dcSolver(v.nw)
+		if err := dc.f.factor(); err != nil {
 			return nil, fmt.Errorf("at %g Hz: %w", w/(2*math.Pi), err)
 		}
-		f = &luSolver{f: lu}
+		f = dc
 	} else if err := f.at(w); err != nil {
 		return nil, fmt.Errorf("at %g Hz: %w", w/(2*math.Pi), err)
 	}
 	if b != nil {
 		f.solve(b)
 	}
-	z := append([]complex128(nil), v.out...)
+	z := append(v.adjoint[:0], v.out...)
 	f.solveT(z)
+	v.adjoint = z
 	return z, nil
 }
 
@@ -245,7 +247,8 @@ func (v *volterra) inject(k int, i complex128, b []complex128) {
 // charge part before the jw factor), solves for the node phasors, and
 // records each source's contribution to the output through the adjoint.
 func (v *volterra) product(p Product, w float64, cur, chg []complex128, scale complex128, est *Estimate) ([]complex128, complex128, error) {
-	b := make([]complex128, v.n)
+	b := vector(v.ws.sources, v.n)
+	v.ws.sources = b
 	jw := complex(0, w)
 	for k := range v.nw.Diodes {
 		v.inject(k, cur[k]+jw*chg[k], b)
@@ -255,13 +258,14 @@ func (v *volterra) product(p Product, w float64, cur, chg []complex128, scale co
 		return nil, 0, err
 	}
 	total := v.output(b) * scale
-	var parts []Contribution
+	parts := v.ws.parts[:0]
 	for k, d := range v.nw.Diodes {
 		t := at(z, d.Junction) - at(z, d.Cathode)
 		parts = append(parts,
 			Contribution{Product: p, Diode: d.Name, Source: CurrentLaw, Phasor: -cur[k] * t * scale},
 			Contribution{Product: p, Diode: d.Name, Source: ChargeLaw, Phasor: -jw * chg[k] * t * scale})
 	}
+	v.ws.parts = parts
 	gross := 0.0
 	for _, c := range parts {
 		gross += cmplx.Abs(c.Phasor)
@@ -311,6 +315,17 @@ func Volterra(nw *smallsignal.Network, d Drive) (*Estimate, error) {
 }
 
 func volterraOn(nw *smallsignal.Network, d Drive, choice engine) (*Estimate, error) {
+	return new(Workspace).volterraOn(nw, d, choice)
+}
+
+// Volterra is the package's Volterra in the workspace's storage. The
+// Estimate it returns is overwritten by the workspace's next call to
+// Volterra.
+func (ws *Workspace) Volterra(nw *smallsignal.Network, d Drive) (*Estimate, error) {
+	return ws.volterraOn(nw, d, engineAuto)
+}
+
+func (ws *Workspace) volterraOn(nw *smallsignal.Network, d Drive, choice engine) (*Estimate, error) {
 	if d.Input < 0 || d.Input >= len(nw.Ports) {
 		return nil, fmt.Errorf("input port %d: the circuit has %d ports", d.Input+1, len(nw.Ports))
 	}
@@ -328,13 +343,20 @@ func volterraOn(nw *smallsignal.Network, d Drive, choice engine) (*Estimate, err
 	// Y(jw) is solved at f1, 2 f1, 3 f1 and, with a second tone, at f2,
 	// f1 + f2, f1 - f2 and 2 f1 - f2: a few points, where the LU is
 	// usually cheaper than a reduction (newSolver decides).
-	freqs := []float64{d.FrequencyHz, 2 * d.FrequencyHz, 3 * d.FrequencyHz}
+	freqs := append(ws.frequencies[:0], d.FrequencyHz, 2*d.FrequencyHz, 3*d.FrequencyHz)
 	if d.SecondToneHz != 0 {
 		f1, f2 := d.FrequencyHz, d.SecondToneHz
 		freqs = append(freqs, f2, f1+f2, f1-f2, 2*f1-f2)
 	}
-	v := &volterra{nw: nw, n: nw.N, out: make([]complex128, nw.N), sys: newSolver(nw, freqs, choice)}
-	est := &Estimate{Drive: d, inputZ0: nw.Ports[d.Input].Impedance}
+	ws.frequencies = freqs
+	v := &ws.volterra
+	*v = volterra{nw: nw, n: nw.N, out: vector(v.out, nw.N), adjoint: v.adjoint, sys: ws.estimateSolver(nw, freqs, choice), ws: ws}
+	if ws.estimate == nil {
+		ws.estimate = new(Estimate)
+	}
+	est := ws.estimate
+	*est = Estimate{Drive: d, inputZ0: nw.Ports[d.Input].Impedance,
+		Contributions: est.Contributions[:0], Junctions: est.Junctions[:0], balanced: est.balanced[:0]}
 	if d.Output.Port >= 0 {
 		if d.Output.Port >= len(nw.Ports) {
 			return nil, fmt.Errorf("output port %d: the circuit has %d ports", d.Output.Port+1, len(nw.Ports))
@@ -358,28 +380,34 @@ func volterraOn(nw *smallsignal.Network, d Drive, choice engine) (*Estimate, err
 	w1 := 2 * math.Pi * d.FrequencyHz
 	e := complex(d.EMF, 0)
 	nd := len(nw.Diodes)
-	first := func(w float64) ([]complex128, []complex128, error) {
-		x := make([]complex128, v.n)
+	// first solves the first order at w and writes each junction's phasor
+	// into junctions; the solution it returns is overwritten by its next
+	// call.
+	first := func(w float64, junctions []complex128) ([]complex128, []complex128, error) {
+		x := vector(ws.solution, v.n)
+		ws.solution = x
 		nw.Excitation(d.Input, 1, x)
 		if _, err := v.solveAt(w, x); err != nil {
 			return nil, nil, err
 		}
-		junctions := make([]complex128, nd)
+		junctions = vector(junctions, nd)
 		for k := range junctions {
 			junctions[k] = v.junction(k, x)
 		}
 		return x, junctions, nil
 	}
-	x1, va, err := first(w1)
+	x1, va, err := first(w1, ws.firstA)
 	if err != nil {
 		return nil, err
 	}
+	ws.firstA = va
 	est.Fundamental = v.output(x1) * e
 	for _, vk := range va {
 		est.Junctions = append(est.Junctions, vk*e)
 	}
 
-	cur, chg := make([]complex128, nd), make([]complex128, nd)
+	cur, chg := vector(ws.current, nd), vector(ws.charge, nd)
+	ws.current, ws.charge = cur, chg
 	coef := func(k int) smallsignal.Diode { return nw.Diodes[k] }
 
 	// DC shift: g2 |v1|²/2; charge stores nothing at DC.
@@ -404,7 +432,8 @@ func volterraOn(nw *smallsignal.Network, d Drive, choice engine) (*Estimate, err
 		return nil, err
 	}
 	est.HD2 = hd2
-	v2 := make([]complex128, nd)
+	v2 := vector(ws.second, nd)
+	ws.second = v2
 	for k := range v2 {
 		v2[k] = v.junction(k, x2)
 	}
@@ -423,10 +452,11 @@ func volterraOn(nw *smallsignal.Network, d Drive, choice engine) (*Estimate, err
 		return est, nil
 	}
 	w2 := 2 * math.Pi * d.SecondToneHz
-	xb, vb, err := first(w2)
+	xb, vb, err := first(w2, ws.firstB)
 	if err != nil {
 		return nil, err
 	}
+	ws.firstB = vb
 	est.SecondFundamental = v.output(xb) * e
 
 	for k := range cur {

@@ -33,8 +33,11 @@ type state struct {
 	vl []float64
 }
 
-func (s *system) newState() *state {
-	return &state{x: make([]float64, s.n), vl: make([]float64, len(s.junctions))}
+// reset sizes st for s, keeping its storage where it is large enough, and
+// sets it to zero.
+func (st *state) reset(s *system) {
+	st.x = resize(st.x, s.n)
+	st.vl = resize(st.vl, len(s.junctions))
 }
 
 func (st *state) copyFrom(o *state) {
@@ -46,17 +49,28 @@ func (st *state) copyFrom(o *state) {
 type scratch struct {
 	b, vj, r, scale, floor []float64
 	save                   []float64 // an iterate kept while refine tries a step
+	good                   state     // the last iterate a homotopy reached, sized when one runs
 }
 
-func (s *system) newScratch() *scratch {
-	return &scratch{
-		b:     make([]float64, s.n),
-		vj:    make([]float64, len(s.junctions)),
-		r:     make([]float64, s.n),
-		scale: make([]float64, s.n),
-		floor: make([]float64, s.n),
-		save:  make([]float64, s.n),
+// reset sizes w for s, keeping its storage where it is large enough.
+func (w *scratch) reset(s *system) {
+	w.b = resize(w.b, s.n)
+	w.vj = resize(w.vj, len(s.junctions))
+	w.r = resize(w.r, s.n)
+	w.scale = resize(w.scale, s.n)
+	w.floor = resize(w.floor, s.n)
+	w.save = resize(w.save, s.n)
+}
+
+// resize returns a zero vector of length n, in v's storage when it has
+// room.
+func resize(v []float64, n int) []float64 {
+	if cap(v) < n {
+		return make([]float64, n)
 	}
+	v = v[:n]
+	clear(v)
+	return v
 }
 
 // newton iterates from st with sources scaled by lambda and a conductance
@@ -183,7 +197,8 @@ func (s *system) kclRatio(x []float64, w *scratch) (ratio, worst float64) {
 func (s *system) conductanceStepping(st *state, maxIter int, w *scratch) (int, error) {
 	total := 0
 	gmin, factor := 1e-2, 10.0
-	good := s.newState()
+	good := &w.good
+	good.reset(s)
 	// First find a solution at the largest gmin, from the given start.
 	n, err := s.newton(st, 1, gmin, maxIter, w)
 	total += n
@@ -219,7 +234,8 @@ func (s *system) sourceStepping(st *state, maxIter int, w *scratch) (int, error)
 	total := 0
 	clear(st.x)
 	clear(st.vl)
-	good := s.newState()
+	good := &w.good
+	good.reset(s) // zero, as st
 	lambda, step := 0.0, 0.05
 	for lambda < 1 {
 		next := math.Min(1, lambda+step)

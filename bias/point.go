@@ -84,33 +84,43 @@ func (p *Point) Voltage(name string) (float64, bool) {
 	return 0, false
 }
 
-func (s *system) point(st *state) *Point {
+// point writes the operating point at st into p, reusing p's storage.
+// Everything but the warnings, which the caller may keep, is overwritten.
+func (s *system) point(st *state, p *Point) {
 	c := s.c
-	p := &Point{Circuit: c, TemperatureK: s.tempK, shape: s.n}
-	p.x = append([]float64(nil), st.x...)
-	p.vl = append([]float64(nil), st.vl...)
+	*p = Point{
+		Circuit: c, TemperatureK: s.tempK, shape: s.n,
+		x:         append(p.x[:0], st.x...),
+		vl:        append(p.vl[:0], st.vl...),
+		Nodes:     p.Nodes[:0],
+		Sources:   p.Sources[:0],
+		Inductors: p.Inductors[:0],
+		Diodes:    p.Diodes[:0],
+	}
 	for i, name := range c.Nodes {
 		p.Nodes = append(p.Nodes, Node{name, st.x[i]})
 	}
-	for _, v := range s.vsources {
-		part := c.Parts[v.part]
-		src := Source{Name: part.Name, Kind: part.Kind, Current: st.x[v.br]}
-		if part.Kind == circuit.Inductor {
-			p.Inductors = append(p.Inductors, src)
-		} else {
-			p.Sources = append(p.Sources, src)
+	// Sources in file order whatever their kind: the voltage and current
+	// sources are each listed in file order, so merge them by part index.
+	vi, ii := 0, 0
+	for vi < len(s.vsources) || ii < len(s.isources) {
+		if ii == len(s.isources) || vi < len(s.vsources) && s.vsources[vi].part < s.isources[ii].part {
+			v := s.vsources[vi]
+			vi++
+			part := c.Parts[v.part]
+			src := Source{Name: part.Name, Kind: part.Kind, Current: st.x[v.br]}
+			if part.Kind == circuit.Inductor {
+				p.Inductors = append(p.Inductors, src)
+			} else {
+				p.Sources = append(p.Sources, src)
+			}
+			continue
 		}
-	}
-	for _, i := range s.isources {
+		i := s.isources[ii]
+		ii++
 		part := c.Parts[i.part]
 		p.Sources = append(p.Sources, Source{Name: part.Name, Kind: part.Kind, Current: -i.value})
 	}
-	// Keep sources in file order whatever their kind.
-	order := map[string]int{}
-	for i, part := range c.Parts {
-		order[part.Name] = i
-	}
-	sortByFileOrder(p.Sources, order)
 
 	for _, j := range s.junctions {
 		part := c.Parts[j.part]
@@ -141,7 +151,6 @@ func (s *system) point(st *state) *Point {
 		p.Diodes = append(p.Diodes, d)
 	}
 	p.Warnings = cautions(p)
-	return p
 }
 
 func fraction(v, rating float64) float64 {
@@ -149,12 +158,4 @@ func fraction(v, rating float64) float64 {
 		return math.NaN()
 	}
 	return v / rating
-}
-
-func sortByFileOrder(s []Source, order map[string]int) {
-	for i := 1; i < len(s); i++ {
-		for j := i; j > 0 && order[s[j].Name] < order[s[j-1].Name]; j-- {
-			s[j], s[j-1] = s[j-1], s[j]
-		}
-	}
 }

@@ -39,13 +39,42 @@ func (f *Failure) Error() string {
 // until they stall below 1e-6 relative. When every strategy fails the
 // error is a *Failure.
 func Solve(c *circuit.Circuit, s Settings) (*Point, error) {
+	return new(Workspace).Solve(c, s)
+}
+
+// Workspace keeps Solve's storage from one call to the next: the modified
+// nodal system, its band ordering and matrix, the Newton iterates and work
+// vectors, the diode devices and the returned Point. Solving a sequence of
+// related circuits in one workspace, as a study does when it steps a part
+// value, a model parameter or the temperature, allocates little after the
+// first call. The band ordering is computed again only when the matrix's
+// structure changes (a diode's series resistance becoming zero or non-zero
+// adds or removes an unknown), and a diode model's device only when its
+// parameters or the temperature change. The results are those of Solve.
+//
+// The zero value is ready to use. A Workspace is not safe for concurrent
+// use: give each goroutine its own.
+type Workspace struct {
+	sys          system
+	start, state state
+	scratch      scratch
+	attempts     []Attempt
+	point        *Point
+}
+
+// Solve is the package's Solve in the workspace's storage. The Point it
+// returns, but for its Warnings, is overwritten by the workspace's next
+// successful Solve: pass it as that call's Settings.Start to continue from
+// it, and copy whatever must outlive that call. An error is the caller's
+// to keep.
+func (ws *Workspace) Solve(c *circuit.Circuit, s Settings) (*Point, error) {
 	begin := time.Now()
 	tempK := c.TemperatureK
 	if s.TemperatureK > 0 {
 		tempK = s.TemperatureK
 	}
-	sys, err := newSystem(c, tempK)
-	if err != nil {
+	sys := &ws.sys
+	if err := sys.build(c, tempK); err != nil {
 		return nil, fmt.Errorf("%s: %w", c.File, err)
 	}
 	maxIter := s.MaxIterations
@@ -57,14 +86,16 @@ func Solve(c *circuit.Circuit, s Settings) (*Point, error) {
 		strategies = []Strategy{Newton, ConductanceStepping, SourceStepping}
 	}
 
-	start := sys.newState()
+	start, st, w := &ws.start, &ws.state, &ws.scratch
+	start.reset(sys)
 	if s.Start != nil && s.Start.shape == sys.n {
 		copy(start.x, s.Start.x)
 		copy(start.vl, s.Start.vl)
 	}
-	st := sys.newState()
-	w := sys.newScratch()
+	st.reset(sys)
+	w.reset(sys)
 	var stats Stats
+	stats.Attempts = ws.attempts[:0]
 	for _, strategy := range strategies {
 		st.copyFrom(start)
 		var n int
@@ -86,10 +117,18 @@ func Solve(c *circuit.Circuit, s Settings) (*Point, error) {
 		}
 		stats.Strategy = strategy
 		stats.ResidualRatio, stats.Residual = sys.kclRatio(st.x, w)
-		p := sys.point(st)
+		if ws.point == nil {
+			ws.point = new(Point)
+		}
+		p := ws.point
+		// The point takes the attempts' storage, the workspace the
+		// point's old list for the next call.
+		ws.attempts = p.Stats.Attempts[:0]
+		sys.point(st, p)
 		stats.Runtime = time.Since(begin)
 		p.Stats = stats
 		return p, nil
 	}
+	ws.attempts = nil // the error keeps the list
 	return nil, &Failure{Circuit: c.File, Attempts: stats.Attempts}
 }

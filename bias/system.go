@@ -2,6 +2,7 @@ package bias
 
 import (
 	"fmt"
+	"slices"
 
 	"qpoint/bias/band"
 	"qpoint/bias/circuit"
@@ -42,68 +43,93 @@ type junction struct {
 }
 
 // system is the circuit in modified nodal form at one temperature.
+//
+// A system can be rebuilt for another circuit (build): it keeps its
+// storage, its diode devices while their model and temperature are the
+// same, and its band ordering and matrix while the matrix's structure is
+// the same, so that a study stepping a value along a chain allocates
+// almost nothing per step.
 type system struct {
 	c      *circuit.Circuit
 	tempK  float64
 	nNodes int // node unknowns, including internal diode nodes
 	n      int // all unknowns
-	names  []string
 
 	conds     []conductance
 	vsources  []vsource
 	isources  []isource
 	junctions []junction
 
-	edges [][2]int // structure of the matrix, for the band ordering
-	mat   *band.Matrix
+	mat *band.Matrix
+
+	// Kept from one build to the next.
+	index      map[string]int           // named node (and ground) -> unknown
+	devices    map[string]*diode.Device // by model name
+	edges      [][2]int                 // the structure of the matrix build makes
+	orderN     int                      // the order of the matrix mat was made for
+	orderEdges [][2]int                 // and its structure, for the band ordering
 }
 
-func newSystem(c *circuit.Circuit, tempK float64) (*system, error) {
-	s := &system{c: c, tempK: tempK}
-	index := map[string]int{circuit.Ground: ground}
-	for _, name := range c.Nodes {
-		index[name] = len(s.names)
-		s.names = append(s.names, name)
+// build writes c at tempK into s, reusing what the last build left: its
+// storage, a model's device while its parameters and the temperature are
+// the same, and the band ordering and matrix while the matrix's structure
+// is the same (the ordering is a function of the structure alone, so the
+// reuse changes no result).
+func (s *system) build(c *circuit.Circuit, tempK float64) error {
+	s.c, s.tempK = c, tempK
+	s.conds, s.vsources, s.isources, s.junctions = s.conds[:0], s.vsources[:0], s.isources[:0], s.junctions[:0]
+	s.edges = s.edges[:0]
+	if s.index == nil {
+		s.index = make(map[string]int, len(c.Nodes)+1)
+	}
+	clear(s.index)
+	s.index[circuit.Ground] = ground
+	for i, name := range c.Nodes {
+		s.index[name] = i
+	}
+	if s.devices == nil {
+		s.devices = map[string]*diode.Device{}
 	}
 	node := func(name string) (int, error) {
-		i, ok := index[name]
+		i, ok := s.index[name]
 		if !ok {
 			return 0, fmt.Errorf("node %q is not in the circuit's node list", name)
 		}
 		return i, nil
 	}
-	// Internal diode nodes come after the named ones.
-	devices := map[string]*diode.Device{}
+	// Internal diode nodes come after the named ones. Diodes of one model
+	// share its device; a device built for an earlier circuit is kept
+	// while it is the same model at the same temperature.
+	s.nNodes = len(c.Nodes)
 	for pi, p := range c.Parts {
 		if p.Kind != circuit.Diode {
 			continue
 		}
 		m, ok := c.Models[p.Model]
 		if !ok {
-			return nil, fmt.Errorf("diode %s: unknown model %q", p.Name, p.Model)
+			return fmt.Errorf("diode %s: unknown model %q", p.Name, p.Model)
 		}
-		dev, ok := devices[p.Model]
-		if !ok {
+		dev, ok := s.devices[p.Model]
+		if !ok || dev.Params != m.Params || dev.TempK != tempK {
 			dev = diode.New(m.Params, tempK)
-			devices[p.Model] = dev
+			s.devices[p.Model] = dev
 		}
 		a, err := node(p.Nodes[0])
 		if err != nil {
-			return nil, err
+			return err
 		}
 		k, err := node(p.Nodes[1])
 		if err != nil {
-			return nil, err
+			return err
 		}
 		j := junction{anode: a, internal: a, cathode: k, dev: dev, part: pi}
 		if rs := m.Params.SeriesResistance; rs > 0 {
-			j.internal = len(s.names)
-			s.names = append(s.names, p.Name+"#junction")
+			j.internal = s.nNodes
+			s.nNodes++
 			s.conds = append(s.conds, conductance{a, j.internal, 1 / rs})
 		}
 		s.junctions = append(s.junctions, j)
 	}
-	s.nNodes = len(s.names)
 	s.n = s.nNodes
 
 	for pi, p := range c.Parts {
@@ -112,11 +138,11 @@ func newSystem(c *circuit.Circuit, tempK float64) (*system, error) {
 		}
 		a, err := node(p.Nodes[0])
 		if err != nil {
-			return nil, err
+			return err
 		}
 		b, err := node(p.Nodes[1])
 		if err != nil {
-			return nil, err
+			return err
 		}
 		switch p.Kind {
 		case circuit.Resistor:
@@ -139,7 +165,7 @@ func newSystem(c *circuit.Circuit, tempK float64) (*system, error) {
 		}
 		a, err := node(p.Node)
 		if err != nil {
-			return nil, err
+			return err
 		}
 		ret := p.Return
 		if ret == "" {
@@ -147,7 +173,7 @@ func newSystem(c *circuit.Circuit, tempK float64) (*system, error) {
 		}
 		b, err := node(ret)
 		if err != nil {
-			return nil, err
+			return err
 		}
 		s.conds = append(s.conds, conductance{a, b, 1 / p.Impedance})
 	}
@@ -164,14 +190,22 @@ func newSystem(c *circuit.Circuit, tempK float64) (*system, error) {
 	for _, j := range s.junctions {
 		s.edges = append(s.edges, [2]int{j.internal, j.cathode})
 	}
+	if s.mat != nil && s.orderN == s.n && slices.Equal(s.orderEdges, s.edges) {
+		return nil // the same structure: the same ordering and band
+	}
+	s.mat = nil
 	perm := band.Order(s.n, s.edges)
 	kl, ku := band.Widths(perm, s.edges)
 	if work := float64(s.n) * float64(kl) * float64(kl+ku); work > maxFactorWork {
-		return nil, fmt.Errorf("the circuit's %d unknowns are wired so that no ordering keeps the matrix banded (bandwidth %d): each Newton step would take about %.2g multiply-adds, more than the %.0g this solver allows; accepted: circuits whose nodes can be ordered so that each connects to near neighbours, as chains, ladders and hand-drawn circuits of a few hundred nodes can",
+		return fmt.Errorf("the circuit's %d unknowns are wired so that no ordering keeps the matrix banded (bandwidth %d): each Newton step would take about %.2g multiply-adds, more than the %.0g this solver allows; accepted: circuits whose nodes can be ordered so that each connects to near neighbours, as chains, ladders and hand-drawn circuits of a few hundred nodes can",
 			s.n, max(kl, ku), work, float64(maxFactorWork))
 	}
 	s.mat = band.New(perm, kl, ku)
-	return s, nil
+	// Keep the structure for the next build to compare with, and take the
+	// older list's storage for that build's edges.
+	s.orderN = s.n
+	s.orderEdges, s.edges = s.edges, s.orderEdges[:0]
+	return nil
 }
 
 // maxFactorWork bounds the multiply-adds of one factorisation of the banded

@@ -73,8 +73,55 @@ type Diode struct {
 
 // New linearises the circuit at point p.
 func New(p *bias.Point) (*Network, error) {
+	return new(Workspace).New(p)
+}
+
+// Workspace keeps a Network's storage from one linearisation to the next:
+// its matrices, vectors, names and node map, and the part lists New
+// gathers on the way. Linearising a sequence of related bias points in one
+// workspace, as a study does at each step, allocates nothing after the
+// first when the circuit's unknowns stay the same. The networks are those
+// New returns.
+//
+// The zero value is ready to use. A Workspace is not safe for concurrent
+// use: give each goroutine its own.
+type Workspace struct {
+	network *Network
+
+	conds, caps, diodeConds, diodeCaps, currentSources []twoTerminal
+	branches                                           []branch
+}
+
+// twoTerminal is a linear part between unknowns a and b (Ground for the
+// reference node) of value v: a conductance, a capacitance or a source
+// current.
+type twoTerminal struct {
+	a, b int
+	v    float64
+}
+
+// branch is an inductor or DC voltage source from a to b, whose current is
+// an unknown of its own.
+type branch struct {
+	a, b int
+	l    float64 // inductance; zero for a voltage source
+}
+
+// New linearises the circuit at point p in the workspace's storage. The
+// Network it returns is overwritten by the workspace's next call to New.
+func (w *Workspace) New(p *bias.Point) (*Network, error) {
+	if w.network == nil {
+		w.network = &Network{Nodes: map[string]int{}}
+	}
+	nw := w.network
+	*nw = Network{
+		Point: p, Nodes: nw.Nodes,
+		G: nw.G, C: nw.C, GLinear: nw.GLinear, CLinear: nw.CLinear,
+		Names: nw.Names[:0], Ports: nw.Ports[:0], Diodes: nw.Diodes[:0],
+		Sources: nw.Sources, Bias: nw.Bias,
+	}
 	c := p.Circuit
-	nw := &Network{Point: p, Nodes: map[string]int{}}
+	clear(nw.Nodes)
 	for _, name := range c.Nodes {
 		nw.Nodes[name] = len(nw.Names)
 		nw.Names = append(nw.Names, name)
@@ -89,22 +136,14 @@ func New(p *bias.Point) (*Network, error) {
 		}
 		return i, nil
 	}
-	qp := map[string]bias.Diode{}
-	for _, d := range p.Diodes {
-		qp[d.Name] = d
-	}
 
-	type branch struct {
-		a, b int
-		l    float64 // inductance; zero for a voltage source
-	}
-	type twoTerm struct {
-		a, b int
-		v    float64
-	}
-	var conds, caps, diodeConds, diodeCaps []twoTerm
-	var branches []branch
-	var isrc []twoTerm
+	conds, caps, diodeConds, diodeCaps := w.conds[:0], w.caps[:0], w.diodeConds[:0], w.diodeCaps[:0]
+	branches, isrc := w.branches[:0], w.currentSources[:0]
+	defer func() {
+		// Keep the lists' storage for the next call.
+		w.conds, w.caps, w.diodeConds, w.diodeCaps = conds, caps, diodeConds, diodeCaps
+		w.branches, w.currentSources = branches, isrc
+	}()
 
 	for _, part := range c.Parts {
 		a, err := node(part.Nodes[0])
@@ -117,18 +156,18 @@ func New(p *bias.Point) (*Network, error) {
 		}
 		switch part.Kind {
 		case circuit.Resistor:
-			conds = append(conds, twoTerm{a, b, 1 / part.Value})
+			conds = append(conds, twoTerminal{a, b, 1 / part.Value})
 		case circuit.Capacitor:
-			caps = append(caps, twoTerm{a, b, part.Value})
+			caps = append(caps, twoTerminal{a, b, part.Value})
 		case circuit.Inductor:
 			branches = append(branches, branch{a, b, part.Value})
 		case circuit.VoltageSource:
 			branches = append(branches, branch{a, b, 0}) // a DC source is a short to signals
 		case circuit.CurrentSource:
 			// A DC current source is an open circuit to signals.
-			isrc = append(isrc, twoTerm{a, b, part.Value})
+			isrc = append(isrc, twoTerminal{a, b, part.Value})
 		case circuit.Diode:
-			q, ok := qp[part.Name]
+			q, ok := quiescent(p, len(nw.Diodes), part.Name)
 			if !ok {
 				return nil, fmt.Errorf("smallsignal: diode %s has no Q point", part.Name)
 			}
@@ -137,15 +176,15 @@ func New(p *bias.Point) (*Network, error) {
 				Device: dev, JunctionVoltage: q.JunctionVoltage}
 			if d.SeriesResistance > 0 {
 				d.Junction = len(nw.Names)
-				nw.Names = append(nw.Names, part.Name+"#junction")
-				conds = append(conds, twoTerm{a, d.Junction, 1 / d.SeriesResistance})
+				nw.Names = appendName(nw.Names, part.Name, "#junction")
+				conds = append(conds, twoTerminal{a, d.Junction, 1 / d.SeriesResistance})
 			}
 			d.G1, d.G2, d.G3 = dev.Current(q.JunctionVoltage).Taylor()
 			d.C1, d.C2, d.C3 = dev.Charge(q.JunctionVoltage).Taylor()
 			d.JunctionCapacitance = dev.DepletionCharge(q.JunctionVoltage).D1
 			d.DiffusionCapacitance = dev.DiffusionCharge(q.JunctionVoltage).D1
-			diodeConds = append(diodeConds, twoTerm{d.Junction, b, d.G1})
-			diodeCaps = append(diodeCaps, twoTerm{d.Junction, b, d.C1})
+			diodeConds = append(diodeConds, twoTerminal{d.Junction, b, d.G1})
+			diodeCaps = append(diodeCaps, twoTerminal{d.Junction, b, d.C1})
 			nw.Diodes = append(nw.Diodes, d)
 		}
 	}
@@ -163,26 +202,25 @@ func New(p *bias.Point) (*Network, error) {
 			return nil, err
 		}
 		nw.Ports = append(nw.Ports, Port{Name: port.Name, Node: a, Return: b, Impedance: port.Impedance, NodeName: port.Node, ReturnName: ret, ACCoupled: port.ACCoupled})
-		conds = append(conds, twoTerm{a, b, 1 / port.Impedance})
+		conds = append(conds, twoTerminal{a, b, 1 / port.Impedance})
 	}
 
 	nNodes := len(nw.Names)
 	nw.NodeUnknowns = nNodes
-	nw.Names = append(nw.Names, make([]string, len(branches))...)
-	nw.N = len(nw.Names)
-	n := nw.N
+	n := nNodes + len(branches)
+	nw.N = n
 	if n == 0 {
 		return nil, fmt.Errorf("smallsignal: the circuit has no unknowns")
 	}
-	nw.G = mat.NewDense(n, n, nil)
-	nw.C = mat.NewDense(n, n, nil)
+	nw.G = zeroMatrix(nw.G, n)
+	nw.C = zeroMatrix(nw.C, n)
 	for _, t := range conds {
 		stampConductance(nw.G, t.a, t.b, t.v)
 	}
 	for _, t := range caps {
 		stampConductance(nw.C, t.a, t.b, t.v)
 	}
-	nw.Sources = make([]float64, n)
+	nw.Sources = zeroVector(nw.Sources, n)
 	for _, t := range isrc {
 		// Value amperes leave `from` (a) and enter `to` (b).
 		if t.a != Ground {
@@ -192,7 +230,7 @@ func New(p *bias.Point) (*Network, error) {
 			nw.Sources[t.b] += t.v
 		}
 	}
-	nw.Bias = make([]float64, n)
+	nw.Bias = zeroVector(nw.Bias, n)
 	for _, nd := range p.Nodes {
 		nw.Bias[nw.Nodes[nd.Name]] = nd.Voltage
 	}
@@ -205,13 +243,6 @@ func New(p *bias.Point) (*Network, error) {
 			nw.Bias[d.Junction] = vc + d.JunctionVoltage
 		}
 	}
-	branchCurrent := map[string]float64{}
-	for _, s := range p.Sources {
-		branchCurrent[s.Name] = s.Current
-	}
-	for _, s := range p.Inductors {
-		branchCurrent[s.Name] = s.Current
-	}
 	// Branch k carries current i from a to b through the part:
 	// KCL rows get +i at a and -i at b; the branch row states
 	// v_a - v_b - s L i = 0.
@@ -223,8 +254,8 @@ func New(p *bias.Point) (*Network, error) {
 		}
 		br := branches[bi]
 		bi++
-		nw.Names[k] = part.Name + "#current"
-		nw.Bias[k] = branchCurrent[part.Name]
+		nw.Names = appendName(nw.Names, part.Name, "#current")
+		nw.Bias[k] = branchCurrent(p, part)
 		if part.Kind == circuit.VoltageSource {
 			nw.Sources[k] = part.Value
 		}
@@ -241,8 +272,8 @@ func New(p *bias.Point) (*Network, error) {
 	}
 	// Everything so far is linear: keep it for the time-domain solver,
 	// then add the diodes' small-signal stamps.
-	nw.GLinear = mat.DenseCopyOf(nw.G)
-	nw.CLinear = mat.DenseCopyOf(nw.C)
+	nw.GLinear = copyMatrix(nw.GLinear, nw.G)
+	nw.CLinear = copyMatrix(nw.CLinear, nw.C)
 	for _, t := range diodeConds {
 		stampConductance(nw.G, t.a, t.b, t.v)
 	}
@@ -250,6 +281,81 @@ func New(p *bias.Point) (*Network, error) {
 		stampConductance(nw.C, t.a, t.b, t.v)
 	}
 	return nw, nil
+}
+
+// quiescent returns the Q point of the diode named name, the k-th diode of
+// the circuit in file order, as p lists them.
+func quiescent(p *bias.Point, k int, name string) (bias.Diode, bool) {
+	if k < len(p.Diodes) && p.Diodes[k].Name == name {
+		return p.Diodes[k], true
+	}
+	for _, d := range p.Diodes {
+		if d.Name == name {
+			return d, true
+		}
+	}
+	return bias.Diode{}, false
+}
+
+// branchCurrent returns the DC current of a voltage source or inductor at
+// p, zero if p does not list it.
+func branchCurrent(p *bias.Point, part circuit.Part) float64 {
+	list := p.Sources
+	if part.Kind == circuit.Inductor {
+		list = p.Inductors
+	}
+	for _, s := range list {
+		if s.Name == part.Name {
+			return s.Current
+		}
+	}
+	return 0
+}
+
+// appendName appends the name part+suffix of a new unknown to names. When
+// names's storage already holds that name there, from an earlier network
+// of the same circuit, it is kept, so that relinearising allocates no
+// string.
+func appendName(names []string, part, suffix string) []string {
+	if k := len(names); k < cap(names) {
+		if old := names[:k+1][k]; len(old) == len(part)+len(suffix) && old[:len(part)] == part && old[len(part):] == suffix {
+			return names[:k+1]
+		}
+	}
+	return append(names, part+suffix)
+}
+
+// zeroMatrix returns a zero n×n matrix, in m's storage when m has room.
+func zeroMatrix(m *mat.Dense, n int) *mat.Dense {
+	if m == nil {
+		return mat.NewDense(n, n, nil)
+	}
+	m.Reset()
+	m.ReuseAs(n, n)
+	return m
+}
+
+// copyMatrix returns a copy of a, in m's storage when m has room.
+func copyMatrix(m *mat.Dense, a *mat.Dense) *mat.Dense {
+	if m == nil {
+		return mat.DenseCopyOf(a)
+	}
+	r, c := a.Dims()
+	m.Reset()
+	m.ReuseAs(r, c)
+	m.Copy(a)
+	return m
+}
+
+// zeroVector returns a zero vector of length n, in v's storage when it has
+// room.
+func zeroVector(v []float64, n int) []float64 {
+	if cap(v) < n {
+		return make([]float64, n)
+	}
+	v = v[:n]
+	clear(v)
+	return v
 }
 
 // Excitation returns the right-hand side that drives port i with a
@@ -295,13 +401,22 @@ func at(x []complex128, i int) complex128 {
 // GDC returns the conductance matrix at zero frequency: G without the
 // terminations of AC-coupled ports, whose DC blocks are open at DC.
 func (nw *Network) GDC() *mat.Dense {
-	g := mat.DenseCopyOf(nw.G)
+	var g mat.Dense
+	nw.GDCTo(&g)
+	return &g
+}
+
+// GDCTo writes GDC's matrix into g, reusing g's storage when it has room
+// for N×N entries.
+func (nw *Network) GDCTo(g *mat.Dense) {
+	g.Reset()
+	g.ReuseAs(nw.N, nw.N)
+	g.Copy(nw.G)
 	for _, p := range nw.Ports {
 		if p.ACCoupled {
 			stampConductance(g, p.Node, p.Return, -1/p.Impedance)
 		}
 	}
-	return g
 }
 
 func stampConductance(m *mat.Dense, a, b int, v float64) {

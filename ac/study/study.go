@@ -186,11 +186,12 @@ func Run(c *circuit.Circuit, s Settings) (*Result, error) {
 		wg.Add(1)
 		go func() {
 			defer wg.Done()
+			var ws workspace
 			for ch := range work {
 				var prev *bias.Point
 				for i := ch.from; i < ch.to; i++ {
 					st := res.At(i, ch.j)
-					prev = runStep(c, s, i, ch.j, prev, st)
+					prev = runStep(c, s, i, ch.j, prev, st, &ws)
 					if s.Progress != nil {
 						mu.Lock()
 						done++
@@ -212,26 +213,46 @@ func Run(c *circuit.Circuit, s Settings) (*Result, error) {
 	return res, nil
 }
 
-// runStep solves one grid point starting from prev and fills st. It
-// returns the bias point for the next step of the chain.
-func runStep(c *circuit.Circuit, s Settings, i, j int, prev *bias.Point, st *Step) *bias.Point {
+// workspace is the storage one worker's steps reuse: the circuit with the
+// step's values applied, the bias system and point, the linearised
+// network, and the factorisations and vectors of the sweep and the
+// distortion estimate. Each step overwrites what the last one left there
+// but for the results it copied into its Step, so a step allocates little
+// beyond its results. It changes no result: every step computes from the
+// circuit, its values and the previous step's point alone.
+type workspace struct {
+	first     circuit.Variant // the circuit at the first axis's value
+	second    circuit.Variant // and at the second's, when it varies the circuit
+	frequency [1]float64      // the step's frequency, when the second axis is frequency
+	bias      bias.Workspace
+	network   smallsignal.Workspace
+	ac        ac.Workspace
+}
+
+// runStep solves one grid point starting from prev (nil for a cold start)
+// and fills st, in the storage of ws. It returns the bias point for the
+// next step of the chain; the point lives in ws, which the next step
+// overwrites once it has started from it.
+func runStep(c *circuit.Circuit, s Settings, i, j int, prev *bias.Point, st *Step, ws *workspace) *bias.Point {
 	st.Index = [2]int{i, j}
 	st.Values[0] = s.Axis.Values[i]
-	cc, temp := s.Axis.Vary.Apply(c, s.Axis.Values[i])
+	temp := s.Axis.Vary.ApplyTo(&ws.first, c, s.Axis.Values[i])
+	cc := &ws.first.Circuit
 	freqs := s.FrequenciesHz
 	if s.Second != nil {
 		st.Values[1] = s.Second.Values[j]
 		if s.SecondIsFrequency {
-			freqs = []float64{s.Second.Values[j]}
+			ws.frequency[0] = s.Second.Values[j]
+			freqs = ws.frequency[:]
 		} else {
-			var t2 float64
-			cc, t2 = s.Second.Vary.Apply(cc, s.Second.Values[j])
+			t2 := s.Second.Vary.ApplyTo(&ws.second, cc, s.Second.Values[j])
+			cc = &ws.second.Circuit
 			if s.Second.Vary.Kind == circuit.VaryTemperature {
 				temp = t2
 			}
 		}
 	}
-	p, err := bias.Solve(cc, bias.Settings{TemperatureK: temp, Start: prev})
+	p, err := ws.bias.Solve(cc, bias.Settings{TemperatureK: temp, Start: prev})
 	if err != nil {
 		st.Err = err
 		return prev
@@ -239,10 +260,19 @@ func runStep(c *circuit.Circuit, s Settings, i, j int, prev *bias.Point, st *Ste
 	st.Iterations = p.Stats.Iterations
 	st.Strategy = p.Stats.Strategy
 	st.Warnings = p.Warnings
-	nw, err := smallsignal.New(p)
+	nw, err := ws.network.New(p)
 	if err != nil {
 		st.Err = err
 		return p
+	}
+	if len(p.Diodes) > 0 {
+		st.Diodes = make([]Diode, 0, len(p.Diodes))
+	}
+	// Every diode's two sensitivities at each frequency, in one block.
+	nf := len(freqs)
+	var sensitivities []float64
+	if nf > 0 {
+		sensitivities = make([]float64, 2*nf*len(p.Diodes))
 	}
 	for k, d := range p.Diodes {
 		sd := nw.Diodes[k]
@@ -252,10 +282,14 @@ func runStep(c *circuit.Circuit, s Settings, i, j int, prev *bias.Point, st *Ste
 			DiffusionCapacitance: d.DiffusionCapacitance,
 			VideoResistance:      d.DynamicResistance + sd.SeriesResistance,
 		}
-		for _, f := range freqs {
-			b := Sensitivity(sd, f)
-			dd.CurrentSensitivity = append(dd.CurrentSensitivity, b)
-			dd.VoltageSensitivity = append(dd.VoltageSensitivity, b*dd.VideoResistance)
+		if nf > 0 {
+			block := sensitivities[2*nf*k : 2*nf*(k+1)]
+			dd.CurrentSensitivity, dd.VoltageSensitivity = block[:nf:nf], block[nf:2*nf:2*nf]
+			for fi, f := range freqs {
+				b := Sensitivity(sd, f)
+				dd.CurrentSensitivity[fi] = b
+				dd.VoltageSensitivity[fi] = b * dd.VideoResistance
+			}
 		}
 		for _, w := range p.Warnings {
 			if w.Part == d.Name {
@@ -266,7 +300,7 @@ func runStep(c *circuit.Circuit, s Settings, i, j int, prev *bias.Point, st *Ste
 	}
 	if len(nw.Ports) > 0 && len(freqs) > 0 {
 		st.Responses = make([]Response, 0, len(freqs))
-		_, _, err := ac.Sweep(nw, freqs, ac.Settings{}, func(pt ac.Point) error {
+		_, _, err := ws.ac.Sweep(nw, freqs, ac.Settings{}, func(pt ac.Point) error {
 			st.Responses = append(st.Responses, Response{pt.FrequencyHz, pt.S, pt.InputImpedance, pt.Probes})
 			return nil
 		})
@@ -278,7 +312,7 @@ func runStep(c *circuit.Circuit, s Settings, i, j int, prev *bias.Point, st *Ste
 	if s.Drive.EMF > 0 && len(nw.Ports) > 0 {
 		d := s.Drive
 		d.SecondToneHz = 0
-		e, err := ac.Volterra(nw, d)
+		e, err := ws.ac.Volterra(nw, d)
 		if err != nil {
 			st.Err = err
 			return p

@@ -15,7 +15,7 @@ import (
 	"qpoint/smallsignal"
 )
 
-func load(t *testing.T, src string) *circuit.Circuit {
+func load(t testing.TB, src string) *circuit.Circuit {
 	t.Helper()
 	c, err := circuit.Parse("test.yaml", []byte(src))
 	if err != nil {
@@ -24,7 +24,7 @@ func load(t *testing.T, src string) *circuit.Circuit {
 	return c
 }
 
-func demo(t *testing.T, name string) *circuit.Circuit {
+func demo(t testing.TB, name string) *circuit.Circuit {
 	t.Helper()
 	c, err := circuit.Load("../../testdata/demo/" + name + ".yaml")
 	if err != nil {
@@ -33,7 +33,7 @@ func demo(t *testing.T, name string) *circuit.Circuit {
 	return c
 }
 
-func axis(t *testing.T, c *circuit.Circuit, what string, from, to float64, n int) Axis {
+func axis(t testing.TB, c *circuit.Circuit, what string, from, to float64, n int) Axis {
 	t.Helper()
 	v, err := c.ResolveVary(what)
 	if err != nil {

@@ -27,7 +27,7 @@ func evaluate(c *circuit.Circuit, s Settings, value float64) *Step {
 	one.Axis.Values = []float64{value}
 	one.Second = nil
 	var st Step
-	runStep(c, one, 0, 0, nil, &st)
+	runStep(c, one, 0, 0, nil, &st, new(workspace))
 	return &st
 }
 

@@ -87,25 +87,52 @@ func (v *Vary) Check(value float64) error {
 // copy shares nothing that Apply changes with c, so copies can be solved
 // concurrently.
 func (v *Vary) Apply(c *Circuit, value float64) (*Circuit, float64) {
-	out := *c
+	out := new(Variant)
+	temp := v.ApplyTo(out, c, value)
+	return &out.Circuit, temp
+}
+
+// Variant is a copy of a circuit with a study target applied (see
+// Vary.ApplyTo), with the storage for the parts or models the target
+// changes, so that applying the next value reuses it.
+type Variant struct {
+	Circuit Circuit
+	parts   []Part
+	models  map[string]*Model
+	model   Model
+}
+
+// ApplyTo is Apply writing the copy into dst.Circuit, in the storage an
+// earlier ApplyTo into dst left, so that a study applying one value after
+// another allocates nothing. It returns the temperature to solve at. What
+// dst held is overwritten; dst must not be c's own Variant, since the copy
+// shares nothing that ApplyTo changes with c.
+func (v *Vary) ApplyTo(dst *Variant, c *Circuit, value float64) float64 {
+	dst.Circuit = *c
+	out := &dst.Circuit
 	temp := c.TemperatureK
 	switch v.Kind {
 	case VaryTemperature:
 		temp = value
 		out.TemperatureK = value
 	case VaryPart:
-		out.Parts = append([]Part(nil), c.Parts...)
+		dst.parts = append(dst.parts[:0], c.Parts...)
+		out.Parts = dst.parts
 		out.Parts[v.Part].Value = value
 	case VaryModel:
-		out.Models = make(map[string]*Model, len(c.Models))
-		for k, m := range c.Models {
-			out.Models[k] = m
+		if dst.models == nil {
+			dst.models = make(map[string]*Model, len(c.Models))
 		}
-		m := *c.Models[v.Model]
-		*ModelParam(&m.Params, v.Key) = value
-		out.Models[v.Model] = &m
+		clear(dst.models)
+		for k, m := range c.Models {
+			dst.models[k] = m
+		}
+		dst.model = *c.Models[v.Model]
+		*ModelParam(&dst.model.Params, v.Key) = value
+		dst.models[v.Model] = &dst.model
+		out.Models = dst.models
 	}
-	return &out, temp
+	return temp
 }
 
 // Value returns the target's value in c.
