@@ -5,6 +5,7 @@ import (
 	"os"
 	"path/filepath"
 	"runtime"
+	"runtime/debug"
 	"sync"
 	"sync/atomic"
 	"syscall"
@@ -16,33 +17,62 @@ import (
 	"qpoint/bias/circuit"
 )
 
-// BenchmarkStudy: a 200-step study of the detector demo as `qpoint study`
-// runs it by default, its supply swept from 0 to 3.3 V, each step a bias
-// solve, the response at the file's distortion frequency (2.45 GHz) and
-// the Volterra estimate for its drive (-30 dBm), solved with one worker
-// and with one per core in the same iteration, so that both meet the same
-// load:
+// BenchmarkStudy: 200-step studies of two demos as `qpoint study` runs
+// them, each step a bias solve, the response at the study frequencies and
+// the Volterra estimate for a drive, solved with one worker and with one
+// per core in the same iteration, so that both meet the same load:
 //
-//	go test -run '^$' -bench Study -benchtime 1x -count 5 ./ac/
+//	go test -run '^$' -bench Study -benchtime 20x -count 5 ./ac/
+//
+//   - detector: its supply swept from 0 to 3.3 V, the response at the
+//     file's distortion frequency (2.45 GHz) and the estimate for its
+//     drive (-30 dBm): a light step, a few microseconds;
+//   - attenuator: its control voltage over the file's study range
+//     (0.9 to 5 V), the response at 50 frequencies log-spaced from 100 MHz
+//     to 3 GHz and the estimate at -10 dBm at the file's distortion
+//     frequency: the measurement of BENCHMARKS.md's study scaling.
 //
 // It reports the time per step of each, their ratio (the scaling), the
 // cores the parallel runs actually got, and, as a control, the cores a
 // trivially parallel busy loop gets right after (cores-free): on a machine
-// others are using, the scaling cannot exceed it.
+// others are using, the scaling cannot exceed it. The garbage collector is
+// set as the command sets it (tuneGC in cmd/qpoint: collect only near a
+// 1 GiB heap) unless GOGC or GOMEMLIMIT is in the environment.
 func BenchmarkStudy(b *testing.B) {
-	data, err := os.ReadFile(filepath.Join("..", "testdata", "demo", "detector.yaml"))
+	if os.Getenv("GOGC") == "" && os.Getenv("GOMEMLIMIT") == "" {
+		defer debug.SetGCPercent(debug.SetGCPercent(-1))
+		defer debug.SetMemoryLimit(debug.SetMemoryLimit(1 << 30))
+	}
+	b.Run("detector", func(b *testing.B) {
+		benchStudy(b, "detector.yaml", "Vcc.value", 0, 3.3, nil, math.NaN())
+	})
+	freqs := make([]float64, 50)
+	for k := range freqs {
+		freqs[k] = 100e6 * math.Pow(30, float64(k)/49)
+	}
+	b.Run("attenuator", func(b *testing.B) {
+		benchStudy(b, "attenuator.yaml", "Vctl.value", 0.9, 5, freqs, -10)
+	})
+}
+
+// benchStudy runs BenchmarkStudy's case: 200 steps of vary from from to
+// to in the demo file, the response at freqs (nil: the file's distortion
+// frequency) and the estimate at levelDBm (NaN: the file's level).
+func benchStudy(b *testing.B, file, varyName string, from, to float64, freqs []float64, levelDBm float64) {
+	data, err := os.ReadFile(filepath.Join("..", "testdata", "demo", file))
 	if err != nil {
 		b.Fatal(err)
 	}
-	c, err := circuit.Parse("detector.yaml", data)
+	c, err := circuit.Parse(file, data)
 	if err != nil {
 		b.Fatal(err)
 	}
-	vary, err := c.ResolveVary("Vcc.value")
+	vary, err := c.ResolveVary(varyName)
 	if err != nil {
 		b.Fatal(err)
 	}
-	values, err := study.Grid(0, 3.3, 200, false)
+	const steps = 200
+	values, err := study.Grid(from, to, steps, false)
 	if err != nil {
 		b.Fatal(err)
 	}
@@ -57,11 +87,16 @@ func BenchmarkStudy(b *testing.B) {
 		}
 	}
 	if in < 0 || out < 0 || !d.Level.IsPower {
-		b.Fatalf("the detector demo's distortion analysis changed: %+v", d)
+		b.Fatalf("the %s demo's distortion analysis changed: %+v", file, d)
 	}
-	freqs := []float64{d.FrequencyHz}
+	if freqs == nil {
+		freqs = []float64{d.FrequencyHz}
+	}
+	if math.IsNaN(levelDBm) {
+		levelDBm = d.Level.DBm
+	}
 	drive := ac.Drive{Input: in, Output: ac.Output{Port: out}, FrequencyHz: d.FrequencyHz,
-		EMF: ac.DBmToEMF(d.Level.DBm, c.Ports[in].Impedance)}
+		EMF: ac.DBmToEMF(levelDBm, c.Ports[in].Impedance)}
 	all := runtime.GOMAXPROCS(0)
 	var one, many, manyCPU time.Duration
 	for b.Loop() {
@@ -85,8 +120,8 @@ func BenchmarkStudy(b *testing.B) {
 			}
 		}
 	}
-	b.ReportMetric(float64(one.Nanoseconds())/float64(b.N)/200, "ns/step-1worker")
-	b.ReportMetric(float64(many.Nanoseconds())/float64(b.N)/200, "ns/step-allworkers")
+	b.ReportMetric(float64(one.Nanoseconds())/float64(b.N)/steps, "ns/step-1worker")
+	b.ReportMetric(float64(many.Nanoseconds())/float64(b.N)/steps, "ns/step-allworkers")
 	b.ReportMetric(float64(all), "workers")
 	b.ReportMetric(float64(one)/float64(many), "scaling")
 	// CPU time over wall time of the parallel runs: the cores the
