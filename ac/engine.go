@@ -146,22 +146,11 @@ func checkFrequencies(lo, hi float64) []float64 {
 // refine returns x for Y(jw) x = b by the reduced engine (factored at w)
 // after one step of iterative refinement, x + Y⁻¹ (b - Y x), the residual
 // taken with the network's own G and C.
-func (r *reduction) refine(nw *smallsignal.Network, w float64, b []complex128) []complex128 {
-	n := r.n
+func (r *reduction) refine(w float64, b []complex128) []complex128 {
 	x := append([]complex128(nil), b...)
 	r.solve(x)
-	d := make([]complex128, n)
-	g, c := nw.G.RawMatrix(), nw.C.RawMatrix()
-	for i := 0; i < n; i++ {
-		gi, ci := g.Data[i*g.Stride:i*g.Stride+n], c.Data[i*c.Stride:i*c.Stride+n]
-		s := b[i]
-		for j, xj := range x {
-			if gi[j] != 0 || ci[j] != 0 {
-				s -= complex(gi[j], w*ci[j]) * xj
-			}
-		}
-		d[i] = s
-	}
+	d := make([]complex128, r.n)
+	r.pencil.residual(w, b, x, d)
 	r.solve(d)
 	for i := range x {
 		x[i] += d[i]
@@ -180,7 +169,7 @@ func (r *reduction) refinedPoint(nw *smallsignal.Network, ref []float64, probes 
 	var x0 []complex128
 	for j := 0; j < np; j++ {
 		nw.Excitation(j, 1, b)
-		x := r.refine(nw, w, b)
+		x := r.refine(w, b)
 		if j == 0 {
 			x0 = x
 		}
@@ -196,21 +185,12 @@ func (r *reduction) refinedPoint(nw *smallsignal.Network, ref []float64, probes 
 		pt.Probes = append(pt.Probes, at(x0, p))
 	}
 	// dx/dw = -Y⁻¹ jC x.
-	c := nw.C.RawMatrix()
-	for i := 0; i < r.n; i++ {
-		var s complex128
-		for j, cij := range c.Data[i*c.Stride : i*c.Stride+r.n] {
-			if cij != 0 {
-				s += complex(cij, 0) * x0[j]
-			}
-		}
-		b[i] = -1i * s
+	r.pencil.mulC(x0, b)
+	for i := range b {
+		b[i] *= -1i
 	}
-	dx := r.refine(nw, w, b)
-	out := 0
-	if np > 1 {
-		out = 1
-	}
+	dx := r.refine(w, b)
+	out := groupDelayPort(np)
 	sv := pt.S[out][0]
 	dS := 2 * nw.PortVoltage(out, dx) * complex(math.Sqrt(ref[0]/ref[out]), 0)
 	if sv != 0 && !cmplx.IsNaN(sv) {
@@ -239,7 +219,7 @@ func (r *reduction) sweepAccurate(nw *smallsignal.Network, ref []float64, probes
 	ev := r.points(nw, ref, probes)
 	for _, hz := range checkFrequencies(lo, hi) {
 		p, ok := ev.at(hz)
-		if !ok || pointsDiffer(p, r.refinedPoint(nw, ref, idx, hz), checkRel) != "" {
+		if !ok || pointsDiffer(p, r.refinedPoint(nw, ref, idx, hz), checkRel, checkFloor) != "" {
 			return false
 		}
 	}
@@ -248,12 +228,11 @@ func (r *reduction) sweepAccurate(nw *smallsignal.Network, ref []float64, probes
 
 // pointsDiffer describes the first quantity in which point p differs from
 // q by more than rel relative, or returns "". Quantities that vanish are
-// held to an absolute floor, checkFloor, instead: for the S-parameters
+// held to an absolute floor instead (checkFloor in the accuracy check): for the S-parameters
 // (at most 1 in size for a passive network, so this is rounding of the
 // largest), for the probes in volts per volt of EMF, and for Z_in and the
 // group delay the same floor carried through their formulas.
-func pointsDiffer(p, q Point, rel float64) string {
-	const floor = checkFloor
+func pointsDiffer(p, q Point, rel, floor float64) string {
 	for i := range q.S {
 		for j := range q.S[i] {
 			if d := cmplx.Abs(p.S[i][j] - q.S[i][j]); !(d <= rel*cmplx.Abs(q.S[i][j])+floor) {
@@ -465,12 +444,10 @@ func (ev *pointEval) at(hz float64) (Point, bool) {
 	for _, p := range ev.prow {
 		pt.Probes = append(pt.Probes, dotReal(p, ev.y[0]))
 	}
-	// Group delay: dx/dw = -Y⁻¹ jC x, and with C = Dr⁻¹ Q T Zᵀ Dc⁻¹ and
-	// x = Dc Z y this is dy/dw = -j (H + jwT)⁻¹ T y; the output's share,
+	// Group delay: dx/dw = -Y⁻¹ jC x, and with L (G + sC) R = H + sT and
+	// x = R y this is dy/dw = -j (H + jwT)⁻¹ T y; the output's share,
 	// vrow[out]·dy, is -j vᵀ T y with the adjoint v factor solved.
-	dy := ev.dy
-	r.mulT(ev.y[0], dy)
-	dv := -1i * dotu(r.adj, dy)
+	dv := -1i * ev.adjointT(ev.c[0], ev.y[0])
 	sv := pt.S[out][0]
 	dS := 2 * dv * complex(math.Sqrt(ref[0]/ref[out]), 0)
 	if sv != 0 && !cmplx.IsNaN(sv) {
@@ -479,6 +456,28 @@ func (ev *pointEval) at(hz float64) (Point, bool) {
 		pt.GroupDelay = math.NaN()
 	}
 	return pt, true
+}
+
+// maxCancellation bounds the digits the shifted form's short cut for vᵀ T y
+// may lose to cancellation (adjointT): a factor of 1e4, four digits of the
+// sixteen, where the accuracy check asks for ten.
+const maxCancellation = 1e4
+
+// adjointT returns vᵀ T y for the adjoint solution v factor left in the
+// reduction and y = (H + jwT)⁻¹ c. In the shifted form T = Hm and
+// H + jwT = I + μ Hm, so T y = (c - y)/μ and vᵀ T y = (vᵀc - vᵀy)/μ: two
+// dot products instead of a product with T, unless the difference cancels
+// more than maxCancellation allows.
+func (ev *pointEval) adjointT(c, y []complex128) complex128 {
+	r := ev.r
+	if r.shift > 0 {
+		a, b := dotu(r.adj, c), dotu(r.adj, y)
+		if cmplx.Abs(a)+cmplx.Abs(b) <= maxCancellation*cmplx.Abs(a-b) {
+			return (a - b) * r.scale
+		}
+	}
+	r.mulT(y, ev.dy)
+	return dotu(r.adj, ev.dy)
 }
 
 // sweep runs Sweep's points on the reduction from freqsHz[0] on and
@@ -518,7 +517,7 @@ func (r *reduction) solveAccurate(nw *smallsignal.Network, lo, hi float64) bool 
 			nw.Excitation(j, 1, b)
 			x := append([]complex128(nil), b...)
 			r.solve(x)
-			xr := r.refine(nw, w, b)
+			xr := r.refine(w, b)
 			big := 0.0
 			for _, v := range xr {
 				big = math.Max(big, cmplx.Abs(v))

@@ -43,8 +43,9 @@ import (
 // A reduction holds O(n²) numbers (H, T, the basis and one
 // factorisation) and nothing per frequency.
 type reduction struct {
-	n    int
-	form reductionForm
+	n      int
+	form   reductionForm
+	pencil *pencil // G and C themselves, for the accuracy check's residuals
 	// H and T, n×n row-major, upper Hessenberg (T upper triangular in
 	// the Hessenberg-triangular form).
 	h, t []float64
@@ -54,9 +55,18 @@ type reduction struct {
 
 	// ht packs H + jT by rows, row i from column max(i-1, 0) at
 	// ht[hoff[i]:hoff[i+1]]: the upper Hessenberg part, one stream for
-	// the elimination to read.
+	// the elimination to read. In the shifted form it packs T = Hm alone
+	// (as complex numbers with no imaginary part), see shift.
 	ht   []complex128
 	hoff []int
+
+	// shift is σ > 0 in the shifted form, where H + jwT = I + μ Hm with
+	// μ = jw - σ, which is μ (Hm - νI) with ν = -1/μ. There factor
+	// eliminates Hm - νI instead, whose rows are Hm's but for the diagonal:
+	// a row is formed by a copy and one subtraction, not a pass of
+	// arithmetic, and the solves take the factor 1/μ (scale) at the end.
+	shift float64
+	scale complex128 // 1/μ at the factored frequency; 1 in the other form
 
 	// The factorisation of H + jwT at the last frequency factored:
 	// P_k swaps rows k and k+1 where swap[k], then row k+1 loses l[k]
@@ -116,7 +126,8 @@ func reduceTriangular(g, c *mat.Dense, wRef float64) (*reduction, error) {
 		return nil, err
 	}
 	gr, cr := g.RawMatrix(), c.RawMatrix()
-	dr, dc := balance(gr, cr, n, wRef)
+	sparse := newPencil(gr, cr, n)
+	dr, dc := balance(sparse, wRef)
 
 	a := make([]float64, n*n) // Dr G Dc, then Q1ᵀ Dr G Dc P, then H
 	b := make([]float64, n*n) // Dr C Dc, then its QR factors, then T
@@ -126,7 +137,7 @@ func reduceTriangular(g, c *mat.Dense, wRef float64) (*reduction, error) {
 			b[i*n+j] = dr[i] * cr.Data[i*cr.Stride+j] * dc[j]
 		}
 	}
-	r := &reduction{n: n, form: formTriangular}
+	r := &reduction{n: n, form: formTriangular, pencil: sparse}
 	if n == 0 {
 		r.basis = &explicitBasis{}
 		r.alloc()
@@ -207,7 +218,11 @@ func (r *reduction) alloc() {
 		lo := max(i-1, 0)
 		row := r.ht[r.hoff[i]:r.hoff[i+1]]
 		for j := range row {
-			row[j] = complex(r.h[i*n+lo+j], r.t[i*n+lo+j])
+			if r.shift > 0 {
+				row[j] = complex(r.t[i*n+lo+j], 0)
+			} else {
+				row[j] = complex(r.h[i*n+lo+j], r.t[i*n+lo+j])
+			}
 		}
 	}
 	r.inv = make([]complex128, n)
@@ -225,12 +240,11 @@ func (r *reduction) alloc() {
 // by the norm of the whole matrix; equilibration keeps rows of small
 // admittances (a teraohm bias resistor, a femtofarad) from drowning in the
 // rounding of large ones.
-func balance(g, c blas64.General, n int, wRef float64) (dr, dc []float64) {
-	m := make([]float64, n*n)
-	for i := 0; i < n; i++ {
-		for j := 0; j < n; j++ {
-			m[i*n+j] = math.Abs(g.Data[i*g.Stride+j]) + wRef*math.Abs(c.Data[i*c.Stride+j])
-		}
+func balance(p *pencil, wRef float64) (dr, dc []float64) {
+	n := p.n
+	m := make([]float64, len(p.col)) // |G| + wRef |C| at the pencil's entries
+	for k := range m {
+		m[k] = math.Abs(p.g[k]) + wRef*math.Abs(p.c[k])
 	}
 	dr, dc = make([]float64, n), make([]float64, n)
 	for i := range dr {
@@ -242,8 +256,9 @@ func balance(g, c blas64.General, n int, wRef float64) (dr, dc []float64) {
 		done := true
 		for i := 0; i < n; i++ {
 			rowMax := 0.0
-			for j := 0; j < n; j++ {
-				v := dr[i] * m[i*n+j] * dc[j]
+			for k := p.start[i]; k < p.start[i+1]; k++ {
+				j := p.col[k]
+				v := dr[i] * m[k] * dc[j]
 				rowMax = math.Max(rowMax, v)
 				colMax[j] = math.Max(colMax[j], v)
 			}
@@ -274,22 +289,81 @@ func balance(g, c blas64.General, n int, wRef float64) (dr, dc []float64) {
 	return dr, dc
 }
 
+// pencil holds the entries of G and C that are not both zero, by rows
+// (compressed sparse rows): network matrices have a few entries per row,
+// and the balancing and the accuracy check's residuals need only these.
+type pencil struct {
+	n     int
+	start []int // row i's entries are start[i] to start[i+1]-1
+	col   []int
+	g, c  []float64
+}
+
+func newPencil(g, c blas64.General, n int) *pencil {
+	p := &pencil{n: n, start: make([]int, n+1)}
+	for i := 0; i < n; i++ {
+		for j := 0; j < n; j++ {
+			if gij, cij := g.Data[i*g.Stride+j], c.Data[i*c.Stride+j]; gij != 0 || cij != 0 {
+				p.col = append(p.col, j)
+				p.g = append(p.g, gij)
+				p.c = append(p.c, cij)
+			}
+		}
+		p.start[i+1] = len(p.col)
+	}
+	return p
+}
+
+// residual sets d = b - (G + jwC) x.
+func (p *pencil) residual(w float64, b, x, d []complex128) {
+	for i := 0; i < p.n; i++ {
+		s := b[i]
+		for k := p.start[i]; k < p.start[i+1]; k++ {
+			s -= complex(p.g[k], w*p.c[k]) * x[p.col[k]]
+		}
+		d[i] = s
+	}
+}
+
+// mulC sets d = C x.
+func (p *pencil) mulC(x, d []complex128) {
+	for i := 0; i < p.n; i++ {
+		var s complex128
+		for k := p.start[i]; k < p.start[i+1]; k++ {
+			s += complex(p.c[k], 0) * x[p.col[k]]
+		}
+		d[i] = s
+	}
+}
+
 // factor factors H + jwT by Gaussian elimination with partial pivoting,
 // which on an upper Hessenberg matrix eliminates one subdiagonal entry per
 // step (Laub 1981). Row k+1 of H + jwT is untouched until step k, so it is
-// formed as the elimination reaches it: one pass over H and T, and one
-// axpy per step (gonum's Zaxpy).
+// formed as the elimination reaches it: one pass over H and T (in the
+// shifted form a copy of Hm's row, see shift), and one axpy per step
+// (gonum's Zaxpy).
 func (r *reduction) factor(w float64) error {
 	n := r.n
+	r.scale = 1
 	if n == 0 {
 		return nil
 	}
-	// form writes row i of H + jwT, from column max(i-1, 0) on, into v.
+	// form writes row i of the matrix eliminated, from column
+	// max(i-1, 0) on, into v.
 	form := func(i int, v []complex128) {
 		src := r.ht[r.hoff[i]:r.hoff[i+1]]
 		v = v[:len(src)]
 		for j, x := range src {
 			v[j] = complex(real(x), w*imag(x))
+		}
+	}
+	if r.shift > 0 {
+		mu := complex(-r.shift, w)
+		nu := -1 / mu
+		r.scale = 1 / mu
+		form = func(i int, v []complex128) {
+			copy(v, r.ht[r.hoff[i]:r.hoff[i+1]])
+			v[min(i, 1)] -= nu // the diagonal: column i is entry i - max(i-1, 0)
 		}
 	}
 	// carried is row k, from column k on, after the steps before k; the
@@ -349,8 +423,19 @@ func (r *reduction) factor(w float64) error {
 				adj[k], adj[k+1] = adj[k+1], adj[k]
 			}
 		}
+		r.rescale(adj)
 	}
 	return nil
+}
+
+// rescale multiplies a solution of the matrix factor eliminated by scale,
+// making it one of H + jwT.
+func (r *reduction) rescale(y []complex128) {
+	if r.scale != 1 {
+		for i := range y[:r.n] {
+			y[i] *= r.scale
+		}
+	}
 }
 
 func abs1(z complex128) float64 { return math.Abs(real(z)) + math.Abs(imag(z)) }
@@ -372,6 +457,7 @@ func (r *reduction) solveY(c []complex128) {
 	for i := n - 1; i >= 0; i-- {
 		c[i] = (c[i] - dotu(r.urow[i][1:], c[i+1:n])) * r.inv[i]
 	}
+	r.rescale(c)
 }
 
 // solveY2 solves (H + jwT) y = c for two right-hand sides at once, in
@@ -391,6 +477,8 @@ func (r *reduction) solveY2(c, d []complex128) {
 		c[i] = (c[i] - dotu(row, c[i+1:n])) * r.inv[i]
 		d[i] = (d[i] - dotu(row, d[i+1:n])) * r.inv[i]
 	}
+	r.rescale(c)
+	r.rescale(d)
 }
 
 // solveYT overwrites c with the solution of (H + jwT)ᵀ v = c (plain
@@ -411,6 +499,7 @@ func (r *reduction) solveYT(c []complex128) {
 			c[k], c[k+1] = c[k+1], c[k]
 		}
 	}
+	r.rescale(c)
 }
 
 // dotu returns Σ a_j y_j (no conjugate): gonum's Zdotu, whose assembly

@@ -176,13 +176,18 @@ func sweepWith(t *testing.T, nw *smallsignal.Network, freqs []float64, s Setting
 
 // sweepsDiffer describes the first point and quantity in which two
 // sweeps differ by more than rel relative (see pointsDiffer for the
-// floors of vanishing quantities), or returns "".
+// floors of vanishing quantities, here the accuracy check's checkFloor),
+// or returns "".
 func sweepsDiffer(a, b []Point, rel float64) string {
+	return sweepsDifferAbove(a, b, rel, checkFloor)
+}
+
+func sweepsDifferAbove(a, b []Point, rel, floor float64) string {
 	if len(a) != len(b) {
 		return fmt.Sprintf("%d points against %d", len(a), len(b))
 	}
 	for k := range b {
-		if d := pointsDiffer(a[k], b[k], rel); d != "" {
+		if d := pointsDiffer(a[k], b[k], rel, floor); d != "" {
 			return d
 		}
 	}
@@ -221,15 +226,18 @@ func TestReducedSweepDemos(t *testing.T) {
 		if d := sweepsDiffer(red, lu, 1e-9); d != "" {
 			t.Errorf("%s (n = %d): %s", f, nw.N, d)
 		}
-		t.Logf("%s (n = %d): agree to %.0e relative (absolute floor %g)", filepath.Base(f), nw.N, agreement(red, lu), checkFloor)
+		t.Logf("%s (n = %d): agree to %.0e relative (absolute floor %g)", filepath.Base(f), nw.N, agreement(red, lu), agreementFloor)
 	}
 }
 
 // agreement returns the smallest power of ten rel at which pointsDiffer
-// finds the sweeps equal, for the log.
+// finds the sweeps equal above an absolute floor of agreementFloor, for
+// the log.
+const agreementFloor = 1e-13
+
 func agreement(a, b []Point) float64 {
 	rel := 1e-16
-	for rel < 1 && sweepsDiffer(a, b, rel) != "" {
+	for rel < 1 && sweepsDifferAbove(a, b, rel, agreementFloor) != "" {
 		rel *= 10
 	}
 	return rel
@@ -274,7 +282,7 @@ func TestReducedSweepRandom(t *testing.T) {
 		}
 		worst = math.Max(worst, agreement(red, lu))
 	}
-	t.Logf("%d of %d random networks ran on the reduction; worst agreement %.0e relative (absolute floor %g)", reduced, trials, worst, checkFloor)
+	t.Logf("%d of %d random networks ran on the reduction; worst agreement %.0e relative (absolute floor %g)", reduced, trials, worst, agreementFloor)
 	if reduced < trials*9/10 {
 		t.Errorf("only %d of %d random networks passed the reduction's accuracy check", reduced, trials)
 	}
@@ -608,6 +616,78 @@ func TestHessenbergSolve(t *testing.T) {
 			if d := maxRel(x, y); d > 1e-10 {
 				t.Errorf("trial %d (n = %d, %d swaps, transpose %v): differs from the dense LU by %g", trial, n, swaps, tr, d)
 			}
+		}
+	}
+}
+
+// TestShiftedHessenbergSolve: in the shifted form factor eliminates
+// Hm - νI and scales by 1/μ; its solves, transpose solves and fused
+// adjoint equal the dense LU of I + μHm = H + jwT, and the short cut
+// for vᵀ T y (adjointT) equals the product with T.
+func TestShiftedHessenbergSolve(t *testing.T) {
+	rng := rand.New(rand.NewPCG(41, 2))
+	for trial := 0; trial < 50; trial++ {
+		n := 1 + rng.IntN(40)
+		sigma := math.Pow(10, 4*rng.Float64()-2)
+		r := &reduction{n: n, h: make([]float64, n*n), t: make([]float64, n*n), shift: sigma, form: formShifted}
+		for i := 0; i < n; i++ {
+			scale := math.Pow(10, 2*rng.Float64()-1) / sigma
+			for j := max(i-1, 0); j < n; j++ {
+				r.t[i*n+j] = scale * rng.NormFloat64()
+				r.h[i*n+j] = -sigma * r.t[i*n+j]
+			}
+			r.h[i*n+i]++
+		}
+		r.alloc()
+		w := sigma * math.Pow(10, 4*rng.Float64()-2)
+		adjRHS := make([]float64, n)
+		for i := range adjRHS {
+			adjRHS[i] = rng.NormFloat64()
+		}
+		r.adjRHS = adjRHS
+		err := r.factor(w)
+		r.adjRHS = nil
+		if err != nil {
+			t.Fatal(err)
+		}
+		f := newLU(n)
+		f.load(r.h, r.t, n, n, w)
+		if err := f.factor(); err != nil {
+			t.Fatal(err)
+		}
+		v := make([]complex128, n)
+		for i, a := range adjRHS {
+			v[i] = complex(a, 0)
+		}
+		f.solveT(v)
+		if d := maxRel(r.adj, v); d > 1e-10 {
+			t.Errorf("trial %d (n = %d): fused adjoint differs from the dense LU by %g", trial, n, d)
+		}
+		b := make([]complex128, n)
+		for i := range b {
+			b[i] = complex(rng.NormFloat64(), rng.NormFloat64())
+		}
+		for _, tr := range []bool{false, true} {
+			x, y := append([]complex128(nil), b...), append([]complex128(nil), b...)
+			if tr {
+				r.solveYT(x)
+				f.solveT(y)
+			} else {
+				r.solveY(x)
+				f.solve(y)
+			}
+			if d := maxRel(x, y); d > 1e-10 {
+				t.Errorf("trial %d (n = %d, transpose %v): differs from the dense LU by %g", trial, n, tr, d)
+			}
+		}
+		y := append([]complex128(nil), b...)
+		r.solveY(y)
+		ev := &pointEval{r: r, dy: make([]complex128, n)}
+		got := ev.adjointT(b, y)
+		r.mulT(y, ev.dy)
+		want := dotu(r.adj, ev.dy)
+		if d := cmplx.Abs(got - want); d > 1e-9*cmplx.Abs(want) {
+			t.Errorf("trial %d (n = %d): vᵀ T y = %v by the short cut, %v by the product", trial, n, got, want)
 		}
 	}
 }

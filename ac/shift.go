@@ -39,14 +39,15 @@ func reduceShifted(g, c *mat.Dense, wRef float64) (*reduction, error) {
 	if err != nil {
 		return nil, err
 	}
-	r := &reduction{n: n}
+	gr, cr := g.RawMatrix(), c.RawMatrix()
+	sparse := newPencil(gr, cr, n)
+	r := &reduction{n: n, form: formShifted, pencil: sparse}
 	if n == 0 {
 		r.basis = &shiftedBasis{}
 		r.alloc()
 		return r, nil
 	}
-	gr, cr := g.RawMatrix(), c.RawMatrix()
-	dr, dc := balance(gr, cr, n, wRef)
+	dr, dc := balance(sparse, wRef)
 	sigma := wRef
 	k := make([]float64, n*n)  // Dr (G + σC) Dc, then its LU factors
 	m := make([]float64, n*n)  // M = K⁻¹ Dr C Dc, then Hm and the reflectors
@@ -126,7 +127,7 @@ func reduceShifted(g, c *mat.Dense, wRef float64) (*reduction, error) {
 			v[p] = m[(i+1+p)*n+i]
 		}
 	}
-	r.h, r.t, r.basis = h, t, sb
+	r.h, r.t, r.basis, r.shift = h, t, sb, sigma
 	r.alloc()
 	return r, nil
 }
