@@ -20,9 +20,8 @@ import (
 // BenchmarkStudy: 200-step studies of two demos as `qpoint study` runs
 // them, each step a bias solve, the response at the study frequencies and
 // the Volterra estimate for a drive, solved with one worker and with one
-// per core in the same iteration, so that both meet the same load:
-//
-//	go test -run '^$' -bench Study -benchtime 20x -count 5 ./ac/
+// per core in the same iteration, so that both meet the same load. The
+// cases:
 //
 //   - detector: its supply swept from 0 to 3.3 V, the response at the
 //     file's distortion frequency (2.45 GHz) and the estimate for its
@@ -31,6 +30,10 @@ import (
 //     (0.9 to 5 V), the response at 50 frequencies log-spaced from 100 MHz
 //     to 3 GHz and the estimate at -10 dBm at the file's distortion
 //     frequency: the measurement of BENCHMARKS.md's study scaling.
+//
+// Run with
+//
+//	go test -run '^$' -bench Study -benchtime 20x -count 5 ./ac/
 //
 // It reports the time per step of each, their ratio (the scaling), the
 // cores the parallel runs actually got, and, as a control, the cores a

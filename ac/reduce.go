@@ -585,7 +585,7 @@ type explicitBasis struct {
 	qs, zs []float64
 }
 
-func (e *explicitBasis) left(b, y []complex128)  { mulTransposed(e.qs, e.n, b, y) }
+func (e *explicitBasis) left(b, y []complex128)   { mulTransposed(e.qs, e.n, b, y) }
 func (e *explicitBasis) rightT(b, v []complex128) { mulTransposed(e.zs, e.n, b, v) }
 func (e *explicitBasis) right(y, x []complex128)  { mulReal(e.zs, e.n, y, x) }
 func (e *explicitBasis) leftT(v, b []complex128)  { mulReal(e.qs, e.n, v, b) }

@@ -49,9 +49,9 @@ func reduceShifted(g, c *mat.Dense, wRef float64) (*reduction, error) {
 	}
 	dr, dc := balance(sparse, wRef)
 	sigma := wRef
-	k := make([]float64, n*n)  // Dr (G + σC) Dc, then its LU factors
-	m := make([]float64, n*n)  // M = K⁻¹ Dr C Dc, then Hm and the reflectors
-	var cols []int             // the columns of C with an entry
+	k := make([]float64, n*n) // Dr (G + σC) Dc, then its LU factors
+	m := make([]float64, n*n) // M = K⁻¹ Dr C Dc, then Hm and the reflectors
+	var cols []int            // the columns of C with an entry
 	for j := 0; j < n; j++ {
 		for i := 0; i < n; i++ {
 			if cr.Data[i*cr.Stride+j] != 0 {
