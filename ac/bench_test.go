@@ -176,7 +176,7 @@ func BenchmarkEngines(b *testing.B) {
 				}
 				lo, hi, _ := sweepRange(freqs)
 				setup := func() *reduction {
-					r := reduceAccurate(nw, lo, hi, func(r *reduction) bool {
+					r := reduceAccurate(nw, lo, hi, points, func(r *reduction) bool {
 						return r.sweepAccurate(nw, ref, s.Probes, lo, hi)
 					})
 					if r == nil {
@@ -331,5 +331,63 @@ func TestReducedSweepStreams(t *testing.T) {
 	t.Logf("n = %d, %d ports: %.0f bytes per point, %.0f per sweep besides", nw.N, len(nw.Ports), perPoint, small-100*perPoint)
 	if perPoint > limit || math.IsNaN(perPoint) {
 		t.Errorf("%.0f bytes allocated per point, want at most %.0f (the point itself); n² complex would be %d", perPoint, limit, 16*nw.N*nw.N)
+	}
+}
+
+// BenchmarkForms measures, on the diode-loaded ladder for a sweep from
+// 1 MHz to 10 GHz, what each form of the reduction costs to set up (the
+// reduction and its accuracy check, median of three) and per point (the
+// median of five batches), and from these the point count at which the
+// Schur form's dearer setup is repaid by its cheaper points, in all and
+// per unknown (break-even, break-even/n): the basis of
+// schurPointsPerUnknown.
+//
+//	go test -run '^$' -bench Forms -benchtime 1x -count 3 ./ac/
+func BenchmarkForms(b *testing.B) {
+	for _, n := range []int{20, 50, 100, 200, 500} {
+		b.Run(fmt.Sprintf("n=%d", n), func(b *testing.B) {
+			nw := network(b, benchLadder(n))
+			ref := []float64{50, 50}
+			probes := []string{nw.Names[0]}
+			setup := map[reductionForm]float64{}
+			point := map[reductionForm]float64{}
+			for b.Loop() {
+				for _, form := range []reductionForm{formShifted, formSchur, formTriangular} {
+					var r *reduction
+					var times []float64
+					for range 3 {
+						t0 := time.Now()
+						var err error
+						r, err = reduceFor(nw, 1e6, 10e9, form)
+						if err != nil || !r.sweepAccurate(nw, ref, probes, 1e6, 10e9) {
+							b.Fatalf("%v: the reduction fails (%v)", form, err)
+						}
+						times = append(times, float64(time.Since(t0).Nanoseconds()))
+					}
+					setup[form] = median(times)
+					ev := r.points(nw, ref, probes)
+					per := max(1, 2_000_000/(n*n))
+					var batches []float64
+					for k := range 5 {
+						t0 := time.Now()
+						for j := range per {
+							if _, ok := ev.at(1e9 + float64(k*per+j)*1e5); !ok {
+								b.Fatal("zero pivot")
+							}
+						}
+						batches = append(batches, float64(time.Since(t0).Nanoseconds())/float64(per))
+					}
+					point[form] = median(batches)
+				}
+			}
+			for _, form := range []reductionForm{formShifted, formSchur, formTriangular} {
+				name := strings.ReplaceAll(form.String(), " ", "-")
+				b.ReportMetric(setup[form]/1e6, name+"-setup-ms")
+				b.ReportMetric(point[form], name+"-point-ns")
+			}
+			even := (setup[formSchur] - setup[formShifted]) / (point[formShifted] - point[formSchur])
+			b.ReportMetric(even, "break-even")
+			b.ReportMetric(even/float64(n), "break-even/n")
+		})
 	}
 }

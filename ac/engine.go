@@ -78,12 +78,16 @@ type reductionForm int
 
 const (
 	formShifted reductionForm = iota
+	formSchur
 	formTriangular
 )
 
 func (f reductionForm) String() string {
-	if f == formShifted {
+	switch f {
+	case formShifted:
 		return "shifted"
+	case formSchur:
+		return "shifted Schur"
 	}
 	return "Hessenberg-triangular"
 }
@@ -93,8 +97,8 @@ func (f reductionForm) String() string {
 // of the range in rad/s.
 func reduceFor(nw *smallsignal.Network, lo, hi float64, form reductionForm) (*reduction, error) {
 	wRef := 2 * math.Pi * math.Sqrt(lo*hi)
-	if form == formShifted {
-		return reduceShifted(nw.G, nw.C, wRef)
+	if form != formTriangular {
+		return reduceShifted(nw.G, nw.C, wRef, form == formSchur)
 	}
 	return reduceTriangular(nw.G, nw.C, wRef)
 }
@@ -107,14 +111,24 @@ func reduceFor(nw *smallsignal.Network, lo, hi float64, form reductionForm) (*re
 // shift cannot suit frequencies that far from it.
 const maxShiftedDecades = 6
 
-// reduceAccurate returns the first reduction of nw over [lo, hi] Hz that
-// can be made and passes accurate, nil if neither form does: the shifted
-// form first (the cheaper), the Hessenberg-triangular one first for
-// sweeps wider than maxShiftedDecades.
-func reduceAccurate(nw *smallsignal.Network, lo, hi float64, accurate func(*reduction) bool) *reduction {
+// schurPointsPerUnknown sets when the Schur form pays: its setup costs
+// about three times the shifted form's and each point about half, so it
+// is taken for sweeps of at least this many points per unknown
+// (BenchmarkForms, BENCHMARKS.md).
+const schurPointsPerUnknown = 3
+
+// reduceAccurate returns the first reduction of nw for a sweep of points
+// frequencies over [lo, hi] Hz that can be made and passes accurate, nil
+// if no form does: the shifted form first (the cheaper), the
+// Hessenberg-triangular one first for sweeps wider than
+// maxShiftedDecades, and the Schur form before both for sweeps long
+// enough to repay it (schurPointsPerUnknown).
+func reduceAccurate(nw *smallsignal.Network, lo, hi float64, points int, accurate func(*reduction) bool) *reduction {
 	forms := []reductionForm{formShifted, formTriangular}
 	if hi > lo*math.Pow(10, maxShiftedDecades) {
 		forms[0], forms[1] = forms[1], forms[0]
+	} else if points >= schurPointsPerUnknown*nw.N {
+		forms = append([]reductionForm{formSchur}, forms...)
 	}
 	for _, form := range forms {
 		if r, err := reduceFor(nw, lo, hi, form); err == nil && accurate(r) {
@@ -291,7 +305,7 @@ func sweepEngine(nw *smallsignal.Network, freqsHz []float64, ref []float64, prob
 		}
 	}
 	lo, hi, _ := sweepRange(freqsHz)
-	return reduceAccurate(nw, lo, hi, func(r *reduction) bool {
+	return reduceAccurate(nw, lo, hi, len(freqsHz), func(r *reduction) bool {
 		return r.sweepAccurate(nw, ref, probes, lo, hi)
 	})
 }
@@ -576,7 +590,7 @@ func newSolver(nw *smallsignal.Network, freqsHz []float64, choice engine) solver
 	if !ok || (choice == engineAuto && !reducedPays(nw.N, len(freqsHz))) {
 		return newLUSolver(nw)
 	}
-	r := reduceAccurate(nw, lo, hi, func(r *reduction) bool { return r.solveAccurate(nw, lo, hi) })
+	r := reduceAccurate(nw, lo, hi, len(freqsHz), func(r *reduction) bool { return r.solveAccurate(nw, lo, hi) })
 	if r == nil {
 		return newLUSolver(nw)
 	}

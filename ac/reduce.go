@@ -67,6 +67,9 @@ type reduction struct {
 	// arithmetic, and the solves take the factor 1/μ (scale) at the end.
 	shift float64
 	scale complex128 // 1/μ at the factored frequency; 1 in the other form
+	// quasi, in the Schur form, replaces the Hessenberg elimination: T is
+	// S, upper quasi-triangular, and the solves are substitutions.
+	quasi *quasi
 
 	// The factorisation of H + jwT at the last frequency factored:
 	// P_k swaps rows k and k+1 where swap[k], then row k+1 loses l[k]
@@ -204,6 +207,12 @@ func reduceTriangular(g, c *mat.Dense, wRef float64) (*reduction, error) {
 // once.
 func (r *reduction) alloc() {
 	n := r.n
+	r.work = make([]complex128, n)
+	r.adj = make([]complex128, n)
+	r.yr, r.yi = make([]float64, n), make([]float64, n)
+	if r.quasi != nil {
+		return
+	}
 	r.urow = make([][]complex128, n)
 	r.pool = make([][]complex128, n)
 	for j := range r.pool {
@@ -228,9 +237,6 @@ func (r *reduction) alloc() {
 	r.inv = make([]complex128, n)
 	r.l = make([]complex128, n)
 	r.swap = make([]bool, n)
-	r.work = make([]complex128, n)
-	r.yr, r.yi = make([]float64, n), make([]float64, n)
-	r.adj = make([]complex128, n)
 }
 
 // balance returns power-of-two row and column scalings dr, dc that bring
@@ -348,28 +354,29 @@ func (r *reduction) factor(w float64) error {
 	if n == 0 {
 		return nil
 	}
-	// form writes row i of the matrix eliminated, from column
-	// max(i-1, 0) on, into v.
-	form := func(i int, v []complex128) {
-		src := r.ht[r.hoff[i]:r.hoff[i+1]]
-		v = v[:len(src)]
-		for j, x := range src {
-			v[j] = complex(real(x), w*imag(x))
-		}
-	}
+	var nu complex128
 	if r.shift > 0 {
 		mu := complex(-r.shift, w)
-		nu := -1 / mu
+		nu = -1 / mu
 		r.scale = 1 / mu
-		form = func(i int, v []complex128) {
-			copy(v, r.ht[r.hoff[i]:r.hoff[i+1]])
-			v[min(i, 1)] -= nu // the diagonal: column i is entry i - max(i-1, 0)
+	}
+	if r.quasi != nil {
+		if err := r.quasi.factor(nu); err != nil {
+			return err
 		}
+		if r.adjRHS != nil {
+			for i, v := range r.adjRHS[:n] {
+				r.adj[i] = complex(v, 0)
+			}
+			r.quasi.solveT(r.adj)
+			r.rescale(r.adj)
+		}
+		return nil
 	}
 	// carried is row k, from column k on, after the steps before k; the
 	// fresh row k+1 goes into pool[k+1], which starts at column k.
 	carried := r.pool[0]
-	form(0, carried)
+	r.formRow(0, carried, w, nu)
 	adj := r.adj
 	if r.adjRHS != nil {
 		for i, v := range r.adjRHS[:n] {
@@ -378,19 +385,19 @@ func (r *reduction) factor(w float64) error {
 	}
 	for k := 0; k < n-1; k++ {
 		fresh := r.pool[k+1]
-		form(k+1, fresh)
+		r.formRow(k+1, fresh, w, nu)
 		p, f := carried[0], fresh[0]
 		pivot, other := carried, fresh
 		r.swap[k] = abs1(f) > abs1(p)
 		if r.swap[k] {
 			pivot, other, p, f = fresh, carried, f, p
 		}
-		if p == 0 {
+		inv, ok := reciprocal(p)
+		if !ok {
 			return errSingular
 		}
-		// l = f/p without the runtime's complex division.
-		d := real(p)*real(p) + imag(p)*imag(p)
-		l := f * complex(real(p)/d, -imag(p)/d)
+		r.inv[k] = inv
+		l := f * inv
 		r.l[k] = l
 		if m := n - k - 1; m > 0 {
 			axpy(-l, pivot[1:n-k], other[1:n-k])
@@ -399,7 +406,7 @@ func (r *reduction) factor(w float64) error {
 		carried = other[1:]
 		if r.adjRHS != nil {
 			// Uᵀ w = c, row k of U is column k of Uᵀ.
-			wk := adj[k] * complex(real(p)/d, -imag(p)/d)
+			wk := adj[k] * inv
 			adj[k] = wk
 			if m := n - k - 1; m > 0 && wk != 0 {
 				axpy(-wk, pivot[1:n-k], adj[k+1:n])
@@ -407,13 +414,11 @@ func (r *reduction) factor(w float64) error {
 		}
 	}
 	r.urow[n-1] = carried[:1]
-	for k := 0; k < n; k++ {
-		d := r.urow[k][0]
-		if d == 0 || isNaNInf(d) {
-			return errSingular
-		}
-		r.inv[k] = 1 / d
+	inv, ok := reciprocal(carried[0])
+	if !ok {
+		return errSingular
 	}
+	r.inv[n-1] = inv
 	if r.adjRHS != nil {
 		// v = M_0ᵀ ... M_(n-2)ᵀ w, as in solveYT.
 		adj[n-1] *= r.inv[n-1]
@@ -438,6 +443,35 @@ func (r *reduction) rescale(y []complex128) {
 	}
 }
 
+// formRow writes row i of the matrix factor eliminates, from column
+// max(i-1, 0) on, into v: H + jwT, or in the shifted form Hm - νI.
+func (r *reduction) formRow(i int, v []complex128, w float64, nu complex128) {
+	src := r.ht[r.hoff[i]:r.hoff[i+1]]
+	if r.shift > 0 {
+		copy(v, src)
+		v[min(i, 1)] -= nu // the diagonal: column i is entry i - max(i-1, 0)
+		return
+	}
+	v = v[:len(src)]
+	for j, x := range src {
+		v[j] = complex(real(x), w*imag(x))
+	}
+}
+
+// reciprocal returns 1/z, scaled so that no square overflows or
+// underflows, and false if z is zero or 1/z is not finite: a pivot that
+// cannot be used.
+func reciprocal(z complex128) (complex128, bool) {
+	s := math.Max(math.Abs(real(z)), math.Abs(imag(z)))
+	if s == 0 || math.IsNaN(s) || math.IsInf(s, 0) {
+		return 0, false
+	}
+	a, b := real(z)/s, imag(z)/s
+	d := (a*a + b*b) * s
+	inv := complex(a/d, -b/d)
+	return inv, !isNaNInf(inv)
+}
+
 func abs1(z complex128) float64 { return math.Abs(real(z)) + math.Abs(imag(z)) }
 
 func isNaNInf(z complex128) bool {
@@ -448,6 +482,11 @@ func isNaNInf(z complex128) bool {
 // solveY overwrites c with the solution of (H + jwT) y = c.
 func (r *reduction) solveY(c []complex128) {
 	n := r.n
+	if r.quasi != nil {
+		r.quasi.solve(c)
+		r.rescale(c)
+		return
+	}
 	for k := 0; k < n-1; k++ {
 		if r.swap[k] {
 			c[k], c[k+1] = c[k+1], c[k]
@@ -464,6 +503,11 @@ func (r *reduction) solveY(c []complex128) {
 // place.
 func (r *reduction) solveY2(c, d []complex128) {
 	n := r.n
+	if r.quasi != nil {
+		r.solveY(c)
+		r.solveY(d)
+		return
+	}
 	for k := 0; k < n-1; k++ {
 		if r.swap[k] {
 			c[k], c[k+1] = c[k+1], c[k]
@@ -486,6 +530,11 @@ func (r *reduction) solveY2(c, d []complex128) {
 // Uᵀ w = c followed by v = M_0ᵀ ... M_(n-2)ᵀ w.
 func (r *reduction) solveYT(c []complex128) {
 	n := r.n
+	if r.quasi != nil {
+		r.quasi.solveT(c)
+		r.rescale(c)
+		return
+	}
 	for j := 0; j < n; j++ {
 		cj := c[j] * r.inv[j]
 		c[j] = cj
@@ -536,6 +585,10 @@ func axpy(alpha complex128, x, y []complex128) {
 // products (gonum's Ddot) with the parts of y.
 func (r *reduction) mulT(y, d []complex128) {
 	n := r.n
+	if r.quasi != nil {
+		r.quasi.mul(y, d)
+		return
+	}
 	yr, yi := r.yr, r.yi
 	for i, v := range y[:n] {
 		yr[i], yi[i] = real(v), imag(v)

@@ -34,7 +34,7 @@ const minShiftRcond = 1e-12
 // others are zero), U is kept as its reflectors and K as its LU
 // factors. Cost: an n×n LU, n×r solves for the r columns of C with an
 // entry, and the Hessenberg reduction, O(n³) once.
-func reduceShifted(g, c *mat.Dense, wRef float64) (*reduction, error) {
+func reduceShifted(g, c *mat.Dense, wRef float64, schur bool) (*reduction, error) {
 	n, err := checkFinite(g, c)
 	if err != nil {
 		return nil, err
@@ -112,10 +112,19 @@ func reduceShifted(g, c *mat.Dense, wRef float64) (*reduction, error) {
 		}
 		h[i*n+i]++
 	}
+	sb := &shiftedBasis{n: n, lu: k, ipiv: ipiv, rcond: rc, dr: dr, dc: dc, tau: tau[:max(n-1, 0)],
+		re: make([]float64, n), im: make([]float64, n)}
+	r.h, r.t, r.basis, r.shift = h, t, sb, sigma
+	if schur {
+		if err := schurSetup(r, m, sb.tau); err != nil {
+			return nil, err
+		}
+		r.alloc()
+		return r, nil
+	}
 	// Reflector i (Dgehrd's H_i) acts on entries i+1 to n-1: v = (1,
 	// m[i+2][i], ..., m[n-1][i]), kept contiguous for the products.
-	sb := &shiftedBasis{n: n, lu: k, ipiv: ipiv, rcond: rc, dr: dr, dc: dc, tau: tau[:max(n-1, 0)],
-		roff: make([]int, n), re: make([]float64, n), im: make([]float64, n)}
+	sb.roff = make([]int, n)
 	for i := 0; i < n-1; i++ {
 		sb.roff[i+1] = sb.roff[i] + n - i - 1
 	}
@@ -127,7 +136,6 @@ func reduceShifted(g, c *mat.Dense, wRef float64) (*reduction, error) {
 			v[p] = m[(i+1+p)*n+i]
 		}
 	}
-	r.h, r.t, r.basis, r.shift = h, t, sb, sigma
 	r.alloc()
 	return r, nil
 }
@@ -135,9 +143,9 @@ func reduceShifted(g, c *mat.Dense, wRef float64) (*reduction, error) {
 // shiftedBasis is L = Uᵀ K⁻¹ Dr and R = Dc U of the shifted form: K by
 // its LU factors (row-major, with gonum's pivots), U = H_0 H_1 ... H_(n-2)
 // by its Householder reflectors H_i = I - tau_i v_i v_iᵀ, v_i acting on
-// entries i+1 to n-1. Every product works on the real and imaginary parts
-// of a vector apart, with gonum's level-1 and level-2 kernels (all the
-// matrices here are real).
+// entries i+1 to n-1, or, in the Schur form, U Zs explicitly (z). Every
+// product works on the real and imaginary parts of a vector apart, with
+// gonum's level-1 and level-2 kernels (all the matrices here are real).
 type shiftedBasis struct {
 	n      int
 	lu     []float64
@@ -148,6 +156,8 @@ type shiftedBasis struct {
 	roff   []int
 	tau    []float64
 	re, im []float64 // the parts of the vector being worked on
+	z      []float64 // U Zs, n×n row-major, in the Schur form (nil otherwise)
+	tmp    []float64 // n, for products with z
 }
 
 // split loads d ⊙ x (d nil: x) into re, im; join stores d ⊙ (re + j im)
@@ -185,14 +195,23 @@ func (u *shiftedBasis) reflect(i int) {
 	}
 }
 
-// applyU multiplies the parts by U, applyUT by Uᵀ.
+// applyU multiplies the parts by U (U Zs in the Schur form), applyUT by
+// its transpose.
 func (u *shiftedBasis) applyU() {
+	if u.z != nil {
+		u.applyZ(false)
+		return
+	}
 	for i := u.n - 2; i >= 0; i-- {
 		u.reflect(i)
 	}
 }
 
 func (u *shiftedBasis) applyUT() {
+	if u.z != nil {
+		u.applyZ(true)
+		return
+	}
 	for i := 0; i < u.n-1; i++ {
 		u.reflect(i)
 	}
@@ -249,6 +268,12 @@ func (u *shiftedBasis) rightT(b, v []complex128) {
 
 // rightRow sets row to row i of Dc U: dc_i (Uᵀ e_i)ᵀ.
 func (u *shiftedBasis) rightRow(i int, row []float64) {
+	if u.z != nil {
+		for j, v := range u.z[i*u.n : i*u.n+u.n] {
+			row[j] = u.dc[i] * v
+		}
+		return
+	}
 	clear(u.re)
 	clear(u.im)
 	u.re[i] = u.dc[i]
