@@ -204,7 +204,7 @@ func BenchmarkEngines(b *testing.B) {
 						}
 						t1 := time.Now()
 						for j := range 100 {
-							if _, ok := ev.at(freqs[(k*100+j)%points]); !ok {
+							if _, ok := ev.at(freqs[(k*100+j)%points], nil); !ok {
 								b.Fatal("zero pivot")
 							}
 						}
@@ -318,7 +318,7 @@ func TestReducedSweepStreams(t *testing.T) {
 		freqs, _ := LinearGrid(1e6, 1e9, points)
 		var before, after runtime.MemStats
 		runtime.ReadMemStats(&before)
-		if _, err := r.sweep(nw, freqs, ref, []string{nw.Names[0]}, func(Point) error { return nil }); err != nil {
+		if _, err := r.sweep(nw, freqs, ref, []string{nw.Names[0]}, func(Point) error { return nil }, nil); err != nil {
 			t.Fatal(err)
 		}
 		runtime.ReadMemStats(&after)
@@ -371,7 +371,7 @@ func BenchmarkForms(b *testing.B) {
 					for k := range 5 {
 						t0 := time.Now()
 						for j := range per {
-							if _, ok := ev.at(1e9 + float64(k*per+j)*1e5); !ok {
+							if _, ok := ev.at(1e9 + float64(k*per+j)*1e5, nil); !ok {
 								b.Fatal("zero pivot")
 							}
 						}

@@ -232,7 +232,7 @@ func (r *reduction) sweepAccurate(nw *smallsignal.Network, ref []float64, probes
 	}
 	ev := r.points(nw, ref, probes)
 	for _, hz := range checkFrequencies(lo, hi) {
-		p, ok := ev.at(hz)
+		p, ok := ev.at(hz, nil)
 		if !ok || pointsDiffer(p, r.refinedPoint(nw, ref, idx, hz), checkRel, checkFloor) != "" {
 			return false
 		}
@@ -403,7 +403,7 @@ func groupDelayPort(ports int) int {
 
 // at returns the point at hz, and false where the Hessenberg elimination
 // meets a zero pivot.
-func (ev *pointEval) at(hz float64) (Point, bool) {
+func (ev *pointEval) at(hz float64, store *pointStore) (Point, bool) {
 	r, ref := ev.r, ev.ref
 	np := len(ev.c)
 	out := groupDelayPort(np)
@@ -415,7 +415,7 @@ func (ev *pointEval) at(hz float64) (Point, bool) {
 	if err != nil {
 		return Point{}, false
 	}
-	pt := newPoint(hz, np)
+	pt := store.point(hz, np, len(ev.prow))
 	for j := range ev.y {
 		copy(ev.y[j], ev.c[j])
 	}
@@ -498,13 +498,13 @@ func (ev *pointEval) adjointT(c, y []complex128) complex128 {
 // returns how many it visited. It stops early, without an error, at a
 // point it cannot take (a frequency out of range, a zero pivot), for the
 // LU to carry on from there; visit's error is returned.
-func (r *reduction) sweep(nw *smallsignal.Network, freqsHz []float64, ref []float64, probes []string, visit func(Point) error) (int, error) {
+func (r *reduction) sweep(nw *smallsignal.Network, freqsHz []float64, ref []float64, probes []string, visit func(Point) error, store *pointStore) (int, error) {
 	ev := r.points(nw, ref, probes)
 	for k, hz := range freqsHz {
 		if CheckFrequency(hz) != nil {
 			return k, nil
 		}
-		pt, ok := ev.at(hz)
+		pt, ok := ev.at(hz, store)
 		if !ok {
 			return k, nil
 		}

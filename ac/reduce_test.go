@@ -333,7 +333,7 @@ func TestReducedSweepHandsOver(t *testing.T) {
 		t.Fatal(err)
 	}
 	visited := 0
-	done, err := r.sweep(nw, []float64{1e6, 1e7, 0, 1e9}, ref, nil, func(Point) error { visited++; return nil })
+	done, err := r.sweep(nw, []float64{1e6, 1e7, 0, 1e9}, ref, nil, func(Point) error { visited++; return nil }, nil)
 	if done != 2 || visited != 2 || err != nil {
 		t.Errorf("reduced sweep over 1 MHz, 10 MHz, 0 Hz, 1 GHz: stopped after %d points (%d visited), error %v; want 2, 2, nil", done, visited, err)
 	}
@@ -811,7 +811,7 @@ func TestSchurSweep(t *testing.T) {
 		}
 		passed++
 		var red []Point
-		if _, err := r.sweep(nw, freqs, ref, s.Probes, func(p Point) error { red = append(red, p); return nil }); err != nil {
+		if _, err := r.sweep(nw, freqs, ref, s.Probes, func(p Point) error { red = append(red, p); return nil }, nil); err != nil {
 			t.Fatal(err)
 		}
 		lu := sweepWith(t, nw, freqs, s, engineLU)

@@ -120,11 +120,14 @@ func (ws *Workspace) sweep(nw *smallsignal.Network, freqs []float64, s Settings,
 	}
 	ws.ports = ports
 
+	// A reservation serves this sweep alone.
+	defer func() { ws.store = pointStore{} }()
+
 	// The reduced engine takes the points it can; the LU the rest.
 	done := 0
 	if r := sweepEngine(nw, freqs, ref, probes, choice); r != nil {
 		var err error
-		if done, err = r.sweep(nw, freqs, ref, probes, visit); err != nil || done == len(freqs) {
+		if done, err = r.sweep(nw, freqs, ref, probes, visit, &ws.store); err != nil || done == len(freqs) {
 			return ports, probes, err
 		}
 	}
@@ -154,7 +157,7 @@ func (ws *Workspace) sweep(nw *smallsignal.Network, freqs []float64, s Settings,
 		if err := f.factor(); err != nil {
 			return ports, probes, fmt.Errorf("at %g Hz: %w", hz, err)
 		}
-		pt := newPointWithProbes(hz, np, len(probes))
+		pt := ws.store.point(hz, np, len(probes))
 		for j := 0; j < np; j++ {
 			nw.Excitation(j, 1, x[j])
 			f.solve(x[j])
@@ -217,8 +220,14 @@ func newPoint(hz float64, np int) Point { return newPointWithProbes(hz, np, 0) }
 // probes in the same block: Probes is empty with that capacity (nil when
 // there are none), ready to be appended to.
 func newPointWithProbes(hz float64, np, probes int) Point {
-	block := make([]complex128, np*np+np+probes)
-	pt := Point{FrequencyHz: hz, S: make([][]complex128, np), InputImpedance: block[np*np : np*np+np : np*np+np]}
+	return layoutPoint(hz, np, probes, make([]complex128, np*np+np+probes), make([][]complex128, np))
+}
+
+// layoutPoint returns a Point whose S rows, input impedances and probe
+// voltages (empty, with room for probes) live in block, which holds
+// np² + np + probes numbers, with rows (np of them) for S.
+func layoutPoint(hz float64, np, probes int, block []complex128, rows [][]complex128) Point {
+	pt := Point{FrequencyHz: hz, S: rows, InputImpedance: block[np*np : np*np+np : np*np+np]}
 	for i := range pt.S {
 		pt.S[i] = block[i*np : (i+1)*np : (i+1)*np]
 	}
@@ -226,4 +235,24 @@ func newPointWithProbes(hz float64, np, probes int) Point {
 		pt.Probes = block[np*np+np : np*np+np : np*np+np+probes]
 	}
 	return pt
+}
+
+// pointStore hands out points carved in turn from blocks reserved for
+// many of them, so that a caller keeping every point of many short sweeps
+// (a study) makes two allocations per sweep instead of two per point.
+// With nothing reserved, or the reservation used up, each point gets
+// blocks of its own (newPointWithProbes). A nil store reserves nothing.
+type pointStore struct {
+	data []complex128
+	rows [][]complex128
+}
+
+func (ps *pointStore) point(hz float64, np, probes int) Point {
+	size := np*np + np + probes
+	if ps == nil || len(ps.data) < size || len(ps.rows) < np {
+		return newPointWithProbes(hz, np, probes)
+	}
+	block, rows := ps.data[:size:size], ps.rows[:np:np]
+	ps.data, ps.rows = ps.data[size:], ps.rows[np:]
+	return layoutPoint(hz, np, probes, block, rows)
 }

@@ -22,6 +22,7 @@ type Workspace struct {
 	gdc     mat.Dense // G with the DC blocks open
 
 	// Sweep.
+	store     pointStore // points reserved for the next sweep (ReservePoints)
 	reference []float64
 	ports     []PortInfo
 	solutions [][]complex128 // one per port's excitation
@@ -39,6 +40,20 @@ type Workspace struct {
 	firstB      []complex128 // and at f2
 	second      []complex128 // second harmonic junction phasor
 	parts       []Contribution
+}
+
+// ReservePoints makes one allocation for the next Sweep's points: room for
+// points points of ports ports and probes probe voltages each. The points
+// that Sweep hands out are then carved from it, still the caller's to
+// keep, instead of each having its own: a study keeping every point of
+// its steps' short sweeps allocates per step, not per point. The
+// reservation serves the next Sweep alone; what it does not use is
+// dropped.
+func (ws *Workspace) ReservePoints(points, ports, probes int) {
+	ws.store = pointStore{
+		data: make([]complex128, points*(ports*ports+ports+probes)),
+		rows: make([][]complex128, points*ports),
+	}
 }
 
 // factorization returns the workspace's LU for n unknowns.

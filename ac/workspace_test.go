@@ -88,3 +88,48 @@ func TestWorkspaceMatchesPackage(t *testing.T) {
 		}
 	}
 }
+
+// TestReservePoints: points carved from a reservation equal points of
+// their own, on the LU and on the reduced engine, a reservation too small
+// or for the wrong shape falls back to points of their own, and a
+// reserved sweep of many points makes a few allocations, not two per
+// point.
+func TestReservePoints(t *testing.T) {
+	long, err := LogGrid(10e6, 6e9, 20)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, nw := range []*smallsignal.Network{network(t, diodeLadder(2)), network(t, diodeLadder(12))} {
+		var want []Point
+		if _, _, err := Sweep(nw, long, Settings{}, func(p Point) error { want = append(want, p); return nil }); err != nil {
+			t.Fatal(err)
+		}
+		np, probes := len(nw.Ports), len(nw.Point.Circuit.Probes)
+		var ws Workspace
+		for _, reserve := range [][3]int{{len(long), np, probes}, {len(long) / 2, np, probes}, {len(long), np + 1, 0}} {
+			ws.ReservePoints(reserve[0], reserve[1], reserve[2])
+			var got []Point
+			if _, _, err := ws.Sweep(nw, long, Settings{}, func(p Point) error { got = append(got, p); return nil }); err != nil {
+				t.Fatal(err)
+			}
+			if g, w := fmt.Sprint(got), fmt.Sprint(want); g != w {
+				t.Fatalf("n = %d, reserved %v: the points differ:\n%s\nagainst\n%s", nw.N, reserve, g, w)
+			}
+		}
+		keep := make([]Point, 0, len(long))
+		visit := func(p Point) error { keep = append(keep, p); return nil }
+		plain := testing.AllocsPerRun(5, func() {
+			keep = keep[:0]
+			ws.Sweep(nw, long, Settings{}, visit)
+		})
+		reserved := testing.AllocsPerRun(5, func() {
+			keep = keep[:0]
+			ws.ReservePoints(len(long), np, probes)
+			ws.Sweep(nw, long, Settings{}, visit)
+		})
+		t.Logf("n = %d, %d points: %.0f allocations a sweep, %.0f reserved", nw.N, len(long), plain, reserved)
+		if reserved > plain-float64(len(long)) {
+			t.Errorf("n = %d: a reserved sweep made %.0f allocations against %.0f", nw.N, reserved, plain)
+		}
+	}
+}

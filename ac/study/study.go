@@ -300,6 +300,7 @@ func runStep(c *circuit.Circuit, s Settings, i, j int, prev *bias.Point, st *Ste
 	}
 	if len(nw.Ports) > 0 && len(freqs) > 0 {
 		st.Responses = make([]Response, 0, len(freqs))
+		ws.ac.ReservePoints(len(freqs), len(nw.Ports), len(nw.Point.Circuit.Probes))
 		_, _, err := ws.ac.Sweep(nw, freqs, ac.Settings{}, func(pt ac.Point) error {
 			st.Responses = append(st.Responses, Response{pt.FrequencyHz, pt.S, pt.InputImpedance, pt.Probes})
 			return nil
