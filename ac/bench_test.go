@@ -371,7 +371,7 @@ func BenchmarkForms(b *testing.B) {
 					for k := range 5 {
 						t0 := time.Now()
 						for j := range per {
-							if _, ok := ev.at(1e9 + float64(k*per+j)*1e5, nil); !ok {
+							if _, ok := ev.at(1e9+float64(k*per+j)*1e5, nil); !ok {
 								b.Fatal("zero pivot")
 							}
 						}
