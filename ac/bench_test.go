@@ -139,6 +139,8 @@ var sink complex128
 //   - sweep-ns/pt: the same timed end to end, one sweep through Sweep's
 //     own path (more exposed to load: one long interval);
 //   - speedup: lu-ns/pt over reduced-ns/pt;
+//   - form: the reduction's form (0 shifted Hessenberg, 1 shifted Schur,
+//     2 Hessenberg-triangular);
 //   - point/matvec and pt/matvec: point-ns and reduced-ns/pt over
 //     matvec-ns.
 //
@@ -185,6 +187,7 @@ func BenchmarkEngines(b *testing.B) {
 					return r
 				}
 				var lu, pt, mv, mvGo, sw, setups []float64
+				var form reductionForm
 				for b.Loop() {
 					var tSetup []float64
 					var r *reduction
@@ -193,6 +196,7 @@ func BenchmarkEngines(b *testing.B) {
 						r = setup()
 						tSetup = append(tSetup, float64(time.Since(t0).Nanoseconds()))
 					}
+					form = r.form
 					ev := r.points(nw, ref, s.Probes)
 					var tLU, tPt, tMV, tGo time.Duration
 					nLU, nPt, nMV := 0, 0, 0
@@ -238,6 +242,7 @@ func BenchmarkEngines(b *testing.B) {
 					setups = append(setups, median(tSetup))
 				}
 				luM, ptM, mvM, setupM := median(lu), median(pt), median(mv), median(setups)
+				b.ReportMetric(float64(form), "form")
 				red := ptM + setupM/points
 				b.ReportMetric(luM, "lu-ns/pt")
 				b.ReportMetric(ptM, "point-ns")

@@ -5,11 +5,13 @@
 // Response. At each angular frequency w the network Y(jw) = G + jwC
 // (package smallsignal) is solved for every port's excitation. A sweep of
 // few points, or of a small network, factors Y(jw) by dense complex LU at
-// each point; a long sweep of a larger network first reduces (G, C) once to
-// Hessenberg-triangular form (QR of C, then LAPACK's Dgghrd from gonum) and
-// then costs O(n²) per point (Laub, "Efficient multivariable frequency
-// response computations", IEEE Trans. Automatic Control 26(2), 1981). The
-// reduced engine is used only where a check at three frequencies shows it
+// each point; a long sweep of a larger network first reduces (G, C) once,
+// L (G + sC) R = H + sT with H, T real, and then costs O(n²) per point
+// (Laub, "Efficient multivariable frequency response computations", IEEE
+// Trans. Automatic Control 26(2), 1981): through a real shift σ, to the
+// Schur or Hessenberg form of (G + σC)⁻¹C (gonum's Dhseqr, Dgehrd), or to
+// Hessenberg-triangular form (QR of C, then Dgghrd). A reduced form is used
+// only where a check at one frequency per decade (at least three) shows it
 // agrees with iterative refinement to 1e-10. S-parameters use power waves
 // with real reference impedances Z0i: with port j driven by a generator of
 // EMF E behind Z0j and every port terminated,

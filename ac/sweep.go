@@ -65,10 +65,11 @@ func Run(nw *smallsignal.Network, freqs []float64, s Settings) (*Response, error
 // stops the sweep and is returned.
 //
 // Each point costs O(n³) by a dense LU of Y(jw), or O(n²) after a one-time
-// reduction of (G, C) to Hessenberg-triangular form (Laub, IEEE Trans.
-// Automatic Control 26(2), 1981); the sweep takes the reduction when the
-// point count repays it and its accuracy check passes, and the LU
-// otherwise. Either way it holds O(n²) numbers whatever the point count.
+// reduction of (G, C) to a pair of real Hessenberg (or Schur) matrices
+// (Laub, IEEE Trans. Automatic Control 26(2), 1981; see reduction); the
+// sweep takes the reduction when the point count repays it and its
+// accuracy check passes, and the LU otherwise. Either way it holds O(n²)
+// numbers whatever the point count.
 func Sweep(nw *smallsignal.Network, freqs []float64, s Settings, visit func(Point) error) ([]PortInfo, []string, error) {
 	return sweep(nw, freqs, s, visit, engineAuto)
 }

@@ -7,6 +7,7 @@ import (
 	"math/cmplx"
 	"runtime"
 	"sync"
+	"sync/atomic"
 
 	"qpoint/ac"
 	"qpoint/bias"
@@ -178,7 +179,9 @@ func Run(c *circuit.Circuit, s Settings) (*Result, error) {
 	if workers <= 0 {
 		workers = runtime.GOMAXPROCS(0)
 	}
-	work := make(chan chain)
+	// Workers take the next chain by an atomic counter: no goroutine hands
+	// chains out, so a worker never waits for one to be scheduled.
+	var next atomic.Int64
 	var wg sync.WaitGroup
 	var mu sync.Mutex
 	done := 0
@@ -187,7 +190,12 @@ func Run(c *circuit.Circuit, s Settings) (*Result, error) {
 		go func() {
 			defer wg.Done()
 			var ws workspace
-			for ch := range work {
+			for {
+				k := int(next.Add(1)) - 1
+				if k >= len(chains) {
+					return
+				}
+				ch := chains[k]
 				var prev *bias.Point
 				for i := ch.from; i < ch.to; i++ {
 					st := res.At(i, ch.j)
@@ -202,10 +210,6 @@ func Run(c *circuit.Circuit, s Settings) (*Result, error) {
 			}
 		}()
 	}
-	for _, ch := range chains {
-		work <- ch
-	}
-	close(work)
 	wg.Wait()
 	for i := range res.Steps {
 		res.Newton += res.Steps[i].Iterations

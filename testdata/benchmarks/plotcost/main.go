@@ -1,7 +1,8 @@
 // Command plotcost draws BENCHMARKS.md's figure: the cost of one sweep
 // point against the number of unknowns n, on log-log axes, for the dense
-// LU and the reduced (Hessenberg-triangular) engine, with one n×n complex
-// matrix-vector product as the O(n²) floor. It reads the output of
+// LU and the reduced engine (in whichever form its choice takes), with one
+// n×n complex matrix-vector product as the O(n²) floor. It reads the
+// output of
 //
 //	go test -run '^$' -bench Engines -benchtime 1x -count 5 ./ac/
 //
