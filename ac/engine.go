@@ -172,6 +172,19 @@ func (r *reduction) refine(w float64, b []complex128) []complex128 {
 	return x
 }
 
+// refineT is refine for the transpose, Y(jw)ᵀ z = b.
+func (r *reduction) refineT(w float64, b []complex128) []complex128 {
+	z := append([]complex128(nil), b...)
+	r.solveT(z)
+	d := make([]complex128, r.n)
+	r.pencil.residualT(w, b, z, d)
+	r.solveT(d)
+	for i := range z {
+		z[i] += d[i]
+	}
+	return z
+}
+
 // refinedPoint computes Sweep's point at hz from refined solutions (see
 // refine): the reference the reduced engine's own points are checked
 // against. The reduction must be factored at hz.
@@ -516,22 +529,45 @@ func (r *reduction) sweep(nw *smallsignal.Network, freqsHz []float64, ref []floa
 }
 
 // solveAccurate reports whether the reduced engine's solutions of
-// Y(jw) x = b for each port's excitation agree with refined ones to
-// checkRel in every unknown, with a floor of checkFloor times the largest,
-// at the check frequencies of [lo, hi] Hz: the check for analyses that use
-// whole solution vectors.
+// Y(jw) x = b for each port's excitation, and of Y(jw) x = 1 and
+// Y(jw)ᵀ z = 1 for a vector of ones, agree with refined ones to checkRel
+// in every unknown, with a floor of checkFloor times the largest, at the
+// check frequencies of [lo, hi] Hz: the check for analyses that use whole
+// solution vectors (Volterra products, noise's adjoint).
 func (r *reduction) solveAccurate(nw *smallsignal.Network, lo, hi float64) bool {
-	b := make([]complex128, r.n)
+	// Right-hand sides: each port's excitation, solved plainly, and a
+	// vector of ones (touching every unknown, as an adjoint's output
+	// selector and a product's sources may), solved both ways.
+	type rhs struct {
+		b         []complex128
+		transpose bool
+	}
+	var cases []rhs
+	for j := range nw.Ports {
+		b := make([]complex128, r.n)
+		nw.Excitation(j, 1, b)
+		cases = append(cases, rhs{b, false})
+	}
+	ones := make([]complex128, r.n)
+	for i := range ones {
+		ones[i] = 1
+	}
+	cases = append(cases, rhs{ones, false}, rhs{ones, true})
 	for _, hz := range checkFrequencies(lo, hi) {
 		w := 2 * math.Pi * hz
 		if r.factor(w) != nil {
 			return false
 		}
-		for j := range nw.Ports {
-			nw.Excitation(j, 1, b)
-			x := append([]complex128(nil), b...)
-			r.solve(x)
-			xr := r.refine(w, b)
+		for _, c := range cases {
+			x := append([]complex128(nil), c.b...)
+			var xr []complex128
+			if c.transpose {
+				r.solveT(x)
+				xr = r.refineT(w, c.b)
+			} else {
+				r.solve(x)
+				xr = r.refine(w, c.b)
+			}
 			big := 0.0
 			for _, v := range xr {
 				big = math.Max(big, cmplx.Abs(v))

@@ -212,16 +212,19 @@ type noise struct {
 	s       NoiseSettings
 	sources []NoiseSource
 	out     []complex128
-	f       *lu
+	sys     solver // Y(jw) at the noise frequencies: the reduction or the LU
 	z       []complex128
 	outPort int
 }
 
-func newNoise(nw *smallsignal.Network, s NoiseSettings) (*noise, error) {
+// newNoise sets up the noise analysis of nw at freqs (in hertz): the
+// solver is the sweep engines' choice for that many points over their
+// range (newSolver), choice forcing one.
+func newNoise(nw *smallsignal.Network, s NoiseSettings, freqs []float64, choice engine) (*noise, error) {
 	if s.Input >= len(nw.Ports) || s.Input < -1 {
 		return nil, fmt.Errorf("input port %d: the circuit has %d ports", s.Input+1, len(nw.Ports))
 	}
-	v := &noise{nw: nw, s: s, sources: NoiseSources(nw), out: make([]complex128, nw.N), f: newLU(nw.N),
+	v := &noise{nw: nw, s: s, sources: NoiseSources(nw), out: make([]complex128, nw.N),
 		z: make([]complex128, nw.N), outPort: -1}
 	if s.Output.Port >= 0 {
 		if s.Output.Port >= len(nw.Ports) {
@@ -245,6 +248,7 @@ func newNoise(nw *smallsignal.Network, s NoiseSettings) (*noise, error) {
 		}
 		v.out[i] = 1
 	}
+	v.sys = newSolver(nw, freqs, choice)
 	return v, nil
 }
 
@@ -253,14 +257,12 @@ func (v *noise) at(hz float64) (NoisePoint, error) {
 	if err := CheckFrequency(hz); err != nil {
 		return NoisePoint{}, err
 	}
-	g, c := v.nw.G.RawMatrix(), v.nw.C.RawMatrix()
-	v.f.load(g.Data, c.Data, g.Stride, c.Stride, 2*math.Pi*hz)
-	if err := v.f.factor(); err != nil {
+	if err := v.sys.at(2 * math.Pi * hz); err != nil {
 		return NoisePoint{}, fmt.Errorf("at %g Hz: %w", hz, err)
 	}
 	z := v.z
 	copy(z, v.out)
-	v.f.solveT(z)
+	v.sys.solveT(z)
 	pt := NoisePoint{FrequencyHz: hz, Contributions: make([]float64, len(v.sources))}
 	for k, s := range v.sources {
 		t := at(z, s.a) - at(z, s.b)
@@ -297,8 +299,16 @@ func (v *noise) at(hz float64) (NoisePoint, error) {
 // The same vector gives the gain from the input generator's EMF,
 // V_out/E = (z_node - z_return)/Z0, and from it the noise figure with the
 // input termination at T0 = 290 K.
+//
+// The adjoint solves run on the sweep engines (newSolver): the reduced
+// engine for long sweeps of larger networks where it passes its check,
+// the dense LU otherwise.
 func Noise(nw *smallsignal.Network, freqs []float64, s NoiseSettings) (*NoiseResult, error) {
-	v, err := newNoise(nw, s)
+	return noiseSweep(nw, freqs, s, engineAuto)
+}
+
+func noiseSweep(nw *smallsignal.Network, freqs []float64, s NoiseSettings, choice engine) (*NoiseResult, error) {
+	v, err := newNoise(nw, s, freqs, choice)
 	if err != nil {
 		return nil, err
 	}
@@ -379,7 +389,13 @@ func IntegrateNoise(nw *smallsignal.Network, s NoiseSettings, fromHz, toHz float
 	if err := checkRange(fromHz, toHz); err != nil {
 		return nil, err
 	}
-	v, err := newNoise(nw, s)
+	// The solver is chosen for the first, coarsest grid; the finer ones
+	// span the same range.
+	first, err := LogGrid(fromHz, toHz, bandStartPerDecade)
+	if err != nil {
+		return nil, err
+	}
+	v, err := newNoise(nw, s, first, engineAuto)
 	if err != nil {
 		return nil, err
 	}
@@ -491,18 +507,20 @@ func VideoSensitivity(nw *smallsignal.Network, s NoiseSettings, carrierHz float6
 	if err := CheckFrequency(carrierHz); err != nil {
 		return nil, err
 	}
-	v, err := newNoise(nw, s)
+	// A handful of video frequencies and DC: the dense LU throughout.
+	v, err := newNoise(nw, s, nil, engineLU)
 	if err != nil {
 		return nil, err
 	}
+	f := newLU(nw.N)
 	g, c := nw.G.RawMatrix(), nw.C.RawMatrix()
-	v.f.load(g.Data, c.Data, g.Stride, c.Stride, 2*math.Pi*carrierHz)
-	if err := v.f.factor(); err != nil {
+	f.load(g.Data, c.Data, g.Stride, c.Stride, 2*math.Pi*carrierHz)
+	if err := f.factor(); err != nil {
 		return nil, fmt.Errorf("at %g Hz: %w", carrierHz, err)
 	}
 	x := make([]complex128, nw.N)
 	nw.Excitation(s.Input, 1, x)
-	v.f.solve(x)
+	f.solve(x)
 	perWatt := 8 * nw.Ports[s.Input].Impedance
 	rect := make([]float64, len(nw.Diodes))
 	for k, d := range nw.Diodes {
@@ -513,19 +531,19 @@ func VideoSensitivity(nw *smallsignal.Network, s NoiseSettings, carrierHz float6
 	zeros := make([]float64, nw.N*nw.N)
 	for i, hz := range freqs {
 		if hz == 0 {
-			v.f.load(gdc.Data, zeros, gdc.Stride, nw.N, 0)
+			f.load(gdc.Data, zeros, gdc.Stride, nw.N, 0)
 		} else {
 			if err := CheckFrequency(hz); err != nil {
 				return nil, err
 			}
-			v.f.load(g.Data, c.Data, g.Stride, c.Stride, 2*math.Pi*hz)
+			f.load(g.Data, c.Data, g.Stride, c.Stride, 2*math.Pi*hz)
 		}
-		if err := v.f.factor(); err != nil {
+		if err := f.factor(); err != nil {
 			return nil, fmt.Errorf("at %g Hz: %w", hz, err)
 		}
 		z := v.z
 		copy(z, v.out)
-		v.f.solveT(z)
+		f.solveT(z)
 		for k, d := range nw.Diodes {
 			out[i] += complex(rect[k], 0) * (at(z, d.Cathode) - at(z, d.Junction))
 		}

@@ -331,6 +331,17 @@ func (p *pencil) residual(w float64, b, x, d []complex128) {
 	}
 }
 
+// residualT sets d = b - (G + jwC)ᵀ x.
+func (p *pencil) residualT(w float64, b, x, d []complex128) {
+	copy(d[:p.n], b)
+	for i := 0; i < p.n; i++ {
+		xi := x[i]
+		for k := p.start[i]; k < p.start[i+1]; k++ {
+			d[p.col[k]] -= complex(p.g[k], w*p.c[k]) * xi
+		}
+	}
+}
+
 // mulC sets d = C x.
 func (p *pencil) mulC(x, d []complex128) {
 	for i := 0; i < p.n; i++ {
