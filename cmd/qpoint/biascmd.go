@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"strings"
 
 	"github.com/spf13/cobra"
 
@@ -83,6 +84,41 @@ func loadCircuit(path string) (*circuit.Circuit, error) {
 }
 
 func celsius(k float64) float64 { return k - diode.ZeroCelsius }
+
+// maxListedDiodes is the most diodes a command's header names one by one;
+// beyond it the header gives their count and current range.
+const maxListedDiodes = 6
+
+// biasLine returns the header line that says how the bias was solved and
+// where the diodes sit: each diode's current, or for many diodes their
+// count and the least and greatest current.
+func biasLine(p *bias.Point) string {
+	var b strings.Builder
+	fmt.Fprintf(&b, "solved at %.2f °C by %s", celsius(p.TemperatureK), p.Stats.Strategy)
+	if len(p.Diodes) <= maxListedDiodes {
+		for _, d := range p.Diodes {
+			fmt.Fprintf(&b, "; %s at %s", d.Name, si.Format(d.Current, "A", 3))
+		}
+		return b.String()
+	}
+	lo, hi := p.Diodes[0], p.Diodes[0]
+	for _, d := range p.Diodes[1:] {
+		if d.Current < lo.Current {
+			lo = d
+		}
+		if d.Current > hi.Current {
+			hi = d
+		}
+	}
+	least, most := si.Format(lo.Current, "A", 3), si.Format(hi.Current, "A", 3)
+	if least == most {
+		fmt.Fprintf(&b, "; %d diodes, each at %s", len(p.Diodes), least)
+	} else {
+		fmt.Fprintf(&b, "; %d diodes from %s (%s) to %s (%s)", len(p.Diodes), least, lo.Name, most, hi.Name)
+	}
+	b.WriteString("; the bias command lists them all")
+	return b.String()
+}
 
 // writeBias prints the operating point as tables.
 func writeBias(w io.Writer, p *bias.Point) {

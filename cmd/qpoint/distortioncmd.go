@@ -358,11 +358,7 @@ type frequencyRow struct {
 func writeDistortionHeader(w io.Writer, s *distortionSetup) {
 	fmt.Fprintf(w, "%s\n", s.c.Name)
 	fmt.Fprintf(w, "  file         %s\n", s.c.File)
-	fmt.Fprintf(w, "  bias         solved at %.2f °C by %s", celsius(s.p.TemperatureK), s.p.Stats.Strategy)
-	for _, d := range s.p.Diodes {
-		fmt.Fprintf(w, "; %s at %s", d.Name, si.Format(d.Current, "A", 3))
-	}
-	fmt.Fprintln(w)
+	fmt.Fprintf(w, "  bias         %s\n", biasLine(s.p))
 	z0 := s.c.Ports[s.drive.Input].Impedance
 	fmt.Fprintf(w, "  drive        port %s, %s, %.2f dBm available (EMF %s peak behind %s)\n", s.inName,
 		si.Format(s.drive.FrequencyHz, "Hz", 6), s.levelDBm, si.Format(s.drive.EMF, "V", 4), si.Format(z0, "Ω", 4))

@@ -5,7 +5,9 @@ import (
 	"encoding/json"
 	"os"
 	"path/filepath"
+	"qpoint/bias"
 	"regexp"
+	"strconv"
 	"strings"
 	"testing"
 )
@@ -196,5 +198,31 @@ func TestOutputNeverOverwritesInput(t *testing.T) {
 	after, _ := os.ReadFile(in)
 	if !bytes.Equal(after, src) {
 		t.Error("the input file changed")
+	}
+}
+
+// TestBiasLine: a command's header names up to six diodes with their
+// currents, and gives many diodes' count and current range instead.
+func TestBiasLine(t *testing.T) {
+	p := &bias.Point{TemperatureK: 300.15}
+	p.Stats.Strategy = bias.Newton
+	for k := 0; k < 3; k++ {
+		p.Diodes = append(p.Diodes, bias.Diode{Name: "D" + strconv.Itoa(k+1), Current: 1e-3 * float64(k+1)})
+	}
+	if got, want := biasLine(p), "solved at 27.00 °C by newton; D1 at 1 mA; D2 at 2 mA; D3 at 3 mA"; got != want {
+		t.Errorf("three diodes: %q, want %q", got, want)
+	}
+	p.Diodes = nil
+	for k := 0; k < 9; k++ {
+		p.Diodes = append(p.Diodes, bias.Diode{Name: "D" + strconv.Itoa(k+1), Current: 1e-3 * float64((k+4)%9+1)})
+	}
+	if got, want := biasLine(p), "solved at 27.00 °C by newton; 9 diodes from 1 mA (D6) to 9 mA (D5); the bias command lists them all"; got != want {
+		t.Errorf("nine diodes: %q, want %q", got, want)
+	}
+	for k := range p.Diodes {
+		p.Diodes[k].Current = 2e-3
+	}
+	if got, want := biasLine(p), "solved at 27.00 °C by newton; 9 diodes, each at 2 mA; the bias command lists them all"; got != want {
+		t.Errorf("nine equal diodes: %q, want %q", got, want)
 	}
 }

@@ -425,11 +425,7 @@ func temperatureText(k float64) string {
 func writeNoiseHeader(w io.Writer, s *noiseSetup) {
 	fmt.Fprintf(w, "%s\n", s.c.Name)
 	fmt.Fprintf(w, "  file         %s\n", s.c.File)
-	fmt.Fprintf(w, "  bias         solved at %.2f °C by %s", celsius(s.p.TemperatureK), s.p.Stats.Strategy)
-	for _, d := range s.p.Diodes {
-		fmt.Fprintf(w, "; %s at %s", d.Name, si.Format(d.Current, "A", 3))
-	}
-	fmt.Fprintln(w)
+	fmt.Fprintf(w, "  bias         %s\n", biasLine(s.p))
 	for _, line := range noiseSetupLines(s) {
 		fmt.Fprintf(w, "  %-12s %s\n", line[0], line[1])
 	}

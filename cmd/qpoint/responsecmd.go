@@ -289,11 +289,7 @@ func formatImpedance(z complex128) string {
 func writeResponseTable(w io.Writer, c *circuit.Circuit, p *bias.Point, r *ac.Response, rows int) {
 	fmt.Fprintf(w, "%s\n", c.Name)
 	fmt.Fprintf(w, "  file         %s\n", c.File)
-	fmt.Fprintf(w, "  bias         solved at %.2f °C by %s", celsius(p.TemperatureK), p.Stats.Strategy)
-	for _, d := range p.Diodes {
-		fmt.Fprintf(w, "; %s at %s", d.Name, si.Format(d.Current, "A", 3))
-	}
-	fmt.Fprintln(w)
+	fmt.Fprintf(w, "  bias         %s\n", biasLine(p))
 	var ports []string
 	for _, port := range r.Ports {
 		ports = append(ports, fmt.Sprintf("%s (%s)", port.Name, si.Format(port.Impedance, "Ω", 4)))
