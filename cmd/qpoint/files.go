@@ -58,6 +58,21 @@ func writeFileAtomic(path string, write func(w io.Writer) error) (err error) {
 	return nil
 }
 
+// refuseInputs fails when any of paths ("" skipped) names one of the
+// command's input files: a command with several outputs checks them all
+// before it writes any, so that a refusal leaves none behind.
+func refuseInputs(paths ...string) error {
+	for _, p := range paths {
+		if p == "" {
+			continue
+		}
+		if err := refuseInput(p); err != nil {
+			return err
+		}
+	}
+	return nil
+}
+
 // refuseInput fails when path names one of the command's input files.
 func refuseInput(path string) error {
 	out, err := os.Stat(path)

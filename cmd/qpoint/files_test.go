@@ -223,9 +223,8 @@ func TestNoCommandWritesItsInput(t *testing.T) {
 			return l, os.Link(in, l)
 		}},
 	}
-	// sameFiles: the folder must hold what it held before; for figures,
-	// those written before the one that would overwrite the input may
-	// stay, but no temporary file.
+	// sameFiles: the folder must hold what it held before, and no
+	// temporary file: every output is checked before any is written.
 	check := func(t *testing.T, dir, in string, args []string, why string, sameFiles bool) {
 		t.Helper()
 		before := dirEntries(t, dir)
@@ -277,6 +276,14 @@ func TestNoCommandWritesItsInput(t *testing.T) {
 	}{
 		{"response --plots", "smith.svg", func(in, dir string) []string { return []string{"response", in, "--per-decade", "5", "--plots", dir} }},
 		{"noise --plots", "noise-density.csv", func(in, dir string) []string { return []string{"noise", in, "--plots", dir} }},
+		// The last file written: everything before it would be left.
+		{"noise --plots", "noise-contributions.png", func(in, dir string) []string { return []string{"noise", in, "--plots", dir} }},
+		{"response --plots --csv", "smith.png", func(in, dir string) []string {
+			return []string{"response", in, "--per-decade", "5", "--csv", filepath.Join(dir, "r.csv"), "--plots", dir}
+		}},
+		{"study --plots --csv", "study.png", func(in, dir string) []string {
+			return []string{"study", in, "--steps", "3", "--csv", filepath.Join(dir, "s.csv"), "--plots", dir}
+		}},
 	}
 	for _, f := range figures {
 		t.Run(f.name+"/input named "+f.file, func(t *testing.T) {
@@ -285,7 +292,7 @@ func TestNoCommandWritesItsInput(t *testing.T) {
 			if err := os.WriteFile(in, src, 0o644); err != nil {
 				t.Fatal(err)
 			}
-			check(t, dir, in, f.args(in, dir), refused, false)
+			check(t, dir, in, f.args(in, dir), refused, true)
 		})
 	}
 }

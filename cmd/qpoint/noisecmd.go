@@ -330,6 +330,27 @@ func runNoise(cmd *cobra.Command, path string, fl *noiseFlags) error {
 	if err != nil {
 		return err
 	}
+	// The figures' data go beside them.
+	tables := []struct {
+		name  string
+		write func(io.Writer, *ac.NoiseResult) error
+	}{
+		{"noise-density.csv", writeNoiseDensityCSV},
+		{"noise-contributions.csv", writeNoiseContributionsCSV},
+	}
+	paths := []string{fl.csvPath}
+	var figs []*plots.Figure
+	if fl.plotsDir != "" {
+		figs = noiseFigures(o.r)
+		for _, tb := range tables {
+			paths = append(paths, filepath.Join(fl.plotsDir, tb.name))
+		}
+		paths = append(paths, figurePaths(fl.plotsDir, figs)...)
+	}
+	// Every named output is checked before any is written.
+	if err := refuseInputs(paths...); err != nil {
+		return err
+	}
 	if fl.csvPath != "" {
 		if err := writeFileAtomic(fl.csvPath, func(w io.Writer) error { return writeNoiseCSV(w, o) }); err != nil {
 			return err
@@ -339,15 +360,12 @@ func runNoise(cmd *cobra.Command, path string, fl *noiseFlags) error {
 		if err := os.MkdirAll(fl.plotsDir, 0o755); err != nil {
 			return inputError(fmt.Errorf("flag --plots: %w", err))
 		}
-		for name, write := range map[string]func(io.Writer, *ac.NoiseResult) error{
-			"noise-density.csv":       writeNoiseDensityCSV,
-			"noise-contributions.csv": writeNoiseContributionsCSV,
-		} {
-			if err := writeFileAtomic(filepath.Join(fl.plotsDir, name), func(w io.Writer) error { return write(w, o.r) }); err != nil {
+		for _, tb := range tables {
+			if err := writeFileAtomic(filepath.Join(fl.plotsDir, tb.name), func(w io.Writer) error { return tb.write(w, o.r) }); err != nil {
 				return err
 			}
 		}
-		if err := writeNoisePlots(fl.plotsDir, o.r); err != nil {
+		if err := writeFigures(fl.plotsDir, figs); err != nil {
 			return err
 		}
 	}
@@ -409,10 +427,6 @@ func noiseFigures(r *ac.NoiseResult) []*plots.Figure {
 	return []*plots.Figure{plots.NoiseDensity(freqs, dens, "V/√Hz", floor), plots.NoiseContributions(freqs, names, shares)}
 }
 
-// writeNoisePlots writes the noise figures (SVG and PNG) into dir.
-func writeNoisePlots(dir string, r *ac.NoiseResult) error {
-	return writeFigures(dir, noiseFigures(r))
-}
 
 // temperatureText prints a noise temperature.
 func temperatureText(k float64) string {

@@ -28,13 +28,31 @@ func writeTouchstone(w io.Writer, c *circuit.Circuit, r *ac.Response, f ac.Forma
 	return ac.WriteTouchstone(w, r.Ports, r.Points, f, comment)
 }
 
+// figureFormats are the files each figure is written as.
+var figureFormats = []string{"svg", "png"}
+
+// figurePaths returns the files writeFigures would write.
+func figurePaths(dir string, figs []*plots.Figure) []string {
+	var paths []string
+	for _, f := range figs {
+		for _, format := range figureFormats {
+			paths = append(paths, filepath.Join(dir, f.Name+"."+format))
+		}
+	}
+	return paths
+}
+
 // writeFigures writes each figure as SVG and PNG into dir, creating it.
+// A figure that would overwrite an input stops it before any is written.
 func writeFigures(dir string, figs []*plots.Figure) error {
+	if err := refuseInputs(figurePaths(dir, figs)...); err != nil {
+		return err
+	}
 	if err := os.MkdirAll(dir, 0o755); err != nil {
 		return inputError(fmt.Errorf("flag --plots: %w", err))
 	}
 	for _, f := range figs {
-		for _, format := range []string{"svg", "png"} {
+		for _, format := range figureFormats {
 			path := filepath.Join(dir, f.Name+"."+format)
 			if err := writeFileAtomic(path, func(w io.Writer) error { return plots.Write(w, format, f) }); err != nil {
 				return err
@@ -42,10 +60,6 @@ func writeFigures(dir string, figs []*plots.Figure) error {
 		}
 	}
 	return nil
-}
-
-func writeResponsePlots(dir string, r *ac.Response) error {
-	return writeFigures(dir, plots.ResponseFigures(r))
 }
 
 func writeDistortionPlots(dir string, s *distortionSetup, e *ac.Estimate, st *ac.Steady, sweep []ac.LevelPoint) error {
@@ -76,12 +90,13 @@ func distortionFigures(e *ac.Estimate, st *ac.Steady, sweep []ac.LevelPoint, com
 	return figs
 }
 
-func writeStudyPlots(dir string, r *study.Result, show string) error {
+// studyPlots returns the figures --plots writes for a study.
+func studyPlots(r *study.Result, show string) ([]*plots.Figure, error) {
 	figs := studyFigures(r, show)
 	if len(figs) == 0 {
-		return inputError(fmt.Errorf("flag --show: none of the measures could be drawn"))
+		return nil, inputError(fmt.Errorf("flag --show: none of the measures could be drawn"))
 	}
-	return writeFigures(dir, figs)
+	return figs, nil
 }
 
 // studyFigures returns the study's curves (one varied quantity) or a heat

@@ -16,6 +16,7 @@ import (
 	"qpoint/bias"
 	"qpoint/bias/circuit"
 	"qpoint/bias/si"
+	"qpoint/plots"
 	"qpoint/smallsignal"
 )
 
@@ -202,15 +203,26 @@ func runResponse(cmd *cobra.Command, path string, fl *responseFlags) error {
 	if err != nil {
 		return analysisError(err)
 	}
+	// Every named output is checked before any is written, so that a
+	// refusal leaves none behind.
+	if fl.touchstone != "" {
+		if want := ac.TouchstoneExt(len(r.Ports)); !strings.EqualFold(filepath.Ext(fl.touchstone), want) {
+			return inputError(fmt.Errorf("flag --touchstone: %s has %d ports, so its file should end in %s (got %q)", c.Name, len(r.Ports), want, filepath.Ext(fl.touchstone)))
+		}
+	}
+	var figs []*plots.Figure
+	if fl.plotsDir != "" {
+		figs = plots.ResponseFigures(r)
+	}
+	if err := refuseInputs(append([]string{fl.csvPath, fl.touchstone}, figurePaths(fl.plotsDir, figs)...)...); err != nil {
+		return err
+	}
 	if fl.csvPath != "" {
 		if err := writeFileAtomic(fl.csvPath, func(w io.Writer) error { return writeResponseCSV(w, r) }); err != nil {
 			return err
 		}
 	}
 	if fl.touchstone != "" {
-		if want := ac.TouchstoneExt(len(r.Ports)); !strings.EqualFold(filepath.Ext(fl.touchstone), want) {
-			return inputError(fmt.Errorf("flag --touchstone: %s has %d ports, so its file should end in %s (got %q)", c.Name, len(r.Ports), want, filepath.Ext(fl.touchstone)))
-		}
 		if err := writeFileAtomic(fl.touchstone, func(w io.Writer) error {
 			return writeTouchstone(w, c, r, format)
 		}); err != nil {
@@ -218,7 +230,7 @@ func runResponse(cmd *cobra.Command, path string, fl *responseFlags) error {
 		}
 	}
 	if fl.plotsDir != "" {
-		if err := writeResponsePlots(fl.plotsDir, r); err != nil {
+		if err := writeFigures(fl.plotsDir, figs); err != nil {
 			return err
 		}
 	}

@@ -17,6 +17,7 @@ import (
 	"qpoint/ac/study"
 	"qpoint/bias/circuit"
 	"qpoint/bias/si"
+	"qpoint/plots"
 )
 
 type studyFlags struct {
@@ -394,13 +395,23 @@ func runStudy(cmd *cobra.Command, path string, fl *studyFlags) error {
 		return analysisError(err)
 	}
 	cols := studyColumns(r)
+	var figs []*plots.Figure
+	if fl.plotsDir != "" {
+		if figs, err = studyPlots(r, fl.show); err != nil {
+			return err
+		}
+	}
+	// Every named output is checked before any is written.
+	if err := refuseInputs(append([]string{fl.csvPath}, figurePaths(fl.plotsDir, figs)...)...); err != nil {
+		return err
+	}
 	if fl.csvPath != "" {
 		if err := writeFileAtomic(fl.csvPath, func(w io.Writer) error { return writeStudyCSV(w, r, cols) }); err != nil {
 			return err
 		}
 	}
 	if fl.plotsDir != "" {
-		if err := writeStudyPlots(fl.plotsDir, r, fl.show); err != nil {
+		if err := writeFigures(fl.plotsDir, figs); err != nil {
 			return err
 		}
 	}
