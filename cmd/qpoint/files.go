@@ -6,12 +6,79 @@ import (
 	"fmt"
 	"io"
 	"os"
+	"os/signal"
 	"path/filepath"
+	"sync"
+	"syscall"
 )
 
 // inputs lists the files the current command reads, so that no output is
 // ever written over one of them.
 var inputs []string
+
+// partials holds the temporary files writeFileAtomic is writing, so that
+// an interrupt can remove them (removePartials) instead of leaving them
+// beside the outputs.
+var partials = struct {
+	sync.Mutex
+	names map[string]bool
+}{names: map[string]bool{}}
+
+func addPartial(name string) {
+	partials.Lock()
+	partials.names[name] = true
+	partials.Unlock()
+}
+
+func dropPartial(name string) {
+	partials.Lock()
+	delete(partials.names, name)
+	partials.Unlock()
+}
+
+// removePartials deletes every temporary file still being written and
+// returns how many it removed. It runs on the way out: a write still going
+// fails at its rename, and the process exits.
+func removePartials() int {
+	partials.Lock()
+	defer partials.Unlock()
+	n := 0
+	for name := range partials.names {
+		if os.Remove(name) == nil {
+			n++
+		}
+		delete(partials.names, name)
+	}
+	return n
+}
+
+// exitOnInterrupt makes an interrupt (Ctrl-C) or a termination request
+// remove the temporary files of outputs not yet finished, say so, and exit
+// with the shell's status for that signal (128 + its number). Finished
+// outputs are whole already; unfinished ones are left as they were before
+// the command ran. It returns a function that stops listening.
+func exitOnInterrupt(stderr io.Writer) (stop func()) {
+	ch := make(chan os.Signal, 1)
+	signal.Notify(ch, os.Interrupt, syscall.SIGTERM)
+	done := make(chan struct{})
+	go func() {
+		select {
+		case sig := <-ch:
+			removePartials()
+			fmt.Fprintf(stderr, "\nqpoint: %v; outputs not yet written were left as they were\n", sig)
+			code := 130
+			if s, ok := sig.(syscall.Signal); ok {
+				code = 128 + int(s)
+			}
+			os.Exit(code)
+		case <-done:
+		}
+	}()
+	return func() {
+		signal.Stop(ch)
+		close(done)
+	}
+}
 
 // writeFileAtomic writes a whole file or nothing: the content goes to a
 // temporary file in the same directory, which is synced and renamed over
@@ -26,6 +93,8 @@ func writeFileAtomic(path string, write func(w io.Writer) error) (err error) {
 	if err != nil {
 		return fmt.Errorf("cannot write %s: %w", path, err)
 	}
+	addPartial(tmp.Name())
+	defer dropPartial(tmp.Name())
 	// Until the rename, the temporary file goes away on every way out,
 	// a panic in write included (run recovers it, far from here).
 	renamed := false

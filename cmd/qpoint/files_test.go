@@ -296,3 +296,39 @@ func TestNoCommandWritesItsInput(t *testing.T) {
 		})
 	}
 }
+
+// TestInterruptRemovesPartials: an interrupt during a write removes the
+// temporary file, and the old output stays as it was.
+func TestInterruptRemovesPartials(t *testing.T) {
+	dir := t.TempDir()
+	out := filepath.Join(dir, "out.csv")
+	if err := os.WriteFile(out, []byte("old\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	started, release := make(chan struct{}), make(chan struct{})
+	finished := make(chan error)
+	go func() {
+		finished <- writeFileAtomic(out, func(w io.Writer) error {
+			fmt.Fprintln(w, "new, half")
+			close(started)
+			<-release
+			return nil
+		})
+	}()
+	<-started
+	if n := removePartials(); n != 1 {
+		t.Errorf("removed %d temporary files, want 1", n)
+	}
+	close(release)
+	if err := <-finished; err == nil {
+		t.Error("the interrupted write reported success")
+	}
+	if got, _ := os.ReadFile(out); string(got) != "old\n" {
+		t.Errorf("the output holds %q, want the old content", got)
+	}
+	for _, n := range dirEntries(t, dir) {
+		if strings.HasSuffix(n, ".partial") {
+			t.Errorf("a temporary file is left: %s", n)
+		}
+	}
+}
