@@ -157,32 +157,24 @@ func checkFrequencies(lo, hi float64) []float64 {
 	return append(f, hi)
 }
 
-// refine returns x for Y(jw) x = b by the reduced engine (factored at w)
-// after one step of iterative refinement, x + Y⁻¹ (b - Y x), the residual
-// taken with the network's own G and C.
-func (r *reduction) refine(w float64, b []complex128) []complex128 {
+// refine returns x for Y(jw) x = b (or Y(jw)ᵀ x = b with transpose) by
+// the reduced engine (factored at w) after one step of iterative
+// refinement, x + Y⁻¹ (b - Y x), the residual taken with the network's own
+// G and C.
+func (r *reduction) refine(w float64, b []complex128, transpose bool) []complex128 {
+	solve, residual := r.solve, r.pencil.residual
+	if transpose {
+		solve, residual = r.solveT, r.pencil.residualT
+	}
 	x := append([]complex128(nil), b...)
-	r.solve(x)
+	solve(x)
 	d := make([]complex128, r.n)
-	r.pencil.residual(w, b, x, d)
-	r.solve(d)
+	residual(w, b, x, d)
+	solve(d)
 	for i := range x {
 		x[i] += d[i]
 	}
 	return x
-}
-
-// refineT is refine for the transpose, Y(jw)ᵀ z = b.
-func (r *reduction) refineT(w float64, b []complex128) []complex128 {
-	z := append([]complex128(nil), b...)
-	r.solveT(z)
-	d := make([]complex128, r.n)
-	r.pencil.residualT(w, b, z, d)
-	r.solveT(d)
-	for i := range z {
-		z[i] += d[i]
-	}
-	return z
 }
 
 // refinedPoint computes Sweep's point at hz from refined solutions (see
@@ -196,7 +188,7 @@ func (r *reduction) refinedPoint(nw *smallsignal.Network, ref []float64, probes 
 	var x0 []complex128
 	for j := 0; j < np; j++ {
 		nw.Excitation(j, 1, b)
-		x := r.refine(w, b)
+		x := r.refine(w, b, false)
 		if j == 0 {
 			x0 = x
 		}
@@ -216,7 +208,7 @@ func (r *reduction) refinedPoint(nw *smallsignal.Network, ref []float64, probes 
 	for i := range b {
 		b[i] *= -1i
 	}
-	dx := r.refine(w, b)
+	dx := r.refine(w, b, false)
 	out := groupDelayPort(np)
 	sv := pt.S[out][0]
 	dS := 2 * nw.PortVoltage(out, dx) * complex(math.Sqrt(ref[0]/ref[out]), 0)
@@ -560,14 +552,12 @@ func (r *reduction) solveAccurate(nw *smallsignal.Network, lo, hi float64) bool 
 		}
 		for _, c := range cases {
 			x := append([]complex128(nil), c.b...)
-			var xr []complex128
 			if c.transpose {
 				r.solveT(x)
-				xr = r.refineT(w, c.b)
 			} else {
 				r.solve(x)
-				xr = r.refine(w, c.b)
 			}
+			xr := r.refine(w, c.b, c.transpose)
 			big := 0.0
 			for _, v := range xr {
 				big = math.Max(big, cmplx.Abs(v))

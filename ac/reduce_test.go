@@ -667,47 +667,7 @@ func TestShiftedHessenbergSolve(t *testing.T) {
 			r.h[i*n+i]++
 		}
 		r.alloc()
-		w := sigma * math.Pow(10, 4*rng.Float64()-2)
-		adjRHS := make([]float64, n)
-		for i := range adjRHS {
-			adjRHS[i] = rng.NormFloat64()
-		}
-		r.adjRHS = adjRHS
-		err := r.factor(w)
-		r.adjRHS = nil
-		if err != nil {
-			t.Fatal(err)
-		}
-		f := newLU(n)
-		f.load(r.h, r.t, n, n, w)
-		if err := f.factor(); err != nil {
-			t.Fatal(err)
-		}
-		v := make([]complex128, n)
-		for i, a := range adjRHS {
-			v[i] = complex(a, 0)
-		}
-		f.solveT(v)
-		if d := maxRel(r.adj, v); d > 1e-10 {
-			t.Errorf("trial %d (n = %d): fused adjoint differs from the dense LU by %g", trial, n, d)
-		}
-		b := make([]complex128, n)
-		for i := range b {
-			b[i] = complex(rng.NormFloat64(), rng.NormFloat64())
-		}
-		for _, tr := range []bool{false, true} {
-			x, y := append([]complex128(nil), b...), append([]complex128(nil), b...)
-			if tr {
-				r.solveYT(x)
-				f.solveT(y)
-			} else {
-				r.solveY(x)
-				f.solve(y)
-			}
-			if d := maxRel(x, y); d > 1e-10 {
-				t.Errorf("trial %d (n = %d, transpose %v): differs from the dense LU by %g", trial, n, tr, d)
-			}
-		}
+		b := checkSolves(t, rng, r, sigma, fmt.Sprintf("trial %d (n = %d)", trial, n))
 		y := append([]complex128(nil), b...)
 		r.solveY(y)
 		ev := &pointEval{r: r, dy: make([]complex128, n)}
@@ -759,47 +719,7 @@ func TestSchurSolve(t *testing.T) {
 			r.h[i*n+i]++
 		}
 		r.alloc()
-		w := sigma * math.Pow(10, 4*rng.Float64()-2)
-		adjRHS := make([]float64, n)
-		for i := range adjRHS {
-			adjRHS[i] = rng.NormFloat64()
-		}
-		r.adjRHS = adjRHS
-		err := r.factor(w)
-		r.adjRHS = nil
-		if err != nil {
-			t.Fatal(err)
-		}
-		f := newLU(n)
-		f.load(r.h, r.t, n, n, w)
-		if err := f.factor(); err != nil {
-			t.Fatal(err)
-		}
-		v := make([]complex128, n)
-		for i, a := range adjRHS {
-			v[i] = complex(a, 0)
-		}
-		f.solveT(v)
-		if d := maxRel(r.adj, v); d > 1e-10 {
-			t.Errorf("trial %d (n = %d, %d blocks): adjoint differs from the dense LU by %g", trial, n, blocks, d)
-		}
-		b := make([]complex128, n)
-		for i := range b {
-			b[i] = complex(rng.NormFloat64(), rng.NormFloat64())
-		}
-		for _, tr := range []bool{false, true} {
-			x, y := append([]complex128(nil), b...), append([]complex128(nil), b...)
-			if tr {
-				r.solveYT(x)
-				f.solveT(y)
-			} else {
-				r.solveY(x)
-				f.solve(y)
-			}
-			if d := maxRel(x, y); d > 1e-10 {
-				t.Errorf("trial %d (n = %d, %d blocks, transpose %v): differs from the dense LU by %g", trial, n, blocks, tr, d)
-			}
-		}
+		b := checkSolves(t, rng, r, sigma, fmt.Sprintf("trial %d (n = %d, %d blocks)", trial, n, blocks))
 		got, want := make([]complex128, n), make([]complex128, n)
 		r.mulT(b, got)
 		for i := 0; i < n; i++ {
@@ -924,4 +844,55 @@ func TestNoiseEngines(t *testing.T) {
 	if reduced < trials*3/4 {
 		t.Errorf("only %d of %d noise sweeps ran on the reduction", reduced, trials)
 	}
+}
+
+// checkSolves factors r at a random w near sigma with a random adjoint
+// right-hand side and checks its fused adjoint, plain and transpose
+// solves against the dense LU of H + jwT; it returns the right-hand side
+// it used.
+func checkSolves(t *testing.T, rng *rand.Rand, r *reduction, sigma float64, what string) []complex128 {
+	t.Helper()
+	n := r.n
+	w := sigma * math.Pow(10, 4*rng.Float64()-2)
+	adjRHS := make([]float64, n)
+	for i := range adjRHS {
+		adjRHS[i] = rng.NormFloat64()
+	}
+	r.adjRHS = adjRHS
+	err := r.factor(w)
+	r.adjRHS = nil
+	if err != nil {
+		t.Fatal(err)
+	}
+	f := newLU(n)
+	f.load(r.h, r.t, n, n, w)
+	if err := f.factor(); err != nil {
+		t.Fatal(err)
+	}
+	v := make([]complex128, n)
+	for i, a := range adjRHS {
+		v[i] = complex(a, 0)
+	}
+	f.solveT(v)
+	if d := maxRel(r.adj, v); d > 1e-10 {
+		t.Errorf("%s: the adjoint differs from the dense LU by %g", what, d)
+	}
+	b := make([]complex128, n)
+	for i := range b {
+		b[i] = complex(rng.NormFloat64(), rng.NormFloat64())
+	}
+	for _, tr := range []bool{false, true} {
+		x, y := append([]complex128(nil), b...), append([]complex128(nil), b...)
+		if tr {
+			r.solveYT(x)
+			f.solveT(y)
+		} else {
+			r.solveY(x)
+			f.solve(y)
+		}
+		if d := maxRel(x, y); d > 1e-10 {
+			t.Errorf("%s (transpose %v): differs from the dense LU by %g", what, tr, d)
+		}
+	}
+	return b
 }
