@@ -427,7 +427,6 @@ func noiseFigures(r *ac.NoiseResult) []*plots.Figure {
 	return []*plots.Figure{plots.NoiseDensity(freqs, dens, "V/√Hz", floor), plots.NoiseContributions(freqs, names, shares)}
 }
 
-
 // temperatureText prints a noise temperature.
 func temperatureText(k float64) string {
 	if k == 0 {
