@@ -24,8 +24,12 @@ func parseTouchstoneFormat(s string) (ac.Format, error) {
 }
 
 func writeTouchstone(w io.Writer, c *circuit.Circuit, r *ac.Response, f ac.Format) error {
-	comment := []string{"circuit: " + c.Name, "file: " + c.File}
-	return ac.WriteTouchstone(w, r.Ports, r.Points, f, comment)
+	return ac.WriteTouchstone(w, r.Ports, r.Points, f, touchstoneComment(c))
+}
+
+// touchstoneComment is the comment a Touchstone file opens with.
+func touchstoneComment(c *circuit.Circuit) []string {
+	return []string{"circuit: " + c.Name, "file: " + c.File}
 }
 
 // figureFormats are the files each figure is written as.

@@ -2,14 +2,20 @@ package main
 
 import (
 	"bufio"
+	"bytes"
 	"encoding/csv"
 	"encoding/json"
 	"math"
 	"os"
 	"path/filepath"
+	"regexp"
+	"runtime"
+	"runtime/metrics"
 	"strconv"
 	"strings"
+	"sync/atomic"
 	"testing"
+	"time"
 )
 
 // readTouchstoneIndependently is a reader written here from the Touchstone
@@ -218,4 +224,93 @@ func TestResponseBadFlags(t *testing.T) {
 			t.Errorf("qpoint %s: exit %d, %q; want exit 2 naming %s", strings.Join(c.args, " "), code, errs, c.want)
 		}
 	}
+}
+
+// TestResponseStreams: asked for files and the table only, the response
+// command streams its points to the files and keeps only the table's
+// rows, so that a sweep's memory does not grow with its length. Its files
+// and table are the same bytes as when it holds the sweep (which it does
+// for --plots); a long sweep keeps its heap far below the size of its
+// points; and a sweep that fails part way leaves no file.
+func TestResponseStreams(t *testing.T) {
+	dir := t.TempDir()
+	file := filepath.Join(demoDir, "mixer.yaml")
+	stream := []string{"response", file, "--per-decade", "30", "--csv", filepath.Join(dir, "a.csv"), "--touchstone", filepath.Join(dir, "a.s3p")}
+	held := []string{"response", file, "--per-decade", "30", "--csv", filepath.Join(dir, "b.csv"), "--touchstone", filepath.Join(dir, "b.s3p"), "--plots", filepath.Join(dir, "figs")}
+	outA, errs, code := runCLI(t, stream...)
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	outB, errs, code := runCLI(t, held...)
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	for _, pair := range [][2]string{{"a.csv", "b.csv"}, {"a.s3p", "b.s3p"}} {
+		a, _ := os.ReadFile(filepath.Join(dir, pair[0]))
+		b, _ := os.ReadFile(filepath.Join(dir, pair[1]))
+		if len(a) == 0 || !bytes.Equal(a, b) {
+			t.Errorf("%s (%d bytes) and %s (%d bytes) differ", pair[0], len(a), pair[1], len(b))
+		}
+	}
+	table := func(out string) string {
+		out = strings.ReplaceAll(out, filepath.Join(dir, "a."), "")
+		out = strings.ReplaceAll(out, filepath.Join(dir, "b."), "")
+		return regexp.MustCompile(`(?m)^figures written.*\n`).ReplaceAllString(out, "")
+	}
+	if table(outA) != table(outB) {
+		t.Errorf("the tables differ:\n%s\nagainst\n%s", outA, outB)
+	}
+
+	// A long sweep: 200 000 points of the three-port mixer, about 300
+	// bytes each if held (60 MB), against the most heap in use while it
+	// runs, sampled every half millisecond.
+	peak := peakHeap(t, func() {
+		if _, errs, code := runCLI(t, "response", file, "--points", "200000", "--csv", filepath.Join(dir, "long.csv")); code != 0 {
+			t.Fatalf("exit %d: %s", code, errs)
+		}
+	})
+	t.Logf("200 000 points streamed; the heap peaked at %.1f MB", float64(peak)/1e6)
+	if peak > 30e6 {
+		t.Errorf("the heap peaked at %.1f MB for a streamed sweep", float64(peak)/1e6)
+	}
+
+	// A failure part way: the sweep reaches beyond 1 THz.
+	if _, _, code := runCLI(t, "response", file, "--from", "100GHz", "--to", "2THz", "--points", "50", "--csv", filepath.Join(dir, "bad.csv")); code == 0 {
+		t.Error("a sweep beyond 1 THz succeeded")
+	}
+	for _, n := range dirEntries(t, dir) {
+		if strings.HasPrefix(n, "bad") || strings.HasPrefix(n, ".bad") {
+			t.Errorf("a failed sweep left %s", n)
+		}
+	}
+}
+
+// peakHeap runs f and returns the most bytes the heap held in objects,
+// live or not yet collected, at samples every half millisecond.
+func peakHeap(t *testing.T, f func()) uint64 {
+	t.Helper()
+	sample := []metrics.Sample{{Name: "/memory/classes/heap/objects:bytes"}}
+	var peak atomic.Uint64
+	stop, done := make(chan struct{}), make(chan struct{})
+	go func() {
+		defer close(done)
+		tick := time.NewTicker(500 * time.Microsecond)
+		defer tick.Stop()
+		for {
+			metrics.Read(sample)
+			if v := sample[0].Value.Uint64(); v > peak.Load() {
+				peak.Store(v)
+			}
+			select {
+			case <-stop:
+				return
+			case <-tick.C:
+			}
+		}
+	}()
+	runtime.GC()
+	f()
+	close(stop)
+	<-done
+	return peak.Load()
 }

@@ -199,46 +199,57 @@ func runResponse(cmd *cobra.Command, path string, fl *responseFlags) error {
 	if err != nil {
 		return analysisError(err)
 	}
-	r, err := ac.Run(nw, grid, ac.Settings{Reference: ref})
-	if err != nil {
-		return analysisError(err)
-	}
 	// Every named output is checked before any is written, so that a
 	// refusal leaves none behind.
 	if fl.touchstone != "" {
-		if want := ac.TouchstoneExt(len(r.Ports)); !strings.EqualFold(filepath.Ext(fl.touchstone), want) {
-			return inputError(fmt.Errorf("flag --touchstone: %s has %d ports, so its file should end in %s (got %q)", c.Name, len(r.Ports), want, filepath.Ext(fl.touchstone)))
+		if want := ac.TouchstoneExt(len(c.Ports)); !strings.EqualFold(filepath.Ext(fl.touchstone), want) {
+			return inputError(fmt.Errorf("flag --touchstone: %s has %d ports, so its file should end in %s (got %q)", c.Name, len(c.Ports), want, filepath.Ext(fl.touchstone)))
 		}
 	}
-	var figs []*plots.Figure
-	if fl.plotsDir != "" {
-		figs = plots.ResponseFigures(r)
-	}
-	if err := refuseInputs(append([]string{fl.csvPath, fl.touchstone}, figurePaths(fl.plotsDir, figs)...)...); err != nil {
-		return err
-	}
-	if fl.csvPath != "" {
-		if err := writeFileAtomic(fl.csvPath, func(w io.Writer) error { return writeResponseCSV(w, r) }); err != nil {
+	var r *ac.Response
+	if fl.plotsDir == "" && !fl.asJSON {
+		// Files and a table only: the points stream to the files, and
+		// the sweep keeps just the table's rows, whatever its length.
+		if err := refuseInputs(fl.csvPath, fl.touchstone); err != nil {
 			return err
 		}
-	}
-	if fl.touchstone != "" {
-		if err := writeFileAtomic(fl.touchstone, func(w io.Writer) error {
-			return writeTouchstone(w, c, r, format)
-		}); err != nil {
+		if r, err = streamResponse(nw, grid, ac.Settings{Reference: ref}, c, fl, format); err != nil {
 			return err
 		}
-	}
-	if fl.plotsDir != "" {
-		if err := writeFigures(fl.plotsDir, figs); err != nil {
+	} else {
+		if r, err = ac.Run(nw, grid, ac.Settings{Reference: ref}); err != nil {
+			return analysisError(err)
+		}
+		var figs []*plots.Figure
+		if fl.plotsDir != "" {
+			figs = plots.ResponseFigures(r)
+		}
+		if err := refuseInputs(append([]string{fl.csvPath, fl.touchstone}, figurePaths(fl.plotsDir, figs)...)...); err != nil {
 			return err
+		}
+		if fl.csvPath != "" {
+			if err := writeFileAtomic(fl.csvPath, func(w io.Writer) error { return writeResponseCSV(w, r) }); err != nil {
+				return err
+			}
+		}
+		if fl.touchstone != "" {
+			if err := writeFileAtomic(fl.touchstone, func(w io.Writer) error {
+				return writeTouchstone(w, c, r, format)
+			}); err != nil {
+				return err
+			}
+		}
+		if fl.plotsDir != "" {
+			if err := writeFigures(fl.plotsDir, figs); err != nil {
+				return err
+			}
 		}
 	}
 	out := cmd.OutOrStdout()
 	if fl.asJSON {
 		return writeJSON(out, responseDocument(r))
 	}
-	writeResponseTable(out, c, p, r, fl.rows)
+	writeResponseTable(out, c, p, r, grid, fl.rows)
 	for _, x := range []struct{ what, path string }{{"CSV", fl.csvPath}, {"Touchstone", fl.touchstone}, {"figures", fl.plotsDir}} {
 		if x.path != "" {
 			fmt.Fprintf(out, "%s written to %s\n", x.what, x.path)
@@ -298,7 +309,10 @@ func formatImpedance(z complex128) string {
 	return fmt.Sprintf("%s %s j%s", si.Format(real(z), "Ω", 4), sign, si.Format(x, "Ω", 4))
 }
 
-func writeResponseTable(w io.Writer, c *circuit.Circuit, p *bias.Point, r *ac.Response, rows int) {
+// writeResponseTable prints the header and the response at up to rows of
+// the sweep's frequencies grid; r holds either every point or just those
+// rows (streamResponse).
+func writeResponseTable(w io.Writer, c *circuit.Circuit, p *bias.Point, r *ac.Response, grid []float64, rows int) {
 	fmt.Fprintf(w, "%s\n", c.Name)
 	fmt.Fprintf(w, "  file         %s\n", c.File)
 	fmt.Fprintf(w, "  bias         %s\n", biasLine(p))
@@ -307,8 +321,8 @@ func writeResponseTable(w io.Writer, c *circuit.Circuit, p *bias.Point, r *ac.Re
 		ports = append(ports, fmt.Sprintf("%s (%s)", port.Name, si.Format(port.Impedance, "Ω", 4)))
 	}
 	fmt.Fprintf(w, "  ports        %s\n", strings.Join(ports, ", "))
-	first, last := r.Points[0].FrequencyHz, r.Points[len(r.Points)-1].FrequencyHz
-	fmt.Fprintf(w, "  sweep        %d points, %s to %s\n", len(r.Points), si.Format(first, "Hz", 4), si.Format(last, "Hz", 4))
+	first, last := grid[0], grid[len(grid)-1]
+	fmt.Fprintf(w, "  sweep        %d points, %s to %s\n", len(grid), si.Format(first, "Hz", 4), si.Format(last, "Hz", 4))
 
 	responseTable(r, rows).write(w)
 	name1 := r.Ports[0].Name
@@ -321,9 +335,31 @@ func writeResponseTable(w io.Writer, c *circuit.Circuit, p *bias.Point, r *ac.Re
 // writeResponseCSV writes one row per frequency with a header naming each
 // column and its unit.
 func writeResponseCSV(w io.Writer, r *ac.Response) error {
+	rw, err := newResponseCSV(w, r.Ports, r.Probes)
+	if err != nil {
+		return err
+	}
+	for _, pt := range r.Points {
+		if err := rw.write(pt); err != nil {
+			return err
+		}
+	}
+	return rw.close()
+}
+
+// responseCSV writes a response as CSV a point at a time.
+type responseCSV struct {
+	cw  *csv.Writer
+	row []string
+}
+
+// newResponseCSV writes the header: the frequency, each S-parameter's
+// parts, each port's input impedance, each probe's voltage and the group
+// delay, with units.
+func newResponseCSV(w io.Writer, ports []ac.PortInfo, probes []string) (*responseCSV, error) {
 	cw := csv.NewWriter(w)
 	header := []string{"frequency_Hz"}
-	n := len(r.Ports)
+	n := len(ports)
 	for i := 0; i < n; i++ {
 		for j := 0; j < n; j++ {
 			header = append(header, fmt.Sprintf("S%d%d_re", i+1, j+1), fmt.Sprintf("S%d%d_im", i+1, j+1))
@@ -332,34 +368,118 @@ func writeResponseCSV(w io.Writer, r *ac.Response) error {
 	for i := 0; i < n; i++ {
 		header = append(header, fmt.Sprintf("Zin%d_re_ohm", i+1), fmt.Sprintf("Zin%d_im_ohm", i+1))
 	}
-	for _, p := range r.Probes {
+	for _, p := range probes {
 		header = append(header, fmt.Sprintf("probe_%s_re_V", p), fmt.Sprintf("probe_%s_im_V", p))
 	}
 	header = append(header, "group_delay_s")
-	if err := cw.Write(header); err != nil {
-		return err
-	}
+	return &responseCSV{cw: cw}, cw.Write(header)
+}
+
+func (rw *responseCSV) write(pt ac.Point) error {
 	g := func(v float64) string { return strconv.FormatFloat(v, 'g', -1, 64) }
-	for _, pt := range r.Points {
-		row := []string{g(pt.FrequencyHz)}
-		for i := 0; i < n; i++ {
-			for j := 0; j < n; j++ {
-				row = append(row, g(real(pt.S[i][j])), g(imag(pt.S[i][j])))
+	row := append(rw.row[:0], g(pt.FrequencyHz))
+	for i := range pt.S {
+		for _, s := range pt.S[i] {
+			row = append(row, g(real(s)), g(imag(s)))
+		}
+	}
+	for _, z := range pt.InputImpedance {
+		row = append(row, g(real(z)), g(imag(z)))
+	}
+	for _, v := range pt.Probes {
+		row = append(row, g(real(v)), g(imag(v)))
+	}
+	row = append(row, g(pt.GroupDelay))
+	rw.row = row
+	return rw.cw.Write(row)
+}
+
+func (rw *responseCSV) close() error {
+	rw.cw.Flush()
+	return rw.cw.Error()
+}
+
+// streamResponse sweeps nw over grid writing every point to the CSV and
+// Touchstone files flags name as it comes, each whole or not at all, and
+// returns the response with only the points the table shows: the memory a
+// sweep takes does not grow with its length.
+func streamResponse(nw *smallsignal.Network, grid []float64, s ac.Settings, c *circuit.Circuit, fl *responseFlags, format ac.Format) (*ac.Response, error) {
+	r := &ac.Response{Probes: c.Probes}
+	for i, p := range nw.Ports {
+		z := p.Impedance
+		if s.Reference != nil {
+			z = s.Reference[i]
+		}
+		r.Ports = append(r.Ports, ac.PortInfo{Name: p.Name, Impedance: z})
+	}
+	keep := map[int]bool{}
+	for _, i := range pickRows(len(grid), fl.rows) {
+		keep[i] = true
+	}
+	var sweepErr error
+	sweep := func(csvOut, touchstoneOut io.Writer) error {
+		var rw *responseCSV
+		var tw *ac.TouchstoneWriter
+		var err error
+		if csvOut != nil {
+			if rw, err = newResponseCSV(csvOut, r.Ports, r.Probes); err != nil {
+				return err
 			}
 		}
-		for _, z := range pt.InputImpedance {
-			row = append(row, g(real(z)), g(imag(z)))
+		if touchstoneOut != nil {
+			if tw, err = ac.NewTouchstoneWriter(touchstoneOut, r.Ports, format, touchstoneComment(c), len(grid)); err != nil {
+				return err
+			}
 		}
-		for _, v := range pt.Probes {
-			row = append(row, g(real(v)), g(imag(v)))
+		k := 0
+		_, _, sweepErr = ac.Sweep(nw, grid, s, func(pt ac.Point) error {
+			if rw != nil {
+				if err := rw.write(pt); err != nil {
+					return err
+				}
+			}
+			if tw != nil {
+				if err := tw.Write(pt); err != nil {
+					return err
+				}
+			}
+			if keep[k] {
+				r.Points = append(r.Points, pt)
+			}
+			k++
+			return nil
+		})
+		if sweepErr != nil {
+			return sweepErr
 		}
-		row = append(row, g(pt.GroupDelay))
-		if err := cw.Write(row); err != nil {
-			return err
+		if rw != nil {
+			if err := rw.close(); err != nil {
+				return err
+			}
 		}
+		if tw != nil {
+			return tw.Close()
+		}
+		return nil
 	}
-	cw.Flush()
-	return cw.Error()
+	// One file inside the other: each is renamed into place only when the
+	// whole sweep has gone into it.
+	withTouchstone := func(csvOut io.Writer) error {
+		if fl.touchstone == "" {
+			return sweep(csvOut, nil)
+		}
+		return writeFileAtomic(fl.touchstone, func(w io.Writer) error { return sweep(csvOut, w) })
+	}
+	var err error
+	if fl.csvPath != "" {
+		err = writeFileAtomic(fl.csvPath, withTouchstone)
+	} else {
+		err = withTouchstone(nil)
+	}
+	if sweepErr != nil {
+		return nil, analysisError(sweepErr)
+	}
+	return r, err
 }
 
 // complexJSON encodes a complex number as [re, im], or null when either
