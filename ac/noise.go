@@ -401,6 +401,10 @@ func IntegrateNoise(nw *smallsignal.Network, s NoiseSettings, fromHz, toHz float
 	}
 	var prev *NoiseBand
 	decades := math.Log10(toHz / fromHz)
+	// Each finer grid holds the coarser one's frequencies, bit for bit
+	// where the point counts double exactly; those points are kept, not
+	// solved again.
+	var known map[float64]NoisePoint
 	for per := bandStartPerDecade; ; per *= 2 {
 		grid, err := LogGrid(fromHz, toHz, per)
 		if err != nil {
@@ -409,11 +413,15 @@ func IntegrateNoise(nw *smallsignal.Network, s NoiseSettings, fromHz, toHz float
 		b := &NoiseBand{FromHz: fromHz, ToHz: toHz, Sources: v.sources, PerDecade: per,
 			Contributions: make([]float64, len(v.sources))}
 		var last NoisePoint
+		solved := make(map[float64]NoisePoint, len(grid))
 		for i, hz := range grid {
-			pt, err := v.at(hz)
-			if err != nil {
-				return nil, err
+			pt, ok := known[hz]
+			if !ok {
+				if pt, err = v.at(hz); err != nil {
+					return nil, err
+				}
 			}
+			solved[hz] = pt
 			if i > 0 {
 				f1, f2 := last.FrequencyHz, pt.FrequencyHz
 				for k := range b.Contributions {
@@ -430,6 +438,7 @@ func IntegrateNoise(nw *smallsignal.Network, s NoiseSettings, fromHz, toHz float
 		for _, c := range b.Contributions {
 			b.Total += c
 		}
+		known = solved
 		if prev != nil {
 			b.Change = math.Abs(b.Total-prev.Total) / math.Max(b.Total, math.SmallestNonzeroFloat64)
 			if b.Change < bandTolerance || per >= bandMaxPerDecade || float64(2*per)*decades > bandMaxPoints {

@@ -218,21 +218,43 @@ func (u *shiftedBasis) applyUT() {
 }
 
 // solveK replaces the parts by K⁻¹ (trans false) or K⁻ᵀ (trans true)
-// times them: the row interchanges of Dgetrf and two triangular solves
-// (Dtrsv) per part.
+// times them: the row interchanges of Dgetrf and two triangular solves per
+// part, each row a dot product or an axpy with gonum's assembly kernels
+// (the row-major factors make the plain solves dots and the transposed
+// ones axpys).
 func (u *shiftedBasis) solveK(trans bool) {
-	n := u.n
+	n, lu := u.n, u.lu
 	for _, x := range [2][]float64{u.re, u.im} {
 		if !trans {
 			for i, p := range u.ipiv {
 				x[i], x[p] = x[p], x[i]
 			}
-			blasImpl.Dtrsv(blas.Lower, blas.NoTrans, blas.Unit, n, u.lu, n, x, 1)
-			blasImpl.Dtrsv(blas.Upper, blas.NoTrans, blas.NonUnit, n, u.lu, n, x, 1)
+			// L y = x, L unit lower triangular.
+			for i := 1; i < n; i++ {
+				x[i] -= blasImpl.Ddot(i, lu[i*n:i*n+i], 1, x[:i], 1)
+			}
+			// U z = y.
+			for i := n - 1; i >= 0; i-- {
+				if m := n - i - 1; m > 0 {
+					x[i] -= blasImpl.Ddot(m, lu[i*n+i+1:i*n+n], 1, x[i+1:], 1)
+				}
+				x[i] /= lu[i*n+i]
+			}
 			continue
 		}
-		blasImpl.Dtrsv(blas.Upper, blas.Trans, blas.NonUnit, n, u.lu, n, x, 1)
-		blasImpl.Dtrsv(blas.Lower, blas.Trans, blas.Unit, n, u.lu, n, x, 1)
+		// Uᵀ y = x: row i of U spreads y_i over the entries after i.
+		for i := 0; i < n; i++ {
+			x[i] /= lu[i*n+i]
+			if m := n - i - 1; m > 0 && x[i] != 0 {
+				blasImpl.Daxpy(m, -x[i], lu[i*n+i+1:i*n+n], 1, x[i+1:], 1)
+			}
+		}
+		// Lᵀ z = y: row i of L spreads z_i over the entries before i.
+		for i := n - 1; i > 0; i-- {
+			if x[i] != 0 {
+				blasImpl.Daxpy(i, -x[i], lu[i*n:i*n+i], 1, x[:i], 1)
+			}
+		}
 		for i := n - 1; i >= 0; i-- {
 			p := u.ipiv[i]
 			x[i], x[p] = x[p], x[i]
