@@ -8,6 +8,7 @@ import (
 	"os"
 	"path/filepath"
 	"slices"
+	"strings"
 	"testing"
 
 	"gonum.org/v1/gonum/mat"
@@ -895,4 +896,89 @@ func checkSolves(t *testing.T, rng *rand.Rand, r *reduction, sigma float64, what
 		}
 	}
 	return b
+}
+
+// TestLadderAgainstABCD: a lossy LC ladder between 50 Ω ports, long
+// enough for the reduced engine, against the cascade of its sections'
+// ABCD matrices (Pozar, "Microwave Engineering", 4th ed., 2012, sec. 4.4,
+// Tables 4.1 and 4.2): series Z = R + jwL is [[1, Z], [0, 1]], shunt
+// Y = jwC is [[1, 0], [Y, 1]], and with equal reference impedances
+// S21 = 2 / (A + B/Z0 + C Z0 + D), S11 = (A + B/Z0 - C Z0 - D) / (same).
+// Each form of the reduction, forced, and the automatic choice must agree
+// with the cascade to 1e-9 (floor 1e-12).
+func TestLadderAgainstABCD(t *testing.T) {
+	const sections, z0 = 24, 50.0
+	const r, l, c = 0.5, 10e-9, 4e-12 // per section; cutoff 1/(π sqrt(LC)) ≈ 1.6 GHz
+	var b strings.Builder
+	b.WriteString("name: lossy LC ladder\nparts:\n")
+	for k := 1; k <= sections; k++ {
+		fmt.Fprintf(&b, "  - {type: resistor, name: R%d, between: [n%d, m%d], value: %g}\n", k, k-1, k, r)
+		fmt.Fprintf(&b, "  - {type: inductor, name: L%d, between: [m%d, n%d], value: %gH}\n", k, k, k, l)
+		fmt.Fprintf(&b, "  - {type: capacitor, name: C%d, between: [n%d, gnd], value: %gF}\n", k, k, c)
+	}
+	fmt.Fprintf(&b, "ports:\n  - {name: in, node: n0, impedance: %g}\n  - {name: out, node: n%d, impedance: %g}\n", z0, sections, z0)
+	nw := network(t, b.String())
+	freqs, err := LinearGrid(10e6, 2e9, 400)
+	if err != nil {
+		t.Fatal(err)
+	}
+	cascade := func(hz float64) (s11, s21 complex128) {
+		w := 2 * math.Pi * hz
+		m := [2][2]complex128{{1, 0}, {0, 1}}
+		mul := func(a, b [2][2]complex128) [2][2]complex128 {
+			return [2][2]complex128{
+				{a[0][0]*b[0][0] + a[0][1]*b[1][0], a[0][0]*b[0][1] + a[0][1]*b[1][1]},
+				{a[1][0]*b[0][0] + a[1][1]*b[1][0], a[1][0]*b[0][1] + a[1][1]*b[1][1]},
+			}
+		}
+		series := [2][2]complex128{{1, complex(r, w*l)}, {0, 1}}
+		shunt := [2][2]complex128{{1, 0}, {complex(0, w*c), 1}}
+		for k := 0; k < sections; k++ {
+			m = mul(mul(m, series), shunt)
+		}
+		a, bb, cc, d := m[0][0], m[0][1], m[1][0], m[1][1]
+		den := a + bb/z0 + cc*z0 + d
+		return (a + bb/z0 - cc*z0 - d) / den, 2 / den
+	}
+	ref := []float64{z0, z0}
+	check := func(what string, pts []Point) {
+		t.Helper()
+		if len(pts) != len(freqs) {
+			t.Fatalf("%s: %d points, want %d", what, len(pts), len(freqs))
+		}
+		for k, p := range pts {
+			s11, s21 := cascade(freqs[k])
+			for _, q := range []struct {
+				name      string
+				got, want complex128
+			}{{"S11", p.S[0][0], s11}, {"S21", p.S[1][0], s21}, {"S12", p.S[0][1], s21}} {
+				if d := cmplx.Abs(q.got - q.want); d > 1e-9*cmplx.Abs(q.want)+1e-12 {
+					t.Fatalf("%s at %g Hz: %s = %v, the ABCD cascade gives %v", what, freqs[k], q.name, q.got, q.want)
+				}
+			}
+		}
+	}
+	lo, hi, _ := sweepRange(freqs)
+	for _, form := range []reductionForm{formShifted, formSchur, formTriangular} {
+		rd, err := reduceFor(nw, lo, hi, form)
+		if err != nil {
+			t.Fatalf("%v: %v", form, err)
+		}
+		if !rd.sweepAccurate(nw, ref, nil, lo, hi) {
+			t.Errorf("%v: fails its accuracy check", form)
+			continue
+		}
+		var pts []Point
+		if _, err := rd.sweep(nw, freqs, ref, nil, func(p Point) error { pts = append(pts, p); return nil }, nil); err != nil {
+			t.Fatal(err)
+		}
+		check(form.String(), pts)
+	}
+	r0 := sweepEngine(nw, freqs, ref, nil, engineAuto)
+	if r0 == nil {
+		t.Fatalf("n = %d, %d points: the automatic choice took the LU", nw.N, len(freqs))
+	}
+	t.Logf("n = %d, %d points: the automatic choice took the %v form", nw.N, len(freqs), r0.form)
+	check("automatic", sweepWith(t, nw, freqs, Settings{}, engineAuto))
+	check("dense LU", sweepWith(t, nw, freqs, Settings{}, engineLU))
 }
