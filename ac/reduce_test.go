@@ -909,15 +909,7 @@ func checkSolves(t *testing.T, rng *rand.Rand, r *reduction, sigma float64, what
 func TestLadderAgainstABCD(t *testing.T) {
 	const sections, z0 = 24, 50.0
 	const r, l, c = 0.5, 10e-9, 4e-12 // per section; cutoff 1/(π sqrt(LC)) ≈ 1.6 GHz
-	var b strings.Builder
-	b.WriteString("name: lossy LC ladder\nparts:\n")
-	for k := 1; k <= sections; k++ {
-		fmt.Fprintf(&b, "  - {type: resistor, name: R%d, between: [n%d, m%d], value: %g}\n", k, k-1, k, r)
-		fmt.Fprintf(&b, "  - {type: inductor, name: L%d, between: [m%d, n%d], value: %gH}\n", k, k, k, l)
-		fmt.Fprintf(&b, "  - {type: capacitor, name: C%d, between: [n%d, gnd], value: %gF}\n", k, k, c)
-	}
-	fmt.Fprintf(&b, "ports:\n  - {name: in, node: n0, impedance: %g}\n  - {name: out, node: n%d, impedance: %g}\n", z0, sections, z0)
-	nw := network(t, b.String())
+	nw := network(t, lossyLadder("name: lossy LC ladder\n", sections, r, l, c, z0))
 	freqs, err := LinearGrid(10e6, 2e9, 400)
 	if err != nil {
 		t.Fatal(err)
@@ -981,4 +973,70 @@ func TestLadderAgainstABCD(t *testing.T) {
 	t.Logf("n = %d, %d points: the automatic choice took the %v form", nw.N, len(freqs), r0.form)
 	check("automatic", sweepWith(t, nw, freqs, Settings{}, engineAuto))
 	check("dense LU", sweepWith(t, nw, freqs, Settings{}, engineLU))
+}
+
+// TestLadderNoiseNyquist: the lossy ladder of TestLadderAgainstABCD with
+// everything at 290 K, the circuit and both ports' terminations: a
+// passive network in thermal equilibrium, whose noise voltage at a node is
+// 4kT Re Z, Z the impedance from that node to ground (Nyquist, Phys. Rev.
+// 32, 1928; for networks, Twiss, J. Appl. Phys. 26, 1955). Z at the output
+// node is the ladder seen from its output, its input terminated by Z0,
+// (D Z0 + B)/(C Z0 + A) from the ABCD cascade (Pozar sec. 4.4), in
+// parallel with the output port's Z0. Noise runs its adjoint solves on
+// the reduced engine over 400 points; every point must agree to 1e-9.
+func TestLadderNoiseNyquist(t *testing.T) {
+	const sections, z0 = 24, 50.0
+	const r, l, c = 0.5, 10e-9, 4e-12
+	nw := network(t, lossyLadder("name: lossy LC ladder at 290 K\ntemperature: 290K\n", sections, r, l, c, z0))
+	freqs, err := LinearGrid(10e6, 2e9, 400)
+	if err != nil {
+		t.Fatal(err)
+	}
+	s := NoiseSettings{Input: -1, Output: Output{Port: -1, Node: fmt.Sprintf("n%d", sections)}}
+	v, err := newNoise(nw, s, freqs, engineAuto)
+	if err != nil {
+		t.Fatal(err)
+	}
+	rd, ok := v.sys.(*reduction)
+	if !ok {
+		t.Fatalf("n = %d, %d points: the noise took the LU", nw.N, len(freqs))
+	}
+	res, err := Noise(nw, freqs, s)
+	if err != nil {
+		t.Fatal(err)
+	}
+	const kT4 = 4 * 1.380649e-23 * 290 // CODATA 2018 (exact in SI 2019)
+	for k, p := range res.Points {
+		w := 2 * math.Pi * freqs[k]
+		m := [2][2]complex128{{1, 0}, {0, 1}}
+		series := complex(r, w*l)
+		shunt := complex(0, w*c)
+		for j := 0; j < sections; j++ {
+			// m · [[1, Z], [0, 1]] · [[1, 0], [Y, 1]]
+			a, bb := m[0][0], m[0][0]*series+m[0][1]
+			cc, d := m[1][0], m[1][0]*series+m[1][1]
+			m = [2][2]complex128{{a + bb*shunt, bb}, {cc + d*shunt, d}}
+		}
+		zout := (m[1][1]*z0 + m[0][1]) / (m[1][0]*z0 + m[0][0])
+		z := zout * z0 / (zout + z0)
+		want := kT4 * real(z)
+		if d := math.Abs(p.Total - want); d > 1e-9*want {
+			t.Fatalf("at %g Hz: output noise %g V²/Hz, 4kT Re Z gives %g (Re Z = %g Ω)", freqs[k], p.Total, want, real(z))
+		}
+	}
+	t.Logf("n = %d, %d points on the %v form: output noise equals 4kT Re Z", nw.N, len(freqs), rd.form)
+}
+
+// lossyLadder returns a circuit file, opening with head, of sections
+// sections of series r and l and shunt c between two ports of z0.
+func lossyLadder(head string, sections int, r, l, c, z0 float64) string {
+	var b strings.Builder
+	b.WriteString(head + "parts:\n")
+	for k := 1; k <= sections; k++ {
+		fmt.Fprintf(&b, "  - {type: resistor, name: R%d, between: [n%d, m%d], value: %g}\n", k, k-1, k, r)
+		fmt.Fprintf(&b, "  - {type: inductor, name: L%d, between: [m%d, n%d], value: %gH}\n", k, k, k, l)
+		fmt.Fprintf(&b, "  - {type: capacitor, name: C%d, between: [n%d, gnd], value: %gF}\n", k, k, c)
+	}
+	fmt.Fprintf(&b, "ports:\n  - {name: in, node: n0, impedance: %g}\n  - {name: out, node: n%d, impedance: %g}\n", z0, sections, z0)
+	return b.String()
 }
