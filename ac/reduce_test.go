@@ -905,7 +905,8 @@ func checkSolves(t *testing.T, rng *rand.Rand, r *reduction, sigma float64, what
 // Y = jwC is [[1, 0], [Y, 1]], and with equal reference impedances
 // S21 = 2 / (A + B/Z0 + C Z0 + D), S11 = (A + B/Z0 - C Z0 - D) / (same).
 // Each form of the reduction, forced, and the automatic choice must agree
-// with the cascade to 1e-9 (floor 1e-12).
+// with the cascade to 1e-9 (floor 1e-12), and their group delay with the
+// cascade's phase slope to 1e-6 (with the floor carried through S'/S).
 func TestLadderAgainstABCD(t *testing.T) {
 	const sections, z0 = 24, 50.0
 	const r, l, c = 0.5, 10e-9, 4e-12 // per section; cutoff 1/(π sqrt(LC)) ≈ 1.6 GHz
@@ -947,6 +948,22 @@ func TestLadderAgainstABCD(t *testing.T) {
 				if d := cmplx.Abs(q.got - q.want); d > 1e-9*cmplx.Abs(q.want)+1e-12 {
 					t.Fatalf("%s at %g Hz: %s = %v, the ABCD cascade gives %v", what, freqs[k], q.name, q.got, q.want)
 				}
+			}
+			// Group delay -d arg S21/dw by a central difference of the
+			// cascade, h = 1e-6 of the frequency: truncation error of order
+			// h² times the phase's third derivative, and rounding of order
+			// 1e-16 over the phase step, both far below the 1e-6 asked.
+			h := 1e-6 * freqs[k]
+			_, up := cascade(freqs[k] + h)
+			_, down := cascade(freqs[k] - h)
+			tau := -cmplx.Phase(up/down) / (2 * 2 * math.Pi * h)
+			// Where S21 vanishes (the stop band, down to -150 dB here) its
+			// absolute floor 1e-12 carries into S'/S: the delay is held to
+			// that floor too, as the engine's own check holds it
+			// (pointsDiffer).
+			floor := 1e-12 * (math.Abs(tau) + 1/(2*math.Pi*freqs[k])) / cmplx.Abs(s21)
+			if d := math.Abs(p.GroupDelay - tau); d > 1e-6*math.Abs(tau)+floor {
+				t.Fatalf("%s at %g Hz: group delay %g s, the cascade's phase slope gives %g s", what, freqs[k], p.GroupDelay, tau)
 			}
 		}
 	}
