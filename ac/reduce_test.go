@@ -13,6 +13,8 @@ import (
 
 	"gonum.org/v1/gonum/mat"
 
+	"qpoint/bias"
+	"qpoint/bias/circuit"
 	"qpoint/smallsignal"
 )
 
@@ -1056,4 +1058,48 @@ func lossyLadder(head string, sections int, r, l, c, z0 float64) string {
 	}
 	fmt.Fprintf(&b, "ports:\n  - {name: in, node: n0, impedance: %g}\n  - {name: out, node: n%d, impedance: %g}\n", z0, sections, z0)
 	return b.String()
+}
+
+// TestReducedSweepHard: the hard circuits of testdata/hard that have
+// ports (stacked and antiparallel junctions, rectifiers, breakdown, tiny
+// and huge values), swept over 1 MHz to 10 GHz (a shifted form) and over
+// 1 kHz to 100 GHz (the Hessenberg-triangular form first): the reduced
+// engine, forced, equals the dense LU to 1e-9 relative.
+func TestReducedSweepHard(t *testing.T) {
+	files, _ := filepath.Glob("../testdata/hard/*.yaml")
+	swept := 0
+	for _, f := range files {
+		data, err := os.ReadFile(f)
+		if err != nil {
+			t.Fatal(err)
+		}
+		c, err := circuit.Parse(f, data)
+		if err != nil {
+			t.Fatal(err)
+		}
+		p, err := bias.Solve(c, bias.Settings{})
+		if err != nil {
+			t.Fatalf("%s: %v", f, err)
+		}
+		nw, err := smallsignal.New(p)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if len(nw.Ports) == 0 {
+			continue
+		}
+		for _, span := range [][2]float64{{1e6, 1e10}, {1e3, 1e11}} {
+			freqs, _ := LogGrid(span[0], span[1], 40)
+			red := sweepWith(t, nw, freqs, Settings{}, engineReduced)
+			lu := sweepWith(t, nw, freqs, Settings{}, engineLU)
+			if d := sweepsDiffer(red, lu, 1e-9); d != "" {
+				t.Errorf("%s (n = %d), %g to %g Hz: %s", filepath.Base(f), nw.N, span[0], span[1], d)
+			}
+			swept++
+		}
+	}
+	t.Logf("%d sweeps of hard circuits", swept)
+	if swept < 20 {
+		t.Errorf("only %d sweeps of hard circuits", swept)
+	}
 }
