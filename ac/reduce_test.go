@@ -1103,3 +1103,47 @@ func TestReducedSweepHard(t *testing.T) {
 		t.Errorf("only %d sweeps of hard circuits", swept)
 	}
 }
+
+// TestTinyReductions: every form reduces networks of one and two unknowns
+// (gonum's Dgehrd wants exactly n-1 reflector scalars: none for n = 1),
+// passes its check and sweeps them as the LU does.
+func TestTinyReductions(t *testing.T) {
+	for _, src := range []string{`name: one node
+parts:
+  - {type: resistor, name: R, between: [a, gnd], value: 100}
+  - {type: capacitor, name: C, between: [a, gnd], value: 1pF}
+ports:
+  - {name: p, node: a, impedance: 50}
+`, `name: two nodes
+parts:
+  - {type: resistor, name: R, between: [a, b], value: 100}
+  - {type: capacitor, name: C, between: [b, gnd], value: 1pF}
+ports:
+  - {name: p, node: a, impedance: 50}
+  - {name: q, node: b, impedance: 50}
+`} {
+		nw := network(t, src)
+		ref := make([]float64, len(nw.Ports))
+		for i, p := range nw.Ports {
+			ref[i] = p.Impedance
+		}
+		freqs, _ := LinearGrid(1e6, 1e9, 100)
+		lu := sweepWith(t, nw, freqs, Settings{}, engineLU)
+		for _, form := range []reductionForm{formShifted, formSchur, formTriangular} {
+			r, err := reduceFor(nw, 1e6, 1e9, form)
+			if err != nil {
+				t.Fatalf("n = %d, %v: %v", nw.N, form, err)
+			}
+			if !r.sweepAccurate(nw, ref, nil, 1e6, 1e9) {
+				t.Errorf("n = %d, %v: fails its accuracy check", nw.N, form)
+			}
+			var pts []Point
+			if _, err := r.sweep(nw, freqs, ref, nil, func(p Point) error { pts = append(pts, p); return nil }, nil); err != nil {
+				t.Fatal(err)
+			}
+			if d := sweepsDiffer(pts, lu, 1e-9); d != "" {
+				t.Errorf("n = %d, %v: %s", nw.N, form, d)
+			}
+		}
+	}
+}

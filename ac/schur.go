@@ -18,7 +18,7 @@ import (
 // real dot products or axpys per row on the parts of the vector (gonum's
 // Ddot and Daxpy). That halves a point's cost against the Hessenberg
 // elimination; the Schur form costs about three times the Hessenberg
-// reduction, so it is taken for long sweeps only (useSchur).
+// reduction, so it is taken for long sweeps only (schurPointsPerUnknown).
 type quasi struct {
 	n    int
 	s    []float64    // S, n×n row-major, zero below the 2×2 blocks

@@ -92,7 +92,7 @@ func reduceShifted(g, c *mat.Dense, wRef float64, schur bool) (*reduction, error
 			}
 		}
 	}
-	tau := make([]float64, max(n-1, 1))
+	tau := make([]float64, n-1) // Dgehrd wants exactly n-1
 	impl.Dgehrd(n, 0, n-1, m, n, tau, work, -1)
 	if need := int(work[0]); need > len(work) {
 		work = make([]float64, need)
@@ -112,11 +112,11 @@ func reduceShifted(g, c *mat.Dense, wRef float64, schur bool) (*reduction, error
 		}
 		h[i*n+i]++
 	}
-	sb := &shiftedBasis{n: n, lu: k, ipiv: ipiv, rcond: rc, dr: dr, dc: dc, tau: tau[:max(n-1, 0)],
+	sb := &shiftedBasis{n: n, lu: k, ipiv: ipiv, rcond: rc, dr: dr, dc: dc, tau: tau,
 		re: make([]float64, n), im: make([]float64, n)}
 	r.h, r.t, r.basis, r.shift = h, t, sb, sigma
 	if schur {
-		if err := schurSetup(r, m, sb.tau); err != nil {
+		if err := schurSetup(r, m, tau); err != nil {
 			return nil, err
 		}
 		r.alloc()
