@@ -31,10 +31,12 @@ const (
 // The engine choice. The reduction costs O(n³) once and each point
 // O(n²); the LU costs O(n³) at every point. Both the reduction and the
 // LU point grow as n³, so the point count at which the reduction pays for
-// itself hardly depends on n: BenchmarkEngines measured it at 21 to 43
-// points for n = 20 to 500 (reduction and accuracy check against the LU's
-// cost per point; BENCHMARKS.md). Below minReducedN unknowns every method
-// takes microseconds and the LU, which needs no setup, is kept.
+// itself depends little on n: from BenchmarkEngines (BENCHMARKS.md), the
+// setup (reduction and accuracy check) over the LU's cost per point less
+// the reduced point's is 6 to 46 points for n = 20 to 500, the most at
+// n = 20 (the Hessenberg-triangular form alone had measured 21 to 43).
+// Below minReducedN unknowns every method takes microseconds and the LU,
+// which needs no setup, is kept.
 const (
 	minReducedPoints = 48
 	minReducedN      = 12
