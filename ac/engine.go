@@ -22,9 +22,9 @@ const (
 	// engineLU factors Y(jw) = G + jwC densely at every frequency: O(n³)
 	// per point, nothing shared.
 	engineLU
-	// engineReduced reduces (G, C) once to Hessenberg-triangular form and
+	// engineReduced reduces (G, C) once (see reduction for the forms) and
 	// solves each frequency in O(n²); it still falls back to the LU when
-	// its accuracy check fails.
+	// no form passes its accuracy check.
 	engineReduced
 )
 
@@ -358,8 +358,8 @@ func symmetric(m blas64.General, n int) bool {
 func (r *reduction) points(nw *smallsignal.Network, ref []float64, probes []string) *pointEval {
 	n, np := r.n, len(nw.Ports)
 	ev := &pointEval{r: r, ref: ref, c: make([][]complex128, np), y: make([][]complex128, np), dy: make([]complex128, n)}
-	// The port excitations in reduced coordinates, c_j = Qᵀ Dr b_j, do
-	// not depend on frequency.
+	// The port excitations in reduced coordinates, c_j = L b_j, do not
+	// depend on frequency.
 	b := make([]complex128, n)
 	for j := range ev.c {
 		ev.c[j], ev.y[j] = make([]complex128, n), make([]complex128, n)

@@ -24,20 +24,23 @@ import (
 // partial pivoting only ever swaps adjacent rows, so factoring it costs
 // n²/2 complex multiply-adds and each solve about as much.
 //
-// Two forms, tried in this order (reduceFor):
+// Three forms (reduceFor; reduceAccurate tries them in an order set by
+// the sweep's length and width):
 //
 //   - shifted (reduceShifted): with a real shift σ at which K = G + σC is
 //     regular, G + sC = K (I + (s-σ) K⁻¹C); the Hessenberg form of
 //     M = K⁻¹C by orthogonal similarity, M = U Hm Uᵀ (gonum's blocked
 //     Dgehrd), gives H = I - σHm, T = Hm, L = Uᵀ K⁻¹, R = U. This is
-//     Laub's own route, the state matrix replaced by K⁻¹C; it costs
-//     about a quarter of the other at n = 200 (BENCHMARKS.md).
+//     Laub's own route, the state matrix replaced by K⁻¹C; its setup
+//     costs about a third of the other forms' (BENCHMARKS.md).
+//   - shifted Schur (schurSetup): the same, carried on to the real Schur
+//     form of Hm, so that a point needs only substitutions (quasi).
 //   - Hessenberg-triangular (reduceTriangular): Q, Z orthogonal from a
 //     QR factorisation of C and gonum's Dgghrd (Moler and Stewart 1973),
 //     H upper Hessenberg, T upper triangular, L = Qᵀ, R = Z. It needs no
-//     regular K, and takes over where the shifted form fails its check.
+//     regular K, and takes over where a shifted form fails its check.
 //
-// Both balance first: G and C become Dr G Dc and Dr C Dc, with Dr, Dc
+// All balance first: G and C become Dr G Dc and Dr C Dc, with Dr, Dc
 // diagonal powers of two (exact), folded into L and R.
 //
 // A reduction holds O(n²) numbers (H, T, the basis and one
