@@ -12,6 +12,7 @@ import (
 
 	"qpoint/ac"
 	"qpoint/ac/study"
+	"qpoint/bias"
 	"qpoint/bias/circuit"
 	"qpoint/bias/si"
 	"qpoint/plots"
@@ -83,10 +84,7 @@ func buildReport(c *circuit.Circuit, temperature string) (*report.Document, erro
 	for _, w := range p.Warnings {
 		doc.Cautions = append(doc.Cautions, w.Part+": "+w.Message)
 	}
-	for _, d := range p.Diodes {
-		doc.Cards = append(doc.Cards, report.Card{Label: d.Name + " bias", Value: si.Format(d.Current, "A", 3),
-			Detail: fmt.Sprintf("r_d %s, C_j %s", si.Format(d.DynamicResistance, "Ω", 3), si.Format(d.JunctionCapacitance, "F", 3))})
-	}
+	doc.Cards = append(doc.Cards, biasCards(p)...)
 
 	// Circuit summary.
 	parts := &table{title: "Parts", header: []string{"name", "type", "terminals", "value / model"}}
@@ -302,4 +300,35 @@ func studySection(c *circuit.Circuit) (report.Section, error) {
 	}
 	sec.Blocks = append(sec.Blocks, report.Block{Table: t.report()})
 	return sec, nil
+}
+
+// biasCards returns the report's headline cards for the diodes' bias: one
+// per diode, or for more than maxListedDiodes one card with their count and
+// current range (the operating-point section lists them all).
+func biasCards(p *bias.Point) []report.Card {
+	if len(p.Diodes) <= maxListedDiodes {
+		var cards []report.Card
+		for _, d := range p.Diodes {
+			cards = append(cards, report.Card{Label: d.Name + " bias", Value: si.Format(d.Current, "A", 3),
+				Detail: fmt.Sprintf("r_d %s, C_j %s", si.Format(d.DynamicResistance, "Ω", 3), si.Format(d.JunctionCapacitance, "F", 3))})
+		}
+		return cards
+	}
+	lo, hi := p.Diodes[0], p.Diodes[0]
+	for _, d := range p.Diodes[1:] {
+		if d.Current < lo.Current {
+			lo = d
+		}
+		if d.Current > hi.Current {
+			hi = d
+		}
+	}
+	least, most := si.Format(lo.Current, "A", 3), si.Format(hi.Current, "A", 3)
+	card := report.Card{Label: fmt.Sprintf("bias of %d diodes", len(p.Diodes)), Value: least,
+		Detail: "each; the operating point lists them"}
+	if least != most {
+		card.Value = least + " to " + most
+		card.Detail = fmt.Sprintf("%s to %s; the operating point lists them all", lo.Name, hi.Name)
+	}
+	return []report.Card{card}
 }
