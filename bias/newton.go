@@ -47,15 +47,15 @@ func (st *state) copyFrom(o *state) {
 
 // scratch holds work vectors reused across iterations.
 type scratch struct {
-	b, vj, r, scale, floor []float64
-	save                   []float64 // an iterate kept while refine tries a step
-	good                   state     // the last iterate a homotopy reached, sized when one runs
+	b, junction, r, scale, floor []float64
+	save                         []float64 // an iterate kept while refine tries a step
+	good                         state     // the last iterate a homotopy reached, sized when one runs
 }
 
 // reset sizes w for s, keeping its storage where it is large enough.
 func (w *scratch) reset(s *system) {
 	w.b = resize(w.b, s.n)
-	w.vj = resize(w.vj, len(s.junctions))
+	w.junction = resize(w.junction, len(s.junctions))
 	w.r = resize(w.r, s.n)
 	w.scale = resize(w.scale, s.n)
 	w.floor = resize(w.floor, s.n)
@@ -86,10 +86,10 @@ func (s *system) newton(st *state, lambda, gmin float64, maxIter int, w *scratch
 	}
 	prevWorst := math.Inf(1)
 	for it := 1; it <= maxIter; it++ {
-		s.junctionVoltages(st.x, w.vj)
+		s.junctionVoltages(st.x, w.junction)
 		limited := false
 		for k, j := range s.junctions {
-			v, lim := j.dev.Limit(w.vj[k], st.vl[k])
+			v, lim := j.dev.Limit(w.junction[k], st.vl[k])
 			st.vl[k] = v
 			limited = limited || lim
 		}

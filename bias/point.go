@@ -124,26 +124,26 @@ func (s *system) point(st *state, p *Point) {
 
 	for _, j := range s.junctions {
 		part := c.Parts[j.part]
-		vj := volt(st.x, j.internal) - volt(st.x, j.cathode)
+		junction := volt(st.x, j.internal) - volt(st.x, j.cathode)
 		vt := volt(st.x, j.anode) - volt(st.x, j.cathode)
-		i := j.dev.Current(vj)
+		i := j.dev.Current(junction)
 		d := Diode{
 			Name:                 part.Name,
 			Model:                part.Model,
 			Device:               j.dev,
 			Voltage:              vt,
-			JunctionVoltage:      vj,
+			JunctionVoltage:      junction,
 			Current:              i.Value,
 			Conductance:          i.D1,
 			DynamicResistance:    1 / i.D1,
-			JunctionCapacitance:  j.dev.DepletionCharge(vj).D1,
-			DiffusionCapacitance: j.dev.DiffusionCharge(vj).D1,
+			JunctionCapacitance:  j.dev.DepletionCharge(junction).D1,
+			DiffusionCapacitance: j.dev.DiffusionCharge(junction).D1,
 			Power:                vt * i.Value,
 		}
 		if i.D1 == 0 {
 			d.DynamicResistance = math.Inf(1)
 		}
-		d.InBreakdown = -j.dev.BreakdownCurrent(vj).Value > j.dev.SaturationCurrent
+		d.InBreakdown = -j.dev.BreakdownCurrent(junction).Value > j.dev.SaturationCurrent
 		r := j.dev.Params.Ratings
 		d.CurrentFraction = fraction(math.Max(i.Value, 0), r.MaxCurrent)
 		d.ReverseVoltageFraction = fraction(math.Max(-vt, 0), r.MaxReverseVoltage)

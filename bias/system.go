@@ -123,10 +123,10 @@ func (s *system) build(c *circuit.Circuit, tempK float64) error {
 			return err
 		}
 		j := junction{anode: a, internal: a, cathode: k, dev: dev, part: pi}
-		if rs := m.Params.SeriesResistance; rs > 0 {
+		if series := m.Params.SeriesResistance; series > 0 {
 			j.internal = s.nNodes
 			s.nNodes++
-			s.conds = append(s.conds, conductance{a, j.internal, 1 / rs})
+			s.conds = append(s.conds, conductance{a, j.internal, 1 / series})
 		}
 		s.junctions = append(s.junctions, j)
 	}
@@ -237,10 +237,10 @@ func addRHS(b []float64, i int, v float64) {
 	}
 }
 
-// junctionVoltages writes each junction's intrinsic voltage at x into vj.
-func (s *system) junctionVoltages(x, vj []float64) {
+// junctionVoltages writes each junction's intrinsic voltage at x into voltages.
+func (s *system) junctionVoltages(x, voltages []float64) {
 	for k, j := range s.junctions {
-		vj[k] = volt(x, j.internal) - volt(x, j.cathode)
+		voltages[k] = volt(x, j.internal) - volt(x, j.cathode)
 	}
 }
 

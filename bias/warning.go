@@ -81,14 +81,14 @@ func cautions(p *Point) []Warning {
 			add(d.Name, Overdriven, "junction forced to %s with nothing to limit its current (%s): no real part survives this; add the resistance that sets the current",
 				si.Format(d.JunctionVoltage, "V", 3), si.Format(d.Current, "A", 3))
 		}
-		bv := dev.Params.BreakdownVoltage
+		kneeVoltage := dev.Params.BreakdownVoltage
 		switch {
 		case d.InBreakdown:
 			add(d.Name, Breakdown, "in reverse breakdown: junction at %s, knee at %s, current %s",
-				si.Format(d.JunctionVoltage, "V", 4), si.Format(-bv, "V", 3), si.Format(d.Current, "A", 3))
-		case bv > 0 && -d.JunctionVoltage > 0.8*bv:
+				si.Format(d.JunctionVoltage, "V", 4), si.Format(-kneeVoltage, "V", 3), si.Format(d.Current, "A", 3))
+		case kneeVoltage > 0 && -d.JunctionVoltage > 0.8*kneeVoltage:
 			add(d.Name, Breakdown, "reverse voltage %s is %.0f%% of the breakdown voltage %s",
-				si.Format(-d.JunctionVoltage, "V", 3), 100*-d.JunctionVoltage/bv, si.Format(bv, "V", 3))
+				si.Format(-d.JunctionVoltage, "V", 3), 100*-d.JunctionVoltage/kneeVoltage, si.Format(kneeVoltage, "V", 3))
 		case d.JunctionVoltage < -5*dev.NVT():
 			add(d.Name, LeakageDominated, "reverse biased at %s: its current %s is leakage set by the saturation current, which varies widely between parts and with temperature",
 				si.Format(d.JunctionVoltage, "V", 3), si.Format(d.Current, "A", 3))

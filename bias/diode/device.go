@@ -96,12 +96,12 @@ func expLaw(a float64) (e, e1, e2, e3 float64) {
 // without the breakdown knee.
 func (d *Device) ForwardCurrent(v float64) Law {
 	e, e1, e2, e3 := expLaw(v / d.nvt)
-	is := d.SaturationCurrent
+	saturation := d.SaturationCurrent
 	return Law{
-		Value: is * (e - 1),
-		D1:    is * e1 / d.nvt,
-		D2:    is * e2 / (d.nvt * d.nvt),
-		D3:    is * e3 / (d.nvt * d.nvt * d.nvt),
+		Value: saturation * (e - 1),
+		D1:    saturation * e1 / d.nvt,
+		D2:    saturation * e2 / (d.nvt * d.nvt),
+		D3:    saturation * e3 / (d.nvt * d.nvt * d.nvt),
 	}
 }
 
@@ -112,19 +112,19 @@ func (d *Device) ForwardCurrent(v float64) Law {
 // which equals -I_BV (to within I_BV e^(-V_BV/nV_T)) at v = -V_BV and is
 // exactly zero at v = 0. It is zero for a model without a knee.
 func (d *Device) BreakdownCurrent(v float64) Law {
-	bv := d.Params.BreakdownVoltage
-	if bv <= 0 {
+	kneeVoltage := d.Params.BreakdownVoltage
+	if kneeVoltage <= 0 {
 		return Law{}
 	}
-	ibv := d.Params.BreakdownCurrent
-	e, e1, e2, e3 := expLaw(-(v + bv) / d.nvt)
-	e0 := math.Exp(-bv / d.nvt)
+	kneeCurrent := d.Params.BreakdownCurrent
+	e, e1, e2, e3 := expLaw(-(v + kneeVoltage) / d.nvt)
+	e0 := math.Exp(-kneeVoltage / d.nvt)
 	k := d.nvt
 	return Law{
-		Value: -ibv * (e - e0),
-		D1:    ibv * e1 / k,
-		D2:    -ibv * e2 / (k * k),
-		D3:    ibv * e3 / (k * k * k),
+		Value: -kneeCurrent * (e - e0),
+		D1:    kneeCurrent * e1 / k,
+		D2:    -kneeCurrent * e2 / (k * k),
+		D3:    kneeCurrent * e3 / (k * k * k),
 	}
 }
 
@@ -143,16 +143,16 @@ func (d *Device) Current(v float64) Law {
 // value, slope and curvature at V_bi/2, so that q_j and its first three
 // derivatives are continuous everywhere.
 func (d *Device) DepletionCharge(v float64) Law {
-	cj0 := d.ZeroBiasCapacitance
-	if cj0 == 0 {
+	zeroBias := d.ZeroBiasCapacitance
+	if zeroBias == 0 {
 		return Law{}
 	}
 	vb, m := d.BuiltInPotential, d.Params.Grading
 	v1 := depletionKnee * vb
 	if v <= v1 {
-		return textbookDepletion(v, cj0, vb, m)
+		return textbookDepletion(v, zeroBias, vb, m)
 	}
-	k := textbookDepletion(v1, cj0, vb, m)
+	k := textbookDepletion(v1, zeroBias, vb, m)
 	dv := v - v1
 	return Law{
 		Value: k.Value + k.D1*dv + k.D2*dv*dv/2 + k.D3*dv*dv*dv/6,
@@ -208,14 +208,14 @@ func (d *Device) Limit(vNew, vOld float64) (float64, bool) {
 	if limited {
 		return v, true
 	}
-	bv := d.Params.BreakdownVoltage
-	if bv > 0 && vNew < -bv+d.nvt {
+	kneeVoltage := d.Params.BreakdownVoltage
+	if kneeVoltage > 0 && vNew < -kneeVoltage+d.nvt {
 		vc := d.nvt * math.Log(d.nvt/(math.Sqrt2*d.Params.BreakdownCurrent))
 		// In the mirrored variable u = -(v + V_BV) the knee behaves like a
 		// forward junction with saturation current I_BV.
-		u, lim := limitExp(-(vNew + bv), -(vOld + bv), d.nvt, vc)
+		u, lim := limitExp(-(vNew + kneeVoltage), -(vOld + kneeVoltage), d.nvt, vc)
 		if lim {
-			return -(u + bv), true
+			return -(u + kneeVoltage), true
 		}
 	}
 	return vNew, false

@@ -68,8 +68,8 @@ func Defaults() Params {
 // breakdown knee's current is counted as shot noise too; a real avalanche
 // is noisier than that.
 func (d *Device) ShotNoise(v float64) float64 {
-	is := d.SaturationCurrent
-	return 2*Charge*(d.ForwardCurrent(v).Value+2*is) + 2*Charge*math.Abs(d.BreakdownCurrent(v).Value)
+	saturation := d.SaturationCurrent
+	return 2*Charge*(d.ForwardCurrent(v).Value+2*saturation) + 2*Charge*math.Abs(d.BreakdownCurrent(v).Value)
 }
 
 // FlickerNoise returns the one-sided power spectral density of the
