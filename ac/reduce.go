@@ -550,10 +550,10 @@ func (r *reduction) solveYT(c []complex128) {
 		return
 	}
 	for j := 0; j < n; j++ {
-		cj := c[j] * r.inv[j]
-		c[j] = cj
-		if cj != 0 && j+1 < n {
-			axpy(-cj, r.urow[j][1:], c[j+1:n])
+		solved := c[j] * r.inv[j]
+		c[j] = solved
+		if solved != 0 && j+1 < n {
+			axpy(-solved, r.urow[j][1:], c[j+1:n])
 		}
 	}
 	for k := n - 2; k >= 0; k-- {

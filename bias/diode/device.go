@@ -61,17 +61,17 @@ func New(p Params, tempK float64) *Device {
 	d.SaturationCurrent = p.SaturationCurrent * math.Pow(ratio, p.SaturationExponent/p.Ideality) *
 		math.Exp(p.GapEnergy/(p.Ideality*vt0)*(1/t0-1/tempK))
 
-	vbi := p.GapEnergy + ratio*(p.BuiltInPotential-p.GapEnergy) - 3*d.ThermalVoltage*math.Log(ratio)
+	builtIn := p.GapEnergy + ratio*(p.BuiltInPotential-p.GapEnergy) - 3*d.ThermalVoltage*math.Log(ratio)
 	// The law is for a junction between two doped regions; far from T0 or
 	// with an unusual E_g it can leave the physical range. Keep V_bi
 	// positive and say so.
 	floor := 0.1 * p.BuiltInPotential
-	if vbi < floor {
-		d.Notes = append(d.Notes, fmt.Sprintf("built-in potential at %.2f K computes to %.3g V; held at %.3g V", tempK, vbi, floor))
-		vbi = floor
+	if builtIn < floor {
+		d.Notes = append(d.Notes, fmt.Sprintf("built-in potential at %.2f K computes to %.3g V; held at %.3g V", tempK, builtIn, floor))
+		builtIn = floor
 	}
-	d.BuiltInPotential = vbi
-	d.ZeroBiasCapacitance = p.ZeroBiasCapacitance * math.Pow(p.BuiltInPotential/vbi, p.Grading)
+	d.BuiltInPotential = builtIn
+	d.ZeroBiasCapacitance = p.ZeroBiasCapacitance * math.Pow(p.BuiltInPotential/builtIn, p.Grading)
 	return d
 }
 

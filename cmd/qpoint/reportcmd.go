@@ -98,12 +98,12 @@ func buildReport(c *circuit.Circuit, temperature string) (*report.Document, erro
 	models := &table{title: "Diode models", header: []string{"model", "I_S", "n", "R_S", "C_j0", "V_bi", "m", "τ_T", "breakdown"}}
 	for _, name := range c.ModelOrder {
 		m := c.Models[name].Params
-		bv := "none"
+		knee := "none"
 		if m.BreakdownVoltage > 0 {
-			bv = si.Format(m.BreakdownVoltage, "V", 3) + " at " + si.Format(m.BreakdownCurrent, "A", 3)
+			knee = si.Format(m.BreakdownVoltage, "V", 3) + " at " + si.Format(m.BreakdownCurrent, "A", 3)
 		}
 		models.add(name, si.Format(m.SaturationCurrent, "A", 3), fmt.Sprintf("%.3g", m.Ideality), si.Format(m.SeriesResistance, "Ω", 3),
-			si.Format(m.ZeroBiasCapacitance, "F", 3), si.Format(m.BuiltInPotential, "V", 3), fmt.Sprintf("%.3g", m.Grading), si.Format(m.TransitTime, "s", 3), bv)
+			si.Format(m.ZeroBiasCapacitance, "F", 3), si.Format(m.BuiltInPotential, "V", 3), fmt.Sprintf("%.3g", m.Grading), si.Format(m.TransitTime, "s", 3), knee)
 	}
 	ports := &table{title: "Ports", header: []string{"port", "node", "return", "impedance", "coupling"}}
 	for _, pt := range c.Ports {
