@@ -659,6 +659,19 @@ func (sh *shooter) integrate(x0, p []float64, steps int, sens bool) (*trajectory
 		// of it and the period map keeps no neutral direction. Hence the
 		// odd step counts.
 		a, mem := 2/h, 1.0
+		// stepMatrix loads J = dF/dx = G(x) + a C(x) on dynamic rows,
+		// G(x) on algebraic ones, from the last evaluation, into jac.
+		stepMatrix := func() {
+			for i := 0; i < n; i++ {
+				for j := 0; j < n; j++ {
+					v := jg[i*n+j]
+					if sh.dyn[i] {
+						v += a * jc[i*n+j]
+					}
+					jac.Set(i, j, v)
+				}
+			}
+		}
 		// Newton for x_{n+1}: F = f + a (q - q_n) - mem qd_n on dynamic
 		// rows, f on algebraic rows.
 		for k, d := range sh.nw.Diodes {
@@ -674,14 +687,8 @@ func (sh *shooter) integrate(x0, p []float64, steps int, sens bool) (*trajectory
 					r += a*(q[i]-qPrev[i]) - mem*qd[i]
 				}
 				rhs[i] = -r
-				for j := 0; j < n; j++ {
-					v := jg[i*n+j]
-					if sh.dyn[i] {
-						v += a * jc[i*n+j]
-					}
-					jac.Set(i, j, v)
-				}
 			}
+			stepMatrix()
 			lu.Factorize(jac)
 			if err := lu.SolveVecTo(dx, false, rhsVec); !solved(err) {
 				return nil, fmt.Errorf("singular step matrix at t = %g s", t)
@@ -734,15 +741,7 @@ func (sh *shooter) integrate(x0, p []float64, steps int, sens bool) (*trajectory
 		if sens {
 			// J S_{n+1} = a C_n S_n + mem Qd_n - df/dp  (dynamic rows)
 			// J S_{n+1} = -df/dp                        (algebraic rows)
-			for i := 0; i < n; i++ {
-				for j := 0; j < n; j++ {
-					v := jg[i*n+j]
-					if sh.dyn[i] {
-						v += a * jc[i*n+j]
-					}
-					jac.Set(i, j, v)
-				}
-			}
+			stepMatrix()
 			lu.Factorize(jac)
 			for i := 0; i < n; i++ {
 				for j := 0; j < nz; j++ {
