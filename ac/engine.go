@@ -195,13 +195,10 @@ func (r *reduction) refinedPoint(nw *smallsignal.Network, ref []float64, probes 
 			x0 = x
 		}
 		for i := 0; i < np; i++ {
-			pt.S[i][j] = 2*nw.PortVoltage(i, x)*complex(math.Sqrt(ref[j]/ref[i]), 0) - delta(i, j)
+			pt.S[i][j] = sEntry(nw.PortVoltage(i, x), ref, i, j)
 		}
 	}
-	for i := 0; i < np; i++ {
-		sii := pt.S[i][i]
-		pt.InputImpedance[i] = complex(ref[i], 0) * (1 + sii) / (1 - sii)
-	}
+	setImpedances(&pt, ref)
 	for _, p := range probes {
 		pt.Probes = append(pt.Probes, at(x0, p))
 	}
@@ -212,21 +209,8 @@ func (r *reduction) refinedPoint(nw *smallsignal.Network, ref []float64, probes 
 	}
 	dx := r.refine(w, b, false)
 	out := groupDelayPort(np)
-	sv := pt.S[out][0]
-	dS := 2 * nw.PortVoltage(out, dx) * complex(math.Sqrt(ref[0]/ref[out]), 0)
-	if sv != 0 && !cmplx.IsNaN(sv) {
-		pt.GroupDelay = -imag(dS / sv)
-	} else {
-		pt.GroupDelay = math.NaN()
-	}
+	setGroupDelay(&pt, ref, out, nw.PortVoltage(out, dx))
 	return pt
-}
-
-func delta(i, j int) complex128 {
-	if i == j {
-		return 1
-	}
-	return 0
 }
 
 // sweepAccurate reports whether the reduced engine's points agree with
@@ -277,10 +261,7 @@ func pointsDiffer(p, q Point, rel, floor float64) string {
 			return fmt.Sprintf("at %g Hz: probe %d = %v against %v", q.FrequencyHz, i, p.Probes[i], q.Probes[i])
 		}
 	}
-	out := 0
-	if len(q.S) > 1 {
-		out = 1
-	}
+	out := groupDelayPort(len(q.S))
 	s := cmplx.Abs(q.S[out][0])
 	if s == 0 {
 		// An exact zero of the LU (a path its sparsity cuts) is rounding
@@ -433,7 +414,7 @@ func (ev *pointEval) at(hz float64, store *pointStore) (Point, bool) {
 			r.solveY(ev.solves[k])
 		}
 	}
-	// S_ij = 2 V_i sqrt(R_j/R_i) - δ_ij for unit EMF at port j, with
+	// S_ij from V_i (sEntry) for unit EMF at port j, with
 	// V_i = vrow[i]·y_j, or vᵀ c_j for i = out (v the adjoint solution).
 	for j := 0; j < np; j++ {
 		for i := 0; i < np; i++ {
@@ -446,11 +427,7 @@ func (ev *pointEval) at(hz float64, store *pointStore) (Point, bool) {
 			default:
 				v = dotReal(ev.vrow[i], ev.y[j])
 			}
-			sij := 2 * v * complex(math.Sqrt(ref[j]/ref[i]), 0)
-			if i == j {
-				sij--
-			}
-			pt.S[i][j] = sij
+			pt.S[i][j] = sEntry(v, ref, i, j)
 		}
 	}
 	if ev.reciprocal {
@@ -458,24 +435,14 @@ func (ev *pointEval) at(hz float64, store *pointStore) (Point, bool) {
 			pt.S[i][out] = pt.S[out][i]
 		}
 	}
-	for i := 0; i < np; i++ {
-		sii := pt.S[i][i]
-		pt.InputImpedance[i] = complex(ref[i], 0) * (1 + sii) / (1 - sii)
-	}
+	setImpedances(&pt, ref)
 	for _, p := range ev.prow {
 		pt.Probes = append(pt.Probes, dotReal(p, ev.y[0]))
 	}
 	// Group delay: dx/dw = -Y⁻¹ jC x, and with L (G + sC) R = H + sT and
 	// x = R y this is dy/dw = -j (H + jwT)⁻¹ T y; the output's share,
 	// vrow[out]·dy, is -j vᵀ T y with the adjoint v factor solved.
-	dv := -1i * ev.adjointT(ev.c[0], ev.y[0])
-	sv := pt.S[out][0]
-	dS := 2 * dv * complex(math.Sqrt(ref[0]/ref[out]), 0)
-	if sv != 0 && !cmplx.IsNaN(sv) {
-		pt.GroupDelay = -imag(dS / sv)
-	} else {
-		pt.GroupDelay = math.NaN()
-	}
+	setGroupDelay(&pt, ref, out, -1i*ev.adjointT(ev.c[0], ev.y[0]))
 	return pt, true
 }
 

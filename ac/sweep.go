@@ -163,18 +163,10 @@ func (ws *Workspace) sweep(nw *smallsignal.Network, freqs []float64, s Settings,
 			nw.Excitation(j, 1, x[j])
 			f.solve(x[j])
 			for i := 0; i < np; i++ {
-				v := nw.PortVoltage(i, x[j])
-				sij := 2 * v * complex(math.Sqrt(ref[j]/ref[i]), 0)
-				if i == j {
-					sij--
-				}
-				pt.S[i][j] = sij
+				pt.S[i][j] = sEntry(nw.PortVoltage(i, x[j]), ref, i, j)
 			}
 		}
-		for i := 0; i < np; i++ {
-			sii := pt.S[i][i]
-			pt.InputImpedance[i] = complex(ref[i], 0) * (1 + sii) / (1 - sii)
-		}
+		setImpedances(&pt, ref)
 		for _, name := range probes {
 			v, _ := nw.NodeVoltage(name, x[0])
 			pt.Probes = append(pt.Probes, v)
@@ -192,24 +184,46 @@ func (ws *Workspace) sweep(nw *smallsignal.Network, freqs []float64, s Settings,
 			dx[i] = -1i * s
 		}
 		f.solve(dx)
-		out := 0
-		if np > 1 {
-			out = 1
-		}
-		dv := nw.PortVoltage(out, dx)
 		// S21 = k V and S11 = 2 V - 1: both derivatives follow from dV/dw.
-		sv := pt.S[out][0]
-		dS := 2 * dv * complex(math.Sqrt(ref[0]/ref[out]), 0)
-		if sv != 0 && !cmplx.IsNaN(sv) {
-			pt.GroupDelay = -imag(dS / sv)
-		} else {
-			pt.GroupDelay = math.NaN()
-		}
+		out := groupDelayPort(np)
+		setGroupDelay(&pt, ref, out, nw.PortVoltage(out, dx))
 		if err := visit(pt); err != nil {
 			return ports, probes, err
 		}
 	}
 	return ports, probes, nil
+}
+
+// sEntry returns S_ij = 2 V_i sqrt(R_j/R_i) - δ_ij from the voltage V_i
+// across port i for a unit EMF at port j (power waves, real references).
+func sEntry(v complex128, ref []float64, i, j int) complex128 {
+	s := 2 * v * complex(math.Sqrt(ref[j]/ref[i]), 0)
+	if i == j {
+		s--
+	}
+	return s
+}
+
+// setImpedances fills a point's input impedances from its S-matrix:
+// Z_i = R_i (1 + S_ii)/(1 - S_ii).
+func setImpedances(pt *Point, ref []float64) {
+	for i := range pt.InputImpedance {
+		sii := pt.S[i][i]
+		pt.InputImpedance[i] = complex(ref[i], 0) * (1 + sii) / (1 - sii)
+	}
+}
+
+// setGroupDelay sets the point's group delay -d(arg S)/dw of S_out,1 from
+// dv, the derivative of port out's voltage for a unit EMF at port 1:
+// -Im(S'/S) with S' = 2 dv sqrt(R_1/R_out); NaN where S vanishes.
+func setGroupDelay(pt *Point, ref []float64, out int, dv complex128) {
+	sv := pt.S[out][0]
+	dS := 2 * dv * complex(math.Sqrt(ref[0]/ref[out]), 0)
+	if sv != 0 && !cmplx.IsNaN(sv) {
+		pt.GroupDelay = -imag(dS / sv)
+	} else {
+		pt.GroupDelay = math.NaN()
+	}
 }
 
 // newPoint returns a Point for np ports whose S-matrix rows and input

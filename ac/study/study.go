@@ -140,6 +140,17 @@ type Result struct {
 // At returns the step at (i, j).
 func (r *Result) At(i, j int) *Step { return &r.Steps[j*r.Shape[0]+i] }
 
+// FirstSolved returns the first step, in grid order, that solved, or nil
+// if none did.
+func (r *Result) FirstSolved() *Step {
+	for i := range r.Steps {
+		if r.Steps[i].Err == nil {
+			return &r.Steps[i]
+		}
+	}
+	return nil
+}
+
 // Run performs the study.
 func Run(c *circuit.Circuit, s Settings) (*Result, error) {
 	if s.Axis.Vary == nil || len(s.Axis.Values) == 0 {

@@ -89,6 +89,21 @@ func celsius(k float64) float64 { return k - diode.ZeroCelsius }
 // beyond it the header gives their count and current range.
 const maxListedDiodes = 6
 
+// currentRange returns the diodes with the least and the greatest current
+// (the first of each in file order); diodes must not be empty.
+func currentRange(diodes []bias.Diode) (lo, hi bias.Diode) {
+	lo, hi = diodes[0], diodes[0]
+	for _, d := range diodes[1:] {
+		if d.Current < lo.Current {
+			lo = d
+		}
+		if d.Current > hi.Current {
+			hi = d
+		}
+	}
+	return lo, hi
+}
+
 // biasLine returns the header line that says how the bias was solved and
 // where the diodes sit: each diode's current, or for many diodes their
 // count and the least and greatest current.
@@ -101,15 +116,7 @@ func biasLine(p *bias.Point) string {
 		}
 		return b.String()
 	}
-	lo, hi := p.Diodes[0], p.Diodes[0]
-	for _, d := range p.Diodes[1:] {
-		if d.Current < lo.Current {
-			lo = d
-		}
-		if d.Current > hi.Current {
-			hi = d
-		}
-	}
+	lo, hi := currentRange(p.Diodes)
 	least, most := si.Format(lo.Current, "A", 3), si.Format(hi.Current, "A", 3)
 	if least == most {
 		fmt.Fprintf(&b, "; %d diodes, each at %s", len(p.Diodes), least)

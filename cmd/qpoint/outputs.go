@@ -146,13 +146,7 @@ func studyFigures(r *study.Result, show string) []*plots.Figure {
 // the detector's sensitivity or the distortion when a level is set.
 func defaultStudyMeasures(r *study.Result) []*study.Measure {
 	var texts []string
-	var first *study.Step
-	for i := range r.Steps {
-		if r.Steps[i].Err == nil {
-			first = &r.Steps[i]
-			break
-		}
-	}
+	first := r.FirstSolved()
 	if first == nil {
 		return nil
 	}

@@ -314,15 +314,7 @@ func biasCards(p *bias.Point) []report.Card {
 		}
 		return cards
 	}
-	lo, hi := p.Diodes[0], p.Diodes[0]
-	for _, d := range p.Diodes[1:] {
-		if d.Current < lo.Current {
-			lo = d
-		}
-		if d.Current > hi.Current {
-			hi = d
-		}
-	}
+	lo, hi := currentRange(p.Diodes)
 	least, most := si.Format(lo.Current, "A", 3), si.Format(hi.Current, "A", 3)
 	card := report.Card{Label: fmt.Sprintf("bias of %d diodes", len(p.Diodes)), Value: least,
 		Detail: "each; the operating point lists them"}

@@ -454,13 +454,7 @@ func studyColumns(r *study.Result) []column {
 		n2, u2 := axisHeader(r.Settings.Second, r.Settings.SecondIsFrequency)
 		cols = append(cols, column{n2 + "_" + unitOrNumber(u2), n2, u2, func(st *study.Step) float64 { return st.Values[1] }})
 	}
-	var first *study.Step
-	for i := range r.Steps {
-		if r.Steps[i].Err == nil {
-			first = &r.Steps[i]
-			break
-		}
-	}
+	first := r.FirstSolved()
 	if first == nil {
 		return cols
 	}
