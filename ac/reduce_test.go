@@ -202,16 +202,9 @@ func sweepsDifferAbove(a, b []Point, rel, floor float64) string {
 // chosen (its accuracy check passes) and its sweep equals the dense LU's
 // to 1e-9 relative in S, Z_in, probes and group delay.
 func TestReducedSweepDemos(t *testing.T) {
-	files, _ := filepath.Glob("../testdata/demo/*.yaml")
-	if len(files) == 0 {
-		t.Fatal("no demo circuits found")
-	}
-	for _, f := range files {
-		data, err := os.ReadFile(f)
-		if err != nil {
-			t.Fatal(err)
-		}
-		nw := network(t, string(data))
+	names, networks := demoNetworks(t)
+	for k, nw := range networks {
+		f := names[k]
 		freqs, _ := LogGrid(1e3, 1e11, 25)
 		ref := make([]float64, len(nw.Ports))
 		for i, p := range nw.Ports {
@@ -410,13 +403,9 @@ func TestSolverAdjoint(t *testing.T) {
 // solves at f1, 2f1, 3f1, f2, f1 ± f2 and 2f1 - f2 run on the reduction or
 // the LU.
 func TestVolterraEngines(t *testing.T) {
-	files, _ := filepath.Glob("../testdata/demo/*.yaml")
-	for _, f := range files {
-		data, err := os.ReadFile(f)
-		if err != nil {
-			t.Fatal(err)
-		}
-		nw := network(t, string(data))
+	names, networks := demoNetworks(t)
+	for k, nw := range networks {
+		f := names[k]
 		if len(nw.Diodes) == 0 {
 			continue
 		}
@@ -783,15 +772,7 @@ func TestSchurSweep(t *testing.T) {
 // output, an input port or none, and long log sweeps; most take the
 // reduction.
 func TestNoiseEngines(t *testing.T) {
-	var networks []*smallsignal.Network
-	files, _ := filepath.Glob("../testdata/demo/*.yaml")
-	for _, f := range files {
-		data, err := os.ReadFile(f)
-		if err != nil {
-			t.Fatal(err)
-		}
-		networks = append(networks, network(t, string(data)))
-	}
+	_, networks := demoNetworks(t)
 	for _, sections := range []int{3, 7, 12, 20} {
 		networks = append(networks, network(t, diodeLadder(sections)))
 	}

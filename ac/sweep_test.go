@@ -15,6 +15,24 @@ import (
 	"qpoint/smallsignal"
 )
 
+// demoNetworks loads and linearises every demo circuit, by file name.
+func demoNetworks(tb testing.TB) (names []string, networks []*smallsignal.Network) {
+	tb.Helper()
+	files, _ := filepath.Glob("../testdata/demo/*.yaml")
+	if len(files) == 0 {
+		tb.Fatal("no demo circuits found")
+	}
+	for _, f := range files {
+		data, err := os.ReadFile(f)
+		if err != nil {
+			tb.Fatal(err)
+		}
+		names = append(names, filepath.Base(f))
+		networks = append(networks, network(tb, string(data)))
+	}
+	return names, networks
+}
+
 // network loads a circuit from YAML text and linearises it at its bias.
 func network(tb testing.TB, src string) *smallsignal.Network {
 	tb.Helper()
@@ -188,16 +206,9 @@ ports:
 // TestDemosReciprocal: every demo circuit linearised at its bias is a
 // passive reciprocal network, so S_ij = S_ji (Pozar ch. 4).
 func TestDemosReciprocal(t *testing.T) {
-	files, _ := filepath.Glob("../testdata/demo/*.yaml")
-	if len(files) == 0 {
-		t.Fatal("no demo circuits found")
-	}
-	for _, f := range files {
-		data, err := os.ReadFile(f)
-		if err != nil {
-			t.Fatal(err)
-		}
-		nw := network(t, string(data))
+	names, networks := demoNetworks(t)
+	for k, nw := range networks {
+		f := names[k]
 		freqs, _ := LogGrid(1e6, 1e10, 5)
 		for _, p := range run(t, nw, freqs...).Points {
 			for i := range p.S {
