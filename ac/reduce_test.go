@@ -448,6 +448,7 @@ func TestVolterraEngines(t *testing.T) {
 			}
 		}
 		check("fundamental", red.Fundamental, lu.Fundamental, 0)
+		check("linear fundamental", red.Linear, lu.Linear, 0)
 		check("second fundamental", red.SecondFundamental, lu.SecondFundamental, 0)
 		product(HD2, red.HD2, lu.HD2)
 		product(HD3, red.HD3, lu.HD3)

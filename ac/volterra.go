@@ -32,6 +32,7 @@ type Product string
 // The products of the Volterra estimate.
 const (
 	DC      Product = "dc"       // rectified shift of the output's DC level
+	Gain3   Product = "gain3"    // third-order term at f1: compression or expansion, AM-to-PM
 	HD2     Product = "hd2"      // 2 f1
 	HD3     Product = "hd3"      // 3 f1
 	IM2Sum  Product = "im2_sum"  // f1 + f2
@@ -67,7 +68,15 @@ type Contribution struct {
 type Estimate struct {
 	Drive Drive
 
-	Fundamental complex128 // output at f1
+	// Linear is the first-order (small-signal) output at f1, and
+	// Fundamental the output at f1 to third order: Linear plus the
+	// third-order term of the first tone alone, which carries the gain
+	// compression (or expansion) and the AM-to-PM conversion. Products in
+	// dBc and the intercepts are taken relative to Linear, so that they
+	// follow the exact slopes of the weakly nonlinear range (HD2 1 dB/dB,
+	// HD3 and IM3 2 dB/dB relative).
+	Linear      complex128
+	Fundamental complex128
 	HD2, HD3    complex128 // output at 2 f1 and 3 f1
 	DCShift     float64    // change of the output's DC level, V
 
@@ -113,22 +122,99 @@ func (e *Estimate) OneTone() *Estimate {
 	one.SecondFundamental, one.IM2Sum, one.IM2Diff, one.IM3 = 0, 0, 0, 0
 	one.Contributions = nil
 	for _, c := range e.Contributions {
-		if c.Product == DC || c.Product == HD2 || c.Product == HD3 {
+		if c.Product == DC || c.Product == HD2 || c.Product == HD3 || c.Product == Gain3 {
 			one.Contributions = append(one.Contributions, c)
 		}
 	}
 	one.balanced = nil
 	for _, p := range e.balanced {
-		if p == DC || p == HD2 || p == HD3 {
+		if p == DC || p == HD2 || p == HD3 || p == Gain3 {
 			one.balanced = append(one.balanced, p)
 		}
 	}
 	return &one
 }
 
-// dBc returns 20 log10(|p| / |fundamental|).
+// dBc returns 20 log10(|p| / |Linear|).
 func (e *Estimate) dBc(p complex128) float64 {
-	return 20 * math.Log10(cmplx.Abs(p)/cmplx.Abs(e.Fundamental))
+	return 20 * math.Log10(cmplx.Abs(p)/cmplx.Abs(e.Linear))
+}
+
+// GainChangeDB returns the change of the gain at f1 that the third-order
+// term brings at this level, 20 log10(|Fundamental| / |Linear|) in dB:
+// negative for compression, positive for expansion.
+func (e *Estimate) GainChangeDB() float64 {
+	return 20 * math.Log10(cmplx.Abs(e.Fundamental)/cmplx.Abs(e.Linear))
+}
+
+// PhaseChangeDeg returns the phase the third-order term adds to the
+// output at f1 at this level, arg(Fundamental / Linear) in degrees.
+func (e *Estimate) PhaseChangeDeg() float64 {
+	return cmplx.Phase(e.Fundamental/e.Linear) * 180 / math.Pi
+}
+
+// series returns r = a3/a1, the ratio of the third-order to the
+// first-order coefficient of the output at f1 in powers of the EMF:
+// Fundamental = Linear (1 + r E²).
+func (e *Estimate) series() complex128 {
+	E := e.Drive.EMF
+	return (e.Fundamental - e.Linear) / (e.Linear * complex(E*E, 0))
+}
+
+// AMPMDegPerDB returns the AM-to-PM conversion of the third-order series
+// at this level: dφ/dP_in in degrees per dB, with φ = arg(1 + r E²) and
+// E² ∝ 10^(P_in/10), so dφ/dP = Im(r E² / (1 + r E²)) ln 10 / 10 (common
+// practice: the slope of the output phase against input power).
+func (e *Estimate) AMPMDegPerDB() float64 {
+	E := e.Drive.EMF
+	rs := e.series() * complex(E*E, 0)
+	return imag(rs/(1+rs)) * math.Ln10 / 10 * 180 / math.Pi
+}
+
+// GainStepDBm returns the available input power (dBm per tone) at which
+// the third-order series Linear·(1 + r E²) changes the gain at f1 by
+// stepDB, and whether that is a compression (true) or an expansion. It
+// solves |1 + r s| = 10^(∓stepDB/20) for the smallest s = E² > 0, trying
+// compression first: with t = 10^(-stepDB/10) - 1 the quadratic
+// |r|² s² + 2 Re(r) s - t = 0. It returns NaN when the series changes the
+// gain by less than stepDB at every level (r = 0). This is the estimate a
+// third-order model gives (for a memoryless cubic, 9.6 dB below IIP3:
+// common practice); above it the higher orders the series leaves out
+// matter, so set it beside the waveform's.
+func (e *Estimate) GainStepDBm(stepDB float64) (float64, bool) {
+	r := e.series()
+	r2 := real(r)*real(r) + imag(r)*imag(r)
+	if r2 == 0 || cmplx.IsNaN(r) || math.IsInf(r2, 0) {
+		return math.NaN(), false
+	}
+	smallest := func(target float64) float64 {
+		t := target - 1 // |1 + r s|² = target
+		// r2 s² + 2 Re(r) s - t = 0
+		b, c := 2*real(r), -t
+		disc := b*b - 4*r2*c
+		if disc < 0 {
+			return math.NaN()
+		}
+		sq := math.Sqrt(disc)
+		best := math.NaN()
+		for _, s := range []float64{(-b - sq) / (2 * r2), (-b + sq) / (2 * r2)} {
+			if s > 0 && (math.IsNaN(best) || s < best) {
+				best = s
+			}
+		}
+		return best
+	}
+	down := smallest(math.Pow(10, -stepDB/10))
+	up := smallest(math.Pow(10, stepDB/10))
+	compress := !math.IsNaN(down) && (math.IsNaN(up) || down <= up)
+	s := up
+	if compress {
+		s = down
+	}
+	if math.IsNaN(s) {
+		return math.NaN(), false
+	}
+	return EMFToDBm(math.Sqrt(s), e.inputZ0), compress
 }
 
 // HD2dBc returns the second harmonic relative to the fundamental, in dB.
@@ -147,13 +233,14 @@ func (e *Estimate) IM3dBc() float64 { return e.dBc(e.IM3) }
 // E²/(8 Z0), in dBm.
 func (e *Estimate) InputDBm() float64 { return EMFToDBm(e.Drive.EMF, e.inputZ0) }
 
-// OutputDBm returns the fundamental's power into the output port's
-// reference impedance, |V|²/(2 Z0), in dBm, and false for a bare node.
+// OutputDBm returns the small-signal fundamental's power into the output
+// port's reference impedance, |Linear|²/(2 Z0), in dBm, and false for a
+// bare node.
 func (e *Estimate) OutputDBm() (float64, bool) {
 	if e.outputZ0 == 0 {
 		return 0, false
 	}
-	a := cmplx.Abs(e.Fundamental)
+	a := cmplx.Abs(e.Linear)
 	return 10 * math.Log10(a*a/(2*e.outputZ0)*1e3), true
 }
 
@@ -305,6 +392,11 @@ func (v *volterra) output(x []complex128) complex128 {
 //
 //	at 2w:  (g2 + j2w c2) v_1²/2        at DC: g2 |v_1|²/2
 //	at 3w:  (g3 + j3w c3) v_1³/4 + (g2 + j3w c2) v_1 v_2
+//	at w:   (3/4)(g3 + jw c3) |v_1|² v_1 + (g2 + jw c2)(2 v_0 v_1 + v_1* v_2)
+//
+// where v_0 and v_2 are the junction's own DC shift and second-harmonic
+// phasor; the last is the third-order term of the fundamental (gain
+// compression or expansion and AM-to-PM).
 //
 // and with a second tone v_b at w2: (g2 + j w_s c2) v_a v_b at w1 + w2,
 // (g2 + j w_d c2) v_a v_b* at w1 - w2, and at 2w1 - w2
@@ -401,7 +493,8 @@ func (ws *Workspace) volterraOn(nw *smallsignal.Network, d Drive, choice engine)
 		return nil, err
 	}
 	ws.firstA = va
-	est.Fundamental = v.output(x1) * e
+	est.Linear = v.output(x1) * e
+	est.Fundamental = est.Linear
 	for _, vk := range va {
 		est.Junctions = append(est.Junctions, vk*e)
 	}
@@ -415,11 +508,16 @@ func (ws *Workspace) volterraOn(nw *smallsignal.Network, d Drive, choice engine)
 		cur[k] = complex(coef(k).G2*sqAbs(va[k])/2, 0)
 		chg[k] = 0
 	}
-	_, dc, err := v.product(DC, 0, cur, chg, e*e, est)
+	x0, dc, err := v.product(DC, 0, cur, chg, e*e, est)
 	if err != nil {
 		return nil, err
 	}
 	est.DCShift = real(dc)
+	v0 := vector(ws.shift, nd)
+	ws.shift = v0
+	for k := range v0 {
+		v0[k] = v.junction(k, x0)
+	}
 
 	// Second harmonic.
 	for k := range cur {
@@ -447,6 +545,21 @@ func (ws *Workspace) volterraOn(nw *smallsignal.Network, d Drive, choice engine)
 	if _, est.HD3, err = v.product(HD3, 3*w1, cur, chg, e*e*e, est); err != nil {
 		return nil, err
 	}
+
+	// Third order at the fundamental: the cubic terms' (3/4)|v1|² v1 and
+	// the second-order terms mixing v1 with the junction's own DC shift
+	// and second harmonic, 2 v0 v1 + v1* v2.
+	for k := range cur {
+		cube := 0.75 * complex(sqAbs(va[k]), 0) * va[k]
+		cross := 2*v0[k]*va[k] + cmplx.Conj(va[k])*v2[k]
+		cur[k] = complex(coef(k).G3, 0)*cube + complex(coef(k).G2, 0)*cross
+		chg[k] = complex(coef(k).C3, 0)*cube + complex(coef(k).C2, 0)*cross
+	}
+	_, third, err := v.product(Gain3, w1, cur, chg, e*e*e, est)
+	if err != nil {
+		return nil, err
+	}
+	est.Fundamental = est.Linear + third
 
 	if d.SecondToneHz == 0 {
 		return est, nil

@@ -39,6 +39,7 @@ type Workspace struct {
 	firstA      []complex128 // per diode: first-order junction phasor at f1
 	firstB      []complex128 // and at f2
 	second      []complex128 // second harmonic junction phasor
+	shift       []complex128 // DC shift of the junction voltage
 	parts       []Contribution
 }
 

@@ -109,7 +109,7 @@ func distortionFixture(t *testing.T, demo string, out ac.Output, hz, dBm float64
 		if dc.levels, err = ac.LevelSweep(nw, d, levels, ac.SteadySettings{}, nil); err != nil {
 			t.Fatal(err)
 		}
-		gain := cmplx.Abs(dc.estimate.Fundamental) / d.EMF
+		gain := cmplx.Abs(dc.estimate.Linear) / d.EMF
 		dc.compression, dc.compressed = ac.Compression(dc.levels, gain)
 		dc.freqs = logSweep(100e6, 6e9, 12)
 		for _, f := range dc.freqs {

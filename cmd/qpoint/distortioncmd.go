@@ -284,10 +284,10 @@ func runDistortion(cmd *cobra.Command, path string, fl *distortionFlags) error {
 	var limit *ac.Validity
 	if !fl.noLimit {
 		limit, err = ac.ValidityLimit(s.nw, one, s.levelDBm-40, s.levelDBm+40, 0.5, settings)
-		if err == nil {
-			doc.ValidityLimitDBm = number(limit.LevelDBm)
-			doc.ValidityLimitFound = limit.Found
+		if err != nil {
+			return analysisError(fmt.Errorf("validity limit: %w", err))
 		}
+		doc.setValidity(limit)
 	}
 
 	var sweep []ac.LevelPoint
@@ -315,7 +315,7 @@ func runDistortion(cmd *cobra.Command, path string, fl *distortionFlags) error {
 		if err != nil {
 			fmt.Fprintf(cmd.ErrOrStderr(), "qpoint: level sweep stopped: %v\n", err)
 		}
-		gain := cmplx.Abs(oneEst.Fundamental) / oneEst.Drive.EMF
+		gain := cmplx.Abs(oneEst.Linear) / oneEst.Drive.EMF
 		compression, compressed = ac.Compression(sweep, gain)
 		if compressed {
 			doc.CompressionDBm = number(compression)
@@ -401,13 +401,24 @@ func writeEstimate(w io.Writer, e *ac.Estimate) {
 func estimateTable(e *ac.Estimate) (*table, []string) {
 	var notes []string
 	t := &table{title: "Volterra estimate (third order)", header: []string{"quantity", "value"}}
-	if cmplx.Abs(e.Fundamental) <= 1e-12*e.Drive.EMF {
+	if cmplx.Abs(e.Linear) <= 1e-12*e.Drive.EMF {
 		t.add("fundamental", "none: this output is isolated from the input")
 	} else {
 		t.add("fundamental", si.Format(cmplx.Abs(e.Fundamental), "V", 4)+" peak")
 	}
-	if p, ok := e.OutputDBm(); ok && cmplx.Abs(e.Fundamental) > 1e-12*e.Drive.EMF {
-		t.add("fundamental power", fmt.Sprintf("%.2f dBm", p))
+	if p, ok := e.OutputDBm(); ok && cmplx.Abs(e.Linear) > 1e-12*e.Drive.EMF {
+		t.add("fundamental power", fmt.Sprintf("%.2f dBm", p+e.GainChangeDB()))
+	}
+	if cmplx.Abs(e.Linear) > 1e-12*e.Drive.EMF {
+		t.add("gain change at f1", gainChange(e.GainChangeDB()))
+		t.add("phase change at f1", fmt.Sprintf("%+.3g° (AM-to-PM %+.3g°/dB)", e.PhaseChangeDeg(), e.AMPMDegPerDB()))
+		if l, compress := e.GainStepDBm(1); !math.IsNaN(l) {
+			kind := "1 dB compression (series)"
+			if !compress {
+				kind = "1 dB expansion (series)"
+			}
+			t.add(kind, fmt.Sprintf("%.2f dBm input", l))
+		}
 	}
 	const cancelled = "cancelled by symmetry"
 	pick := func(p ac.Product, v string) string {
@@ -437,6 +448,19 @@ func estimateTable(e *ac.Estimate) (*table, []string) {
 	return t, notes
 }
 
+// gainChange prints the third-order gain change at f1 with its sense.
+func gainChange(db float64) string {
+	switch {
+	case math.IsNaN(db):
+		return "—"
+	case db < 0:
+		return fmt.Sprintf("%+.3g dB (compression)", db)
+	case db > 0:
+		return fmt.Sprintf("%+.3g dB (expansion)", db)
+	}
+	return "0 dB"
+}
+
 func writeContributions(w io.Writer, e *ac.Estimate) {
 	contributionTable(e).write(w)
 }
@@ -451,7 +475,7 @@ func contributionTable(e *ac.Estimate) *table {
 		}
 		byProduct[c.Product] = append(byProduct[c.Product], c)
 	}
-	label := map[ac.Product]string{ac.DC: "DC shift", ac.HD2: "HD2", ac.HD3: "HD3", ac.IM2Sum: "IM2 f1+f2", ac.IM2Diff: "IM2 f1-f2", ac.IM3: "IM3"}
+	label := map[ac.Product]string{ac.DC: "DC shift", ac.Gain3: "f1, 3rd order", ac.HD2: "HD2", ac.HD3: "HD3", ac.IM2Sum: "IM2 f1+f2", ac.IM2Diff: "IM2 f1-f2", ac.IM3: "IM3"}
 	for _, p := range order {
 		cs := byProduct[p]
 		sort.SliceStable(cs, func(i, j int) bool { return cmplx.Abs(cs[i].Phasor) > cmplx.Abs(cs[j].Phasor) })
@@ -535,11 +559,7 @@ func comparisonTable(cs []ac.Comparison, v *ac.Validity) (*table, string) {
 		return t, "nothing at this output lies above the solver's floor, so there is nothing to compare"
 	}
 	if v != nil {
-		if v.Found {
-			note = fmt.Sprintf("the estimates hold within %.1f dB up to %.1f dBm available per tone (%d waveform solves)", v.TolDB, v.LevelDBm, v.Steps)
-		} else {
-			note = fmt.Sprintf("the estimates hold within %.1f dB over every level tried, up to %.1f dBm", v.TolDB, v.LevelDBm)
-		}
+		note = v.Note()
 	}
 	return t, note
 }
@@ -547,9 +567,18 @@ func comparisonTable(cs []ac.Comparison, v *ac.Validity) (*table, string) {
 func writeLevelSweep(w io.Writer, pts []ac.LevelPoint, e *ac.Estimate, comp float64, ok bool) {
 	levelSweepTable(pts).write(w)
 	if ok {
-		fmt.Fprintf(w, "  1 dB compression at %.2f dBm input\n", comp)
+		fmt.Fprintf(w, "  1 dB compression at %.2f dBm input (waveform)\n", comp)
 	} else {
-		fmt.Fprintf(w, "  no 1 dB compression within the sweep\n")
+		fmt.Fprintf(w, "  no 1 dB compression within the sweep (waveform)\n")
+	}
+	if e != nil {
+		if l, compress := e.GainStepDBm(1); !math.IsNaN(l) {
+			kind := "compression"
+			if !compress {
+				kind = "expansion"
+			}
+			fmt.Fprintf(w, "  1 dB %s at %.2f dBm input (third-order series estimate)\n", kind, l)
+		}
 	}
 	fmt.Fprintln(w)
 }

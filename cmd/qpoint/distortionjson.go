@@ -1,6 +1,7 @@
 package main
 
 import (
+	"math"
 	"math/cmplx"
 
 	"qpoint/ac"
@@ -17,6 +18,11 @@ type contributionJSON struct {
 type estimateJSON struct {
 	Frequency     number             `json:"frequency"`
 	Fundamental   number             `json:"fundamental"`
+	Linear        number             `json:"fundamental_linear"`
+	GainChangeDB  number             `json:"gain_change_db"`
+	PhaseChange   number             `json:"phase_change_deg"`
+	AMPM          number             `json:"am_pm_deg_per_db"`
+	Series1dB     *seriesStepJSON    `json:"series_1db,omitempty"`
 	HD2dBc        number             `json:"hd2_dbc"`
 	HD3dBc        number             `json:"hd3_dbc"`
 	DCShift       number             `json:"dc_shift"`
@@ -26,6 +32,13 @@ type estimateJSON struct {
 	OIP3dBm       *number            `json:"oip3_dbm,omitempty"`
 	IIP2dBm       *number            `json:"iip2_dbm,omitempty"`
 	Contributions []contributionJSON `json:"contributions"`
+}
+
+// seriesStepJSON is the input level at which the third-order series
+// changes the gain at f1 by 1 dB, and whether it compresses or expands.
+type seriesStepJSON struct {
+	LevelDBm number `json:"level_dbm"`
+	Kind     string `json:"kind"`
 }
 
 type harmonicJSON struct {
@@ -62,8 +75,9 @@ type distortionJSON struct {
 	Estimate           *estimateJSON    `json:"estimate,omitempty"`
 	Waveform           *waveformJSON    `json:"waveform,omitempty"`
 	Comparison         []comparisonJSON `json:"comparison,omitempty"`
-	ValidityLimitDBm   number           `json:"validity_limit_dbm,omitempty"`
+	ValidityLimitDBm   *number          `json:"validity_limit_dbm,omitempty"`
 	ValidityLimitFound bool             `json:"validity_limit_found,omitempty"`
+	ValidityNote       string           `json:"validity_note,omitempty"`
 	LevelSweep         []levelJSON      `json:"level_sweep,omitempty"`
 	CompressionDBm     number           `json:"compression_dbm,omitempty"`
 	FrequencySweep     []*estimateJSON  `json:"frequency_sweep,omitempty"`
@@ -72,13 +86,35 @@ type distortionJSON struct {
 
 func ptr(v float64) *number { n := number(v); return &n }
 
+// setValidity records the validity search: the limit when one was found
+// (or the highest level at which the estimates held, with
+// validity_limit_found false), else null with a note that says why.
+func (j *distortionJSON) setValidity(v *ac.Validity) {
+	j.ValidityLimitDBm = ptr(v.LevelDBm)
+	j.ValidityLimitFound = v.Found()
+	if !v.Found() {
+		j.ValidityNote = v.Note()
+	}
+}
+
 func estimateJSONOf(e *ac.Estimate) *estimateJSON {
 	j := &estimateJSON{
-		Frequency:   number(e.Drive.FrequencyHz),
-		Fundamental: number(cmplx.Abs(e.Fundamental)),
-		HD2dBc:      number(e.HD2dBc()),
-		HD3dBc:      number(e.HD3dBc()),
-		DCShift:     number(e.DCShift),
+		Frequency:    number(e.Drive.FrequencyHz),
+		Fundamental:  number(cmplx.Abs(e.Fundamental)),
+		Linear:       number(cmplx.Abs(e.Linear)),
+		GainChangeDB: number(e.GainChangeDB()),
+		PhaseChange:  number(e.PhaseChangeDeg()),
+		AMPM:         number(e.AMPMDegPerDB()),
+		HD2dBc:       number(e.HD2dBc()),
+		HD3dBc:       number(e.HD3dBc()),
+		DCShift:      number(e.DCShift),
+	}
+	if l, compress := e.GainStepDBm(1); !math.IsNaN(l) {
+		kind := "expansion"
+		if compress {
+			kind = "compression"
+		}
+		j.Series1dB = &seriesStepJSON{number(l), kind}
 	}
 	if e.Drive.SecondToneHz != 0 {
 		j.IM2dBc = ptr(e.IM2dBc())

@@ -235,7 +235,7 @@ func resolveNoiseFor(c *circuit.Circuit, fl *noiseFlags, p *bias.Point) (*noiseS
 			// attenuator or limiter rectifies a little too.
 			z0 := c.Ports[inIdx].Impedance
 			est, err := ac.Volterra(s.nw, ac.Drive{Input: inIdx, Output: o, FrequencyHz: s.carrierHz, EMF: ac.DBmToEMF(detectorProbeDBm, z0)})
-			s.detector = err == nil && math.Abs(est.DCShift) >= cmplx.Abs(est.Fundamental)
+			s.detector = err == nil && math.Abs(est.DCShift) >= cmplx.Abs(est.Linear)
 		case asked && errors.Is(err, ac.ErrNoRectification):
 			return nil, inputError(fmt.Errorf("flags --carrier/--video-bandwidth: output %s is not a detector output: %w", out, err))
 		case asked:

@@ -69,7 +69,7 @@ func writeFigures(dir string, figs []*plots.Figure) error {
 func writeDistortionPlots(dir string, s *distortionSetup, e *ac.Estimate, st *ac.Steady, sweep []ac.LevelPoint) error {
 	comp, compressed := 0.0, false
 	if len(sweep) > 1 {
-		comp, compressed = ac.Compression(sweep, cmplx.Abs(e.Fundamental)/e.Drive.EMF)
+		comp, compressed = ac.Compression(sweep, cmplx.Abs(e.Linear)/e.Drive.EMF)
 	}
 	return writeFigures(dir, distortionFigures(e, st, sweep, comp, compressed))
 }

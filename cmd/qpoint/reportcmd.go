@@ -227,6 +227,7 @@ func distortionSection(s *distortionSetup) (report.Section, []report.Card, error
 	limit, lerr := ac.ValidityLimit(s.nw, one, s.levelDBm-40, s.levelDBm+40, 0.5, settings)
 	if lerr != nil {
 		limit = nil
+		sec.Blocks = append(sec.Blocks, report.Block{Note: "The validity limit could not be searched: " + lerr.Error()})
 	}
 	ct, cnote := comparisonTable(ac.Compare(oneEst, st), limit)
 	sec.Blocks = append(sec.Blocks, report.Block{Table: ct.report()})
@@ -244,7 +245,7 @@ func distortionSection(s *distortionSetup) (report.Section, []report.Card, error
 	}
 	comp, compressed := 0.0, false
 	if len(sweep) > 1 {
-		comp, compressed = ac.Compression(sweep, cmplx.Abs(oneEst.Fundamental)/oneEst.Drive.EMF)
+		comp, compressed = ac.Compression(sweep, cmplx.Abs(oneEst.Linear)/oneEst.Drive.EMF)
 	}
 	for _, f := range distortionFigures(oneEst, st, sweep, comp, compressed) {
 		fig, err := svgOf(f)
@@ -257,7 +258,14 @@ func distortionSection(s *distortionSetup) (report.Section, []report.Card, error
 		cards = append(cards, report.Card{Label: "second harmonic", Value: fmt.Sprintf("%.1f dBc", est.HD2dBc()), Detail: fmt.Sprintf("at %.0f dBm, %s", s.levelDBm, si.Format(s.drive.FrequencyHz, "Hz", 4))})
 	}
 	if limit != nil {
-		cards = append(cards, report.Card{Label: "small-signal limit", Value: fmt.Sprintf("%.1f dBm", limit.LevelDBm), Detail: "estimates within 0.5 dB of the waveform"})
+		switch limit.Outcome {
+		case ac.LimitFound:
+			cards = append(cards, report.Card{Label: "small-signal limit", Value: fmt.Sprintf("%.1f dBm", limit.LevelDBm), Detail: "estimates within 0.5 dB of the waveform"})
+		case ac.HeldThroughout:
+			cards = append(cards, report.Card{Label: "small-signal limit", Value: fmt.Sprintf("above %.1f dBm", limit.LevelDBm), Detail: "estimates within 0.5 dB at every level tried"})
+		default:
+			cards = append(cards, report.Card{Label: "small-signal limit", Value: "not found", Detail: limit.Note()})
+		}
 	}
 	if compressed {
 		cards = append(cards, report.Card{Label: "1 dB compression", Value: fmt.Sprintf("%.1f dBm", comp), Detail: "input, from the waveform"})
