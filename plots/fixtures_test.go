@@ -180,9 +180,7 @@ func supplyStudy(t *testing.T) *study.Result {
 		s11 := complex(-0.12-0.02*v, 0.1)
 		st.Diodes = []study.Diode{{Name: "D1", Current: current, DynamicResistance: rd, VideoResistance: rd + 20}}
 		st.Responses = []study.Response{{FrequencyHz: 2.45e9, S: [][]complex128{{s11, 0}, {0.01, 0}}, InputImpedance: []complex128{50 * (1 + s11) / (1 - s11)}, Probes: []complex128{0.5}}}
-		st.HD2dBc = -45 + 1.4*v
-		st.HD3dBc = -75 + 2.1*v
-		st.DCShift = 3e-4 * (1 + v/4)
+		st.Distortion = []study.Distortion{{FrequencyHz: 2.45e9, HD2dBc: -45 + 1.4*v, HD3dBc: -75 + 2.1*v, DCShift: 3e-4 * (1 + v/4)}}
 		r.Steps = append(r.Steps, st)
 	}
 	return r

@@ -66,14 +66,66 @@ type Settings struct {
 	// SecondIsFrequency the second axis is frequency instead.
 	FrequenciesHz     []float64
 	SecondIsFrequency bool
-	// Distortion: when Drive.EMF > 0, each step estimates HD2, HD3 and the
-	// DC shift for this drive (frequency taken from Drive).
-	Drive ac.Drive
+	// Distortion: when Drive.EMF > 0, each step estimates the
+	// fundamental, HD2, HD3 and the DC shift for this drive at each of
+	// DistortionHz (at Drive.FrequencyHz alone when DistortionHz is
+	// empty). Drive's input and output also set the signal path of the
+	// noise figure and the detector figures.
+	Drive        ac.Drive
+	DistortionHz []float64
+	// NoiseFigure, when true, computes each step's noise figure at each
+	// study frequency (FrequenciesHz) from Drive.Input to Drive.Output.
+	NoiseFigure bool
+	// Detector, when not nil, computes each step's noise-equivalent power
+	// and tangential sensitivity (ac.Detector) with the carrier at the
+	// first distortion frequency.
+	Detector *DetectorSettings
 	// Workers running steps in parallel; zero means all cores.
 	Workers int
 	// Progress, when not nil, is called after each step with the count
 	// done; calls come from one goroutine at a time.
 	Progress func(done, total int)
+}
+
+// DetectorSettings give the video band over which a detector's output
+// noise is counted for its tangential sensitivity; its noise-equivalent
+// power is taken at the band's geometric centre (ac.Detector).
+type DetectorSettings struct {
+	VideoFromHz, VideoToHz float64
+}
+
+// DistortionFrequencies returns the frequencies at which the study
+// estimates distortion: DistortionHz, else the drive's frequency; none
+// without a drive.
+func (s *Settings) DistortionFrequencies() []float64 {
+	if s.Drive.EMF <= 0 {
+		return nil
+	}
+	if len(s.DistortionHz) > 0 {
+		return s.DistortionHz
+	}
+	return []float64{s.Drive.FrequencyHz}
+}
+
+// Detection is a detector's sensitivity limit at one step (ac.Detector).
+type Detection struct {
+	// Detects is false where the carrier does not move the output's DC
+	// level: the output is not a detector's, and the figures are zero.
+	Detects       bool
+	NEP           float64 // noise-equivalent power, W/√Hz, at the video band's centre
+	TangentialDBm float64 // tangential sensitivity, dBm of available power
+}
+
+// Distortion is the Volterra estimate at one step and one frequency.
+type Distortion struct {
+	FrequencyHz    float64
+	Fundamental    float64 // output at f1 to third order, V peak
+	HD2dBc, HD3dBc float64
+	DCShift        float64 // V
+	// Sensitivity is the DC shift at the output per available input
+	// power, V/W: the whole circuit's voltage sensitivity including its
+	// match. Its sign is the detector's polarity.
+	Sensitivity float64
 }
 
 // Diode is a diode's state at one step.
@@ -113,15 +165,15 @@ type Step struct {
 	Responses  []Response // one per study frequency
 	Warnings   []bias.Warning
 
-	// Distortion estimate (when asked for): output fundamental, HD2 and
-	// HD3 in dBc and the DC shift.
-	Fundamental    float64
-	HD2dBc, HD3dBc float64
-	DCShift        float64
-	// DetectorSensitivity is the DC shift at the output per available
-	// input power, V/W, at the drive's frequency: the whole circuit's
-	// voltage sensitivity including its match.
-	DetectorSensitivity float64
+	// Distortion holds the estimates at each distortion frequency
+	// (Settings.DistortionFrequencies), when asked for.
+	Distortion []Distortion
+	// NoiseFigureDB is the noise figure at each study frequency, when
+	// asked for.
+	NoiseFigureDB []float64
+	// Detection holds the detector figures, when asked for
+	// (Settings.Detector).
+	Detection *Detection
 
 	Err error // non-nil when this step could not be solved
 }
@@ -325,18 +377,51 @@ func runStep(c *circuit.Circuit, s Settings, i, j int, prev *bias.Point, st *Ste
 			return p
 		}
 	}
-	if s.Drive.EMF > 0 && len(nw.Ports) > 0 {
-		d := s.Drive
-		d.SecondToneHz = 0
-		e, err := ws.ac.Volterra(nw, d)
+	if df := s.DistortionFrequencies(); len(df) > 0 && len(nw.Ports) > 0 {
+		st.Distortion = make([]Distortion, 0, len(df))
+		for _, f := range df {
+			d := s.Drive
+			d.SecondToneHz = 0
+			d.FrequencyHz = f
+			e, err := ws.ac.Volterra(nw, d)
+			if err != nil {
+				st.Err = err
+				return p
+			}
+			pin := d.EMF * d.EMF / (8 * nw.Ports[d.Input].Impedance)
+			st.Distortion = append(st.Distortion, Distortion{FrequencyHz: f,
+				Fundamental: cmplx.Abs(e.Fundamental), HD2dBc: e.HD2dBc(), HD3dBc: e.HD3dBc(),
+				DCShift: e.DCShift, Sensitivity: e.DCShift / pin})
+		}
+	}
+	path := ac.NoiseSettings{Input: s.Drive.Input, Output: s.Drive.Output}
+	if s.NoiseFigure && len(nw.Ports) > 0 && len(freqs) > 0 {
+		r, err := ac.Noise(nw, freqs, path)
 		if err != nil {
 			st.Err = err
 			return p
 		}
-		st.Fundamental = cmplx.Abs(e.Fundamental)
-		st.HD2dBc, st.HD3dBc, st.DCShift = e.HD2dBc(), e.HD3dBc(), e.DCShift
-		pin := d.EMF * d.EMF / (8 * nw.Ports[d.Input].Impedance)
-		st.DetectorSensitivity = e.DCShift / pin
+		st.NoiseFigureDB = make([]float64, len(freqs))
+		for i, pt := range r.Points {
+			st.NoiseFigureDB[i] = pt.FigureDB()
+		}
+	}
+	if s.Detector != nil && len(nw.Ports) > 0 {
+		st.Detection = new(Detection)
+		carrier := s.Drive.FrequencyHz
+		if df := s.DistortionHz; len(df) > 0 {
+			carrier = df[0]
+		}
+		det, err := ac.Detector(nw, path, carrier, s.Detector.VideoFromHz, s.Detector.VideoToHz)
+		switch {
+		case errors.Is(err, ac.ErrNoRectification):
+			// Not a detector at this step: the figures stay NaN.
+		case err != nil:
+			st.Err = err
+			return p
+		default:
+			*st.Detection = Detection{Detects: true, NEP: det.NEP, TangentialDBm: det.TangentialDBm()}
+		}
 	}
 	return p
 }

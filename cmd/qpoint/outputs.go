@@ -13,6 +13,7 @@ import (
 	"qpoint/ac"
 	"qpoint/ac/study"
 	"qpoint/bias/circuit"
+	"qpoint/bias/si"
 )
 
 func parseTouchstoneFormat(s string) (ac.Format, error) {
@@ -95,8 +96,8 @@ func distortionFigures(e *ac.Estimate, st *ac.Steady, sweep []ac.LevelPoint, com
 }
 
 // studyPlots returns the figures --plots writes for a study.
-func studyPlots(r *study.Result, show string) ([]*plots.Figure, error) {
-	figs := studyFigures(r, show)
+func studyPlots(r *study.Result, show string, marks ...plots.StudyMark) ([]*plots.Figure, error) {
+	figs := studyFigures(r, show, marks...)
 	if len(figs) == 0 {
 		return nil, inputError(fmt.Errorf("flag --show: none of the measures could be drawn"))
 	}
@@ -105,23 +106,31 @@ func studyPlots(r *study.Result, show string) ([]*plots.Figure, error) {
 
 // studyFigures returns the study's curves (one varied quantity) or a heat
 // map per measure (two), for the measures in show or a useful default set.
-func studyFigures(r *study.Result, show string) []*plots.Figure {
+func studyFigures(r *study.Result, show string, marks ...plots.StudyMark) []*plots.Figure {
 	var ms []*study.Measure
+	// A marked measure (the goal's) is always shown, first.
+	for _, mk := range marks {
+		if mk.Measure != nil {
+			ms = append(ms, mk.Measure)
+		}
+	}
 	if show != "" {
 		for _, t := range strings.Split(show, ",") {
 			if m, err := study.ParseMeasure(strings.TrimSpace(t)); err == nil {
-				ms = append(ms, m)
+				ms = appendMeasure(ms, m)
 			}
 		}
 	} else {
-		ms = defaultStudyMeasures(r)
+		for _, m := range defaultStudyMeasures(r) {
+			ms = appendMeasure(ms, m)
+		}
 	}
 	if len(ms) == 0 {
 		return nil
 	}
 	xl, xu := r.Settings.Axis.Vary.Text, r.Settings.Axis.Vary.Quantity.Unit()
 	if r.Settings.Second == nil {
-		return []*plots.Figure{plots.StudyCurves(r, ms, xl, xu)}
+		return []*plots.Figure{plots.StudyCurves(r, ms, xl, xu, marks...)}
 	}
 	yl, yu := "frequency", "Hz"
 	if !r.Settings.SecondIsFrequency {
@@ -141,6 +150,16 @@ func studyFigures(r *study.Result, show string) []*plots.Figure {
 	return figs
 }
 
+// appendMeasure appends m unless a measure of the same text is there.
+func appendMeasure(ms []*study.Measure, m *study.Measure) []*study.Measure {
+	for _, x := range ms {
+		if x.Text == m.Text {
+			return ms
+		}
+	}
+	return append(ms, m)
+}
+
 // defaultStudyMeasures picks what a designer looks at first: each diode's
 // current, the transmission or match at the first study frequency, and
 // the detector's sensitivity or the distortion when a level is set.
@@ -150,8 +169,14 @@ func defaultStudyMeasures(r *study.Result) []*study.Measure {
 	if first == nil {
 		return nil
 	}
+	// A study that varies a current would plot each diode's current
+	// against (nearly) itself: show the diode's voltage instead.
+	q := "current."
+	if r.Settings.Axis.Vary.Quantity == circuit.Current {
+		q = "voltage."
+	}
 	for _, d := range first.Diodes {
-		texts = append(texts, "current."+d.Name)
+		texts = append(texts, q+d.Name)
 	}
 	if len(first.Responses) > 0 {
 		if len(r.Ports) > 1 {
@@ -159,11 +184,22 @@ func defaultStudyMeasures(r *study.Result) []*study.Measure {
 		}
 		texts = append(texts, "s11")
 	}
-	if r.Settings.Drive.EMF > 0 {
-		texts = append(texts, "hd2")
-		if first.DCShift != 0 {
-			texts = append(texts, "sensitivity")
+	if len(first.NoiseFigureDB) > 0 {
+		texts = append(texts, "noise_figure")
+	}
+	for i, d := range first.Distortion {
+		// The first distortion frequency is the measures' default.
+		at := ""
+		if i > 0 {
+			at = "@" + strings.ReplaceAll(si.Format(d.FrequencyHz, "Hz", 6), " ", "")
 		}
+		texts = append(texts, "hd2"+at)
+		if d.DCShift != 0 {
+			texts = append(texts, "sensitivity"+at)
+		}
+	}
+	if first.Detection != nil && first.Detection.Detects {
+		texts = append(texts, "tss")
 	}
 	var ms []*study.Measure
 	for _, t := range texts {

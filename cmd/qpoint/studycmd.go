@@ -7,6 +7,7 @@ import (
 	"io"
 	"math"
 	"math/cmplx"
+	"slices"
 	"strconv"
 	"strings"
 	"time"
@@ -28,6 +29,9 @@ type studyFlags struct {
 	steps2               int
 	log2                 bool
 	frequencies          string
+	distortionFrequency  string
+	videoBandwidth       string
+	signed               bool
 	level, input, output string
 	target               string
 	maximize, minimize   string
@@ -57,15 +61,27 @@ MODEL.KEY (e.g. detector_low_barrier.saturation_current). A second quantity
 --target "MEASURE=VALUE" finds where a measure meets a value, and
 --maximize / --minimize MEASURE find its best value in the range. Measures:
 s11, s21, s12, s22 (dB, @FREQ), zin_re, zin_im, zin_mag (ohm, @FREQ),
-probe.NODE (dB, @FREQ), hd2, hd3 (dBc), dc_shift (V), sensitivity (V/W),
-current.D, voltage.D, dynamic_resistance.D, junction_capacitance.D,
-video_resistance.D, current_sensitivity.D and voltage_sensitivity.D (@FREQ).
+probe.NODE (dB, @FREQ), noise_figure (dB, @FREQ), hd2, hd3 (dBc, @FREQ of
+the distortion), dc_shift (V), sensitivity (V/W), nep (W/√Hz) and tss
+(tangential sensitivity, dBm) of a detector, current.D, voltage.D,
+dynamic_resistance.D, junction_capacitance.D, video_resistance.D,
+current_sensitivity.D and voltage_sensitivity.D (@FREQ).
+
+Distortion (hd2, hd3, dc_shift, sensitivity) is estimated at the file's
+distortion frequency, or at each of --frequency; its columns name their
+frequency. A measure whose sign only says which way a detector's output
+moves (sensitivity, dc_shift, voltage_sensitivity, current_sensitivity)
+is maximised or minimised on its magnitude; --signed uses the sign.
+nep and tss count the output noise over --video-bandwidth (1 Hz to 2 MHz
+unless given) with the carrier at the distortion frequency.
 
 Steps run in parallel on all cores; the output is the same whatever the
 worker count. Defaults come from the file's analysis.study.`,
 		Example: `  qpoint study testdata/demo/attenuator.yaml --vary Vctl.value --from 0.9V --to 5V --steps 42
   qpoint study attenuator.yaml --vary Vctl.value --from 0.9V --to 5V --steps 40 --target "s21=-6dB@900MHz"
   qpoint study detector.yaml --vary Rbias.value --from 10k --to 1M --steps 30 --log --maximize "sensitivity"
+  qpoint study detector.yaml --vary Rbias.value --from 47k --to 4.7M --steps 25 --log --minimize tss
+  qpoint study detector.yaml --frequency 915MHz,2.45GHz --level -30dBm
   qpoint study detector.yaml --vary Vcc.value --from 0V --to 3.3V --steps 12 --vary2 temperature --from2 -40C --to2 85C --steps2 6
   qpoint study mixer.yaml --csv mixer-study.csv --plots figures/`,
 		Args: exactFile,
@@ -84,6 +100,9 @@ worker count. Defaults come from the file's analysis.study.`,
 	f.BoolVar(&fl.log2, "log2", false, "space the second quantity geometrically")
 	f.StringVar(&fl.frequencies, "frequencies", "", "comma-separated frequencies for the response, e.g. 900MHz,2.45GHz")
 	f.StringVar(&fl.level, "level", "", "signal level for the distortion estimates, e.g. -30dBm (default: the file's)")
+	f.StringVar(&fl.distortionFrequency, "frequency", "", "distortion frequency, or several comma-separated (default: the file's analysis.distortion frequency)")
+	f.StringVar(&fl.videoBandwidth, "video-bandwidth", "", "detector video band for nep and tss: HIGH (from 1 Hz) or LOW:HIGH [2MHz]")
+	f.BoolVar(&fl.signed, "signed", false, "optimise a polarity measure (sensitivity, dc_shift) on its signed value, not its magnitude")
 	f.StringVar(&fl.input, "input", "", "input port for distortion (default: the file's, else the first)")
 	f.StringVar(&fl.output, "output", "", "output port or node for distortion (default: the file's, else the last port)")
 	f.StringVar(&fl.target, "target", "", `find where MEASURE meets VALUE: "s21=-10dB@900MHz"`)
@@ -325,33 +344,71 @@ func resolveStudyFor(c *circuit.Circuit, fl *studyFlags) (*studySetup, error) {
 	}
 	s.settings.FrequenciesHz = freqs
 
-	// Distortion drive: when a level is given or the file has one.
+	// Distortion frequencies: --frequency, else the file's distortion
+	// frequency, else the first study frequency.
 	def2 := c.Analysis.Distortion
-	levelText := fl.level
-	if levelText != "" || def2.Set {
-		d, err := distortionDrive(c, &distortionFlags{input: fl.input, output: fl.output, level: levelText,
-			frequency: strconv.FormatFloat(firstOr(freqs, def2.FrequencyHz), 'g', -1, 64) + "Hz"})
+	var dfreqs []float64
+	if fl.distortionFrequency != "" {
+		for _, t := range strings.Split(fl.distortionFrequency, ",") {
+			f, err := circuit.ParseBounded(strings.TrimSpace(t), circuit.Frequency)
+			if err == nil {
+				err = ac.CheckFrequency(f)
+			}
+			if err != nil {
+				return nil, inputError(fmt.Errorf("flag --frequency: %w", err))
+			}
+			dfreqs = append(dfreqs, f)
+		}
+	} else if def2.Set && def2.FrequencyHz > 0 {
+		dfreqs = []float64{def2.FrequencyHz}
+	} else if len(freqs) > 0 {
+		dfreqs = []float64{freqs[0]}
+	}
+	if s.measure != nil && s.measure.AtDistortion() && s.measure.FrequencyHz != 0 && !slices.Contains(dfreqs, s.measure.FrequencyHz) {
+		dfreqs = append(dfreqs, s.measure.FrequencyHz)
+	}
+	// The signal path (and, with a level, the drive): when a level is
+	// given, the file has one, or a measure needs the path.
+	needPath := s.measure != nil && (s.measure.NeedsNoise() || s.measure.NeedsDetector())
+	if fl.level != "" || def2.Set || needPath {
+		if len(dfreqs) == 0 {
+			return nil, inputError(errors.New("no distortion frequency: give --frequency (e.g. 2.45GHz)"))
+		}
+		d, err := distortionDrive(c, &distortionFlags{input: fl.input, output: fl.output, level: fl.level,
+			frequency: strconv.FormatFloat(dfreqs[0], 'g', -1, 64) + "Hz"})
 		if err != nil {
 			return nil, err
 		}
 		d.drive.SecondToneHz = 0
+		if fl.level == "" && !def2.Set {
+			d.drive.EMF = 0 // the path alone: no level was asked for
+		}
 		s.settings.Drive = d.drive
+		s.settings.DistortionHz = dfreqs
 	}
 	if s.measure != nil && s.measure.NeedsDrive() && s.settings.Drive.EMF == 0 {
 		return nil, inputError(fmt.Errorf("measure %s needs a signal level: give --level (e.g. -30dBm)", s.measure.Text))
+	}
+	if s.measure != nil {
+		s.measure.Signed = fl.signed
+		s.settings.NoiseFigure = s.measure.NeedsNoise()
+	}
+	if s.measure != nil && s.measure.NeedsDetector() || fl.videoBandwidth != "" {
+		vb := fl.videoBandwidth
+		if vb == "" {
+			vb = "2MHz"
+		}
+		lo, hi, err := parseBand("video-bandwidth", vb, 1)
+		if err != nil {
+			return nil, err
+		}
+		s.settings.Detector = &study.DetectorSettings{VideoFromHz: lo, VideoToHz: hi}
 	}
 	if fl.workers < 0 {
 		return nil, inputError(fmt.Errorf("flag --workers: %d; accepted: 0 (all cores) or more", fl.workers))
 	}
 	s.settings.Workers = fl.workers
 	return s, nil
-}
-
-func firstOr(f []float64, d float64) float64 {
-	if len(f) > 0 {
-		return f[0]
-	}
-	return d
 }
 
 func runStudy(cmd *cobra.Command, path string, fl *studyFlags) error {
@@ -397,7 +454,7 @@ func runStudy(cmd *cobra.Command, path string, fl *studyFlags) error {
 	cols := studyColumns(r)
 	var figs []*plots.Figure
 	if fl.plotsDir != "" {
-		if figs, err = studyPlots(r, fl.show); err != nil {
+		if figs, err = studyPlots(r, fl.show, solutionMarks(s, sol)...); err != nil {
 			return err
 		}
 	}
@@ -492,14 +549,41 @@ func studyColumns(r *study.Result) []column {
 				column{d.Name + ".voltage_sensitivity_V/W" + ftag, d.Name + " γ V/W" + tag, "", func(st *study.Step) float64 { return st.Diodes[k].VoltageSensitivity[fi] }})
 		}
 	}
-	if r.Settings.Drive.EMF > 0 {
+	if len(first.NoiseFigureDB) > 0 {
+		for fi := range first.NoiseFigureDB {
+			fi := fi
+			tag := ""
+			if !r.Settings.SecondIsFrequency {
+				tag = "@" + si.Format(first.Responses[fi].FrequencyHz, "Hz", 6)
+			}
+			cols = append(cols, column{"noise_figure_dB" + strings.ReplaceAll(tag, " ", ""), "NF dB" + tag, "", func(st *study.Step) float64 { return st.NoiseFigureDB[fi] }})
+		}
+	}
+	for di, d := range first.Distortion {
+		di := di
+		tag := "@" + si.Format(d.FrequencyHz, "Hz", 6)
+		ftag := strings.ReplaceAll(tag, " ", "")
 		cols = append(cols,
-			column{"hd2_dBc", "HD2 dBc", "", func(st *study.Step) float64 { return st.HD2dBc }},
-			column{"hd3_dBc", "HD3 dBc", "", func(st *study.Step) float64 { return st.HD3dBc }},
-			column{"dc_shift_V", "DC shift", "V", func(st *study.Step) float64 { return st.DCShift }},
-			column{"sensitivity_V/W", "sensitivity V/W", "", func(st *study.Step) float64 { return st.DetectorSensitivity }})
+			column{"hd2_dBc" + ftag, "HD2 dBc" + tag, "", func(st *study.Step) float64 { return st.Distortion[di].HD2dBc }},
+			column{"hd3_dBc" + ftag, "HD3 dBc" + tag, "", func(st *study.Step) float64 { return st.Distortion[di].HD3dBc }},
+			column{"dc_shift_V" + ftag, "DC shift" + tag, "V", func(st *study.Step) float64 { return st.Distortion[di].DCShift }},
+			column{"sensitivity_V/W" + ftag, "sensitivity V/W" + tag, "", func(st *study.Step) float64 { return st.Distortion[di].Sensitivity }})
+	}
+	if r.Settings.Detector != nil {
+		cols = append(cols,
+			column{"nep_W/rtHz", "NEP", "W/√Hz", func(st *study.Step) float64 { return detection(st).NEP }},
+			column{"tss_dBm", "TSS dBm", "", func(st *study.Step) float64 { return detection(st).TangentialDBm }})
 	}
 	return cols
+}
+
+// detection returns a step's detector figures, NaN where the output does
+// not detect.
+func detection(st *study.Step) study.Detection {
+	if st.Detection == nil || !st.Detection.Detects {
+		return study.Detection{NEP: math.NaN(), TangentialDBm: math.NaN()}
+	}
+	return *st.Detection
 }
 
 func unitOrNumber(u string) string {
@@ -606,7 +690,11 @@ func writeSolution(w io.Writer, s *studySetup, r *study.Result, sol *study.Solut
 			what, formatCell(sol.Value, unit), formatCell(sol.Bracket[0], unit), formatCell(sol.Bracket[1], unit),
 			formatDifference(sol.Tolerance, unit), sol.Iterations, s.measure.Text, sol.Measure, s.measure.Unit)
 	default:
-		fmt.Fprintf(w, "%s of %s\n", map[string]string{"maximize": "Largest", "minimize": "Smallest"}[s.goal], s.measure.Text)
+		of := s.measure.Text
+		if sol.OnMagnitude {
+			of = "|" + of + "| (its sign is the polarity; --signed uses the signed value)"
+		}
+		fmt.Fprintf(w, "%s of %s\n", map[string]string{"maximize": "Largest", "minimize": "Smallest"}[s.goal], of)
 		fmt.Fprintf(w, "  %.6g %s at %s = %s (searched %s to %s, tolerance %s)\n", sol.Measure, s.measure.Unit, what,
 			formatCell(sol.Value, unit), formatCell(sol.Bracket[0], unit), formatCell(sol.Bracket[1], unit), formatDifference(sol.Tolerance, unit))
 		if sol.AtEdge {
@@ -614,6 +702,41 @@ func writeSolution(w io.Writer, s *studySetup, r *study.Result, sol *study.Solut
 		}
 	}
 	fmt.Fprintln(w)
+}
+
+// solutionMarks marks a target's or optimum's solution on the study
+// figure.
+func solutionMarks(s *studySetup, sol *study.Solution) []plots.StudyMark {
+	if sol == nil || s.measure == nil {
+		return nil
+	}
+	mk := plots.StudyMark{Measure: s.measure, X: sol.Value, Y: sol.Measure, Target: math.NaN()}
+	val := formatMeasure(sol.Measure, s.measure.Unit)
+	switch s.goal {
+	case "target":
+		mk.Target = s.value
+		mk.Label = "target met\n" + val
+	case "maximize":
+		mk.Label = "largest\n" + val
+	default:
+		mk.Label = "smallest\n" + val
+	}
+	if sol.OnMagnitude {
+		mk.Label = strings.Replace(mk.Label, "\n", " magnitude\n", 1)
+	}
+	return []plots.StudyMark{mk}
+}
+
+// formatMeasure prints a measure's value with its unit: decibel figures
+// to two decimals, the rest with SI prefixes.
+func formatMeasure(v float64, unit string) string {
+	switch unit {
+	case "dB", "dBc", "dBm":
+		return strconv.FormatFloat(v, 'f', 2, 64) + " " + unit
+	case "ohm":
+		return si.Format(v, "Ω", 4)
+	}
+	return si.Format(v, unit, 4)
 }
 
 // formatDifference prints a difference of the varied quantity: a
