@@ -23,6 +23,7 @@ type distortionFlags struct {
 	input, output, frequency, level, secondTone string
 	sweepLevel, sweepFrequency                  string
 	temperature                                 string
+	videoBandwidth                              string
 	samples, harmonics                          int
 	noLimit                                     bool
 	asJSON                                      bool
@@ -69,6 +70,7 @@ Settings come from the flags, else from the file's analysis.distortion.`,
 	f.StringVar(&fl.sweepLevel, "sweep-level", "", "solve the waveform over levels FROM:TO:STEP, e.g. -50dBm:0dBm:1dB")
 	f.StringVar(&fl.sweepFrequency, "sweep-frequency", "", "estimate over frequencies FROM:TO:PER-DECADE, e.g. 100MHz:6GHz:20")
 	f.StringVar(&fl.temperature, "temperature", "", "circuit temperature, overriding the file's (e.g. 85C)")
+	f.StringVar(&fl.videoBandwidth, "video-bandwidth", "", "a detector's video band for its tangential sensitivity: HIGH (from 1 Hz) or LOW:HIGH [2MHz]")
 	f.IntVar(&fl.samples, "samples", 255, "waveform samples per period (the solver also uses 2N+1)")
 	f.IntVar(&fl.harmonics, "harmonics", 5, "highest harmonic order reported from the waveform")
 	f.BoolVar(&fl.noLimit, "no-limit", false, "skip the search for the validity limit")
@@ -291,6 +293,8 @@ func runDistortion(cmd *cobra.Command, path string, fl *distortionFlags) error {
 	}
 
 	var sweep []ac.LevelPoint
+	var transfer *ac.Transfer
+	tss := math.NaN()
 	var compression float64
 	var compressed bool
 	if fl.sweepLevel != "" {
@@ -324,9 +328,15 @@ func runDistortion(cmd *cobra.Command, path string, fl *distortionFlags) error {
 			doc.LevelSweep = append(doc.LevelSweep, levelJSON{number(p.LevelDBm), waveformJSONOf(p.Steady)})
 		}
 		doc.Cautions = append(doc.Cautions, sweepCautions(sweep)...)
+		if transfer, tss, err = detectorTransfer(s, sweep, fl.videoBandwidth); err != nil {
+			return err
+		}
+		if transfer != nil {
+			doc.Transfer = transferJSONOf(transfer, tss)
+		}
 	}
 	if fl.plotsDir != "" {
-		if err := writeDistortionPlots(fl.plotsDir, s, oneEst, st, sweep); err != nil {
+		if err := writeDistortionPlots(fl.plotsDir, s, oneEst, st, sweep, transfer, tss); err != nil {
 			return err
 		}
 	}
@@ -344,10 +354,71 @@ func runDistortion(cmd *cobra.Command, path string, fl *distortionFlags) error {
 		writeLevelSweep(out, sweep, oneEst, compression, compressed)
 		writeCautions(out, sweepCautions(sweep))
 	}
+	if transfer != nil {
+		writeTransfer(out, transfer, tss)
+	}
 	if fl.plotsDir != "" {
 		fmt.Fprintf(out, "figures written to %s\n", fl.plotsDir)
 	}
 	return nil
+}
+
+// detectorTransfer returns the transfer curve of a detector output from
+// the level sweep, with its tangential sensitivity over the video band
+// (NaN when it cannot be found); nil when the output is not a detector's.
+func detectorTransfer(s *distortionSetup, sweep []ac.LevelPoint, videoBand string) (*ac.Transfer, float64, error) {
+	path := ac.NoiseSettings{Input: s.drive.Input, Output: s.drive.Output}
+	if len(sweep) < 3 || !ac.Detects(s.nw, path, s.drive.FrequencyHz) {
+		return nil, math.NaN(), nil
+	}
+	if videoBand == "" {
+		videoBand = "2MHz"
+	}
+	lo, hi, err := parseBand("video-bandwidth", videoBand, defaultVideoFromHz)
+	if err != nil {
+		return nil, math.NaN(), err
+	}
+	gamma, err := ac.VoltageSensitivity(s.nw, path, s.drive.FrequencyHz)
+	if err != nil {
+		return nil, math.NaN(), analysisError(err)
+	}
+	t, err := ac.DetectorTransfer(sweep, gamma)
+	if err != nil {
+		return nil, math.NaN(), nil
+	}
+	tss := math.NaN()
+	if det, err := ac.Detector(s.nw, path, s.drive.FrequencyHz, lo, hi); err == nil {
+		tss = det.TangentialDBm()
+	}
+	return t, tss, nil
+}
+
+// writeTransfer prints a detector's transfer curve and its square-law
+// range.
+func writeTransfer(w io.Writer, t *ac.Transfer, tssDBm float64) {
+	tb := &table{title: "Detector transfer curve (waveform)", header: []string{"input", "output DC change", "from square law"}}
+	for _, p := range t.Points {
+		tb.add(fmt.Sprintf("%.1f dBm", p.LevelDBm), si.Format(p.Volts, "V", 4), fmt.Sprintf("%+.3f dB", p.DeviationDB))
+	}
+	tb.write(w)
+	fmt.Fprintf(w, "  square law V = γP with γ = %s (small-signal voltage sensitivity)\n", si.Format(t.SensitivityVPerW, "V/W", 4))
+	fmt.Fprintf(w, "  log-log slope %.3f at the lowest level, %.3f at the highest (1: square law, 0.5: linear detection)\n", t.LowSlope, t.HighSlope)
+	if math.IsNaN(t.DeviationDBm) {
+		fmt.Fprintf(w, "  within 1 dB of square law over the whole sweep, or beyond it from the lowest level\n")
+	} else {
+		fmt.Fprintf(w, "  1 dB from square law at %.2f dBm input\n", t.DeviationDBm)
+	}
+	if !math.IsNaN(tssDBm) {
+		fmt.Fprintf(w, "  tangential sensitivity %.2f dBm", tssDBm)
+		if dr := t.DynamicRangeDB(tssDBm); !math.IsNaN(dr) {
+			fmt.Fprintf(w, "; square-law dynamic range %.1f dB", dr)
+		}
+		fmt.Fprintln(w)
+		if len(t.Points) > 0 && t.Points[0].LevelDBm > tssDBm {
+			fmt.Fprintf(w, "  the sweep starts above the tangential sensitivity; start below %.0f dBm to see the whole range\n", math.Floor(tssDBm))
+		}
+	}
+	fmt.Fprintln(w)
 }
 
 type frequencyRow struct {

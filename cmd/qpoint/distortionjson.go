@@ -41,6 +41,33 @@ type seriesStepJSON struct {
 	Kind     string `json:"kind"`
 }
 
+// transferJSON is a detector's transfer curve: output DC change against
+// available input power, with its deviation from square law.
+type transferJSON struct {
+	Sensitivity   number              `json:"sensitivity"`
+	Points        []transferPointJSON `json:"points"`
+	LowSlope      number              `json:"low_slope"`
+	HighSlope     number              `json:"high_slope"`
+	DeviationDBm  *number             `json:"deviation_1db_dbm"`
+	TangentialDBm *number             `json:"tangential_sensitivity_dbm"`
+	DynamicRange  *number             `json:"dynamic_range_db"`
+}
+
+type transferPointJSON struct {
+	LevelDBm    number `json:"level_dbm"`
+	Volts       number `json:"output"`
+	DeviationDB number `json:"deviation_db"`
+}
+
+func transferJSONOf(t *ac.Transfer, tssDBm float64) *transferJSON {
+	j := &transferJSON{Sensitivity: number(t.SensitivityVPerW), LowSlope: number(t.LowSlope), HighSlope: number(t.HighSlope),
+		DeviationDBm: ptr(t.DeviationDBm), TangentialDBm: ptr(tssDBm), DynamicRange: ptr(t.DynamicRangeDB(tssDBm))}
+	for _, p := range t.Points {
+		j.Points = append(j.Points, transferPointJSON{number(p.LevelDBm), number(p.Volts), number(p.DeviationDB)})
+	}
+	return j
+}
+
 type harmonicJSON struct {
 	Order     int     `json:"order"`
 	Amplitude number  `json:"amplitude"`
@@ -80,6 +107,7 @@ type distortionJSON struct {
 	ValidityNote       string           `json:"validity_note,omitempty"`
 	LevelSweep         []levelJSON      `json:"level_sweep,omitempty"`
 	CompressionDBm     number           `json:"compression_dbm,omitempty"`
+	Transfer           *transferJSON    `json:"transfer,omitempty"`
 	FrequencySweep     []*estimateJSON  `json:"frequency_sweep,omitempty"`
 	Cautions           []string         `json:"cautions,omitempty"`
 }

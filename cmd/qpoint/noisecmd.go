@@ -30,9 +30,6 @@ import (
 const (
 	defaultVideoToHz   = 2e6
 	defaultVideoFromHz = 1
-	// detectorProbeDBm is the level at which an output is taken for a
-	// detector's when it carries more rectified DC than carrier.
-	detectorProbeDBm = -20
 )
 
 type noiseFlags struct {
@@ -231,11 +228,8 @@ func resolveNoiseFor(c *circuit.Circuit, fl *noiseFlags, p *bias.Point) (*noiseS
 			s.detector = true
 		case err == nil:
 			// Unasked, a detector is an output that carries more
-			// rectified DC than carrier at a small level; a DC-coupled
-			// attenuator or limiter rectifies a little too.
-			z0 := c.Ports[inIdx].Impedance
-			est, err := ac.Volterra(s.nw, ac.Drive{Input: inIdx, Output: o, FrequencyHz: s.carrierHz, EMF: ac.DBmToEMF(detectorProbeDBm, z0)})
-			s.detector = err == nil && math.Abs(est.DCShift) >= cmplx.Abs(est.Linear)
+			// rectified DC than carrier at a small level.
+			s.detector = ac.Detects(s.nw, s.settings, s.carrierHz)
 		case asked && errors.Is(err, ac.ErrNoRectification):
 			return nil, inputError(fmt.Errorf("flags --carrier/--video-bandwidth: output %s is not a detector output: %w", out, err))
 		case asked:

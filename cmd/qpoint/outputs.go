@@ -67,12 +67,16 @@ func writeFigures(dir string, figs []*plots.Figure) error {
 	return nil
 }
 
-func writeDistortionPlots(dir string, s *distortionSetup, e *ac.Estimate, st *ac.Steady, sweep []ac.LevelPoint) error {
+func writeDistortionPlots(dir string, s *distortionSetup, e *ac.Estimate, st *ac.Steady, sweep []ac.LevelPoint, t *ac.Transfer, tssDBm float64) error {
 	comp, compressed := 0.0, false
 	if len(sweep) > 1 {
 		comp, compressed = ac.Compression(sweep, cmplx.Abs(e.Linear)/e.Drive.EMF)
 	}
-	return writeFigures(dir, distortionFigures(e, st, sweep, comp, compressed))
+	figs := distortionFigures(e, st, sweep, comp, compressed)
+	if t != nil {
+		figs = append(figs, plots.DetectorTransfer(t, tssDBm))
+	}
+	return writeFigures(dir, figs)
 }
 
 func writeDistortionFrequencyPlot(dir string, rows []frequencyRow) error {

@@ -270,6 +270,30 @@ func distortionSection(s *distortionSetup) (report.Section, []report.Card, error
 	if compressed {
 		cards = append(cards, report.Card{Label: "1 dB compression", Value: fmt.Sprintf("%.1f dBm", comp), Detail: "input, from the waveform"})
 	}
+	// A detector's transfer curve, from below its tangential
+	// sensitivity to beyond square law.
+	path := ac.NoiseSettings{Input: s.drive.Input, Output: s.drive.Output}
+	if ac.Detects(s.nw, path, s.drive.FrequencyHz) {
+		if det, err := ac.Detector(s.nw, path, s.drive.FrequencyHz, defaultVideoFromHz, defaultVideoToHz); err == nil {
+			var levels []float64
+			for l := math.Floor(det.TangentialDBm()/2)*2 - 10; l <= 10+1e-9; l += 2 {
+				levels = append(levels, l)
+			}
+			tsweep, _ := ac.LevelSweep(s.nw, one, levels, settings, nil)
+			if t, err := ac.DetectorTransfer(tsweep, det.Sensitivity); err == nil {
+				fig, err := svgOf(plots.DetectorTransfer(t, det.TangentialDBm()))
+				if err != nil {
+					return sec, nil, analysisError(err)
+				}
+				sec.Blocks = append(sec.Blocks, report.Block{Note: "Detector transfer curve, from the waveform at each level, with the tangential sensitivity over a 1 Hz to 2 MHz video band."},
+					report.Block{Figure: fig})
+				if !math.IsNaN(t.DeviationDBm) {
+					cards = append(cards, report.Card{Label: "square-law range", Value: fmt.Sprintf("%.1f dB", t.DynamicRangeDB(det.TangentialDBm())),
+						Detail: fmt.Sprintf("tangential sensitivity %.1f dBm to 1 dB deviation at %.1f dBm", det.TangentialDBm(), t.DeviationDBm)})
+				}
+			}
+		}
+	}
 	return sec, cards, nil
 }
 
