@@ -148,4 +148,7 @@ type Circuit struct {
 	// Nodes lists every node other than Ground, in order of first
 	// appearance in the file.
 	Nodes []string
+	// Overrides lists the values set from outside the file (WithOverride),
+	// in the order they were applied.
+	Overrides []Override
 }

@@ -18,6 +18,7 @@ import (
 func newBiasCmd() *cobra.Command {
 	var asJSON bool
 	var temperature string
+	var sets []string
 	cmd := &cobra.Command{
 		Use:   "bias FILE",
 		Short: "Find the DC operating point: node voltages and every diode's Q point",
@@ -30,10 +31,11 @@ Exit status: 0 solved, 1 no operating point found (the message says what
 was tried), 2 bad input or usage.`,
 		Example: `  qpoint bias testdata/demo/detector.yaml
   qpoint bias mixer.yaml --temperature 85C
+  qpoint bias detector.yaml --set Rbias.value=100k --set detector_low_barrier.saturation_current=2uA
   qpoint bias mixer.yaml --json > mixer-bias.json`,
 		Args: exactFile,
 		RunE: func(cmd *cobra.Command, args []string) error {
-			c, err := loadCircuit(args[0])
+			c, err := loadCircuit(args[0], sets, temperature)
 			if err != nil {
 				return err
 			}
@@ -58,7 +60,14 @@ was tried), 2 bad input or usage.`,
 	}
 	cmd.Flags().BoolVar(&asJSON, "json", false, "print one JSON document (SI units) instead of tables")
 	cmd.Flags().StringVar(&temperature, "temperature", "", "circuit temperature, overriding the file's (e.g. 85C or 358.15K)")
+	addSetFlag(cmd, &sets)
 	return cmd
+}
+
+// addSetFlag adds --set NAME=VALUE, repeatable, to a command that reads a
+// circuit file.
+func addSetFlag(cmd *cobra.Command, sets *[]string) {
+	cmd.Flags().StringArrayVar(sets, "set", nil, "set a value for this run, NAME=VALUE: PART.value, MODEL.KEY or temperature (repeatable), e.g. Rbias.value=100k")
 }
 
 // exactFile accepts exactly one argument, the circuit file.
@@ -69,8 +78,10 @@ func exactFile(cmd *cobra.Command, args []string) error {
 	return nil
 }
 
-// loadCircuit reads a circuit file; every failure is an input error.
-func loadCircuit(path string) (*circuit.Circuit, error) {
+// loadCircuit reads a circuit file and applies the --set values in order;
+// every failure is an input error. temperature is the command's
+// --temperature flag, which a --set of the temperature may not contradict.
+func loadCircuit(path string, sets []string, temperature string) (*circuit.Circuit, error) {
 	inputs = append(inputs, path)
 	c, err := circuit.Load(path)
 	if err != nil {
@@ -80,7 +91,31 @@ func loadCircuit(path string) (*circuit.Circuit, error) {
 		}
 		return nil, inputError(err)
 	}
+	for _, s := range sets {
+		if c, err = c.WithOverride(s); err != nil {
+			return nil, inputError(fmt.Errorf("flag --set: %w", err))
+		}
+		if o := c.Overrides[len(c.Overrides)-1]; o.Target == "temperature" && temperature != "" {
+			return nil, inputError(fmt.Errorf("flags --set temperature=%s and --temperature %s: give the temperature once", o.Text, temperature))
+		}
+	}
 	return c, nil
+}
+
+// overridesLine lists the --set values a run applied, or "" for none.
+func overridesLine(c *circuit.Circuit) string {
+	var parts []string
+	for _, o := range c.Overrides {
+		parts = append(parts, o.String())
+	}
+	return strings.Join(parts, ", ")
+}
+
+// writeOverrides prints the header line of the --set values, if any.
+func writeOverrides(w io.Writer, c *circuit.Circuit) {
+	if l := overridesLine(c); l != "" {
+		fmt.Fprintf(w, "  set          %s\n", l)
+	}
 }
 
 func celsius(k float64) float64 { return k - diode.ZeroCelsius }
@@ -132,6 +167,7 @@ func writeBias(w io.Writer, p *bias.Point) {
 	c := p.Circuit
 	fmt.Fprintf(w, "%s\n", c.Name)
 	fmt.Fprintf(w, "  file         %s\n", c.File)
+	writeOverrides(w, c)
 	fmt.Fprintf(w, "  temperature  %.2f °C (%.2f K)\n", celsius(p.TemperatureK), p.TemperatureK)
 	fmt.Fprintf(w, "  solved by    %s in %s; largest current imbalance %s\n",
 		p.Stats.Strategy, plural(p.Stats.Iterations, "iteration"), si.Format(p.Stats.Residual, "A", 2))

@@ -28,6 +28,7 @@ type distortionFlags struct {
 	noLimit                                     bool
 	asJSON                                      bool
 	plotsDir                                    string
+	sets                                        []string
 }
 
 func newDistortionCmd() *cobra.Command {
@@ -62,12 +63,13 @@ Settings come from the flags, else from the file's analysis.distortion.`,
 		},
 	}
 	f := cmd.Flags()
+	addSetFlag(cmd, &fl.sets)
 	f.StringVar(&fl.input, "input", "", "input port name (default: the file's, else the first port)")
 	f.StringVar(&fl.output, "output", "", "output port or node name (default: the file's, else the last port)")
 	f.StringVar(&fl.frequency, "frequency", "", "signal frequency, e.g. 2.45GHz")
 	f.StringVar(&fl.level, "level", "", "signal level per tone: -30dBm or a peak voltage such as 10mV")
 	f.StringVar(&fl.secondTone, "second-tone", "", "frequency of a second tone of the same level, for IM2, IM3 and intercepts; none drops the file's")
-	f.StringVar(&fl.sweepLevel, "sweep-level", "", "solve the waveform over levels FROM:TO:STEP, e.g. -50dBm:0dBm:1dB")
+	f.StringVar(&fl.sweepLevel, "sweep-level", "", "solve the waveform over levels FROM:TO:STEP, e.g. -50dBm:0dBm:1dB or 1mV:300mV:1dB (peak volts into a matched load)")
 	f.StringVar(&fl.sweepFrequency, "sweep-frequency", "", "estimate over frequencies FROM:TO:PER-DECADE, e.g. 100MHz:6GHz:20")
 	f.StringVar(&fl.temperature, "temperature", "", "circuit temperature, overriding the file's (e.g. 85C)")
 	f.StringVar(&fl.videoBandwidth, "video-bandwidth", "", "a detector's video band for its tangential sensitivity: HIGH (from 1 Hz) or LOW:HIGH [2MHz]")
@@ -91,7 +93,7 @@ type distortionSetup struct {
 }
 
 func resolveDistortion(path string, fl *distortionFlags) (*distortionSetup, error) {
-	c, err := loadCircuit(path)
+	c, err := loadCircuit(path, fl.sets, fl.temperature)
 	if err != nil {
 		return nil, err
 	}
@@ -211,6 +213,47 @@ func parseRange(flag, s string, q circuit.Quantity, stepQ circuit.Quantity) (fro
 	return from, to, step, nil
 }
 
+// parseLevelRange reads a level sweep FROM:TO:STEP: each end a power
+// (-50dBm, or a bare number in dBm) or a peak voltage into a matched load
+// (10mV, as --level takes it), the step in dB. It returns the ends in dBm
+// of available power behind z0.
+func parseLevelRange(flag, s string, z0 float64) (from, to, step float64, err error) {
+	const example = "e.g. -50dBm:0dBm:1dB or 1mV:300mV:1dB"
+	parts := strings.Split(s, ":")
+	if len(parts) != 3 {
+		return 0, 0, 0, inputError(fmt.Errorf("flag --%s: `%s` is not FROM:TO:STEP; %s", flag, s, example))
+	}
+	level := func(t string) (float64, error) {
+		t = strings.TrimSpace(t)
+		if v, err := circuit.ParseBounded(t, circuit.Dimensionless); err == nil {
+			return v, nil // a bare number is dBm
+		}
+		lv, err := circuit.ParseLevel(t)
+		if err != nil {
+			return 0, err
+		}
+		if lv.IsPower {
+			return lv.DBm, nil
+		}
+		return ac.EMFToDBm(2*lv.PeakVolts, z0), nil
+	}
+	if from, err = level(parts[0]); err == nil {
+		if to, err = level(parts[1]); err == nil {
+			step, err = circuit.ParseBounded(strings.TrimSpace(strings.TrimSuffix(strings.TrimSpace(parts[2]), "dB")), circuit.Dimensionless)
+		}
+	}
+	if err != nil {
+		return 0, 0, 0, inputError(fmt.Errorf("flag --%s: %w; %s", flag, err, example))
+	}
+	if !(step > 0) || !(to > from) {
+		return 0, 0, 0, inputError(fmt.Errorf("flag --%s: `%s` must rise from FROM to TO with a positive STEP in dB; %s", flag, s, example))
+	}
+	if from < -200 || to > 90 {
+		return 0, 0, 0, inputError(fmt.Errorf("flag --%s: `%s` spans %.1f to %.1f dBm; accepted: levels within -200 to +90 dBm", flag, s, from, to))
+	}
+	return from, to, step, nil
+}
+
 func runDistortion(cmd *cobra.Command, path string, fl *distortionFlags) error {
 	s, err := resolveDistortion(path, fl)
 	if err != nil {
@@ -298,7 +341,7 @@ func runDistortion(cmd *cobra.Command, path string, fl *distortionFlags) error {
 	var compression float64
 	var compressed bool
 	if fl.sweepLevel != "" {
-		from, to, step, err := parseRange("sweep-level", fl.sweepLevel, circuit.Dimensionless, circuit.Dimensionless)
+		from, to, step, err := parseLevelRange("sweep-level", fl.sweepLevel, s.c.Ports[s.drive.Input].Impedance)
 		if err != nil {
 			return err
 		}
@@ -429,6 +472,7 @@ type frequencyRow struct {
 func writeDistortionHeader(w io.Writer, s *distortionSetup) {
 	fmt.Fprintf(w, "%s\n", s.c.Name)
 	fmt.Fprintf(w, "  file         %s\n", s.c.File)
+	writeOverrides(w, s.c)
 	fmt.Fprintf(w, "  bias         %s\n", biasLine(s.p))
 	z0 := s.c.Ports[s.drive.Input].Impedance
 	fmt.Fprintf(w, "  drive        port %s, %s, %.2f dBm available (EMF %s peak behind %s)\n", s.inName,

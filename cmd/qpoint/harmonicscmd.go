@@ -24,6 +24,7 @@ type waveformFlags struct {
 	asJSON      bool
 	// Prediction to compare with: a circuit file and its drive.
 	circuitPath, input, output, level string
+	sets                              []string
 }
 
 func newHarmonicsCmd() *cobra.Command {
@@ -71,6 +72,7 @@ hann (2 periods), flat-top (5 periods), rectangular (1 period).`,
 	f.IntVar(&fl.harmonics, "harmonics", measure.DefaultHarmonics, "highest harmonic order to report")
 	f.BoolVar(&fl.asJSON, "json", false, "print one JSON document (SI units) instead of the tables")
 	f.StringVar(&fl.circuitPath, "circuit", "", "compare with the waveform this circuit file predicts at the measured fundamental")
+	addSetFlag(cmd, &fl.sets)
 	f.StringVar(&fl.input, "input", "", "with --circuit: the input port (default: the file's, else the first)")
 	f.StringVar(&fl.output, "output", "", "with --circuit: the output port or node that was captured (default: the file's)")
 	f.StringVar(&fl.level, "level", "", "with --circuit: the drive level, e.g. -20dBm (default: the file's)")
@@ -156,7 +158,7 @@ func runWaveformHarmonics(cmd *cobra.Command, path string, fl *waveformFlags) er
 // predictHarmonics solves the circuit's steady state at the measured
 // fundamental with the flags' (or the file's) drive.
 func predictHarmonics(fl *waveformFlags, fundamentalHz float64, k int) (*ac.Steady, error) {
-	ds, err := resolveDistortion(fl.circuitPath, &distortionFlags{input: fl.input, output: fl.output, level: fl.level,
+	ds, err := resolveDistortion(fl.circuitPath, &distortionFlags{input: fl.input, output: fl.output, level: fl.level, sets: fl.sets,
 		frequency: strconv.FormatFloat(fundamentalHz, 'g', -1, 64) + "Hz"})
 	if err != nil {
 		return nil, err

@@ -44,6 +44,7 @@ type noiseFlags struct {
 	csvPath           string
 	plotsDir          string
 	rows              int
+	sets              []string
 }
 
 func newNoiseCmd() *cobra.Command {
@@ -87,6 +88,7 @@ is not computed here.`,
 		},
 	}
 	f := cmd.Flags()
+	addSetFlag(cmd, &fl.sets)
 	f.StringVar(&fl.input, "input", "", "port of the signal source (default: the file's distortion input, else the first port)")
 	f.StringVar(&fl.output, "output", "", "output port or node (default: the file's distortion output, else the last port)")
 	f.StringVar(&fl.from, "from", "", "lowest frequency of the sweep, e.g. 10MHz")
@@ -312,7 +314,7 @@ func runNoise(cmd *cobra.Command, path string, fl *noiseFlags) error {
 	if fl.rows < 1 {
 		return inputError(fmt.Errorf("flag --rows: %d; accepted: 1 or more", fl.rows))
 	}
-	c, err := loadCircuit(path)
+	c, err := loadCircuit(path, fl.sets, fl.temperature)
 	if err != nil {
 		return err
 	}
@@ -432,6 +434,7 @@ func temperatureText(k float64) string {
 func writeNoiseHeader(w io.Writer, s *noiseSetup) {
 	fmt.Fprintf(w, "%s\n", s.c.Name)
 	fmt.Fprintf(w, "  file         %s\n", s.c.File)
+	writeOverrides(w, s.c)
 	fmt.Fprintf(w, "  bias         %s\n", biasLine(s.p))
 	for _, line := range noiseSetupLines(s) {
 		fmt.Fprintf(w, "  %-12s %s\n", line[0], line[1])

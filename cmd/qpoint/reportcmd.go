@@ -22,6 +22,7 @@ import (
 
 func newReportCmd() *cobra.Command {
 	var outPath, temperature string
+	var sets []string
 	cmd := &cobra.Command{
 		Use:   "report FILE -o REPORT.html",
 		Short: "Write one self-contained HTML design report",
@@ -38,7 +39,7 @@ inline and fetches nothing: mail it, archive it, print it.`,
 			if outPath == "" {
 				return inputError(fmt.Errorf("flag -o is missing: name the HTML file to write, e.g. -o report.html"))
 			}
-			c, err := loadCircuit(args[0])
+			c, err := loadCircuit(args[0], sets, temperature)
 			if err != nil {
 				return err
 			}
@@ -55,6 +56,7 @@ inline and fetches nothing: mail it, archive it, print it.`,
 	}
 	cmd.Flags().StringVarP(&outPath, "output", "o", "", "the HTML file to write")
 	cmd.Flags().StringVar(&temperature, "temperature", "", "circuit temperature, overriding the file's (e.g. 85C)")
+	addSetFlag(cmd, &sets)
 	return cmd
 }
 
@@ -80,6 +82,9 @@ func buildReport(c *circuit.Circuit, temperature string) (*report.Document, erro
 			"Results are model estimates from the diode models in the circuit file. Confirm them by measurement before relying on them; the parts' ratings and your local practice govern.",
 			"Written by qpoint.",
 		},
+	}
+	if l := overridesLine(c); l != "" {
+		doc.Subtitle += " · values set for this run: " + l
 	}
 	for _, w := range p.Warnings {
 		doc.Cautions = append(doc.Cautions, w.Part+": "+w.Message)

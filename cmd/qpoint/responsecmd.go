@@ -39,6 +39,7 @@ type responseFlags struct {
 	format      string
 	plotsDir    string
 	rows        int
+	sets        []string
 }
 
 func newResponseCmd() *cobra.Command {
@@ -64,6 +65,7 @@ else 1 MHz to 10 GHz at 20 points per decade.`,
 		},
 	}
 	f := cmd.Flags()
+	addSetFlag(cmd, &fl.sets)
 	f.StringVar(&fl.from, "from", "", "lowest frequency, e.g. 10MHz")
 	f.StringVar(&fl.to, "to", "", "highest frequency, e.g. 6GHz")
 	f.IntVar(&fl.perDecade, "per-decade", 0, "points per decade on a logarithmic grid")
@@ -165,7 +167,7 @@ func solveWithTemperature(c *circuit.Circuit, temperature string) (*bias.Point, 
 }
 
 func runResponse(cmd *cobra.Command, path string, fl *responseFlags) error {
-	c, err := loadCircuit(path)
+	c, err := loadCircuit(path, fl.sets, fl.temperature)
 	if err != nil {
 		return err
 	}

@@ -40,6 +40,7 @@ type studyFlags struct {
 	asJSON               bool
 	csvPath, plotsDir    string
 	show                 string
+	sets                 []string
 }
 
 func newStudyCmd() *cobra.Command {
@@ -88,6 +89,7 @@ worker count. Defaults come from the file's analysis.study.`,
 		RunE: func(cmd *cobra.Command, args []string) error { return runStudy(cmd, args[0], &fl) },
 	}
 	f := cmd.Flags()
+	addSetFlag(cmd, &fl.sets)
 	f.StringVar(&fl.vary, "vary", "", "what to vary: temperature, PART.value or MODEL.KEY")
 	f.StringVar(&fl.from, "from", "", "first value, with units (e.g. 0V, 10k, -40C)")
 	f.StringVar(&fl.to, "to", "", "last value")
@@ -178,7 +180,7 @@ func exampleOf(q circuit.Quantity) string {
 }
 
 func resolveStudy(path string, fl *studyFlags) (*studySetup, error) {
-	c, err := loadCircuit(path)
+	c, err := loadCircuit(path, fl.sets, "")
 	if err != nil {
 		return nil, err
 	}
@@ -657,6 +659,7 @@ func writeStudyTable(w io.Writer, r *study.Result, cols []column, elapsed time.D
 	c := r.Circuit
 	fmt.Fprintf(w, "%s\n", c.Name)
 	fmt.Fprintf(w, "  file         %s\n", c.File)
+	writeOverrides(w, c)
 	what := r.Settings.Axis.Vary.Text
 	if r.Settings.Second != nil {
 		n2, _ := axisHeader(r.Settings.Second, r.Settings.SecondIsFrequency)
