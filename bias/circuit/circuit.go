@@ -151,4 +151,7 @@ type Circuit struct {
 	// Overrides lists the values set from outside the file (WithOverride),
 	// in the order they were applied.
 	Overrides []Override
+	// Cautions lists values that are legal but very likely slips (see
+	// Caution), in file order.
+	Cautions []Caution
 }

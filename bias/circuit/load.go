@@ -58,6 +58,7 @@ func Parse(file string, data []byte) (*Circuit, error) {
 	if err := finish(l.errs); err != nil {
 		return nil, err
 	}
+	c.Cautions = plausibility(c, l.written)
 	return c, nil
 }
 
@@ -72,6 +73,9 @@ type loader struct {
 	file string
 	errs []*Error
 	c    *Circuit
+	// written keeps the part and model values as the file wrote them,
+	// for the plausibility cautions.
+	written []written
 
 	// nodeAt is the first place each node other than gnd appears in parts.
 	nodeAt map[string]Pos

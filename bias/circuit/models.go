@@ -144,6 +144,7 @@ func (l *loader) model(n *yaml.Node, name string) diode.Params {
 		label := mk.key + " of " + what
 		if v, ok := l.value(e.val, mk.q, label, mk.r); ok {
 			*mk.field(&p) = v
+			l.written = append(l.written, written{pos: Pos{e.val.Line, e.val.Column}, owner: name, key: mk.key, model: true, text: e.val.Value, v: v})
 		}
 	}
 	if _, ok := f["saturation_current"]; !ok {

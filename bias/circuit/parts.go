@@ -165,6 +165,7 @@ func (l *loader) part(i int, n *yaml.Node) (p Part, complete bool) {
 			what := "value of " + label
 			if v, ok := l.value(e.val, spec.q, what, spec.r); ok {
 				p.Value = v
+				l.written = append(l.written, written{pos: Pos{e.val.Line, e.val.Column}, owner: p.Name, key: "value", kind: kind, text: e.val.Value, v: v})
 			}
 		} else {
 			l.missing(n, "value", keys, "%s has no `value`; accepted: value: %s", label, spec.q.Accepted())

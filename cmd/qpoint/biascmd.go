@@ -35,7 +35,7 @@ was tried), 2 bad input or usage.`,
   qpoint bias mixer.yaml --json > mixer-bias.json`,
 		Args: exactFile,
 		RunE: func(cmd *cobra.Command, args []string) error {
-			c, err := loadCircuit(args[0], sets, temperature)
+			c, err := loadCircuit(cmd.ErrOrStderr(), args[0], sets, temperature)
 			if err != nil {
 				return err
 			}
@@ -81,7 +81,9 @@ func exactFile(cmd *cobra.Command, args []string) error {
 // loadCircuit reads a circuit file and applies the --set values in order;
 // every failure is an input error. temperature is the command's
 // --temperature flag, which a --set of the temperature may not contradict.
-func loadCircuit(path string, sets []string, temperature string) (*circuit.Circuit, error) {
+// The file's cautions (values that are legal but likely slips) go to
+// warn, one per line, as FILE:LINE:COL: caution: ....
+func loadCircuit(warn io.Writer, path string, sets []string, temperature string) (*circuit.Circuit, error) {
 	inputs = append(inputs, path)
 	c, err := circuit.Load(path)
 	if err != nil {
@@ -90,6 +92,9 @@ func loadCircuit(path string, sets []string, temperature string) (*circuit.Circu
 			return nil, inputError(fmt.Errorf("%d problems in the circuit file:\n%w", len(list), err))
 		}
 		return nil, inputError(err)
+	}
+	for _, x := range c.Cautions {
+		fmt.Fprintf(warn, "qpoint: %s\n", x.Format(path))
 	}
 	for _, s := range sets {
 		if c, err = c.WithOverride(s); err != nil {

@@ -92,8 +92,8 @@ type distortionSetup struct {
 	levelDBm float64
 }
 
-func resolveDistortion(path string, fl *distortionFlags) (*distortionSetup, error) {
-	c, err := loadCircuit(path, fl.sets, fl.temperature)
+func resolveDistortion(warn io.Writer, path string, fl *distortionFlags) (*distortionSetup, error) {
+	c, err := loadCircuit(warn, path, fl.sets, fl.temperature)
 	if err != nil {
 		return nil, err
 	}
@@ -255,7 +255,7 @@ func parseLevelRange(flag, s string, z0 float64) (from, to, step float64, err er
 }
 
 func runDistortion(cmd *cobra.Command, path string, fl *distortionFlags) error {
-	s, err := resolveDistortion(path, fl)
+	s, err := resolveDistortion(cmd.ErrOrStderr(), path, fl)
 	if err != nil {
 		return err
 	}

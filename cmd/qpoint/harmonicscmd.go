@@ -136,7 +136,7 @@ func runWaveformHarmonics(cmd *cobra.Command, path string, fl *waveformFlags) er
 	var pred *ac.Steady
 	if fl.circuitPath != "" {
 		k := min(fl.harmonics, 25)
-		if pred, err = predictHarmonics(fl, r.FundamentalHz, k); err != nil {
+		if pred, err = predictHarmonics(cmd.ErrOrStderr(), fl, r.FundamentalHz, k); err != nil {
 			return err
 		}
 	}
@@ -157,8 +157,8 @@ func runWaveformHarmonics(cmd *cobra.Command, path string, fl *waveformFlags) er
 
 // predictHarmonics solves the circuit's steady state at the measured
 // fundamental with the flags' (or the file's) drive.
-func predictHarmonics(fl *waveformFlags, fundamentalHz float64, k int) (*ac.Steady, error) {
-	ds, err := resolveDistortion(fl.circuitPath, &distortionFlags{input: fl.input, output: fl.output, level: fl.level, sets: fl.sets,
+func predictHarmonics(warn io.Writer, fl *waveformFlags, fundamentalHz float64, k int) (*ac.Steady, error) {
+	ds, err := resolveDistortion(warn, fl.circuitPath, &distortionFlags{input: fl.input, output: fl.output, level: fl.level, sets: fl.sets,
 		frequency: strconv.FormatFloat(fundamentalHz, 'g', -1, 64) + "Hz"})
 	if err != nil {
 		return nil, err

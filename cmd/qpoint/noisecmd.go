@@ -314,7 +314,7 @@ func runNoise(cmd *cobra.Command, path string, fl *noiseFlags) error {
 	if fl.rows < 1 {
 		return inputError(fmt.Errorf("flag --rows: %d; accepted: 1 or more", fl.rows))
 	}
-	c, err := loadCircuit(path, fl.sets, fl.temperature)
+	c, err := loadCircuit(cmd.ErrOrStderr(), path, fl.sets, fl.temperature)
 	if err != nil {
 		return err
 	}

@@ -39,7 +39,7 @@ inline and fetches nothing: mail it, archive it, print it.`,
 			if outPath == "" {
 				return inputError(fmt.Errorf("flag -o is missing: name the HTML file to write, e.g. -o report.html"))
 			}
-			c, err := loadCircuit(args[0], sets, temperature)
+			c, err := loadCircuit(cmd.ErrOrStderr(), args[0], sets, temperature)
 			if err != nil {
 				return err
 			}
@@ -85,6 +85,9 @@ func buildReport(c *circuit.Circuit, temperature string) (*report.Document, erro
 	}
 	if l := overridesLine(c); l != "" {
 		doc.Subtitle += " · values set for this run: " + l
+	}
+	for _, x := range c.Cautions {
+		doc.Cautions = append(doc.Cautions, fmt.Sprintf("line %d of the file: %s", x.Pos.Line, x.Message))
 	}
 	for _, w := range p.Warnings {
 		doc.Cautions = append(doc.Cautions, w.Part+": "+w.Message)

@@ -167,7 +167,7 @@ func solveWithTemperature(c *circuit.Circuit, temperature string) (*bias.Point, 
 }
 
 func runResponse(cmd *cobra.Command, path string, fl *responseFlags) error {
-	c, err := loadCircuit(path, fl.sets, fl.temperature)
+	c, err := loadCircuit(cmd.ErrOrStderr(), path, fl.sets, fl.temperature)
 	if err != nil {
 		return err
 	}

@@ -179,8 +179,8 @@ func exampleOf(q circuit.Quantity) string {
 	return "1.5"
 }
 
-func resolveStudy(path string, fl *studyFlags) (*studySetup, error) {
-	c, err := loadCircuit(path, fl.sets, "")
+func resolveStudy(warn io.Writer, path string, fl *studyFlags) (*studySetup, error) {
+	c, err := loadCircuit(warn, path, fl.sets, "")
 	if err != nil {
 		return nil, err
 	}
@@ -414,7 +414,7 @@ func resolveStudyFor(c *circuit.Circuit, fl *studyFlags) (*studySetup, error) {
 }
 
 func runStudy(cmd *cobra.Command, path string, fl *studyFlags) error {
-	s, err := resolveStudy(path, fl)
+	s, err := resolveStudy(cmd.ErrOrStderr(), path, fl)
 	if err != nil {
 		return err
 	}
