@@ -616,6 +616,19 @@ func writeWaveform(w io.Writer, s *ac.Steady) {
 	t, note := waveformTable(s)
 	t.write(w)
 	fmt.Fprintf(w, "  %s\n", note)
+	if len(s.Stress) > 0 {
+		stressTable(s).write(w)
+	}
+}
+
+// stressTable gives every diode's extremes over the period: what its
+// ratings, or the breakdown knee, are to be held against.
+func stressTable(s *ac.Steady) *table {
+	t := &table{title: "Diode extremes over the period (waveform)", header: []string{"diode", "peak forward current", "peak reverse voltage", "mean power"}}
+	for _, d := range s.Stress {
+		t.add(d.Name, si.Format(d.PeakCurrent, "A", 4), si.Format(d.PeakReverseVoltage, "V", 4), si.Format(d.MeanPower, "W", 4))
+	}
+	return t
 }
 
 func waveformTable(s *ac.Steady) (*table, string) {
@@ -771,33 +784,26 @@ func writeCautions(w io.Writer, c []string) {
 	}
 }
 
-// sweepCautions returns, for each kind of overstress met in a level sweep,
-// the lowest level at which it appears.
+// sweepCautions returns, for each diode and kind of overstress met in a
+// level sweep, the lowest level at which it appears.
 func sweepCautions(pts []ac.LevelPoint) []string {
-	seen := map[string]bool{}
+	type key struct {
+		diode string
+		kind  ac.StressKind
+	}
+	seen := map[key]bool{}
 	var out []string
 	for _, p := range pts {
-		for _, c := range p.Steady.Cautions() {
-			kind := cautionKind(c)
-			if seen[kind] {
+		for _, c := range p.Steady.StressCautions() {
+			k := key{c.Diode, c.Kind}
+			if seen[k] {
 				continue
 			}
-			seen[kind] = true
-			out = append(out, fmt.Sprintf("from %.1f dBm: %s", p.LevelDBm, c))
+			seen[k] = true
+			out = append(out, fmt.Sprintf("from %.1f dBm: %s", p.LevelDBm, c.Message))
 		}
 	}
 	return out
-}
-
-// cautionKind names a caution by its diode and what it concerns.
-func cautionKind(c string) string {
-	name, rest, _ := strings.Cut(c, ": ")
-	for _, k := range []string{"forward current", "reverse voltage", "dissipation", "breakdown"} {
-		if strings.Contains(rest, k) {
-			return name + "/" + k
-		}
-	}
-	return c
 }
 
 // writeJunctionDrive prints each junction's drive x = |v|/(n V_T) at the

@@ -74,7 +74,16 @@ type harmonicJSON struct {
 	Phase     *number `json:"phase,omitempty"`
 }
 
+// stressJSON is a diode's extremes over the period of a steady state.
+type stressJSON struct {
+	Name               string `json:"name"`
+	PeakCurrent        number `json:"peak_current"`
+	PeakReverseVoltage number `json:"peak_reverse_voltage"`
+	MeanPower          number `json:"mean_power"`
+}
+
 type waveformJSON struct {
+	Diodes     []stressJSON   `json:"diodes"`
 	Harmonics  []harmonicJSON `json:"harmonics"`
 	THDPercent number         `json:"thd_percent"`
 	Iterations int            `json:"iterations"`
@@ -161,7 +170,10 @@ func estimateJSONOf(e *ac.Estimate) *estimateJSON {
 }
 
 func waveformJSONOf(s *ac.Steady) *waveformJSON {
-	j := &waveformJSON{THDPercent: number(s.THDPercent), Iterations: s.Iterations, Residual: number(s.Residual)}
+	j := &waveformJSON{THDPercent: number(s.THDPercent), Iterations: s.Iterations, Residual: number(s.Residual), Diodes: []stressJSON{}}
+	for _, d := range s.Stress {
+		j.Diodes = append(j.Diodes, stressJSON{d.Name, number(d.PeakCurrent), number(d.PeakReverseVoltage), number(d.MeanPower)})
+	}
 	for _, h := range s.Output {
 		hj := harmonicJSON{Order: h.Order, Amplitude: number(h.Amplitude)}
 		if h.Order > 0 {

@@ -228,7 +228,7 @@ func distortionSection(s *distortionSetup) (report.Section, []report.Card, error
 		return sec, cards, nil
 	}
 	wt, note := waveformTable(st)
-	sec.Blocks = append(sec.Blocks, report.Block{Table: wt.report()}, report.Block{Note: note})
+	sec.Blocks = append(sec.Blocks, report.Block{Table: wt.report()}, report.Block{Note: note}, report.Block{Table: stressTable(st).report()})
 	for _, c := range st.Cautions() {
 		cards = append(cards, report.Card{Label: "caution", Value: "overstress", Detail: c})
 	}
