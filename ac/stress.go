@@ -83,11 +83,11 @@ type StressKind int
 
 // The kinds of stress caution.
 const (
-	CurrentRating  StressKind = iota // peak forward current above the rating
-	ReverseRating                    // peak reverse voltage above the rating
-	PowerRating                      // mean dissipation above the rating
-	PastKnee                         // the junction is driven past its breakdown knee
-	SmallJunction                    // no current rating; the current overdrives a junction of this capacitance
+	CurrentRating StressKind = iota // peak forward current above the rating
+	ReverseRating                   // peak reverse voltage above the rating
+	PowerRating                     // mean dissipation above the rating
+	PastKnee                        // the junction is driven past its breakdown knee
+	SmallJunction                   // no current rating; the current overdrives a junction of this capacitance
 )
 
 // StressCaution is one way the signal overstresses a diode. Value is the
