@@ -45,6 +45,14 @@ func TestReadCSV(t *testing.T) {
 		{"times printed to 7 digits", rows(500, 0.0123, func(_ int, t, v float64) string { return fmt.Sprintf("%.7g,%.6g", t, v) }), CSVOptions{}, 500, 1e5, 0.0123, 0, false},
 		{"time column with agreeing rate", rows(20, 0, plain), CSVOptions{SampleRateHz: 100.01e3}, 20, 1e5, 0, 0, false},
 		{"inline comment", rows(20, 0, func(i int, t, v float64) string { return fmt.Sprintf("%.9g, %d # note", t, i) }), CSVOptions{}, 20, 1e5, 0, 1, true},
+		{"two header lines", "t,v\nunits,volts\n" + rows(20, 0, plain), CSVOptions{}, 20, 1e5, 0, 0, false},
+		{"commas with quoted decimal commas", "\"Zeit\",\"Spannung\"\n" + rows(20, 0, func(i int, t, _ float64) string {
+			return strings.ReplaceAll(fmt.Sprintf("\"%.9f\",\"%d.5\"", t, i), ".", ",")
+		}), CSVOptions{}, 20, 1e5, 0, 1.5, true},
+		{"instrument export with metadata", "Model,QX-200\nFirmware,1.02\nSample Interval,1e-05\nRecord Length,20\nTime,CH1\n" + rows(20, 0, plain), CSVOptions{}, 20, 1e5, 0, 0, false},
+		{"one column, interval from metadata", "Sample Interval: 1e-05 s\nVolts\n" + rows(20, 0, func(i int, _, _ float64) string { return fmt.Sprint(i) }), CSVOptions{}, 20, 1e5, 0, 1, true},
+		{"one column, rate from metadata, decimal comma", "Sample Rate;2,5e6\n" + rows(20, 0, func(i int, _, _ float64) string { return fmt.Sprintf("\"%d,25\"", i) }), CSVOptions{}, 20, 2.5e6, 0, 1.25, true},
+		{"the rate given beats the file's", "Sample Interval,1e-05\n" + rows(20, 0, func(i int, _, _ float64) string { return fmt.Sprint(i) }), CSVOptions{SampleRateHz: 1e3}, 20, 1e3, 0, 1, true},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
@@ -80,7 +88,9 @@ func TestReadCSVErrors(t *testing.T) {
 		want      []string
 	}{
 		{"word in the data", "t,v\n" + with(4, "4e-05,abc"), CSVOptions{}, 6, 7, []string{`"abc" is not a number`, "accepted: decimal numbers"}},
-		{"second header", "t,v\nunits,volts\n" + good, CSVOptions{}, 2, 1, []string{`"units" is not a number`}},
+		{"header only", "Model,QX-200\nSample Interval,1e-05\nTime,CH1\n", CSVOptions{}, 3, 1, []string{"no numeric data follows the header and metadata that end at line 3"}},
+		{"metadata interval disagrees", "Sample Interval,2e-05\nTime,CH1\n" + good, CSVOptions{}, 1, 1, []string{"gives a sample rate of 50000 Hz but the time column 100000 Hz"}},
+		{"word after the data began", "t,v\n" + with(0, "0,0\nunits,volts"), CSVOptions{}, 3, 1, []string{`"units" is not a number`}},
 		{"NaN", with(3, "3e-05,NaN"), CSVOptions{}, 4, 7, []string{`"NaN" is not a finite number`}},
 		{"infinity", with(3, "3e-05, -Inf"), CSVOptions{}, 4, 8, []string{"not a finite number"}},
 		{"overflow", with(3, "3e-05,1e999"), CSVOptions{}, 4, 7, []string{"too large"}},

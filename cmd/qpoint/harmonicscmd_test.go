@@ -211,3 +211,33 @@ func TestHarmonicsDecimalComma(t *testing.T) {
 		t.Errorf("f0 %g Hz, %g V at %g° from t0 = %g s; want 62.5 kHz, 1 V at %.2f° from 1 ms", doc.Fundamental, h.Amplitude, h.Phase, doc.StartTime, wantPhase)
 	}
 }
+
+// TestHarmonicsInstrumentExport: a recorder export with metadata lines
+// before its header and decimal commas inside quoted comma-separated
+// fields reads whole: 1 kHz at 200 kHz (from `Sample Interval,5e-06`),
+// and the 1 % third harmonic the file was written with is -40 dBc.
+func TestHarmonicsInstrumentExport(t *testing.T) {
+	out, errs, code := runHarmonicsCLI(t, "../../testdata/waveforms/instrument_export.csv", "--json")
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	var doc struct {
+		SampleRate  float64 `json:"sample_rate"`
+		Fundamental float64 `json:"fundamental"`
+		Harmonics   []struct {
+			Order int      `json:"order"`
+			DBc   *float64 `json:"dbc"`
+		} `json:"harmonics"`
+	}
+	if err := json.Unmarshal([]byte(out), &doc); err != nil {
+		t.Fatal(err)
+	}
+	if math.Abs(doc.SampleRate/200e3-1) > 1e-9 || math.Abs(doc.Fundamental/1e3-1) > 1e-6 {
+		t.Fatalf("rate %g Hz, fundamental %g Hz; want 200 kHz and 1 kHz", doc.SampleRate, doc.Fundamental)
+	}
+	for _, h := range doc.Harmonics {
+		if h.Order == 3 && (h.DBc == nil || math.Abs(*h.DBc+40) > 0.01) {
+			t.Errorf("third harmonic %v dBc, want -40 dBc", h.DBc)
+		}
+	}
+}
