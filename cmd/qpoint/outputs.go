@@ -213,3 +213,12 @@ func defaultStudyMeasures(r *study.Result) []*study.Measure {
 	}
 	return ms
 }
+
+// designFrequency is the frequency a circuit is designed for, as figures
+// mark it: the file's distortion frequency, or zero when it names none.
+func designFrequency(c *circuit.Circuit) float64 {
+	if d := c.Analysis.Distortion; d.Set {
+		return d.FrequencyHz
+	}
+	return 0
+}

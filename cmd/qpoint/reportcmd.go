@@ -164,7 +164,7 @@ func buildReport(c *circuit.Circuit, temperature string) (*report.Document, erro
 	}
 	sec = report.Section{ID: "response", Title: "Small-signal response", Intro: fmt.Sprintf("%d points from %s to %s; every port terminated in its reference impedance.",
 		len(r.Points), si.Format(grid[0], "Hz", 4), si.Format(grid[len(grid)-1], "Hz", 4))}
-	for _, f := range plots.ResponseFigures(r) {
+	for _, f := range plots.ResponseFigures(r, designFrequency(c)) {
 		fig, err := svgOf(f)
 		if err != nil {
 			return nil, analysisError(err)

@@ -224,7 +224,7 @@ func runResponse(cmd *cobra.Command, path string, fl *responseFlags) error {
 		}
 		var figs []*plots.Figure
 		if fl.plotsDir != "" {
-			figs = plots.ResponseFigures(r)
+			figs = plots.ResponseFigures(r, designFrequency(c))
 		}
 		if err := refuseInputs(append([]string{fl.csvPath, fl.touchstone}, figurePaths(fl.plotsDir, figs)...)...); err != nil {
 			return err
