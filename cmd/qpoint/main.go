@@ -85,6 +85,46 @@ func run(args []string, stdout, stderr io.Writer) (code int) {
 	return exitInput
 }
 
+// version describes the build from its build information: the module
+// version (a tag, or "(devel)" for a build from a checkout) and, where
+// the build recorded them, the revision, its time and whether the tree
+// had changes.
+func version() string {
+	info, ok := debug.ReadBuildInfo()
+	if !ok {
+		return "(no build information)"
+	}
+	v := info.Main.Version
+	if v == "" {
+		v = "(devel)"
+	}
+	var rev, at string
+	modified := false
+	for _, s := range info.Settings {
+		switch s.Key {
+		case "vcs.revision":
+			rev = s.Value
+		case "vcs.time":
+			at = s.Value
+		case "vcs.modified":
+			modified = s.Value == "true"
+		}
+	}
+	if rev != "" {
+		if len(rev) > 12 {
+			rev = rev[:12]
+		}
+		v += ", revision " + rev
+		if modified {
+			v += " with local changes"
+		}
+		if at != "" {
+			v += ", " + at
+		}
+	}
+	return v + ", " + info.GoVersion
+}
+
 func newRoot(stdout, stderr io.Writer) *cobra.Command {
 	root := &cobra.Command{
 		Use:   "qpoint",
@@ -109,8 +149,10 @@ them, and let the parts' ratings and your local practice govern.`,
 	root.SetOut(stdout)
 	root.SetErr(stderr)
 	root.SetFlagErrorFunc(func(c *cobra.Command, err error) error {
-		return inputError(fmt.Errorf("%w (see 'qpoint %s --help')", err, c.Name()))
+		return inputError(fmt.Errorf("%w (see '%s --help')", err, c.CommandPath()))
 	})
+	root.Version = version()
+	root.SetVersionTemplate("qpoint {{.Version}}\n")
 	root.AddCommand(newBiasCmd(), newResponseCmd(), newDistortionCmd(), newStudyCmd(), newNoiseCmd(), newReportCmd(), newHarmonicsCmd(), newDemoCmd())
 	return root
 }

@@ -245,3 +245,24 @@ func TestBiasCards(t *testing.T) {
 		t.Errorf("nine diodes: %+v", cards)
 	}
 }
+
+// TestVersionAndFlagHints: --version prints the build's version and Go
+// release; an unknown flag names the command once, with its help.
+func TestVersionAndFlagHints(t *testing.T) {
+	out, _, code := runCLI(t, "--version")
+	if code != 0 || !strings.HasPrefix(out, "qpoint ") || !strings.Contains(out, "go1.") {
+		t.Errorf("--version: exit %d, %q; want qpoint VERSION ..., goVERSION", code, out)
+	}
+	for _, c := range []struct {
+		args []string
+		want string
+	}{
+		{[]string{"--nosuch"}, "(see 'qpoint --help')"},
+		{[]string{"bias", "--nosuch", "x.yaml"}, "(see 'qpoint bias --help')"},
+	} {
+		_, errs, code := runCLI(t, c.args...)
+		if code != 2 || !strings.Contains(errs, c.want) || strings.Contains(errs, "qpoint qpoint") {
+			t.Errorf("%v: exit %d, %q; want exit 2 and %q", c.args, code, errs, c.want)
+		}
+	}
+}
