@@ -121,12 +121,12 @@ func studyFigures(r *study.Result, show string, marks ...plots.StudyMark) []*plo
 	if show != "" {
 		for _, t := range strings.Split(show, ",") {
 			if m, err := study.ParseMeasure(strings.TrimSpace(t)); err == nil {
-				ms = appendMeasure(ms, m)
+				ms = appendMeasure(r, ms, m)
 			}
 		}
 	} else {
 		for _, m := range defaultStudyMeasures(r) {
-			ms = appendMeasure(ms, m)
+			ms = appendMeasure(r, ms, m)
 		}
 	}
 	if len(ms) == 0 {
@@ -154,10 +154,25 @@ func studyFigures(r *study.Result, show string, marks ...plots.StudyMark) []*plo
 	return figs
 }
 
-// appendMeasure appends m unless a measure of the same text is there.
-func appendMeasure(ms []*study.Measure, m *study.Measure) []*study.Measure {
+// appendMeasure appends m unless ms already reads the same figure: the
+// same name and part at the same frequency, an absent frequency being the
+// study's first (or the first distortion frequency).
+func appendMeasure(r *study.Result, ms []*study.Measure, m *study.Measure) []*study.Measure {
+	at := func(x *study.Measure) float64 {
+		if x.FrequencyHz != 0 {
+			return x.FrequencyHz
+		}
+		fs := r.Settings.FrequenciesHz
+		if x.AtDistortion() {
+			fs = r.Settings.DistortionFrequencies()
+		}
+		if len(fs) > 0 {
+			return fs[0]
+		}
+		return 0
+	}
 	for _, x := range ms {
-		if x.Text == m.Text {
+		if x.Name == m.Name && x.Part == m.Part && at(x) == at(m) {
 			return ms
 		}
 	}
