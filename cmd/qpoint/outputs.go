@@ -12,20 +12,34 @@ import (
 
 	"qpoint/ac"
 	"qpoint/ac/study"
+	"qpoint/ac/touchstone"
 	"qpoint/bias/circuit"
 	"qpoint/bias/si"
 )
 
-func parseTouchstoneFormat(s string) (ac.Format, error) {
-	f, err := ac.ParseFormat(s)
+func parseTouchstoneFormat(s string) (touchstone.Format, error) {
+	f, err := touchstone.ParseFormat(s)
 	if err != nil {
 		return 0, inputError(fmt.Errorf("flag --format: %w", err))
 	}
 	return f, nil
 }
 
-func writeTouchstone(w io.Writer, c *circuit.Circuit, r *ac.Response, f ac.Format) error {
-	return ac.WriteTouchstone(w, r.Ports, r.Points, f, touchstoneComment(c))
+func writeTouchstone(w io.Writer, c *circuit.Circuit, r *ac.Response, f touchstone.Format) error {
+	pts := make([]touchstone.Point, len(r.Points))
+	for i, p := range r.Points {
+		pts[i] = touchstone.Point{FrequencyHz: p.FrequencyHz, S: p.S}
+	}
+	return touchstone.Write(w, touchstonePorts(r.Ports), pts, f, touchstoneComment(c))
+}
+
+// touchstonePorts gives a sweep's ports as the file format names them.
+func touchstonePorts(ports []ac.PortInfo) []touchstone.Port {
+	out := make([]touchstone.Port, len(ports))
+	for i, p := range ports {
+		out[i] = touchstone.Port{Name: p.Name, Impedance: p.Impedance}
+	}
+	return out
 }
 
 // touchstoneComment is the comment a Touchstone file opens with.

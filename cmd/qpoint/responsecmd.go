@@ -13,6 +13,7 @@ import (
 	"github.com/spf13/cobra"
 
 	"qpoint/ac"
+	"qpoint/ac/touchstone"
 	"qpoint/bias"
 	"qpoint/bias/circuit"
 	"qpoint/bias/si"
@@ -204,7 +205,7 @@ func runResponse(cmd *cobra.Command, path string, fl *responseFlags) error {
 	// Every named output is checked before any is written, so that a
 	// refusal leaves none behind.
 	if fl.touchstone != "" {
-		if want := ac.TouchstoneExt(len(c.Ports)); !strings.EqualFold(filepath.Ext(fl.touchstone), want) {
+		if want := touchstone.Ext(len(c.Ports)); !strings.EqualFold(filepath.Ext(fl.touchstone), want) {
 			return inputError(fmt.Errorf("flag --touchstone: %s has %d ports, so its file should end in %s (got %q)", c.Name, len(c.Ports), want, filepath.Ext(fl.touchstone)))
 		}
 	}
@@ -405,7 +406,7 @@ func (rw *responseCSV) close() error {
 // Touchstone files flags name as it comes, each whole or not at all, and
 // returns the response with only the points the table shows: the memory a
 // sweep takes does not grow with its length.
-func streamResponse(nw *smallsignal.Network, grid []float64, s ac.Settings, c *circuit.Circuit, fl *responseFlags, format ac.Format) (*ac.Response, error) {
+func streamResponse(nw *smallsignal.Network, grid []float64, s ac.Settings, c *circuit.Circuit, fl *responseFlags, format touchstone.Format) (*ac.Response, error) {
 	r := &ac.Response{Probes: c.Probes}
 	for i, p := range nw.Ports {
 		z := p.Impedance
@@ -421,7 +422,7 @@ func streamResponse(nw *smallsignal.Network, grid []float64, s ac.Settings, c *c
 	var sweepErr error
 	sweep := func(csvOut, touchstoneOut io.Writer) error {
 		var rw *responseCSV
-		var tw *ac.TouchstoneWriter
+		var tw *touchstone.Writer
 		var err error
 		if csvOut != nil {
 			if rw, err = newResponseCSV(csvOut, r.Ports, r.Probes); err != nil {
@@ -429,7 +430,7 @@ func streamResponse(nw *smallsignal.Network, grid []float64, s ac.Settings, c *c
 			}
 		}
 		if touchstoneOut != nil {
-			if tw, err = ac.NewTouchstoneWriter(touchstoneOut, r.Ports, format, touchstoneComment(c), len(grid)); err != nil {
+			if tw, err = touchstone.NewWriter(touchstoneOut, touchstonePorts(r.Ports), format, touchstoneComment(c), len(grid)); err != nil {
 				return err
 			}
 		}
@@ -441,7 +442,7 @@ func streamResponse(nw *smallsignal.Network, grid []float64, s ac.Settings, c *c
 				}
 			}
 			if tw != nil {
-				if err := tw.Write(pt); err != nil {
+				if err := tw.Write(touchstone.Point{FrequencyHz: pt.FrequencyHz, S: pt.S}); err != nil {
 					return err
 				}
 			}
