@@ -11,7 +11,7 @@ import (
 	"strings"
 	"unicode/utf8"
 
-	"gopkg.in/yaml.v3"
+	"go.yaml.in/yaml/v3"
 )
 
 // MaxFileSize is the largest circuit file accepted, in bytes. A hand-written

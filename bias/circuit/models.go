@@ -3,7 +3,7 @@ package circuit
 import (
 	"qpoint/bias/diode"
 
-	"gopkg.in/yaml.v3"
+	"go.yaml.in/yaml/v3"
 )
 
 // modelKey is one numeric key of a diode model: its quantity, the range it

@@ -5,7 +5,7 @@ import (
 	"sort"
 	"strings"
 
-	"gopkg.in/yaml.v3"
+	"go.yaml.in/yaml/v3"
 )
 
 var kindNames = []string{"resistor", "capacitor", "inductor", "voltage_source", "current_source", "diode"}
