@@ -112,5 +112,6 @@ them, and let the parts' ratings and your local practice govern.`,
 		return inputError(fmt.Errorf("%w (see 'qpoint %s --help')", err, c.Name()))
 	})
 	root.AddCommand(newBiasCmd(), newResponseCmd(), newDistortionCmd(), newStudyCmd(), newNoiseCmd(), newReportCmd(), newHarmonicsCmd(), newDemoCmd())
+	root.AddCommand(newFitCmd())
 	return root
 }
