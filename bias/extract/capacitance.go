@@ -112,7 +112,7 @@ func fitCapacitance(d Data, s Settings, model *diode.Params, r *Result) error {
 			if ok {
 				ratio = math.Sqrt(cov.At(j, j)) / math.Abs(x[c])
 			}
-			if x[c] <= capLo[c]*1.0001 || x[c] >= capHi[c]*0.9999 {
+			if capAtEdge(c, x[c]) {
 				ratio = math.Inf(1)
 			}
 			if ratio > worst {
@@ -248,34 +248,19 @@ func minimizeCapacitance(cp *capProblem, x []float64, idx []int, r *Result) erro
 	// values by less than 1e-3 of their standard errors.
 	fd.Jacobian(jac, resU, result.X, &fd.JacobianSettings{Formula: fd.Central, Step: 1e-7})
 	resU(res, result.X)
-	step := gaussNewtonStep(jac, res)
+	step, delta := gaussNewtonStep(jac, res)
 	r.Stats.CapacitanceStep = step
-	if !(step < 1e-3) {
+	edge := false
+	for _, c := range idx {
+		edge = edge || capAtEdge(c, toNatural(result.X)[c])
+	}
+	// A value at the edge of its range is held by the caller; the step
+	// from there says nothing.
+	if !settled(step, delta, result.X, nil) && !edge {
 		return fmt.Errorf("C–V fit: gonum/optimize ended with %v (%v) %.2g standard errors from the optimum", result.Status, err, step)
 	}
 	copy(x, toNatural(result.X))
 	return nil
-}
-
-// gaussNewtonStep returns the length of the Gauss–Newton step
-// δ = -(JᵀJ)⁻¹Jᵀr in standard errors, ‖Jδ‖/s with s² = ‖r‖²/(N - P): how
-// far the values lie from the least-squares optimum, measured in their own
-// uncertainty. It is infinite where JᵀJ is singular.
-func gaussNewtonStep(jac *mat.Dense, res []float64) float64 {
-	n, k := jac.Dims()
-	if n <= k {
-		return math.Inf(1)
-	}
-	var qr mat.QR
-	qr.Factorize(jac)
-	var delta mat.VecDense
-	if err := qr.SolveVecTo(&delta, false, mat.NewVecDense(n, res)); err != nil {
-		return math.Inf(1)
-	}
-	var jd mat.VecDense
-	jd.MulVec(jac, &delta)
-	s := math.Sqrt(sumSquares(res) / float64(n-k))
-	return mat.Norm(&jd, 2) / s
 }
 
 // capStart returns a start for the C–V fit: with m = 1/2, 1/C² is linear
@@ -315,4 +300,11 @@ func indexOf(s []int, v int) int {
 		}
 	}
 	return -1
+}
+
+// capAtEdge reports whether entry c of the C–V vector lies at the edge of
+// its range (within 1e-4 of the range's span).
+func capAtEdge(c int, v float64) bool {
+	margin := 1e-4 * (capHi[c] - capLo[c])
+	return v <= capLo[c]+margin || v >= capHi[c]-margin
 }

@@ -313,7 +313,7 @@ func check(d Data) error {
 		msg := ""
 		switch {
 		case !finite(p.Voltage) || !finite(p.Value) || !finite(p.TemperatureK) || p.TemperatureK < 0:
-			msg = "a point that is not finite or has a negative temperature"
+			msg = fmt.Sprintf("voltage %g V, current %g A, temperature %g K: a point that is not finite or has a negative temperature; accepted: finite values, temperatures above zero (or zero for the settings' temperature)", p.Voltage, p.Value, p.TemperatureK)
 		case p.Voltage*p.Value < 0:
 			msg = fmt.Sprintf("current %.6g A at %.6g V: a junction's current has the sign of its voltage; accepted: positive currents at forward voltages, negative at reverse", p.Value, p.Voltage)
 		}

@@ -169,8 +169,13 @@ func fitForward(d Data, s Settings, r *Result) (*forwardFit, error) {
 		for j, c := range idx {
 			sub.Slice(0, len(res), j, j+1).(*mat.Dense).Copy(jac.Slice(0, len(res), c, c+1))
 		}
-		r.Stats.ForwardStep = gaussNewtonStep(sub, res)
-		if !(r.Stats.ForwardStep < 1e-3) && !atEdge(x, idx) {
+		step, delta := gaussNewtonStep(sub, res)
+		r.Stats.ForwardStep = step
+		xs, scales := make([]float64, len(idx)), make([]float64, len(idx))
+		for j, c := range idx {
+			xs[j], scales[j] = x[c], forwardScale[c]
+		}
+		if !settled(step, delta, xs, scales) && !atEdge(x, idx) {
 			return nil, fmt.Errorf("forward I–V fit: Levenberg–Marquardt stopped after %d iterations %.2g standard errors from the optimum", st.iterations, r.Stats.ForwardStep)
 		}
 		var ok bool

@@ -205,3 +205,48 @@ func covariance(jac *mat.Dense, r []float64, idx []int) (cov *mat.SymDense, ok b
 	}
 	return cov, true
 }
+
+// gaussNewtonStep returns the Gauss–Newton step δ = -(JᵀJ)⁻¹Jᵀr and its
+// length in standard errors, ‖Jδ‖/s with s² = ‖r‖²/(N - P): how far the
+// values lie from the least-squares optimum, measured in their own
+// uncertainty. The length is infinite where JᵀJ is singular.
+func gaussNewtonStep(jac *mat.Dense, res []float64) (float64, []float64) {
+	n, k := jac.Dims()
+	if n <= k {
+		return math.Inf(1), nil
+	}
+	var qr mat.QR
+	qr.Factorize(jac)
+	var delta mat.VecDense
+	if err := qr.SolveVecTo(&delta, false, mat.NewVecDense(n, res)); err != nil {
+		return math.Inf(1), nil
+	}
+	var jd mat.VecDense
+	jd.MulVec(jac, &delta)
+	s := math.Sqrt(sumSquares(res) / float64(n-k))
+	return mat.Norm(&jd, 2) / s, delta.RawVector().Data
+}
+
+// settled reports whether a fit has reached its optimum: one more
+// Gauss–Newton step would move the values by less than 1e-3 of their
+// standard errors, or (for data that the law fits to rounding, where the
+// standard errors vanish) by less than 1e-9 of each value or its scale
+// (1 where scale is nil).
+func settled(step float64, delta, x, scale []float64) bool {
+	if step < 1e-3 {
+		return true
+	}
+	if delta == nil {
+		return false
+	}
+	for j, d := range delta {
+		s := 1.0
+		if scale != nil {
+			s = scale[j]
+		}
+		if !(math.Abs(d) <= 1e-9*math.Max(math.Abs(x[j]), s)) {
+			return false
+		}
+	}
+	return true
+}
