@@ -281,7 +281,7 @@ func Fit(d Data, s Settings) (*Result, error) {
 		}
 	}
 	r.Model = model
-	r.values(s, fw)
+	r.values(fw)
 	r.reverse(d, s)
 	if len(d.Capacitance) == 0 {
 		r.Stats.CapacitanceStep = math.NaN()
@@ -375,8 +375,7 @@ var keyOrder = []struct{ key, unit string }{
 }
 
 // values lists the result's values from the fits, in key order.
-func (r *Result) values(s Settings, fw *forwardFit) {
-	def := s.Defaults
+func (r *Result) values(fw *forwardFit) {
 	for c := range nForward {
 		r.found[forwardKeys[c]] = Value{Error: fw.errs[c], Status: fw.status[c]}
 	}
@@ -393,7 +392,6 @@ func (r *Result) values(s Settings, fw *forwardFit) {
 		"breakdown_voltage": m.BreakdownVoltage, "breakdown_current": m.BreakdownCurrent,
 		"gap_energy": m.GapEnergy, "saturation_temperature_exponent": m.SaturationExponent, "measured_at": m.MeasuredAtK,
 	}
-	_ = def
 	for _, k := range keyOrder {
 		v := r.found[k.key]
 		v.Key, v.Unit, v.Value = k.key, k.unit, current[k.key]

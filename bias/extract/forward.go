@@ -176,7 +176,7 @@ func fitForward(d Data, s Settings, r *Result) (*forwardFit, error) {
 			xs[j], scales[j] = x[c], forwardScale[c]
 		}
 		if !settled(step, delta, xs, scales) && !atEdge(x, idx) {
-			return nil, fmt.Errorf("forward I–V fit: Levenberg–Marquardt stopped after %d iterations %.2g standard errors from the optimum", st.iterations, r.Stats.ForwardStep)
+			return nil, fmt.Errorf("forward I–V fit: Levenberg–Marquardt stopped after %d iterations %.2g standard errors from the optimum; the points may not follow a junction's law (a straight line of a resistor or a short, columns swapped, or a second device in parallel)", st.iterations, r.Stats.ForwardStep)
 		}
 		var ok bool
 		cov, ok = covariance(jac, res, idx)

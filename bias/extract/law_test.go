@@ -108,6 +108,14 @@ func TestForwardJacobian(t *testing.T) {
 	}
 }
 
+// No published table of measured I–V points with the values its authors
+// extracted is used here: none could be recalled reliably enough to quote
+// its numbers, and invented "published" numbers would be worse than none.
+// The checks against the outside are instead a published extraction
+// method (below), a general-purpose minimiser over an independent
+// evaluation of the law (TestGeneralPurposeMinimizer), the closed form of
+// the knee (TestBreakdownKnee) and the statistics of TestRecovery.
+//
 // TestCheungMethod: on exact data the fit agrees with the extraction of
 // Cheung and Cheung ("Extraction of Schottky diode parameters from forward
 // current-voltage characteristics", Appl. Phys. Lett. 49(2), 1986), which

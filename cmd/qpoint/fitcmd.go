@@ -42,7 +42,7 @@ potential and grading coefficient; forward points at several temperatures
 give the gap energy and the saturation-current temperature exponent.
 
 Each value comes with its standard error and the correlations that matter
-(saturation current and ideality always move together). A value the data
+(saturation current and ideality are always correlated). A value the data
 do not determine is left at its default, and a caution says so. The
 result ends with a diode_models block ready to paste into a circuit file.
 
