@@ -227,3 +227,29 @@ func TestDataErrors(t *testing.T) {
 		})
 	}
 }
+
+// TestCurrentFloor: a meter offset of 300 pA on every current pulls the
+// fitted I_S up (the smallest currents, 100 pA, read 4 times too high);
+// weighting each point by 1/sqrt(1 + (floor/I)²) lowers the pull the more
+// the larger the floor given (here by about 15 % with the floor at the
+// offset and by half at 1 nA). A floor reduces, and does not remove, an
+// absolute error.
+func TestCurrentFloor(t *testing.T) {
+	p := detectorParams()
+	p.SaturationCurrent = 1e-11
+	pts := forwardPoints(p, 300.15, 1e-10, 1e-2, 33, 0, nil)
+	for k := range pts {
+		pts[k].Value += 3e-10
+	}
+	var off []float64
+	for _, floor := range []float64{0, 3e-10, 1e-9} {
+		r, err := Fit(Data{Current: pts}, Settings{CurrentFloor: floor})
+		if err != nil {
+			t.Fatal(err)
+		}
+		off = append(off, math.Abs(math.Log(r.Model.SaturationCurrent/1e-11)))
+	}
+	if !(off[2] < off[1] && off[1] < off[0]) {
+		t.Errorf("I_S off by %.3g, %.3g, %.3g (ln) with floors 0, 300 pA, 1 nA; want the pull to fall as the floor rises", off[0], off[1], off[2])
+	}
+}

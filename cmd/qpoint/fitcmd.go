@@ -24,6 +24,7 @@ type fitFlags struct {
 	iv, cv      []string
 	temperature string
 	measuredAt  string
+	floor       string
 	name        string
 	asJSON      bool
 	plotDir     string
@@ -72,6 +73,7 @@ Exit status: 0 fitted, 1 the fit failed, 2 bad input or usage.`,
 	f.StringArrayVar(&fl.cv, "cv", nil, "C–V points (CSV), FILE or FILE@TEMPERATURE")
 	f.StringVar(&fl.temperature, "temperature", "27C", "temperature of files without a temperature column")
 	f.StringVar(&fl.measuredAt, "measured-at", "", "temperature the fitted values hold at (default: the I–V temperature nearest 27C)")
+	f.StringVar(&fl.floor, "current-floor", "", "the meter's absolute current resolution, e.g. 50pA: currents near it weigh less")
 	f.StringVar(&fl.name, "name", "", "name of the model in the block (default: the first I–V file's name)")
 	f.BoolVar(&fl.asJSON, "json", false, "print one JSON document (SI units) instead of tables")
 	f.StringVar(&fl.plotDir, "plots", "", "write figures of data against fit and the residuals (SVG and PNG) into this directory")
@@ -134,6 +136,16 @@ func readFitInput(fl *fitFlags) (*fitInput, error) {
 			return nil, inputError(fmt.Errorf("flag --measured-at: %w", err))
 		}
 		in.settings.MeasuredAtK = t0
+	}
+	if fl.floor != "" {
+		floor, err := circuit.ParseBounded(fl.floor, circuit.Current)
+		if err != nil || !(floor >= 0) {
+			if err == nil {
+				err = fmt.Errorf("%s; accepted: a current of zero or more, e.g. 50pA", fl.floor)
+			}
+			return nil, inputError(fmt.Errorf("flag --current-floor: %w", err))
+		}
+		in.settings.CurrentFloor = floor
 	}
 	for _, spec := range fl.iv {
 		f, err := readMeasurementFile("--iv", spec, measured.CurrentVoltage, len(in.data.Current))
