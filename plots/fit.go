@@ -49,24 +49,30 @@ func deviation(res float64) float64 { return 100 * math.Expm1(res) }
 // logarithmic current axis (one colour per temperature), and beneath it
 // the model's deviation from each point in percent.
 func ForwardFit(r *extract.Result) *Figure {
-	groups := byTemperature(r.Forward)
+	sets := temperatureSets(r.Forward, r.CurrentAt)
+	note := valuesNote(r, "saturation_current", "ideality", "series_resistance") +
+		fmt.Sprintf(" · rms deviation %.2g %% over %d points", 100*r.Residuals.Forward, len(r.Forward))
+	return fitFigure("fit-forward", "Forward current: measured and fitted", note, "Current", "A", true, sets)
+}
+
+// temperatureSets groups fitted points by temperature, one colour each,
+// with the model drawn over each group's voltage span.
+func temperatureSets(rs []extract.Residual, model func(v, tempK float64) float64) []fitSet {
+	groups := byTemperature(rs)
 	var sets []fitSet
 	for k, t := range sortedKeys(groups) {
-		g := groups[t]
-		s := fitSet{label: temperatureLabel(t, len(groups)), colour: k, filled: false}
+		s := fitSet{label: temperatureLabel(t), colour: k}
 		lo, hi := math.Inf(1), math.Inf(-1)
-		for _, p := range g {
+		for _, p := range groups[t] {
 			s.x = append(s.x, p.Voltage)
 			s.y = append(s.y, p.Measured)
 			s.residual = append(s.residual, deviation(p.Residual))
 			lo, hi = math.Min(lo, p.Voltage), math.Max(hi, p.Voltage)
 		}
-		s.curveX, s.curveY = sample(lo, hi, func(v float64) float64 { return r.CurrentAt(v, t) })
+		s.curveX, s.curveY = sample(lo, hi, func(v float64) float64 { return model(v, t) })
 		sets = append(sets, s)
 	}
-	note := valuesNote(r, "saturation_current", "ideality", "series_resistance") +
-		fmt.Sprintf(" · rms deviation %.2g %% over %d points", 100*r.Residuals.Forward, len(r.Forward))
-	return fitFigure("fit-forward", "Forward current: measured and fitted", note, "Current", "A", true, sets)
+	return sets
 }
 
 // ReverseFit shows the reverse I–V points at measured_at against the model
@@ -92,7 +98,7 @@ func ReverseFit(r *extract.Result) *Figure {
 		lo = math.Min(lo, p.Voltage)
 	}
 	t0 := r.Model.MeasuredAtK
-	model := fitSet{label: "model at " + temperatureLabel(t0, 2), colour: 0}
+	model := fitSet{label: "model at " + temperatureLabel(t0), colour: 0}
 	model.curveX, model.curveY = sample(lo, math.Min(-1e-3, lo/1000), func(v float64) float64 { return -r.CurrentAt(v, t0) })
 	sets := []fitSet{model}
 	for _, s := range []fitSet{below, in} {
@@ -114,21 +120,7 @@ func ReverseFit(r *extract.Result) *Figure {
 // CapacitanceFit shows the C–V points against the fitted depletion law
 // (one colour per temperature) and the model's deviation from each.
 func CapacitanceFit(r *extract.Result) *Figure {
-	groups := byTemperature(r.Capacitance)
-	var sets []fitSet
-	for k, t := range sortedKeys(groups) {
-		g := groups[t]
-		s := fitSet{label: temperatureLabel(t, len(groups)), colour: k}
-		lo, hi := math.Inf(1), math.Inf(-1)
-		for _, p := range g {
-			s.x = append(s.x, p.Voltage)
-			s.y = append(s.y, p.Measured)
-			s.residual = append(s.residual, deviation(p.Residual))
-			lo, hi = math.Min(lo, p.Voltage), math.Max(hi, p.Voltage)
-		}
-		s.curveX, s.curveY = sample(lo, hi, func(v float64) float64 { return r.CapacitanceAt(v, t) })
-		sets = append(sets, s)
-	}
+	sets := temperatureSets(r.Capacitance, r.CapacitanceAt)
 	note := valuesNote(r, "zero_bias_capacitance", "built_in_potential", "grading_coefficient") +
 		fmt.Sprintf(" · rms deviation %.2g %% over %d points", 100*r.Residuals.Capacitance, len(r.Capacitance))
 	return fitFigure("fit-capacitance", "Junction capacitance: measured and fitted", note, "Capacitance", "F", false, sets)
@@ -256,10 +248,9 @@ func sortedKeys(m map[float64][]extract.Residual) []float64 {
 	return keys
 }
 
-// temperatureLabel names a temperature in degrees Celsius; with a single
-// temperature it reads "27 °C" all the same, so the key says where the
-// points were taken.
-func temperatureLabel(tk float64, _ int) string {
+// temperatureLabel names a temperature in degrees Celsius, also for a
+// single temperature, so that the key says where the points were taken.
+func temperatureLabel(tk float64) string {
 	return fmt.Sprintf("%.4g °C", tk-diode.ZeroCelsius)
 }
 

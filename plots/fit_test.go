@@ -1,7 +1,6 @@
 package plots
 
 import (
-	"bytes"
 	"math"
 	"os"
 	"path/filepath"
@@ -12,7 +11,8 @@ import (
 	"qpoint/bias/measured"
 )
 
-// demoFit fits the demo measurements of testdata/fit.
+// demoFit fits the demo measurements of testdata/fit, for the golden fit
+// figures of TestGoldenAnalysis.
 func demoFit(t *testing.T) *extract.Result {
 	t.Helper()
 	read := func(name string) []measured.Point {
@@ -32,41 +32,6 @@ func demoFit(t *testing.T) *extract.Result {
 		t.Fatal(err)
 	}
 	return r
-}
-
-// TestGoldenFit compares the fit figures of the demo measurements with
-// testdata/detector-fit-*.golden.svg; a change in the fit shows here too.
-func TestGoldenFit(t *testing.T) {
-	for _, f := range FitFigures(demoFit(t)) {
-		name := "detector-" + f.Name
-		t.Run(name, func(t *testing.T) {
-			svg := render(t, f, "svg")
-			checkSVG(t, name, svg)
-			checkPNG(t, name, render(t, f, "png"), f)
-			if *samples != "" {
-				for _, format := range []string{"svg", "png"} {
-					if err := os.WriteFile(filepath.Join(*samples, name+"."+format), render(t, f, format), 0o644); err != nil {
-						t.Fatal(err)
-					}
-				}
-			}
-			path := filepath.Join("testdata", name+".golden.svg")
-			if *update {
-				if err := os.WriteFile(path, svg, 0o644); err != nil {
-					t.Fatal(err)
-				}
-				return
-			}
-			want, err := os.ReadFile(path)
-			if err != nil {
-				t.Fatalf("%v (run go test ./plots -update to create it)", err)
-			}
-			if !bytes.Equal(svg, want) {
-				t.Errorf("%s differs from %s at %s; if the change is intended, look at it with -samples and rerun with -update",
-					name, path, firstDifference(svg, want))
-			}
-		})
-	}
 }
 
 // TestFitFiguresSparse: a fit with only forward points gives one figure,

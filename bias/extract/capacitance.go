@@ -53,15 +53,9 @@ func (cp *capProblem) params(x []float64) diode.Params {
 
 // residuals stores ln C(V_k; x) - ln C_k.
 func (cp *capProblem) residuals(res, x []float64) {
-	p := cp.params(x)
-	devices := map[float64]*diode.Device{}
+	devices := deviceSet{params: cp.params(x)}
 	for k := range cp.v {
-		t := cp.temp[k]
-		d := devices[t]
-		if d == nil {
-			d = diode.New(p, t)
-			devices[t] = d
-		}
+		d := devices.at(cp.temp[k])
 		res[k] = math.Log(capacitanceAt(d, cp.v[k])) - math.Log(cp.c[k])
 	}
 }

@@ -74,14 +74,10 @@ func (fp *forwardProblem) params(x []float64) diode.Params {
 // (p ln(T/T0) + E_g (1/T0 - 1/T)/(k/q))/n.
 func (fp *forwardProblem) eval(x, r []float64, jac *mat.Dense) {
 	p := fp.params(x)
-	devices := map[float64]*diode.Device{}
+	devices := deviceSet{params: p}
 	for k := range fp.v {
 		t := fp.temp[k]
-		d := devices[t]
-		if d == nil {
-			d = diode.New(p, t)
-			devices[t] = d
-		}
+		d := devices.at(t)
 		cur, vj := d.TerminalCurrent(fp.v[k])
 		cur = math.Max(cur, math.SmallestNonzeroFloat64)
 		r[k] = fp.w[k] * (math.Log(cur) - math.Log(fp.i[k]))
@@ -375,12 +371,7 @@ func forwardStart(fp *forwardProblem, temps []float64, def diode.Params) []float
 // interceptAt is ln I_S of the ideal law at ideality n through the lower
 // half of the currents (the median, as in lowCurrentStart).
 func interceptAt(v, i []float64, n, vt float64) float64 {
-	order := make([]int, len(i))
-	for k := range order {
-		order[k] = k
-	}
-	slices.SortFunc(order, func(a, b int) int { return cmpFloat(i[a], i[b]) })
-	low := order[:max(1, (len(order)+1)/2)]
+	low := lowerHalf(i, 1)
 	dev := make([]float64, len(low))
 	for j, k := range low {
 		dev[j] = math.Log(i[k]) - lnExpm1(v[k]/(n*vt))
@@ -450,4 +441,23 @@ func atEdge(x []float64, idx []int) bool {
 		}
 	}
 	return false
+}
+
+// deviceSet makes the devices of one set of model values at each
+// temperature asked for, once.
+type deviceSet struct {
+	params  diode.Params
+	devices map[float64]*diode.Device
+}
+
+func (ds *deviceSet) at(tempK float64) *diode.Device {
+	d := ds.devices[tempK]
+	if d == nil {
+		if ds.devices == nil {
+			ds.devices = map[float64]*diode.Device{}
+		}
+		d = diode.New(ds.params, tempK)
+		ds.devices[tempK] = d
+	}
+	return d
 }

@@ -38,15 +38,7 @@ func median(v []float64) float64 {
 // V, made robust to outlying points and exact near zero bias, where the
 // law's -1 bends the plain logarithm.
 func lowCurrentStart(v, i []float64, vt float64) (lnIS, n float64) {
-	order := make([]int, len(i))
-	for k := range order {
-		order[k] = k
-	}
-	slices.SortFunc(order, func(a, b int) int { return cmpFloat(i[a], i[b]) })
-	low := order[:max(3, (len(order)+1)/2)]
-	if len(low) > len(order) {
-		low = order
-	}
+	low := lowerHalf(i, 3)
 	dev := make([]float64, len(low))
 	intercept := func(n float64) (float64, float64) {
 		for j, k := range low {
@@ -112,4 +104,15 @@ func cmpFloat(a, b float64) int {
 		return 1
 	}
 	return 0
+}
+
+// lowerHalf returns the indices of the lower half of the currents i, at
+// least least of them (or all).
+func lowerHalf(i []float64, least int) []int {
+	order := make([]int, len(i))
+	for k := range order {
+		order[k] = k
+	}
+	slices.SortFunc(order, func(a, b int) int { return cmpFloat(i[a], i[b]) })
+	return order[:min(len(order), max(least, (len(order)+1)/2))]
 }
