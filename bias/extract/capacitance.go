@@ -226,7 +226,7 @@ func minimizeCapacitance(cp *capProblem, x []float64, idx []int, r *Result) erro
 		},
 	}
 	settings := &optimize.Settings{
-		GradientThreshold: 1e-9,
+		GradientThreshold: 1e-7,
 		MajorIterations:   2000,
 		Converger:         &optimize.FunctionConverge{Relative: 1e-14, Iterations: 20},
 	}
