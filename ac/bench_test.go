@@ -396,3 +396,27 @@ func BenchmarkForms(b *testing.B) {
 		})
 	}
 }
+
+// BenchmarkSteadyLadder: the periodic steady state of the diode-loaded
+// ladder (benchLadder) of n unknowns at 1 GHz, -20 dBm into port 1,
+// default settings. Its cost is that of the time steps: an LU of the n×n
+// step matrix and the sensitivity products, per step.
+//
+//	go test -run '^$' -bench SteadyLadder -benchtime 1x -count 3 ./ac/
+func BenchmarkSteadyLadder(b *testing.B) {
+	for _, n := range []int{60, 150} {
+		b.Run(fmt.Sprintf("n=%d", n), func(b *testing.B) {
+			nw := network(b, benchLadder(n))
+			d := Drive{Input: 0, Output: Output{Port: 1}, FrequencyHz: 1e9, EMF: DBmToEMF(-20, 50)}
+			var iters int
+			for b.Loop() {
+				st, err := SteadyState(nw, d, SteadySettings{})
+				if err != nil {
+					b.Fatal(err)
+				}
+				iters = st.Iterations
+			}
+			b.ReportMetric(float64(iters), "newton-iterations")
+		})
+	}
+}
