@@ -113,6 +113,16 @@ func (e *Estimate) Balanced(p Product) bool {
 	return false
 }
 
+// Clone returns a copy of the estimate that shares no storage with it, for
+// keeping an estimate a workspace or VolterraSweep will overwrite.
+func (e *Estimate) Clone() *Estimate {
+	c := *e
+	c.Contributions = append([]Contribution(nil), e.Contributions...)
+	c.Junctions = append([]complex128(nil), e.Junctions...)
+	c.balanced = append([]Product(nil), e.balanced...)
+	return &c
+}
+
 // OneTone returns the estimate as the first tone alone would give it: the
 // one-tone products of a two-tone estimate are the same numbers, so
 // nothing is solved again.
@@ -288,9 +298,15 @@ type volterra struct {
 func (v *volterra) solveAt(w float64, b []complex128) ([]complex128, error) {
 	var f solver = v.sys
 	if w == 0 {
-		dc := v.ws.dcSolver(v.nw)
-		if err := dc.f.factor(); err != nil {
-			return nil, fmt.Errorf("at %g Hz: %w", w/(2*math.Pi), err)
+		// Within one VolterraSweep the network's DC matrix stays the
+		// same: it is factored once.
+		dc := &v.ws.dc
+		if !v.ws.dcFactored {
+			dc = v.ws.dcSolver(v.nw)
+			if err := dc.f.factor(); err != nil {
+				return nil, fmt.Errorf("at %g Hz: %w", w/(2*math.Pi), err)
+			}
+			v.ws.dcFactored = v.ws.keepDC
 		}
 		f = dc
 	} else if err := f.at(w); err != nil {
@@ -417,32 +433,96 @@ func (ws *Workspace) Volterra(nw *smallsignal.Network, d Drive) (*Estimate, erro
 	return ws.volterraOn(nw, d, engineAuto)
 }
 
+// productFrequencies appends the frequencies at which an estimate of d
+// solves Y(jw): f1, 2 f1, 3 f1 and, with a second tone, f2, f1 + f2,
+// f1 - f2 and 2 f1 - f2.
+func productFrequencies(dst []float64, d Drive) []float64 {
+	dst = append(dst, d.FrequencyHz, 2*d.FrequencyHz, 3*d.FrequencyHz)
+	if d.SecondToneHz != 0 {
+		f1, f2 := d.FrequencyHz, d.SecondToneHz
+		dst = append(dst, f2, f1+f2, f1-f2, 2*f1-f2)
+	}
+	return dst
+}
+
+// VolterraSweep estimates distortion at each frequency of freqsHz: the
+// drive d with its first tone moved there (and a second tone, if any,
+// kept at the same offset from it). All the estimates share one solver
+// for Y(jw) over every product frequency, so a long sweep of a larger
+// network runs on the reduced engine (O(n²) a frequency) as Sweep and
+// Noise do, instead of dense LUs per product. visit receives each
+// estimate in turn; the estimate is overwritten by the next, so visit
+// copies what it keeps.
+func VolterraSweep(nw *smallsignal.Network, d Drive, freqsHz []float64, visit func(*Estimate) error) error {
+	return new(Workspace).volterraSweep(nw, d, freqsHz, visit, engineAuto)
+}
+
+func (ws *Workspace) volterraSweep(nw *smallsignal.Network, d Drive, freqsHz []float64, visit func(*Estimate) error, choice engine) error {
+	offset := d.SecondToneHz - d.FrequencyHz
+	drive := func(f float64) Drive {
+		x := d
+		x.FrequencyHz = f
+		if d.SecondToneHz != 0 {
+			x.SecondToneHz = f + offset
+		}
+		return x
+	}
+	var all []float64
+	for _, f := range freqsHz {
+		all = productFrequencies(all, drive(f))
+	}
+	sys := newSolver(nw, all, choice)
+	ws.keepDC, ws.dcFactored = true, false
+	defer func() { ws.keepDC, ws.dcFactored = false, false }()
+	for _, f := range freqsHz {
+		e, err := ws.volterraWith(nw, drive(f), sys)
+		if err != nil {
+			return err
+		}
+		if err := visit(e); err != nil {
+			return err
+		}
+	}
+	return nil
+}
+
 func (ws *Workspace) volterraOn(nw *smallsignal.Network, d Drive, choice engine) (*Estimate, error) {
+	if err := checkDrive(nw, d); err != nil {
+		return nil, err
+	}
+	// Y(jw) is solved at the products' frequencies: a few points, where
+	// the LU is usually cheaper than a reduction (newSolver decides).
+	ws.frequencies = productFrequencies(ws.frequencies[:0], d)
+	return ws.volterraWith(nw, d, ws.estimateSolver(nw, ws.frequencies, choice))
+}
+
+// checkDrive refuses a drive the estimate cannot take.
+func checkDrive(nw *smallsignal.Network, d Drive) error {
 	if d.Input < 0 || d.Input >= len(nw.Ports) {
-		return nil, fmt.Errorf("input port %d: the circuit has %d ports", d.Input+1, len(nw.Ports))
+		return fmt.Errorf("input port %d: the circuit has %d ports", d.Input+1, len(nw.Ports))
 	}
 	if err := CheckFrequency(d.FrequencyHz); err != nil {
-		return nil, err
+		return err
 	}
 	if d.SecondToneHz != 0 {
 		if err := CheckFrequency(d.SecondToneHz); err != nil {
-			return nil, err
+			return err
 		}
 		if d.SecondToneHz == d.FrequencyHz {
-			return nil, fmt.Errorf("the second tone must differ from the first (both %g Hz)", d.FrequencyHz)
+			return fmt.Errorf("the second tone must differ from the first (both %g Hz)", d.FrequencyHz)
 		}
 	}
-	// Y(jw) is solved at f1, 2 f1, 3 f1 and, with a second tone, at f2,
-	// f1 + f2, f1 - f2 and 2 f1 - f2: a few points, where the LU is
-	// usually cheaper than a reduction (newSolver decides).
-	freqs := append(ws.frequencies[:0], d.FrequencyHz, 2*d.FrequencyHz, 3*d.FrequencyHz)
-	if d.SecondToneHz != 0 {
-		f1, f2 := d.FrequencyHz, d.SecondToneHz
-		freqs = append(freqs, f2, f1+f2, f1-f2, 2*f1-f2)
+	return nil
+}
+
+// volterraWith makes the estimate with sys solving Y(jw) at its products'
+// frequencies.
+func (ws *Workspace) volterraWith(nw *smallsignal.Network, d Drive, sys solver) (*Estimate, error) {
+	if err := checkDrive(nw, d); err != nil {
+		return nil, err
 	}
-	ws.frequencies = freqs
 	v := &ws.volterra
-	*v = volterra{nw: nw, n: nw.N, out: vector(v.out, nw.N), adjoint: v.adjoint, sys: ws.estimateSolver(nw, freqs, choice), ws: ws}
+	*v = volterra{nw: nw, n: nw.N, out: vector(v.out, nw.N), adjoint: v.adjoint, sys: sys, ws: ws}
 	if ws.estimate == nil {
 		ws.estimate = new(Estimate)
 	}

@@ -94,3 +94,55 @@ func TestGainStepCubic(t *testing.T) {
 		}
 	}
 }
+
+// TestVolterraSweepEqualsEach: the estimate sweep, on one solver shared by
+// every product frequency (the reduction for the 24-section ladder), gives
+// each frequency's estimate as a lone Volterra on the dense LU does, to
+// 1e-9 (the equality the tests hold the engines to).
+func TestVolterraSweepEqualsEach(t *testing.T) {
+	nw := network(t, benchLadder(75))
+	freqs, _ := LogGrid(10e6, 1e9, 20)
+	for _, two := range []bool{false, true} {
+		d := Drive{Input: 0, Output: Output{Port: 1}, EMF: DBmToEMF(-30, 50)}
+		if two {
+			d.SecondToneHz = 1e6 // offset from each first tone
+		}
+		var all []float64
+		for _, f := range freqs {
+			x := d
+			x.FrequencyHz = f
+			if two {
+				x.SecondToneHz = f + 1e6
+			}
+			all = productFrequencies(all, x)
+		}
+		if _, ok := newSolver(nw, all, engineAuto).(*reduction); !ok {
+			t.Fatalf("the sweep's %d product frequencies should run on the reduction", len(all))
+		}
+		i := 0
+		err := VolterraSweep(nw, d, freqs, func(e *Estimate) error {
+			one := d
+			one.FrequencyHz = freqs[i]
+			if two {
+				one.SecondToneHz = freqs[i] + 1e6
+			}
+			lu, err := volterraOn(nw, one, engineLU)
+			if err != nil {
+				return err
+			}
+			for _, p := range []struct {
+				name string
+				a, b complex128
+			}{{"fundamental", e.Fundamental, lu.Fundamental}, {"HD2", e.HD2, lu.HD2}, {"HD3", e.HD3, lu.HD3}, {"IM3", e.IM3, lu.IM3}} {
+				if cmplx.Abs(p.a-p.b) > 1e-9*cmplx.Abs(p.b)+1e-30 {
+					t.Errorf("%g Hz (two tones %v): %s %v in the sweep, %v alone", freqs[i], two, p.name, p.a, p.b)
+				}
+			}
+			i++
+			return nil
+		})
+		if err != nil || i != len(freqs) {
+			t.Fatalf("%d of %d estimates: %v", i, len(freqs), err)
+		}
+	}
+}

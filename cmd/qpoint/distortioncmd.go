@@ -280,17 +280,12 @@ func runDistortion(cmd *cobra.Command, path string, fl *distortionFlags) error {
 			return inputError(fmt.Errorf("flag --sweep-frequency: %w", err))
 		}
 		var rows []frequencyRow
-		for _, f := range grid {
-			d := s.drive
-			d.FrequencyHz = f
-			if d.SecondToneHz != 0 {
-				d.SecondToneHz = f + (s.drive.SecondToneHz - s.drive.FrequencyHz)
-			}
-			e, err := ac.Volterra(s.nw, d)
-			if err != nil {
-				return analysisError(err)
-			}
-			rows = append(rows, frequencyRow{f, e})
+		err = ac.VolterraSweep(s.nw, s.drive, grid, func(e *ac.Estimate) error {
+			rows = append(rows, frequencyRow{e.Drive.FrequencyHz, e.Clone()})
+			return nil
+		})
+		if err != nil {
+			return analysisError(err)
 		}
 		if fl.plotsDir != "" {
 			if err := writeDistortionFrequencyPlot(fl.plotsDir, rows); err != nil {
