@@ -44,7 +44,7 @@ type Workspace struct {
 	// network: the DC factorisation made for the first is kept
 	// (dcFactored) for the rest.
 	keepDC, dcFactored bool
-	parts       []Contribution
+	parts              []Contribution
 }
 
 // ReservePoints makes one allocation for the next Sweep's points: room for
