@@ -9,8 +9,11 @@ import (
 	"sort"
 	"strconv"
 	"strings"
+	"time"
 
+	"github.com/schollz/progressbar/v3"
 	"github.com/spf13/cobra"
+	"golang.org/x/term"
 
 	"qpoint/ac"
 	"qpoint/bias"
@@ -734,37 +737,42 @@ func writeFrequencySweep(w io.Writer, rows []frequencyRow) {
 	fmt.Fprintln(w)
 }
 
-// progress draws a bar on standard error when it is a terminal, and
-// nothing otherwise.
+// progress draws a bar with the count, rate and time left on standard
+// error when it is a terminal (golang.org/x/term), and nothing otherwise,
+// so that logs and pipes stay clean. The bar is schollz/progressbar's.
 type progress struct {
-	w     io.Writer
-	label string
-	total int
-	on    bool
+	bar *progressbar.ProgressBar
 }
 
 func newProgress(w io.Writer, label string, total int) *progress {
-	on := false
-	if f, ok := w.(*os.File); ok {
-		if st, err := f.Stat(); err == nil && st.Mode()&os.ModeCharDevice != 0 {
-			on = true
-		}
+	f, ok := w.(*os.File)
+	if !ok || !term.IsTerminal(int(f.Fd())) || total <= 1 {
+		return &progress{}
 	}
-	return &progress{w: w, label: label, total: total, on: on}
+	return &progress{bar: progressbar.NewOptions(total,
+		progressbar.OptionSetWriter(w),
+		progressbar.OptionSetDescription(label),
+		progressbar.OptionShowCount(),
+		progressbar.OptionSetPredictTime(true),
+		progressbar.OptionSetWidth(30),
+		progressbar.OptionThrottle(100*time.Millisecond),
+		progressbar.OptionClearOnFinish(),
+		progressbar.OptionSetTheme(progressbar.Theme{Saucer: "█", SaucerPadding: "·", BarStart: "[", BarEnd: "]"}),
+	)}
 }
 
+// update shows done steps of total; it may be called from any goroutine
+// that holds the caller's lock, as study progress is.
 func (p *progress) update(done, total int) {
-	if !p.on {
-		return
+	if p.bar != nil {
+		_ = p.bar.Set(done)
 	}
-	const width = 30
-	n := width * done / max(total, 1)
-	fmt.Fprintf(p.w, "\r%s [%s%s] %d/%d", p.label, strings.Repeat("█", n), strings.Repeat("·", width-n), done, total)
 }
 
+// done removes the bar.
 func (p *progress) done() {
-	if p.on {
-		fmt.Fprint(p.w, "\r\033[K")
+	if p.bar != nil {
+		_ = p.bar.Finish()
 	}
 }
 
