@@ -270,14 +270,19 @@ func (e *Estimate) OIP3dBm() (float64, bool) {
 // product, P_in - IM2dBc.
 func (e *Estimate) IIP2dBm() float64 { return e.InputDBm() - e.IM2dBc() }
 
+// AvailablePower returns the power a generator of EMF amplitude emf (peak
+// volts) behind a real z0 delivers into a matched load, E²/(8 z0) in
+// watts: half the EMF across the load, |E/2|²/(2 z0) (common practice).
+func AvailablePower(emf, z0 float64) float64 { return emf * emf / (8 * z0) }
+
 // EMFToDBm converts a generator EMF amplitude behind z0 to its available
-// power E²/(8 z0) in dBm.
+// power AvailablePower in dBm.
 func EMFToDBm(emf, z0 float64) float64 {
-	return 10 * math.Log10(emf*emf/(8*z0)*1e3)
+	return 10 * math.Log10(AvailablePower(emf, z0)*1e3)
 }
 
 // DBmToEMF converts available power in dBm behind z0 to the generator's
-// EMF amplitude, E = sqrt(8 z0 P).
+// EMF amplitude, E = sqrt(8 z0 P), the inverse of EMFToDBm.
 func DBmToEMF(dbm, z0 float64) float64 {
 	return math.Sqrt(8 * z0 * math.Pow(10, dbm/10) * 1e-3)
 }

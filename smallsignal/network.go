@@ -2,6 +2,7 @@ package smallsignal
 
 import (
 	"fmt"
+	"math"
 
 	"gonum.org/v1/gonum/mat"
 
@@ -69,6 +70,28 @@ type Diode struct {
 	// JunctionCapacitance and DiffusionCapacitance split c1.
 	JunctionCapacitance  float64
 	DiffusionCapacitance float64
+}
+
+// CurrentSensitivity returns the diode's short-circuit current sensitivity
+// at frequency f in A/W of RF power absorbed by the chip (junction and
+// series resistance):
+//
+//	β = (g2/g1) / (1 + R_S/R_j + ω² C² R_S R_j)
+//
+// where g1, g2 are the junction current's Taylor coefficients (g2/g1 =
+// 1/(2 n V_T) for the ideal law), R_j = 1/g1 and C the junction's total
+// capacitance. The rectified current is g2|v|²/2 for junction voltage v,
+// the power absorbed in the junction |v|²g1/2, and the chip absorbs
+// 1 + R_S/R_j + ω²C²R_S R_j times that; Cowley and Sorensen (1966) give the
+// same frequency roll-off as 1/(1 + ω²C²R_S R_j) and the resistive loss as
+// 1/(1 + R_S/R_j).
+func (d Diode) CurrentSensitivity(f float64) float64 {
+	if d.G1 <= 0 {
+		return 0
+	}
+	rj := 1 / d.G1
+	w := 2 * math.Pi * f
+	return (d.G2 / d.G1) / (1 + d.SeriesResistance/rj + w*w*d.C1*d.C1*d.SeriesResistance*rj)
 }
 
 // New linearises the circuit at point p.

@@ -353,7 +353,7 @@ func runStep(c *circuit.Circuit, s Settings, i, j int, prev *bias.Point, st *Ste
 			block := sensitivities[2*nf*k : 2*nf*(k+1)]
 			dd.CurrentSensitivity, dd.VoltageSensitivity = block[:nf:nf], block[nf:2*nf:2*nf]
 			for fi, f := range freqs {
-				b := Sensitivity(sd, f)
+				b := sd.CurrentSensitivity(f)
 				dd.CurrentSensitivity[fi] = b
 				dd.VoltageSensitivity[fi] = b * dd.VideoResistance
 			}
@@ -388,7 +388,7 @@ func runStep(c *circuit.Circuit, s Settings, i, j int, prev *bias.Point, st *Ste
 				st.Err = err
 				return p
 			}
-			pin := d.EMF * d.EMF / (8 * nw.Ports[d.Input].Impedance)
+			pin := ac.AvailablePower(d.EMF, nw.Ports[d.Input].Impedance)
 			st.Distortion = append(st.Distortion, Distortion{FrequencyHz: f,
 				Fundamental: cmplx.Abs(e.Fundamental), HD2dBc: e.HD2dBc(), HD3dBc: e.HD3dBc(),
 				DCShift: e.DCShift, Sensitivity: e.DCShift / pin})
@@ -424,26 +424,4 @@ func runStep(c *circuit.Circuit, s Settings, i, j int, prev *bias.Point, st *Ste
 		}
 	}
 	return p
-}
-
-// Sensitivity returns a diode's short-circuit current sensitivity at
-// frequency f in A/W of RF power absorbed by the chip (junction and series
-// resistance):
-//
-//	β = (g2/g1) / (1 + R_S/R_j + ω² C² R_S R_j)
-//
-// where g1, g2 are the junction current's Taylor coefficients (g2/g1 =
-// 1/(2 n V_T) for the ideal law), R_j = 1/g1 and C the junction's total
-// capacitance. The rectified current is g2|v|²/2 for junction voltage v,
-// the power absorbed in the junction |v|²g1/2, and the chip absorbs
-// 1 + R_S/R_j + ω²C²R_S R_j times that; Cowley and Sorensen (1966) give the
-// same frequency roll-off as 1/(1 + ω²C²R_S R_j) and the resistive loss as
-// 1/(1 + R_S/R_j).
-func Sensitivity(d smallsignal.Diode, f float64) float64 {
-	if d.G1 <= 0 {
-		return 0
-	}
-	rj := 1 / d.G1
-	w := 2 * math.Pi * f
-	return (d.G2 / d.G1) / (1 + d.SeriesResistance/rj + w*w*d.C1*d.C1*d.SeriesResistance*rj)
 }
