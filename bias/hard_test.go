@@ -1,6 +1,7 @@
 package bias
 
 import (
+	"errors"
 	"fmt"
 	"math"
 	"math/rand/v2"
@@ -109,5 +110,44 @@ func TestTangledNetworkRefused(t *testing.T) {
 	// A ladder of the same size stays banded and solves.
 	if _, err := Solve(ladder(nodes).c, Settings{}); err != nil {
 		t.Errorf("ladder of %d: %v", nodes, err)
+	}
+}
+
+// TestHotCircuitsHonest: at 1e6 K the detector demo's junction conducts
+// about 2e10 S, so its current is known only to ±0.1 mA from the rounding
+// of its voltage while 10 µA flows. The solver used to call such a point
+// solved with KCL off by 7 %. Now every point Solve returns passes the
+// independent check of KCL on its reported values (checkKCLFloor,
+// written apart from the library's own), and a point that cannot is a
+// *Failure that says why.
+func TestHotCircuitsHonest(t *testing.T) {
+	paths := append(hardFiles(t), "../testdata/demo/detector.yaml", "../testdata/demo/mixer.yaml")
+	for _, path := range paths {
+		t.Run(filepath.Base(path), func(t *testing.T) {
+			c, err := circuit.Load(path)
+			if err != nil {
+				t.Fatal(err)
+			}
+			for _, tempK := range []float64{1e5, 1e6, 1e9} {
+				p, err := Solve(c, Settings{TemperatureK: tempK})
+				if err != nil {
+					var f *Failure
+					if !errors.As(err, &f) {
+						t.Errorf("%g K: %v is not a *Failure", tempK, err)
+					}
+					continue
+				}
+				checkKCLFloor(t, c, p)
+				checkFinite(t, p)
+			}
+		})
+	}
+	c, err := circuit.Load("../testdata/demo/detector.yaml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	_, err = Solve(c, Settings{TemperatureK: 1e6})
+	if err == nil || !strings.Contains(err.Error(), "float64 cannot resolve") || !strings.Contains(err.Error(), "D1") {
+		t.Errorf("detector at 1e6 K: %v; want a failure naming D1 and the rounding", err)
 	}
 }

@@ -127,25 +127,37 @@ func (s *system) point(st *state, p *Point) {
 		junction := volt(st.x, j.internal) - volt(st.x, j.cathode)
 		vt := volt(st.x, j.anode) - volt(st.x, j.cathode)
 		i := j.dev.Current(junction)
+		current := i.Value
+		if j.internal != j.anode {
+			// Both the junction law at the junction voltage and the
+			// series resistance's g·(v_a - v_i) give the diode's current;
+			// each is known to the rounding of its voltage difference
+			// times its conductance. Report the better known.
+			va, vi, vk := volt(st.x, j.anode), volt(st.x, j.internal), volt(st.x, j.cathode)
+			gs := 1 / j.dev.Params.SeriesResistance
+			if gs*(abs(va)+abs(vi)) < i.D1*(abs(vi)+abs(vk)) {
+				current = (va - vi) * gs
+			}
+		}
 		d := Diode{
 			Name:                 part.Name,
 			Model:                part.Model,
 			Device:               j.dev,
 			Voltage:              vt,
 			JunctionVoltage:      junction,
-			Current:              i.Value,
+			Current:              current,
 			Conductance:          i.D1,
 			DynamicResistance:    1 / i.D1,
 			JunctionCapacitance:  j.dev.DepletionCharge(junction).D1,
 			DiffusionCapacitance: j.dev.DiffusionCharge(junction).D1,
-			Power:                vt * i.Value,
+			Power:                vt * current,
 		}
 		if i.D1 == 0 {
 			d.DynamicResistance = math.Inf(1)
 		}
 		d.InBreakdown = -j.dev.BreakdownCurrent(junction).Value > j.dev.SaturationCurrent
 		r := j.dev.Params.Ratings
-		d.CurrentFraction = fraction(math.Max(i.Value, 0), r.MaxCurrent)
+		d.CurrentFraction = fraction(math.Max(current, 0), r.MaxCurrent)
 		d.ReverseVoltageFraction = fraction(math.Max(-vt, 0), r.MaxReverseVoltage)
 		d.PowerFraction = fraction(d.Power, r.MaxPower)
 		p.Diodes = append(p.Diodes, d)

@@ -36,8 +36,10 @@ func (f *Failure) Error() string {
 // KCL at every node to 1e-12 A + 1e-9 × (sum of current magnitudes at the
 // node) and has node voltages converged to 1e-9 relative, or, where the
 // rounding of large currents keeps the updates from shrinking that far,
-// until they stall below 1e-6 relative. When every strategy fails the
-// error is a *Failure.
+// until they stall below 1e-6 relative. A strategy's point counts only
+// when the values it reports pass an independent check of KCL (verify);
+// a point that converged but fails it is recorded as that attempt's
+// error. When every strategy fails the error is a *Failure.
 func Solve(c *circuit.Circuit, s Settings) (*Point, error) {
 	return new(Workspace).Solve(c, s)
 }
@@ -115,16 +117,23 @@ func (ws *Workspace) Solve(c *circuit.Circuit, s Settings) (*Point, error) {
 		if err != nil {
 			continue
 		}
-		stats.Strategy = strategy
-		stats.ResidualRatio, stats.Residual = sys.kclRatio(st.x, w)
 		if ws.point == nil {
 			ws.point = new(Point)
 		}
 		p := ws.point
 		// The point takes the attempts' storage, the workspace the
 		// point's old list for the next call.
-		ws.attempts = p.Stats.Attempts[:0]
+		old := p.Stats.Attempts[:0]
 		sys.point(st, p)
+		// Converged on its own terms is not enough: the point as
+		// reported must pass an independent check of KCL.
+		if err := sys.verify(p); err != nil {
+			stats.Attempts[len(stats.Attempts)-1].Err = err
+			continue
+		}
+		stats.Strategy = strategy
+		stats.ResidualRatio, stats.Residual = sys.kclRatio(st.x, w)
+		ws.attempts = old
 		stats.Runtime = time.Since(begin)
 		p.Stats = stats
 		return p, nil
