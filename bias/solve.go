@@ -13,6 +13,12 @@ import (
 type Failure struct {
 	Circuit  string
 	Attempts []Attempt
+	// JunctionOnly lists the nodes whose every DC connection is a diode
+	// terminal. Between reverse-biased junctions such a node is held only
+	// by leakage currents e^(-|v|/nV_T) below I_S, and with series
+	// resistances beside them those balances fall below the rounding of
+	// the resistances' currents: float64 cannot place the node.
+	JunctionOnly []string
 }
 
 func (f *Failure) Error() string {
@@ -24,6 +30,21 @@ func (f *Failure) Error() string {
 			sep = ""
 		}
 		fmt.Fprintf(&b, "%s %s (%d iterations: %v)", sep, a.Strategy, a.Iterations, a.Err)
+	}
+	if n := len(f.JunctionOnly); n > 0 {
+		list := f.JunctionOnly
+		if n > 8 {
+			list = list[:8]
+		}
+		subject, verb, its := "node", "connects", "its voltage rests"
+		if n > 1 {
+			subject, verb, its = "nodes", "connect", "their voltages rest"
+		}
+		fmt.Fprintf(&b, "; %s %s %s only to junctions: where those are reverse biased %s on leakage balances below the rounding of the currents beside them, which float64 cannot resolve; add a resistance that sets each (1 GΩ to gnd or a neighbour changes the currents by no more than the node's voltage over 1 GΩ)",
+			subject, strings.Join(quoteAll(list), ", "), verb, its)
+		if n > 8 {
+			fmt.Fprintf(&b, " (and %d more)", n-8)
+		}
 	}
 	return b.String()
 }
@@ -139,5 +160,41 @@ func (ws *Workspace) Solve(c *circuit.Circuit, s Settings) (*Point, error) {
 		return p, nil
 	}
 	ws.attempts = nil // the error keeps the list
-	return nil, &Failure{Circuit: c.File, Attempts: stats.Attempts}
+	return nil, &Failure{Circuit: c.File, Attempts: stats.Attempts, JunctionOnly: junctionOnly(c)}
+}
+
+// junctionOnly returns the named nodes whose every DC connection is a
+// diode terminal.
+func junctionOnly(c *circuit.Circuit) []string {
+	other := map[string]bool{}
+	touched := map[string]bool{}
+	for _, p := range c.Parts {
+		for _, n := range p.Nodes {
+			touched[n] = true
+			if p.Kind != circuit.Diode && p.Kind != circuit.Capacitor {
+				other[n] = true
+			}
+		}
+	}
+	for _, p := range c.Ports {
+		if !p.ACCoupled {
+			other[p.Node] = true
+			other[p.Return] = true
+		}
+	}
+	var nodes []string
+	for _, n := range c.Nodes {
+		if touched[n] && !other[n] {
+			nodes = append(nodes, n)
+		}
+	}
+	return nodes
+}
+
+func quoteAll(s []string) []string {
+	q := make([]string, len(s))
+	for i, x := range s {
+		q[i] = "`" + x + "`"
+	}
+	return q
 }
