@@ -93,6 +93,9 @@ func resolveDistortion(path string, fl *distortionFlags) (*distortionSetup, erro
 	if err != nil {
 		return nil, err
 	}
+	if err := checkOutputsEarly(fl.plotsDir); err != nil {
+		return nil, err
+	}
 	return resolveDistortionFor(c, fl, nil)
 }
 

@@ -69,9 +69,15 @@ func run(args []string, stdout, stderr io.Writer) (code int) {
 			code = exitAnalysis
 		}
 	}()
-	root := newRoot(stdout, stderr)
+	out := &checkedWriter{w: stdout}
+	root := newRoot(out, stderr)
 	root.SetArgs(args)
 	err := root.Execute()
+	if err == nil && out.err != nil {
+		// A table or document that did not reach its reader is a
+		// failure, whatever the analysis did (a closed or full output).
+		err = analysisError(fmt.Errorf("writing standard output: %w", out.err))
+	}
 	if err == nil {
 		return exitOK
 	}
@@ -83,6 +89,24 @@ func run(args []string, stdout, stderr io.Writer) (code int) {
 	// Cobra's own errors are about flags and arguments.
 	fmt.Fprintln(stderr, "Run 'qpoint --help' for usage.")
 	return exitInput
+}
+
+// checkedWriter passes writes on and keeps the first error, so that a
+// command printing many lines with fmt.Fprintf cannot lose one unseen.
+type checkedWriter struct {
+	w   io.Writer
+	err error
+}
+
+func (c *checkedWriter) Write(p []byte) (int, error) {
+	if c.err != nil {
+		return 0, c.err
+	}
+	n, err := c.w.Write(p)
+	if err != nil {
+		c.err = err
+	}
+	return n, err
 }
 
 func newRoot(stdout, stderr io.Writer) *cobra.Command {

@@ -42,6 +42,9 @@ inline and fetches nothing: mail it, archive it, print it.`,
 			if err != nil {
 				return err
 			}
+			if err := checkOutputsEarly("", outPath); err != nil {
+				return err
+			}
 			doc, err := buildReport(c, temperature)
 			if err != nil {
 				return err

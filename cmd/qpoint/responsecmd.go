@@ -169,6 +169,9 @@ func runResponse(cmd *cobra.Command, path string, fl *responseFlags) error {
 	if err != nil {
 		return err
 	}
+	if err := checkOutputsEarly(fl.plotsDir, fl.csvPath, fl.touchstone); err != nil {
+		return err
+	}
 	if len(c.Ports) == 0 {
 		return inputError(fmt.Errorf("%s: the circuit has no ports; a response needs at least one (add a `ports:` list)", path))
 	}

@@ -163,6 +163,9 @@ func resolveStudy(path string, fl *studyFlags) (*studySetup, error) {
 	if err != nil {
 		return nil, err
 	}
+	if err := checkOutputsEarly(fl.plotsDir, fl.csvPath); err != nil {
+		return nil, err
+	}
 	return resolveStudyFor(c, fl)
 }
 
