@@ -251,7 +251,7 @@ func checkOutputsEarly(plotsDir string, files ...string) error {
 		return nil
 	}
 	if st, err := os.Stat(plotsDir); err == nil && !st.IsDir() {
-		return inputError(fmt.Errorf("flag --plots: %s is not a folder; accepted: a folder, existing or new", plotsDir))
+		return inputError(fmt.Errorf("flag --plots: %s is not a directory; accepted: a folder, existing or new", plotsDir))
 	}
 	return refuseFolder(plotsDir, plotsDir)
 }
@@ -263,7 +263,7 @@ func refuseFolder(dir, output string) error {
 		st, err := os.Stat(d)
 		if err == nil {
 			if !st.IsDir() {
-				return inputError(fmt.Errorf("cannot write %s: %s is not a folder", output, d))
+				return inputError(fmt.Errorf("cannot write %s: %s is not a directory", output, d))
 			}
 			return nil
 		}
