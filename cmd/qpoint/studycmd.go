@@ -176,6 +176,9 @@ func resolveStudyFor(c *circuit.Circuit, fl *studyFlags) (*studySetup, error) {
 	var err error
 	def := c.Analysis.Study
 	s := &studySetup{c: c}
+	if !(fl.tolerance > 0 && fl.tolerance < 1) {
+		return nil, inputError(fmt.Errorf("flag --tolerance: %g; accepted: a fraction of the range above 0 and below 1, e.g. 1e-6", fl.tolerance))
+	}
 	// The file's defaults fill what the flags leave out, when the flags
 	// vary the same thing (or nothing).
 	if fl.vary == "" && def.Set {
