@@ -346,8 +346,8 @@ func resolveStudyFor(c *circuit.Circuit, fl *studyFlags) (*studySetup, error) {
 	if s.measure != nil && s.measure.NeedsDrive() && s.settings.Drive.EMF == 0 {
 		return nil, inputError(fmt.Errorf("measure %s needs a signal level: give --level (e.g. -30dBm)", s.measure.Text))
 	}
-	if fl.workers < 0 {
-		return nil, inputError(fmt.Errorf("flag --workers: %d; accepted: 0 (all cores) or more", fl.workers))
+	if fl.workers < 0 || fl.workers > maxWorkers {
+		return nil, inputError(fmt.Errorf("flag --workers: %d; accepted: 0 (all cores) to %d", fl.workers, maxWorkers))
 	}
 	s.settings.Workers = fl.workers
 	return s, nil
@@ -651,3 +651,7 @@ func studyTable(r *study.Result, cols []column) *table {
 	}
 	return t
 }
+
+// maxWorkers bounds --workers: far more than any machine's cores, and few
+// enough that their workspaces fit in memory.
+const maxWorkers = 1024
