@@ -318,8 +318,8 @@ type pointEval struct {
 	// The current the network draws at port i for the excitation there
 	// is (grow[i] + jω crow[i])·y (portRows, in reduced coordinates).
 	grow, crow [][]float64
-	prow [][]float64    // probe k's voltage = prow[k]·y
-	dy   []complex128
+	prow       [][]float64 // probe k's voltage = prow[k]·y
+	dy         []complex128
 	// reciprocal: G and C are symmetric, so S is (power waves, real
 	// references): the column of the group delay's output port comes
 	// from its row, which the adjoint solve gives, and that port needs no
