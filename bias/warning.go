@@ -36,6 +36,10 @@ const (
 	// milliampere; or it carries more than 10 A whatever sets it; or its
 	// voltage lies beyond where the law implies diode.MaxLawCurrent.
 	Overdriven
+	// Wiring: the circuit file's own warning (circuit.Warning), carried
+	// with the point: a node that looks like gnd, a node with one
+	// terminal. The message starts with FILE:LINE:COL.
+	Wiring
 )
 
 // String names the kind as JSON and tables print it.
@@ -51,6 +55,8 @@ func (k WarningKind) String() string {
 		return "model"
 	case Overdriven:
 		return "overdriven"
+	case Wiring:
+		return "wiring"
 	}
 	return "unknown"
 }
@@ -117,6 +123,9 @@ func cautions(p *Point) []Warning {
 				add(d.Model, Model, "%s", n)
 			}
 		}
+	}
+	for _, cw := range p.Circuit.Warnings {
+		add("", Wiring, "%s", cw)
 	}
 	return w
 }

@@ -148,4 +148,7 @@ type Circuit struct {
 	// Nodes lists every node other than Ground, in order of first
 	// appearance in the file.
 	Nodes []string
+	// Warnings lists what the loader found legal but probably not meant,
+	// in file order.
+	Warnings []Warning
 }

@@ -345,6 +345,7 @@ func (l *loader) circuit(root *yaml.Node) *Circuit {
 	}
 	if e, ok := top["parts"]; ok && l.partsComplete && l.portsComplete {
 		l.topology(e.key)
+		l.wiring()
 	}
 	return l.c
 }

@@ -80,8 +80,16 @@ func loadCircuit(path string) (*circuit.Circuit, error) {
 		}
 		return nil, inputError(err)
 	}
+	// Legal but probably not meant: said on standard error, so that
+	// every command shows it and no JSON document changes shape.
+	for _, w := range c.Warnings {
+		fmt.Fprintf(warnOut, "qpoint: caution: %s\n", w)
+	}
 	return c, nil
 }
+
+// warnOut receives the circuit file's warnings: standard error.
+var warnOut io.Writer = io.Discard
 
 func celsius(k float64) float64 { return k - diode.ZeroCelsius }
 
@@ -140,11 +148,13 @@ func writeBias(w io.Writer, p *bias.Point) {
 		t.write(w)
 	}
 
-	if len(p.Warnings) > 0 {
-		fmt.Fprintf(w, "\nCautions\n")
-		for _, x := range p.Warnings {
-			fmt.Fprintf(w, "  ! %s: %s\n", x.Part, x.Message)
+	header := "\nCautions\n"
+	for _, x := range p.Warnings {
+		if x.Kind == bias.Wiring {
+			continue // said on standard error when the file loaded
 		}
+		fmt.Fprintf(w, "%s  ! %s: %s\n", header, x.Part, x.Message)
+		header = ""
 	}
 	fmt.Fprintln(w)
 }

@@ -74,6 +74,7 @@ func run(args []string, stdout, stderr io.Writer) (code int) {
 	}()
 	out := &checkedWriter{w: &escapingWriter{w: stdout}}
 	stderr = &escapingWriter{w: stderr}
+	warnOut = stderr
 	root := newRoot(out, stderr)
 	root.SetArgs(args)
 	err := root.Execute()
