@@ -177,6 +177,10 @@ func ReadCSV(r io.Reader, opts CSVOptions) (*Waveform, error) {
 				Msg: fmt.Sprintf("the time column gives a sample rate of %.7g Hz but %.7g Hz was given; accepted: a sample rate that agrees with the time column to 0.1 %%, or none", rate, opts.SampleRateHz)}
 		}
 		w.StartS, w.SampleRateHz = start, rate
+		// A time stamp is known to the spacing of float64 numbers at its
+		// size; the rate, from the span, to that over the span.
+		last := max(math.Abs(times[0]), math.Abs(times[len(times)-1]))
+		w.RateUncertainty = (math.Nextafter(last, math.Inf(1)) - last) / (times[len(times)-1] - times[0])
 	}
 	return w, nil
 }
