@@ -568,9 +568,30 @@ func levelSweepTable(pts []ac.LevelPoint) *table {
 	t := &table{title: "Level sweep (waveform)", header: []string{"input", "fundamental", "2nd", "3rd", "DC shift", "THD"}}
 	for _, p := range pts {
 		o := p.Steady.Output
-		t.add(fmt.Sprintf("%.1f dBm", p.LevelDBm), si.Format(o[1].Amplitude, "V", 4),
-			waveDBc(20*math.Log10(o[2].Amplitude/o[1].Amplitude)), waveDBc(20*math.Log10(o[3].Amplitude/o[1].Amplitude)),
-			si.Format(o[0].Amplitude, "V", 4), fmt.Sprintf("%.3g %%", p.Steady.THDPercent))
+		floor := "< " + si.Format(p.Steady.NoiseFloor, "V", 2)
+		cell := func(h ac.Harmonic, text string) string {
+			if h.BelowFloor || o[1].BelowFloor {
+				return "below floor"
+			}
+			return text
+		}
+		fund, shift := si.Format(o[1].Amplitude, "V", 4), si.Format(o[0].Amplitude, "V", 4)
+		if o[1].BelowFloor {
+			fund = floor
+		}
+		if o[0].BelowFloor {
+			shift = "below floor"
+		}
+		thd := fmt.Sprintf("%.3g %%", p.Steady.THDPercent)
+		switch {
+		case p.Steady.THDBelowPercent > 0:
+			thd = fmt.Sprintf("< %.2g %%", p.Steady.THDBelowPercent)
+		case math.IsNaN(p.Steady.THDPercent):
+			thd = "—"
+		}
+		t.add(fmt.Sprintf("%.1f dBm", p.LevelDBm), fund,
+			cell(o[2], waveDBc(20*math.Log10(o[2].Amplitude/o[1].Amplitude))), cell(o[3], waveDBc(20*math.Log10(o[3].Amplitude/o[1].Amplitude))),
+			shift, thd)
 	}
 	return t
 }

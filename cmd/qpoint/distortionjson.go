@@ -32,6 +32,8 @@ type harmonicJSON struct {
 	Order     int     `json:"order"`
 	Amplitude number  `json:"amplitude"`
 	Phase     *number `json:"phase,omitempty"`
+	// BelowFloor marks a waveform reading below the solver's floor.
+	BelowFloor bool `json:"below_floor,omitempty"`
 }
 
 type waveformJSON struct {
@@ -99,7 +101,7 @@ func estimateJSONOf(e *ac.Estimate) *estimateJSON {
 func waveformJSONOf(s *ac.Steady) *waveformJSON {
 	j := &waveformJSON{THDPercent: number(s.THDPercent), Iterations: s.Iterations, Residual: number(s.Residual)}
 	for _, h := range s.Output {
-		hj := harmonicJSON{Order: h.Order, Amplitude: number(h.Amplitude)}
+		hj := harmonicJSON{Order: h.Order, Amplitude: number(h.Amplitude), BelowFloor: h.BelowFloor}
 		if h.Order > 0 {
 			hj.Phase = ptr(h.PhaseDeg)
 		}
