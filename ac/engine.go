@@ -197,8 +197,9 @@ func (r *reduction) refinedPoint(nw *smallsignal.Network, ref []float64, probes 
 		for i := 0; i < np; i++ {
 			pt.S[i][j] = sEntry(nw.PortVoltage(i, x), ref, i, j)
 		}
+		g, c := portRows(nw, j)
+		pt.InputImpedance[j] = inputImpedance(nw.PortVoltage(j, x), portCurrent(g, c, w, x))
 	}
-	setImpedances(&pt, ref)
 	for _, p := range probes {
 		pt.Probes = append(pt.Probes, at(x0, p))
 	}
@@ -314,8 +315,11 @@ type pointEval struct {
 	ref  []float64
 	c, y [][]complex128 // per port: excitation in reduced coordinates; solution
 	vrow [][]float64    // port voltage i = vrow[i]·y
-	prow [][]float64    // probe k's voltage = prow[k]·y
-	dy   []complex128
+	// The current the network draws at port i for the excitation there
+	// is (grow[i] + jω crow[i])·y (portRows, in reduced coordinates).
+	grow, crow [][]float64
+	prow       [][]float64 // probe k's voltage = prow[k]·y
+	dy         []complex128
 	// reciprocal: G and C are symmetric, so S is (power waves, real
 	// references): the column of the group delay's output port comes
 	// from its row, which the adjoint solve gives, and that port needs no
@@ -364,6 +368,11 @@ func (r *reduction) points(nw *smallsignal.Network, ref []float64, probes []stri
 			}
 		}
 		ev.vrow = append(ev.vrow, v)
+	}
+	for i := range nw.Ports {
+		g, c := portRows(nw, i)
+		ev.grow = append(ev.grow, combineRows(g, row))
+		ev.crow = append(ev.crow, combineRows(c, row))
 	}
 	for _, name := range probes {
 		ev.prow = append(ev.prow, row(probeIndex(nw, name)))
@@ -435,7 +444,23 @@ func (ev *pointEval) at(hz float64, store *pointStore) (Point, bool) {
 			pt.S[i][out] = pt.S[out][i]
 		}
 	}
-	setImpedances(&pt, ref)
+	w := 2 * math.Pi * hz
+	for i := 0; i < np; i++ {
+		if ev.reciprocal && i == out {
+			// No solve of its own: Z from S, whose diagonal entry came
+			// from the adjoint, unless S is near ±1, where that form
+			// has lost its digits and the port gets its solve after all.
+			sii := pt.S[i][i]
+			if cmplx.Abs(1-sii) > nearUnit && cmplx.Abs(1+sii) > nearUnit {
+				pt.InputImpedance[i] = complex(ref[i], 0) * (1 + sii) / (1 - sii)
+				continue
+			}
+			copy(ev.y[i], ev.c[i])
+			r.solveY(ev.y[i])
+		}
+		v := dotReal(ev.vrow[i], ev.y[i])
+		pt.InputImpedance[i] = inputImpedance(v, dotReal(ev.grow[i], ev.y[i])+complex(0, w)*dotReal(ev.crow[i], ev.y[i]))
+	}
 	for _, p := range ev.prow {
 		pt.Probes = append(pt.Probes, dotReal(p, ev.y[0]))
 	}
@@ -590,4 +615,31 @@ func newSolver(nw *smallsignal.Network, freqsHz []float64, choice engine) solver
 		return newLUSolver(nw)
 	}
 	return r
+}
+
+// nearUnit is how close to ±1 an S-parameter may come before Z_0 (1 +
+// S)/(1 - S) is no longer trusted for the input impedance: it keeps about
+// half of float64's digits there.
+const nearUnit = 1e-8
+
+// combineRows returns Σ_k a_k row(k): the row vector a over the unknowns
+// carried into reduced coordinates.
+func combineRows(a []float64, row func(int) []float64) []float64 {
+	var out []float64
+	for k, v := range a {
+		if v == 0 {
+			continue
+		}
+		r := row(k)
+		if out == nil {
+			out = make([]float64, len(r))
+		}
+		for j, z := range r {
+			out[j] += v * z
+		}
+	}
+	if out == nil {
+		out = row(-1)
+	}
+	return out
 }

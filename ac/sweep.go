@@ -145,6 +145,10 @@ func (ws *Workspace) sweep(nw *smallsignal.Network, freqs []float64, s Settings,
 	}
 	ws.slope = vector(ws.slope, n)
 	dx := ws.slope
+	gRows, cRows := make([][]float64, np), make([][]float64, np)
+	for i := range gRows {
+		gRows[i], cRows[i] = portRows(nw, i)
+	}
 	for _, hz := range freqs[done:] {
 		if err := CheckFrequency(hz); err != nil {
 			return ports, probes, err
@@ -165,8 +169,8 @@ func (ws *Workspace) sweep(nw *smallsignal.Network, freqs []float64, s Settings,
 			for i := 0; i < np; i++ {
 				pt.S[i][j] = sEntry(nw.PortVoltage(i, x[j]), ref, i, j)
 			}
+			pt.InputImpedance[j] = inputImpedance(nw.PortVoltage(j, x[j]), portCurrent(gRows[j], cRows[j], w, x[j]))
 		}
-		setImpedances(&pt, ref)
 		for _, name := range probes {
 			v, _ := nw.NodeVoltage(name, x[0])
 			pt.Probes = append(pt.Probes, v)
@@ -202,15 +206,6 @@ func sEntry(v complex128, ref []float64, i, j int) complex128 {
 		s--
 	}
 	return s
-}
-
-// setImpedances fills a point's input impedances from its S-matrix:
-// Z_i = R_i (1 + S_ii)/(1 - S_ii).
-func setImpedances(pt *Point, ref []float64) {
-	for i := range pt.InputImpedance {
-		sii := pt.S[i][i]
-		pt.InputImpedance[i] = complex(ref[i], 0) * (1 + sii) / (1 - sii)
-	}
 }
 
 // setGroupDelay sets the point's group delay -d(arg S)/dw of S_out,1 from

@@ -303,3 +303,88 @@ func TestRandomNetworks(t *testing.T) {
 	}
 	t.Logf("strategies that converged: %v", strategies)
 }
+
+// TestColdJunctionClosedForm: a silicon junction (I_S = 1e-14 A at 27 °C,
+// E_g = 1.11 eV, p = 3, n = 1) fed from 2 V through 1 kΩ, far below room
+// temperature. At 40 K the junction needs an exponent near 310 and at 10 K
+// near 1280, and I_S(T) itself underflows a float64 at 10 K (about
+// e^-1287 A). The expected point is the Lambert W closed form of Banwell
+// and Jayakumar (Electronics Letters 36(4), 2000), taken in logarithmic
+// form with ln I_S(T) from the temperature law of Gray, Hurst, Lewis,
+// Meyer (5th ed., 2009, ch. 1) written out here:
+//
+//	ln I_S(T) = ln I_S(T0) + (p/n) ln(T/T0) + (q E_g/(n k)) (1/T0 - 1/T)
+//	I = (n V_T/R) W(exp(ln I_S + ln(R/(n V_T)) + V/(n V_T))) - I_S
+//
+// This reproduces the 1.0700 V (40 K) and 1.1035 V (10 K) quoted in
+// issue 13.
+func TestColdJunctionClosedForm(t *testing.T) {
+	const (
+		is0, gap, p, t0 = 1e-14, 1.11, 3.0, 300.15
+		supply, r       = 2.0, 1e3
+		k, q            = 1.380649e-23, 1.602176634e-19 // BIPM 2019, exact
+	)
+	cases := []struct {
+		tempK, volts float64 // volts: the issue's figure, four places
+	}{
+		{77, 0},
+		{40, 1.0700},
+		{10, 1.1035},
+		{4, 0},
+	}
+	for _, c := range cases {
+		t.Run(fmt.Sprintf("%gK", c.tempK), func(t *testing.T) {
+			nt := newNet("cold")
+			m := nt.model("si", is0, 1)
+			m.GapEnergy, m.SaturationExponent, m.MeasuredAtK = gap, p, t0
+			nt.V("Vs", "in", circuit.Ground, supply)
+			nt.R("R1", "in", "a", r).D("D1", "a", circuit.Ground, "si")
+			pt, err := Solve(nt.c, Settings{TemperatureK: c.tempK})
+			if err != nil {
+				t.Fatal(err)
+			}
+			nvt := k * c.tempK / q
+			logIS := math.Log(is0) + p*math.Log(c.tempK/t0) + q*gap/k*(1/t0-1/c.tempK)
+			want := nvt/r*lambertW(logIS+math.Log(r/nvt)+supply/nvt) - math.Exp(logIS)
+			d := pt.Diodes[0]
+			if rel := math.Abs(d.Current-want) / want; rel > 1e-9 {
+				t.Errorf("current %.12g A, closed form %.12g A (relative error %.2g, want < 1e-9)", d.Current, want, rel)
+			}
+			wantV := supply - want*r
+			if math.Abs(d.Voltage-wantV) > 1e-9 {
+				t.Errorf("diode voltage %.9f V, closed form %.9f V", d.Voltage, wantV)
+			}
+			if c.volts != 0 && math.Abs(wantV-c.volts) > 0.5e-4 {
+				t.Errorf("closed form gives %.5f V, the issue quotes %.4f V", wantV, c.volts)
+			}
+			checkKCL(t, nt.c, pt)
+			t.Logf("%g K: ln I_S = %.2f, V_D = %.6f V, I = %.6g A by %s", c.tempK, logIS, wantV, want, pt.Stats.Strategy)
+		})
+	}
+}
+
+// lambertW returns W(z) for z = e^logZ > 0, taking the logarithm so that
+// arguments far beyond float64 (e^300) are fine: it solves
+// w + ln w = logZ by Newton's method (Corless et al., "On the Lambert W
+// function", 1996, for the principal branch on z > 0). This test copy is
+// independent of the library's.
+func lambertW(logZ float64) float64 {
+	w := math.Exp(logZ) // small z: W(z) ≈ z
+	if logZ > 1 {
+		w = logZ - math.Log(logZ)
+	} else if logZ > -2 {
+		w = 0.5
+	}
+	for i := 0; i < 100; i++ {
+		f := w + math.Log(w) - logZ
+		next := w - f/(1+1/w) // Newton on w + ln w
+		if next <= 0 {
+			next = w / 2
+		}
+		if math.Abs(next-w) <= 1e-16*w {
+			return next
+		}
+		w = next
+	}
+	return w
+}

@@ -235,6 +235,9 @@ func (w *Workspace) New(p *bias.Point) (*Network, error) {
 	if n == 0 {
 		return nil, fmt.Errorf("smallsignal: the circuit has no unknowns")
 	}
+	if n > MaxUnknowns {
+		return nil, &TooLargeError{Unknowns: n}
+	}
 	nw.G = zeroMatrix(nw.G, n)
 	nw.C = zeroMatrix(nw.C, n)
 	for _, t := range conds {
@@ -466,4 +469,24 @@ func (nw *Network) WithReferences(z []float64) *Network {
 		out.Ports[i].Impedance = z[i]
 	}
 	return &out
+}
+
+// MaxUnknowns bounds the unknowns of a network New builds. The network
+// and the analyses on it hold dense n×n matrices: G, C and their linear
+// parts here (4 × 8n² bytes), a complex LU per frequency (16n²) and the
+// reduced sweep engines' bases and forms (about 6 × 8n² more), so that at
+// this bound every analysis stays within about 1 GB (12 × 8 × 3000² is
+// 864 MB). The DC solve, banded, takes circuits far larger.
+const MaxUnknowns = 3000
+
+// TooLargeError is New's refusal of a network beyond MaxUnknowns, before
+// anything is allocated for it.
+type TooLargeError struct {
+	Unknowns int
+}
+
+func (e *TooLargeError) Error() string {
+	gb := 12 * 8 * float64(e.Unknowns) * float64(e.Unknowns) / 1e9
+	return fmt.Sprintf("smallsignal: the network has %d unknowns (nodes, internal diode nodes and branch currents); the small-signal analyses would hold dense matrices of that order, about %.3g GB; accepted: up to %d unknowns, which keeps them within about 1 GB (the DC bias solve takes larger circuits)",
+		e.Unknowns, gb, MaxUnknowns)
 }

@@ -209,6 +209,10 @@ func ReadCSV(r io.Reader, opts CSVOptions) (*Waveform, error) {
 				Msg: fmt.Sprintf("this line gives a sample rate of %.7g Hz but the time column %.7g Hz; accepted: a sample interval that agrees with the time column to 0.1 %%", fileRate, rate)}
 		}
 		w.StartS, w.SampleRateHz = start, rate
+		// A time stamp is known to the spacing of float64 numbers at its
+		// size; the rate, from the span, to that over the span.
+		last := max(math.Abs(times[0]), math.Abs(times[len(times)-1]))
+		w.RateUncertainty = (math.Nextafter(last, math.Inf(1)) - last) / (times[len(times)-1] - times[0])
 	}
 	return w, nil
 }

@@ -171,3 +171,35 @@ func BenchmarkReadCSV100k(b *testing.B) {
 		}
 	}
 }
+
+// TestTimeOffsetResolution: time stamps written with an offset of 1e9 s
+// and a step of 1 µs are resolved by float64 only to 1.2e-7 s (the
+// spacing of doubles at 1e9, IEEE 754 binary64), so the sample rate from
+// the span can be off by about 1.2e-7 s / 1 ms over a 1000-sample record.
+// The reader reports that uncertainty, and the rate it reads lies within
+// it; the same record from zero is resolved to rounding (issue 13,
+// item 14).
+func TestTimeOffsetResolution(t *testing.T) {
+	for _, offset := range []float64{0, 1e9} {
+		var b strings.Builder
+		b.WriteString("time,voltage\n")
+		for i := 0; i < 1000; i++ {
+			fmt.Fprintf(&b, "%.17g,%.9g\n", offset+float64(i)*1e-6, math.Sin(2*math.Pi*float64(i)/100))
+		}
+		w, err := ReadCSV(strings.NewReader(b.String()), CSVOptions{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		ulp := math.Nextafter(offset+999e-6, 2e9) - (offset + 999e-6)
+		want := ulp / 999e-6
+		if math.Abs(w.RateUncertainty-want) > 1e-3*want {
+			t.Errorf("offset %g s: rate uncertainty %g, want %g", offset, w.RateUncertainty, want)
+		}
+		if err := math.Abs(w.SampleRateHz-1e6) / 1e6; err > w.RateUncertainty+1e-15 {
+			t.Errorf("offset %g s: rate %g Hz is off by %g, beyond the stated %g", offset, w.SampleRateHz, err, w.RateUncertainty)
+		}
+		if warned := w.RateUncertainty > RateUncertaintyLimit; warned != (offset != 0) {
+			t.Errorf("offset %g s: uncertainty %g, warned %v", offset, w.RateUncertainty, warned)
+		}
+	}
+}

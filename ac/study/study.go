@@ -80,7 +80,8 @@ type Settings struct {
 	// and tangential sensitivity (ac.Detector) with the carrier at the
 	// first distortion frequency.
 	Detector *DetectorSettings
-	// Workers running steps in parallel; zero means all cores.
+	// Workers running steps in parallel; zero means all cores. No more
+	// run than there are chains of steps to share out.
 	Workers int
 	// Progress, when not nil, is called after each step with the count
 	// done; calls come from one goroutine at a time.
@@ -242,6 +243,9 @@ func Run(c *circuit.Circuit, s Settings) (*Result, error) {
 	if workers <= 0 {
 		workers = runtime.GOMAXPROCS(0)
 	}
+	// More workers than chains would only wait: each holds a workspace,
+	// so a huge count costs memory and time for nothing.
+	workers = min(workers, len(chains))
 	// Workers take the next chain by an atomic counter: no goroutine hands
 	// chains out, so a worker never waits for one to be scheduled.
 	var next atomic.Int64

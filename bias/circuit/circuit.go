@@ -151,7 +151,7 @@ type Circuit struct {
 	// Overrides lists the values set from outside the file (WithOverride),
 	// in the order they were applied.
 	Overrides []Override
-	// Cautions lists values that are legal but very likely slips (see
-	// Caution), in file order.
-	Cautions []Caution
+	// Warnings lists what the loader found legal but probably not meant,
+	// in file order.
+	Warnings []Warning
 }

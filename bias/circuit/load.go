@@ -7,6 +7,7 @@ import (
 	"io"
 	"os"
 	"regexp"
+	"sort"
 	"strconv"
 	"strings"
 	"unicode/utf8"
@@ -58,7 +59,11 @@ func Parse(file string, data []byte) (*Circuit, error) {
 	if err := finish(l.errs); err != nil {
 		return nil, err
 	}
-	c.Cautions = plausibility(c, l.written)
+	c.Warnings = append(c.Warnings, plausibility(c, l.written)...)
+	sort.SliceStable(c.Warnings, func(i, j int) bool {
+		a, b := c.Warnings[i], c.Warnings[j]
+		return a.Line < b.Line || a.Line == b.Line && a.Col < b.Col
+	})
 	return c, nil
 }
 
@@ -349,6 +354,7 @@ func (l *loader) circuit(root *yaml.Node) *Circuit {
 	}
 	if e, ok := top["parts"]; ok && l.partsComplete && l.portsComplete {
 		l.topology(e.key)
+		l.wiring()
 	}
 	return l.c
 }

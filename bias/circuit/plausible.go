@@ -8,23 +8,6 @@ import (
 	"qpoint/bias/si"
 )
 
-// Caution is a value in a circuit file that is legal but very likely a
-// slip: a capacitor of 10 F in a gigahertz circuit, a junction capacitance
-// of 0.15 F, a bias resistor of 1 mΩ. The file loads; the caution names
-// the place and the value most likely meant.
-type Caution struct {
-	Pos     Pos
-	Part    string // the part or diode model
-	Key     string // "value", or the model key
-	Message string
-}
-
-// Format formats the caution as FILE:LINE:COL: caution: MESSAGE, for
-// printing beside errors.
-func (c Caution) Format(file string) string {
-	return fmt.Sprintf("%s:%d:%d: caution: %s", file, c.Pos.Line, c.Pos.Col, c.Message)
-}
-
 // written is a value as the file wrote it, kept for the plausibility
 // rules.
 type written struct {
@@ -98,13 +81,14 @@ func mantissa(text string) (float64, bool) {
 	return v, problem == ""
 }
 
-// plausibility applies the rules to the values the file wrote.
-func plausibility(c *Circuit, values []written) []Caution {
-	var out []Caution
+// plausibility applies the rules to the values the file wrote, and
+// returns a Warning of kind Implausible for each value that breaks one.
+func plausibility(c *Circuit, values []written) []Warning {
+	var out []Warning
 	lo, hi := c.frequencyRange()
 	centre := math.Sqrt(lo * hi)
 	add := func(w written, format string, args ...any) {
-		out = append(out, Caution{Pos: w.pos, Part: w.owner, Key: w.key, Message: fmt.Sprintf(format, args...)})
+		out = append(out, Warning{File: c.File, Line: w.pos.Line, Col: w.pos.Col, Kind: Implausible, Message: fmt.Sprintf(format, args...)})
 	}
 	for _, w := range values {
 		m, ok := mantissa(w.text)

@@ -54,8 +54,8 @@ analysis:
 	if err != nil {
 		t.Fatal(err)
 	}
-	if len(c.Cautions) != 0 {
-		t.Errorf("sensible values drew cautions: %+v", c.Cautions)
+	if len(c.Warnings) != 0 {
+		t.Errorf("sensible values drew cautions: %+v", c.Warnings)
 	}
 	for _, k := range cases {
 		vals := append([]string(nil), sensible...)
@@ -64,8 +64,8 @@ analysis:
 		if err != nil {
 			t.Fatal(err)
 		}
-		if len(c.Cautions) != 1 || c.Cautions[0].Pos.Line != k.line || !strings.Contains(c.Cautions[0].Message, k.want) {
-			t.Errorf("%s: cautions %+v; want one at line %d saying %q", k.slip, c.Cautions, k.line, k.want)
+		if len(c.Warnings) != 1 || c.Warnings[0].Line != k.line || !strings.Contains(c.Warnings[0].Message, k.want) {
+			t.Errorf("%s: cautions %+v; want one at line %d saying %q", k.slip, c.Warnings, k.line, k.want)
 		}
 	}
 	files, _ := filepath.Glob("../../testdata/demo/*.yaml")
@@ -75,8 +75,8 @@ analysis:
 		if err != nil {
 			t.Fatal(err)
 		}
-		if len(c.Cautions) != 0 {
-			t.Errorf("%s: cautions %+v on a circuit written on purpose", f, c.Cautions)
+		if len(c.Warnings) != 0 {
+			t.Errorf("%s: cautions %+v on a circuit written on purpose", f, c.Warnings)
 		}
 	}
 }

@@ -93,8 +93,10 @@ func loadCircuit(warn io.Writer, path string, sets []string, temperature string)
 		}
 		return nil, inputError(err)
 	}
-	for _, x := range c.Cautions {
-		fmt.Fprintf(warn, "qpoint: %s\n", x.Format(path))
+	// Legal but probably not meant: said on standard error, so that
+	// every command shows it and no JSON document changes shape.
+	for _, w := range c.Warnings {
+		fmt.Fprintf(warn, "qpoint: caution: %s\n", w)
 	}
 	for _, s := range sets {
 		if c, err = c.WithOverride(s); err != nil {
@@ -181,11 +183,13 @@ func writeBias(w io.Writer, p *bias.Point) {
 		t.write(w)
 	}
 
-	if len(p.Warnings) > 0 {
-		fmt.Fprintf(w, "\nCautions\n")
-		for _, x := range p.Warnings {
-			fmt.Fprintf(w, "  ! %s: %s\n", x.Part, x.Message)
+	header := "\nCautions\n"
+	for _, x := range p.Warnings {
+		if x.Kind == bias.Wiring {
+			continue // said on standard error when the file loaded
 		}
+		fmt.Fprintf(w, "%s  ! %s: %s\n", header, x.Part, x.Message)
+		header = ""
 	}
 	fmt.Fprintln(w)
 }

@@ -100,6 +100,9 @@ func resolveDistortion(warn io.Writer, path string, fl *distortionFlags) (*disto
 	if err != nil {
 		return nil, err
 	}
+	if err := checkOutputsEarly(fl.plotsDir); err != nil {
+		return nil, err
+	}
 	return resolveDistortionFor(c, fl, nil)
 }
 
@@ -148,7 +151,7 @@ func distortionDrive(c *circuit.Circuit, fl *distortionFlags) (*distortionSetup,
 		return nil, inputError(fmt.Errorf("no signal frequency: give --frequency (e.g. 2.45GHz) or analysis.distortion.frequency in the file"))
 	}
 	if err := ac.CheckFrequency(freq); err != nil {
-		return nil, inputError(fmt.Errorf("flag --frequency: %w", err))
+		return nil, inputError(fmt.Errorf("%s%w", origin(c, "frequency", fl.frequency != "", def.Pos), err))
 	}
 	lv := def.Level
 	haveLevel := def.Set
@@ -169,6 +172,13 @@ func distortionDrive(c *circuit.Circuit, fl *distortionFlags) (*distortionSetup,
 		// load: half its EMF.
 		s.levelDBm = ac.EMFToDBm(2*lv.PeakVolts, z0)
 	}
+	// A peak voltage within the voltage range can still be a power
+	// beyond the level range at the port's impedance (1 MV into 50 Ω is
+	// +130 dBm): the limits hold for the level, however it is written.
+	if !(s.levelDBm >= circuit.MinLevelDBm && s.levelDBm <= circuit.MaxLevelDBm) {
+		return nil, inputError(fmt.Errorf("%s%s at port %s's %s is %.4g dBm; accepted: %g dBm to %+g dBm of available power (a peak voltage into a matched load of that port)",
+			origin(c, "level", fl.level != "", def.Pos), levelText(lv), in, si.Format(z0, "Ω", 4), s.levelDBm, float64(circuit.MinLevelDBm), float64(circuit.MaxLevelDBm)))
+	}
 	second := def.SecondToneHz
 	if fl.secondTone == "none" {
 		second = 0
@@ -179,7 +189,7 @@ func distortionDrive(c *circuit.Circuit, fl *distortionFlags) (*distortionSetup,
 	}
 	if second != 0 {
 		if err := ac.CheckFrequency(second); err != nil {
-			return nil, inputError(fmt.Errorf("flag --second-tone: %w", err))
+			return nil, inputError(fmt.Errorf("%s%w", origin(c, "second-tone", fl.secondTone != "", def.Pos), err))
 		}
 		if second == freq {
 			return nil, inputError(fmt.Errorf("flag --second-tone: must differ from the signal frequency %s", si.Format(freq, "Hz", 6)))
@@ -713,9 +723,30 @@ func levelSweepTable(pts []ac.LevelPoint) *table {
 	t := &table{title: "Level sweep (waveform)", header: []string{"input", "fundamental", "2nd", "3rd", "DC shift", "THD"}}
 	for _, p := range pts {
 		o := p.Steady.Output
-		t.add(fmt.Sprintf("%.1f dBm", p.LevelDBm), si.Format(o[1].Amplitude, "V", 4),
-			waveDBc(20*math.Log10(o[2].Amplitude/o[1].Amplitude)), waveDBc(20*math.Log10(o[3].Amplitude/o[1].Amplitude)),
-			si.Format(o[0].Amplitude, "V", 4), fmt.Sprintf("%.3g %%", p.Steady.THDPercent))
+		floor := "< " + si.Format(p.Steady.NoiseFloor, "V", 2)
+		cell := func(h ac.Harmonic, text string) string {
+			if h.BelowFloor || o[1].BelowFloor {
+				return "below floor"
+			}
+			return text
+		}
+		fund, shift := si.Format(o[1].Amplitude, "V", 4), si.Format(o[0].Amplitude, "V", 4)
+		if o[1].BelowFloor {
+			fund = floor
+		}
+		if o[0].BelowFloor {
+			shift = "below floor"
+		}
+		thd := fmt.Sprintf("%.3g %%", p.Steady.THDPercent)
+		switch {
+		case p.Steady.THDBelowPercent > 0:
+			thd = fmt.Sprintf("< %.2g %%", p.Steady.THDBelowPercent)
+		case math.IsNaN(p.Steady.THDPercent):
+			thd = "—"
+		}
+		t.add(fmt.Sprintf("%.1f dBm", p.LevelDBm), fund,
+			cell(o[2], waveDBc(20*math.Log10(o[2].Amplitude/o[1].Amplitude))), cell(o[3], waveDBc(20*math.Log10(o[3].Amplitude/o[1].Amplitude))),
+			shift, thd)
 	}
 	return t
 }
@@ -822,4 +853,22 @@ func writeJunctionDrive(w io.Writer, s *distortionSetup, e *ac.Estimate) {
 	if len(parts) > 0 {
 		fmt.Fprintf(w, "  junction drive x = |v|/(n V_T) at f1: %s\n", strings.Join(parts, ", "))
 	}
+}
+
+// origin names where a setting came from in a message: the flag when the
+// user gave it, else the file's analysis.distortion section at its
+// FILE:LINE:COL.
+func origin(c *circuit.Circuit, flag string, fromFlag bool, at circuit.Pos) string {
+	if fromFlag {
+		return "flag --" + flag + ": "
+	}
+	return fmt.Sprintf("%s:%d:%d: analysis.distortion.%s: ", c.File, at.Line, at.Col, strings.ReplaceAll(flag, "-", "_"))
+}
+
+// levelText writes a level as the user gave it.
+func levelText(lv circuit.Level) string {
+	if lv.IsPower {
+		return fmt.Sprintf("%g dBm", lv.DBm)
+	}
+	return si.Format(lv.PeakVolts, "V", 4) + " peak"
 }

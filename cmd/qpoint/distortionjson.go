@@ -72,6 +72,8 @@ type harmonicJSON struct {
 	Order     int     `json:"order"`
 	Amplitude number  `json:"amplitude"`
 	Phase     *number `json:"phase,omitempty"`
+	// BelowFloor marks a waveform reading below the solver's floor.
+	BelowFloor bool `json:"below_floor,omitempty"`
 }
 
 // stressJSON is a diode's extremes over the period of a steady state.
@@ -175,7 +177,7 @@ func waveformJSONOf(s *ac.Steady) *waveformJSON {
 		j.Diodes = append(j.Diodes, stressJSON{d.Name, number(d.PeakCurrent), number(d.PeakReverseVoltage), number(d.MeanPower)})
 	}
 	for _, h := range s.Output {
-		hj := harmonicJSON{Order: h.Order, Amplitude: number(h.Amplitude)}
+		hj := harmonicJSON{Order: h.Order, Amplitude: number(h.Amplitude), BelowFloor: h.BelowFloor}
 		if h.Order > 0 {
 			hj.Phase = ptr(h.PhaseDeg)
 		}

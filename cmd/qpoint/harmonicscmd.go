@@ -235,6 +235,11 @@ func writeWaveformHarmonics(w io.Writer, path string, wf *measure.Waveform, r *m
 	}
 	fmt.Fprintf(w, "  fundamental  %s, %s; %.2f periods captured\n", si.Format(r.FundamentalHz, "Hz", 7), how, r.Periods)
 	fmt.Fprintf(w, "  window       %s\n", r.Window)
+	if u := wf.RateUncertainty; u > measure.RateUncertaintyLimit {
+		fmt.Fprintf(w, "  ! caution: the time stamps start at %s, where float64 resolves only %s, %.2g of the %s step: the sample rate and every frequency here can be off by %.2g (%s at the fundamental); subtract the offset from the time column\n",
+			si.Format(wf.StartS, "s", 4), si.Format(u*(float64(r.Samples-1)/r.SampleRateHz), "s", 2),
+			u*float64(r.Samples-1), si.Format(1/r.SampleRateHz, "s", 3), u, si.Format(u*r.FundamentalHz, "Hz", 2))
+	}
 
 	t := &table{title: "Harmonics", header: []string{"order", "frequency", "amplitude", "dBc", "phase °"}}
 	absent := 0
@@ -311,6 +316,9 @@ type waveformHarmonicsJSON struct {
 	NoiseRMS              number                 `json:"noise_rms"`
 	NoiseDensity          number                 `json:"noise_density"`
 	Prediction            *waveformJSON          `json:"prediction,omitempty"`
+	// SampleRateUncertainty is the relative uncertainty of the sample
+	// rate from the time column's resolution (0 when given outright).
+	SampleRateUncertainty number `json:"sample_rate_uncertainty"`
 }
 
 func waveformHarmonicsDocument(path string, w *measure.Waveform, r *measure.Result) *waveformHarmonicsJSON {
@@ -320,6 +328,7 @@ func waveformHarmonicsDocument(path string, w *measure.Waveform, r *measure.Resu
 		Periods: number(r.Periods), THDPercent: number(r.THDPercent), THDdB: number(r.THDdB),
 		SINADdB: number(r.SINADdB), NoiseAndDistortionRMS: number(r.NoiseDistortionRMS),
 		NoiseRMS: number(r.NoiseRMS), NoiseDensity: number(r.NoiseDensity),
+		SampleRateUncertainty: number(w.RateUncertainty),
 	}
 	for _, h := range r.Harmonics {
 		d.Harmonics = append(d.Harmonics, waveformHarmonicJSON{Order: h.Order, Frequency: number(h.FrequencyHz),

@@ -4,7 +4,9 @@ import (
 	"bytes"
 	"encoding/json"
 	"errors"
+	"fmt"
 	"math"
+	"os"
 	"path/filepath"
 	"regexp"
 	"strings"
@@ -239,5 +241,27 @@ func TestHarmonicsInstrumentExport(t *testing.T) {
 		if h.Order == 3 && (h.DBc == nil || math.Abs(*h.DBc+40) > 0.01) {
 			t.Errorf("third harmonic %v dBc, want -40 dBc", h.DBc)
 		}
+	}
+}
+
+// TestHarmonicsTimeOffsetCaution: a record whose time stamps carry an
+// offset of 1e9 s with a 1 µs step says that its frequencies can be off,
+// and by how much (issue 13, item 14).
+func TestHarmonicsTimeOffsetCaution(t *testing.T) {
+	var b strings.Builder
+	b.WriteString("time,voltage\n")
+	for i := 0; i < 1000; i++ {
+		fmt.Fprintf(&b, "%.17g,%.9g\n", 1e9+float64(i)*1e-6, math.Sin(2*math.Pi*float64(i)/100))
+	}
+	file := filepath.Join(t.TempDir(), "offset.csv")
+	if err := os.WriteFile(file, []byte(b.String()), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	out, errs, code := runCLI(t, "harmonics", file)
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	if !strings.Contains(out, "can be off by 0.00012") {
+		t.Errorf("no caution on the time offset:\n%s", out)
 	}
 }

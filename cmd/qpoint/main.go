@@ -10,6 +10,9 @@ import (
 	"io"
 	"os"
 	"runtime/debug"
+	"strings"
+	"unicode"
+	"unicode/utf8"
 
 	"github.com/spf13/cobra"
 )
@@ -68,9 +71,16 @@ func run(args []string, stdout, stderr io.Writer) (code int) {
 			code = exitAnalysis
 		}
 	}()
-	root := newRoot(stdout, stderr)
+	out := &checkedWriter{w: &escapingWriter{w: stdout}}
+	stderr = &escapingWriter{w: stderr}
+	root := newRoot(out, stderr)
 	root.SetArgs(args)
 	err := root.Execute()
+	if err == nil && out.err != nil {
+		// A table or document that did not reach its reader is a
+		// failure, whatever the analysis did (a closed or full output).
+		err = analysisError(fmt.Errorf("writing standard output: %w", out.err))
+	}
 	if err == nil {
 		return exitOK
 	}
@@ -124,6 +134,77 @@ func version() string {
 	return v + ", " + info.GoVersion
 }
 
+// checkedWriter passes writes on and keeps the first error, so that a
+// command printing many lines with fmt.Fprintf cannot lose one unseen.
+type checkedWriter struct {
+	w   io.Writer
+	err error
+}
+
+func (c *checkedWriter) Write(p []byte) (int, error) {
+	if c.err != nil {
+		return 0, c.err
+	}
+	n, err := c.w.Write(p)
+	if err != nil {
+		c.err = err
+	}
+	return n, err
+}
+
+// escapingWriter passes text on with control characters and bidirectional
+// overrides written as visible escapes (\x07, \u202e): a name in a circuit
+// file or a flag can hold them (YAML's "\e[2J" is an escape sequence), and
+// printed raw they would act on the terminal or hide what a line says.
+// Tabs and line breaks pass unchanged. A character split between two
+// writes is held until the next.
+type escapingWriter struct {
+	w     io.Writer
+	carry []byte
+	buf   []byte
+}
+
+func (e *escapingWriter) Write(p []byte) (int, error) {
+	data := p
+	if len(e.carry) > 0 {
+		data = append(e.carry, p...)
+		e.carry = nil
+	}
+	out := e.buf[:0]
+	for i := 0; i < len(data); {
+		r, size := utf8.DecodeRune(data[i:])
+		if r == utf8.RuneError && size <= 1 && !utf8.FullRune(data[i:]) {
+			e.carry = append([]byte(nil), data[i:]...)
+			break
+		}
+		if hidden(r) && !(size == 1 && r == utf8.RuneError && data[i] >= 0x80) {
+			if r < 0x100 {
+				out = fmt.Appendf(out, "\\x%02x", r)
+			} else {
+				out = fmt.Appendf(out, "\\u%04x", r)
+			}
+		} else {
+			out = append(out, data[i:i+size]...)
+		}
+		i += size
+	}
+	e.buf = out
+	if _, err := e.w.Write(out); err != nil {
+		return 0, err
+	}
+	return len(p), nil
+}
+
+// hidden reports whether r is a control character other than tab and line
+// feed, or a character that reorders or hides text (Unicode's format
+// characters: bidirectional overrides, zero-width spaces and joiners).
+func hidden(r rune) bool {
+	if r == '\t' || r == '\n' {
+		return false
+	}
+	return unicode.IsControl(r) || unicode.Is(unicode.Cf, r)
+}
+
 func newRoot(stdout, stderr io.Writer) *cobra.Command {
 	root := &cobra.Command{
 		Use:   "qpoint",
@@ -152,6 +233,17 @@ them, and let the parts' ratings and your local practice govern.`,
 	})
 	root.Version = version()
 	root.SetVersionTemplate("qpoint {{.Version}}\n")
+	root.SetHelpCommand(&cobra.Command{
+		Use:   "help [command]",
+		Short: "Help about any command",
+		RunE: func(c *cobra.Command, args []string) error {
+			target, rest, err := root.Find(args)
+			if err != nil || target == nil || len(rest) > 0 {
+				return inputError(fmt.Errorf("help: no command %q; accepted: one of the commands `qpoint --help` lists", strings.Join(args, " ")))
+			}
+			return target.Help()
+		},
+	})
 	root.AddCommand(newBiasCmd(), newResponseCmd(), newDistortionCmd(), newStudyCmd(), newNoiseCmd(), newReportCmd(), newHarmonicsCmd(), newDemoCmd())
 	root.AddCommand(newFitCmd())
 	return root

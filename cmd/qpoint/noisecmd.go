@@ -318,6 +318,9 @@ func runNoise(cmd *cobra.Command, path string, fl *noiseFlags) error {
 	if err != nil {
 		return err
 	}
+	if err := checkOutputsEarly(fl.plotsDir, fl.csvPath); err != nil {
+		return err
+	}
 	s, err := resolveNoiseFor(c, fl, nil)
 	if err != nil {
 		return err

@@ -43,6 +43,9 @@ inline and fetches nothing: mail it, archive it, print it.`,
 			if err != nil {
 				return err
 			}
+			if err := checkOutputsEarly("", outPath); err != nil {
+				return err
+			}
 			doc, err := buildReport(c, temperature)
 			if err != nil {
 				return err
@@ -86,8 +89,8 @@ func buildReport(c *circuit.Circuit, temperature string) (*report.Document, erro
 	if l := overridesLine(c); l != "" {
 		doc.Subtitle += " · values set for this run: " + l
 	}
-	for _, x := range c.Cautions {
-		doc.Cautions = append(doc.Cautions, fmt.Sprintf("line %d of the file: %s", x.Pos.Line, x.Message))
+	for _, x := range c.Warnings {
+		doc.Cautions = append(doc.Cautions, fmt.Sprintf("line %d of the file: %s", x.Line, x.Message))
 	}
 	for _, w := range p.Warnings {
 		doc.Cautions = append(doc.Cautions, w.Part+": "+w.Message)

@@ -1,7 +1,9 @@
 package main
 
 import (
+	"bufio"
 	"encoding/csv"
+	"encoding/json"
 	"fmt"
 	"io"
 	"math"
@@ -172,6 +174,9 @@ func runResponse(cmd *cobra.Command, path string, fl *responseFlags) error {
 	if err != nil {
 		return err
 	}
+	if err := checkOutputsEarly(fl.plotsDir, fl.csvPath, fl.touchstone); err != nil {
+		return err
+	}
 	if len(c.Ports) == 0 {
 		return inputError(fmt.Errorf("%s: the circuit has no ports; a response needs at least one (add a `ports:` list)", path))
 	}
@@ -210,16 +215,31 @@ func runResponse(cmd *cobra.Command, path string, fl *responseFlags) error {
 		}
 	}
 	var r *ac.Response
-	if fl.plotsDir == "" && !fl.asJSON {
-		// Files and a table only: the points stream to the files, and
-		// the sweep keeps just the table's rows, whatever its length.
+	out := cmd.OutOrStdout()
+	if fl.plotsDir == "" {
+		// Files, JSON and a table only: the points stream to the files
+		// and standard output, and the sweep keeps just the table's
+		// rows, whatever its length.
 		if err := refuseInputs(fl.csvPath, fl.touchstone); err != nil {
 			return err
 		}
-		if r, err = streamResponse(nw, grid, ac.Settings{Reference: ref}, c, fl, format); err != nil {
+		var jsonOut io.Writer
+		if fl.asJSON {
+			jsonOut = out
+		}
+		if r, err = streamResponse(nw, grid, ac.Settings{Reference: ref}, c, fl, format, jsonOut); err != nil {
 			return err
 		}
+		if fl.asJSON {
+			return nil
+		}
 	} else {
+		// Figures need the whole sweep in memory: refuse one that would
+		// not fit rather than run out of it.
+		if need := sweepBytes(len(grid), len(c.Ports), len(c.Probes)); need > maxHeldSweepBytes {
+			return inputError(fmt.Errorf("flag --plots: %d points of %d ports take about %s in memory to draw, more than the %s allowed; accepted: at most %d points with --plots (files and --json stream any number)",
+				len(grid), len(c.Ports), si.Format(float64(need), "B", 2), si.Format(maxHeldSweepBytes, "B", 2), maxHeldSweepBytes/sweepBytes(1, len(c.Ports), len(c.Probes))))
+		}
 		if r, err = ac.Run(nw, grid, ac.Settings{Reference: ref}); err != nil {
 			return analysisError(err)
 		}
@@ -248,7 +268,6 @@ func runResponse(cmd *cobra.Command, path string, fl *responseFlags) error {
 			}
 		}
 	}
-	out := cmd.OutOrStdout()
 	if fl.asJSON {
 		return writeJSON(out, responseDocument(r))
 	}
@@ -406,7 +425,7 @@ func (rw *responseCSV) close() error {
 // Touchstone files flags name as it comes, each whole or not at all, and
 // returns the response with only the points the table shows: the memory a
 // sweep takes does not grow with its length.
-func streamResponse(nw *smallsignal.Network, grid []float64, s ac.Settings, c *circuit.Circuit, fl *responseFlags, format touchstone.Format) (*ac.Response, error) {
+func streamResponse(nw *smallsignal.Network, grid []float64, s ac.Settings, c *circuit.Circuit, fl *responseFlags, format touchstone.Format, jsonOut io.Writer) (*ac.Response, error) {
 	r := &ac.Response{Probes: c.Probes}
 	for i, p := range nw.Ports {
 		z := p.Impedance
@@ -434,8 +453,19 @@ func streamResponse(nw *smallsignal.Network, grid []float64, s ac.Settings, c *c
 				return err
 			}
 		}
+		var jw *responseJSONWriter
+		if jsonOut != nil {
+			if jw, err = newResponseJSONWriter(jsonOut, r.Ports); err != nil {
+				return err
+			}
+		}
 		k := 0
 		_, _, sweepErr = ac.Sweep(nw, grid, s, func(pt ac.Point) error {
+			if jw != nil {
+				if err := jw.write(pt, r.Probes); err != nil {
+					return err
+				}
+			}
 			if rw != nil {
 				if err := rw.write(pt); err != nil {
 					return err
@@ -454,6 +484,11 @@ func streamResponse(nw *smallsignal.Network, grid []float64, s ac.Settings, c *c
 		})
 		if sweepErr != nil {
 			return sweepErr
+		}
+		if jw != nil {
+			if err := jw.close(); err != nil {
+				return err
+			}
 		}
 		if rw != nil {
 			if err := rw.close(); err != nil {
@@ -609,4 +644,63 @@ func networkJSON(s [][]complex128, zin []complex128, probeNames []string, probes
 		}
 	}
 	return js, jz, jp
+}
+
+// responseJSONWriter writes the response document a point at a time, the
+// same document responseDocument builds whole.
+type responseJSONWriter struct {
+	w      *bufio.Writer
+	points int
+}
+
+func newResponseJSONWriter(w io.Writer, ports []ac.PortInfo) (*responseJSONWriter, error) {
+	var js []portJSON
+	for _, p := range ports {
+		js = append(js, portJSON{p.Name, number(p.Impedance)})
+	}
+	head, err := json.MarshalIndent(js, "  ", "  ")
+	if err != nil {
+		return nil, err
+	}
+	bw := bufio.NewWriter(w)
+	fmt.Fprintf(bw, "{\n  \"ports\": %s,\n  \"points\": [", head)
+	return &responseJSONWriter{w: bw}, nil
+}
+
+func (jw *responseJSONWriter) write(pt ac.Point, probes []string) error {
+	j := responsePointJSON{Frequency: number(pt.FrequencyHz), GroupDelay: number(pt.GroupDelay)}
+	j.S, j.InputImpedance, j.Probes = networkJSON(pt.S, pt.InputImpedance, probes, pt.Probes)
+	b, err := json.MarshalIndent(j, "    ", "  ")
+	if err != nil {
+		return err
+	}
+	sep := ",\n    "
+	if jw.points == 0 {
+		sep = "\n    "
+	}
+	jw.points++
+	jw.w.WriteString(sep)
+	_, err = jw.w.Write(b)
+	return err
+}
+
+func (jw *responseJSONWriter) close() error {
+	if jw.points > 0 {
+		jw.w.WriteString("\n  ")
+	}
+	jw.w.WriteString("]\n}\n")
+	return jw.w.Flush()
+}
+
+// maxHeldSweepBytes bounds the memory a sweep held whole (for figures)
+// may take, so that every documented input stays within about 1 GB.
+const maxHeldSweepBytes = 400 << 20
+
+// sweepBytes estimates the memory of points held sweep points of a
+// network with the given ports and probes: the S-matrix, the input
+// impedances and probe voltages (16 bytes each), their slice headers and
+// the point itself, and what the figures derive from each.
+func sweepBytes(points, ports, probes int) int {
+	perPoint := 16*(ports*ports+ports+probes) + 24*(ports+3) + 64 + 200
+	return points * perPoint
 }

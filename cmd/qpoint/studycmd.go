@@ -184,6 +184,9 @@ func resolveStudy(warn io.Writer, path string, fl *studyFlags) (*studySetup, err
 	if err != nil {
 		return nil, err
 	}
+	if err := checkOutputsEarly(fl.plotsDir, fl.csvPath); err != nil {
+		return nil, err
+	}
 	return resolveStudyFor(c, fl)
 }
 
@@ -194,6 +197,9 @@ func resolveStudyFor(c *circuit.Circuit, fl *studyFlags) (*studySetup, error) {
 	var err error
 	def := c.Analysis.Study
 	s := &studySetup{c: c}
+	if !(fl.tolerance > 0 && fl.tolerance < 1) {
+		return nil, inputError(fmt.Errorf("flag --tolerance: %g; accepted: a fraction of the range above 0 and below 1, e.g. 1e-6", fl.tolerance))
+	}
 	// The file's defaults fill what the flags leave out, when the flags
 	// vary the same thing (or nothing).
 	if fl.vary == "" && def.Set {
@@ -406,8 +412,8 @@ func resolveStudyFor(c *circuit.Circuit, fl *studyFlags) (*studySetup, error) {
 		}
 		s.settings.Detector = &study.DetectorSettings{VideoFromHz: lo, VideoToHz: hi}
 	}
-	if fl.workers < 0 {
-		return nil, inputError(fmt.Errorf("flag --workers: %d; accepted: 0 (all cores) or more", fl.workers))
+	if fl.workers < 0 || fl.workers > maxWorkers {
+		return nil, inputError(fmt.Errorf("flag --workers: %d; accepted: 0 (all cores) to %d", fl.workers, maxWorkers))
 	}
 	s.settings.Workers = fl.workers
 	return s, nil
@@ -771,3 +777,7 @@ func studyTable(r *study.Result, cols []column) *table {
 	}
 	return t
 }
+
+// maxWorkers bounds --workers: far more than any machine's cores, and few
+// enough that their workspaces fit in memory.
+const maxWorkers = 1024
