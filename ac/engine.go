@@ -126,6 +126,14 @@ const schurPointsPerUnknown = 3
 // maxShiftedDecades, and the Schur form before both for sweeps long
 // enough to repay it (schurPointsPerUnknown).
 func reduceAccurate(nw *smallsignal.Network, lo, hi float64, points int, accurate func(*reduction) bool) *reduction {
+	r, _ := reduceAccurateTried(nw, lo, hi, points, accurate)
+	return r
+}
+
+// reduceAccurateTried is reduceAccurate that also returns the forms it
+// tried and refused (their reduction failed, or their accuracy check).
+func reduceAccurateTried(nw *smallsignal.Network, lo, hi float64, points int, accurate func(*reduction) bool) (*reduction, []Engine) {
+	var refused []Engine
 	forms := []reductionForm{formShifted, formTriangular}
 	if hi > lo*math.Pow(10, maxShiftedDecades) {
 		forms[0], forms[1] = forms[1], forms[0]
@@ -134,10 +142,42 @@ func reduceAccurate(nw *smallsignal.Network, lo, hi float64, points int, accurat
 	}
 	for _, form := range forms {
 		if r, err := reduceFor(nw, lo, hi, form); err == nil && accurate(r) {
-			return r
+			return r, refused
 		}
+		refused = append(refused, form.engine())
 	}
-	return nil
+	return nil, refused
+}
+
+// Engine names a method that solves Y(jw) x = b over a sweep.
+type Engine string
+
+// The engines.
+const (
+	EngineLU         Engine = "LU"                         // a complex LU of Y(jw) per point, O(n³)
+	EngineSchur      Engine = "shifted Schur form"         // reduction of K⁻¹C to real Schur form, O(n²) a point
+	EngineHessenberg Engine = "shifted Hessenberg form"    // reduction of K⁻¹C to Hessenberg form, O(n²) a point
+	EngineTriangular Engine = "Hessenberg-triangular form" // QR and Dgghrd of (G, C), O(n²) a point
+)
+
+func (f reductionForm) engine() Engine {
+	switch f {
+	case formSchur:
+		return EngineSchur
+	case formTriangular:
+		return EngineTriangular
+	}
+	return EngineHessenberg
+}
+
+// Stats says how a sweep ran: the engine that solved its first point,
+// how many points each engine solved, and the reduction forms that were
+// tried and refused by their accuracy check before it.
+type Stats struct {
+	Engine  Engine
+	Reduced int // points solved on a reduction
+	LU      int // points solved by the LU
+	Refused []Engine
 }
 
 // checkFrequencies returns the frequencies the accuracy check probes:
@@ -281,20 +321,20 @@ func pointsDiffer(p, q Point, rel, floor float64) string {
 // sweepEngine returns the reduction to run a sweep of freqsHz on, or nil
 // for the dense LU: by cost (reducedPays) unless choice forces a method,
 // and only if the reduction passes its accuracy check.
-func sweepEngine(nw *smallsignal.Network, freqsHz []float64, ref []float64, probes []string, choice engine) *reduction {
+func sweepEngine(nw *smallsignal.Network, freqsHz []float64, ref []float64, probes []string, choice engine) (*reduction, []Engine) {
 	if choice == engineLU || len(freqsHz) == 0 {
-		return nil
+		return nil, nil
 	}
 	if choice == engineAuto && !reducedPays(nw.N, len(freqsHz)) {
-		return nil
+		return nil, nil
 	}
 	for _, f := range freqsHz {
 		if CheckFrequency(f) != nil {
-			return nil // the LU path reports it where it occurs
+			return nil, nil // the LU path reports it where it occurs
 		}
 	}
 	lo, hi, _ := sweepRange(freqsHz)
-	return reduceAccurate(nw, lo, hi, len(freqsHz), func(r *reduction) bool {
+	return reduceAccurateTried(nw, lo, hi, len(freqsHz), func(r *reduction) bool {
 		return r.sweepAccurate(nw, ref, probes, lo, hi)
 	})
 }

@@ -40,6 +40,7 @@ type Workspace struct {
 	firstB      []complex128 // and at f2
 	second      []complex128 // second harmonic junction phasor
 	shift       []complex128 // DC shift of the junction voltage
+	stats       Stats        // how the last Sweep ran
 	// keepDC is set during a VolterraSweep, whose estimates share one
 	// network: the DC factorisation made for the first is kept
 	// (dcFactored) for the rest.

@@ -460,7 +460,8 @@ func streamResponse(nw *smallsignal.Network, grid []float64, s ac.Settings, c *c
 			}
 		}
 		k := 0
-		_, _, sweepErr = ac.Sweep(nw, grid, s, func(pt ac.Point) error {
+		var ws ac.Workspace
+		_, _, sweepErr = ws.Sweep(nw, grid, s, func(pt ac.Point) error {
 			if jw != nil {
 				if err := jw.write(pt, r.Probes); err != nil {
 					return err
@@ -485,8 +486,9 @@ func streamResponse(nw *smallsignal.Network, grid []float64, s ac.Settings, c *c
 		if sweepErr != nil {
 			return sweepErr
 		}
+		r.Stats = ws.SweepStats()
 		if jw != nil {
-			if err := jw.close(); err != nil {
+			if err := jw.close(r.Stats); err != nil {
 				return err
 			}
 		}
@@ -569,10 +571,11 @@ type portJSON struct {
 type responseJSON struct {
 	Ports  []portJSON          `json:"ports"`
 	Points []responsePointJSON `json:"points"`
+	Solver *solverJSON         `json:"solver"`
 }
 
 func responseDocument(r *ac.Response) *responseJSON {
-	d := &responseJSON{}
+	d := &responseJSON{Solver: solverJSONOf(r.Stats)}
 	for _, p := range r.Ports {
 		d.Ports = append(d.Ports, portJSON{p.Name, number(p.Impedance)})
 	}
@@ -684,12 +687,34 @@ func (jw *responseJSONWriter) write(pt ac.Point, probes []string) error {
 	return err
 }
 
-func (jw *responseJSONWriter) close() error {
+func (jw *responseJSONWriter) close(st ac.Stats) error {
 	if jw.points > 0 {
 		jw.w.WriteString("\n  ")
 	}
-	jw.w.WriteString("]\n}\n")
+	solver, err := json.MarshalIndent(solverJSONOf(st), "  ", "  ")
+	if err != nil {
+		return err
+	}
+	fmt.Fprintf(jw.w, "],\n  \"solver\": %s\n}\n", solver)
 	return jw.w.Flush()
+}
+
+// solverJSON says which engine solved a sweep's points: "LU" or the
+// reduction form, the points each took, and the forms tried and refused
+// by their accuracy check.
+type solverJSON struct {
+	Engine        string   `json:"engine"`
+	ReducedPoints int      `json:"reduced_points"`
+	LUPoints      int      `json:"lu_points"`
+	Refused       []string `json:"refused"`
+}
+
+func solverJSONOf(st ac.Stats) *solverJSON {
+	j := &solverJSON{Engine: string(st.Engine), ReducedPoints: st.Reduced, LUPoints: st.LU, Refused: []string{}}
+	for _, e := range st.Refused {
+		j.Refused = append(j.Refused, string(e))
+	}
+	return j
 }
 
 // maxHeldSweepBytes bounds the memory a sweep held whole (for figures)
