@@ -88,7 +88,7 @@ func Write(w io.Writer, d *Document) error {
 }
 
 var page = template.Must(template.New("page").Funcs(template.FuncMap{
-	"svg": func(f *Figure) template.HTML { return inlineSVG(f.SVG) },
+	"svg":   func(f *Figure) template.HTML { return inlineSVG(f.SVG) },
 	"right": func(t *Table, i int) bool { return t.numeric(i) },
 }).Parse(pageHTML))
 
