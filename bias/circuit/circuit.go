@@ -154,4 +154,9 @@ type Circuit struct {
 	// Cautions lists values that are legal but very likely slips (see
 	// Caution), in file order.
 	Cautions []Caution
+	// Tolerances lists the values that spread from part to part, in part
+	// order, and ToleranceGroups the values that spread together
+	// (tolerance.go).
+	Tolerances      []Tolerance
+	ToleranceGroups []ToleranceGroup
 }
