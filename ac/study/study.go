@@ -319,6 +319,13 @@ func runStep(c *circuit.Circuit, s Settings, i, j int, prev *bias.Point, st *Ste
 			}
 		}
 	}
+	return analyse(cc, temp, freqs, s, prev, st, ws)
+}
+
+// analyse solves circuit cc at temperature temp (kelvin) from prev, and
+// fills st with what s asks for at the frequencies freqs, in the storage
+// of ws. It returns the bias point, as runStep does.
+func analyse(cc *circuit.Circuit, temp float64, freqs []float64, s Settings, prev *bias.Point, st *Step, ws *workspace) *bias.Point {
 	p, err := ws.bias.Solve(cc, bias.Settings{TemperatureK: temp, Start: prev})
 	if err != nil {
 		st.Err = err
