@@ -284,5 +284,3 @@ func (r *Result) TemperatureIndex(tempK float64) int {
 	}
 	return best
 }
-
-
