@@ -127,6 +127,9 @@ func (r *Result) sensitivities(ev *evaluator, nominal []float64) {
 			variance += part[k]
 		}
 		r.Targets[t].LinearStd = math.Sqrt(variance)
+		if variance == 0 {
+			variance = math.Inf(1) // no value moves the measure: every share is zero
+		}
 		for k := range cu {
 			r.Sensitivities = append(r.Sensitivities, Sensitivity{Target: t, Value: c.Tolerances[k].Name, Tolerance: k,
 				Coefficient: coef[t][k], StdDev: c.Tolerances[k].StdDev(), Contribution: cu[k], Share: part[k] / variance})

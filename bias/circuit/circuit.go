@@ -131,6 +131,7 @@ type Analysis struct {
 	Response   Response
 	Distortion Distortion
 	Study      Study
+	Yield      Yield // tolerance.go
 }
 
 // Circuit is a loaded and checked circuit file. All values are in SI base

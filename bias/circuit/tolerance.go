@@ -624,3 +624,83 @@ func (c *Circuit) Instance(dst *Instance, values []float64) {
 	}
 	out.Models = dst.models
 }
+
+// Yield holds the file's defaults for a yield analysis.
+type Yield struct {
+	Set bool
+	// Targets are the targets as written (MEASURE>VALUE@F), each with
+	// its place: the loader cannot read measures, which belong to the
+	// analyses, so the command reads them and names the place.
+	Targets   []string
+	TargetPos []Pos
+	Runs      int    // zero: not given
+	Seed      uint64 // when SeedSet
+	SeedSet   bool
+	// TemperatureRangeK is the operating range [low, high] in kelvin,
+	// when TemperatureRangeSet.
+	TemperatureRangeK   [2]float64
+	TemperatureRangeSet bool
+	Pos                 Pos
+}
+
+var yieldKeys = []string{"targets", "runs", "seed", "temperature_range"}
+
+// yieldDefaults reads {targets, runs, seed, temperature_range}.
+func (l *loader) yieldDefaults(n *yaml.Node) {
+	y := &l.c.Analysis.Yield
+	y.Pos = Pos{n.Line, n.Column}
+	const what = "the yield analysis"
+	f := l.fields(n, what, yieldKeys, nil)
+	if n.Kind != yaml.MappingNode {
+		return
+	}
+	ok := true
+	if e, has := f["targets"]; has {
+		items, good := l.sequence(e.val, "`targets` of "+what, "a list of targets such as [\"s21>-6.2dB@900MHz\", \"hd3<-50dBc\"]")
+		for _, it := range items {
+			s, g := l.text(it, "a target of "+what, "MEASURE>VALUE or MEASURE<VALUE, e.g. s21>-6.2dB@900MHz")
+			if g {
+				y.Targets = append(y.Targets, s)
+				y.TargetPos = append(y.TargetPos, Pos{it.Line, it.Column})
+			}
+			good = good && g
+		}
+		ok = ok && good
+	}
+	if e, has := f["runs"]; has {
+		v, good := l.count(e.val, "`runs` of "+what, 1, maxPoints)
+		y.Runs, ok = v, ok && good
+	}
+	if e, has := f["seed"]; has {
+		s, good := l.text(e.val, "`seed` of "+what, "a whole number from 0 to 18446744073709551615")
+		if good {
+			v, err := strconv.ParseUint(s, 10, 64)
+			if err != nil {
+				l.errorf(e.val, "`seed` of %s is `%s`; accepted: a whole number from 0 to 18446744073709551615", what, s)
+				good = false
+			}
+			y.Seed, y.SeedSet = v, good
+		}
+		ok = ok && good
+	}
+	if e, has := f["temperature_range"]; has {
+		const accepted = "two temperatures, the lowest and highest the circuit must work at, e.g. [-40C, 85C]"
+		items, good := l.sequence(e.val, "`temperature_range` of "+what, accepted)
+		if good && len(items) != 2 {
+			l.errorf(e.val, "`temperature_range` of %s lists %d temperatures; accepted: %s", what, len(items), accepted)
+			good = false
+		}
+		if good {
+			lo, g1 := l.value(items[0], Temperature, "the low end of `temperature_range`", positive)
+			hi, g2 := l.value(items[1], Temperature, "the high end of `temperature_range`", positive)
+			good = g1 && g2
+			if good && !(lo < hi) {
+				l.errorf(items[1], "`temperature_range` of %s does not rise; accepted: %s", what, accepted)
+				good = false
+			}
+			y.TemperatureRangeK, y.TemperatureRangeSet = [2]float64{lo, hi}, good
+		}
+		ok = ok && good
+	}
+	y.Set = ok
+}
