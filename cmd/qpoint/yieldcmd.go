@@ -16,6 +16,7 @@ import (
 	"qpoint/ac/yield"
 	"qpoint/bias/circuit"
 	"qpoint/plots"
+	"qpoint/plots/report"
 )
 
 type yieldFlags struct {
@@ -527,4 +528,51 @@ func writeYieldCSV(w io.Writer, r *yield.Result) error {
 	}
 	cw.Flush()
 	return cw.Error()
+}
+
+// yieldSection is the report's yield analysis of the file's tolerances,
+// with the file's analysis.yield targets, or the spread of the main
+// figures when it gives none.
+func yieldSection(c *circuit.Circuit) (report.Section, []report.Card, error) {
+	sec := report.Section{ID: "yield", Title: "Tolerances and yield"}
+	s, err := resolveYield(c, &yieldFlags{}, true)
+	if err == nil && len(s.Targets) == 0 {
+		err = errors.New("the circuit has no port or target to follow; give analysis.yield targets")
+	}
+	if err != nil {
+		sec.Intro = "The yield analysis could not be set up: " + err.Error()
+		return sec, nil, nil
+	}
+	r, err := yield.Run(c, *s)
+	if err != nil {
+		return sec, nil, analysisError(err)
+	}
+	sec.Intro = fmt.Sprintf("%d circuits drawn over the file's %d toleranced values (seed %d) and analysed at %s.",
+		len(r.Runs), len(c.Tolerances), r.Settings.Seed, temperatureList(r.TemperaturesK))
+	var cards []report.Card
+	if len(r.Corners) > 0 {
+		sec.Intro += fmt.Sprintf(" %d of them meet every target: a yield of %s, 95 %% interval %s to %s (Wilson score).",
+			r.Passed, percentOf(r.Yield), percentOf(r.Interval[0]), percentOf(r.Interval[1]))
+		cards = append(cards, report.Card{Label: "yield", Value: percentOf(r.Yield),
+			Detail: fmt.Sprintf("%d of %d drawn circuits meet every target; 95 %% interval %s to %s", r.Passed, len(r.Runs), percentOf(r.Interval[0]), percentOf(r.Interval[1]))})
+	} else {
+		sec.Intro += " The file gives no yield targets (analysis.yield), so this shows how the main figures spread."
+	}
+	for _, t := range []*table{yieldTargetTable(r), yieldShareTable(r)} {
+		sec.Blocks = append(sec.Blocks, report.Block{Table: t.report()})
+	}
+	if len(r.Corners) > 0 {
+		sec.Blocks = append(sec.Blocks, report.Block{Table: yieldCornerTable(r).report()})
+	}
+	for _, f := range yieldFigures(r) {
+		fig, err := svgOf(f)
+		if err != nil {
+			return sec, nil, analysisError(err)
+		}
+		sec.Blocks = append(sec.Blocks, report.Block{Figure: fig})
+	}
+	for _, x := range r.Cautions {
+		sec.Blocks = append(sec.Blocks, report.Block{Note: x.Message})
+	}
+	return sec, cards, nil
 }
