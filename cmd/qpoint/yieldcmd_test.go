@@ -2,8 +2,10 @@ package main
 
 import (
 	"encoding/json"
+	"fmt"
 	"os"
 	"path/filepath"
+	"slices"
 	"strings"
 	"testing"
 )
@@ -91,7 +93,22 @@ func TestYieldErrors(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	bad := strings.Replace(string(data), "analysis:\n", "analysis:\n  yield:      {targets: [\"s21>-4dB@900MHz\", \"gain>3dB\"]}\n", 1)
+	// The demo without its yield targets, and with a bad one.
+	lines := strings.Split(string(data), "\n")
+	var kept []string
+	for _, l := range lines {
+		if !strings.HasPrefix(l, "  yield:") {
+			kept = append(kept, l)
+		}
+	}
+	if len(kept) != len(lines)-1 {
+		t.Fatal("attenuator demo has no analysis.yield line; update the test")
+	}
+	noTargets := filepath.Join(dir, "no_targets.yaml")
+	if err := os.WriteFile(noTargets, []byte(strings.Join(kept, "\n")), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	bad := strings.Replace(strings.Join(kept, "\n"), "analysis:\n", "analysis:\n  yield:      {targets: [\"s21>-4dB@900MHz\", \"gain>3dB\"]}\n", 1)
 	if err := os.WriteFile(badTarget, []byte(bad), 0o644); err != nil {
 		t.Fatal(err)
 	}
@@ -99,14 +116,15 @@ func TestYieldErrors(t *testing.T) {
 		args   []string
 		phrase string
 	}{
-		{[]string{attenuatorFile}, "flag --target is missing"},
+		{[]string{noTargets}, "flag --target is missing"},
 		{[]string{attenuatorFile, "--target", "s21=-6dB"}, "MEASURE>VALUE"},
 		{[]string{attenuatorFile, "--target", "s21>-6dB", "--runs", "-3"}, "flag --runs"},
 		{[]string{attenuatorFile, "--target", "s21>-6dB", "--temperature-range", "85C:-40C"}, "does not rise"},
 		{[]string{attenuatorFile, "--target", "s21>-6dB", "--temperature-range", "-40C"}, "LOW:HIGH"},
 		{[]string{attenuatorFile, "--target", "hd3<-40dBc", "--level", "loud"}, "level"},
 		{[]string{filepath.Join(demoDir, "detector.yaml"), "--target", "tss<-40dBm"}, "no tolerances"},
-		{[]string{badTarget}, "bad_target.yaml:"},
+		// The bad target is on the line after `analysis:`, its quote at column 45.
+		{[]string{badTarget}, fmt.Sprintf("bad_target.yaml:%d:45: target of the yield analysis: `gain` is not a measure; accepted:", slices.Index(kept, "analysis:")+2)},
 	}
 	for _, c := range cases {
 		_, errs, code := runCLI(t, append([]string{"yield"}, c.args...)...)
