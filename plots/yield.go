@@ -31,6 +31,12 @@ var (
 // A line that lies far outside the runs' range (more than the range's
 // own width beyond it) is not drawn and the note gives its value.
 func YieldHistogram(r *yield.Result, t int) *Figure {
+	fig, _ := yieldHistogram(r, t)
+	return fig
+}
+
+// yieldHistogram is YieldHistogram, also returning the bars.
+func yieldHistogram(r *yield.Result, t int) (*Figure, *histogram) {
 	ts := r.Targets[t]
 	tg := ts.Target
 	unit := tg.Measure.Unit
@@ -160,7 +166,7 @@ func YieldHistogram(r *yield.Result, t int) *Figure {
 	_, p.Y.Max = linearRange(0, y1, 1, 0, 1, linearStep)
 	p.Y.Min = 0
 	p.Y.Tick.Marker = LinearTicks{}
-	return fig
+	return fig, h
 }
 
 // formatReading prints a measure's value with its unit.
