@@ -300,13 +300,11 @@ func Run(c *circuit.Circuit, s Settings) (*Result, error) {
 		}()
 	}
 	wg.Wait()
-	r.Stats.Evaluations += evaluations + ev.evaluations
-	r.Stats.NewtonIterations += newton + ev.newton
 
 	r.summarise()
 	r.sensitivities(ev, nominal)
 	r.corners(ev, nominal)
-	r.Stats.Evaluations, r.Stats.NewtonIterations = r.Stats.Evaluations+ev.evaluations, r.Stats.NewtonIterations+ev.newton
+	r.Stats.Evaluations, r.Stats.NewtonIterations = evaluations+ev.evaluations, newton+ev.newton
 	r.cautions()
 	r.Stats.Runtime = time.Since(begin)
 	return r, nil

@@ -149,6 +149,24 @@ func resolveYield(c *circuit.Circuit, fl *yieldFlags, observe bool) (*yield.Sett
 		return nil, inputError(errors.New(`flag --target is missing and the file has no analysis.yield targets; e.g. --target "s21>-6.2dB@900MHz" --target "hd3<-50dBc"`))
 	}
 
+	// A measure naming a diode or probe must find it.
+	var diodes []string
+	for _, p := range c.Parts {
+		if p.Kind == circuit.Diode {
+			diodes = append(diodes, p.Name)
+		}
+	}
+	for _, t := range s.Targets {
+		m := t.Measure
+		switch {
+		case m.Part == "":
+		case m.Name == "probe" && !slices.Contains(c.Probes, m.Part):
+			return nil, inputError(fmt.Errorf("target %s: `%s` is not a probe of the circuit; accepted: %s", t.Text, m.Part, nameOrNone(c.Probes)))
+		case m.Name != "probe" && !slices.Contains(diodes, m.Part):
+			return nil, inputError(fmt.Errorf("target %s: `%s` is not a diode of the circuit; accepted: %s", t.Text, m.Part, nameOrNone(diodes)))
+		}
+	}
+
 	// Temperatures: the range's ends and the circuit's own between them.
 	lo, hi, ranged := 0.0, 0.0, false
 	if fl.temperatureRange != "" {
@@ -229,6 +247,14 @@ func resolveYield(c *circuit.Circuit, fl *yieldFlags, observe bool) (*yield.Sett
 		a.Detector = &study.DetectorSettings{VideoFromHz: vlo, VideoToHz: vhi}
 	}
 	return s, nil
+}
+
+// nameOrNone lists names for a message.
+func nameOrNone(names []string) string {
+	if len(names) == 0 {
+		return "none in this circuit"
+	}
+	return strings.Join(names, ", ")
 }
 
 // observeTargets are the figures the report follows when the file names

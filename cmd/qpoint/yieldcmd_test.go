@@ -123,6 +123,7 @@ func TestYieldErrors(t *testing.T) {
 		{[]string{attenuatorFile, "--target", "s21>-6dB", "--temperature-range", "-40C"}, "LOW:HIGH"},
 		{[]string{attenuatorFile, "--target", "hd3<-40dBc", "--level", "loud"}, "level"},
 		{[]string{filepath.Join(demoDir, "detector.yaml"), "--target", "tss<-40dBm"}, "no tolerances"},
+		{[]string{attenuatorFile, "--target", "current.D9<20mA"}, "accepted: Dshunt"},
 		// The bad target is on the line after `analysis:`, its quote at column 45.
 		{[]string{badTarget}, fmt.Sprintf("bad_target.yaml:%d:45: target of the yield analysis: `gain` is not a measure; accepted:", slices.Index(kept, "analysis:")+2)},
 	}
