@@ -3,6 +3,7 @@ package circuit
 import (
 	"fmt"
 	"math"
+	"slices"
 	"strconv"
 	"strings"
 
@@ -563,6 +564,8 @@ type Instance struct {
 	models  map[string]*Model
 	own     []Model
 	ownName map[int]string // diode part index -> its own model's name
+	names   []string       // the own models' names
+	of      *Circuit       // the circuit ownName was worked out for
 }
 
 // Instance writes into dst a copy of c whose toleranced values are
@@ -585,33 +588,45 @@ func (c *Circuit) Instance(dst *Instance, values []float64) {
 		dst.models[k] = m
 	}
 	// The diodes with a spread, each with a model of its own, in part
-	// order.
-	dst.own = dst.own[:0]
-	clear(dst.ownName)
-	for k := range c.Tolerances {
-		if t := &c.Tolerances[k]; t.Key != "value" {
-			dst.ownName[t.Part] = ""
+	// order; their names are worked out once per circuit.
+	if dst.of != c {
+		dst.of = c
+		clear(dst.ownName)
+		dst.names = dst.names[:0]
+		for k := range c.Tolerances {
+			if t := &c.Tolerances[k]; t.Key != "value" {
+				dst.ownName[t.Part] = ""
+			}
+		}
+		taken := func(name string) bool { _, ok := c.Models[name]; return ok }
+		for pi, p := range c.Parts {
+			if _, ok := dst.ownName[pi]; !ok {
+				continue
+			}
+			name := p.Model + "@" + p.Name
+			for taken(name) || slices.Contains(dst.names, name) {
+				name += "@"
+			}
+			dst.ownName[pi] = name
+			dst.names = append(dst.names, name)
 		}
 	}
+	dst.own = dst.own[:0]
 	for pi, p := range c.Parts {
 		if _, ok := dst.ownName[pi]; ok {
 			dst.own = append(dst.own, *c.Models[p.Model])
 		}
 	}
 	i := 0
-	for pi, p := range c.Parts {
-		if _, ok := dst.ownName[pi]; !ok {
+	for pi := range c.Parts {
+		name, ok := dst.ownName[pi]
+		if !ok {
 			continue
-		}
-		name := p.Model + "@" + p.Name
-		for dst.models[name] != nil {
-			name += "@"
 		}
 		m := &dst.own[i]
 		i++
 		m.Name = name
 		dst.models[name] = m
-		dst.ownName[pi] = name
 		out.Parts[pi].Model = name
 	}
 	for k := range c.Tolerances {
