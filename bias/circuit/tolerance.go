@@ -59,7 +59,11 @@ type Tolerance struct {
 	// ln x (LogNormal).
 	Distribution Distribution
 	Width        float64
-	Text         string // the width as written, e.g. "1%" or "0.3"
+	// Relative is the width as a fraction of the nominal value when the
+	// file gave a percentage (so that Width follows a value set from
+	// outside the file), else zero.
+	Relative float64
+	Text     string // the width as written, e.g. "1%" or "0.3"
 	// Group indexes Circuit.ToleranceGroups, or is -1 for a value drawn
 	// on its own.
 	Group int
@@ -353,6 +357,7 @@ func (l *loader) addTolerance(spec toleranceSpec, t Tolerance, label string) {
 			return
 		}
 		t.Width = spec.width * math.Abs(t.Nominal)
+		t.Relative = spec.width
 	}
 	if t.Distribution == LogNormal && t.Nominal == 0 {
 		l.errorf(spec.node, "%s is log-normal, but the value is zero, which a log-normal spread never leaves; accepted: band or sigma", label)
@@ -544,6 +549,29 @@ func (l *loader) diodesOf(m, key string) string {
 		return "D1." + key
 	}
 	return plainList(names, 4)
+}
+
+// rebaseTolerances sets each tolerance's nominal value to the value the
+// circuit now holds (after an Override), and a relative width to the same
+// fraction of it. The tolerances are copied: c shares them with the
+// circuit it was copied from.
+func (c *Circuit) rebaseTolerances() {
+	if len(c.Tolerances) == 0 {
+		return
+	}
+	c.Tolerances = slices.Clone(c.Tolerances)
+	for k := range c.Tolerances {
+		t := &c.Tolerances[k]
+		if t.Key == "value" {
+			t.Nominal = c.Parts[t.Part].Value
+		} else {
+			p := c.Models[t.Model].Params
+			t.Nominal = *ModelParam(&p, t.Key)
+		}
+		if t.Relative > 0 {
+			t.Width = t.Relative * math.Abs(t.Nominal)
+		}
+	}
 }
 
 // ToleranceNames returns the names of the toleranced values, in order.

@@ -143,3 +143,28 @@ func TestToleranceInstance(t *testing.T) {
 		t.Errorf("Instance changed the circuit it copies: %+v, %+v", c.Parts[0], c.Models)
 	}
 }
+
+// TestToleranceOverride: a value set from outside the file moves its
+// tolerance's nominal, and a relative width with it.
+func TestToleranceOverride(t *testing.T) {
+	c, err := Parse("tol.yaml", []byte(toleranceFile))
+	if err != nil {
+		t.Fatal(err)
+	}
+	o, err := c.WithOverride("R1.value=100k")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if o, err = o.WithOverride("d1.saturation_current=1uA"); err != nil {
+		t.Fatal(err)
+	}
+	if got := o.Tolerances[0]; got.Nominal != 100e3 || math.Abs(got.Width-1000) > 1e-9 {
+		t.Errorf("R1 after the override: nominal %g, band %g; want 100k and 1k", got.Nominal, got.Width)
+	}
+	if got := o.Tolerances[4]; got.Nominal != 1e-6 || got.Width != 0.3 {
+		t.Errorf("D1.saturation_current after the override: nominal %g, log sigma %g; want 1µ and 0.3", got.Nominal, got.Width)
+	}
+	if c.Tolerances[0].Nominal != 47e3 || c.Tolerances[4].Nominal != 3e-6 {
+		t.Errorf("the override changed the original circuit's tolerances")
+	}
+}

@@ -82,7 +82,7 @@ Defaults come from the file's analysis.yield and analysis.distortion.`,
 	addSetFlag(cmd, &fl.sets)
 	f.StringArrayVar(&fl.targets, "target", nil, `a condition every run must meet, MEASURE>VALUE or MEASURE<VALUE, e.g. "s21>-4.4dB@900MHz" (repeatable)`)
 	f.IntVar(&fl.runs, "runs", 0, fmt.Sprintf("circuits to draw, 1 to %d (default: the file's, else %d)", yield.MaxRuns, defaultRuns))
-	f.Uint64Var(&fl.seed, "seed", 1, "seed of the random draws (default: the file's, else 1)")
+	f.Uint64Var(&fl.seed, "seed", 0, "seed of the random draws (default: the file's, else 1)")
 	f.StringVar(&fl.temperatureRange, "temperature-range", "", "operating range LOW:HIGH, e.g. -40C:85C (default: the file's, else the circuit's temperature)")
 	f.StringVar(&fl.level, "level", "", "signal level for distortion targets, e.g. -10dBm (default: the file's)")
 	f.StringVar(&fl.frequency, "frequency", "", "distortion frequency (default: the file's analysis.distortion frequency)")
@@ -359,11 +359,11 @@ func percentOf(f float64) string {
 func writeYield(w io.Writer, r *yield.Result) {
 	c := r.Circuit
 	fmt.Fprintf(w, "%s\n", c.Name)
-	fmt.Fprintf(w, "  file          %s\n", c.File)
+	fmt.Fprintf(w, "  file         %s\n", c.File)
 	writeOverrides(w, c)
-	fmt.Fprintf(w, "  runs          %d, seed %d, %d workers, in %s\n", len(r.Runs), r.Settings.Seed, r.Stats.Workers, r.Stats.Runtime.Round(1e6))
-	fmt.Fprintf(w, "  temperatures  %s\n", temperatureList(r.TemperaturesK))
-	fmt.Fprintf(w, "  tolerances    %d values, %d groups; %d analyses, %d Newton iterations\n",
+	fmt.Fprintf(w, "  runs         %d, seed %d, %d workers, in %s\n", len(r.Runs), r.Settings.Seed, r.Stats.Workers, r.Stats.Runtime.Round(1e6))
+	fmt.Fprintf(w, "  temperatures %s\n", temperatureList(r.TemperaturesK))
+	fmt.Fprintf(w, "  tolerances   %d values, %d groups; %d analyses, %d Newton iterations\n",
 		len(c.Tolerances), len(c.ToleranceGroups), r.Stats.Evaluations, r.Stats.NewtonIterations)
 	limited := false
 	for _, t := range r.Settings.Targets {
