@@ -202,7 +202,7 @@ func buildReport(c *circuit.Circuit, temperature string) (*report.Document, erro
 		doc.Sections = append(doc.Sections, sec)
 	}
 	if len(c.Tolerances) > 0 {
-		sec, cards, err := yieldSection(c) // yieldcmd.go
+		sec, cards, err := yieldSection(c, temperature) // yieldcmd.go
 		if err != nil {
 			return nil, err
 		}

@@ -559,9 +559,16 @@ func writeYieldCSV(w io.Writer, r *yield.Result) error {
 // yieldSection is the report's yield analysis of the file's tolerances,
 // with the file's analysis.yield targets, or the spread of the main
 // figures when it gives none.
-func yieldSection(c *circuit.Circuit) (report.Section, []report.Card, error) {
+func yieldSection(c *circuit.Circuit, temperature string) (report.Section, []report.Card, error) {
 	sec := report.Section{ID: "yield", Title: "Tolerances and yield"}
 	s, err := resolveYield(c, &yieldFlags{}, true)
+	if err == nil && temperature != "" && len(s.TemperaturesK) == 0 {
+		// The report's --temperature, as the bias above was solved at.
+		var t float64
+		if t, err = circuit.ParseBounded(temperature, circuit.Temperature); err == nil {
+			s.TemperaturesK = []float64{t}
+		}
+	}
 	if err == nil && len(s.Targets) == 0 {
 		err = errors.New("the circuit has no port or target to follow; give analysis.yield targets")
 	}
