@@ -21,7 +21,8 @@ import (
 //	go test -run '^$' -bench Yield -benchtime 5x -count 5 ./ac/yield/
 //
 // It reports the time of each, their ratio (the scaling), the cores the
-// parallel runs got (CPU time over wall time) and, as a control, the
+// parallel runs got (CPU time over wall time), the CPU time they took
+// over the serial runs' and, as a control, the
 // cores a trivially parallel busy loop gets right after (cores-free): on
 // a machine others are using, the scaling cannot exceed it. The garbage
 // collector is set as the command sets it (tuneGC in cmd/qpoint) unless
@@ -42,7 +43,7 @@ func BenchmarkYield(b *testing.B) {
 	}
 	const runs = 10000
 	all := runtime.GOMAXPROCS(0)
-	var one, many, manyCPU time.Duration
+	var one, oneCPU, many, manyCPU time.Duration
 	for b.Loop() {
 		for _, w := range []int{1, all} {
 			c0, t0 := cpuTime(), time.Now()
@@ -55,6 +56,7 @@ func BenchmarkYield(b *testing.B) {
 			}
 			if w == 1 {
 				one += time.Since(t0)
+				oneCPU += cpuTime() - c0
 			} else {
 				many += time.Since(t0)
 				manyCPU += cpuTime() - c0
@@ -66,6 +68,10 @@ func BenchmarkYield(b *testing.B) {
 	b.ReportMetric(float64(all), "workers")
 	b.ReportMetric(float64(one)/float64(many), "scaling")
 	b.ReportMetric(float64(manyCPU)/float64(many), "cores-used")
+	// The CPU time the parallel runs took over the serial runs': above 1,
+	// the same work cost more CPU in parallel (contention, or a core
+	// shared with other work on the host).
+	b.ReportMetric(float64(manyCPU)/float64(oneCPU), "cpu-ratio")
 	b.ReportMetric(coresAvailable(all), "cores-free")
 }
 
