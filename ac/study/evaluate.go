@@ -22,8 +22,12 @@ type Workspace struct {
 // Measure readings then work as on a study's step, and returns the bias
 // point, which lives in the workspace until its next Evaluate (pass it as
 // the next start to continue from it). An evaluation's results depend on
-// c, s and start alone, never on what the workspace held.
+// c, s and start alone, never on what the workspace or st held; st's
+// slices are reused, so what an earlier Evaluate left in st is
+// overwritten (copy what must be kept).
 func (w *Workspace) Evaluate(c *circuit.Circuit, s *Settings, start *bias.Point, st *Step) *bias.Point {
-	*st = Step{}
+	// Keep the storage of the slices the step fills, not their contents.
+	*st = Step{Diodes: st.Diodes[:0], Responses: st.Responses[:0], Distortion: st.Distortion[:0],
+		NoiseFigureDB: st.NoiseFigureDB[:0], sensitivities: st.sensitivities}
 	return analyse(c, c.TemperatureK, s.FrequenciesHz, *s, start, st, &w.ws)
 }
