@@ -47,7 +47,7 @@ func hostileFiles(t *testing.T) []string {
 func TestHostileFilesCLI(t *testing.T) {
 	out := filepath.Join(t.TempDir(), "report.html")
 	commands := [][]string{
-		{"bias"}, {"bias", "--json"}, {"response"}, {"distortion"}, {"noise"}, {"study"}, {"report", "-o", out},
+		{"bias"}, {"bias", "--json"}, {"response"}, {"distortion"}, {"noise"}, {"study"}, {"report", "-o", out}, {"yield", "--target", "s21>-6dB"},
 	}
 	var slowest time.Duration
 	for _, file := range hostileFiles(t) {
