@@ -353,6 +353,9 @@ func percentOf(f float64) string {
 	if math.IsNaN(f) {
 		return "—"
 	}
+	if math.Abs(f) < 5e-5 {
+		f = 0 // no "-0.00 %" for a share that differences leave a hair below zero
+	}
 	return strconv.FormatFloat(100*f, 'f', 2, 64) + " %"
 }
 
