@@ -6,6 +6,7 @@ import (
 	"math"
 	"math/cmplx"
 	"runtime"
+	"slices"
 	"sync"
 	"sync/atomic"
 
@@ -177,6 +178,11 @@ type Step struct {
 	Detection *Detection
 
 	Err error // non-nil when this step could not be solved
+
+	// sensitivities holds every diode's two sensitivities at each
+	// frequency, in one block (Diode.CurrentSensitivity and
+	// VoltageSensitivity are its slices).
+	sensitivities []float64
 }
 
 // Result is a whole study.
@@ -323,6 +329,13 @@ func runStep(c *circuit.Circuit, s Settings, i, j int, prev *bias.Point, st *Ste
 			}
 		}
 	}
+	return analyse(cc, temp, freqs, s, prev, st, ws)
+}
+
+// analyse solves circuit cc at temperature temp (kelvin) from prev, and
+// fills st with what s asks for at the frequencies freqs, in the storage
+// of ws. It returns the bias point, as runStep does.
+func analyse(cc *circuit.Circuit, temp float64, freqs []float64, s Settings, prev *bias.Point, st *Step, ws *workspace) *bias.Point {
 	p, err := ws.bias.Solve(cc, bias.Settings{TemperatureK: temp, Start: prev})
 	if err != nil {
 		st.Err = err
@@ -337,13 +350,14 @@ func runStep(c *circuit.Circuit, s Settings, i, j int, prev *bias.Point, st *Ste
 		return p
 	}
 	if len(p.Diodes) > 0 {
-		st.Diodes = make([]Diode, 0, len(p.Diodes))
+		st.Diodes = slices.Grow(st.Diodes[:0], len(p.Diodes))
 	}
 	// Every diode's two sensitivities at each frequency, in one block.
 	nf := len(freqs)
 	var sensitivities []float64
 	if nf > 0 {
-		sensitivities = make([]float64, 2*nf*len(p.Diodes))
+		st.sensitivities = slices.Grow(st.sensitivities[:0], 2*nf*len(p.Diodes))[:2*nf*len(p.Diodes)]
+		sensitivities = st.sensitivities
 	}
 	for k, d := range p.Diodes {
 		sd := nw.Diodes[k]
@@ -370,7 +384,7 @@ func runStep(c *circuit.Circuit, s Settings, i, j int, prev *bias.Point, st *Ste
 		st.Diodes = append(st.Diodes, dd)
 	}
 	if len(nw.Ports) > 0 && len(freqs) > 0 {
-		st.Responses = make([]Response, 0, len(freqs))
+		st.Responses = slices.Grow(st.Responses[:0], len(freqs))
 		ws.ac.ReservePoints(len(freqs), len(nw.Ports), len(nw.Point.Circuit.Probes))
 		_, _, err := ws.ac.Sweep(nw, freqs, ac.Settings{}, func(pt ac.Point) error {
 			st.Responses = append(st.Responses, Response{pt.FrequencyHz, pt.S, pt.InputImpedance, pt.Probes})
@@ -382,7 +396,7 @@ func runStep(c *circuit.Circuit, s Settings, i, j int, prev *bias.Point, st *Ste
 		}
 	}
 	if df := s.DistortionFrequencies(); len(df) > 0 && len(nw.Ports) > 0 {
-		st.Distortion = make([]Distortion, 0, len(df))
+		st.Distortion = slices.Grow(st.Distortion[:0], len(df))
 		for _, f := range df {
 			d := s.Drive
 			d.SecondToneHz = 0
@@ -405,13 +419,16 @@ func runStep(c *circuit.Circuit, s Settings, i, j int, prev *bias.Point, st *Ste
 			st.Err = err
 			return p
 		}
-		st.NoiseFigureDB = make([]float64, len(freqs))
+		st.NoiseFigureDB = slices.Grow(st.NoiseFigureDB[:0], len(freqs))[:len(freqs)]
 		for i, pt := range r.Points {
 			st.NoiseFigureDB[i] = pt.FigureDB()
 		}
 	}
 	if s.Detector != nil && len(nw.Ports) > 0 {
-		st.Detection = new(Detection)
+		if st.Detection == nil {
+			st.Detection = new(Detection)
+		}
+		*st.Detection = Detection{}
 		carrier := s.Drive.FrequencyHz
 		if df := s.DistortionHz; len(df) > 0 {
 			carrier = df[0]

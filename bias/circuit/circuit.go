@@ -134,6 +134,7 @@ type Analysis struct {
 	Response   ResponseDefaults
 	Distortion DistortionDefaults
 	Study      StudyDefaults
+	Yield      YieldDefaults // tolerance.go
 }
 
 // Circuit is a loaded and checked circuit file. All values are in SI base
@@ -157,4 +158,9 @@ type Circuit struct {
 	// Warnings lists what the loader found legal but probably not meant,
 	// in file order.
 	Warnings []Warning
+	// Tolerances lists the values that spread from part to part, in part
+	// order, and ToleranceGroups the values that spread together
+	// (tolerance.go).
+	Tolerances      []Tolerance
+	ToleranceGroups []ToleranceGroup
 }

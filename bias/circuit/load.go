@@ -24,7 +24,7 @@ const MaxFileSize = 1 << 20
 // diode values hold at unless the file says otherwise.
 const defaultTemperatureK = 27 + zeroCelsiusK
 
-var topKeys = []string{"name", "temperature", "diode_models", "parts", "ports", "probes", "analysis"}
+var topKeys = []string{"name", "temperature", "diode_models", "parts", "ports", "probes", "analysis", "tolerance_groups"}
 
 // Load reads and checks the circuit file at path. Problems in the file come
 // back as an ErrorList naming file, line and column of each; a file that
@@ -98,6 +98,8 @@ type loader struct {
 	partKind map[string]Kind // part name -> kind, for parts whose type is known
 	modelAt  map[string]Pos  // diode model name -> where it is named
 	portAt   map[string]Pos  // port name -> where it is named
+
+	tolerances *toleranceState // spreads read so far (tolerance.go)
 }
 
 // errorf records a problem at node n.
@@ -343,6 +345,11 @@ func (l *loader) circuit(root *yaml.Node) *Circuit {
 		l.partsComplete = false
 	}
 	l.collectNodes()
+	if e, ok := top["tolerance_groups"]; ok {
+		l.resolveTolerances(&e)
+	} else {
+		l.resolveTolerances(nil)
+	}
 	if e, ok := top["ports"]; ok {
 		l.ports(e.val)
 	}

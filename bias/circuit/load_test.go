@@ -89,7 +89,7 @@ func TestLoadFull(t *testing.T) {
 			FrequencyHz: 2.45e9, Level: Level{DBm: -30, IsPower: true}, SecondToneHz: 2.451e9, Pos: Pos{50, 15}},
 		Study: StudyDefaults{Set: true, Vary: "Rbias.value", From: 10e3, To: 1e6, Steps: 20, Log: true, Pos: Pos{51, 15}},
 	}
-	if c.Analysis != wantAnalysis {
+	if !reflect.DeepEqual(c.Analysis, wantAnalysis) {
 		t.Errorf("Analysis = %+v\nwant %+v", c.Analysis, wantAnalysis)
 	}
 }

@@ -132,7 +132,7 @@ func (l *loader) models(n *yaml.Node) {
 func (l *loader) model(n *yaml.Node, name string) diode.Params {
 	p := diode.Defaults()
 	what := "diode model `" + name + "`"
-	f := l.fields(n, what, modelKeyNames(), nil)
+	f := l.fields(n, what, append(modelKeyNames(), "spread"), nil)
 	if n.Kind != yaml.MappingNode {
 		return p
 	}
@@ -166,6 +166,9 @@ func (l *loader) model(n *yaml.Node, name string) diode.Params {
 	}
 	if e, ok := f["ratings"]; ok {
 		p.Ratings = l.ratings(e.val, what)
+	}
+	if e, ok := f["spread"]; ok {
+		l.modelSpread(e.val, name, what)
 	}
 	return p
 }

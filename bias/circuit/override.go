@@ -39,6 +39,7 @@ func (c *Circuit) WithOverride(s string) (*Circuit, error) {
 		return nil, err
 	}
 	out, _ := v.Apply(c, value)
+	out.rebaseTolerances() // tolerance.go
 	out.Overrides = append(append([]Override(nil), c.Overrides...), Override{Target: target, Value: value, Text: text})
 	return out, nil
 }

@@ -32,7 +32,7 @@ var kindSpecs = map[Kind]kindSpec{
 func (s kindSpec) keys() []string {
 	keys := append([]string{"type", "name"}, s.terminals...)
 	if s.hasValue {
-		keys = append(keys, "value")
+		keys = append(keys, "value", "tolerance")
 	} else {
 		keys = append(keys, "model")
 	}
@@ -169,6 +169,9 @@ func (l *loader) part(i int, n *yaml.Node) (p Part, complete bool) {
 			}
 		} else {
 			l.missing(n, "value", keys, "%s has no `value`; accepted: value: %s", label, spec.q.Accepted())
+		}
+		if e, ok := f["tolerance"]; ok {
+			l.partTolerance(e.val, &p, label)
 		}
 	} else {
 		l.diodeModel(n, f, keys, label, &p)

@@ -47,7 +47,7 @@ func hostileFiles(t *testing.T) []string {
 func TestHostileFilesCLI(t *testing.T) {
 	out := filepath.Join(t.TempDir(), "report.html")
 	commands := [][]string{
-		{"bias"}, {"bias", "--json"}, {"response"}, {"distortion"}, {"noise"}, {"study"}, {"report", "-o", out},
+		{"bias"}, {"bias", "--json"}, {"response"}, {"distortion"}, {"noise"}, {"study"}, {"report", "-o", out}, {"yield", "--target", "s21>-6dB"},
 	}
 	var slowest time.Duration
 	for _, file := range hostileFiles(t) {
@@ -112,7 +112,7 @@ func TestHostileFlags(t *testing.T) {
 	}{
 		// 1 MV peak into 50 Ω: 10 log10((1e6)²/(2·50)/1e-3) = +130 dBm.
 		{[]string{"distortion", att, "--no-limit", "--level", "1e6V"}, "flag --level: 1 MV peak at port input's 50 Ω is 130 dBm"},
-		{[]string{"distortion", fileLevel, "--no-limit"}, fileLevel + ":36:15: analysis.distortion.level"},
+		{[]string{"distortion", fileLevel, "--no-limit"}, fileLevel + ":43:15: analysis.distortion.level"},
 		{[]string{"study", att, "--steps", "3", "--tolerance", "NaN"}, "flag --tolerance: NaN"},
 		{[]string{"study", att, "--steps", "3", "--tolerance", "-1"}, "flag --tolerance: -1"},
 		{[]string{"help", "nosuch"}, `no command "nosuch"`},

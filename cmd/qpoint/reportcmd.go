@@ -204,6 +204,14 @@ func buildReport(c *circuit.Circuit, temperature string) (*report.Document, erro
 		}
 		doc.Sections = append(doc.Sections, sec)
 	}
+	if len(c.Tolerances) > 0 {
+		sec, cards, err := yieldSection(c, temperature) // yieldcmd.go
+		if err != nil {
+			return nil, err
+		}
+		doc.Sections = append(doc.Sections, sec)
+		doc.Cards = append(doc.Cards, cards...)
+	}
 	return doc, nil
 }
 
