@@ -4,15 +4,14 @@ import (
 	"errors"
 	"fmt"
 	"io"
-	"math"
 	"strings"
 
 	"github.com/spf13/cobra"
 
 	"qpoint/bias"
 	"qpoint/bias/circuit"
-	"qpoint/bias/diode"
 	"qpoint/bias/si"
+	"qpoint/plots/report"
 )
 
 func newBiasCmd() *cobra.Command {
@@ -125,62 +124,18 @@ func writeOverrides(w io.Writer, c *circuit.Circuit) {
 	}
 }
 
-func celsius(k float64) float64 { return k - diode.ZeroCelsius }
-
-// maxListedDiodes is the most diodes a command's header names one by one;
-// beyond it the header gives their count and current range.
-const maxListedDiodes = 6
-
-// currentRange returns the diodes with the least and the greatest current
-// (the first of each in file order); diodes must not be empty.
-func currentRange(diodes []bias.Diode) (lo, hi bias.Diode) {
-	lo, hi = diodes[0], diodes[0]
-	for _, d := range diodes[1:] {
-		if d.Current < lo.Current {
-			lo = d
-		}
-		if d.Current > hi.Current {
-			hi = d
-		}
-	}
-	return lo, hi
-}
-
-// biasLine returns the header line that says how the bias was solved and
-// where the diodes sit: each diode's current, or for many diodes their
-// count and the least and greatest current.
-func biasLine(p *bias.Point) string {
-	var b strings.Builder
-	fmt.Fprintf(&b, "solved at %.2f °C by %s", celsius(p.TemperatureK), p.Stats.Strategy)
-	if len(p.Diodes) <= maxListedDiodes {
-		for _, d := range p.Diodes {
-			fmt.Fprintf(&b, "; %s at %s", d.Name, si.Format(d.Current, "A", 3))
-		}
-		return b.String()
-	}
-	lo, hi := currentRange(p.Diodes)
-	least, most := si.Format(lo.Current, "A", 3), si.Format(hi.Current, "A", 3)
-	if least == most {
-		fmt.Fprintf(&b, "; %d diodes, each at %s", len(p.Diodes), least)
-	} else {
-		fmt.Fprintf(&b, "; %d diodes from %s (%s) to %s (%s)", len(p.Diodes), least, lo.Name, most, hi.Name)
-	}
-	b.WriteString("; the bias command lists them all")
-	return b.String()
-}
-
 // writeBias prints the operating point as tables.
 func writeBias(w io.Writer, p *bias.Point) {
 	c := p.Circuit
 	fmt.Fprintf(w, "%s\n", c.Name)
 	fmt.Fprintf(w, "  file         %s\n", c.File)
 	writeOverrides(w, c)
-	fmt.Fprintf(w, "  temperature  %.2f °C (%.2f K)\n", celsius(p.TemperatureK), p.TemperatureK)
+	fmt.Fprintf(w, "  temperature  %.2f °C (%.2f K)\n", report.Celsius(p.TemperatureK), p.TemperatureK)
 	fmt.Fprintf(w, "  solved by    %s in %s; largest current imbalance %s\n",
-		p.Stats.Strategy, plural(p.Stats.Iterations, "iteration"), si.Format(p.Stats.Residual, "A", 2))
+		p.Stats.Strategy, report.Plural(p.Stats.Iterations, "iteration"), si.Format(p.Stats.Residual, "A", 2))
 
-	for _, t := range biasTables(p) {
-		t.write(w)
+	for _, t := range report.BiasTables(p) {
+		t.WriteText(w)
 	}
 
 	header := "\nCautions\n"
@@ -192,80 +147,4 @@ func writeBias(w io.Writer, p *bias.Point) {
 		header = ""
 	}
 	fmt.Fprintln(w)
-}
-
-func percent(f float64) string {
-	switch {
-	case math.IsNaN(f):
-		return "no rating"
-	case f == 0:
-		return "0 %"
-	case f < 0.001:
-		return "<0.1 %"
-	}
-	return fmt.Sprintf("%.1f %%", 100*f)
-}
-
-func plural(n int, word string) string {
-	if n == 1 {
-		return fmt.Sprintf("%d %s", n, word)
-	}
-	return fmt.Sprintf("%d %ss", n, word)
-}
-
-// biasTables returns the node-voltage, source-current and Q-point tables.
-func biasTables(p *bias.Point) []*table {
-	var tables []*table
-	nodes := &table{title: "Node voltages", header: []string{"node", "voltage"}}
-	for _, n := range p.Nodes {
-		nodes.add(n.Name, si.Format(n.Voltage, "V", 5))
-	}
-	tables = append(tables, nodes)
-
-	if len(p.Sources)+len(p.Inductors) > 0 {
-		src := &table{title: "Source and inductor currents (into the + / to / first terminal)", header: []string{"part", "kind", "current"}}
-		for _, s := range p.Sources {
-			src.add(s.Name, s.Kind.String(), si.Format(s.Current, "A", 4))
-		}
-		for _, s := range p.Inductors {
-			src.add(s.Name, s.Kind.String(), si.Format(s.Current, "A", 4))
-		}
-		tables = append(tables, src)
-	}
-
-	// One column per diode reads well for the few diodes a bias network
-	// has; wide circuits print in blocks of six.
-	const perBlock = 6
-	for start := 0; start < len(p.Diodes); start += perBlock {
-		ds := p.Diodes[start:min(start+perBlock, len(p.Diodes))]
-		t := &table{title: "Diode Q points", header: []string{"quantity"}}
-		if start > 0 {
-			t.title = ""
-		}
-		for _, d := range ds {
-			t.header = append(t.header, d.Name)
-		}
-		row := func(name string, f func(d bias.Diode) string) {
-			cells := []string{name}
-			for _, d := range ds {
-				cells = append(cells, f(d))
-			}
-			t.add(cells...)
-		}
-		row("model", func(d bias.Diode) string { return d.Model })
-		row("terminal voltage", func(d bias.Diode) string { return si.Format(d.Voltage, "V", 5) })
-		row("junction voltage", func(d bias.Diode) string { return si.Format(d.JunctionVoltage, "V", 5) })
-		row("current", func(d bias.Diode) string { return si.Format(d.Current, "A", 4) })
-		row("dynamic resistance", func(d bias.Diode) string { return si.Format(d.DynamicResistance, "Ω", 4) })
-		row("series resistance", func(d bias.Diode) string { return si.Format(d.Device.Params.SeriesResistance, "Ω", 4) })
-		row("junction capacitance", func(d bias.Diode) string { return si.Format(d.JunctionCapacitance, "F", 4) })
-		row("diffusion capacitance", func(d bias.Diode) string { return si.Format(d.DiffusionCapacitance, "F", 4) })
-		row("power", func(d bias.Diode) string { return si.Format(d.Power, "W", 3) })
-		row("of current rating", func(d bias.Diode) string { return percent(d.CurrentFraction) })
-		row("of reverse-voltage rating", func(d bias.Diode) string { return percent(d.ReverseVoltageFraction) })
-		row("of power rating", func(d bias.Diode) string { return percent(d.PowerFraction) })
-		tables = append(tables, t)
-	}
-
-	return tables
 }

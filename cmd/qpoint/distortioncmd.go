@@ -19,6 +19,7 @@ import (
 	"qpoint/bias"
 	"qpoint/bias/circuit"
 	"qpoint/bias/si"
+	"qpoint/plots/report"
 	"qpoint/smallsignal"
 )
 
@@ -481,7 +482,7 @@ func writeDistortionHeader(w io.Writer, s *distortionSetup) {
 	fmt.Fprintf(w, "%s\n", s.c.Name)
 	fmt.Fprintf(w, "  file         %s\n", s.c.File)
 	writeOverrides(w, s.c)
-	fmt.Fprintf(w, "  bias         %s\n", biasLine(s.p))
+	fmt.Fprintf(w, "  bias         %s\n", report.BiasLine(s.p))
 	z0 := s.c.Ports[s.drive.Input].Impedance
 	fmt.Fprintf(w, "  drive        port %s, %s, %.2f dBm available (EMF %s peak behind %s)\n", s.inName,
 		si.Format(s.drive.FrequencyHz, "Hz", 6), s.levelDBm, si.Format(s.drive.EMF, "V", 4), si.Format(z0, "Ω", 4))

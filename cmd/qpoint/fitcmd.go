@@ -18,6 +18,7 @@ import (
 	"qpoint/bias/measured"
 	"qpoint/bias/si"
 	"qpoint/plots"
+	"qpoint/plots/report"
 )
 
 type fitFlags struct {
@@ -297,10 +298,10 @@ func tableUnit(v extract.Value) string {
 func writeFit(w io.Writer, in *fitInput, r *extract.Result) {
 	fmt.Fprintf(w, "Diode model fitted to %s\n", pointSummary(r))
 	for _, f := range in.iv {
-		fmt.Fprintf(w, "  I–V  %s  (%s%s)\n", f.path, plural(len(f.table.Points), "point"), fileTemperatures(f, in.settings))
+		fmt.Fprintf(w, "  I–V  %s  (%s%s)\n", f.path, report.Plural(len(f.table.Points), "point"), fileTemperatures(f, in.settings))
 	}
 	for _, f := range in.cv {
-		fmt.Fprintf(w, "  C–V  %s  (%s%s)\n", f.path, plural(len(f.table.Points), "point"), fileTemperatures(f, in.settings))
+		fmt.Fprintf(w, "  C–V  %s  (%s%s)\n", f.path, report.Plural(len(f.table.Points), "point"), fileTemperatures(f, in.settings))
 	}
 
 	t := &table{title: "Fitted values", header: []string{"value", "fitted", "standard error", "status"}}
@@ -313,7 +314,7 @@ func writeFit(w io.Writer, in *fitInput, r *extract.Result) {
 	for _, v := range r.Values {
 		val := format(v.Value, v, 5)
 		if v.Key == "measured_at" {
-			val = fmt.Sprintf("%.2f °C", celsius(v.Value))
+			val = fmt.Sprintf("%.2f °C", report.Celsius(v.Value))
 		}
 		if v.Status == extract.Default && (v.Key == "breakdown_voltage" || v.Key == "breakdown_current") {
 			val = "none"
@@ -369,12 +370,12 @@ func writeFit(w io.Writer, in *fitInput, r *extract.Result) {
 }
 
 func pointSummary(r *extract.Result) string {
-	parts := []string{plural(len(r.Forward), "forward point")}
+	parts := []string{report.Plural(len(r.Forward), "forward point")}
 	if len(r.Breakdown) > 0 {
-		parts = append(parts, plural(len(r.Breakdown), "point")+" in breakdown")
+		parts = append(parts, report.Plural(len(r.Breakdown), "point")+" in breakdown")
 	}
 	if len(r.Capacitance) > 0 {
-		parts = append(parts, plural(len(r.Capacitance), "C–V point"))
+		parts = append(parts, report.Plural(len(r.Capacitance), "C–V point"))
 	}
 	return strings.Join(parts, ", ")
 }
@@ -390,7 +391,7 @@ func fileTemperatures(f fitFile, s extract.Settings) string {
 		}
 		if !seen[t] {
 			seen[t] = true
-			ts = append(ts, fmt.Sprintf("%.4g °C", celsius(t)))
+			ts = append(ts, fmt.Sprintf("%.4g °C", report.Celsius(t)))
 		}
 	}
 	if len(ts) > 4 {

@@ -6,9 +6,10 @@ import (
 	"io"
 	"math"
 	"os"
+	"strconv"
+
 	"qpoint/ac"
 	"qpoint/bias/si"
-	"strconv"
 
 	"github.com/spf13/cobra"
 

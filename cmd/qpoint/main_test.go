@@ -5,11 +5,13 @@ import (
 	"encoding/json"
 	"os"
 	"path/filepath"
-	"qpoint/bias"
 	"regexp"
 	"strconv"
 	"strings"
 	"testing"
+
+	"qpoint/bias"
+	"qpoint/plots/report"
 )
 
 func runCLI(t *testing.T, args ...string) (stdout, stderr string, code int) {
@@ -209,20 +211,20 @@ func TestBiasLine(t *testing.T) {
 	for k := 0; k < 3; k++ {
 		p.Diodes = append(p.Diodes, bias.Diode{Name: "D" + strconv.Itoa(k+1), Current: 1e-3 * float64(k+1)})
 	}
-	if got, want := biasLine(p), "solved at 27.00 °C by newton; D1 at 1 mA; D2 at 2 mA; D3 at 3 mA"; got != want {
+	if got, want := report.BiasLine(p), "solved at 27.00 °C by newton; D1 at 1 mA; D2 at 2 mA; D3 at 3 mA"; got != want {
 		t.Errorf("three diodes: %q, want %q", got, want)
 	}
 	p.Diodes = nil
 	for k := 0; k < 9; k++ {
 		p.Diodes = append(p.Diodes, bias.Diode{Name: "D" + strconv.Itoa(k+1), Current: 1e-3 * float64((k+4)%9+1)})
 	}
-	if got, want := biasLine(p), "solved at 27.00 °C by newton; 9 diodes from 1 mA (D6) to 9 mA (D5); the bias command lists them all"; got != want {
+	if got, want := report.BiasLine(p), "solved at 27.00 °C by newton; 9 diodes from 1 mA (D6) to 9 mA (D5); the bias command lists them all"; got != want {
 		t.Errorf("nine diodes: %q, want %q", got, want)
 	}
 	for k := range p.Diodes {
 		p.Diodes[k].Current = 2e-3
 	}
-	if got, want := biasLine(p), "solved at 27.00 °C by newton; 9 diodes, each at 2 mA; the bias command lists them all"; got != want {
+	if got, want := report.BiasLine(p), "solved at 27.00 °C by newton; 9 diodes, each at 2 mA; the bias command lists them all"; got != want {
 		t.Errorf("nine equal diodes: %q, want %q", got, want)
 	}
 }

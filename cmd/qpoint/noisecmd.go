@@ -438,7 +438,7 @@ func writeNoiseHeader(w io.Writer, s *noiseSetup) {
 	fmt.Fprintf(w, "%s\n", s.c.Name)
 	fmt.Fprintf(w, "  file         %s\n", s.c.File)
 	writeOverrides(w, s.c)
-	fmt.Fprintf(w, "  bias         %s\n", biasLine(s.p))
+	fmt.Fprintf(w, "  bias         %s\n", report.BiasLine(s.p))
 	for _, line := range noiseSetupLines(s) {
 		fmt.Fprintf(w, "  %-12s %s\n", line[0], line[1])
 	}

@@ -80,7 +80,7 @@ func buildReport(c *circuit.Circuit, temperature string) (*report.Document, erro
 	}
 	doc := &report.Document{
 		Title:    c.Name,
-		Subtitle: fmt.Sprintf("%s · %.2f °C · bias by %s in %s", c.File, celsius(p.TemperatureK), p.Stats.Strategy, plural(p.Stats.Iterations, "iteration")),
+		Subtitle: fmt.Sprintf("%s · %.2f °C · bias by %s in %s", c.File, report.Celsius(p.TemperatureK), p.Stats.Strategy, report.Plural(p.Stats.Iterations, "iteration")),
 		Footer: []string{
 			"Results are model estimates from the diode models in the circuit file. Confirm them by measurement before relying on them; the parts' ratings and your local practice govern.",
 			"Written by qpoint.",
@@ -132,9 +132,9 @@ func buildReport(c *circuit.Circuit, temperature string) (*report.Document, erro
 
 	// Operating point.
 	sec = report.Section{ID: "bias", Title: "Operating point", Intro: fmt.Sprintf("Solved by %s in %s; largest current imbalance %s.",
-		p.Stats.Strategy, plural(p.Stats.Iterations, "iteration"), si.Format(p.Stats.Residual, "A", 2))}
-	for _, t := range biasTables(p) {
-		sec.Blocks = append(sec.Blocks, report.Block{Table: t.report()})
+		p.Stats.Strategy, report.Plural(p.Stats.Iterations, "iteration"), si.Format(p.Stats.Residual, "A", 2))}
+	for _, t := range report.BiasTables(p) {
+		sec.Blocks = append(sec.Blocks, report.Block{Table: t})
 	}
 	doc.Sections = append(doc.Sections, sec)
 
@@ -354,10 +354,10 @@ func studySection(c *circuit.Circuit) (report.Section, error) {
 }
 
 // biasCards returns the report's headline cards for the diodes' bias: one
-// per diode, or for more than maxListedDiodes one card with their count and
+// per diode, or for more than report.MaxListedDiodes one card with their count and
 // current range (the operating-point section lists them all).
 func biasCards(p *bias.Point) []report.Card {
-	if len(p.Diodes) <= maxListedDiodes {
+	if len(p.Diodes) <= report.MaxListedDiodes {
 		var cards []report.Card
 		for _, d := range p.Diodes {
 			cards = append(cards, report.Card{Label: d.Name + " bias", Value: si.Format(d.Current, "A", 3),
@@ -365,7 +365,7 @@ func biasCards(p *bias.Point) []report.Card {
 		}
 		return cards
 	}
-	lo, hi := currentRange(p.Diodes)
+	lo, hi := report.CurrentRange(p.Diodes)
 	least, most := si.Format(lo.Current, "A", 3), si.Format(hi.Current, "A", 3)
 	card := report.Card{Label: fmt.Sprintf("bias of %d diodes", len(p.Diodes)), Value: least,
 		Detail: "each; the operating point lists them"}

@@ -20,6 +20,7 @@ import (
 	"qpoint/bias/circuit"
 	"qpoint/bias/si"
 	"qpoint/plots"
+	"qpoint/plots/report"
 	"qpoint/smallsignal"
 )
 
@@ -337,7 +338,7 @@ func formatImpedance(z complex128) string {
 func writeResponseTable(w io.Writer, c *circuit.Circuit, p *bias.Point, r *ac.Response, grid []float64, rows int) {
 	fmt.Fprintf(w, "%s\n", c.Name)
 	fmt.Fprintf(w, "  file         %s\n", c.File)
-	fmt.Fprintf(w, "  bias         %s\n", biasLine(p))
+	fmt.Fprintf(w, "  bias         %s\n", report.BiasLine(p))
 	var ports []string
 	for _, port := range r.Ports {
 		ports = append(ports, fmt.Sprintf("%s (%s)", port.Name, si.Format(port.Impedance, "Ω", 4)))

@@ -342,7 +342,7 @@ func yieldFigures(r *yield.Result) []*plots.Figure {
 func temperatureList(ks []float64) string {
 	var parts []string
 	for _, k := range ks {
-		parts = append(parts, fmt.Sprintf("%.2f °C", celsius(k)))
+		parts = append(parts, fmt.Sprintf("%.2f °C", report.Celsius(k)))
 	}
 	return strings.Join(parts, ", ")
 }
