@@ -544,7 +544,7 @@ func noiseTable(o *noiseOutcome, rows int) *table {
 		t.header = append(t.header, "input-referred", "noise figure")
 	}
 	t.header = append(t.header, "largest source")
-	for _, i := range pickRows(len(r.Points), rows) {
+	for _, i := range report.PickRows(len(r.Points), rows) {
 		pt := r.Points[i]
 		cells := []string{si.Format(pt.FrequencyHz, "Hz", 4), density(pt.Density(), "V/√Hz")}
 		switch {

@@ -174,7 +174,7 @@ func buildReport(c *circuit.Circuit, temperature string) (*report.Document, erro
 		}
 		sec.Blocks = append(sec.Blocks, report.Block{Figure: fig})
 	}
-	sec.Blocks = append(sec.Blocks, report.Block{Table: responseTable(r, 9).report()})
+	sec.Blocks = append(sec.Blocks, report.Block{Table: report.ResponseTable(r, 9)})
 	doc.Sections = append(doc.Sections, sec)
 
 	// Distortion.

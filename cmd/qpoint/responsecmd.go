@@ -7,7 +7,6 @@ import (
 	"fmt"
 	"io"
 	"math"
-	"math/cmplx"
 	"path/filepath"
 	"strconv"
 	"strings"
@@ -281,57 +280,6 @@ func runResponse(cmd *cobra.Command, path string, fl *responseFlags) error {
 	return nil
 }
 
-// pickRows chooses up to n points spread evenly over the sweep's index
-// range, always including the first and last.
-func pickRows(total, n int) []int {
-	if n < 2 || total <= n {
-		idx := make([]int, total)
-		for i := range idx {
-			idx[i] = i
-		}
-		return idx
-	}
-	var idx []int
-	for k := 0; k < n; k++ {
-		i := int(math.Round(float64(k) * float64(total-1) / float64(n-1)))
-		if len(idx) == 0 || idx[len(idx)-1] != i {
-			idx = append(idx, i)
-		}
-	}
-	return idx
-}
-
-func db(x complex128) float64  { return 20 * math.Log10(cmplx.Abs(x)) }
-func deg(x complex128) float64 { return cmplx.Phase(x) * 180 / math.Pi }
-
-func formatDB(v float64) string {
-	if math.IsInf(v, -1) {
-		return "-∞"
-	}
-	if math.IsNaN(v) || math.IsInf(v, 1) {
-		return "—"
-	}
-	// Below -200 dB a transfer is numerical noise of a perfectly balanced
-	// or isolated network, not a figure to read.
-	if v < -200 {
-		return "< -200"
-	}
-	return strconv.FormatFloat(v, 'f', 2, 64)
-}
-
-func formatImpedance(z complex128) string {
-	if cmplx.IsInf(z) || cmplx.IsNaN(z) {
-		return "open"
-	}
-	sign := "+"
-	x := imag(z)
-	if x < 0 {
-		sign = "−"
-		x = -x
-	}
-	return fmt.Sprintf("%s %s j%s", si.Format(real(z), "Ω", 4), sign, si.Format(x, "Ω", 4))
-}
-
 // writeResponseTable prints the header and the response at up to rows of
 // the sweep's frequencies grid; r holds either every point or just those
 // rows (streamResponse).
@@ -347,7 +295,7 @@ func writeResponseTable(w io.Writer, c *circuit.Circuit, p *bias.Point, r *ac.Re
 	first, last := grid[0], grid[len(grid)-1]
 	fmt.Fprintf(w, "  sweep        %d points, %s to %s\n", len(grid), si.Format(first, "Hz", 4), si.Format(last, "Hz", 4))
 
-	responseTable(r, rows).write(w)
+	report.ResponseTable(r, rows).WriteText(w)
 	name1 := r.Ports[0].Name
 	if len(r.Probes) > 0 {
 		fmt.Fprintf(w, "  probes: node voltage for a 1 V (peak) EMF behind port %s's reference impedance, in dB re 1 V\n", name1)
@@ -436,7 +384,7 @@ func streamResponse(nw *smallsignal.Network, grid []float64, s ac.Settings, c *c
 		r.Ports = append(r.Ports, ac.PortInfo{Name: p.Name, Impedance: z})
 	}
 	keep := map[int]bool{}
-	for _, i := range pickRows(len(grid), fl.rows) {
+	for _, i := range report.PickRows(len(grid), fl.rows) {
 		keep[i] = true
 	}
 	var sweepErr error
@@ -586,43 +534,6 @@ func responseDocument(r *ac.Response) *responseJSON {
 		d.Points = append(d.Points, j)
 	}
 	return d
-}
-
-// responseTable returns the response at up to rows frequencies.
-func responseTable(r *ac.Response, rows int) *table {
-	two := len(r.Ports) > 1
-	name1 := r.Ports[0].Name
-	t := &table{title: "Response"}
-	t.header = []string{"frequency"}
-	if two {
-		t.header = append(t.header, fmt.Sprintf("|S21| dB (%s→%s)", name1, r.Ports[1].Name), "∠S21 °")
-	}
-	t.header = append(t.header, fmt.Sprintf("return loss dB (%s)", name1), "VSWR", fmt.Sprintf("input impedance (%s)", name1))
-	for _, name := range r.Probes {
-		t.header = append(t.header, fmt.Sprintf("%s dB", name))
-	}
-	for _, i := range pickRows(len(r.Points), rows) {
-		pt := r.Points[i]
-		cells := []string{si.Format(pt.FrequencyHz, "Hz", 4)}
-		if two {
-			angle := strconv.FormatFloat(deg(pt.S[1][0]), 'f', 1, 64)
-			if db(pt.S[1][0]) < -200 {
-				angle = "—"
-			}
-			cells = append(cells, formatDB(db(pt.S[1][0])), angle)
-		}
-		g := cmplx.Abs(pt.S[0][0])
-		vswr := "∞"
-		if g < 1 {
-			vswr = strconv.FormatFloat((1+g)/(1-g), 'f', 2, 64)
-		}
-		cells = append(cells, formatDB(-db(pt.S[0][0])), vswr, formatImpedance(pt.InputImpedance[0]))
-		for _, v := range pt.Probes {
-			cells = append(cells, formatDB(db(v)))
-		}
-		t.add(cells...)
-	}
-	return t
 }
 
 // networkJSON converts an S-matrix, input impedances and probe voltages to
