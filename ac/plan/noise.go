@@ -2,6 +2,7 @@ package plan
 
 import (
 	"errors"
+	"math/cmplx"
 
 	"qpoint/ac"
 	"qpoint/bias/circuit"
@@ -118,4 +119,45 @@ func ResolveNoise(c *circuit.Circuit, nw *smallsignal.Network, r NoiseRequest) (
 		n.BandHz, n.HasBand = [2]float64{n.Grid[0], n.Grid[k-1]}, true
 	}
 	return n, nil
+}
+
+// NoiseRun is everything a noise analysis computes for its plan.
+type NoiseRun struct {
+	Plan   *Noise
+	Result *ac.NoiseResult // at each frequency of Plan.Grid
+	Band   *ac.NoiseBand   // integrated over Plan.BandHz; nil without a band
+	// Detection is the detector's sensitivity limit and Video its
+	// sensitivity γ(f) at each frequency of the grid; nil unless
+	// Plan.Detector.
+	Detection *ac.Detection
+	Video     []complex128
+}
+
+// Run computes the noise analysis n of the network nw.
+func (n *Noise) Run(nw *smallsignal.Network) (*NoiseRun, error) {
+	o := &NoiseRun{Plan: n}
+	var err error
+	if o.Result, err = ac.Noise(nw, n.Grid, n.Settings); err != nil {
+		return nil, err
+	}
+	if n.HasBand {
+		if o.Band, err = ac.IntegrateNoise(nw, n.Settings, n.BandHz[0], n.BandHz[1]); err != nil {
+			return nil, err
+		}
+	}
+	if n.Detector {
+		if o.Detection, err = ac.Detector(nw, n.Settings, n.CarrierHz, n.VideoBandHz[0], n.VideoBandHz[1]); err != nil {
+			return nil, err
+		}
+		if o.Video, err = ac.VideoSensitivity(nw, n.Settings, n.CarrierHz, n.Grid); err != nil {
+			return nil, err
+		}
+	}
+	return o, nil
+}
+
+// NEP returns the noise-equivalent power at grid point i, v_n(f)/|γ(f)|,
+// of a detector.
+func (o *NoiseRun) NEP(i int) float64 {
+	return o.Result.Points[i].Density() / cmplx.Abs(o.Video[i])
 }
