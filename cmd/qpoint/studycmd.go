@@ -7,7 +7,6 @@ import (
 	"io"
 	"math"
 	"math/cmplx"
-	"slices"
 	"strconv"
 	"strings"
 	"time"
@@ -15,6 +14,7 @@ import (
 	"github.com/spf13/cobra"
 
 	"qpoint/ac"
+	"qpoint/ac/plan"
 	"qpoint/ac/study"
 	"qpoint/bias/circuit"
 	"qpoint/bias/si"
@@ -128,57 +128,6 @@ type studySetup struct {
 	value    float64
 }
 
-func parseAxis(c *circuit.Circuit, flag, what, from, to string, steps int, log bool) (*study.Axis, error) {
-	v, err := c.ResolveVary(what)
-	if err != nil {
-		return nil, inputError(fmt.Errorf("flag --%s: %w", flag, err))
-	}
-	suffix := strings.TrimPrefix(flag, "vary")
-	read := func(name, s string) (float64, error) {
-		if s == "" {
-			return 0, inputError(fmt.Errorf("flag --%s%s is missing; give the %s of %s as a %s, e.g. %s", name, suffix, name, what, v.Quantity, exampleOf(v.Quantity)))
-		}
-		x, err := circuit.ParseBounded(s, v.Quantity)
-		if err != nil {
-			return 0, inputError(fmt.Errorf("flag --%s%s: %w", name, suffix, err))
-		}
-		if err := v.Check(x); err != nil {
-			return 0, inputError(fmt.Errorf("flag --%s%s: %w", name, suffix, err))
-		}
-		return x, nil
-	}
-	a, err := read("from", from)
-	if err != nil {
-		return nil, err
-	}
-	b, err := read("to", to)
-	if err != nil {
-		return nil, err
-	}
-	if steps < 1 || steps > 100000 {
-		return nil, inputError(fmt.Errorf("flag --steps%s: %d; accepted: 1 to 100000", suffix, steps))
-	}
-	vals, err := study.Grid(a, b, steps, log)
-	if err != nil {
-		return nil, inputError(fmt.Errorf("flags --from%s/--to%s: %w", suffix, suffix, err))
-	}
-	return &study.Axis{Vary: v, Values: vals}, nil
-}
-
-func exampleOf(q circuit.Quantity) string {
-	switch q {
-	case circuit.Temperature:
-		return "-40C"
-	case circuit.Voltage:
-		return "3.3V"
-	case circuit.Resistance:
-		return "47k"
-	case circuit.Current:
-		return "1mA"
-	}
-	return "1.5"
-}
-
 func resolveStudy(warn io.Writer, path string, fl *studyFlags) (*studySetup, error) {
 	c, err := loadCircuit(warn, path, fl.sets, "")
 	if err != nil {
@@ -190,116 +139,46 @@ func resolveStudy(warn io.Writer, path string, fl *studyFlags) (*studySetup, err
 	return resolveStudyFor(c, fl)
 }
 
-// resolveStudyFor resolves the flags and the file's defaults for a loaded
-// circuit.
+// resolveStudyFor reads the flags into a study request and resolves it
+// on the plan.
 func resolveStudyFor(c *circuit.Circuit, fl *studyFlags) (*studySetup, error) {
-	path := c.File
-	var err error
-	def := c.Analysis.Study
-	s := &studySetup{c: c}
 	if !(fl.tolerance > 0 && fl.tolerance < 1) {
 		return nil, inputError(fmt.Errorf("flag --tolerance: %g; accepted: a fraction of the range above 0 and below 1, e.g. 1e-6", fl.tolerance))
 	}
-	// The file's defaults fill what the flags leave out, when the flags
-	// vary the same thing (or nothing).
-	if fl.vary == "" && def.Set {
-		fl.vary = def.Vary
-		if fl.steps == 0 {
-			fl.steps = def.Steps
-		}
-		fl.log = fl.log || def.Log
-		if fl.from == "" || fl.to == "" {
-			v, err := c.ResolveVary(def.Vary)
-			if err != nil {
-				return nil, inputError(fmt.Errorf("%s: analysis.study: %w", path, err))
-			}
-			unit := v.Quantity.Unit()
-			if v.Quantity == circuit.Temperature {
-				unit = "K"
-			}
-			if fl.from == "" {
-				fl.from = strconv.FormatFloat(def.From, 'g', -1, 64) + unit
-			}
-			if fl.to == "" {
-				fl.to = strconv.FormatFloat(def.To, 'g', -1, 64) + unit
-			}
-		}
+	if fl.workers < 0 || fl.workers > maxWorkers {
+		return nil, inputError(fmt.Errorf("flag --workers: %d; accepted: 0 (all cores) to %d", fl.workers, maxWorkers))
 	}
-	if fl.vary == "" {
-		return nil, inputError(errors.New("flag --vary is missing and the file has no analysis.study; e.g. --vary Vcc.value --from 0V --to 3.3V --steps 34"))
+	req := plan.StudyRequest{
+		Axis:    plan.AxisRequest{Vary: fl.vary, From: fl.from, To: fl.to, Steps: fl.steps, Log: fl.log},
+		Input:   fl.input,
+		Output:  fl.output,
+		Signed:  fl.signed,
+		Workers: fl.workers,
 	}
-	if fl.steps == 0 {
-		fl.steps = 21
+	if fl.vary2 != "" {
+		req.Second = &plan.AxisRequest{Vary: fl.vary2, From: fl.from2, To: fl.to2, Steps: fl.steps2, Log: fl.log2}
 	}
-	ax, err := parseAxis(c, "vary", fl.vary, fl.from, fl.to, fl.steps, fl.log)
-	if err != nil {
+	var err error
+	if req.FrequenciesHz, err = frequencyList("frequencies", fl.frequencies); err != nil {
 		return nil, err
 	}
-	s.settings.Axis = *ax
-
-	// Study frequencies: flags, else the distortion frequency, else the
-	// middle of the response range.
-	var freqs []float64
-	if fl.frequencies != "" {
-		for _, t := range strings.Split(fl.frequencies, ",") {
-			f, err := circuit.ParseBounded(strings.TrimSpace(t), circuit.Frequency)
-			if err == nil {
-				err = ac.CheckFrequency(f)
-			}
-			if err != nil {
-				return nil, inputError(fmt.Errorf("flag --frequencies: %w", err))
-			}
-			freqs = append(freqs, f)
-		}
-	} else if c.Analysis.Distortion.Set {
-		freqs = []float64{c.Analysis.Distortion.FrequencyHz}
-	} else if c.Analysis.Response.Set {
-		freqs = []float64{math.Sqrt(c.Analysis.Response.FromHz * c.Analysis.Response.ToHz)}
-	} else {
-		freqs = []float64{1e9}
+	if req.DistortionHz, err = frequencyList("frequency", fl.distortionFrequency); err != nil {
+		return nil, err
 	}
-
-	if fl.vary2 != "" {
-		if fl.steps2 == 0 {
-			return nil, inputError(errors.New("flag --steps2 is missing: a second quantity needs its own --from2, --to2 and --steps2"))
+	if fl.level != "" {
+		lv, err := circuit.ParseLevel(fl.level)
+		if err != nil {
+			return nil, inputError(fmt.Errorf("flag --level: %w", err))
 		}
-		if fl.vary2 == "frequency" {
-			a, err := circuit.ParseBounded(fl.from2, circuit.Frequency)
-			if err != nil {
-				return nil, inputError(fmt.Errorf("flag --from2: %w", err))
-			}
-			b, err := circuit.ParseBounded(fl.to2, circuit.Frequency)
-			if err != nil {
-				return nil, inputError(fmt.Errorf("flag --to2: %w", err))
-			}
-			for _, f := range []float64{a, b} {
-				if err := ac.CheckFrequency(f); err != nil {
-					return nil, inputError(fmt.Errorf("flags --from2/--to2: %w", err))
-				}
-			}
-			vals, err := study.Grid(a, b, fl.steps2, fl.log2)
-			if err != nil {
-				return nil, inputError(fmt.Errorf("flags --from2/--to2: %w", err))
-			}
-			s.settings.Second = &study.Axis{Values: vals}
-			s.settings.SecondIsFrequency = true
-			freqs = nil
-		} else {
-			ax2, err := parseAxis(c, "vary2", fl.vary2, fl.from2, fl.to2, fl.steps2, fl.log2)
-			if err != nil {
-				return nil, err
-			}
-			if ax2.Vary.Text == ax.Vary.Text {
-				return nil, inputError(fmt.Errorf("flags --vary and --vary2 both vary %s; choose two different quantities", ax.Vary.Text))
-			}
-			s.settings.Second = ax2
-		}
-		if len(s.settings.Axis.Values)*len(s.settings.Second.Values) > 1_000_000 {
-			return nil, inputError(errors.New("flags --steps/--steps2: more than a million grid points"))
-		}
+		req.Level = &lv
 	}
-
-	// The goal, if any.
+	if fl.videoBandwidth != "" {
+		lo, hi, err := parseBand("video-bandwidth", fl.videoBandwidth, plan.DefaultVideoFromHz)
+		if err != nil {
+			return nil, err
+		}
+		req.VideoBandHz = [2]float64{lo, hi}
+	}
 	goals := 0
 	for _, g := range []string{fl.target, fl.maximize, fl.minimize} {
 		if g != "" {
@@ -309,114 +188,44 @@ func resolveStudyFor(c *circuit.Circuit, fl *studyFlags) (*studySetup, error) {
 	if goals > 1 {
 		return nil, inputError(errors.New("flags --target, --maximize and --minimize: give one at a time"))
 	}
-	if goals == 1 && s.settings.Second != nil {
-		return nil, inputError(errors.New("flags --target/--maximize/--minimize need a study of one quantity; drop --vary2"))
-	}
-	measureText := ""
 	switch {
 	case fl.target != "":
-		m, v, ok := strings.Cut(fl.target, "=")
-		if !ok {
-			return nil, inputError(fmt.Errorf("flag --target: `%s` is not MEASURE=VALUE; e.g. s21=-10dB@900MHz", fl.target))
-		}
-		// "s21=-10dB@900MHz": the frequency may follow the value.
-		if at := strings.IndexByte(v, '@'); at >= 0 {
-			m, v = m+v[at:], v[:at]
-		}
-		measureText, s.goal = m, "target"
-		s.measure, err = study.ParseMeasure(strings.TrimSpace(m))
-		if err != nil {
-			return nil, inputError(fmt.Errorf("flag --target: %w", err))
-		}
-		if s.value, err = s.measure.ParseValue(v); err != nil {
-			return nil, inputError(fmt.Errorf("flag --target: %w", err))
+		req.Goal = plan.Target
+		if req.MeasureText, req.TargetText, err = plan.ParseTarget(fl.target); err != nil {
+			return nil, planError(err)
 		}
 	case fl.maximize != "":
-		measureText, s.goal = fl.maximize, "maximize"
+		req.Goal, req.MeasureText = plan.Maximize, fl.maximize
 	case fl.minimize != "":
-		measureText, s.goal = fl.minimize, "minimize"
+		req.Goal, req.MeasureText = plan.Minimize, fl.minimize
 	}
-	if s.goal == "maximize" || s.goal == "minimize" {
-		if s.measure, err = study.ParseMeasure(strings.TrimSpace(measureText)); err != nil {
-			return nil, inputError(fmt.Errorf("flag --%s: %w", s.goal, err))
-		}
+	st, err := plan.ResolveStudy(c, req)
+	if err != nil {
+		return nil, planError(err)
 	}
-	if s.measure != nil && s.measure.FrequencyHz != 0 {
-		found := false
-		for _, f := range freqs {
-			found = found || f == s.measure.FrequencyHz
-		}
-		if !found {
-			freqs = append(freqs, s.measure.FrequencyHz)
-		}
-	}
-	s.settings.FrequenciesHz = freqs
-
-	// Distortion frequencies: --frequency, else the file's distortion
-	// frequency, else the first study frequency.
-	def2 := c.Analysis.Distortion
-	var dfreqs []float64
-	if fl.distortionFrequency != "" {
-		for _, t := range strings.Split(fl.distortionFrequency, ",") {
-			f, err := circuit.ParseBounded(strings.TrimSpace(t), circuit.Frequency)
-			if err == nil {
-				err = ac.CheckFrequency(f)
-			}
-			if err != nil {
-				return nil, inputError(fmt.Errorf("flag --frequency: %w", err))
-			}
-			dfreqs = append(dfreqs, f)
-		}
-	} else if def2.Set && def2.FrequencyHz > 0 {
-		dfreqs = []float64{def2.FrequencyHz}
-	} else if len(freqs) > 0 {
-		dfreqs = []float64{freqs[0]}
-	}
-	if s.measure != nil && s.measure.AtDistortion() && s.measure.FrequencyHz != 0 && !slices.Contains(dfreqs, s.measure.FrequencyHz) {
-		dfreqs = append(dfreqs, s.measure.FrequencyHz)
-	}
-	// The signal path (and, with a level, the drive): when a level is
-	// given, the file has one, or a measure needs the path.
-	needPath := s.measure != nil && (s.measure.NeedsNoise() || s.measure.NeedsDetector())
-	if fl.level != "" || def2.Set || needPath {
-		if len(dfreqs) == 0 {
-			return nil, inputError(errors.New("no distortion frequency: give --frequency (e.g. 2.45GHz)"))
-		}
-		d, err := distortionDrive(c, &distortionFlags{input: fl.input, output: fl.output, level: fl.level,
-			frequency: strconv.FormatFloat(dfreqs[0], 'g', -1, 64) + "Hz"})
-		if err != nil {
-			return nil, err
-		}
-		d.drive.SecondToneHz = 0
-		if fl.level == "" && !def2.Set {
-			d.drive.EMF = 0 // the path alone: no level was asked for
-		}
-		s.settings.Drive = d.drive
-		s.settings.DistortionHz = dfreqs
-	}
-	if s.measure != nil && s.measure.NeedsDrive() && s.settings.Drive.EMF == 0 {
-		return nil, inputError(fmt.Errorf("measure %s needs a signal level: give --level (e.g. -30dBm)", s.measure.Text))
-	}
-	if s.measure != nil {
-		s.measure.Signed = fl.signed
-		s.settings.NoiseFigure = s.measure.NeedsNoise()
-	}
-	if s.measure != nil && s.measure.NeedsDetector() || fl.videoBandwidth != "" {
-		vb := fl.videoBandwidth
-		if vb == "" {
-			vb = "2MHz"
-		}
-		lo, hi, err := parseBand("video-bandwidth", vb, 1)
-		if err != nil {
-			return nil, err
-		}
-		s.settings.Detector = &study.DetectorSettings{VideoFromHz: lo, VideoToHz: hi}
-	}
-	if fl.workers < 0 || fl.workers > maxWorkers {
-		return nil, inputError(fmt.Errorf("flag --workers: %d; accepted: 0 (all cores) to %d", fl.workers, maxWorkers))
-	}
-	s.settings.Workers = fl.workers
+	s := &studySetup{c: c, settings: st.Settings, measure: st.Measure, value: st.Value}
+	s.goal = map[plan.GoalKind]string{plan.Target: "target", plan.Maximize: "maximize", plan.Minimize: "minimize"}[st.Goal]
 	return s, nil
+}
+
+// frequencyList reads a comma-separated list of frequencies given to flag;
+// nil for none.
+func frequencyList(flag, text string) ([]float64, error) {
+	if text == "" {
+		return nil, nil
+	}
+	var out []float64
+	for _, t := range strings.Split(text, ",") {
+		f, err := circuit.ParseBounded(strings.TrimSpace(t), circuit.Frequency)
+		if err == nil {
+			err = ac.CheckFrequency(f)
+		}
+		if err != nil {
+			return nil, inputError(fmt.Errorf("flag --%s: %w", flag, err))
+		}
+		out = append(out, f)
+	}
+	return out, nil
 }
 
 func runStudy(cmd *cobra.Command, path string, fl *studyFlags) error {
