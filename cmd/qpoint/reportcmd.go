@@ -329,7 +329,7 @@ func studySection(c *circuit.Circuit) (report.Section, error) {
 		return sec, analysisError(err)
 	}
 	sec.Intro = fmt.Sprintf("%s from %s to %s in %d steps (%d Newton iterations with continuation).", r.Settings.Axis.Vary.Text,
-		formatCell(r.Settings.Axis.Values[0], r.Settings.Axis.Vary.Quantity.Unit()), formatCell(r.Settings.Axis.Values[len(r.Settings.Axis.Values)-1], r.Settings.Axis.Vary.Quantity.Unit()),
+		report.FormatCell(r.Settings.Axis.Values[0], r.Settings.Axis.Vary.Quantity.Unit()), report.FormatCell(r.Settings.Axis.Values[len(r.Settings.Axis.Values)-1], r.Settings.Axis.Vary.Quantity.Unit()),
 		len(r.Steps), r.Newton)
 	for _, f := range studyFigures(r, "") {
 		fig, err := svgOf(f)
@@ -338,18 +338,18 @@ func studySection(c *circuit.Circuit) (report.Section, error) {
 		}
 		sec.Blocks = append(sec.Blocks, report.Block{Figure: fig})
 	}
-	cols := studyColumns(r)
-	t := studyTable(r, cols)
+	cols := report.StudyColumns(r)
+	t := report.StudyTable(r, cols)
 	// Keep the report's table readable: at most a dozen rows.
-	if n := len(t.rows); n > 12 {
+	if n := len(t.Rows); n > 12 {
 		var rows [][]string
 		for k := 0; k < 12; k++ {
-			rows = append(rows, t.rows[int(math.Round(float64(k)*float64(n-1)/11))])
+			rows = append(rows, t.Rows[int(math.Round(float64(k)*float64(n-1)/11))])
 		}
-		t.rows = rows
-		t.title = fmt.Sprintf("Study (12 of %d steps)", n)
+		t.Rows = rows
+		t.Caption = fmt.Sprintf("Study (12 of %d steps)", n)
 	}
-	sec.Blocks = append(sec.Blocks, report.Block{Table: t.report()})
+	sec.Blocks = append(sec.Blocks, report.Block{Table: t})
 	return sec, nil
 }
 

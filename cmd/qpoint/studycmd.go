@@ -6,7 +6,6 @@ import (
 	"fmt"
 	"io"
 	"math"
-	"math/cmplx"
 	"strconv"
 	"strings"
 	"time"
@@ -17,8 +16,8 @@ import (
 	"qpoint/ac/plan"
 	"qpoint/ac/study"
 	"qpoint/bias/circuit"
-	"qpoint/bias/si"
 	"qpoint/plots"
+	"qpoint/plots/report"
 )
 
 type studyFlags struct {
@@ -268,7 +267,7 @@ func runStudy(cmd *cobra.Command, path string, fl *studyFlags) error {
 	if err != nil {
 		return analysisError(err)
 	}
-	cols := studyColumns(r)
+	cols := report.StudyColumns(r)
 	var figs []*plots.Figure
 	if fl.plotsDir != "" {
 		if figs, err = studyPlots(r, fl.show, solutionMarks(s, sol)...); err != nil {
@@ -305,116 +304,11 @@ func runStudy(cmd *cobra.Command, path string, fl *studyFlags) error {
 	return nil
 }
 
-// column is one column of the study's table and CSV.
-type column struct {
-	header string // CSV header with unit
-	title  string // table heading
-	unit   string // SI unit for the table ("" for dB figures)
-	get    func(st *study.Step) float64
-}
-
-func axisHeader(a *study.Axis, frequency bool) (string, string) {
-	if frequency {
-		return "frequency", "Hz"
-	}
-	return a.Vary.Text, a.Vary.Quantity.Unit()
-}
-
-func studyColumns(r *study.Result) []column {
-	var cols []column
-	name, unit := axisHeader(&r.Settings.Axis, false)
-	cols = append(cols, column{name + "_" + unitOrNumber(unit), name, unit, func(st *study.Step) float64 { return st.Values[0] }})
-	if r.Settings.Second != nil {
-		n2, u2 := axisHeader(r.Settings.Second, r.Settings.SecondIsFrequency)
-		cols = append(cols, column{n2 + "_" + unitOrNumber(u2), n2, u2, func(st *study.Step) float64 { return st.Values[1] }})
-	}
-	first := r.FirstSolved()
-	if first == nil {
-		return cols
-	}
-	for k, d := range first.Diodes {
-		k := k
-		cols = append(cols,
-			column{d.Name + ".current_A", d.Name + " current", "A", func(st *study.Step) float64 { return st.Diodes[k].Current }},
-			column{d.Name + ".dynamic_resistance_ohm", d.Name + " r_d", "Ω", func(st *study.Step) float64 { return st.Diodes[k].DynamicResistance }},
-			column{d.Name + ".junction_capacitance_F", d.Name + " C_j", "F", func(st *study.Step) float64 { return st.Diodes[k].JunctionCapacitance }},
-			column{d.Name + ".video_resistance_ohm", d.Name + " R_video", "Ω", func(st *study.Step) float64 { return st.Diodes[k].VideoResistance }})
-	}
-	nf := len(first.Responses)
-	for fi := 0; fi < nf; fi++ {
-		fi := fi
-		tag := ""
-		if !r.Settings.SecondIsFrequency {
-			tag = "@" + si.Format(first.Responses[fi].FrequencyHz, "Hz", 6)
-		}
-		ftag := strings.ReplaceAll(tag, " ", "")
-		if len(r.Ports) > 1 {
-			cols = append(cols, column{"s21_dB" + ftag, "S21 dB" + tag, "", func(st *study.Step) float64 { return 20 * math.Log10(cmplx.Abs(st.Responses[fi].S[1][0])) }})
-		}
-		cols = append(cols,
-			column{"s11_dB" + ftag, "S11 dB" + tag, "", func(st *study.Step) float64 { return 20 * math.Log10(cmplx.Abs(st.Responses[fi].S[0][0])) }},
-			column{"zin_re_ohm" + ftag, "Re Zin" + tag, "Ω", func(st *study.Step) float64 { return real(st.Responses[fi].InputImpedance[0]) }},
-			column{"zin_im_ohm" + ftag, "Im Zin" + tag, "Ω", func(st *study.Step) float64 { return imag(st.Responses[fi].InputImpedance[0]) }})
-		for pk, p := range r.Probes {
-			pk := pk
-			cols = append(cols, column{"probe." + p + "_dB" + ftag, p + " dB" + tag, "", func(st *study.Step) float64 { return 20 * math.Log10(cmplx.Abs(st.Responses[fi].Probes[pk])) }})
-		}
-		for k, d := range first.Diodes {
-			k := k
-			cols = append(cols,
-				column{d.Name + ".current_sensitivity_A/W" + ftag, d.Name + " β A/W" + tag, "", func(st *study.Step) float64 { return st.Diodes[k].CurrentSensitivity[fi] }},
-				column{d.Name + ".voltage_sensitivity_V/W" + ftag, d.Name + " γ V/W" + tag, "", func(st *study.Step) float64 { return st.Diodes[k].VoltageSensitivity[fi] }})
-		}
-	}
-	if len(first.NoiseFigureDB) > 0 {
-		for fi := range first.NoiseFigureDB {
-			fi := fi
-			tag := ""
-			if !r.Settings.SecondIsFrequency {
-				tag = "@" + si.Format(first.Responses[fi].FrequencyHz, "Hz", 6)
-			}
-			cols = append(cols, column{"noise_figure_dB" + strings.ReplaceAll(tag, " ", ""), "NF dB" + tag, "", func(st *study.Step) float64 { return st.NoiseFigureDB[fi] }})
-		}
-	}
-	for di, d := range first.Distortion {
-		di := di
-		tag := "@" + si.Format(d.FrequencyHz, "Hz", 6)
-		ftag := strings.ReplaceAll(tag, " ", "")
-		cols = append(cols,
-			column{"hd2_dBc" + ftag, "HD2 dBc" + tag, "", func(st *study.Step) float64 { return st.Distortion[di].HD2dBc }},
-			column{"hd3_dBc" + ftag, "HD3 dBc" + tag, "", func(st *study.Step) float64 { return st.Distortion[di].HD3dBc }},
-			column{"dc_shift_V" + ftag, "DC shift" + tag, "V", func(st *study.Step) float64 { return st.Distortion[di].DCShift }},
-			column{"sensitivity_V/W" + ftag, "sensitivity V/W" + tag, "", func(st *study.Step) float64 { return st.Distortion[di].Sensitivity }})
-	}
-	if r.Settings.Detector != nil {
-		cols = append(cols,
-			column{"nep_W/rtHz", "NEP", "W/√Hz", func(st *study.Step) float64 { return detection(st).NEP }},
-			column{"tss_dBm", "TSS dBm", "", func(st *study.Step) float64 { return detection(st).TangentialDBm }})
-	}
-	return cols
-}
-
-// detection returns a step's detector figures, NaN where the output does
-// not detect.
-func detection(st *study.Step) study.Detection {
-	if st.Detection == nil || !st.Detection.Detects {
-		return study.Detection{NEP: math.NaN(), TangentialDBm: math.NaN()}
-	}
-	return *st.Detection
-}
-
-func unitOrNumber(u string) string {
-	if u == "" {
-		return "1"
-	}
-	return u
-}
-
-func writeStudyCSV(w io.Writer, r *study.Result, cols []column) error {
+func writeStudyCSV(w io.Writer, r *study.Result, cols []report.StudyColumn) error {
 	cw := csv.NewWriter(w)
 	var header []string
 	for _, c := range cols {
-		header = append(header, c.header)
+		header = append(header, c.Key)
 	}
 	header = append(header, "newton_iterations", "error")
 	if err := cw.Write(header); err != nil {
@@ -424,11 +318,11 @@ func writeStudyCSV(w io.Writer, r *study.Result, cols []column) error {
 		st := &r.Steps[i]
 		var row []string
 		for k, c := range cols {
-			if st.Err != nil && k >= axisCount(r) {
+			if st.Err != nil && k >= report.AxisCount(r) {
 				row = append(row, "")
 				continue
 			}
-			row = append(row, strconv.FormatFloat(c.get(st), 'g', -1, 64))
+			row = append(row, strconv.FormatFloat(c.Get(st), 'g', -1, 64))
 		}
 		e := ""
 		if st.Err != nil {
@@ -443,55 +337,28 @@ func writeStudyCSV(w io.Writer, r *study.Result, cols []column) error {
 	return cw.Error()
 }
 
-func axisCount(r *study.Result) int {
-	if r.Settings.Second != nil {
-		return 2
-	}
-	return 1
-}
-
-func formatCell(v float64, unit string) string {
-	if unit == "" {
-		if math.IsNaN(v) || math.IsInf(v, 0) {
-			return "—"
-		}
-		if math.Abs(v) >= 1e4 || (math.Abs(v) < 1e-2 && v != 0) {
-			return si.Format(v, "", 4)
-		}
-		return strconv.FormatFloat(v, 'f', 2, 64)
-	}
-	if unit == "K" {
-		return fmt.Sprintf("%.2f °C", v-273.15)
-	}
-	u := unit
-	if u == "ohm" {
-		u = "Ω"
-	}
-	return si.Format(v, u, 4)
-}
-
-func writeStudyTable(w io.Writer, r *study.Result, cols []column, elapsed time.Duration, failed int) {
+func writeStudyTable(w io.Writer, r *study.Result, cols []report.StudyColumn, elapsed time.Duration, failed int) {
 	c := r.Circuit
 	fmt.Fprintf(w, "%s\n", c.Name)
 	fmt.Fprintf(w, "  file         %s\n", c.File)
 	writeOverrides(w, c)
 	what := r.Settings.Axis.Vary.Text
 	if r.Settings.Second != nil {
-		n2, _ := axisHeader(r.Settings.Second, r.Settings.SecondIsFrequency)
+		n2, _ := report.AxisHeader(r.Settings.Second, r.Settings.SecondIsFrequency)
 		what += " × " + n2
 	}
 	fmt.Fprintf(w, "  study        %s, %d steps in %s, %d Newton iterations\n", what, len(r.Steps), elapsed.Round(time.Millisecond), r.Newton)
 	if failed > 0 {
 		fmt.Fprintf(w, "  ! %d steps could not be solved; their rows are blank\n", failed)
 	}
-	studyTable(r, cols).write(w)
+	report.StudyTable(r, cols).WriteText(w)
 	warned := map[string]bool{}
 	for i := range r.Steps {
 		for _, x := range r.Steps[i].Warnings {
 			key := x.Part + x.Kind.String()
 			if !warned[key] {
 				warned[key] = true
-				fmt.Fprintf(w, "  ! %s at %s = %s: %s\n", x.Part, r.Settings.Axis.Vary.Text, formatCell(r.Steps[i].Values[0], r.Settings.Axis.Vary.Quantity.Unit()), x.Message)
+				fmt.Fprintf(w, "  ! %s at %s = %s: %s\n", x.Part, r.Settings.Axis.Vary.Text, report.FormatCell(r.Steps[i].Values[0], r.Settings.Axis.Vary.Quantity.Unit()), x.Message)
 			}
 		}
 	}
@@ -505,8 +372,8 @@ func writeSolution(w io.Writer, s *studySetup, r *study.Result, sol *study.Solut
 	case "target":
 		fmt.Fprintf(w, "Target %s = %g %s\n", s.measure.Text, s.value, s.measure.Unit)
 		fmt.Fprintf(w, "  met at %s = %s (bracket %s to %s, tolerance %s, %d refinements); %s there is %.6g %s\n",
-			what, formatCell(sol.Value, unit), formatCell(sol.Bracket[0], unit), formatCell(sol.Bracket[1], unit),
-			formatDifference(sol.Tolerance, unit), sol.Iterations, s.measure.Text, sol.Measure, s.measure.Unit)
+			what, report.FormatCell(sol.Value, unit), report.FormatCell(sol.Bracket[0], unit), report.FormatCell(sol.Bracket[1], unit),
+			report.FormatDifference(sol.Tolerance, unit), sol.Iterations, s.measure.Text, sol.Measure, s.measure.Unit)
 	default:
 		of := s.measure.Text
 		if sol.OnMagnitude {
@@ -514,7 +381,7 @@ func writeSolution(w io.Writer, s *studySetup, r *study.Result, sol *study.Solut
 		}
 		fmt.Fprintf(w, "%s of %s\n", map[string]string{"maximize": "Largest", "minimize": "Smallest"}[s.goal], of)
 		fmt.Fprintf(w, "  %.6g %s at %s = %s (searched %s to %s, tolerance %s)\n", sol.Measure, s.measure.Unit, what,
-			formatCell(sol.Value, unit), formatCell(sol.Bracket[0], unit), formatCell(sol.Bracket[1], unit), formatDifference(sol.Tolerance, unit))
+			report.FormatCell(sol.Value, unit), report.FormatCell(sol.Bracket[0], unit), report.FormatCell(sol.Bracket[1], unit), report.FormatDifference(sol.Tolerance, unit))
 		if sol.AtEdge {
 			fmt.Fprintf(w, "  ! the best value lies at the end of the range; widen it to see whether it improves further\n")
 		}
@@ -529,7 +396,7 @@ func solutionMarks(s *studySetup, sol *study.Solution) []plots.StudyMark {
 		return nil
 	}
 	mk := plots.StudyMark{Measure: s.measure, X: sol.Value, Y: sol.Measure, Target: math.NaN()}
-	val := formatMeasure(sol.Measure, s.measure.Unit)
+	val := report.FormatMeasure(sol.Measure, s.measure.Unit)
 	switch s.goal {
 	case "target":
 		mk.Target = s.value
@@ -543,48 +410,6 @@ func solutionMarks(s *studySetup, sol *study.Solution) []plots.StudyMark {
 		mk.Label = strings.Replace(mk.Label, "\n", " magnitude\n", 1)
 	}
 	return []plots.StudyMark{mk}
-}
-
-// formatMeasure prints a measure's value with its unit: decibel figures
-// to two decimals, the rest with SI prefixes.
-func formatMeasure(v float64, unit string) string {
-	switch unit {
-	case "dB", "dBc", "dBm":
-		return strconv.FormatFloat(v, 'f', 2, 64) + " " + unit
-	case "ohm":
-		return si.Format(v, "Ω", 4)
-	}
-	return si.Format(v, unit, 4)
-}
-
-// formatDifference prints a difference of the varied quantity: a
-// temperature difference stays in kelvin rather than becoming a Celsius
-// reading.
-func formatDifference(v float64, unit string) string {
-	if unit == "K" {
-		return si.Format(v, "K", 4)
-	}
-	return formatCell(v, unit)
-}
-
-func studyTable(r *study.Result, cols []column) *table {
-	t := &table{title: "Study"}
-	for _, col := range cols {
-		t.header = append(t.header, col.title)
-	}
-	for i := range r.Steps {
-		st := &r.Steps[i]
-		var cells []string
-		for k, col := range cols {
-			if st.Err != nil && k >= axisCount(r) {
-				cells = append(cells, "failed")
-				continue
-			}
-			cells = append(cells, formatCell(col.get(st), col.unit))
-		}
-		t.add(cells...)
-	}
-	return t
 }
 
 // maxWorkers bounds --workers: far more than any machine's cores, and few

@@ -2,6 +2,7 @@ package main
 
 import (
 	"qpoint/ac/study"
+	"qpoint/plots/report"
 )
 
 type studyDiodeJSON struct {
@@ -73,7 +74,7 @@ type studyJSON struct {
 	Columns  []string        `json:"columns"`
 }
 
-func studyDocument(r *study.Result, cols []column, s *studySetup, sol *study.Solution) *studyJSON {
+func studyDocument(r *study.Result, cols []report.StudyColumn, s *studySetup, sol *study.Solution) *studyJSON {
 	d := &studyJSON{Vary: []string{r.Settings.Axis.Vary.Text}, Shape: r.Shape, Newton: r.Newton}
 	if r.Settings.Second != nil {
 		if r.Settings.SecondIsFrequency {
@@ -83,7 +84,7 @@ func studyDocument(r *study.Result, cols []column, s *studySetup, sol *study.Sol
 		}
 	}
 	for _, c := range cols {
-		d.Columns = append(d.Columns, c.header)
+		d.Columns = append(d.Columns, c.Key)
 	}
 	for i := range r.Steps {
 		st := &r.Steps[i]
@@ -125,7 +126,7 @@ func studyDocument(r *study.Result, cols []column, s *studySetup, sol *study.Sol
 			j.NoiseFigure = append(j.NoiseFigure, number(nf))
 		}
 		if r.Settings.Detector != nil {
-			d := detection(st)
+			d := report.Detection(st)
 			j.NEP, j.TSSdBm = ptr(d.NEP), ptr(d.TangentialDBm)
 		}
 		for _, w := range st.Warnings {

@@ -400,8 +400,8 @@ func yieldTargetTable(r *yield.Result) *table {
 		if ts.Target.Bound == yield.Observe {
 			pass = "(no limit)"
 		}
-		t.add(ts.Target.Text, formatMeasure(ts.Nominal, u), formatMeasure(ts.Mean, u), formatSpread(ts.Std, u),
-			formatSpread(ts.LinearStd, u), formatMeasure(ts.Quantiles[lo], u), formatMeasure(ts.Quantiles[hi], u), pass)
+		t.add(ts.Target.Text, report.FormatMeasure(ts.Nominal, u), report.FormatMeasure(ts.Mean, u), formatSpread(ts.Std, u),
+			formatSpread(ts.LinearStd, u), report.FormatMeasure(ts.Quantiles[lo], u), report.FormatMeasure(ts.Quantiles[hi], u), pass)
 	}
 	return t
 }
@@ -416,7 +416,7 @@ func formatSpread(v float64, unit string) string {
 	case "dB", "dBc", "dBm":
 		return strconv.FormatFloat(v, 'f', 3, 64) + " " + unit
 	}
-	return formatMeasure(v, unit)
+	return report.FormatMeasure(v, unit)
 }
 
 // yieldShareTable ranks the values by their largest share of any
@@ -497,7 +497,7 @@ func yieldCornerTable(r *yield.Result) *table {
 		if cn.Err != nil {
 			verdict = "not solved"
 		}
-		t.add(ts.Target.Text, formatMeasure(ts.Target.Limit, u), formatMeasure(ts.Nominal, u), formatMeasure(cn.Reading, u), formatMeasure(worst, u), verdict)
+		t.add(ts.Target.Text, report.FormatMeasure(ts.Target.Limit, u), report.FormatMeasure(ts.Nominal, u), report.FormatMeasure(cn.Reading, u), report.FormatMeasure(worst, u), verdict)
 	}
 	return t
 }
@@ -509,11 +509,11 @@ func writeYieldCSV(w io.Writer, r *yield.Result) error {
 	c := r.Circuit
 	header := []string{"run"}
 	for _, t := range c.Tolerances {
-		header = append(header, t.Name+"_"+unitOrNumber(t.Quantity.Unit()))
+		header = append(header, t.Name+"_"+report.UnitOrNumber(t.Quantity.Unit()))
 	}
 	multi := len(r.TemperaturesK) > 1
 	for _, ts := range r.Targets {
-		u := unitOrNumber(ts.Target.Measure.Unit)
+		u := report.UnitOrNumber(ts.Target.Measure.Unit)
 		if multi {
 			for _, k := range r.TemperaturesK {
 				header = append(header, fmt.Sprintf("%s_%s@%gK", ts.Target.Text, u, k))
