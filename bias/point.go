@@ -14,7 +14,7 @@ type Point struct {
 	Nodes        []Node   // every named node but ground, in file order
 	Sources      []Source // voltage and current sources, in file order
 	Inductors    []Source // DC current of each inductor, in file order
-	Diodes       []Diode  // in file order
+	Diodes       []QPoint  // in file order
 	Warnings     []Warning
 	Stats        Stats
 
@@ -39,8 +39,8 @@ type Source struct {
 	Current float64 // A
 }
 
-// Diode is a diode's Q point.
-type Diode struct {
+// QPoint is a diode's Q point.
+type QPoint struct {
 	Name   string
 	Model  string
 	Device *diode.Device // the model at the point's temperature
@@ -144,7 +144,7 @@ func (s *system) point(st *state, p *Point) {
 				current = (va - vi) * gs
 			}
 		}
-		d := Diode{
+		d := QPoint{
 			Name:                 part.Name,
 			Model:                part.Model,
 			Device:               j.dev,

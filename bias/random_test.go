@@ -223,7 +223,7 @@ func checkCurrents(t *testing.T, c *circuit.Circuit, p *Point, withFloor bool) {
 	for _, s := range append(append([]Source(nil), p.Sources...), p.Inductors...) {
 		current[s.Name] = s.Current
 	}
-	diodes := map[string]Diode{}
+	diodes := map[string]QPoint{}
 	for _, d := range p.Diodes {
 		diodes[d.Name] = d
 	}

@@ -311,7 +311,7 @@ func (w *Workspace) New(p *bias.Point) (*Network, error) {
 
 // quiescent returns the Q point of the diode named name, the k-th diode of
 // the circuit in file order, as p lists them.
-func quiescent(p *bias.Point, k int, name string) (bias.Diode, bool) {
+func quiescent(p *bias.Point, k int, name string) (bias.QPoint, bool) {
 	if k < len(p.Diodes) && p.Diodes[k].Name == name {
 		return p.Diodes[k], true
 	}
@@ -320,7 +320,7 @@ func quiescent(p *bias.Point, k int, name string) (bias.Diode, bool) {
 			return d, true
 		}
 	}
-	return bias.Diode{}, false
+	return bias.QPoint{}, false
 }
 
 // branchCurrent returns the DC current of a voltage source or inductor at

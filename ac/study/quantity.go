@@ -203,7 +203,7 @@ func (m *Measure) Of(st *Step, freqs []float64, probes []string) (float64, error
 			return math.NaN(), fmt.Errorf("%s: %g Hz is not among the study's frequencies", m.Text, m.FrequencyHz)
 		}
 	}
-	resp := func() (*Response, error) {
+	resp := func() (*Spot, error) {
 		if fi >= len(st.Responses) {
 			return nil, fmt.Errorf("%s: the circuit has no ports or no study frequency", m.Text)
 		}
@@ -219,7 +219,7 @@ func (m *Measure) Of(st *Step, freqs []float64, probes []string) (float64, error
 		}
 		return 20 * math.Log10(cmplx.Abs(r.S[i][j])), nil
 	}
-	diode := func() (*Diode, error) {
+	diode := func() (*DiodeState, error) {
 		for k := range st.Diodes {
 			if st.Diodes[k].Name == m.Part {
 				return &st.Diodes[k], nil

@@ -130,8 +130,8 @@ type Distortion struct {
 	Sensitivity float64
 }
 
-// Diode is a diode's state at one step.
-type Diode struct {
+// DiodeState is a diode's state at one step.
+type DiodeState struct {
 	Name                 string
 	Current              float64 // A
 	Voltage              float64 // V, terminal
@@ -148,8 +148,8 @@ type Diode struct {
 	Warnings           int
 }
 
-// Response is the small-signal response at one frequency.
-type Response struct {
+// Spot is the small-signal response at one frequency.
+type Spot struct {
 	FrequencyHz    float64
 	S              [][]complex128
 	InputImpedance []complex128
@@ -163,8 +163,8 @@ type Step struct {
 
 	Iterations int           // Newton iterations of the bias solve
 	Strategy   bias.Strategy // how the bias converged
-	Diodes     []Diode
-	Responses  []Response // one per study frequency
+	Diodes     []DiodeState
+	Responses  []Spot // one per study frequency
 	Warnings   []bias.Warning
 
 	// Distortion holds the estimates at each distortion frequency
@@ -361,7 +361,7 @@ func analyse(cc *circuit.Circuit, temp float64, freqs []float64, s Settings, pre
 	}
 	for k, d := range p.Diodes {
 		sd := nw.Diodes[k]
-		dd := Diode{
+		dd := DiodeState{
 			Name: d.Name, Current: d.Current, Voltage: d.Voltage,
 			DynamicResistance: d.DynamicResistance, JunctionCapacitance: d.JunctionCapacitance,
 			DiffusionCapacitance: d.DiffusionCapacitance,
@@ -387,7 +387,7 @@ func analyse(cc *circuit.Circuit, temp float64, freqs []float64, s Settings, pre
 		st.Responses = slices.Grow(st.Responses[:0], len(freqs))
 		ws.ac.ReservePoints(len(freqs), len(nw.Ports), len(nw.Point.Circuit.Probes))
 		_, _, err := ws.ac.Sweep(nw, freqs, ac.Settings{}, func(pt ac.Point) error {
-			st.Responses = append(st.Responses, Response{pt.FrequencyHz, pt.S, pt.InputImpedance, pt.Probes})
+			st.Responses = append(st.Responses, Spot{pt.FrequencyHz, pt.S, pt.InputImpedance, pt.Probes})
 			return nil
 		})
 		if err != nil {

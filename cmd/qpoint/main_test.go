@@ -209,14 +209,14 @@ func TestBiasLine(t *testing.T) {
 	p := &bias.Point{TemperatureK: 300.15}
 	p.Stats.Strategy = bias.Newton
 	for k := 0; k < 3; k++ {
-		p.Diodes = append(p.Diodes, bias.Diode{Name: "D" + strconv.Itoa(k+1), Current: 1e-3 * float64(k+1)})
+		p.Diodes = append(p.Diodes, bias.QPoint{Name: "D" + strconv.Itoa(k+1), Current: 1e-3 * float64(k+1)})
 	}
 	if got, want := report.BiasLine(p), "solved at 27.00 °C by newton; D1 at 1 mA; D2 at 2 mA; D3 at 3 mA"; got != want {
 		t.Errorf("three diodes: %q, want %q", got, want)
 	}
 	p.Diodes = nil
 	for k := 0; k < 9; k++ {
-		p.Diodes = append(p.Diodes, bias.Diode{Name: "D" + strconv.Itoa(k+1), Current: 1e-3 * float64((k+4)%9+1)})
+		p.Diodes = append(p.Diodes, bias.QPoint{Name: "D" + strconv.Itoa(k+1), Current: 1e-3 * float64((k+4)%9+1)})
 	}
 	if got, want := report.BiasLine(p), "solved at 27.00 °C by newton; 9 diodes from 1 mA (D6) to 9 mA (D5); the bias command lists them all"; got != want {
 		t.Errorf("nine diodes: %q, want %q", got, want)
@@ -234,13 +234,13 @@ func TestBiasLine(t *testing.T) {
 func TestBiasCards(t *testing.T) {
 	p := &bias.Point{}
 	for k := 0; k < 3; k++ {
-		p.Diodes = append(p.Diodes, bias.Diode{Name: "D" + strconv.Itoa(k+1), Current: 1e-3})
+		p.Diodes = append(p.Diodes, bias.QPoint{Name: "D" + strconv.Itoa(k+1), Current: 1e-3})
 	}
 	if cards := biasCards(p); len(cards) != 3 || cards[0].Label != "D1 bias" {
 		t.Errorf("three diodes: %+v", cards)
 	}
 	for k := 3; k < 9; k++ {
-		p.Diodes = append(p.Diodes, bias.Diode{Name: "D" + strconv.Itoa(k+1), Current: 1e-3 * float64(k)})
+		p.Diodes = append(p.Diodes, bias.QPoint{Name: "D" + strconv.Itoa(k+1), Current: 1e-3 * float64(k)})
 	}
 	cards := biasCards(p)
 	if len(cards) != 1 || cards[0].Label != "bias of 9 diodes" || cards[0].Value != "1 mA to 8 mA" || !strings.HasPrefix(cards[0].Detail, "D1 to D9") {

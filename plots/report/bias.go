@@ -19,7 +19,7 @@ const MaxListedDiodes = 6
 
 // CurrentRange returns the diodes with the least and the greatest current
 // (the first of each in file order); diodes must not be empty.
-func CurrentRange(diodes []bias.Diode) (lo, hi bias.Diode) {
+func CurrentRange(diodes []bias.QPoint) (lo, hi bias.QPoint) {
 	lo, hi = diodes[0], diodes[0]
 	for _, d := range diodes[1:] {
 		if d.Current < lo.Current {
@@ -108,25 +108,25 @@ func BiasTables(p *bias.Point) []*Table {
 		for _, d := range ds {
 			t.Header = append(t.Header, d.Name)
 		}
-		row := func(name string, f func(d bias.Diode) string) {
+		row := func(name string, f func(d bias.QPoint) string) {
 			cells := []string{name}
 			for _, d := range ds {
 				cells = append(cells, f(d))
 			}
 			t.Add(cells...)
 		}
-		row("model", func(d bias.Diode) string { return d.Model })
-		row("terminal voltage", func(d bias.Diode) string { return si.Format(d.Voltage, "V", 5) })
-		row("junction voltage", func(d bias.Diode) string { return si.Format(d.JunctionVoltage, "V", 5) })
-		row("current", func(d bias.Diode) string { return si.Format(d.Current, "A", 4) })
-		row("dynamic resistance", func(d bias.Diode) string { return si.Format(d.DynamicResistance, "Ω", 4) })
-		row("series resistance", func(d bias.Diode) string { return si.Format(d.Device.Params.SeriesResistance, "Ω", 4) })
-		row("junction capacitance", func(d bias.Diode) string { return si.Format(d.JunctionCapacitance, "F", 4) })
-		row("diffusion capacitance", func(d bias.Diode) string { return si.Format(d.DiffusionCapacitance, "F", 4) })
-		row("power", func(d bias.Diode) string { return si.Format(d.Power, "W", 3) })
-		row("of current rating", func(d bias.Diode) string { return Percent(d.CurrentFraction) })
-		row("of reverse-voltage rating", func(d bias.Diode) string { return Percent(d.ReverseVoltageFraction) })
-		row("of power rating", func(d bias.Diode) string { return Percent(d.PowerFraction) })
+		row("model", func(d bias.QPoint) string { return d.Model })
+		row("terminal voltage", func(d bias.QPoint) string { return si.Format(d.Voltage, "V", 5) })
+		row("junction voltage", func(d bias.QPoint) string { return si.Format(d.JunctionVoltage, "V", 5) })
+		row("current", func(d bias.QPoint) string { return si.Format(d.Current, "A", 4) })
+		row("dynamic resistance", func(d bias.QPoint) string { return si.Format(d.DynamicResistance, "Ω", 4) })
+		row("series resistance", func(d bias.QPoint) string { return si.Format(d.Device.Params.SeriesResistance, "Ω", 4) })
+		row("junction capacitance", func(d bias.QPoint) string { return si.Format(d.JunctionCapacitance, "F", 4) })
+		row("diffusion capacitance", func(d bias.QPoint) string { return si.Format(d.DiffusionCapacitance, "F", 4) })
+		row("power", func(d bias.QPoint) string { return si.Format(d.Power, "W", 3) })
+		row("of current rating", func(d bias.QPoint) string { return Percent(d.CurrentFraction) })
+		row("of reverse-voltage rating", func(d bias.QPoint) string { return Percent(d.ReverseVoltageFraction) })
+		row("of power rating", func(d bias.QPoint) string { return Percent(d.PowerFraction) })
 		tables = append(tables, t)
 	}
 
