@@ -14,7 +14,7 @@ type Point struct {
 	Nodes        []Node   // every named node but ground, in file order
 	Sources      []Source // voltage and current sources, in file order
 	Inductors    []Source // DC current of each inductor, in file order
-	Diodes       []QPoint  // in file order
+	Diodes       []QPoint // in file order
 	Warnings     []Warning
 	Stats        Stats
 
