@@ -158,6 +158,12 @@ func (s *System) drivePort(f []float64, i int, v float64) {
 // vl[k] instead of at x: i(vl) + g(vl) (v - vl), so that a Newton step can
 // stand on a limited junction voltage whatever nodes the junction joins.
 func (s *System) Eval(x []float64, emf float64, p []float64, f, q, jg, jc, vl []float64) {
+	s.eval(x, emf, p, f, q, jg, jc, vl, nil)
+}
+
+// eval is Eval, also leaving each junction's current in currents when
+// it is not nil (and vl is nil).
+func (s *System) eval(x []float64, emf float64, p []float64, f, q, jg, jc, vl, currents []float64) {
 	n := s.N
 	for i := 0; i < n; i++ {
 		var fs, qs float64
@@ -191,11 +197,14 @@ func (s *System) Eval(x []float64, emf float64, p []float64, f, q, jg, jc, vl []
 		var i, qd diode.Law
 		if vl != nil {
 			u := vl[k]
-			i, qd = d.Device.Current(u), d.Device.Charge(u)
+			i, qd = d.Device.Laws(u)
 			i.Value += i.D1 * (v - u)
 			qd.Value += qd.D1 * (v - u)
 		} else {
-			i, qd = d.Device.Current(v), d.Device.Charge(v)
+			i, qd = d.Device.Laws(v)
+			if currents != nil {
+				currents[k] = i.Value
+			}
 		}
 		stamp2(f, q, d.Junction, d.Cathode, i.Value, qd.Value)
 		if jg != nil {
@@ -234,6 +243,11 @@ func stampJ(m []float64, n, a, b int, g float64) {
 type Work struct {
 	F, Q   []float64
 	JG, JC []float64 // G(x), C(x), row-major N×N
+	// Currents holds each junction's current at the solution.
+	Currents []float64
+	// Bound, when not nil, replaces Step's relative test: converged
+	// means |dx_i| <= Bound[i] on every node voltage.
+	Bound []float64
 	Jac    blas64.General
 	Ipiv   []int
 	dx     blas64.General
@@ -250,13 +264,23 @@ func (s *System) NewWork() *Work {
 		Ipiv: make([]int, n),
 		dx:   blas64.General{Rows: n, Cols: 1, Stride: 1, Data: make([]float64, n)},
 		vl:   make([]float64, len(s.Network.Diodes)),
+
+		Currents: make([]float64, len(s.Network.Diodes)),
 	}
 }
 
+// smallN is the largest system Factor factors by its own loops rather than
+// LAPACK's dgetrf: below LAPACK's block size dgetrf runs the same
+// unblocked elimination (dgetf2), and for a handful of unknowns the cost
+// is the BLAS calls per column, not the arithmetic.
+const smallN = 24
+
 // Factor loads J = G(x) + a C(x) on dynamic rows, G(x) on algebraic ones,
-// from w's last evaluation, and factors it in place by LAPACK's dgetrf
-// (without the condition estimate a mat.LU makes, which nothing here
-// reads). It reports false for an exactly zero pivot.
+// from w's last evaluation, and factors it in place by Gaussian
+// elimination with partial pivoting: LAPACK's dgetrf (without the
+// condition estimate a mat.LU makes, which nothing here reads), or for at
+// most smallN unknowns the same elimination in plain loops that skip zero
+// multipliers. It reports false for an exactly zero pivot.
 func (s *System) Factor(a float64, w *Work) bool {
 	n := s.N
 	for i := 0; i < n; i++ {
@@ -268,13 +292,101 @@ func (s *System) Factor(a float64, w *Work) bool {
 			}
 		}
 	}
+	if n <= smallN {
+		return factorSmall(w.Jac.Data, n, w.Ipiv)
+	}
 	return lapack64.Getrf(w.Jac, w.Ipiv)
 }
 
 // Solve overwrites b (N × cols, row-major) with J⁻¹ b for the matrix
 // Factor last factored.
 func (s *System) Solve(b blas64.General, w *Work) {
+	if s.N <= smallN {
+		solveSmall(w.Jac.Data, s.N, w.Ipiv, b.Data, b.Cols, b.Stride)
+		return
+	}
 	lapack64.Getrs(blas.NoTrans, w.Jac, b, w.Ipiv)
+}
+
+// factorSmall factors the n×n row-major a in place into P A = L U, L unit
+// lower triangular below the diagonal and U on and above it, choosing as
+// pivot the first entry of largest magnitude in each column (as dgetf2
+// does); ipiv[j] is the row swapped with row j. It reports false for a
+// zero pivot.
+func factorSmall(a []float64, n int, ipiv []int) bool {
+	for j := 0; j < n; j++ {
+		p, big := j, math.Abs(a[j*n+j])
+		for i := j + 1; i < n; i++ {
+			if v := math.Abs(a[i*n+j]); v > big {
+				p, big = i, v
+			}
+		}
+		ipiv[j] = p
+		if big == 0 {
+			return false
+		}
+		if p != j {
+			rj, rp := a[j*n:(j+1)*n], a[p*n:(p+1)*n]
+			for k := range rj {
+				rj[k], rp[k] = rp[k], rj[k]
+			}
+		}
+		rj := a[j*n : (j+1)*n]
+		r := 1 / rj[j]
+		for i := j + 1; i < n; i++ {
+			ri := a[i*n : (i+1)*n]
+			l := ri[j] * r
+			ri[j] = l
+			if l == 0 {
+				continue
+			}
+			for k := j + 1; k < n; k++ {
+				ri[k] -= l * rj[k]
+			}
+		}
+	}
+	return true
+}
+
+// solveSmall overwrites b (n × cols, row stride stride) with A⁻¹ b for
+// the factors of factorSmall.
+func solveSmall(a []float64, n int, ipiv []int, b []float64, cols, stride int) {
+	row := func(i int) []float64 { return b[i*stride : i*stride+cols] }
+	for j := 0; j < n; j++ {
+		if p := ipiv[j]; p != j {
+			bj, bp := row(j), row(p)
+			for k := range bj {
+				bj[k], bp[k] = bp[k], bj[k]
+			}
+		}
+	}
+	for i := 1; i < n; i++ {
+		bi := row(i)
+		for k, l := range a[i*n : i*n+i] {
+			if l == 0 {
+				continue
+			}
+			for c, v := range row(k) {
+				bi[c] -= l * v
+			}
+		}
+	}
+	for i := n - 1; i >= 0; i-- {
+		bi := row(i)
+		for k := i + 1; k < n; k++ {
+			u := a[i*n+k]
+			if u == 0 {
+				continue
+			}
+			for c, v := range row(k) {
+				bi[c] -= u * v
+			}
+		}
+		d := a[i*n+i]
+		for c := range bi {
+			bi[c] /= d
+		}
+	}
 }
 
 // The ways a step's Newton solve fails.
@@ -293,7 +405,7 @@ var (
 // junction's law is taken on its tangent at a limited junction voltage
 // (diode.Device.Limit), so an iteration cannot overshoot the exponential.
 // Converged means an update of the node voltages below tol relative to
-// their size (plus 1e-3 V), or, since Newton converges quadratically
+// their size (plus 1e-3 V) or, when w.Bound is set, within it, or, since Newton converges quadratically
 // until rounding stops it, an update below 1e-10 relative (or 1e-10 of
 // the largest voltage) that no longer shrinks. On return w holds f, q and
 // the Jacobians evaluated exactly at the solution. It returns the
@@ -324,6 +436,7 @@ func (s *System) Step(x []float64, a float64, qBase, extra []float64, emf float6
 		// from them and can carry the rounding of a milliohm part.
 		worst, moved, vmax := 0.0, 0.0, 0.0
 		nodes := s.Network.NodeUnknowns
+		within := true
 		for i := 0; i < n; i++ {
 			nx := x[i] + w.dx.Data[i]
 			if math.IsNaN(nx) || math.IsInf(nx, 0) {
@@ -334,6 +447,9 @@ func (s *System) Step(x []float64, a float64, qBase, extra []float64, emf float6
 				worst = math.Max(worst, d/(math.Abs(nx)+1e-3))
 				moved = math.Max(moved, d)
 				vmax = math.Max(vmax, math.Abs(nx))
+				if w.Bound != nil && d > w.Bound[i] {
+					within = false
+				}
 			}
 			x[i] = nx
 		}
@@ -342,6 +458,9 @@ func (s *System) Step(x []float64, a float64, qBase, extra []float64, emf float6
 		// update that no longer shrinks and is below 1e-10 of the
 		// largest voltage is at the rounding level too.
 		small := worst <= tol || ((worst <= 1e-10 || moved <= 1e-10*(vmax+1e-3)) && worst > prevWorst/4)
+		if w.Bound != nil {
+			small = within || small
+		}
 		prevWorst = worst
 		// Junction-voltage limiting keeps a step from overshooting the
 		// exponential: the next iteration takes each junction on its
@@ -355,7 +474,7 @@ func (s *System) Step(x []float64, a float64, qBase, extra []float64, emf float6
 			limited = limited || lim
 		}
 		if small && !limited {
-			s.Eval(x, emf, p, w.F, w.Q, w.JG, w.JC, nil)
+			s.eval(x, emf, p, w.F, w.Q, w.JG, w.JC, nil, w.Currents)
 			return it, nil
 		}
 	}

@@ -319,3 +319,75 @@ func (p Pulse) Timescale() float64 {
 	}
 	return 1 / f
 }
+
+// pulseSource is a checked Pulse with its edges' lengths worked out once,
+// for the many calls of a run.
+type pulseSource struct {
+	p                        Pulse
+	up, down, flat, length   float64
+	count                    int
+	carrierStep, probeStep   float64
+	carrierOmega, probeOmega float64
+}
+
+func newPulseSource(p Pulse) *pulseSource {
+	s := &pulseSource{p: p, count: p.count(), flat: p.flat(), length: p.length()}
+	s.up, s.down = p.ramps()
+	s.carrierStep = 1 / (p.CarrierHz * minStepsPerPeriod)
+	s.carrierOmega = 2 * math.Pi * p.CarrierHz
+	s.probeStep = math.Inf(1)
+	if p.ProbeEMF != 0 {
+		s.probeStep = 1 / (p.ProbeHz * minStepsPerPeriod)
+		s.probeOmega = 2 * math.Pi * p.ProbeHz
+	}
+	return s
+}
+
+// at returns the pulse whose span holds t and its start, or -1.
+func (s *pulseSource) at(t float64) (int, float64) {
+	k := 0
+	if s.p.Period > 0 {
+		k = int(math.Floor((t - s.p.Delay) / s.p.Period))
+	}
+	if k < 0 || k >= s.count {
+		return -1, 0
+	}
+	t0 := s.p.Delay + float64(k)*s.p.Period
+	if t >= t0 && t < t0+s.up+s.flat+s.down {
+		return k, t0
+	}
+	return -1, 0
+}
+
+// EMF implements Source.
+func (s *pulseSource) EMF(t float64) float64 {
+	e := 0.0
+	if k, t0 := s.at(t); k >= 0 {
+		a := 1.0
+		switch u := t - t0; {
+		case u < s.up:
+			a = u / s.up
+		case u > s.up+s.flat:
+			a = (s.up + s.flat + s.down - u) / s.down
+		}
+		e = s.p.CarrierEMF * a * math.Cos(s.carrierOmega*(t-t0))
+	}
+	if s.p.ProbeEMF != 0 {
+		e += s.p.ProbeEMF * math.Cos(s.probeOmega*t)
+	}
+	return e
+}
+
+// NextBreak implements Source.
+func (s *pulseSource) NextBreak(t float64) float64 { return s.p.NextBreak(t) }
+
+// MaxStep implements Source.
+func (s *pulseSource) MaxStep(t float64) float64 {
+	if k, _ := s.at(t); k >= 0 {
+		return math.Min(s.carrierStep, s.probeStep)
+	}
+	return s.probeStep
+}
+
+// Timescale implements Source.
+func (s *pulseSource) Timescale() float64 { return s.p.Timescale() }

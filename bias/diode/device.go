@@ -29,7 +29,8 @@ type Device struct {
 	BuiltInPotential    float64 // V_bi(T)
 	ZeroBiasCapacitance float64 // C_j0(T)
 
-	nvt float64 // n V_T
+	nvt       float64 // n V_T
+	kneeFloor float64 // exp(-V_BV / (n V_T)), BreakdownCurrent's value at zero bias
 
 	// Notes lists anything the temperature scaling had to clamp.
 	Notes []string
@@ -54,6 +55,9 @@ func New(p Params, tempK float64) *Device {
 	d := &Device{Params: p, TempK: tempK}
 	d.ThermalVoltage = ThermalVoltage(tempK)
 	d.nvt = p.Ideality * d.ThermalVoltage
+	if p.BreakdownVoltage > 0 {
+		d.kneeFloor = math.Exp(-p.BreakdownVoltage / d.nvt)
+	}
 
 	t0 := p.MeasuredAtK
 	ratio := tempK / t0
@@ -118,7 +122,7 @@ func (d *Device) BreakdownCurrent(v float64) Law {
 	}
 	kneeCurrent := d.Params.BreakdownCurrent
 	e, e1, e2, e3 := expLaw(-(v + kneeVoltage) / d.nvt)
-	e0 := math.Exp(-kneeVoltage / d.nvt)
+	e0 := d.kneeFloor
 	k := d.nvt
 	return Law{
 		Value: -kneeCurrent * (e - e0),
@@ -187,6 +191,19 @@ func (d *Device) DiffusionCharge(v float64) Law {
 // Charge returns the total junction charge q_j(v) + q_d(v).
 func (d *Device) Charge(v float64) Law {
 	return d.DepletionCharge(v).Add(d.DiffusionCharge(v))
+}
+
+// Laws returns Current(v) and Charge(v) together, evaluating the forward
+// exponential they share once: what a time-domain solver needs at every
+// iteration.
+func (d *Device) Laws(v float64) (current, charge Law) {
+	f := d.ForwardCurrent(v)
+	current = f.Add(d.BreakdownCurrent(v))
+	charge = d.DepletionCharge(v)
+	if tau := d.Params.TransitTime; tau != 0 {
+		charge = charge.Add(f.Scale(tau))
+	}
+	return current, charge
 }
 
 // CriticalVoltage returns the junction voltage above which a Newton step is

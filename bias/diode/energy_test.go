@@ -51,3 +51,18 @@ func TestChargeEnergy(t *testing.T) {
 		}
 	}
 }
+
+// TestLaws: the combined evaluation equals Current and Charge exactly.
+func TestLaws(t *testing.T) {
+	for _, tau := range []float64{0, 1e-10} {
+		p := testParams()
+		p.TransitTime = tau
+		d := New(p, 300.15)
+		for _, v := range []float64{-4, -3.8, -1, 0, 0.1, 0.2, 0.4, 15} {
+			i, q := d.Laws(v)
+			if i != d.Current(v) || q != d.Charge(v) {
+				t.Errorf("tau %g, v %g: Laws gives %+v, %+v; Current and Charge give %+v, %+v", tau, v, i, q, d.Current(v), d.Charge(v))
+			}
+		}
+	}
+}
