@@ -248,10 +248,10 @@ type Work struct {
 	// Bound, when not nil, replaces Step's relative test: converged
 	// means |dx_i| <= Bound[i] on every node voltage.
 	Bound []float64
-	Jac    blas64.General
-	Ipiv   []int
-	dx     blas64.General
-	vl     []float64
+	Jac   blas64.General
+	Ipiv  []int
+	dx    blas64.General
+	vl    []float64
 }
 
 // NewWork returns storage for s's steps.
