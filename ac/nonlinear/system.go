@@ -245,8 +245,8 @@ type Work struct {
 	JG, JC []float64 // G(x), C(x), row-major N×N
 	// Currents holds each junction's current at the solution.
 	Currents []float64
-	// Bound, when not nil, replaces Step's relative test: converged
-	// means |dx_i| <= Bound[i] on every node voltage.
+	// Bound, when not nil, is a second test of Step's: converged also
+	// when |dx_i| <= Bound[i] on every node voltage.
 	Bound []float64
 	Jac   blas64.General
 	Ipiv  []int
