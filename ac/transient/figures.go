@@ -20,6 +20,7 @@ const (
 	imbalanceCaution  = 1e-2 // the energy account's imbalance
 	pulseToPulseDB    = 0.2  // the last two pulses' flat leakage
 	pulseToPulseShare = 0.1  // the last two pulses' recovery, relative
+	blockShare        = 0.01 // a DC block's mean current against its peak
 )
 
 // read takes the figures from run r.
@@ -47,7 +48,7 @@ func (res *PulseResult) read(nw *smallsignal.Network, r *Result, outNode, outRet
 	rOut := math.NaN()
 	if s.Output.Port >= 0 {
 		rOut = nw.Ports[s.Output.Port].Impedance
-	} else {
+	} else if res.Kind == Limiter {
 		res.caution(Caution{Kind: NodeOutput, Value: math.NaN(), Limit: math.NaN(),
 			Message: "the output is a node, not a port: no power is delivered anywhere to measure, so the leakage figures are not given; the envelope is in volts"})
 	}
@@ -143,6 +144,7 @@ func (res *PulseResult) read(nw *smallsignal.Network, r *Result, outNode, outRet
 			Message: fmt.Sprintf("the probe's loss had not come back within the limit by %s, the end of the run (or the next pulse): the recovery time is longer; follow the circuit for longer", si.Format(t1, "s", 4))})
 	}
 	res.stress(nw, r)
+	res.blocks(nw, r)
 	if r.Energy.Imbalance > imbalanceCaution {
 		res.caution(Caution{Kind: EnergyImbalance, Value: r.Energy.Imbalance, Limit: imbalanceCaution,
 			Message: fmt.Sprintf("the run's energy account is off by %.2g of its size: the tolerance is loose for these figures; tighten it", r.Energy.Imbalance)})
@@ -365,6 +367,31 @@ func (res *PulseResult) stress(nw *smallsignal.Network, r *Result) {
 		if st.PastKnee > 0 {
 			add(PastKnee, st.PastKnee, d.Device.Params.BreakdownVoltage, "the pulse drives the junction past its %s breakdown knee for %s in all",
 				si.Format(d.Device.Params.BreakdownVoltage, "V", 3), si.Format(st.PastKnee, "s", 3))
+		}
+	}
+}
+
+// blocks cautions where an AC-coupled port's DC block passed a mean
+// current over the run of more than blockShare of its peak: the run held
+// the block at its DC-point voltage, as an ideal block would, while a
+// real capacitor would have charged and moved the bias.
+func (res *PulseResult) blocks(nw *smallsignal.Network, r *Result) {
+	n := len(r.Times)
+	if n < 2 {
+		return
+	}
+	span := r.Times[n-1] - r.Times[0]
+	for k, b := range r.Blocks {
+		cur := r.BlockCurrents[k]
+		q, peak := 0.0, 0.0
+		for i := 1; i < n; i++ {
+			q += (r.Times[i] - r.Times[i-1]) * (cur[i] + cur[i-1]) / 2
+			peak = math.Max(peak, math.Abs(cur[i]))
+		}
+		if mean := q / span; peak > 0 && math.Abs(mean) > blockShare*peak {
+			res.caution(Caution{Kind: BlockCharging, Part: nw.Ports[b].Name, Value: mean, Limit: blockShare * peak,
+				Message: fmt.Sprintf("port %s: its DC block passed a mean current of %s over the run (%s in all, %.0f %% of its peak current); the run holds an ideal block at its DC-point voltage, while a real blocking capacitor of C would charge by %s/C and shift the bias: give the DC path in the circuit, or the block as a capacitor",
+					nw.Ports[b].Name, si.Format(mean, "A", 3), si.Format(q, "C", 3), 100*math.Abs(mean)/peak, si.Format(math.Abs(q), "C", 3))})
 		}
 	}
 }

@@ -153,6 +153,7 @@ const (
 	EnergyImbalance                       // the run's energy account is off: its tolerance is loose for these figures
 	NodeOutput                            // the output is a node: no output powers
 	PulseToPulse                          // the last two pulses' figures differ: the train had not settled
+	BlockCharging                         // a DC block passed a mean current: a real blocking capacitor would charge
 )
 
 func (k CautionKind) String() string {
@@ -183,6 +184,8 @@ func (k CautionKind) String() string {
 		return "node-output"
 	case PulseToPulse:
 		return "pulse-to-pulse"
+	case BlockCharging:
+		return "block-charging"
 	}
 	return "unknown"
 }

@@ -122,8 +122,16 @@ type Result struct {
 	EMF     []float64
 	Watched [][]float64 // Watched[k][i] is unknown Settings.Watch[k] at Times[i]
 	Diodes  []DiodeTrace
-	Energy  Energy
-	Stats   Stats
+	// Blocks lists the AC-coupled ports (indices into the network's
+	// ports) and BlockCurrents[k] the current through port Blocks[k]'s DC
+	// block into the circuit at each point. The run holds each block at
+	// its DC-point voltage, as an ideal block of infinite capacitance
+	// would; the periodic steady state instead charges it until it
+	// carries no mean current.
+	Blocks        []int
+	BlockCurrents [][]float64
+	Energy        Energy
+	Stats         Stats
 }
 
 // Stopped reports a run that ended before the time asked for: At is how
@@ -320,7 +328,7 @@ func Start(nw *smallsignal.Network, s Settings) (*Simulation, error) {
 			}
 		}
 	}
-	sim.res = &Result{Watched: make([][]float64, len(s.Watch)), Stats: Stats{
+	sim.res = &Result{Watched: make([][]float64, len(s.Watch)), Blocks: sys.Blocked, BlockCurrents: make([][]float64, len(sys.Blocked)), Stats: Stats{
 		Method:       "TR-BDF2 (γ = 2 - √2)",
 		Damping:      "L-stable: stiff modes decay to zero in one step (R(∞) = 0)",
 		SmallestStep: math.Inf(1),
@@ -700,6 +708,9 @@ func (sim *Simulation) record(t float64, x []float64, emf float64, currents []fl
 	r.EMF = append(r.EMF, emf)
 	for k, i := range sim.s.Watch {
 		r.Watched[k] = append(r.Watched[k], x[i])
+	}
+	for k, b := range sim.sys.Blocked {
+		r.BlockCurrents[k] = append(r.BlockCurrents[k], sim.sys.PortCurrent(b, x, emf, sim.p))
 	}
 	for k, d := range sim.nw.Diodes {
 		v := nonlinear.JunctionVoltage(x, d)
