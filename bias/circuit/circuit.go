@@ -126,11 +126,29 @@ type Study struct {
 	Pos   Pos
 }
 
+// Pulse holds the file's defaults for a pulse analysis. Rise and Fall
+// are 10-90 % times and zero when not given; Period is zero for a single
+// pulse.
+type Pulse struct {
+	Set          bool
+	Input        string // port name, "" when not given
+	Output       string // port or node name, "" when not given
+	OutputIsPort bool
+	CarrierHz    float64
+	Level        Level
+	Width        float64
+	Rise, Fall   float64
+	Period       float64
+	Pulses       int // zero when not given
+	Pos          Pos
+}
+
 // Analysis holds the optional analysis defaults.
 type Analysis struct {
 	Response   Response
 	Distortion Distortion
 	Study      Study
+	Pulse      Pulse
 }
 
 // Circuit is a loaded and checked circuit file. All values are in SI base
