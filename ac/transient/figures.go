@@ -12,7 +12,7 @@ import (
 
 // Thresholds of the figures and their cautions.
 const (
-	spikeMarginDB     = 1    // a spike stands more than this above the flat leakage
+	spikeMarginDB     = 1.0  // a spike stands more than this above the flat leakage, dB
 	flatPeriods       = 20   // at most this many carrier periods for the flat leakage
 	flatDriftDB       = 0.1  // the flat leakage's last two windows agree within this
 	probeMatchDB      = 0.1  // the probe's loss before the pulse against the small-signal loss
@@ -78,14 +78,16 @@ func (res *PulseResult) read(nw *smallsignal.Network, r *Result, outNode, outRet
 		}
 		return false
 	}
-	for t := t0 + tc/2; t+tc/2 <= t1; t += dt {
-		mean, ph := wc.window(t-tc/2, t+tc/2)
+	reach := smoothedReach * tc
+	preach := smoothedReach * probeWindow
+	for t := t0 + reach; t+reach <= t1; t += dt {
+		mean, ph := wc.smoothed(t, tc)
 		res.EnvelopeTimes = append(res.EnvelopeTimes, t)
 		res.Envelope = append(res.Envelope, cmplx.Abs(ph))
 		res.Video = append(res.Video, mean)
 		change := math.NaN()
-		if wp != nil && before > 0 && t-probeWindow/2 >= t0 && t+probeWindow/2 <= t1 && !overlaps(t-probeWindow/2, t+probeWindow/2) {
-			_, pp := wp.window(t-probeWindow/2, t+probeWindow/2)
+		if wp != nil && before > 0 && t-preach >= t0 && t+preach <= t1 && !overlaps(t-preach, t+preach) {
+			_, pp := wp.smoothed(t, probeWindow)
 			change = 20 * math.Log10(before/cmplx.Abs(pp))
 		}
 		res.LossChange = append(res.LossChange, change)
@@ -108,11 +110,12 @@ func (res *PulseResult) read(nw *smallsignal.Network, r *Result, outNode, outRet
 			res.limiter(&f, wc, power, tc, limit)
 			if wp != nil && !math.IsNaN(before) {
 				for _, lim := range []struct {
-					db  float64
-					dst *float64
-				}{{1, &f.Recovery1dB}, {3, &f.Recovery3dB}} {
+					db    float64
+					dst   *float64
+					bound *bool
+				}{{1, &f.Recovery1dB, &f.Recovery1dBBound}, {3, &f.Recovery3dB, &f.Recovery3dBBound}} {
 					v, state := res.recovery(c[3], limit, probeWindow, lim.db)
-					*lim.dst = v
+					*lim.dst, *lim.bound = v, state == recoveryBound
 					unresolved = unresolved || state == recoveryBound
 					notRecovered = notRecovered || (state == recoveryNone && limit >= c[3]+probeWindow)
 				}
@@ -137,7 +140,7 @@ func (res *PulseResult) read(nw *smallsignal.Network, r *Result, outNode, outRet
 	}
 	if unresolved {
 		res.caution(Caution{Kind: RecoveryUnresolved, Value: probeWindow / 2, Limit: math.NaN(),
-			Message: fmt.Sprintf("the probe's loss was back within the limit at the first instant it could be read, half its %s window after the pulse: that recovery time is an upper bound", si.Format(probeWindow, "s", 3))})
+			Message: fmt.Sprintf("the probe's loss was back within the limit at the first instant it could be read after the pulse (its window is one probe period, %s): the recovery time given is an upper bound", si.Format(probeWindow, "s", 3))})
 	}
 	if notRecovered {
 		res.caution(Caution{Kind: NotRecovered, Value: t1, Limit: math.NaN(),
@@ -220,7 +223,7 @@ const (
 func (res *PulseResult) recovery(end, limit, window, db float64) (float64, int) {
 	first, last := -1, -1
 	for i, t := range res.EnvelopeTimes {
-		if t < end+window/2 || t+window/2 > limit || math.IsNaN(res.LossChange[i]) {
+		if t < end+smoothedReach*window || t+smoothedReach*window > limit || math.IsNaN(res.LossChange[i]) {
 			continue
 		}
 		if first < 0 {
@@ -237,7 +240,7 @@ func (res *PulseResult) recovery(end, limit, window, db float64) (float64, int) 
 		return res.EnvelopeTimes[first] - end, recoveryBound
 	}
 	j := last + 1
-	if j >= len(res.EnvelopeTimes) || math.IsNaN(res.LossChange[j]) || res.EnvelopeTimes[j]+window/2 > limit {
+	if j >= len(res.EnvelopeTimes) || math.IsNaN(res.LossChange[j]) || res.EnvelopeTimes[j]+smoothedReach*window > limit {
 		return math.NaN(), recoveryNone
 	}
 	a, b := math.Abs(res.LossChange[last]), math.Abs(res.LossChange[j])

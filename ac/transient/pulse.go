@@ -79,11 +79,13 @@ type PulseSettings struct {
 }
 
 // Window lengths, in periods of what they demodulate: the carrier's
-// envelope over one period, the probe's amplitude over four (its
-// recovery figures are resolved to about half of that).
+// envelope and the probe's amplitude over one period each, so that a
+// recovery time is resolved to about half a probe period. A longer
+// window would not reject more of the video transient that follows a
+// pulse: over whole periods a linear drift of slope β leaks 2β/ω into the
+// phasor whatever the window's length.
 const (
-	envelopePeriods = 1
-	probePeriods    = 4
+	probePeriods = 1
 	// maxEnvelopePoints bounds the envelope grid.
 	maxEnvelopePoints = 20000
 )
@@ -107,8 +109,12 @@ type Figures struct {
 	SpikePeak, SpikeTime, SpikeEnergy, Flat float64
 	// Recovery1dB and Recovery3dB are the durations from the pulse's end
 	// until the probe's loss is back, for good, within 1 and 3 dB of its
-	// value before the first pulse (common practice).
-	Recovery1dB, Recovery3dB float64
+	// value before the first pulse (common practice). When the loss was
+	// already back at the first instant the probe could be read after
+	// the pulse, half a probe period on, that instant is given and
+	// its Bound is set: the figure is an upper bound.
+	Recovery1dB, Recovery3dB           float64
+	Recovery1dBBound, Recovery3dBBound bool
 
 	// Detector figures: the change of the video output (the output's
 	// mean over one carrier period) from its DC-point value. Settled is

@@ -106,3 +106,27 @@ func (w *waveform) window(a, b float64) (mean float64, phasor complex128) {
 
 // span returns the run's first and last times.
 func (w *waveform) span() (float64, float64) { return w.t[0], w.t[len(w.t)-1] }
+
+// shifts is how many one-period windows smoothed averages.
+const shifts = 8
+
+// smoothed returns the mean and phasor of y about t averaged over
+// one-period windows whose centres step evenly through a period around t:
+// a triangular (Bartlett) window two periods long. Over one whole period
+// a drift y = β t leaks (2β/ω) cos(ω a) into the phasor, a depending on
+// where the window starts; the average over evenly spaced starts cancels
+// it, so that the tail of a video transient after a pulse does not ripple
+// a probe's reading. It needs the run to cover [t - 15/16 T, t + 15/16 T].
+func (w *waveform) smoothed(t, period float64) (mean float64, phasor complex128) {
+	for k := 0; k < shifts; k++ {
+		c := t + ((float64(k)+0.5)/shifts-0.5)*period
+		m, p := w.window(c-period/2, c+period/2)
+		mean += m
+		phasor += p
+	}
+	return mean / shifts, phasor / shifts
+}
+
+// smoothedReach is how far smoothed reads on either side of t, in
+// periods.
+const smoothedReach = 1 - 0.5/shifts

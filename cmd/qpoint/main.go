@@ -153,6 +153,6 @@ them, and let the parts' ratings and your local practice govern.`,
 	root.Version = version()
 	root.SetVersionTemplate("qpoint {{.Version}}\n")
 	root.AddCommand(newBiasCmd(), newResponseCmd(), newDistortionCmd(), newStudyCmd(), newNoiseCmd(), newReportCmd(), newHarmonicsCmd(), newDemoCmd())
-	root.AddCommand(newFitCmd())
+	root.AddCommand(newFitCmd(), newPulseCmd())
 	return root
 }
