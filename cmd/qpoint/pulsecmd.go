@@ -17,6 +17,7 @@ import (
 	"qpoint/bias/circuit"
 	"qpoint/bias/si"
 	"qpoint/plots"
+	"qpoint/plots/report"
 	"qpoint/smallsignal"
 )
 
@@ -432,11 +433,19 @@ func timeOf(t float64) string {
 // writePulseFigures prints the limiter's or the detector's figures of the
 // last pulse, with each pulse's when there are several.
 func writePulseFigures(w io.Writer, s *pulseSetup, res *transient.PulseResult) {
-	f := res.Figures
 	if len(res.Pulses) == 0 {
 		fmt.Fprintln(w, "The run ended before the pulse did: no figures.")
 		return
 	}
+	for _, t := range pulseTables(s, res) {
+		t.write(w)
+	}
+}
+
+// pulseTables returns the figures of the last pulse, with each pulse's
+// when there are several.
+func pulseTables(s *pulseSetup, res *transient.PulseResult) []*table {
+	f := res.Figures
 	title := "Limiter figures"
 	if len(res.Pulses) > 1 {
 		title += fmt.Sprintf(" (pulse %d of %d)", f.Pulse+1, len(res.Pulses))
@@ -450,8 +459,7 @@ func writePulseFigures(w io.Writer, s *pulseSetup, res *transient.PulseResult) {
 		}
 		t.add("rise time, 10-90 %", timeOf(f.RiseTime), "of the change towards the steady state")
 		t.add("fall time, 90-10 %", timeOf(f.FallTime), "after the flat top")
-		t.write(w)
-		return
+		return []*table{t}
 	}
 	spikeNote := fmt.Sprintf("%s after the pulse's start", timeOf(f.SpikeTime-f.Start))
 	t.add("spike leakage, peak", dbmOf(f.SpikePeak), spikeNote)
@@ -472,14 +480,16 @@ func writePulseFigures(w io.Writer, s *pulseSetup, res *transient.PulseResult) {
 	} else {
 		t.add("recovery", "—", "no probe (--probe none)")
 	}
-	t.write(w)
+	tables := []*table{t}
 	if len(res.Pulses) > 1 {
 		pt := &table{title: "Each pulse", header: []string{"pulse", "start", "spike peak", "spike energy", "flat leakage", "recovery 1 dB", "recovery 3 dB"}}
 		for _, q := range res.Pulses {
-			pt.add(strconv.Itoa(q.Pulse+1), si.Format(q.Start, "s", 4), dbmOf(q.SpikePeak), si.Format(q.SpikeEnergy, "J", 3), dbmOf(q.Flat), timeOf(q.Recovery1dB), timeOf(q.Recovery3dB))
+			pt.add(strconv.Itoa(q.Pulse+1), si.Format(q.Start, "s", 4), dbmOf(q.SpikePeak), si.Format(q.SpikeEnergy, "J", 3), dbmOf(q.Flat),
+				recoveryText(q.Recovery1dB, q.Recovery1dBBound), recoveryText(q.Recovery3dB, q.Recovery3dBBound))
 		}
-		pt.write(w)
+		tables = append(tables, pt)
 	}
+	return tables
 }
 
 // shareDB says how close a value came to a reference, in dB.
@@ -513,6 +523,11 @@ func recoveryText(t float64, bound bool) string {
 
 // writePulseStress prints each diode's extremes.
 func writePulseStress(w io.Writer, res *transient.PulseResult) {
+	stressTableOf(res).write(w)
+}
+
+// stressTableOf returns each diode's extremes under the pulse.
+func stressTableOf(res *transient.PulseResult) *table {
 	t := &table{title: "Diodes under the pulse", header: []string{"diode", "peak junction current", "peak reverse voltage", "mean dissipation over the pulse", "past the knee"}}
 	for _, d := range res.Diodes {
 		knee := "—"
@@ -521,7 +536,7 @@ func writePulseStress(w io.Writer, res *transient.PulseResult) {
 		}
 		t.add(d.Name, si.Format(d.PeakCurrent, "A", 3), si.Format(d.PeakReverseVoltage, "V", 3), si.Format(d.PulsePower, "W", 3), knee)
 	}
-	t.write(w)
+	return t
 }
 
 // writePulseCautions prints the typed cautions' messages.
@@ -679,4 +694,57 @@ func writePulseSweep(w io.Writer, s *pulseSetup, pts []transient.LevelPoint) {
 	}
 	t.write(w)
 	fmt.Fprintf(w, "  cautions name their kinds; run one level (--level) to read them in full\n\n")
+}
+
+// pulseSection runs the file's pulse analysis for the report: its tables,
+// figures and cautions, and headline cards. A run that cannot be made is
+// a note in the section, not a failed report.
+func pulseSection(c *circuit.Circuit, temperature string, p *bias.Point) (report.Section, []report.Card, error) {
+	sec := report.Section{ID: "pulse", Title: "Under a pulse"}
+	s, err := resolvePulse(c, &pulseFlags{temperature: temperature, tolerance: 1e-3, maxSteps: 2_000_000}, p)
+	if err != nil {
+		sec.Intro = "The file's pulse could not be set up: " + err.Error()
+		return sec, nil, nil
+	}
+	res, runErr := transient.RunPulse(s.nw, s.settings)
+	if res == nil {
+		sec.Intro = "The pulse run failed: " + runErr.Error()
+		return sec, nil, nil
+	}
+	pl := res.Settings.Pulse
+	sec.Intro = fmt.Sprintf("Port %s driven by a %s carrier at %.1f dBm available, width %s, rise %s, fall %s; output at %s, read as a %s. The circuit is followed in time from its DC point (%s, %d steps).",
+		s.inName, si.Format(pl.CarrierHz, "Hz", 4), s.levelDBm, si.Format(pl.Width, "s", 3), si.Format(pl.Rise, "s", 3), si.Format(pl.Fall, "s", 3),
+		s.outName, res.Kind, res.Run.Stats.Method, res.Run.Stats.Accepted)
+	if runErr != nil {
+		sec.Blocks = append(sec.Blocks, report.Block{Note: "The run " + runErr.Error() + "; the figures are of what it reached."})
+	}
+	if len(res.Pulses) > 0 {
+		for _, t := range pulseTables(s, res) {
+			sec.Blocks = append(sec.Blocks, report.Block{Table: t.report()})
+		}
+	}
+	sec.Blocks = append(sec.Blocks, report.Block{Table: stressTableOf(res).report()})
+	for _, f := range plots.PulseFigures(res, s.nw) {
+		fig, err := svgOf(f)
+		if err != nil {
+			return sec, nil, analysisError(err)
+		}
+		sec.Blocks = append(sec.Blocks, report.Block{Figure: fig})
+	}
+	var cards []report.Card
+	for _, x := range res.Cautions {
+		sec.Blocks = append(sec.Blocks, report.Block{Note: "Caution: " + x.Message})
+	}
+	f := res.Figures
+	if len(res.Pulses) > 0 {
+		if res.Kind == transient.Detector {
+			cards = append(cards, report.Card{Label: "pulse video", Value: si.Format(f.Settled, "V", 3), Detail: "rise " + timeOf(f.RiseTime) + ", fall " + timeOf(f.FallTime)})
+		} else {
+			cards = append(cards, report.Card{Label: "flat leakage", Value: dbmOf(f.Flat), Detail: fmt.Sprintf("%.1f dBm pulse; spike %s", s.levelDBm, dbmOf(f.SpikePeak))})
+			if pl.ProbeEMF != 0 {
+				cards = append(cards, report.Card{Label: "recovery", Value: recoveryText(f.Recovery1dB, f.Recovery1dBBound), Detail: "to within 1 dB of the loss before the pulse"})
+			}
+		}
+	}
+	return sec, cards, nil
 }
