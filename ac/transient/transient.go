@@ -55,8 +55,14 @@ type Delayed interface {
 	// out of each unknown's node (r enters the step's equations as f
 	// does: a current leaving a node counts positive).
 	Inject(t float64, r []float64)
-	// Accept records the solution x at time t; times only rise.
-	Accept(t float64, x []float64)
+	// Accept records the solution x at time t; times only rise. A point
+	// that is a breakpoint (of the source or of a delayed element) is
+	// flagged, so that the element can land later steps on its arrival:
+	// a line's NextBreak is such a point plus its delay.
+	Accept(t float64, x []float64, breakpoint bool)
+	// NextBreak returns the first time strictly after t where the
+	// element's currents have a kink, +Inf for none.
+	NextBreak(t float64) float64
 	// Delay returns the element's shortest delay.
 	Delay() float64
 	// Power returns the power the element draws from the circuit at time
@@ -210,6 +216,8 @@ type Simulation struct {
 	// error, and whether the last try was rejected.
 	hAcc, errAcc float64
 	rejected     bool
+	// landing says whether the step being tried ends on a breakpoint.
+	landing bool
 
 	// glin is the linear conductance matrix without any delayed
 	// element's stamps, for the dissipation.
@@ -340,7 +348,7 @@ func Start(nw *smallsignal.Network, s Settings) (*Simulation, error) {
 	sim.last = sim.powersAt(0, sim.x, e0, nil)
 	sim.record(0, sim.x, e0, nil)
 	for _, d := range s.Delayed {
-		d.Accept(0, sim.x)
+		d.Accept(0, sim.x, true)
 	}
 	return sim, nil
 }
@@ -406,10 +414,16 @@ func (sim *Simulation) Advance(to float64) error {
 		h := math.Min(sim.h, math.Min(sim.s.MaxStep, src.MaxStep(sim.t)))
 		// Land on the next breakpoint, and do not leave a sliver before
 		// it or before the end.
-		for _, edge := range []float64{src.NextBreak(sim.t), to} {
+		next := src.NextBreak(sim.t)
+		for _, d := range sim.s.Delayed {
+			next = math.Min(next, d.NextBreak(sim.t))
+		}
+		sim.landing = false
+		for k, edge := range []float64{next, to} {
 			switch left := edge - sim.t; {
 			case left <= h*(1+1e-9):
 				h = left
+				sim.landing = k == 0
 			case left < 1.5*h:
 				h = left / 2
 			}
@@ -670,7 +684,7 @@ func (sim *Simulation) accept(h float64, staged bool) {
 		sim.integrate(h, [3]float64{quadratureStart, quadratureStage, quadratureEnd}, sim.last, pg, p1)
 		sim.record(tg, sim.xg, eg, sim.ig)
 		for _, d := range sim.s.Delayed {
-			d.Accept(tg, sim.xg)
+			d.Accept(tg, sim.xg, false)
 		}
 		// History for the predictor: the step's start and its stage
 		// point.
@@ -688,7 +702,7 @@ func (sim *Simulation) accept(h float64, staged bool) {
 	sim.last = p1
 	sim.record(t1, sim.x1, e1, sim.i1)
 	for _, d := range sim.s.Delayed {
-		d.Accept(t1, sim.x1)
+		d.Accept(t1, sim.x1, sim.landing)
 	}
 	decay := sim.decay(h)
 	for i := range sim.x {
