@@ -404,21 +404,29 @@ func pulseRecovery(r *transient.PulseResult) *Figure {
 		x1 = xs[len(xs)-1]
 	}
 	timeAxis(p, 0, x1)
-	_, yhi := spanY([]curve{c})
-	p.Y.Min, p.Y.Max = linearRange(math.Min(0, yhi), math.Max(4, math.Min(yhi, 60)), 4, 0, 4, linearStep)
+	ylo, yhi := spanY([]curve{c})
+	p.Y.Min, p.Y.Max = linearRange(math.Max(-5, math.Min(0, ylo)), math.Max(4, math.Min(yhi, 60)), 4, 0, 4, linearStep)
 	p.Y.Tick.Marker = LinearTicks{}
 	band := flatLine(p, 1, thinReference)
 	flatLine(p, 3, thinReference)
 	fig.Key = append(fig.Key, KeyEntry{Label: "1 and 3 dB", Thumbs: []plot.Thumbnailer{band}})
+	var notes []string
 	for _, m := range []struct {
 		t, db float64
-	}{{f.Recovery3dB, 3}, {f.Recovery1dB, 1}} {
-		if finite(m.t) {
+		bound bool
+	}{{f.Recovery3dB, 3, f.Recovery3dBBound}, {f.Recovery1dB, 1, f.Recovery1dBBound}} {
+		switch {
+		case m.bound:
+			notes = append(notes, fmt.Sprintf("within %g dB at the first reading: recovery ≤ %s", m.db, si.Format(m.t, "s", 3)))
+		case finite(m.t):
 			p.Add(&levelMark{x: m.t, y: m.db, label: fmt.Sprintf("%g dB: %s", m.db, si.Format(m.t, "s", 3))})
+		default:
+			notes = append(notes, fmt.Sprintf("not back within %g dB by the end of the run", m.db))
 		}
 	}
-	fig.Note = fmt.Sprintf("Probe %s at %s; its loss before the pulse %.3f dB (small-signal %.3f dB); read over one probe period",
-		si.Format(r.Settings.Pulse.ProbeEMF, "V", 3)+" EMF", si.Format(r.Settings.Pulse.ProbeHz, "Hz", 4), r.LossBefore, r.SmallSignalLoss)
+	notes = append([]string{fmt.Sprintf("Probe %s at %s; its loss before the pulse %.3f dB (small-signal %.3f dB); read over a triangular window two probe periods long",
+		si.Format(r.Settings.Pulse.ProbeEMF, "V", 3)+" EMF", si.Format(r.Settings.Pulse.ProbeHz, "Hz", 4), r.LossBefore, r.SmallSignalLoss)}, notes...)
+	fig.Note = strings.Join(notes, " · ")
 	return fig
 }
 
@@ -517,6 +525,39 @@ func PulseLevelSweep(pts []transient.LevelPoint) *Figure {
 	blo, bhi := spanY(bottomCurves)
 	bottom.Y.Min, bottom.Y.Max = linearRange(math.Min(0, blo), bhi, 1e-12, 0, 1e-9, linearStep)
 	bottom.Y.Tick.Marker = LinearTicks{Unit: "s"}
-	fig.Note = fmt.Sprintf("%d levels; each a run of its own from the DC point", len(pts))
+	notes := []string{fmt.Sprintf("%d levels; each a run of its own from the DC point", len(pts))}
+	// Where a diode first passes a rating: the limiter's own limit.
+	rated := math.NaN()
+	bounds := 0
+	for _, p := range pts {
+		r := p.Result
+		if r == nil {
+			continue
+		}
+		for _, c := range r.Cautions {
+			switch c.Kind {
+			case transient.CurrentRating, transient.ReverseRating, transient.PowerRating, transient.SmallJunction:
+				if math.IsNaN(rated) {
+					rated = p.LevelDBm
+				}
+			}
+		}
+		if r.Figures.Recovery1dBBound || r.Figures.Recovery3dBBound {
+			bounds++
+		}
+	}
+	if finite(rated) {
+		st := draw.LineStyle{Color: Palette[3], Width: vg.Points(1), Dashes: []vg.Length{vg.Points(1), vg.Points(2)}}
+		var th plot.Thumbnailer
+		for _, pl := range []*plot.Plot{top, bottom} {
+			th = newCurve([]float64{rated, rated}, []float64{pl.Y.Min, pl.Y.Max}, false, false).add(pl, st)
+		}
+		fig.Key = append(fig.Key, KeyEntry{Label: "a rating first exceeded", Thumbs: []plot.Thumbnailer{th}})
+		notes = append(notes, fmt.Sprintf("a diode's rating is exceeded from %.1f dBm", rated))
+	}
+	if bounds > 0 && !detector {
+		notes = append(notes, fmt.Sprintf("at %d levels the recovery was within the probe's reading time: drawn at that upper bound", bounds))
+	}
+	fig.Note = strings.Join(notes, " · ")
 	return fig
 }
