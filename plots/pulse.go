@@ -409,7 +409,28 @@ func pulseRecovery(r *transient.PulseResult) *Figure {
 	p.Y.Tick.Marker = LinearTicks{}
 	band := flatLine(p, 1, thinReference)
 	flatLine(p, 3, thinReference)
+	if ylo < -1 {
+		// The loss fell below its value before: the band is two-sided.
+		flatLine(p, -1, thinReference)
+		flatLine(p, -3, thinReference)
+	}
 	fig.Key = append(fig.Key, KeyEntry{Label: "1 and 3 dB", Thumbs: []plot.Thumbnailer{band}})
+	// side returns the sign of the loss change just before t: the side of
+	// the band the curve comes back through.
+	side := func(t float64) float64 {
+		sgn := 1.0
+		for i, x := range xs {
+			if x > t {
+				break
+			}
+			if ys[i] < 0 {
+				sgn = -1
+			} else {
+				sgn = 1
+			}
+		}
+		return sgn
+	}
 	var notes []string
 	for _, m := range []struct {
 		t, db float64
@@ -419,7 +440,7 @@ func pulseRecovery(r *transient.PulseResult) *Figure {
 		case m.bound:
 			notes = append(notes, fmt.Sprintf("within %g dB at the first reading: recovery ≤ %s", m.db, si.Format(m.t, "s", 3)))
 		case finite(m.t):
-			p.Add(&levelMark{x: m.t, y: m.db, label: fmt.Sprintf("%g dB: %s", m.db, si.Format(m.t, "s", 3))})
+			p.Add(&levelMark{x: m.t, y: side(m.t) * m.db, label: fmt.Sprintf("%g dB: %s", m.db, si.Format(m.t, "s", 3))})
 		default:
 			notes = append(notes, fmt.Sprintf("not back within %g dB by the end of the run", m.db))
 		}

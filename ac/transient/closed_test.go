@@ -2,6 +2,7 @@ package transient
 
 import (
 	"math"
+	"strings"
 	"testing"
 
 	"qpoint/bias"
@@ -97,5 +98,26 @@ ports:
 					tc.name, rel, worst, at/tc.tau)
 			}
 		}
+	}
+}
+
+// TestCheckRefusesUnknownParts: a part the transient has no time-domain
+// model for (a measured S-parameter block, when the file grows one) is
+// refused with its name and what is accepted.
+func TestCheckRefusesUnknownParts(t *testing.T) {
+	c, err := circuit.Parse("test.yaml", []byte(`
+parts:
+  - {type: resistor, name: R1, between: [a, gnd], value: 1k}
+`))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := Check(c); err != nil {
+		t.Fatalf("a resistor refused: %v", err)
+	}
+	c.Parts = append(c.Parts, circuit.Part{Kind: circuit.Kind(99), Name: "F1", Nodes: [2]string{"a", "gnd"}})
+	err = Check(c)
+	if err == nil || !strings.Contains(err.Error(), "part F1") || !strings.Contains(err.Error(), "accepted:") || !strings.Contains(err.Error(), "S-parameter block") {
+		t.Errorf("Check of an unknown part: %v; want a refusal naming F1 and what is accepted", err)
 	}
 }
