@@ -43,6 +43,12 @@
 // junction charges and DC blocks hold at the end (Energy). Their balance
 // is a check on the integration.
 //
+// An AC-coupled port's DC block is ideal, an infinite capacitance: it
+// holds its DC-point voltage through a run (the periodic steady state of
+// package ac instead charges it until it carries no mean current, the
+// limit of an endless run). Result.BlockCurrents records what passes it,
+// and RunPulse cautions where a real blocking capacitor would charge.
+//
 // Lines by the method of characteristics (Branin, "Transient analysis of
 // lossless transmission lines", Proc. IEEE 55(11), 1967) plug in through
 // Delayed: a constant conductance at each end and a current source that

@@ -5,7 +5,6 @@ import (
 	"fmt"
 	"math"
 	"math/cmplx"
-	"time"
 
 	"gonum.org/v1/gonum/mat"
 
@@ -521,6 +520,3 @@ func lossDB(nw *smallsignal.Network, input int, o ac.Output, vout complex128, em
 	}
 	return -20 * math.Log10(s)
 }
-
-// Elapsed returns the run's wall time.
-func (r *PulseResult) Elapsed() time.Duration { return r.Run.Stats.Runtime }
