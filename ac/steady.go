@@ -6,12 +6,10 @@ import (
 	"math"
 
 	"github.com/mjibson/go-dsp/fft"
-	"gonum.org/v1/gonum/blas"
 	"gonum.org/v1/gonum/blas/blas64"
-	"gonum.org/v1/gonum/lapack/lapack64"
 	"gonum.org/v1/gonum/mat"
 
-	"qpoint/bias/diode"
+	"qpoint/ac/nonlinear"
 	"qpoint/smallsignal"
 )
 
@@ -282,45 +280,17 @@ func richardson(coarse, fine []Harmonic, n1, n2 int) []Harmonic {
 // periodic state.
 type shooter struct {
 	nw    *smallsignal.Network
+	sys   *nonlinear.System
 	d     Drive
 	out   []complex128
 	n     int
 	ports []int // indices of AC-coupled ports: each has a DC-block voltage
 	dyn   []bool
-	g, c  []float64 // linear parts, row-major n×n
 }
 
 func newShooter(nw *smallsignal.Network, d Drive, out []complex128) *shooter {
-	n := nw.N
-	sh := &shooter{nw: nw, d: d, out: out, n: n}
-	for i, p := range nw.Ports {
-		if p.ACCoupled {
-			sh.ports = append(sh.ports, i)
-		}
-	}
-	sh.g = append([]float64(nil), nw.GLinear.RawMatrix().Data...)
-	sh.c = append([]float64(nil), nw.CLinear.RawMatrix().Data...)
-	// A row is dynamic when its charge depends on some unknown: a
-	// capacitor, an inductor's flux or a junction with charge.
-	sh.dyn = make([]bool, n)
-	for i := 0; i < n; i++ {
-		for j := 0; j < n; j++ {
-			if sh.c[i*n+j] != 0 {
-				sh.dyn[i] = true
-			}
-		}
-	}
-	for _, dd := range nw.Diodes {
-		if dd.Device.ZeroBiasCapacitance > 0 || dd.Device.Params.TransitTime > 0 {
-			if dd.Junction >= 0 {
-				sh.dyn[dd.Junction] = true
-			}
-			if dd.Cathode >= 0 {
-				sh.dyn[dd.Cathode] = true
-			}
-		}
-	}
-	return sh
+	sys := nonlinear.New(nw, d.Input)
+	return &shooter{nw: nw, sys: sys, d: d, out: out, n: nw.N, ports: sys.Blocked, dyn: sys.Dynamic}
 }
 
 // initial returns the starting state: the DC point, with each DC block
@@ -330,120 +300,12 @@ func (sh *shooter) initial(start *Steady) ([]float64, []float64) {
 		return append([]float64(nil), start.x0...), append([]float64(nil), start.p...)
 	}
 	x0 := append([]float64(nil), sh.nw.Bias...)
-	p := make([]float64, len(sh.ports))
-	for k, i := range sh.ports {
-		p[k] = -sh.portVoltage(i, x0)
-	}
-	return x0, p
+	return x0, sh.sys.BlockVoltages(x0)
 }
 
-// drivePort adds to f a voltage v in series with port i's reference
-// impedance: the Norton current v/Z0 enters the port node.
-func (sh *shooter) drivePort(f []float64, i int, v float64) {
-	pt := sh.nw.Ports[i]
-	j := v / pt.Impedance
-	if pt.Node >= 0 {
-		f[pt.Node] -= j
-	}
-	if pt.Return >= 0 {
-		f[pt.Return] += j
-	}
-}
-
-func (sh *shooter) portVoltage(i int, x []float64) float64 {
-	pt := sh.nw.Ports[i]
-	v := 0.0
-	if pt.Node >= 0 {
-		v += x[pt.Node]
-	}
-	if pt.Return >= 0 {
-		v -= x[pt.Return]
-	}
-	return v
-}
-
-// eval computes f(x, t) = G x + i_d(x) - b_dc - b_sig(t, p), q(x), and, if
-// jg and jc are not nil, their Jacobians. With vl not nil, each junction's
-// current and charge are taken on their tangents at the junction voltage
-// vl[k] instead of at x: i(vl) + g(vl) (v - vl), so that a Newton step can
-// stand on a limited junction voltage whatever nodes the junction joins.
-func (sh *shooter) eval(x []float64, t float64, p []float64, f, q, jg, jc, vl []float64) {
-	n := sh.n
-	for i := 0; i < n; i++ {
-		var fs, qs float64
-		row := i * n
-		for j := 0; j < n; j++ {
-			fs += sh.g[row+j] * x[j]
-			qs += sh.c[row+j] * x[j]
-		}
-		f[i] = fs - sh.nw.Sources[i]
-		q[i] = qs
-	}
-	if jg != nil {
-		copy(jg, sh.g)
-		copy(jc, sh.c)
-	}
-	// The input generator, and every DC block's constant voltage in
-	// series with its port's reference impedance.
-	e := sh.d.EMF * math.Cos(2*math.Pi*sh.d.FrequencyHz*t)
-	inputBlocked := false
-	for k, i := range sh.ports {
-		v := -p[k]
-		if i == sh.d.Input {
-			v, inputBlocked = e-p[k], true
-		}
-		sh.drivePort(f, i, v)
-	}
-	if !inputBlocked {
-		sh.drivePort(f, sh.d.Input, e)
-	}
-	for k, d := range sh.nw.Diodes {
-		v := 0.0
-		if d.Junction >= 0 {
-			v += x[d.Junction]
-		}
-		if d.Cathode >= 0 {
-			v -= x[d.Cathode]
-		}
-		var i, qd diode.Law
-		if vl != nil {
-			u := vl[k]
-			i, qd = d.Device.Current(u), d.Device.Charge(u)
-			i.Value += i.D1 * (v - u)
-			qd.Value += qd.D1 * (v - u)
-		} else {
-			i, qd = d.Device.Current(v), d.Device.Charge(v)
-		}
-		stamp2(f, q, d.Junction, d.Cathode, i.Value, qd.Value)
-		if jg != nil {
-			stampJ(jg, n, d.Junction, d.Cathode, i.D1)
-			stampJ(jc, n, d.Junction, d.Cathode, qd.D1)
-		}
-	}
-}
-
-func stamp2(f, q []float64, a, b int, i, c float64) {
-	if a >= 0 {
-		f[a] += i
-		q[a] += c
-	}
-	if b >= 0 {
-		f[b] -= i
-		q[b] -= c
-	}
-}
-
-func stampJ(m []float64, n, a, b int, g float64) {
-	if a >= 0 {
-		m[a*n+a] += g
-	}
-	if b >= 0 {
-		m[b*n+b] += g
-	}
-	if a >= 0 && b >= 0 {
-		m[a*n+b] -= g
-		m[b*n+a] -= g
-	}
+// emf is the input generator's EMF at time t.
+func (sh *shooter) emf(t float64) float64 {
+	return sh.d.EMF * math.Cos(2*math.Pi*sh.d.FrequencyHz*t)
 }
 
 // period is the result of integrating one period.
@@ -647,9 +509,11 @@ func (sh *shooter) integrate(x0, p []float64, steps int, sens bool) (*trajectory
 	h := 1 / (sh.d.FrequencyHz * float64(steps))
 	tr := &trajectory{meanPort: make([]float64, m)}
 	x := append([]float64(nil), x0...)
-	f, q := make([]float64, n), make([]float64, n)
-	jg, jc := make([]float64, n*n), make([]float64, n*n)
-	sh.eval(x, 0, p, f, q, jg, jc, nil)
+	// w holds f, q and their Jacobians at the last converged point, and
+	// the factored step matrix.
+	w := sh.sys.NewWork()
+	f, q, jg, jc := w.F, w.Q, w.JG, w.JC
+	sh.sys.Eval(x, sh.emf(0), p, f, q, jg, jc, nil)
 	// qd holds dq/dt on dynamic rows: the trapezoidal rule's memory.
 	qd := make([]float64, n)
 	for i := range qd {
@@ -723,15 +587,9 @@ func (sh *shooter) integrate(x0, p []float64, steps int, sens bool) (*trajectory
 	qPrev := append([]float64(nil), q...)
 	var cPrev, cNow sparseRows
 	cPrev.load(jc, n, sh.dyn)
-	// The step matrix is factored in place by LAPACK's dgetrf, without
-	// the condition estimate a mat.LU makes (dgecon, which cost 40 % of a
-	// small circuit's solve and which nothing here reads): an exactly zero
-	// pivot is the only failure, as solved allows for mat.LU.
-	jac := blas64.General{Rows: n, Cols: n, Stride: n, Data: make([]float64, n*n)}
-	ipiv := make([]int, n)
 	xn := append([]float64(nil), x...)
-	rhs := make([]float64, n)
-	dx := blas64.General{Rows: n, Cols: 1, Stride: 1, Data: make([]float64, n)}
+	// extra = -mem qd_n: the rule's memory in the step's equations.
+	extra := make([]float64, n)
 	// Work storage reused by every step: the sensitivity system's right
 	// side, solved in place, and S's spare (the two alternate).
 	var b blas64.General
@@ -740,7 +598,6 @@ func (sh *shooter) integrate(x0, p []float64, steps int, sens bool) (*trajectory
 		b = blas64.General{Rows: n, Cols: nz, Stride: nz, Data: make([]float64, n*nz)}
 		sSpare = make([]float64, n*nz)
 	}
-	vl := make([]float64, len(sh.nw.Diodes))
 	for step := 1; step <= steps; step++ {
 		t := float64(step) * h
 		// Trapezoidal: a = 2/h with memory qd_n. The rule carries an
@@ -750,94 +607,28 @@ func (sh *shooter) integrate(x0, p []float64, steps int, sens bool) (*trajectory
 		// of it and the period map keeps no neutral direction. Hence the
 		// odd step counts.
 		a, mem := 2/h, 1.0
-		// stepMatrix loads J = dF/dx = G(x) + a C(x) on dynamic rows,
-		// G(x) on algebraic ones, from the last evaluation, into jac.
-		stepMatrix := func() bool {
-			for i := 0; i < n; i++ {
-				row := jac.Data[i*n : (i+1)*n]
-				copy(row, jg[i*n:(i+1)*n])
-				if sh.dyn[i] {
-					for j, c := range jc[i*n : (i+1)*n] {
-						row[j] += a * c
-					}
-				}
-			}
-			return lapack64.Getrf(jac, ipiv)
-		}
 		// Newton for x_{n+1}: F = f + a (q - q_n) - mem qd_n on dynamic
-		// rows, f on algebraic rows.
-		for k, d := range sh.nw.Diodes {
-			vl[k] = junctionV(x, d)
+		// rows, f on algebraic rows. The step matrix is factored in
+		// place by LAPACK's dgetrf, without the condition estimate a
+		// mat.LU makes (dgecon, which cost 40 % of a small circuit's
+		// solve and which nothing here reads): an exactly zero pivot is
+		// the only failure, as solved allows for mat.LU.
+		for i := range extra {
+			extra[i] = -mem * qd[i]
 		}
-		converged := false
-		prevWorst := math.Inf(1)
-		for it := 0; it < 100; it++ {
-			sh.eval(xn, t, p, f, q, jg, jc, vl)
-			for i := 0; i < n; i++ {
-				r := f[i]
-				if sh.dyn[i] {
-					r += a*(q[i]-qPrev[i]) - mem*qd[i]
-				}
-				rhs[i] = -r
-			}
-			copy(dx.Data, rhs)
-			if !stepMatrix() {
-				return nil, fmt.Errorf("singular step matrix at t = %g s", t)
-			}
-			lapack64.Getrs(blas.NoTrans, jac, dx, ipiv)
-			// Judge the step on the node voltages: branch currents follow
-			// from them and can carry the rounding of a milliohm part.
-			// Newton converges quadratically until rounding stops it:
-			// accept an update below 1e-13 relative, or one below 1e-10
-			// that no longer shrinks.
-			worst, moved, vmax := 0.0, 0.0, 0.0
-			for i := 0; i < n; i++ {
-				nx := xn[i] + dx.Data[i]
-				if math.IsNaN(nx) || math.IsInf(nx, 0) {
-					return nil, fmt.Errorf("the waveform diverged at t = %g s", t)
-				}
-				if i < sh.nw.NodeUnknowns {
-					worst = math.Max(worst, math.Abs(dx.Data[i])/(math.Abs(nx)+1e-3))
-					moved = math.Max(moved, math.Abs(dx.Data[i]))
-					vmax = math.Max(vmax, math.Abs(nx))
-				}
-				xn[i] = nx
-			}
-			// A node near 0 V beside nodes at volts moves by their
-			// rounding, which can cycle at 1e-10 of its own size: an
-			// update that no longer shrinks and is below 1e-10 of the
-			// largest voltage is at the rounding level too.
-			small := worst <= 1e-13 || ((worst <= 1e-10 || moved <= 1e-10*(vmax+1e-3)) && worst > prevWorst/4)
-			prevWorst = worst
-			// Junction-voltage limiting keeps a step from overshooting
-			// the exponential: the next iteration takes each junction on
-			// its tangent at the limited voltage, as the DC solver does,
-			// rather than moving a node (which the junction may share
-			// with sources and other junctions, or which may be gnd).
-			limited := false
-			for k, d := range sh.nw.Diodes {
-				lv, lim := d.Device.Limit(junctionV(xn, d), vl[k])
-				vl[k] = lv
-				limited = limited || lim
-			}
-			if small && !limited {
-				converged = true
-				break
-			}
+		if _, err := sh.sys.Step(xn, a, qPrev, extra, sh.emf(t), p, 1e-13, 100, w); err != nil {
+			return nil, fmt.Errorf("%w at t = %g s", err, t)
 		}
-		if !converged {
-			return nil, fmt.Errorf("no convergence within a time step at t = %g s", t)
-		}
+		// Step left f, q and the Jacobians at the converged point.
 		// Re-evaluate at the converged point for the memory and Jacobians.
-		sh.eval(xn, t, p, f, q, jg, jc, nil)
 		cNow.load(jc, n, sh.dyn)
 		if sens {
 			// J S_{n+1} = a C_n S_n + mem Qd_n - df/dp  (dynamic rows)
 			// J S_{n+1} = -df/dp                        (algebraic rows)
 			// C is sparse (capacitors and junction charges): its products
 			// cost O(nnz (n+m)) through its rows' nonzeros, not O(n² (n+m)).
-			if !stepMatrix() {
-				return nil, fmt.Errorf("singular step matrix at t = %g s", t)
+			if !sh.sys.Factor(a, w) {
+				return nil, fmt.Errorf("%w at t = %g s", nonlinear.ErrSingular, t)
 			}
 			// cs = C_n S_n on dynamic rows, kept for Qd below.
 			cs := sNextScratch(&tr.scratch, n*nz)
@@ -855,7 +646,7 @@ func (sh *shooter) integrate(x0, p []float64, steps int, sens bool) (*trajectory
 					row[n+k] -= dfdp[i*m+k]
 				}
 			}
-			lapack64.Getrs(blas.NoTrans, jac, b, ipiv)
+			sh.sys.Solve(b, w)
 			newS := sSpare
 			copy(newS, b.Data)
 			// Qd_{n+1} = a (C_{n+1} S_{n+1} - C_n S_n) - mem Qd_n.
@@ -893,7 +684,7 @@ func (sh *shooter) integrate(x0, p []float64, steps int, sens bool) (*trajectory
 		cPrev, cNow = cNow, cPrev
 		copy(x, xn)
 		for k, i := range sh.ports {
-			tr.meanPort[k] += sh.portVoltage(i, x) / float64(steps)
+			tr.meanPort[k] += sh.sys.PortVoltage(i, x) / float64(steps)
 		}
 		if step < steps {
 			record(x, t)
@@ -916,15 +707,4 @@ func solved(err error) bool {
 		return !math.IsInf(float64(c), 0) && !math.IsNaN(float64(c))
 	}
 	return err == nil
-}
-
-func junctionV(x []float64, d smallsignal.Diode) float64 {
-	v := 0.0
-	if d.Junction >= 0 {
-		v += x[d.Junction]
-	}
-	if d.Cathode >= 0 {
-		v -= x[d.Cathode]
-	}
-	return v
 }

@@ -48,6 +48,11 @@ func smallJunctionCurrent(cj0 float64) float64 {
 	return cj0 / capacitancePerArea * burnoutDensity
 }
 
+// OverdriveCurrent returns the forward current above which a junction of
+// zero-bias capacitance cj0, in a model without a current rating, is
+// taken to be overdriven: cj0 × 3.3e11 A/F, the rule above.
+func OverdriveCurrent(cj0 float64) float64 { return smallJunctionCurrent(cj0) }
+
 // stress reduces the sampled currents and terminal voltages of one period
 // to each diode's extremes.
 func stress(nw *smallsignal.Network, currents, terminals, junctions [][]float64) []DiodeStress {

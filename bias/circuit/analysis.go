@@ -7,10 +7,11 @@ import (
 )
 
 var (
-	analysisKeys   = []string{"response", "distortion", "study", "yield"}
+	analysisKeys   = []string{"response", "distortion", "study", "yield", "pulse"}
 	responseKeys   = []string{"from", "to", "per_decade", "points"}
 	distortionKeys = []string{"input", "output", "frequency", "level", "second_tone"}
 	studyKeys      = []string{"vary", "from", "to", "steps", "log"}
+	pulseKeys      = []string{"input", "output", "carrier", "level", "width", "rise", "fall", "period", "pulses"}
 )
 
 // maxPoints bounds point and step counts, so that a slip of the keyboard
@@ -34,6 +35,9 @@ func (l *loader) analysis(n *yaml.Node) {
 	}
 	if e, ok := f["yield"]; ok {
 		l.yieldDefaults(e.val)
+	}
+	if e, ok := f["pulse"]; ok {
+		l.pulse(e.val)
 	}
 }
 
@@ -304,4 +308,108 @@ func (c *Circuit) partModel(name string) string {
 		}
 	}
 	return "MODEL"
+}
+
+// pulse reads {input, output, carrier, level, width, rise, fall, period,
+// pulses}: carrier, level and width are needed, the rest optional.
+func (l *loader) pulse(n *yaml.Node) {
+	d := &l.c.Analysis.Pulse
+	d.Pos = Pos{n.Line, n.Column}
+	const what = "the pulse analysis"
+	f := l.fields(n, what, pulseKeys, nil)
+	if n.Kind != yaml.MappingNode {
+		return
+	}
+	ok := true
+	for _, key := range []string{"carrier", "level", "width"} {
+		if _, has := f[key]; !has {
+			l.missing(n, key, pulseKeys, "%s has no `%s`; accepted: e.g. {input: rf, output: out, carrier: 3GHz, level: 40dBm, width: 1us, rise: 10ns, fall: 10ns, period: 10us}", what, key)
+			ok = false
+		}
+	}
+	if e, has := f["input"]; has {
+		if name, good := l.text(e.val, "`input` of "+what, "a port name"); good {
+			d.Input = name
+			if _, isPort := l.portAt[name]; !isPort {
+				l.errorf(e.val, "`input` of %s is `%s`, which is not a port%s; accepted: a port name: %s",
+					what, name, didYouMean(name, l.portNames()), nameList(l.portNames(), 12))
+				ok = false
+			}
+		} else {
+			ok = false
+		}
+	}
+	if e, has := f["output"]; has {
+		if name, good := l.text(e.val, "`output` of "+what, "a port or node name"); good {
+			d.Output = name
+			if _, isPort := l.portAt[name]; isPort {
+				d.OutputIsPort = true
+			} else if _, isNode := l.nodeAt[name]; !isNode || name == Ground {
+				if l.partsComplete && l.portsComplete {
+					all := append(l.portNames(), l.c.Nodes...)
+					l.errorf(e.val, "`output` of %s is `%s`, which is neither a port nor a node%s; accepted: a port or a node other than gnd: %s",
+						what, name, didYouMean(name, all), nameList(all, 12))
+				}
+				ok = false
+			}
+		} else {
+			ok = false
+		}
+	}
+	if e, has := f["carrier"]; has {
+		v, good := l.value(e.val, Frequency, "`carrier` of "+what, positive)
+		d.CarrierHz, ok = v, ok && good
+	}
+	if e, has := f["level"]; has {
+		if s, good := l.scalarText(e.val, "`level` of "+what, levelAccepted); good {
+			lv, err := ParseLevel(s)
+			if err != nil {
+				l.wrapf(e.val, err, "`level` of %s", what)
+				ok = false
+			} else {
+				d.Level = lv
+			}
+		} else {
+			ok = false
+		}
+	}
+	times := map[string]*float64{"width": &d.Width, "rise": &d.Rise, "fall": &d.Fall, "period": &d.Period}
+	for _, key := range []string{"width", "rise", "fall", "period"} {
+		if e, has := f[key]; has {
+			r := nonNegative
+			if key == "width" || key == "period" {
+				r = positive
+			}
+			v, good := l.value(e.val, Time, "`"+key+"` of "+what, r)
+			*times[key], ok = v, ok && good
+		}
+	}
+	if e, has := f["pulses"]; has {
+		v, good := l.count(e.val, "`pulses` of "+what, 1, 1000)
+		d.Pulses, ok = v, ok && good
+		if good && v > 1 && d.Period == 0 {
+			l.errorf(e.key, "%s asks for %d pulses without a `period`; accepted: a period with several pulses, e.g. {period: 10us, pulses: 3}", what, v)
+			ok = false
+		}
+	}
+	// The relations a pulse needs; the command checks them again with
+	// its flags.
+	if ok {
+		at := func(key string) *yaml.Node { return f[key].val }
+		switch {
+		case d.Width < 1/d.CarrierHz:
+			l.errorf(at("width"), "`width` of %s (%s) is shorter than one period of the carrier; accepted: a width of at least one carrier period", what, f["width"].val.Value)
+			ok = false
+		case d.Rise > d.Width:
+			l.errorf(at("rise"), "`rise` of %s (%s) is longer than the width (%s); accepted: a rise no longer than the width", what, f["rise"].val.Value, f["width"].val.Value)
+			ok = false
+		case d.Fall > d.Width:
+			l.errorf(at("fall"), "`fall` of %s (%s) is longer than the width (%s); accepted: a fall no longer than the width", what, f["fall"].val.Value, f["width"].val.Value)
+			ok = false
+		case d.Period != 0 && d.Period < d.Width:
+			l.errorf(at("period"), "`period` of %s (%s) is shorter than the width (%s); accepted: a period longer than the pulse", what, f["period"].val.Value, f["width"].val.Value)
+			ok = false
+		}
+	}
+	d.Set = ok
 }

@@ -129,12 +129,30 @@ type StudyDefaults struct {
 	Pos   Pos
 }
 
+// PulseDefaults holds the file's defaults for a pulse analysis. Rise and Fall
+// are 10-90 % times and zero when not given; Period is zero for a single
+// pulse.
+type PulseDefaults struct {
+	Set          bool
+	Input        string // port name, "" when not given
+	Output       string // port or node name, "" when not given
+	OutputIsPort bool
+	CarrierHz    float64
+	Level        Level
+	Width        float64
+	Rise, Fall   float64
+	Period       float64
+	Pulses       int // zero when not given
+	Pos          Pos
+}
+
 // Analysis holds the optional analysis defaults.
 type Analysis struct {
 	Response   ResponseDefaults
 	Distortion DistortionDefaults
 	Study      StudyDefaults
 	Yield      YieldDefaults // tolerance.go
+	Pulse      PulseDefaults
 }
 
 // Circuit is a loaded and checked circuit file. All values are in SI base

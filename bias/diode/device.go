@@ -43,7 +43,7 @@ type Device struct {
 	BuiltInPotential     float64 // V_bi(T)
 	ZeroBiasCapacitance  float64 // C_j0(T)
 
-	nvt float64 // n V_T
+	nvt       float64 // n V_T
 
 	// Notes lists anything the temperature scaling had to clamp.
 	Notes []string
@@ -229,6 +229,19 @@ func (d *Device) Charge(v float64) Law {
 	return d.DepletionCharge(v).Add(d.DiffusionCharge(v))
 }
 
+// Laws returns Current(v) and Charge(v) together, evaluating the forward
+// exponential they share once: what a time-domain solver needs at every
+// iteration.
+func (d *Device) Laws(v float64) (current, charge Law) {
+	f := d.ForwardCurrent(v)
+	current = f.Add(d.BreakdownCurrent(v))
+	charge = d.DepletionCharge(v)
+	if tau := d.Params.TransitTime; tau != 0 {
+		charge = charge.Add(f.Scale(tau))
+	}
+	return current, charge
+}
+
 // CriticalVoltage returns the junction voltage above which a Newton step is
 // limited: n V_T ln(n V_T / (√2 I_S)), where the exponential's curvature
 // makes a full linear step unsafe (Vlach and Singhal, 2nd ed., 1994).
@@ -275,4 +288,66 @@ func limitExp(vNew, vOld, s, vc float64) (float64, bool) {
 		return vc, true
 	}
 	return s * math.Log(vNew/s), true
+}
+
+// ChargeEnergy returns the work done on the junction's charge in bringing
+// it from zero bias to junction voltage v,
+//
+//	W(v) = ∫_0^v u dq(u) = v q(v) - ∫_0^v q(u) du,
+//
+// for q = q_j + q_d (DepletionCharge, DiffusionCharge). It is a state
+// function of v, the energy the charge gives back on the way to zero
+// bias, and it is positive on both sides of zero. Closed forms: below
+// V_bi/2,
+//
+//	∫_0^v q_j du = K [v - V_bi (1 - (1 - v/V_bi)^(2-m)) / (2 - m)],  K = C_j0 V_bi / (1 - m),
+//
+// the integral of the cubic continuation above it, and for the stored
+// charge q_d = tau_T I_S (e^(v/nV_T) - 1)
+//
+//	W_d(v) = tau_T I_S [(v - nV_T) (e^(v/nV_T) - 1) + v].
+func (d *Device) ChargeEnergy(v float64) float64 {
+	return d.depletionEnergy(v) + d.diffusionEnergy(v)
+}
+
+func (d *Device) depletionEnergy(v float64) float64 {
+	zeroBias := d.ZeroBiasCapacitance
+	if zeroBias == 0 {
+		return 0
+	}
+	vb, m := d.BuiltInPotential, d.Params.Grading
+	below := func(v float64) float64 {
+		k := zeroBias * vb / (1 - m)
+		integral := k * (v - vb*(1-math.Pow(1-v/vb, 2-m))/(2-m))
+		return v*textbookDepletion(v, zeroBias, vb, m).Value - integral
+	}
+	v1 := depletionKnee * vb
+	if v <= v1 {
+		return below(v)
+	}
+	// Above the knee q = q1 + k1 s + k2 s²/2 + k3 s³/6 with s = v - v1:
+	// ∫ (v1 + s) dq = v1 (q(v) - q1) + ∫_0^s s' (k1 + k2 s' + k3 s'²/2) ds'.
+	k := textbookDepletion(v1, zeroBias, vb, m)
+	s := v - v1
+	dq := k.D1*s + k.D2*s*s/2 + k.D3*s*s*s/6
+	return below(v1) + v1*dq + k.D1*s*s/2 + k.D2*s*s*s/3 + k.D3*s*s*s*s/8
+}
+
+func (d *Device) diffusionEnergy(v float64) float64 {
+	tau := d.Params.TransitTime
+	if tau == 0 {
+		return 0
+	}
+	s, is := d.nvt, d.SaturationCurrent
+	a := v / s
+	// The forward law runs on its tangent beyond top, where it implies
+	// MaxLawCurrent (boundedExp).
+	top := logMaxLawCurrent - d.LogSaturationCurrent
+	if a <= top {
+		return tau * is * ((v-s)*math.Expm1(a) + v)
+	}
+	// Beyond top dq/dv = tau MaxLawCurrent / s, so W grows by that times
+	// (v² - v_m²)/2 from v_m = top · s.
+	vm := top * s
+	return tau*((vm-s)*(MaxLawCurrent-is)+is*vm) + tau*MaxLawCurrent/s*(v*v-vm*vm)/2
 }

@@ -27,7 +27,7 @@ func newReportCmd() *cobra.Command {
 		Use:   "report FILE -o REPORT.html",
 		Short: "Write one self-contained HTML design report",
 		Long: `report runs every analysis the circuit file's defaults ask for — bias,
-small-signal response, distortion and the study — and writes one HTML page
+small-signal response, distortion, the study and a pulse — and writes one HTML page
 with the circuit summary, Q-point and small-signal tables, response figures
 (gain and phase, impedance, Smith chart, group delay), distortion tables and
 figures, the study's figures and every caution. The page carries its figures
@@ -206,6 +206,16 @@ func buildReport(c *circuit.Circuit, temperature string) (*report.Document, erro
 	}
 	if len(c.Tolerances) > 0 {
 		sec, cards, err := yieldSection(c, temperature) // yieldcmd.go
+		if err != nil {
+			return nil, err
+		}
+		doc.Sections = append(doc.Sections, sec)
+		doc.Cards = append(doc.Cards, cards...)
+	}
+
+	// Pulse, only when the file asks for one.
+	if c.Analysis.Pulse.Set {
+		sec, cards, err := pulseSection(c, temperature, p)
 		if err != nil {
 			return nil, err
 		}

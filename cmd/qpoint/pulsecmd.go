@@ -1,0 +1,750 @@
+package main
+
+import (
+	"encoding/csv"
+	"errors"
+	"fmt"
+	"io"
+	"math"
+	"strconv"
+	"strings"
+
+	"github.com/spf13/cobra"
+
+	"qpoint/ac"
+	"qpoint/ac/transient"
+	"qpoint/bias"
+	"qpoint/bias/circuit"
+	"qpoint/bias/si"
+	"qpoint/plots"
+	"qpoint/plots/report"
+	"qpoint/smallsignal"
+)
+
+type pulseFlags struct {
+	input, output, carrier, level, width, rise, fall, period string
+	pulses                                                   int
+	probe, probeFrequency, after                             string
+	tolerance                                                float64
+	maxSteps                                                 int
+	sweepLevel                                               string
+	temperature                                              string
+	asJSON                                                   bool
+	csvPath, plotsDir                                        string
+	sets                                                     []string
+}
+
+func newPulseCmd() *cobra.Command {
+	var fl pulseFlags
+	cmd := &cobra.Command{
+		Use:   "pulse FILE",
+		Short: "Pulses: spike and flat leakage, recovery of a limiter; rise and fall of a detector",
+		Long: `pulse drives the input port with a pulsed carrier and follows the full
+nonlinear circuit in time from its DC point, through the pulse and after
+it (TR-BDF2 with error control, the diodes' charge included), then reads
+at the output:
+
+  limiter    spike leakage (the highest envelope power at the leading edge
+             and the energy above the flat leakage), flat leakage (the
+             output power once limiting has settled), and the recovery
+             time: from the pulse's end until the loss of a small probe
+             tone is back within 1 dB and 3 dB of its value before
+  detector   the video output's 10-90 % rise and fall times, and its value
+             at the end of the pulse against the steady-state DC shift
+             under the continuous carrier
+
+and every diode's peak junction current, peak reverse voltage and
+dissipation over the pulse against its ratings. Which figures apply is
+read from the circuit: an output whose DC level the carrier moves more
+than its fundamental is a detector's.
+
+Width is between the 50 % points; rise and fall are 10-90 % times of the
+carrier's amplitude, which ramps linearly (IEEE Std 181). Powers are
+delivered into the output port's reference impedance. Settings come from
+the flags, else from the file's analysis.pulse.`,
+		Example: `  qpoint pulse testdata/demo/limiter.yaml
+  qpoint pulse limiter.yaml --carrier 3GHz --level 40dBm --width 1us --rise 10ns --fall 10ns
+  qpoint pulse limiter.yaml --period 2us --pulses 3 --plots figures/
+  qpoint pulse limiter.yaml --sweep-level 20dBm:45dBm:5dB
+  qpoint pulse detector.yaml --width 200ns --json`,
+		Args: exactFile,
+		RunE: func(cmd *cobra.Command, args []string) error {
+			return runPulse(cmd, args[0], &fl)
+		},
+	}
+	f := cmd.Flags()
+	addSetFlag(cmd, &fl.sets)
+	f.StringVar(&fl.input, "input", "", "input port name (default: the file's pulse input, else its distortion input, else the first port)")
+	f.StringVar(&fl.output, "output", "", "output port or node name (default: the file's, else the last port)")
+	f.StringVar(&fl.carrier, "carrier", "", "carrier frequency, e.g. 3GHz (default: the file's pulse carrier, else its distortion frequency)")
+	f.StringVar(&fl.level, "level", "", "carrier level at full amplitude: available power such as 40dBm, or a peak voltage into a matched load")
+	f.StringVar(&fl.width, "width", "", "pulse width between the 50 % points, e.g. 1us")
+	f.StringVar(&fl.rise, "rise", "", "10-90 % rise time of the carrier's amplitude [5 % of the width, at least one carrier period]")
+	f.StringVar(&fl.fall, "fall", "", "10-90 % fall time [as the rise]")
+	f.StringVar(&fl.period, "period", "", "repetition interval of a pulse train; none for a single pulse")
+	f.IntVar(&fl.pulses, "pulses", 0, "number of pulses in the train [2 with a period, else 1]")
+	f.StringVar(&fl.probe, "probe", "", fmt.Sprintf("level of a limiter's probe tone for the recovery, or none [%d dBm]", transient.DefaultProbeDBm))
+	f.StringVar(&fl.probeFrequency, "probe-frequency", "", "frequency of the probe tone [the carrier's]")
+	f.StringVar(&fl.after, "after", "", "time to follow the circuit after the last pulse [until recovered, at most 10 pulse lengths (100 for a detector)]")
+	f.Float64Var(&fl.tolerance, "tolerance", 1e-3, "relative error bound of each time step")
+	f.IntVar(&fl.maxSteps, "max-steps", 2_000_000, "most time steps a run may take (accepted and rejected)")
+	f.StringVar(&fl.sweepLevel, "sweep-level", "", "repeat the run over carrier levels FROM:TO:STEP, e.g. 20dBm:45dBm:5dB")
+	f.StringVar(&fl.temperature, "temperature", "", "circuit temperature, overriding the file's (e.g. 85C)")
+	f.BoolVar(&fl.asJSON, "json", false, "print one JSON document (SI units) instead of tables")
+	f.StringVar(&fl.csvPath, "csv", "", "write the output waveform, the generator's EMF and each diode's junction current and voltage at every time point to this CSV file")
+	f.StringVar(&fl.plotsDir, "plots", "", "write the pulse figures (SVG and PNG) into this directory")
+	return cmd
+}
+
+// pulseSetup is a resolved pulse run: the circuit at its bias point and
+// the settings, with where each setting came from for messages.
+type pulseSetup struct {
+	c        *circuit.Circuit
+	p        *bias.Point
+	nw       *smallsignal.Network
+	settings transient.PulseSettings
+	inName   string
+	outName  string
+	levelDBm float64
+	probeDBm float64 // NaN for no probe or the default
+	source   map[string]string
+}
+
+// where names the flag or file key a setting came from.
+func (s *pulseSetup) where(field string) string {
+	if w, ok := s.source[field]; ok {
+		return w
+	}
+	return "flag --" + field
+}
+
+// resolvePulse resolves the flags and the file's defaults for a loaded
+// circuit and linearises it at p, solving the bias first when p is nil.
+func resolvePulse(c *circuit.Circuit, fl *pulseFlags, p *bias.Point) (*pulseSetup, error) {
+	if len(c.Ports) == 0 {
+		return nil, inputError(fmt.Errorf("%s: the circuit has no ports; a pulse needs an input port (add a `ports:` list)", c.File))
+	}
+	if err := transient.Check(c); err != nil {
+		return nil, inputError(fmt.Errorf("%s: %w", c.File, err))
+	}
+	def := c.Analysis.Pulse
+	s := &pulseSetup{c: c, source: map[string]string{}, probeDBm: math.NaN()}
+	fileKey := func(key string) string { return "analysis.pulse." + key + " in " + c.File }
+	input, output := fl.input, fl.output
+	if input == "" && def.Set {
+		input = def.Input
+	}
+	if output == "" && def.Set {
+		output = def.Output
+	}
+	sp, err := resolveSignalPath(c, input, output)
+	if err != nil {
+		return nil, err
+	}
+	s.inName, s.outName = sp.inName, sp.outName
+	z0 := c.Ports[sp.in].Impedance
+
+	// Each time setting: the flag, else the file's value.
+	readTime := func(flag, text string, fromFile float64, required bool) (float64, error) {
+		if text != "" {
+			v, err := circuit.ParseBounded(text, circuit.Time)
+			if err != nil {
+				return 0, inputError(fmt.Errorf("flag --%s: %w", flag, err))
+			}
+			return v, nil
+		}
+		if def.Set && fromFile != 0 {
+			s.source[flag] = fileKey(flag)
+			return fromFile, nil
+		}
+		if required {
+			return 0, inputError(fmt.Errorf("no pulse %s: give --%s (e.g. --%s 1us) or analysis.pulse.%s in the file", flag, flag, flag, flag))
+		}
+		return 0, nil
+	}
+	carrier := 0.0
+	switch {
+	case fl.carrier != "":
+		if carrier, err = circuit.ParseBounded(fl.carrier, circuit.Frequency); err != nil {
+			return nil, inputError(fmt.Errorf("flag --carrier: %w", err))
+		}
+	case def.Set:
+		carrier, s.source["carrier"] = def.CarrierHz, fileKey("carrier")
+	case c.Analysis.Distortion.Set:
+		carrier, s.source["carrier"] = c.Analysis.Distortion.FrequencyHz, "analysis.distortion.frequency in "+c.File
+	default:
+		return nil, inputError(fmt.Errorf("no carrier frequency: give --carrier (e.g. 3GHz) or analysis.pulse.carrier in the file"))
+	}
+	var lv circuit.Level
+	switch {
+	case fl.level != "":
+		if lv, err = circuit.ParseLevel(fl.level); err != nil {
+			return nil, inputError(fmt.Errorf("flag --level: %w", err))
+		}
+	case def.Set:
+		lv, s.source["level"] = def.Level, fileKey("level")
+	default:
+		return nil, inputError(fmt.Errorf("no pulse level: give --level (e.g. 40dBm) or analysis.pulse.level in the file"))
+	}
+	s.levelDBm = levelDBm(lv, z0)
+	width, err := readTime("width", fl.width, def.Width, true)
+	if err != nil {
+		return nil, err
+	}
+	rise, err := readTime("rise", fl.rise, def.Rise, false)
+	if err != nil {
+		return nil, err
+	}
+	fall, err := readTime("fall", fl.fall, def.Fall, false)
+	if err != nil {
+		return nil, err
+	}
+	period := 0.0
+	if fl.period != "none" {
+		if period, err = readTime("period", fl.period, def.Period, false); err != nil {
+			return nil, err
+		}
+	}
+	edge := math.Max(width/20, 1/carrier)
+	if rise == 0 && fl.rise == "" && (!def.Set || def.Rise == 0) {
+		rise = math.Min(edge, width)
+	}
+	if fall == 0 && fl.fall == "" && (!def.Set || def.Fall == 0) {
+		fall = math.Min(edge, width)
+	}
+	count := fl.pulses
+	switch {
+	case count < 0:
+		return nil, inputError(fmt.Errorf("flag --pulses: %d; accepted: 1 to 1000", count))
+	case count == 0 && def.Set && def.Pulses > 0 && period != 0:
+		count, s.source["count"] = def.Pulses, fileKey("pulses")
+	case count == 0 && period != 0:
+		count = 2
+	case count == 0:
+		count = 1
+	}
+	if count > 1 && period == 0 {
+		return nil, inputError(fmt.Errorf("flag --pulses: %d pulses need a period; give --period", count))
+	}
+	if _, fromFile := s.source["count"]; !fromFile {
+		s.source["count"] = "flag --pulses"
+	}
+
+	set := transient.PulseSettings{
+		Input: sp.in, Output: sp.out,
+		Pulse: transient.Pulse{CarrierHz: carrier, CarrierEMF: ac.DBmToEMF(s.levelDBm, z0),
+			Width: width, Rise: rise, Fall: fall, Period: period, Count: count},
+		Transient: transient.Settings{RelativeTolerance: fl.tolerance, MaxSteps: fl.maxSteps},
+	}
+	if !(fl.tolerance > 0 && fl.tolerance <= 0.1) {
+		return nil, inputError(fmt.Errorf("flag --tolerance: %g; accepted: above 0, at most 0.1 (1e-3 is the default)", fl.tolerance))
+	}
+	if fl.maxSteps < 1000 || fl.maxSteps > 1_000_000_000 {
+		return nil, inputError(fmt.Errorf("flag --max-steps: %d; accepted: 1000 to 1e9", fl.maxSteps))
+	}
+	if fl.after != "" {
+		if set.After, err = circuit.ParseBounded(fl.after, circuit.Time); err != nil {
+			return nil, inputError(fmt.Errorf("flag --after: %w", err))
+		}
+		if !(set.After > 0) {
+			return nil, inputError(fmt.Errorf("flag --after: %s; accepted: a positive time", fl.after))
+		}
+	}
+	// The probe: none, a level, and a frequency.
+	probeHz := carrier
+	if fl.probeFrequency != "" {
+		if probeHz, err = circuit.ParseBounded(fl.probeFrequency, circuit.Frequency); err != nil {
+			return nil, inputError(fmt.Errorf("flag --probe-frequency: %w", err))
+		}
+	}
+	switch fl.probe {
+	case "":
+		if fl.probeFrequency != "" {
+			s.probeDBm = transient.DefaultProbeDBm
+			set.Probe = &transient.Probe{FrequencyHz: probeHz, EMF: ac.DBmToEMF(s.probeDBm, z0)}
+		}
+	case "none":
+		set.Probe = &transient.Probe{}
+	default:
+		plv, err := circuit.ParseLevel(fl.probe)
+		if err != nil {
+			return nil, inputError(fmt.Errorf("flag --probe: %w; or none", err))
+		}
+		s.probeDBm = levelDBm(plv, z0)
+		set.Probe = &transient.Probe{FrequencyHz: probeHz, EMF: ac.DBmToEMF(s.probeDBm, z0)}
+	}
+	if err := set.Pulse.Check(); err != nil {
+		return nil, s.requestError(err)
+	}
+	s.settings = set
+	if p == nil {
+		if p, err = solveWithTemperature(c, fl.temperature); err != nil {
+			return nil, err
+		}
+	}
+	s.p = p
+	if s.nw, err = smallsignal.New(p); err != nil {
+		return nil, analysisError(err)
+	}
+	return s, nil
+}
+
+// levelDBm returns a level as available power behind z0: a peak voltage
+// is what the generator delivers into a matched load, half its EMF.
+func levelDBm(lv circuit.Level, z0 float64) float64 {
+	if lv.IsPower {
+		return lv.DBm
+	}
+	return ac.EMFToDBm(2*lv.PeakVolts, z0)
+}
+
+// requestError turns the library's refusal of a pulse into an input error
+// naming the flag or file key it concerns.
+func (s *pulseSetup) requestError(err error) error {
+	var re *transient.RequestError
+	if !errors.As(err, &re) {
+		return err
+	}
+	switch re.Field {
+	case "steps":
+		return inputError(fmt.Errorf("flag --max-steps: %s", re.Message))
+	case "delay":
+		return inputError(fmt.Errorf("the pulse: %s", re.Message))
+	}
+	return inputError(fmt.Errorf("%s: %s", s.where(re.Field), re.Message))
+}
+
+func runPulse(cmd *cobra.Command, path string, fl *pulseFlags) error {
+	c, err := loadCircuit(cmd.ErrOrStderr(), path, fl.sets, fl.temperature)
+	if err != nil {
+		return err
+	}
+	s, err := resolvePulse(c, fl, nil)
+	if err != nil {
+		return err
+	}
+	if err := refuseInputs(fl.csvPath); err != nil {
+		return err
+	}
+	out := cmd.OutOrStdout()
+	if fl.sweepLevel != "" {
+		return runPulseSweep(cmd, s, fl)
+	}
+	res, runErr := transient.RunPulse(s.nw, s.settings)
+	var stopped *transient.Stopped
+	switch {
+	case runErr == nil:
+	case errors.As(runErr, &stopped) && res != nil:
+		// What it reached is still shown; the exit status says it failed.
+	case res == nil:
+		var re *transient.RequestError
+		if errors.As(runErr, &re) {
+			return s.requestError(runErr)
+		}
+		return analysisError(runErr)
+	}
+	var figs []*plots.Figure
+	if fl.plotsDir != "" {
+		figs = plots.PulseFigures(res, s.nw)
+		if err := refuseInputs(figurePaths(fl.plotsDir, figs)...); err != nil {
+			return err
+		}
+	}
+	if fl.csvPath != "" {
+		if err := writeFileAtomic(fl.csvPath, func(w io.Writer) error { return writePulseCSV(w, s, res) }); err != nil {
+			return err
+		}
+	}
+	if fl.plotsDir != "" {
+		if err := writeFigures(fl.plotsDir, figs); err != nil {
+			return err
+		}
+	}
+	if fl.asJSON {
+		if err := writeJSON(out, pulseJSONOf(s, res, runErr)); err != nil {
+			return err
+		}
+	} else {
+		writePulseHeader(out, s, res)
+		writePulseFigures(out, s, res)
+		writePulseStress(out, res)
+		writePulseCautions(out, res.Cautions)
+		if fl.plotsDir != "" {
+			fmt.Fprintf(out, "figures written to %s\n", fl.plotsDir)
+		}
+		if fl.csvPath != "" {
+			fmt.Fprintf(out, "waveform written to %s\n", fl.csvPath)
+		}
+	}
+	if runErr != nil {
+		return analysisError(fmt.Errorf("the run %w; the figures above are of what it reached", runErr))
+	}
+	return nil
+}
+
+// writePulseHeader prints what was run.
+func writePulseHeader(w io.Writer, s *pulseSetup, res *transient.PulseResult) {
+	p := res.Settings.Pulse
+	z0 := s.c.Ports[s.settings.Input].Impedance
+	fmt.Fprintf(w, "%s\n", s.c.Name)
+	fmt.Fprintf(w, "  file         %s\n", s.c.File)
+	writeOverrides(w, s.c)
+	fmt.Fprintf(w, "  bias         %s\n", report.BiasLine(s.p))
+	fmt.Fprintf(w, "  pulse        port %s, %s carrier at %.2f dBm available (EMF %s peak behind %s)\n", s.inName,
+		si.Format(p.CarrierHz, "Hz", 6), s.levelDBm, si.Format(p.CarrierEMF, "V", 4), si.Format(z0, "Ω", 4))
+	train := "a single pulse"
+	if p.Period > 0 {
+		train = fmt.Sprintf("%d pulses every %s", max(p.Count, 1), si.Format(p.Period, "s", 4))
+	}
+	fmt.Fprintf(w, "               width %s (50 %% points), rise %s, fall %s (10-90 %%), %s starting at %s\n",
+		si.Format(p.Width, "s", 4), si.Format(p.Rise, "s", 3), si.Format(p.Fall, "s", 3), train, si.Format(p.Start(0), "s", 3))
+	if p.ProbeEMF != 0 {
+		fmt.Fprintf(w, "  probe        %.1f dBm at %s, for the recovery\n", ac.EMFToDBm(p.ProbeEMF, z0), si.Format(p.ProbeHz, "Hz", 6))
+	}
+	kind := "node"
+	if s.settings.Output.Port >= 0 {
+		kind = fmt.Sprintf("port, %s", si.Format(s.c.Ports[s.settings.Output.Port].Impedance, "Ω", 4))
+	}
+	fmt.Fprintf(w, "  output       %s (%s), read as a %s\n", s.outName, kind, res.Kind)
+	if r := res.Run; r != nil && len(r.Times) > 0 {
+		st := r.Stats
+		fmt.Fprintf(w, "  run          %s from 0 to %s: %d steps (%d rejected, %d fallbacks), %.2f Newton iterations per stage, %.2f s; energy account closes to %.1e\n",
+			st.Method, si.Format(r.Times[len(r.Times)-1], "s", 4), st.Accepted, st.Rejected, st.Fallbacks,
+			float64(st.NewtonIterations)/math.Max(1, float64(2*(st.Accepted+st.Rejected))), st.Runtime.Seconds(), r.Energy.Imbalance)
+	}
+}
+
+// dbmOf returns a power in dBm, or "—".
+func dbmOf(w float64) string {
+	if !(w > 0) || math.IsInf(w, 0) {
+		return "—"
+	}
+	return fmt.Sprintf("%.2f dBm", 10*math.Log10(w*1e3))
+}
+
+// timeOf formats a duration, or "—" for none.
+func timeOf(t float64) string {
+	if math.IsNaN(t) || math.IsInf(t, 0) {
+		return "—"
+	}
+	return si.Format(t, "s", 4)
+}
+
+// writePulseFigures prints the limiter's or the detector's figures of the
+// last pulse, with each pulse's when there are several.
+func writePulseFigures(w io.Writer, s *pulseSetup, res *transient.PulseResult) {
+	if len(res.Pulses) == 0 {
+		fmt.Fprintln(w, "The run ended before the pulse did: no figures.")
+		return
+	}
+	for _, t := range pulseTables(s, res) {
+		t.write(w)
+	}
+}
+
+// pulseTables returns the figures of the last pulse, with each pulse's
+// when there are several.
+func pulseTables(s *pulseSetup, res *transient.PulseResult) []*table {
+	f := res.Figures
+	title := "Limiter figures"
+	if len(res.Pulses) > 1 {
+		title += fmt.Sprintf(" (pulse %d of %d)", f.Pulse+1, len(res.Pulses))
+	}
+	t := &table{title: title, header: []string{"quantity", "value", ""}}
+	if res.Kind == transient.Detector {
+		t.title = strings.Replace(title, "Limiter", "Detector", 1)
+		t.add("video change at the end of the flat top", si.Format(f.Settled, "V", 4), "from the DC point's "+si.Format(res.Baseline, "V", 4))
+		if !math.IsNaN(res.SteadyShift) {
+			t.add("steady-state DC shift", si.Format(res.SteadyShift, "V", 4), fmt.Sprintf("continuous carrier; the pulse reached %s", shareDB(f.Settled, res.SteadyShift)))
+		}
+		t.add("rise time, 10-90 %", timeOf(f.RiseTime), "of the change towards the steady state")
+		t.add("fall time, 90-10 %", timeOf(f.FallTime), "after the flat top")
+		return []*table{t}
+	}
+	spikeNote := fmt.Sprintf("%s after the pulse's start", timeOf(f.SpikeTime-f.Start))
+	t.add("spike leakage, peak", dbmOf(f.SpikePeak), spikeNote)
+	energy := si.Format(f.SpikeEnergy, "J", 3)
+	note := "above the flat leakage"
+	if f.SpikeEnergy == 0 {
+		energy, note = "0 J", "no spike: the peak stays within 1 dB of the flat leakage"
+	}
+	if math.IsNaN(f.SpikeEnergy) {
+		energy, note = "—", ""
+	}
+	t.add("spike leakage, energy", energy, note)
+	t.add("flat leakage", dbmOf(f.Flat), fmt.Sprintf("over the end of the flat top; %s below the pulse", attenuation(res.LevelDBm(s.nw), f.Flat)))
+	if res.Settings.Pulse.ProbeEMF != 0 {
+		t.add("recovery to within 1 dB", recoveryText(f.Recovery1dB, f.Recovery1dBBound), "of the probe's loss before the pulse")
+		t.add("recovery to within 3 dB", recoveryText(f.Recovery3dB, f.Recovery3dBBound), "")
+		t.add("probe loss before the pulse", fmt.Sprintf("%.3f dB", res.LossBefore), fmt.Sprintf("small-signal %.3f dB", res.SmallSignalLoss))
+	} else {
+		t.add("recovery", "—", "no probe (--probe none)")
+	}
+	tables := []*table{t}
+	if len(res.Pulses) > 1 {
+		pt := &table{title: "Each pulse", header: []string{"pulse", "start", "spike peak", "spike energy", "flat leakage", "recovery 1 dB", "recovery 3 dB"}}
+		for _, q := range res.Pulses {
+			pt.add(strconv.Itoa(q.Pulse+1), si.Format(q.Start, "s", 4), dbmOf(q.SpikePeak), si.Format(q.SpikeEnergy, "J", 3), dbmOf(q.Flat),
+				recoveryText(q.Recovery1dB, q.Recovery1dBBound), recoveryText(q.Recovery3dB, q.Recovery3dBBound))
+		}
+		tables = append(tables, pt)
+	}
+	return tables
+}
+
+// shareDB says how close a value came to a reference, in dB.
+func shareDB(v, ref float64) string {
+	d := 20 * math.Log10(math.Abs(v/ref))
+	if math.IsNaN(d) || math.IsInf(d, 0) {
+		return "—"
+	}
+	return fmt.Sprintf("%+.2f dB of it", d)
+}
+
+// attenuation is how far the flat leakage lies below the carrier's
+// available power.
+func attenuation(levelDBm, flatW float64) string {
+	if !(flatW > 0) {
+		return "—"
+	}
+	return fmt.Sprintf("%.1f dB", levelDBm-10*math.Log10(flatW*1e3))
+}
+
+// recoveryText formats a recovery time, marking an upper bound.
+func recoveryText(t float64, bound bool) string {
+	switch {
+	case math.IsNaN(t):
+		return "—"
+	case bound:
+		return "≤ " + si.Format(t, "s", 3)
+	}
+	return si.Format(t, "s", 4)
+}
+
+// writePulseStress prints each diode's extremes.
+func writePulseStress(w io.Writer, res *transient.PulseResult) {
+	stressTableOf(res).write(w)
+}
+
+// stressTableOf returns each diode's extremes under the pulse.
+func stressTableOf(res *transient.PulseResult) *table {
+	t := &table{title: "Diodes under the pulse", header: []string{"diode", "peak junction current", "peak reverse voltage", "mean dissipation over the pulse", "past the knee"}}
+	for _, d := range res.Diodes {
+		knee := "—"
+		if d.PastKnee > 0 {
+			knee = si.Format(d.PastKnee, "s", 3)
+		}
+		t.add(d.Name, si.Format(d.PeakCurrent, "A", 3), si.Format(d.PeakReverseVoltage, "V", 3), si.Format(d.PulsePower, "W", 3), knee)
+	}
+	return t
+}
+
+// writePulseCautions prints the typed cautions' messages.
+func writePulseCautions(w io.Writer, cs []transient.Caution) {
+	if len(cs) == 0 {
+		return
+	}
+	fmt.Fprintf(w, "\nCautions\n")
+	for _, c := range cs {
+		fmt.Fprintf(w, "  ! %s\n", c.Message)
+	}
+	fmt.Fprintln(w)
+}
+
+// writePulseCSV writes every point of the run: time, the generator's EMF,
+// the output, and each diode's junction current and voltage.
+func writePulseCSV(w io.Writer, s *pulseSetup, res *transient.PulseResult) error {
+	cw := csv.NewWriter(w)
+	header := []string{"time_s", "emf_V", "output_" + s.outName + "_V"}
+	for _, d := range res.Run.Diodes {
+		header = append(header, d.Name+"_current_A", d.Name+"_junction_V")
+	}
+	if err := cw.Write(header); err != nil {
+		return err
+	}
+	g := func(v float64) string { return strconv.FormatFloat(v, 'g', -1, 64) }
+	row := make([]string, 0, len(header))
+	for i, t := range res.Run.Times {
+		row = append(row[:0], g(t), g(res.Run.EMF[i]), g(res.Output[i]))
+		for _, d := range res.Run.Diodes {
+			row = append(row, g(d.Current[i]), g(d.Junction[i]))
+		}
+		if err := cw.Write(row); err != nil {
+			return err
+		}
+	}
+	cw.Flush()
+	return cw.Error()
+}
+
+// runPulseSweep repeats the run over carrier levels and prints the figures
+// against the level.
+func runPulseSweep(cmd *cobra.Command, s *pulseSetup, fl *pulseFlags) error {
+	z0 := s.c.Ports[s.settings.Input].Impedance
+	from, to, step, err := parseLevelRange("sweep-level", fl.sweepLevel, z0)
+	if err != nil {
+		return err
+	}
+	n := int(math.Floor((to-from)/step+1e-9)) + 1
+	if n > 200 {
+		return inputError(fmt.Errorf("flag --sweep-level: %d levels; accepted: at most 200", n))
+	}
+	levels := make([]float64, n)
+	for i := range levels {
+		levels[i] = from + float64(i)*step
+	}
+	if fl.csvPath != "" {
+		return inputError(fmt.Errorf("flag --csv: a level sweep keeps no waveform; run one level for it"))
+	}
+	bar := newProgress(cmd.ErrOrStderr(), "pulse level sweep", n)
+	pts := transient.SweepLevel(s.nw, s.settings, levels, 0, bar.update)
+	bar.done()
+	ok := 0
+	for _, p := range pts {
+		if p.Err == nil {
+			ok++
+		} else {
+			var re *transient.RequestError
+			if errors.As(p.Err, &re) {
+				return s.requestError(p.Err)
+			}
+		}
+	}
+	if fl.plotsDir != "" {
+		if err := writeFigures(fl.plotsDir, []*plots.Figure{plots.PulseLevelSweep(pts)}); err != nil {
+			return err
+		}
+	}
+	out := cmd.OutOrStdout()
+	if fl.asJSON {
+		doc := pulseJSONHeader(s)
+		for _, p := range pts {
+			doc.LevelSweep = append(doc.LevelSweep, pulseLevelJSONOf(p))
+		}
+		if err := writeJSON(out, doc); err != nil {
+			return err
+		}
+	} else {
+		writePulseSweep(out, s, pts)
+		if fl.plotsDir != "" {
+			fmt.Fprintf(out, "figures written to %s\n", fl.plotsDir)
+		}
+	}
+	if ok < len(pts) {
+		return analysisError(fmt.Errorf("%d of %d levels did not run to the end; their rows show what they reached", len(pts)-ok, len(pts)))
+	}
+	return nil
+}
+
+// writePulseSweep prints the figures against the carrier level.
+func writePulseSweep(w io.Writer, s *pulseSetup, pts []transient.LevelPoint) {
+	p := s.settings.Pulse
+	fmt.Fprintf(w, "%s\n", s.c.Name)
+	fmt.Fprintf(w, "  file         %s\n", s.c.File)
+	writeOverrides(w, s.c)
+	fmt.Fprintf(w, "  bias         %s\n", report.BiasLine(s.p))
+	fmt.Fprintf(w, "  pulse        port %s, %s carrier, width %s, rise %s, fall %s; output %s\n\n", s.inName,
+		si.Format(p.CarrierHz, "Hz", 6), si.Format(p.Width, "s", 4), si.Format(p.Rise, "s", 3), si.Format(p.Fall, "s", 3), s.outName)
+	if len(pts) == 0 || pts[0].Result == nil {
+		return
+	}
+	detector := pts[0].Result.Kind == transient.Detector
+	header := []string{"level", "spike peak", "spike energy", "flat leakage", "recovery 1 dB", "recovery 3 dB"}
+	title := "Limiter figures against the carrier level"
+	if detector {
+		header = []string{"level", "video change", "steady-state shift", "rise 10-90 %", "fall 90-10 %"}
+		title = "Detector figures against the carrier level"
+	}
+	if r := pts[0].Result; r != nil {
+		for _, d := range r.Diodes {
+			header = append(header, d.Name+" peak current")
+		}
+	}
+	header = append(header, "steps", "cautions")
+	t := &table{title: title, header: header}
+	for _, pt := range pts {
+		r := pt.Result
+		row := []string{fmt.Sprintf("%.1f dBm", pt.LevelDBm)}
+		if r == nil {
+			t.add(append(row, pt.Err.Error())...)
+			continue
+		}
+		f := r.Figures
+		if detector {
+			row = append(row, si.Format(f.Settled, "V", 4), si.Format(r.SteadyShift, "V", 4), timeOf(f.RiseTime), timeOf(f.FallTime))
+		} else {
+			row = append(row, dbmOf(f.SpikePeak), si.Format(f.SpikeEnergy, "J", 3), dbmOf(f.Flat), recoveryText(f.Recovery1dB, f.Recovery1dBBound), recoveryText(f.Recovery3dB, f.Recovery3dBBound))
+		}
+		for _, d := range r.Diodes {
+			row = append(row, si.Format(d.PeakCurrent, "A", 3))
+		}
+		kinds := map[string]bool{}
+		var names []string
+		for _, c := range r.Cautions {
+			if k := c.Kind.String(); !kinds[k] {
+				kinds[k] = true
+				names = append(names, k)
+			}
+		}
+		if pt.Err != nil {
+			names = append(names, "stopped")
+		}
+		row = append(row, strconv.Itoa(r.Run.Stats.Accepted), strings.Join(names, ", "))
+		t.add(row...)
+	}
+	t.write(w)
+	fmt.Fprintf(w, "  cautions name their kinds; run one level (--level) to read them in full\n\n")
+}
+
+// pulseSection runs the file's pulse analysis for the report: its tables,
+// figures and cautions, and headline cards. A run that cannot be made is
+// a note in the section, not a failed report.
+func pulseSection(c *circuit.Circuit, temperature string, p *bias.Point) (report.Section, []report.Card, error) {
+	sec := report.Section{ID: "pulse", Title: "Under a pulse"}
+	s, err := resolvePulse(c, &pulseFlags{temperature: temperature, tolerance: 1e-3, maxSteps: 2_000_000}, p)
+	if err != nil {
+		sec.Intro = "The file's pulse could not be set up: " + err.Error()
+		return sec, nil, nil
+	}
+	res, runErr := transient.RunPulse(s.nw, s.settings)
+	if res == nil {
+		sec.Intro = "The pulse run failed: " + runErr.Error()
+		return sec, nil, nil
+	}
+	pl := res.Settings.Pulse
+	sec.Intro = fmt.Sprintf("Port %s driven by a %s carrier at %.1f dBm available, width %s, rise %s, fall %s; output at %s, read as a %s. The circuit is followed in time from its DC point (%s, %d steps).",
+		s.inName, si.Format(pl.CarrierHz, "Hz", 4), s.levelDBm, si.Format(pl.Width, "s", 3), si.Format(pl.Rise, "s", 3), si.Format(pl.Fall, "s", 3),
+		s.outName, res.Kind, res.Run.Stats.Method, res.Run.Stats.Accepted)
+	if runErr != nil {
+		sec.Blocks = append(sec.Blocks, report.Block{Note: "The run " + runErr.Error() + "; the figures are of what it reached."})
+	}
+	if len(res.Pulses) > 0 {
+		for _, t := range pulseTables(s, res) {
+			sec.Blocks = append(sec.Blocks, report.Block{Table: t.report()})
+		}
+	}
+	sec.Blocks = append(sec.Blocks, report.Block{Table: stressTableOf(res).report()})
+	for _, f := range plots.PulseFigures(res, s.nw) {
+		fig, err := svgOf(f)
+		if err != nil {
+			return sec, nil, analysisError(err)
+		}
+		sec.Blocks = append(sec.Blocks, report.Block{Figure: fig})
+	}
+	var cards []report.Card
+	for _, x := range res.Cautions {
+		sec.Blocks = append(sec.Blocks, report.Block{Note: "Caution: " + x.Message})
+	}
+	f := res.Figures
+	if len(res.Pulses) > 0 {
+		if res.Kind == transient.Detector {
+			cards = append(cards, report.Card{Label: "pulse video", Value: si.Format(f.Settled, "V", 3), Detail: "rise " + timeOf(f.RiseTime) + ", fall " + timeOf(f.FallTime)})
+		} else {
+			cards = append(cards, report.Card{Label: "flat leakage", Value: dbmOf(f.Flat), Detail: fmt.Sprintf("%.1f dBm pulse; spike %s", s.levelDBm, dbmOf(f.SpikePeak))})
+			if pl.ProbeEMF != 0 {
+				cards = append(cards, report.Card{Label: "recovery", Value: recoveryText(f.Recovery1dB, f.Recovery1dBBound), Detail: "to within 1 dB of the loss before the pulse"})
+			}
+		}
+	}
+	return sec, cards, nil
+}
