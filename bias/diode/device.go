@@ -43,7 +43,7 @@ type Device struct {
 	BuiltInPotential     float64 // V_bi(T)
 	ZeroBiasCapacitance  float64 // C_j0(T)
 
-	nvt       float64 // n V_T
+	nvt float64 // n V_T
 
 	// Notes lists anything the temperature scaling had to clamp.
 	Notes []string
