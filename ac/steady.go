@@ -26,6 +26,9 @@ type SteadySettings struct {
 	// Start, when not nil, is a steady state of the same circuit at a
 	// nearby level to start from (continuation over level).
 	Start *Steady
+	// Method solves for the steady state; nil is shooting (see
+	// SteadyMethod).
+	Method SteadyMethod
 }
 
 // Harmonic is one harmonic of a periodic waveform.
@@ -62,9 +65,20 @@ type Steady struct {
 	// and the DC node voltages.
 	NoiseFloor float64
 
-	Iterations int     // shooting-Newton iterations, both step sizes
-	Residual   float64 // final periodicity residual, max |x(T) - x(0)| scaled
-	Samples    int     // samples per period of the coarser solve
+	Iterations int     // Newton iterations (shooting: both step sizes)
+	Residual   float64 // final residual: shooting's periodicity, max |x(T) - x(0)| scaled; harmonic balance's KCL error relative to the node's currents
+	Samples    int     // samples per period of the coarser solve (shooting)
+
+	// Method names the method that found this steady state:
+	// MethodShooting or MethodHarmonicBalance.
+	Method string
+	// Products holds, for a two-tone drive, the output at every mixing
+	// product m·f1 + n·f2 the method solved for; nil for one tone.
+	Products []ToneProduct
+	// State is the solving method's own record of the solution, which a
+	// method other than shooting reads back from SteadySettings.Start to
+	// continue from it (harmonic balance keeps its *balance.Result here).
+	State any
 
 	x0 []float64 // the periodic state, for continuation
 	p  []float64
@@ -97,7 +111,15 @@ var ErrNoSteadyState = errors.New("no periodic steady state found")
 // trapezoidal rule's (-1)^n ringing mode cannot be periodic), each
 // transformed with go-dsp's FFT, and the harmonic phasors combined by
 // Richardson's extrapolation for the rule's error in (ωh)².
+//
+// With s.Method set, the method given solves instead (see SteadyMethod):
+// this is the one entry point for every steady-state method, so that
+// LevelSweep and ValidityLimit continue from level to level whichever
+// method runs.
 func SteadyState(nw *smallsignal.Network, d Drive, s SteadySettings) (*Steady, error) {
+	if s.Method != nil {
+		return s.Method.SolveSteady(nw, d, s)
+	}
 	if d.SecondToneHz != 0 {
 		return nil, fmt.Errorf("the steady-state solve takes one tone")
 	}
@@ -156,8 +178,9 @@ func SteadyState(nw *smallsignal.Network, d Drive, s SteadySettings) (*Steady, e
 		Waveform:   fine.output,
 		x0:         fine.x0,
 		p:          fine.p,
+		Method:     MethodShooting,
 	}
-	res.Stress = stress(nw, fine.currents, fine.terminals, fine.junctions)
+	res.Stress = Stress(nw, fine.currents, fine.terminals, fine.junctions)
 	scale := d.EMF
 	for _, v := range nw.Bias[:nw.NodeUnknowns] {
 		scale = math.Max(scale, math.Abs(v))

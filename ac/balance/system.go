@@ -1,0 +1,292 @@
+package balance
+
+import (
+	"math"
+	"math/cmplx"
+
+	"qpoint/bias/band"
+	"qpoint/smallsignal"
+)
+
+// system is the balance equations of one spectrum: for every product k,
+//
+//	F_k(X) = Y(jw_k) X_k + I_k(X) + jw_k Q_k(X) - B_k = 0,
+//
+// with X_k the unknowns' phasors at product k, I_k and Q_k the junctions'
+// current and charge phasors (stamped into their nodes) and B_k the
+// sources: the DC sources at k = 0 and the input generator's Norton
+// current at each tone, scaled by the continuation parameter λ. At DC the
+// phasors are real; the imaginary parts of the DC unknowns are carried
+// with the equation Im X_0 = 0 so that every vector has the same complex
+// layout, x[k·n + i].
+type system struct {
+	nw   *smallsignal.Network
+	n    int
+	lin  *linear
+	spec *spectrum
+	grid *grid
+	js   []*junction
+
+	dc, signal []complex128 // B = dc + λ signal
+	lambda     float64
+
+	// From the last residual evaluation: the weights that turn each
+	// equation's error into multiples of its tolerance, and the scales
+	// they came from.
+	weight  []float64
+	scale   []float64
+	nlScale []float64 // the junctions' share of scale
+
+	pre *preconditioner
+}
+
+// Tolerances of the balance: an equation holds when its error is within
+// relTol of the magnitudes of the currents meeting in it at that product,
+// plus absRel of the largest junction current the node sees at any
+// product (the floor for a product that vanishes: the transforms mix the
+// products, so their rounding at one product follows the largest).
+const (
+	relTol = 1e-9
+	absRel = 1e-13
+)
+
+func newSystem(nw *smallsignal.Network, lin *linear, spec *spectrum, js []*junction, input int, emf float64) *system {
+	n, P := nw.N, len(spec.products)
+	sys := &system{nw: nw, n: n, lin: lin, spec: spec, grid: newGrid(spec), js: js}
+	lin.setFrequencies(spec)
+	sys.dc = make([]complex128, n*P)
+	sys.signal = make([]complex128, n*P)
+	for i, v := range nw.Sources {
+		sys.dc[i] = complex(v, 0)
+	}
+	port := nw.Ports[input]
+	norton := complex(emf/port.Impedance, 0)
+	tones := [][2]int{{1, 0}}
+	if spec.twoTone {
+		tones = append(tones, [2]int{0, 1})
+	}
+	for _, t := range tones {
+		k, _ := spec.index(t[0], t[1])
+		if port.Node >= 0 {
+			sys.signal[k*n+port.Node] += norton
+		}
+		if port.Return >= 0 {
+			sys.signal[k*n+port.Return] -= norton
+		}
+	}
+	sys.weight = make([]float64, n*P)
+	sys.scale = make([]float64, n*P)
+	sys.nlScale = make([]float64, n*P)
+	return sys
+}
+
+// residual evaluates F(x) into f, refreshes the weights and returns the
+// largest weighted error (at most 1 where every equation holds) and false
+// when the junction laws met a non-finite value.
+func (sys *system) residual(x, f []complex128) (float64, bool) {
+	n, P := sys.n, len(sys.spec.products)
+	clear(f)
+	clear(sys.scale)
+	clear(sys.nlScale)
+	for k := 0; k < P; k++ {
+		sys.lin.apply(k, x[k*n:(k+1)*n], f[k*n:(k+1)*n], sys.scale[k*n:(k+1)*n])
+	}
+	ok := evaluate(sys.grid, sys.js, x, n)
+	for _, j := range sys.js {
+		for k, p := range sys.spec.products {
+			c := j.i[k] + complex(0, p.omega)*j.q[k]
+			j.stamp(f, k, n, c)
+			m := cmplx.Abs(j.i[k]) + math.Abs(p.omega)*cmplx.Abs(j.q[k])
+			if j.a >= 0 {
+				sys.nlScale[k*n+j.a] += m
+			}
+			if j.b >= 0 {
+				sys.nlScale[k*n+j.b] += m
+			}
+		}
+	}
+	for e := range f {
+		b := sys.dc[e] + complex(sys.lambda, 0)*sys.signal[e]
+		f[e] -= b
+		sys.scale[e] += cmplx.Abs(b) + sys.nlScale[e]
+	}
+	for i := 0; i < n; i++ {
+		f[i] = complex(real(f[i]), imag(x[i]))
+	}
+	// Weights.
+	global := 0.0
+	for _, s := range sys.scale {
+		global = math.Max(global, s)
+	}
+	worst := 0.0
+	for i := 0; i < n; i++ {
+		// The transforms mix the products: a junction's rounding at one
+		// product is of the order of its largest current at any.
+		floor := 0.0
+		for k := 0; k < P; k++ {
+			floor = math.Max(floor, sys.nlScale[k*n+i])
+		}
+		floor = math.Max(absRel*floor, 1e-20*global+1e-300)
+		for k := 0; k < P; k++ {
+			e := k*n + i
+			w := 1 / (relTol*sys.scale[e] + floor)
+			if k == 0 {
+				// Im X_0 = 0 is exact: weigh it like the real part.
+				r := math.Abs(real(f[e])) * w
+				if r > worst || math.IsNaN(r) {
+					worst = r
+				}
+				sys.weight[e] = w
+				continue
+			}
+			sys.weight[e] = w
+			r := cmplx.Abs(f[e]) * w
+			if r > worst || math.IsNaN(r) {
+				worst = r
+			}
+		}
+	}
+	if math.IsNaN(worst) || math.IsInf(worst, 0) {
+		ok = false
+	}
+	return worst, ok
+}
+
+// jacobian returns J dx, the derivative of F at the last evaluated point
+// along dx: Y_k dx_k plus the conversion products (g(θ) dv(θ)) and
+// jw_k (c(θ) dv(θ)) of every junction, taken on the grid (so exactly the
+// derivative of the sampled residual).
+func (sys *system) jacobian(dx, out []complex128) {
+	n, P := sys.n, len(sys.spec.products)
+	S := sys.spec.samples
+	clear(out)
+	for k := 0; k < P; k++ {
+		sys.lin.apply(k, dx[k*n:(k+1)*n], out[k*n:(k+1)*n], nil)
+	}
+	vp, vp2 := make([]complex128, P), make([]complex128, P)
+	dv1, dv2 := make([]float64, S), make([]float64, S)
+	gi, cq := make([]float64, S), make([]float64, S)
+	di, dq := make([]complex128, P), make([]complex128, P)
+	js := sys.js
+	apply := func(j *junction, dv []float64) {
+		for s := range dv {
+			gi[s] = j.g[s] * dv[s]
+			cq[s] = j.c[s] * dv[s]
+		}
+		sys.grid.toPhasors(gi, cq, di, dq)
+		for k, p := range sys.spec.products {
+			j.stamp(out, k, n, di[k]+complex(0, p.omega)*dq[k])
+		}
+	}
+	for a := 0; a < len(js); a += 2 {
+		j1 := js[a]
+		for k := range vp {
+			vp[k] = j1.voltage(dx, k, n)
+		}
+		if a+1 < len(js) {
+			j2 := js[a+1]
+			for k := range vp2 {
+				vp2[k] = j2.voltage(dx, k, n)
+			}
+			sys.grid.toTime(vp, vp2, dv1, dv2)
+			apply(j1, dv1)
+			apply(j2, dv2)
+		} else {
+			sys.grid.toTime(vp, nil, dv1, nil)
+			apply(j1, dv1)
+		}
+	}
+	for i := 0; i < n; i++ {
+		out[i] = complex(real(out[i]), imag(dx[i]))
+	}
+}
+
+// preconditioner holds, for every product, the LU factors of
+//
+//	M_k = Y(jw_k) + Σ_junctions (ḡ + jw_k c̄),
+//
+// the network with each junction replaced by its time-averaged
+// conductance and capacitance: the block-diagonal part of the Jacobian,
+// exact for a linear circuit.
+type preconditioner struct {
+	perm   []int
+	kl, ku int
+	m      []*band.Complex
+}
+
+func (sys *system) factorPreconditioner() error {
+	n, P := sys.n, len(sys.spec.products)
+	if sys.pre == nil {
+		var extra [][2]int
+		for _, j := range sys.js {
+			if j.a >= 0 && j.b >= 0 {
+				extra = append(extra, [2]int{j.a, j.b}, [2]int{j.b, j.a})
+			}
+		}
+		edges := sys.lin.pattern(extra)
+		perm := band.Order(n, edges)
+		kl, ku := band.Widths(perm, edges)
+		sys.pre = &preconditioner{perm: perm, kl: kl, ku: ku}
+		for k := 0; k < P; k++ {
+			sys.pre.m = append(sys.pre.m, band.NewComplex(perm, kl, ku))
+		}
+	}
+	means := make([][2]float64, len(sys.js))
+	for d, j := range sys.js {
+		var g, c float64
+		for s := range j.g {
+			g += j.g[s]
+			c += j.c[s]
+		}
+		means[d] = [2]float64{g / float64(len(j.g)), c / float64(len(j.c))}
+	}
+	lin := sys.lin
+	for k, p := range sys.spec.products {
+		m := sys.pre.m[k]
+		m.Zero()
+		y := lin.y[k]
+		for i := 0; i < n; i++ {
+			for e := lin.rowPtr[i]; e < lin.rowPtr[i+1]; e++ {
+				m.Add(i, lin.cols[e], y[e])
+			}
+		}
+		for d, j := range sys.js {
+			v := complex(means[d][0], p.omega*means[d][1])
+			if j.a >= 0 {
+				m.Add(j.a, j.a, v)
+			}
+			if j.b >= 0 {
+				m.Add(j.b, j.b, v)
+			}
+			if j.a >= 0 && j.b >= 0 {
+				m.Add(j.a, j.b, -v)
+				m.Add(j.b, j.a, -v)
+			}
+		}
+		if err := m.Factor(); err != nil {
+			return err
+		}
+	}
+	return nil
+}
+
+// precondition overwrites r with M⁻¹ r, product by product.
+func (sys *system) precondition(r []complex128) {
+	n := sys.n
+	for k := range sys.spec.products {
+		block := r[k*n : (k+1)*n]
+		if k == 0 {
+			im := make([]float64, n)
+			for i := range block {
+				im[i] = imag(block[i])
+				block[i] = complex(real(block[i]), 0)
+			}
+			sys.pre.m[0].Solve(block)
+			for i := range block {
+				block[i] = complex(real(block[i]), im[i])
+			}
+			continue
+		}
+		sys.pre.m[k].Solve(block)
+	}
+}
