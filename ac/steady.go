@@ -70,8 +70,10 @@ type Steady struct {
 	Samples    int     // samples per period of the coarser solve (shooting)
 
 	// Method names the method that found this steady state:
-	// MethodShooting or MethodHarmonicBalance.
+	// MethodShooting or MethodHarmonicBalance; Choice, when the method was
+	// chosen automatically, says why.
 	Method string
+	Choice string
 	// Products holds, for a two-tone drive, the output at every mixing
 	// product m·f1 + n·f2 the method solved for; nil for one tone.
 	Products []ToneProduct

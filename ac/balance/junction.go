@@ -57,7 +57,10 @@ func (j *junction) stamp(f []complex128, k, n int, i complex128) {
 
 // grid moves between phasors and samples on the artificial time grid
 // with go-dsp's FFT. Real signals are transformed two at a time, as the
-// real and imaginary parts of one complex transform.
+// real and imaginary parts of one complex transform; the second is scaled
+// by a power of two to the size of the first, since the transform's
+// rounding follows the larger of the two (a junction's current in amperes
+// beside its charge in coulombs would lose ten digits of the charge).
 type grid struct {
 	s   *spectrum
 	buf []complex128
@@ -78,11 +81,15 @@ func (g *grid) toTime(p1, p2 []complex128, x1, x2 []float64) {
 	S := g.s.samples
 	z := g.buf
 	clear(z)
+	scale := 1.0
+	if p2 != nil {
+		scale = balanceScale(maxAbsC(p1), maxAbsC(p2))
+	}
 	for k, pr := range g.s.products {
 		v1 := p1[k]
 		var v2 complex128
 		if p2 != nil {
-			v2 = p2[k]
+			v2 = p2[k] * complex(scale, 0)
 		}
 		if pr.a == 0 {
 			z[0] = complex(real(v1), -real(v2)) // conj(Z[0])
@@ -99,9 +106,35 @@ func (g *grid) toTime(p1, p2 []complex128, x1, x2 []float64) {
 	for s := range x1 {
 		x1[s] = real(out[s])
 		if x2 != nil {
-			x2[s] = -imag(out[s])
+			x2[s] = -imag(out[s]) / scale
 		}
 	}
+}
+
+// balanceScale returns the power of two nearest a/b (1 when either is
+// zero): the factor that brings a signal of size b to the size of a.
+func balanceScale(a, b float64) float64 {
+	if a == 0 || b == 0 || math.IsInf(a, 0) || math.IsInf(b, 0) || math.IsNaN(a) || math.IsNaN(b) {
+		return 1
+	}
+	_, e := math.Frexp(a / b)
+	return math.Ldexp(1, e)
+}
+
+func maxAbsC(p []complex128) float64 {
+	m := 0.0
+	for _, v := range p {
+		m = math.Max(m, math.Max(math.Abs(real(v)), math.Abs(imag(v))))
+	}
+	return m
+}
+
+func maxAbs(x []float64) float64 {
+	m := 0.0
+	for _, v := range x {
+		m = math.Max(m, math.Abs(v))
+	}
+	return m
 }
 
 // toPhasors returns the phasors at the products of the real signals with
@@ -109,20 +142,21 @@ func (g *grid) toTime(p1, p2 []complex128, x1, x2 []float64) {
 func (g *grid) toPhasors(x1, x2 []float64, p1, p2 []complex128) {
 	S := g.s.samples
 	z := g.buf
+	scale := balanceScale(maxAbs(x1), maxAbs(x2))
 	for s := range z {
-		z[s] = complex(x1[s], x2[s])
+		z[s] = complex(x1[s], scale*x2[s])
 	}
 	w := fft.FFT(z)
 	inv := 1 / float64(S)
 	for k, pr := range g.s.products {
 		if pr.a == 0 {
 			p1[k] = complex(real(w[0])*inv, 0)
-			p2[k] = complex(imag(w[0])*inv, 0)
+			p2[k] = complex(imag(w[0])*inv/scale, 0)
 			continue
 		}
 		wa, wm := w[pr.a], conj(w[S-pr.a])
 		p1[k] = (wa + wm) * complex(inv, 0)
-		p2[k] = (wa - wm) * complex(0, -inv)
+		p2[k] = (wa - wm) * complex(0, -inv/scale)
 	}
 }
 
@@ -132,15 +166,16 @@ func (g *grid) toPhasors(x1, x2 []float64, p1, p2 []complex128) {
 func (g *grid) coefficients(x1, x2 []float64, c1, c2 []complex128) {
 	S := g.s.samples
 	z := g.buf
+	scale := balanceScale(maxAbs(x1), maxAbs(x2))
 	for s := range z {
-		z[s] = complex(x1[s], x2[s])
+		z[s] = complex(x1[s], scale*x2[s])
 	}
 	w := fft.FFT(z)
 	inv := 1 / float64(S)
 	for p := 0; p < S; p++ {
 		wa, wm := w[p], conj(w[(S-p)%S])
 		c1[p] = (wa + wm) * complex(inv/2, 0)
-		c2[p] = (wa - wm) * complex(0, -inv/2)
+		c2[p] = (wa - wm) * complex(0, -inv/(2*scale))
 	}
 }
 
