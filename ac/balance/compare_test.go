@@ -78,3 +78,26 @@ func TestDemosMatchShooting(t *testing.T) {
 		})
 	}
 }
+
+// TestHardMatchShooting: on every circuit of testdata/hard that names a
+// distortion analysis and that shooting solves, harmonic balance agrees
+// with shooting to 0.001 dB on every harmonic down to -120 dB below the
+// largest.
+func TestHardMatchShooting(t *testing.T) {
+	paths, _ := filepath.Glob(filepath.Join("..", "..", "testdata", "hard", "*.yaml"))
+	if len(paths) < 25 {
+		t.Fatalf("found %d hard circuits", len(paths))
+	}
+	for _, p := range paths {
+		c, err := circuit.Load(p)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if !c.Analysis.Distortion.Set {
+			continue
+		}
+		t.Run(filepath.Base(p), func(t *testing.T) {
+			compareWithShooting(t, c, 0, -120)
+		})
+	}
+}
