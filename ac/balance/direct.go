@@ -7,25 +7,25 @@ import (
 	"gonum.org/v1/gonum/mat"
 )
 
-// directJacobian assembles the Jacobian of the balance at the last
-// evaluated point as a dense real matrix over the real and imaginary
-// parts of every phasor (index 2(k·n + i) + part), rows scaled by the
-// residual weights. The junctions enter through their conversion
-// matrices: with γ_p and κ_p the two-sided Fourier coefficients of
-// g(θ) = di/dv and c(θ) = dq/dv, a change dV_l of the junction voltage at
-// product l changes its current and charge at product k by
+// assemble adds the Jacobian of the balance at the last evaluated point,
+// as a real matrix over the real and imaginary parts of every phasor
+// (index 2(k·n + i) + part), to add: every entry when width is at least
+// the number of products, else only the couplings between products whose
+// artificial frequencies differ by at most width (a band about the
+// diagonal in the products). The junctions enter through their
+// conversion matrices: with γ_p and κ_p the two-sided Fourier
+// coefficients of g(θ) = di/dv and c(θ) = dq/dv, a change dV_l of the
+// junction voltage at product l changes its current at product k by
 //
 //	dI_k = γ_(a_k - a_l) dV_l + γ_(a_k + a_l) conj(dV_l)       (k, l ≥ 1)
 //	dI_k = 2 γ_(a_k) dV_0,   dI_0 = Re(γ_(-a_l) dV_l),   dI_0 = γ_0 dV_0
 //
-// and likewise dQ with κ (Maas, "Nonlinear Microwave and RF Circuits",
-// 2nd ed., 2003, ch. 3: the conversion matrices of harmonic balance).
-func (sys *system) directJacobian() *mat.Dense {
+// and its charge likewise with κ (Maas, "Nonlinear Microwave and RF
+// Circuits", 2nd ed., 2003, ch. 3: the conversion matrices of harmonic
+// balance).
+func (sys *system) assemble(width int, add func(r, c int, v float64)) {
 	n, P := sys.n, len(sys.spec.products)
-	L := 2 * n * P
-	J := mat.NewDense(L, L, nil)
-	raw := J.RawMatrix()
-	add := func(r, c int, v float64) { raw.Data[r*raw.Stride+c] += v }
+	full := width >= sys.spec.products[P-1].a
 	// addBlock adds the real form of dz ↦ A dz + B conj(dz) from the
 	// phasor of unknown (l, j) to the equation of (k, i).
 	addBlock := func(k, i, l, j int, A, B complex128) {
@@ -63,17 +63,24 @@ func (sys *system) directJacobian() *mat.Dense {
 		for k, pk := range sys.spec.products {
 			jw := complex(0, pk.omega)
 			for l, pl := range sys.spec.products {
+				if !full && abs(pk.a-pl.a) > width {
+					continue
+				}
 				var A, B complex128
+				conjugate := full || pk.a+pl.a <= width
 				switch {
 				case k == 0 && l == 0:
 					A = at(gamma, 0)
 				case k == 0:
+					// B = conj(A): the DC row keeps its real form.
 					A, B = at(gamma, -pl.a)/2, at(gamma, pl.a)/2
 				case l == 0:
 					A = 2 * (at(gamma, pk.a) + jw*at(kappa, pk.a))
 				default:
 					A = at(gamma, pk.a-pl.a) + jw*at(kappa, pk.a-pl.a)
-					B = at(gamma, pk.a+pl.a) + jw*at(kappa, pk.a+pl.a)
+					if conjugate {
+						B = at(gamma, pk.a+pl.a) + jw*at(kappa, pk.a+pl.a)
+					}
 				}
 				if j.a >= 0 {
 					addBlock(k, j.a, l, j.a, A, B)
@@ -92,6 +99,15 @@ func (sys *system) directJacobian() *mat.Dense {
 	for i := 0; i < n; i++ {
 		add(2*i+1, 2*i+1, 1)
 	}
+}
+
+// directJacobian returns the whole Jacobian as a dense matrix, rows
+// scaled by the residual weights.
+func (sys *system) directJacobian() *mat.Dense {
+	L := 2 * sys.n * len(sys.spec.products)
+	J := mat.NewDense(L, L, nil)
+	raw := J.RawMatrix()
+	sys.assemble(math.MaxInt/4, func(r, c int, v float64) { raw.Data[r*raw.Stride+c] += v })
 	for r := 0; r < L; r++ {
 		w := sys.weight[r/2]
 		row := raw.Data[r*raw.Stride : r*raw.Stride+L]

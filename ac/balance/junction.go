@@ -142,12 +142,19 @@ func maxAbs(x []float64) float64 {
 func (g *grid) toPhasors(x1, x2 []float64, p1, p2 []complex128) {
 	S := g.s.samples
 	z := g.buf
-	scale := balanceScale(maxAbs(x1), maxAbs(x2))
+	m2 := maxAbs(x2)
+	scale := balanceScale(maxAbs(x1), m2)
 	for s := range z {
 		z[s] = complex(x1[s], scale*x2[s])
 	}
 	w := fft.FFT(z)
 	inv := 1 / float64(S)
+	defer func() {
+		if m2 == 0 {
+			// Nothing but the first signal's rounding would show here.
+			clear(p2)
+		}
+	}()
 	for k, pr := range g.s.products {
 		if pr.a == 0 {
 			p1[k] = complex(real(w[0])*inv, 0)
@@ -166,12 +173,16 @@ func (g *grid) toPhasors(x1, x2 []float64, p1, p2 []complex128) {
 func (g *grid) coefficients(x1, x2 []float64, c1, c2 []complex128) {
 	S := g.s.samples
 	z := g.buf
-	scale := balanceScale(maxAbs(x1), maxAbs(x2))
+	m2 := maxAbs(x2)
+	scale := balanceScale(maxAbs(x1), m2)
 	for s := range z {
 		z[s] = complex(x1[s], scale*x2[s])
 	}
 	w := fft.FFT(z)
 	inv := 1 / float64(S)
+	if m2 == 0 {
+		defer clear(c2)
+	}
 	for p := 0; p < S; p++ {
 		wa, wm := w[p], conj(w[(S-p)%S])
 		c1[p] = (wa + wm) * complex(inv/2, 0)

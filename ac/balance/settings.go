@@ -20,7 +20,7 @@ type Settings struct {
 	// result lists; zero means 5 (one tone) or 3 (two tones). It must not
 	// exceed what the truncation holds.
 	Report int
-	// MaxHarmonics bounds the growth: zero means 512 harmonics for one
+	// MaxHarmonics bounds the growth: zero means 2048 harmonics for one
 	// tone, order 31 for two.
 	MaxHarmonics int
 	// FixedHarmonics keeps Harmonics (or Order) as given: no growth and no

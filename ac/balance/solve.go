@@ -41,8 +41,11 @@ var ErrTruncation = errors.New("harmonic balance: the spectrum does not fall off
 // by the junction-voltage limiting of bias/diode applied at every sample.
 // When the full drive does not converge from the DC point (or from
 // Settings.Start) the drive is ramped up (source stepping). The harmonic
-// count grows until the top products fall below the tolerance, and the
-// result is checked on a grid twice as fine.
+// count grows until the top products fall below the tolerance, or until
+// growing it no longer moves any reported node voltage or junction current
+// by more than 1e-7 of itself plus 1e-12 of the largest (a switching waveform's
+// spectrum can fall off slowly beyond what it reports); the result is
+// checked on a grid twice as fine.
 //
 // Converged means every KCL equation holds at every product within 1e-9
 // of the magnitudes of the currents meeting there, with a floor of 1e-13
@@ -68,7 +71,16 @@ func Solve(nw *smallsignal.Network, d ac.Drive, s Settings) (*Result, error) {
 	if err != nil {
 		return nil, err
 	}
+	var before *snapshot
 	for !s.FixedHarmonics && !sv.truncationHolds(sys.spec, x) {
+		now := sv.snapshot(sys.spec, x)
+		if debugNewton != nil && before != nil {
+			fmt.Println("K", sys.spec.order, "change", change(*before, now), sv.stats.Runtime)
+		}
+		if before != nil && settled(*before, now) {
+			break
+		}
+		before = &now
 		next, ok := sv.grow(sys.spec)
 		if !ok {
 			return nil, fmt.Errorf("%w: with %s the top products still exceed %.2g of the largest signal; raise the limit or lower the drive",
@@ -91,6 +103,7 @@ func Solve(nw *smallsignal.Network, d ac.Drive, s Settings) (*Result, error) {
 }
 
 var debugNewton func(int, float64, float64)
+var debugInfo string
 
 // solver carries one Solve.
 type solver struct {
@@ -101,6 +114,7 @@ type solver struct {
 	js       []*junction
 	stats    Stats
 	deadline time.Time
+	width    int // product width of the band preconditioner
 }
 
 func (sv *solver) note(what string) {
@@ -189,7 +203,7 @@ func (sv *solver) maxOrder() int {
 	if sv.d.SecondToneHz != 0 {
 		return 31
 	}
-	return 512
+	return 2048
 }
 
 // initialSpectrum is the spectrum of the settings, or of the start
@@ -314,6 +328,7 @@ func (sv *solver) continuation(spec *spectrum, x []complex128, lam0 float64) (*s
 			}
 		}
 		sys.lambda = target
+		debugInfo = fmt.Sprintf("lam %g target %g K %d", lam, target, spec.order)
 		ok, err := sv.newton(sys, try)
 		if err != nil {
 			return nil, nil, err
@@ -379,6 +394,9 @@ func (sv *solver) newton(sys *system, x []complex128) (bool, error) {
 		}
 		sv.stats.Iterations++
 		if err := sv.step(sys, f, dx, worst); err != nil {
+			if debugNewton != nil {
+				fmt.Println("step error", err)
+			}
 			return false, nil
 		}
 		alpha := sys.limit(dx)
@@ -391,7 +409,11 @@ func (sv *solver) newton(sys *system, x []complex128) (bool, error) {
 	}
 }
 
-// step solves J dx = -F at the last evaluated point.
+// step solves J dx = -F at the last evaluated point: by a dense LU when
+// the problem is small, else by GMRES, preconditioned in the time domain
+// for one tone on a modest circuit (see timePreconditioner) and otherwise
+// with the band of the Jacobian (see preconditioner), widened while GMRES
+// needs many iterations and the band's factors stay cheap.
 func (sv *solver) step(sys *system, f, dx []complex128, worst float64) error {
 	L := 2 * len(f)
 	direct := sv.s.Linear == Direct || (sv.s.Linear == Automatic && L <= directLimit)
@@ -400,9 +422,9 @@ func (sv *solver) step(sys *system, f, dx []complex128, worst float64) error {
 		return sys.solveDirect(f, dx)
 	}
 	sv.stats.Linear = "gmres"
-	if err := sys.factorPreconditioner(); err != nil {
-		return err
-	}
+	// Weighted system: W J M⁻¹ W⁻¹ y = -W F, dx = M⁻¹ W⁻¹ y, so that the
+	// preconditioned operator is near the identity and GMRES's norm
+	// counts each equation in units of its tolerance.
 	b := make([]complex128, len(f))
 	var bn float64
 	for e, v := range f {
@@ -414,23 +436,98 @@ func (sv *solver) step(sys *system, f, dx []complex128, worst float64) error {
 	// near its tolerance, and no further (inexact Newton).
 	eta := math.Min(1e-2, math.Max(0.3/bn, 1e-12))
 	t := make([]complex128, len(f))
+	unweigh := func(v []complex128) {
+		for e := range v {
+			v[e] /= complex(sys.weight[e], 0)
+		}
+	}
+	var prec func([]complex128)
 	op := func(v, out []complex128) {
 		copy(t, v)
-		sys.precondition(t)
+		unweigh(t)
+		prec(t)
 		sys.jacobian(t, out)
 		for e := range out {
 			out[e] *= complex(sys.weight[e], 0)
 		}
 	}
 	restart := min(60, max(10, 20_000_000/len(f)-1))
-	n, rel := gmres(op, b, dx, restart, 300, eta)
-	sv.stats.LinearIterations += n
-	sys.precondition(dx)
-	if rel > 0.5 && sv.s.Linear == Automatic && L <= 4*directLimit {
+	fallback := func() error {
 		sv.note("direct solve")
 		return sys.solveDirect(f, dx)
 	}
+	canFallBack := sv.s.Linear == Automatic && L <= 6*directLimit
+	if !sys.spec.twoTone && sys.n <= timeDomainLimit {
+		// One tone, a modest circuit: the time-domain preconditioner
+		// holds the junctions' switching exactly.
+		if err := sys.factorTime(); err != nil {
+			return err
+		}
+		prec = sys.preconditionTime
+		n, rel := gmres(op, b, dx, restart, 300, eta)
+		sv.stats.LinearIterations += n
+		if debugNewton != nil {
+			fmt.Println("   gmres time", n, rel, eta)
+		}
+		if rel > 0.5 && canFallBack {
+			return fallback()
+		}
+		unweigh(dx)
+		prec(dx)
+		return nil
+	}
+	prec = sys.precondition
+	for {
+		if err := sys.factorPreconditioner(sv.width); err != nil {
+			return err
+		}
+		n, rel := gmres(op, b, dx, restart, 120, eta)
+		sv.stats.LinearIterations += n
+		if debugNewton != nil {
+			fmt.Println("   gmres", n, rel, eta, "width", sv.width)
+		}
+		wider, ok := sv.wider(sys)
+		if rel <= eta {
+			if n > 40 && ok {
+				sv.width = wider // cheaper for the next steps
+			}
+			break
+		}
+		if ok {
+			sv.width = wider
+			sv.note("wider preconditioner")
+			continue
+		}
+		if canFallBack {
+			return fallback()
+		}
+		break // an inexact step; Newton judges it
+	}
+	unweigh(dx)
+	prec(dx)
 	return nil
+}
+
+// preconditionerBudget bounds the work of factoring the band
+// preconditioner, about L·w² for L unknowns and half-width w.
+const preconditionerBudget = 4e8
+
+// wider returns the next product width of the band preconditioner, and
+// false when it would hold the whole spectrum already or cost more than
+// the budget.
+func (sv *solver) wider(sys *system) (int, bool) {
+	amax := sys.spec.products[len(sys.spec.products)-1].a
+	if sv.width >= amax {
+		return sv.width, false
+	}
+	next := min(max(2, 2*sv.width), amax)
+	_, nodeWidth := sys.nodeOrder()
+	w := float64(sys.preconditionerWidth(next, nodeWidth))
+	L := float64(2 * sys.n * len(sys.spec.products))
+	if L*w*w > preconditionerBudget {
+		return sv.width, false
+	}
+	return next, true
 }
 
 // limit returns the fraction of the step dx to take: the largest at
@@ -497,6 +594,75 @@ func (sv *solver) truncationHolds(spec *spectrum, x []complex128) bool {
 		}
 	}
 	return true
+}
+
+// snapshot holds what a solve reports: the node voltages and the
+// junction currents at the products reported, each list keyed by the
+// product's orders.
+type snapshot struct {
+	voltages, currents map[[2]int][]complex128
+}
+
+func (sv *solver) snapshot(spec *spectrum, x []complex128) snapshot {
+	n, report := sv.nw.N, sv.report()
+	out := snapshot{map[[2]int][]complex128{}, map[[2]int][]complex128{}}
+	for k, p := range spec.products {
+		if !spec.reported(p, report) {
+			continue
+		}
+		o := [2]int{p.m, p.n}
+		out.voltages[o] = append([]complex128(nil), x[k*n:k*n+sv.nw.NodeUnknowns]...)
+		for _, j := range sv.js {
+			out.currents[o] = append(out.currents[o], j.i[k])
+		}
+	}
+	return out
+}
+
+// settled reports whether every reported node voltage and junction
+// current moved by at most 1e-7 of itself, plus 1e-12 of the largest
+// signal of its kind, between two spectra: the harmonic count has stopped
+// mattering to what is reported, though the waveform's spectrum (a
+// switching edge, a stored-charge snap) may fall off slowly beyond it.
+func settled(before, now snapshot) bool {
+	return settledList(before.voltages, now.voltages) && settledList(before.currents, now.currents)
+}
+
+func settledList(before, now map[[2]int][]complex128) bool {
+	scale := 0.0
+	for o, v := range now {
+		if o == [2]int{0, 0} {
+			continue
+		}
+		for _, z := range v {
+			scale = math.Max(scale, cmplx.Abs(z))
+		}
+	}
+	for o, v := range now {
+		old, ok := before[o]
+		if !ok || len(old) != len(v) {
+			return false
+		}
+		for i, z := range v {
+			if cmplx.Abs(z-old[i]) > 1e-7*cmplx.Abs(z)+1e-12*scale {
+				return false
+			}
+		}
+	}
+	return true
+}
+
+func change(b, a snapshot) float64 {
+	before, now := b.voltages, a.voltages
+	w := 0.0
+	for o, v := range now {
+		for i, z := range v {
+			if old, ok := before[o]; ok && cmplx.Abs(z) > 0 {
+				w = math.Max(w, cmplx.Abs(z-old[i])/cmplx.Abs(z))
+			}
+		}
+	}
+	return w
 }
 
 // grow returns the next larger spectrum, or false at the limit.

@@ -33,18 +33,20 @@ type system struct {
 	// From the last residual evaluation: the weights that turn each
 	// equation's error into multiples of its tolerance, and the scales
 	// they came from.
-	weight  []float64
-	scale   []float64
-	nlScale []float64 // the junctions' share of scale
+	weight   []float64
+	scale    []float64
+	rounding []float64 // per unknown: the junctions' rounding scale (see residual)
 
-	pre *preconditioner
+	pre  *preconditioner
+	tpre *timePreconditioner
 }
 
 // Tolerances of the balance: an equation holds when its error is within
 // relTol of the magnitudes of the currents meeting in it at that product,
-// plus absRel of the largest junction current the node sees at any
-// product (the floor for a product that vanishes: the transforms mix the
-// products, so their rounding at one product follows the largest).
+// plus absRel of the rounding scale of the junctions at the node (the
+// floor for a product that vanishes: the transforms mix the products, so
+// their rounding at one product follows the largest current, and the
+// largest charge times the highest frequency).
 const (
 	relTol = 1e-9
 	absRel = 1e-13
@@ -76,7 +78,7 @@ func newSystem(nw *smallsignal.Network, lin *linear, spec *spectrum, js []*junct
 	}
 	sys.weight = make([]float64, n*P)
 	sys.scale = make([]float64, n*P)
-	sys.nlScale = make([]float64, n*P)
+	sys.rounding = make([]float64, n)
 	return sys
 }
 
@@ -87,28 +89,45 @@ func (sys *system) residual(x, f []complex128) (float64, bool) {
 	n, P := sys.n, len(sys.spec.products)
 	clear(f)
 	clear(sys.scale)
-	clear(sys.nlScale)
+	clear(sys.rounding)
 	for k := 0; k < P; k++ {
 		sys.lin.apply(k, x[k*n:(k+1)*n], f[k*n:(k+1)*n], sys.scale[k*n:(k+1)*n])
 	}
 	ok := evaluate(sys.grid, sys.js, x, n)
+	wTop := 0.0
+	for _, p := range sys.spec.products {
+		wTop = math.Max(wTop, math.Abs(p.omega))
+	}
 	for _, j := range sys.js {
+		// The transforms' rounding at any product follows the junction's
+		// largest current, and its largest charge times the highest
+		// frequency: the floor of the nodes it joins.
+		var iMax, qMax float64
 		for k, p := range sys.spec.products {
 			c := j.i[k] + complex(0, p.omega)*j.q[k]
 			j.stamp(f, k, n, c)
 			m := cmplx.Abs(j.i[k]) + math.Abs(p.omega)*cmplx.Abs(j.q[k])
 			if j.a >= 0 {
-				sys.nlScale[k*n+j.a] += m
+				sys.scale[k*n+j.a] += m
 			}
 			if j.b >= 0 {
-				sys.nlScale[k*n+j.b] += m
+				sys.scale[k*n+j.b] += m
 			}
+			iMax = math.Max(iMax, cmplx.Abs(j.i[k]))
+			qMax = math.Max(qMax, cmplx.Abs(j.q[k]))
+		}
+		r := iMax + wTop*qMax
+		if j.a >= 0 {
+			sys.rounding[j.a] += r
+		}
+		if j.b >= 0 {
+			sys.rounding[j.b] += r
 		}
 	}
 	for e := range f {
 		b := sys.dc[e] + complex(sys.lambda, 0)*sys.signal[e]
 		f[e] -= b
-		sys.scale[e] += cmplx.Abs(b) + sys.nlScale[e]
+		sys.scale[e] += cmplx.Abs(b)
 	}
 	for i := 0; i < n; i++ {
 		f[i] = complex(real(f[i]), imag(x[i]))
@@ -120,13 +139,7 @@ func (sys *system) residual(x, f []complex128) (float64, bool) {
 	}
 	worst := 0.0
 	for i := 0; i < n; i++ {
-		// The transforms mix the products: a junction's rounding at one
-		// product is of the order of its largest current at any.
-		floor := 0.0
-		for k := 0; k < P; k++ {
-			floor = math.Max(floor, sys.nlScale[k*n+i])
-		}
-		floor = math.Max(absRel*floor, 1e-20*global+1e-300)
+		floor := math.Max(absRel*sys.rounding[i], 1e-20*global+1e-300)
 		for k := 0; k < P; k++ {
 			e := k*n + i
 			w := 1 / (relTol*sys.scale[e] + floor)
@@ -204,92 +217,79 @@ func (sys *system) jacobian(dx, out []complex128) {
 	}
 }
 
-// preconditioner holds, for every product, the LU factors of
+// preconditioner holds the LU factors of the Jacobian restricted to a
+// band of the products: the couplings between products whose artificial
+// frequencies differ by at most width. At width 0 it is the network with
+// each junction replaced by its time-averaged conductance and
+// capacitance,
 //
 //	M_k = Y(jw_k) + Σ_junctions (ḡ + jw_k c̄),
 //
-// the network with each junction replaced by its time-averaged
-// conductance and capacitance: the block-diagonal part of the Jacobian,
-// exact for a linear circuit.
+// block-diagonal in the products and exact for a linear circuit; wider
+// bands add the slow modulation of the junctions' conductance that a
+// hard drive brings, and a band as wide as the spectrum is the Jacobian
+// itself. The unknowns are ordered product by product, each product's
+// nodes in reverse Cuthill-McKee order (bias/band), so the band of the
+// real matrix is 2n·width + 2b + 1 wide for a node bandwidth b.
 type preconditioner struct {
-	perm   []int
-	kl, ku int
-	m      []*band.Complex
+	width int
+	m     *band.Matrix
+	vec   []float64
 }
 
-func (sys *system) factorPreconditioner() error {
+// nodeBandwidth returns the reverse Cuthill-McKee order of the network's
+// unknowns (junctions included) and the bandwidth it gives.
+func (sys *system) nodeOrder() ([]int, int) {
+	var extra [][2]int
+	for _, j := range sys.js {
+		if j.a >= 0 && j.b >= 0 {
+			extra = append(extra, [2]int{j.a, j.b}, [2]int{j.b, j.a})
+		}
+	}
+	edges := sys.lin.pattern(extra)
+	perm := band.Order(sys.n, edges)
+	kl, _ := band.Widths(perm, edges)
+	return perm, kl
+}
+
+// preconditionerWidth returns the real band half-width for a product
+// width.
+func (sys *system) preconditionerWidth(width, nodeWidth int) int {
+	return 2*sys.n*width + 2*nodeWidth + 1
+}
+
+// factorPreconditioner assembles and factors the band of the given
+// product width at the last evaluated point.
+func (sys *system) factorPreconditioner(width int) error {
 	n, P := sys.n, len(sys.spec.products)
-	if sys.pre == nil {
-		var extra [][2]int
-		for _, j := range sys.js {
-			if j.a >= 0 && j.b >= 0 {
-				extra = append(extra, [2]int{j.a, j.b}, [2]int{j.b, j.a})
-			}
-		}
-		edges := sys.lin.pattern(extra)
-		perm := band.Order(n, edges)
-		kl, ku := band.Widths(perm, edges)
-		sys.pre = &preconditioner{perm: perm, kl: kl, ku: ku}
+	if sys.pre == nil || sys.pre.width != width {
+		nodePerm, nodeWidth := sys.nodeOrder()
+		L := 2 * n * P
+		perm := make([]int, L)
 		for k := 0; k < P; k++ {
-			sys.pre.m = append(sys.pre.m, band.NewComplex(perm, kl, ku))
+			for pos, i := range nodePerm {
+				for part := 0; part < 2; part++ {
+					perm[2*(k*n+pos)+part] = 2*(k*n+i) + part
+				}
+			}
 		}
+		w := min(sys.preconditionerWidth(width, nodeWidth), L-1)
+		sys.pre = &preconditioner{width: width, m: band.New(perm, w, w), vec: make([]float64, L)}
 	}
-	means := make([][2]float64, len(sys.js))
-	for d, j := range sys.js {
-		var g, c float64
-		for s := range j.g {
-			g += j.g[s]
-			c += j.c[s]
-		}
-		means[d] = [2]float64{g / float64(len(j.g)), c / float64(len(j.c))}
-	}
-	lin := sys.lin
-	for k, p := range sys.spec.products {
-		m := sys.pre.m[k]
-		m.Zero()
-		y := lin.y[k]
-		for i := 0; i < n; i++ {
-			for e := lin.rowPtr[i]; e < lin.rowPtr[i+1]; e++ {
-				m.Add(i, lin.cols[e], y[e])
-			}
-		}
-		for d, j := range sys.js {
-			v := complex(means[d][0], p.omega*means[d][1])
-			if j.a >= 0 {
-				m.Add(j.a, j.a, v)
-			}
-			if j.b >= 0 {
-				m.Add(j.b, j.b, v)
-			}
-			if j.a >= 0 && j.b >= 0 {
-				m.Add(j.a, j.b, -v)
-				m.Add(j.b, j.a, -v)
-			}
-		}
-		if err := m.Factor(); err != nil {
-			return err
-		}
-	}
-	return nil
+	m := sys.pre.m
+	m.Zero()
+	sys.assemble(width, m.Add)
+	return m.Factor()
 }
 
-// precondition overwrites r with M⁻¹ r, product by product.
+// precondition overwrites r with M⁻¹ r.
 func (sys *system) precondition(r []complex128) {
-	n := sys.n
-	for k := range sys.spec.products {
-		block := r[k*n : (k+1)*n]
-		if k == 0 {
-			im := make([]float64, n)
-			for i := range block {
-				im[i] = imag(block[i])
-				block[i] = complex(real(block[i]), 0)
-			}
-			sys.pre.m[0].Solve(block)
-			for i := range block {
-				block[i] = complex(real(block[i]), im[i])
-			}
-			continue
-		}
-		sys.pre.m[k].Solve(block)
+	v := sys.pre.vec
+	for e, z := range r {
+		v[2*e], v[2*e+1] = real(z), imag(z)
+	}
+	sys.pre.m.Solve(v)
+	for e := range r {
+		r[e] = complex(v[2*e], v[2*e+1])
 	}
 }
