@@ -11,33 +11,40 @@ import (
 )
 
 // compareWithShooting solves the circuit's own distortion drive by both
-// methods and returns the worst difference in dB over the harmonics (DC
-// shift included) that lie above floorDBc of the largest, with the count
+// methods and checks that they agree to 0.001 dB on every harmonic (DC
+// shift included) down to floorDBc below the largest. Shooting's own
+// accuracy is judged first, by its default grid (255 and 511 samples per
+// period) against a finer one (1023 and 2047); the finer solve is the
+// reference, and a harmonic on which shooting's two grids differ by more
+// than 0.001 dB is not one shooting resolves, so it is logged, not
 // compared.
-func compareWithShooting(t *testing.T, c *circuit.Circuit, samples int, floorDBc float64) {
+func compareWithShooting(t *testing.T, c *circuit.Circuit, floorDBc float64) {
 	t.Helper()
 	nw := linearise(t, c)
 	d := fileDrive(t, c)
 	const harmonics = 10
 	t0 := time.Now()
-	sh, err := ac.SteadyState(nw, d, ac.SteadySettings{Harmonics: harmonics, Samples: samples})
+	coarse, err := ac.SteadyState(nw, d, ac.SteadySettings{Harmonics: harmonics})
 	if err != nil {
 		t.Skipf("shooting does not solve it: %v", err)
 	}
+	sh, err := ac.SteadyState(nw, d, ac.SteadySettings{Harmonics: harmonics, Samples: 1023, Start: coarse})
+	if err != nil {
+		t.Skipf("shooting does not solve it at 1023 samples: %v", err)
+	}
 	tShoot := time.Since(t0)
-	t0 = time.Now()
 	hb, err := Solve(nw, d, Settings{Report: harmonics})
 	if err != nil {
 		t.Fatalf("harmonic balance: %v", err)
 	}
-	tHB := time.Since(t0)
 	largest := 0.0
 	for _, h := range sh.Output {
 		largest = math.Max(largest, math.Abs(h.Amplitude))
 	}
-	worst, count := 0.0, 0
+	worst, count, unresolved := 0.0, 0, 0
 	for k, h := range sh.Output {
-		if 20*math.Log10(math.Abs(h.Amplitude)/largest) < floorDBc {
+		level := 20 * math.Log10(math.Abs(h.Amplitude)/largest)
+		if level < floorDBc {
 			continue
 		}
 		got := hb.Output[k]
@@ -48,15 +55,20 @@ func compareWithShooting(t *testing.T, c *circuit.Circuit, samples int, floorDBc
 		if math.Signbit(got.Amplitude) != math.Signbit(h.Amplitude) {
 			db = math.Inf(1)
 		}
+		self := 20 * math.Log10(math.Abs(coarse.Output[k].Amplitude)/math.Abs(h.Amplitude))
+		if math.Abs(self) > 0.001 {
+			unresolved++
+			t.Logf("  %2d: at %.1f dB shooting's grids differ by %+.2e dB: not compared (balance %+.2e dB from the finer)", k, level, self, db)
+			continue
+		}
 		count++
-		t.Logf("  %2d: shooting %.10g, balance %.10g (%+.2e dB) at %.1f dB below the largest", k, h.Amplitude, got.Amplitude, db, 20*math.Log10(largest/math.Abs(h.Amplitude)))
 		worst = math.Max(worst, math.Abs(db))
+		if math.Abs(db) > 0.001 {
+			t.Errorf("harmonic %d at %.1f dB: shooting %.10g, balance %.10g differ by %+.3g dB", k, level, h.Amplitude, got.Amplitude, db)
+		}
 	}
-	t.Logf("worst %.2e dB over %d harmonics; shooting %v (%d iterations), balance %v (%d harmonics, %d Newton, %d GMRES, %s, %v)",
-		worst, count, tShoot, sh.Iterations, tHB, hb.Stats.Harmonics, hb.Stats.Iterations, hb.Stats.LinearIterations, hb.Stats.Linear, hb.Stats.Fallbacks)
-	if worst > 0.001 {
-		t.Errorf("harmonic balance and shooting differ by %.3g dB", worst)
-	}
+	t.Logf("worst %.2e dB over %d harmonics (%d not resolved by shooting); shooting %v, balance %v (%d harmonics, %d Newton, %d GMRES, %v)",
+		worst, count, unresolved, tShoot, hb.Stats.Runtime, hb.Stats.Harmonics, hb.Stats.Iterations, hb.Stats.LinearIterations, hb.Stats.Fallbacks)
 }
 
 // TestDemosMatchShooting: on every demo circuit, at its own distortion
@@ -74,7 +86,7 @@ func TestDemosMatchShooting(t *testing.T) {
 			if err != nil {
 				t.Fatal(err)
 			}
-			compareWithShooting(t, c, 0, -120)
+			compareWithShooting(t, c, -120)
 		})
 	}
 }
@@ -82,8 +94,12 @@ func TestDemosMatchShooting(t *testing.T) {
 // TestHardMatchShooting: on every circuit of testdata/hard that names a
 // distortion analysis and that shooting solves, harmonic balance agrees
 // with shooting to 0.001 dB on every harmonic down to -120 dB below the
-// largest.
+// largest. Most of these switch hard and need hundreds of harmonics: a
+// few seconds each, so -short skips them.
 func TestHardMatchShooting(t *testing.T) {
+	if testing.Short() {
+		t.Skip("-short: the hard circuits take a minute")
+	}
 	paths, _ := filepath.Glob(filepath.Join("..", "..", "testdata", "hard", "*.yaml"))
 	if len(paths) < 25 {
 		t.Fatalf("found %d hard circuits", len(paths))
@@ -97,7 +113,7 @@ func TestHardMatchShooting(t *testing.T) {
 			continue
 		}
 		t.Run(filepath.Base(p), func(t *testing.T) {
-			compareWithShooting(t, c, 0, -120)
+			compareWithShooting(t, c, -120)
 		})
 	}
 }

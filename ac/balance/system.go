@@ -156,7 +156,6 @@ func (sys *system) residual(x, f []complex128) (float64, bool) {
 			r := cmplx.Abs(f[e]) * w
 			if r > worst || math.IsNaN(r) {
 				worst = r
-				worstAt = [4]float64{float64(k), float64(i), sys.scale[e], floor}
 			}
 		}
 	}
@@ -165,8 +164,6 @@ func (sys *system) residual(x, f []complex128) (float64, bool) {
 	}
 	return worst, ok
 }
-
-var worstAt [4]float64
 
 // jacobian returns J dx, the derivative of F at the last evaluated point
 // along dx: Y_k dx_k plus the conversion products (g(θ) dv(θ)) and

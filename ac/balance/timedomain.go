@@ -46,6 +46,13 @@ const segmentGrowth = 1e4
 
 var errSingularStep = errors.New("a time step's matrix is singular")
 
+// maxCycle bounds the segment states' dense system; a circuit that needs
+// more (its propagator growing by decades at many steps) is left to the
+// frequency-domain preconditioner.
+const maxCycle = 600
+
+var errManySegments = errors.New("the period needs too many segments")
+
 // factorTime sets up the time-domain preconditioner at the last evaluated
 // point.
 func (sys *system) factorTime() error {
@@ -140,6 +147,9 @@ func (sys *system) factorTime() error {
 	// Cycle: y_(m+1) - Φ_m y_m = ψ_m, with y_M = y_0.
 	M := len(tp.segments)
 	N := M * n
+	if N > maxCycle {
+		return errManySegments
+	}
 	if len(tp.cycle.a) != N*N {
 		tp.cycle = newDenseLU(N)
 	}
@@ -267,7 +277,10 @@ func (f *denseLU) factor() error {
 			return errSingularStep
 		}
 		if p != k {
-			for j := 0; j < n; j++ {
+			// Only the active columns: the multipliers stay where their
+			// step left them, as solve applies the interchanges step by
+			// step.
+			for j := k; j < n; j++ {
 				a[k*n+j], a[p*n+j] = a[p*n+j], a[k*n+j]
 			}
 		}
