@@ -1,7 +1,9 @@
 package balance
 
 import (
+	"fmt"
 	"math"
+	"strings"
 	"os"
 	"path/filepath"
 	"testing"
@@ -89,4 +91,33 @@ func besselI(k int, x float64) float64 {
 		sum += term
 	}
 	return sum
+}
+
+// ladder returns the YAML of the diode-loaded LC ladder of package ac's
+// benchmarks with exactly n unknowns: k sections (series inductor, shunt
+// capacitor, a Schottky diode with series resistance) between two 50 Ω
+// ports, all diodes biased from a 3.3 V supply through one resistor and
+// the inductors; 3k + 3 unknowns, the remainder made up by resistive
+// nodes at the input. The values are invented for the benchmark.
+func ladder(n int) string {
+	k := (n - 3) / 3
+	var b strings.Builder
+	b.WriteString(`name: benchmark ladder
+diode_models:
+  sk: {saturation_current: 1uA, ideality: 1.05, series_resistance: 10, zero_bias_capacitance: 0.2pF, built_in_potential: 0.3V, grading_coefficient: 0.5}
+parts:
+  - {type: voltage_source, name: Vcc, plus: vcc, minus: gnd, value: 3.3V}
+  - {type: resistor, name: Rbias, between: [vcc, n0], value: 1k}
+`)
+	for i := 1; i <= k; i++ {
+		fmt.Fprintf(&b, "  - {type: inductor, name: L%d, between: [n%d, n%d], value: 2nH}\n", i, i-1, i)
+		fmt.Fprintf(&b, "  - {type: capacitor, name: C%d, between: [n%d, gnd], value: 0.8pF}\n", i, i)
+		fmt.Fprintf(&b, "  - {type: diode, name: D%d, anode: n%d, cathode: gnd, model: sk}\n", i, i)
+	}
+	for j := 0; j < n-3-3*k; j++ {
+		fmt.Fprintf(&b, "  - {type: resistor, name: X%d, between: [n0, x%d], value: 1k}\n", j, j)
+		fmt.Fprintf(&b, "  - {type: resistor, name: Y%d, between: [x%d, gnd], value: 1k}\n", j, j)
+	}
+	fmt.Fprintf(&b, "ports:\n  - {name: in, node: n0, impedance: 50}\n  - {name: out, node: n%d, impedance: 50}\n", k)
+	return b.String()
 }

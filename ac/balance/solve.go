@@ -310,7 +310,10 @@ func (sv *solver) continuation(spec *spectrum, x []complex128, lam0 float64) (*s
 	var prev []complex128
 	lamPrev := math.NaN()
 	minStep := 1e-4 * math.Abs(1-lam0)
-	for lam != 1 {
+	for tries := 0; lam != 1; tries++ {
+		if tries == maxContinuation {
+			return nil, nil, sv.failure(lam)
+		}
 		target := lam + step
 		if (step > 0 && target > 1) || (step < 0 && target < 1) {
 			target = 1
@@ -343,6 +346,9 @@ func (sv *solver) continuation(spec *spectrum, x []complex128, lam0 float64) (*s
 	}
 	return sys, x, nil
 }
+
+// maxContinuation bounds the drive levels one source stepping tries.
+const maxContinuation = 120
 
 // failure says how far the source stepping got.
 func (sv *solver) failure(lam float64) error {
