@@ -124,7 +124,12 @@ func balanceScale(a, b float64) float64 {
 func maxAbsC(p []complex128) float64 {
 	m := 0.0
 	for _, v := range p {
-		m = math.Max(m, math.Max(math.Abs(real(v)), math.Abs(imag(v))))
+		if a := math.Abs(real(v)); a > m {
+			m = a
+		}
+		if a := math.Abs(imag(v)); a > m {
+			m = a
+		}
 	}
 	return m
 }
@@ -132,7 +137,9 @@ func maxAbsC(p []complex128) float64 {
 func maxAbs(x []float64) float64 {
 	m := 0.0
 	for _, v := range x {
-		m = math.Max(m, math.Abs(v))
+		if a := math.Abs(v); a > m {
+			m = a
+		}
 	}
 	return m
 }

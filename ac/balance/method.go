@@ -59,6 +59,9 @@ const AutoShootingLimit = 30
 type Method struct {
 	Choice   Choice
 	Settings Settings
+	// Reason, when not empty, says why the caller chose this method; it
+	// becomes the steady state's Choice.
+	Reason string
 }
 
 // choose returns the method Auto takes.
@@ -72,6 +75,14 @@ func choose(nw *smallsignal.Network, d ac.Drive) Choice {
 // SolveSteady solves by the method chosen and returns the steady state
 // with Method naming what ran.
 func (m Method) SolveSteady(nw *smallsignal.Network, d ac.Drive, s ac.SteadySettings) (*ac.Steady, error) {
+	st, err := m.solve(nw, d, s)
+	if err == nil && m.Reason != "" {
+		st.Choice = m.Reason
+	}
+	return st, err
+}
+
+func (m Method) solve(nw *smallsignal.Network, d ac.Drive, s ac.SteadySettings) (*ac.Steady, error) {
 	choice := m.Choice
 	if choice == Auto {
 		choice = choose(nw, d)

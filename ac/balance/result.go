@@ -40,6 +40,11 @@ type Stats struct {
 	// Linear names the linear solver of the last Newton step: "direct"
 	// or "gmres".
 	Linear string
+	// Unsettled is zero when the spectrum fell off within the harmonics
+	// allowed (or the reported products stopped moving as it grew); else
+	// the largest relative change of a reported product in the last
+	// growth, which bounds the truncation's error in what is reported.
+	Unsettled float64
 	// ContinuationSteps counts the drive levels the source stepping
 	// solved on the way (zero when the full drive converged at once).
 	ContinuationSteps int
@@ -78,6 +83,9 @@ type Result struct {
 	emf  float64
 	n    int
 }
+
+// Truncation returns the two-tone truncation the result was solved with.
+func (r *Result) Truncation() Truncation { return r.spec.trunc }
 
 // product returns the output entry of orders (m, n) or its mirror.
 func (r *Result) product(m, n int) (Product, bool) {

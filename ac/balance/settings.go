@@ -10,8 +10,8 @@ type Settings struct {
 	// the harmonics of every node voltage lies below TruncationTolerance.
 	Harmonics int
 	// Order is the truncation order two tones start with; zero means 7.
-	// It grows by two until the products of the highest order lie below
-	// TruncationTolerance.
+	// It grows by four until the products of the highest order lie below
+	// TruncationTolerance (or stop moving what is reported).
 	Order int
 	// Truncation chooses the two-tone products kept: Diamond (the
 	// default) or Box.
@@ -21,7 +21,7 @@ type Settings struct {
 	// exceed what the truncation holds.
 	Report int
 	// MaxHarmonics bounds the growth: zero means 2048 harmonics for one
-	// tone, order 31 for two.
+	// tone, order 23 for two.
 	MaxHarmonics int
 	// FixedHarmonics keeps Harmonics (or Order) as given: no growth and no
 	// truncation check. For benchmarks and tests of the truncation itself.

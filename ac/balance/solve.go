@@ -77,12 +77,22 @@ func Solve(nw *smallsignal.Network, d ac.Drive, s Settings) (*Result, error) {
 		if before != nil && settled(*before, now) {
 			break
 		}
-		before = &now
 		next, ok := sv.grow(sys.spec)
 		if !ok {
-			return nil, fmt.Errorf("%w: with %s the top products still exceed %.2g of the largest signal; raise the limit or lower the drive",
-				ErrTruncation, describe(sys.spec), s.TruncationTolerance)
+			// At the limit: report what the last growth still moved, or
+			// fail when it moved the answer by more than a tenth.
+			change := math.Inf(1)
+			if before != nil {
+				change = unsettled(*before, now)
+			}
+			if change > maxUnsettled {
+				return nil, fmt.Errorf("%w: with %s the top products still exceed %.2g of the largest signal and the reported products still move; lower the drive",
+					ErrTruncation, describe(sys.spec), s.TruncationTolerance)
+			}
+			sv.stats.Unsettled = change
+			break
 		}
+		before = &now
 		sv.note("more harmonics")
 		x = remap(sys.spec, next, x, nw.N)
 		if sys, x, err = sv.continuation(next, x, 1); err != nil {
@@ -99,6 +109,20 @@ func Solve(nw *smallsignal.Network, d ac.Drive, s Settings) (*Result, error) {
 	return res, nil
 }
 
+// Check reports a request Solve cannot honour as asked, without solving
+// anything: a frequency out of range, ports the network lacks, tones that
+// coincide or whose products collide, a truncation too small for the
+// products asked, a problem too large. Solve makes the same checks; a
+// front end calls Check to tell a bad request from a failed analysis.
+func Check(nw *smallsignal.Network, d ac.Drive, s Settings) error {
+	sv := &solver{nw: nw, d: d, s: s.withDefaults()}
+	if err := sv.check(); err != nil {
+		return err
+	}
+	_, err := sv.initialSpectrum()
+	return err
+}
+
 // solver carries one Solve.
 type solver struct {
 	nw       *smallsignal.Network
@@ -109,7 +133,9 @@ type solver struct {
 	stats    Stats
 	deadline time.Time
 	width    int  // product width of the band preconditioner
-	noTime   bool // the time-domain preconditioner failed once: not again
+	noTime   bool // the period needs too many segments for the time-domain preconditioner
+
+	lastNorm, lastEta float64 // of the last Newton step, for the forcing term
 }
 
 func (sv *solver) note(what string) {
@@ -196,7 +222,7 @@ func (sv *solver) maxOrder() int {
 		return sv.s.MaxHarmonics
 	}
 	if sv.d.SecondToneHz != 0 {
-		return 31
+		return 23
 	}
 	return 2048
 }
@@ -368,6 +394,7 @@ func (sv *solver) newton(sys *system, x []complex128) (bool, error) {
 	f := make([]complex128, len(x))
 	dx := make([]complex128, len(x))
 	last := [2]float64{math.Inf(1), math.Inf(1)}
+	sv.lastNorm, sv.lastEta = 0, 0
 	for it := 0; ; it++ {
 		if !sv.deadline.IsZero() && time.Now().After(sv.deadline) {
 			return false, fmt.Errorf("%w within %v (%d Newton iterations, residual %.3g of the node currents)",
@@ -426,9 +453,7 @@ func (sv *solver) step(sys *system, f, dx []complex128, worst float64) error {
 		bn += real(b[e])*real(b[e]) + imag(b[e])*imag(b[e])
 	}
 	bn = math.Sqrt(bn)
-	// Solve to a relative accuracy that brings the weighted residual
-	// near its tolerance, and no further (inexact Newton).
-	eta := math.Min(1e-2, math.Max(0.3/bn, 1e-12))
+	eta := sv.forcing(bn)
 	t := make([]complex128, len(f))
 	unweigh := func(v []complex128) {
 		for e := range v {
@@ -451,10 +476,11 @@ func (sv *solver) step(sys *system, f, dx []complex128, worst float64) error {
 		return sys.solveDirect(f, dx)
 	}
 	canFallBack := sv.s.Linear == Automatic && L <= 6*directLimit
-	if !sys.spec.twoTone && sys.n <= timeDomainLimit && !sv.noTime {
+	if sys.n <= timeDomainLimit && !sv.noTime {
 		// One tone, a modest circuit: the time-domain preconditioner
 		// holds the junctions' switching exactly.
-		if err := sys.factorTime(); err == nil {
+		err := sys.factorTime()
+		if err == nil {
 			prec = sys.preconditionTime
 			n, rel := gmres(op, b, dx, restart, 300, eta)
 			sv.stats.LinearIterations += n
@@ -463,11 +489,14 @@ func (sv *solver) step(sys *system, f, dx []complex128, worst float64) error {
 				prec(dx)
 				return nil
 			}
+		} else {
+			// The period needs more segments than the dense cycle
+			// takes: no use trying again on this circuit.
+			sv.noTime = true
 		}
 		// The backward differences stray too far from the balance here
 		// (a resonance, a capacitance that jumps by decades within a
-		// step): go on in the frequency domain.
-		sv.noTime = true
+		// step): this step goes on in the frequency domain.
 		sv.note("frequency-domain preconditioner")
 	}
 	prec = sys.precondition
@@ -497,6 +526,28 @@ func (sv *solver) step(sys *system, f, dx []complex128, worst float64) error {
 	unweigh(dx)
 	prec(dx)
 	return nil
+}
+
+// forcing returns the relative accuracy GMRES solves a Newton step to,
+// given the weighted residual's norm: the second choice of Eisenstat and
+// Walker ("Choosing the forcing terms in an inexact Newton method", SIAM
+// J. Sci. Comput. 17(1), 1996), 0.9 (|F_k|/|F_(k-1)|)², kept from falling
+// faster than the last term squared and at most 0.1, and no tighter than
+// what brings the residual to a third of its tolerance.
+func (sv *solver) forcing(norm float64) float64 {
+	eta := 0.1
+	if sv.lastNorm > 0 {
+		r := norm / sv.lastNorm
+		eta = 0.9 * r * r
+		if safe := 0.9 * sv.lastEta * sv.lastEta; safe > 0.1 {
+			eta = math.Max(eta, safe)
+		}
+		eta = math.Min(eta, 0.1)
+	}
+	eta = math.Max(eta, math.Min(0.1, 0.3/norm))
+	eta = math.Max(eta, 1e-12)
+	sv.lastNorm, sv.lastEta = norm, eta
+	return eta
 }
 
 // preconditionerBudget bounds the work of factoring the band
@@ -648,6 +699,39 @@ func settledList(before, now map[[2]int][]complex128) bool {
 	return true
 }
 
+// maxUnsettled is the largest change of the reported products, in the
+// last growth of the spectrum, that a solve at its harmonic limit reports
+// (with Stats.Unsettled) rather than fails.
+const maxUnsettled = 0.1
+
+// unsettled returns the largest change of a reported value between two
+// spectra relative to itself, values below 1e-6 of the largest of their
+// kind (-120 dB) measured against that floor.
+func unsettled(before, now snapshot) float64 {
+	w := 0.0
+	for _, pair := range [2][2]map[[2]int][]complex128{{before.voltages, now.voltages}, {before.currents, now.currents}} {
+		scale := 0.0
+		for o, v := range pair[1] {
+			if o == [2]int{0, 0} {
+				continue
+			}
+			for _, z := range v {
+				scale = math.Max(scale, cmplx.Abs(z))
+			}
+		}
+		for o, v := range pair[1] {
+			old, ok := pair[0][o]
+			if !ok || len(old) != len(v) {
+				return math.Inf(1)
+			}
+			for i, z := range v {
+				w = math.Max(w, cmplx.Abs(z-old[i])/(cmplx.Abs(z)+1e-6*scale))
+			}
+		}
+	}
+	return w
+}
+
 // grow returns the next larger spectrum, or false at the limit.
 func (sv *solver) grow(s *spectrum) (*spectrum, bool) {
 	limit := sv.maxOrder()
@@ -659,7 +743,7 @@ func (sv *solver) grow(s *spectrum) (*spectrum, bool) {
 		next.samples = max(next.samples, s.samples)
 		return next, sv.checkSize(next) == nil
 	}
-	next, err := twoTones(min(s.order+2, limit), s.trunc, sv.d.FrequencyHz, sv.d.SecondToneHz, sv.s.Oversample)
+	next, err := twoTones(min(s.order+4, limit), s.trunc, sv.d.FrequencyHz, sv.d.SecondToneHz, sv.s.Oversample)
 	if err != nil || sv.checkSize(next) != nil {
 		return nil, false
 	}

@@ -48,12 +48,17 @@ type spectrum struct {
 	order    int // K: highest harmonic (one tone) or truncation order (two tones)
 	trunc    Truncation
 	w1, w2   float64
+	// wGrid is the angular frequency of one step of the artificial index:
+	// w1 for one tone, w1/λ1 for two, so that index a stands for a·wGrid,
+	// near the product's physical frequency when λ2/λ1 is near f2/f1.
+	wGrid float64
 }
 
 // oneTone returns harmonics 0..k of f1, sampled at the smallest power of
 // two at least oversample·(2k+1).
 func oneTone(k int, f1Hz float64, oversample int) *spectrum {
 	s := &spectrum{order: k, w1: 2 * math.Pi * f1Hz}
+	s.wGrid = s.w1
 	for i := 0; i <= k; i++ {
 		s.products = append(s.products, product{m: i, a: i, omega: float64(i) * s.w1})
 	}
@@ -95,10 +100,8 @@ func samplesFor(amax, oversample int) int {
 // those would be one unknown physically and two here.
 func twoTones(order int, t Truncation, f1Hz, f2Hz float64, oversample int) (*spectrum, error) {
 	s := &spectrum{twoTone: true, order: order, trunc: t, w1: 2 * math.Pi * f1Hz, w2: 2 * math.Pi * f2Hz}
-	l1, l2 := order, order+1
-	if t == Box {
-		l1, l2 = 2*order+1, 1
-	}
+	l1, l2 := mapping(order, t, f2Hz/f1Hz)
+	s.wGrid = s.w1 / float64(l1)
 	amax := 0
 	for m := -order; m <= order; m++ {
 		for n := -order; n <= order; n++ {
@@ -124,6 +127,55 @@ func twoTones(order int, t Truncation, f1Hz, f2Hz float64, oversample int) (*spe
 	}
 	s.samples = samplesFor(amax, oversample)
 	return s, nil
+}
+
+// maxLambda bounds the tones' artificial frequencies, and so the time
+// grid: about four times order·maxLambda samples.
+const maxLambda = 64
+
+// mapping returns the artificial frequencies (λ1, λ2) of the two tones:
+// of the pairs that keep the truncated set one-to-one (coprime with
+// λ1 + λ2 > 2K for the diamond, since two diamond points differ by at
+// most 2K in |m| + |n|; coprime with max(λ1, λ2) > 2K for the box) and
+// stay within maxLambda (or the smallest such pair, (K, K + 1) and
+// (2K + 1, 1), when the order needs more), the one whose ratio λ2/λ1 is
+// nearest f2/f1. Then index a stands for a physical frequency near
+// a·f1/λ1, so that the time-domain preconditioner's grid is nearly the
+// waveform's own time.
+func mapping(order int, t Truncation, ratio float64) (int, int) {
+	ok := func(l1, l2 int) bool {
+		if l1 < 1 || l2 < 1 || gcd(l1, l2) != 1 {
+			return false
+		}
+		if t == Box {
+			return max(l1, l2) > 2*order
+		}
+		return l1+l2 > 2*order
+	}
+	best1, best2 := order, order+1
+	if t == Box {
+		best1, best2 = 2*order+1, 1
+	}
+	bestErr := math.Abs(float64(best2)/float64(best1) - ratio)
+	for l1 := 1; l1 <= maxLambda; l1++ {
+		x := float64(l1) * ratio
+		for _, l2 := range []int{int(math.Floor(x)), int(math.Ceil(x))} {
+			if max(l1, l2) > max(maxLambda, best1, best2) || !ok(l1, l2) {
+				continue
+			}
+			if e := math.Abs(float64(l2)/float64(l1) - ratio); e < bestErr {
+				best1, best2, bestErr = l1, l2, e
+			}
+		}
+	}
+	return best1, best2
+}
+
+func gcd(a, b int) int {
+	for b != 0 {
+		a, b = b, a%b
+	}
+	return a
 }
 
 // collisionRel is how close, relative to the higher tone, two products'
@@ -174,32 +226,37 @@ func (e *CollisionError) Error() string {
 		e.Tone1Hz, e.Tone2Hz, name(e.Orders[0]), name(e.Orders[1]), e.FrequencyHz)
 }
 
-// productName writes m·f1 + n·f2 as a reader would: "2f1 - f2", "DC".
+// productName writes m·f1 + n·f2 as a reader would, the positive term
+// first: "2f1 - f2", "f2 - f1", "3f1", "DC".
 func productName(m, n int) string {
 	if m == 0 && n == 0 {
 		return "DC"
 	}
-	term := func(c int, f string, first bool) string {
-		if c == 0 {
-			return ""
-		}
-		sign := ""
-		switch {
-		case c < 0 && first:
-			sign = "-"
-		case c < 0:
-			sign = " - "
-		case !first:
-			sign = " + "
-		}
-		c = abs(c)
+	term := func(c int, f string) string {
 		if c == 1 {
-			return sign + f
+			return f
 		}
-		return fmt.Sprintf("%s%d%s", sign, c, f)
+		return fmt.Sprintf("%d%s", c, f)
 	}
-	s := term(m, "f1", true)
-	return s + term(n, "f2", s == "")
+	switch {
+	case m == 0:
+		if n < 0 {
+			return "-" + term(-n, "f2")
+		}
+		return term(n, "f2")
+	case n == 0:
+		if m < 0 {
+			return "-" + term(-m, "f1")
+		}
+		return term(m, "f1")
+	case m > 0 && n > 0:
+		return term(m, "f1") + " + " + term(n, "f2")
+	case m > 0:
+		return term(m, "f1") + " - " + term(-n, "f2")
+	case n > 0:
+		return term(n, "f2") + " - " + term(-m, "f1")
+	}
+	return "-(" + term(-m, "f1") + " + " + term(-n, "f2") + ")"
 }
 
 // ProductName writes the mixing product m·f1 + n·f2 as "2f1 - f2", "f2",

@@ -71,7 +71,7 @@ func (sys *system) factorTime() error {
 		}
 		sys.tpre = tp
 	}
-	h := 2 * math.Pi / (sys.spec.w1 * float64(S))
+	h := 2 * math.Pi / (sys.spec.wGrid * float64(S))
 	lin := sys.lin
 	for s := 0; s < S; s++ {
 		a, b := tp.lu[s].a, tp.prev[s]

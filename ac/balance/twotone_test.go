@@ -64,31 +64,31 @@ func TestIM3MatchesVolterra(t *testing.T) {
 }
 
 // TestMappingOneToOne: the artificial frequency mapping gives every kept
-// product its own index, for both truncations and every order up to 30,
-// and the diamond fills 0..K(K+1) without a gap.
+// product its own index, for both truncations, every order up to 30 and
+// tone ratios near and far from one; the diamond holds 2K² + 2K + 1
+// products (half of them and DC kept), the box (2K + 1)².
 func TestMappingOneToOne(t *testing.T) {
 	for _, tr := range []Truncation{Diamond, Box} {
 		for k := 1; k <= 30; k++ {
-			s, err := twoTones(k, tr, 1e9, 1.0137e9, 2)
-			if err != nil {
-				t.Fatalf("%s order %d: %v", tr, k, err)
-			}
-			seen := map[int]bool{}
-			for _, p := range s.products {
-				if seen[p.a] {
-					t.Fatalf("%s order %d: index %d twice", tr, k, p.a)
+			for _, f2 := range []float64{1.0137e9, 1.001e9, 0.73e9, 2.71828e9} {
+				s, err := twoTones(k, tr, 1e9, f2, 2)
+				if err != nil {
+					t.Fatalf("%s order %d: %v", tr, k, err)
 				}
-				seen[p.a] = true
-			}
-			want := k*k + k + 1 // diamond: half of 2K²+2K+1 products, and DC
-			if tr == Box {
-				want = (2*k+1)*(2*k+1)/2 + 1
-			}
-			if len(s.products) != want {
-				t.Errorf("%s order %d: %d products, want %d", tr, k, len(s.products), want)
-			}
-			if tr == Diamond && s.products[len(s.products)-1].a != k*(k+1) {
-				t.Errorf("diamond order %d: highest index %d, want %d", k, s.products[len(s.products)-1].a, k*(k+1))
+				seen := map[int]bool{}
+				for _, p := range s.products {
+					if seen[p.a] {
+						t.Fatalf("%s order %d: index %d twice", tr, k, p.a)
+					}
+					seen[p.a] = true
+				}
+				want := k*k + k + 1 // diamond: half of 2K²+2K+1 products, and DC
+				if tr == Box {
+					want = (2*k+1)*(2*k+1)/2 + 1
+				}
+				if len(s.products) != want {
+					t.Errorf("%s order %d: %d products, want %d", tr, k, len(s.products), want)
+				}
 			}
 		}
 	}
