@@ -3,9 +3,9 @@ package balance
 import (
 	"fmt"
 	"math"
-	"strings"
 	"os"
 	"path/filepath"
+	"strings"
 	"testing"
 
 	"qpoint/ac"
