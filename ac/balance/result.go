@@ -124,9 +124,13 @@ func physical(p product, phasor complex128) ([2]int, float64, complex128) {
 	return [2]int{p.m, p.n}, p.omega, phasor
 }
 
-func newProduct(p product, phasor complex128) Product {
-	orders, w, ph := physical(p, phasor)
-	out := Product{Orders: orders, FrequencyHz: w / (2 * math.Pi), Phasor: ph}
+// newProduct returns product p with its phasor as the physical signal at
+// |m f1 + n f2| (computed in hertz, where it is exact for a difference of
+// close tones).
+func newProduct(p product, phasor complex128, f1Hz, f2Hz float64) Product {
+	orders, _, ph := physical(p, phasor)
+	f := float64(orders[0])*f1Hz + float64(orders[1])*f2Hz
+	out := Product{Orders: orders, FrequencyHz: math.Abs(f), Phasor: ph}
 	if p.a == 0 {
 		out.Amplitude = real(ph)
 		out.Phasor = complex(real(ph), 0)

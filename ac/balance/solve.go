@@ -833,7 +833,7 @@ func (sv *solver) result(sys *system, x []complex128) *Result {
 			v -= complex(dcOut, 0)
 		}
 		if spec.reported(p, report) {
-			r.Output = append(r.Output, newProduct(p, v))
+			r.Output = append(r.Output, newProduct(p, v, sv.d.FrequencyHz, sv.d.SecondToneHz))
 		}
 	}
 	sortProducts(r.Output)
@@ -841,7 +841,7 @@ func (sv *solver) result(sys *system, x []complex128) *Result {
 		var list []Product
 		for k, p := range spec.products {
 			if spec.reported(p, report) {
-				list = append(list, newProduct(p, j.i[k]))
+				list = append(list, newProduct(p, j.i[k], sv.d.FrequencyHz, sv.d.SecondToneHz))
 			}
 		}
 		sortProducts(list)

@@ -27,6 +27,7 @@ type distortionFlags struct {
 	noLimit                                     bool
 	asJSON                                      bool
 	plotsDir                                    string
+	steady                                      steadyFlags
 }
 
 func newDistortionCmd() *cobra.Command {
@@ -43,7 +44,10 @@ level and reports, at the output port or node:
              diode and which nonlinearity (current or charge) supplies each
              product
   waveform   the full nonlinear circuit solved to periodic steady state and
-             its harmonics, THD and DC shift
+             its harmonics, THD and DC shift, by harmonic balance or shooting
+             (--method); with --second-tone also every mixing product, IM2
+             and IM3 beside the estimate, and with --sweep-level the
+             intercept read from the waveform as a bench reads it
   side by side, with the difference in dB, and the highest input level at
              which the estimates hold within 0.5 dB: the small-signal
              validity limit at this bias
@@ -74,6 +78,7 @@ Settings come from the flags, else from the file's analysis.distortion.`,
 	f.BoolVar(&fl.noLimit, "no-limit", false, "skip the search for the validity limit")
 	f.BoolVar(&fl.asJSON, "json", false, "print one JSON document (SI units) instead of tables")
 	f.StringVar(&fl.plotsDir, "plots", "", "write the distortion figures (SVG and PNG) into this directory")
+	addSteadyFlags(f, &fl.steady)
 	return cmd
 }
 
@@ -221,6 +226,10 @@ func runDistortion(cmd *cobra.Command, path string, fl *distortionFlags) error {
 	if fl.samples < 4*fl.harmonics+1 || fl.samples > 65536 {
 		return inputError(fmt.Errorf("flag --samples: %d; accepted: at least 4 × harmonics + 1 and at most 65536", fl.samples))
 	}
+	waveSettings := settings
+	if settings.Method, waveSettings.Method, err = fl.steady.steadyMethods(s); err != nil {
+		return err
+	}
 	out := cmd.OutOrStdout()
 	doc := &distortionJSON{Input: s.inName, Output: s.outName, Frequency: number(s.drive.FrequencyHz), LevelDBm: number(s.levelDBm)}
 
@@ -270,7 +279,7 @@ func runDistortion(cmd *cobra.Command, path string, fl *distortionFlags) error {
 	doc.Estimate = estimateJSONOf(est)
 	one := s.drive
 	one.SecondToneHz = 0
-	st, err := ac.SteadyState(s.nw, one, settings)
+	st, err := ac.SteadyState(s.nw, one, waveSettings)
 	if err != nil {
 		return analysisError(fmt.Errorf("waveform at %.1f dBm: %w", s.levelDBm, err))
 	}
@@ -281,6 +290,17 @@ func runDistortion(cmd *cobra.Command, path string, fl *distortionFlags) error {
 	for _, c := range cmp {
 		doc.Comparison = append(doc.Comparison, comparisonJSON{c.Order, number(c.Estimate), number(c.Waveform), number(c.DiffDB), c.Trustable})
 	}
+	var two *ac.Steady
+	if s.drive.SecondToneHz != 0 {
+		if two, err = ac.SteadyState(s.nw, s.drive, waveSettings); err != nil {
+			return analysisError(fmt.Errorf("two-tone waveform at %.1f dBm per tone: %w", s.levelDBm, err))
+		}
+		doc.Waveform.addTwoTone(two)
+		doc.Cautions = append(doc.Cautions, two.Cautions()...)
+		if note := truncationNote(two); note != "" {
+			doc.Cautions = append(doc.Cautions, note)
+		}
+	}
 	var limit *ac.Validity
 	if !fl.noLimit {
 		limit, err = ac.ValidityLimit(s.nw, one, s.levelDBm-40, s.levelDBm+40, 0.5, settings)
@@ -290,7 +310,9 @@ func runDistortion(cmd *cobra.Command, path string, fl *distortionFlags) error {
 		}
 	}
 
-	var sweep []ac.LevelPoint
+	var sweep, twoSweep []ac.LevelPoint
+	var ip *ac.Intercept
+	var ipErr error
 	var compression float64
 	var compressed bool
 	if fl.sweepLevel != "" {
@@ -324,6 +346,9 @@ func runDistortion(cmd *cobra.Command, path string, fl *distortionFlags) error {
 			doc.LevelSweep = append(doc.LevelSweep, levelJSON{number(p.LevelDBm), waveformJSONOf(p.Steady)})
 		}
 		doc.Cautions = append(doc.Cautions, sweepCautions(sweep)...)
+		if two != nil {
+			twoSweep, ip, ipErr = twoToneLevelSweep(cmd, s, waveSettings, levels, doc)
+		}
 	}
 	if fl.plotsDir != "" {
 		if err := writeDistortionPlots(fl.plotsDir, s, oneEst, st, sweep); err != nil {
@@ -340,9 +365,16 @@ func runDistortion(cmd *cobra.Command, path string, fl *distortionFlags) error {
 	writeWaveform(out, st)
 	writeCautions(out, st.Cautions())
 	writeComparison(out, cmp, limit)
+	if two != nil {
+		writeTwoTone(out, two, est)
+		writeCautions(out, two.Cautions())
+	}
 	if len(sweep) > 0 {
 		writeLevelSweep(out, sweep, oneEst, compression, compressed)
 		writeCautions(out, sweepCautions(sweep))
+	}
+	if len(twoSweep) > 0 {
+		writeTwoToneSweep(out, twoSweep, ip, ipErr, est)
 	}
 	if fl.plotsDir != "" {
 		fmt.Fprintf(out, "figures written to %s\n", fl.plotsDir)
@@ -480,7 +512,7 @@ func writeWaveform(w io.Writer, s *ac.Steady) {
 }
 
 func waveformTable(s *ac.Steady) (*table, string) {
-	t := &table{title: fmt.Sprintf("Waveform (periodic steady state, %d and %d samples per period)", s.Samples, 2*s.Samples+1),
+	t := &table{title: "Waveform (periodic steady state by " + methodLine(s) + ")",
 		header: []string{"order", "amplitude", "relative", "phase"}}
 	fund := s.Output[1].Amplitude
 	isolated := fund <= s.NoiseFloor
@@ -501,10 +533,10 @@ func waveformTable(s *ac.Steady) (*table, string) {
 		t.add(strconv.Itoa(h.Order), si.Format(h.Amplitude, "V", 4), rel, ph)
 	}
 	if isolated {
-		return t, fmt.Sprintf("no signal above the solver's floor (%s) reaches this output: it is isolated from the input; %d shooting iterations",
+		return t, fmt.Sprintf("no signal above the solver's floor (%s) reaches this output: it is isolated from the input; %d Newton iterations",
 			si.Format(s.NoiseFloor, "V", 2), s.Iterations)
 	}
-	return t, fmt.Sprintf("THD %.4g %%; %d shooting iterations; periodicity residual %.2g", s.THDPercent, s.Iterations, s.Residual)
+	return t, fmt.Sprintf("THD %.4g %%; %d Newton iterations; %s residual %.2g", s.THDPercent, s.Iterations, residualName(s), s.Residual)
 }
 
 func writeComparison(w io.Writer, cs []ac.Comparison, v *ac.Validity) {

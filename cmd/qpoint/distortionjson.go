@@ -35,10 +35,14 @@ type harmonicJSON struct {
 }
 
 type waveformJSON struct {
+	Method     string         `json:"method"`
 	Harmonics  []harmonicJSON `json:"harmonics"`
 	THDPercent number         `json:"thd_percent"`
 	Iterations int            `json:"iterations"`
 	Residual   number         `json:"residual"`
+	IM2dBc     *number        `json:"im2_dbc,omitempty"`
+	IM3dBc     *number        `json:"im3_dbc,omitempty"`
+	Products   []productJSON  `json:"products,omitempty"`
 }
 
 type comparisonJSON struct {
@@ -66,6 +70,8 @@ type distortionJSON struct {
 	ValidityLimitFound bool             `json:"validity_limit_found,omitempty"`
 	LevelSweep         []levelJSON      `json:"level_sweep,omitempty"`
 	CompressionDBm     number           `json:"compression_dbm,omitempty"`
+	TwoToneSweep       []levelJSON      `json:"two_tone_sweep,omitempty"`
+	MeasuredIntercept  *interceptJSON   `json:"measured_intercept,omitempty"`
 	FrequencySweep     []*estimateJSON  `json:"frequency_sweep,omitempty"`
 	Cautions           []string         `json:"cautions,omitempty"`
 }
@@ -97,7 +103,7 @@ func estimateJSONOf(e *ac.Estimate) *estimateJSON {
 }
 
 func waveformJSONOf(s *ac.Steady) *waveformJSON {
-	j := &waveformJSON{THDPercent: number(s.THDPercent), Iterations: s.Iterations, Residual: number(s.Residual)}
+	j := &waveformJSON{Method: s.Method, THDPercent: number(s.THDPercent), Iterations: s.Iterations, Residual: number(s.Residual)}
 	for _, h := range s.Output {
 		hj := harmonicJSON{Order: h.Order, Amplitude: number(h.Amplitude)}
 		if h.Order > 0 {
