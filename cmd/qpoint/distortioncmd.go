@@ -351,7 +351,7 @@ func runDistortion(cmd *cobra.Command, path string, fl *distortionFlags) error {
 		}
 	}
 	if fl.plotsDir != "" {
-		if err := writeDistortionPlots(fl.plotsDir, s, oneEst, st, sweep); err != nil {
+		if err := writeDistortionPlots(fl.plotsDir, s, oneEst, st, sweep, twoToneFigures(two, est)...); err != nil {
 			return err
 		}
 	}

@@ -66,12 +66,12 @@ func writeFigures(dir string, figs []*plots.Figure) error {
 	return nil
 }
 
-func writeDistortionPlots(dir string, s *distortionSetup, e *ac.Estimate, st *ac.Steady, sweep []ac.LevelPoint) error {
+func writeDistortionPlots(dir string, s *distortionSetup, e *ac.Estimate, st *ac.Steady, sweep []ac.LevelPoint, extra ...*plots.Figure) error {
 	comp, compressed := 0.0, false
 	if len(sweep) > 1 {
 		comp, compressed = ac.Compression(sweep, cmplx.Abs(e.Fundamental)/e.Drive.EMF)
 	}
-	return writeFigures(dir, distortionFigures(e, st, sweep, comp, compressed))
+	return writeFigures(dir, append(distortionFigures(e, st, sweep, comp, compressed), extra...))
 }
 
 func writeDistortionFrequencyPlot(dir string, rows []frequencyRow) error {

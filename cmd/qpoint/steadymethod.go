@@ -12,6 +12,7 @@ import (
 	"qpoint/ac"
 	"qpoint/ac/balance"
 	"qpoint/bias/si"
+	"qpoint/plots"
 )
 
 // steadyFlags choose how distortion solves the steady state.
@@ -267,4 +268,12 @@ func truncationNote(st *ac.Steady) string {
 	}
 	return fmt.Sprintf("harmonic balance stopped at %s with the spectrum still above 1e-10 of the largest signal: the reported values moved by up to %.2g %% (%.3f dB) in the last growth",
 		what, 100*r.Stats.Unsettled, 20*math.Log10(1+r.Stats.Unsettled))
+}
+
+// twoToneFigures is the two-tone spectrum, when there is a second tone.
+func twoToneFigures(two *ac.Steady, est *ac.Estimate) []*plots.Figure {
+	if two == nil {
+		return nil
+	}
+	return []*plots.Figure{plots.TwoToneSpectrum(two, est)}
 }
