@@ -2,10 +2,13 @@ package balance
 
 import (
 	"fmt"
+	"path/filepath"
+	"strings"
 	"testing"
 	"time"
 
 	"qpoint/ac"
+	"qpoint/bias/circuit"
 )
 
 // Benchmarks of harmonic balance (BENCHMARKS.md quotes them):
@@ -103,6 +106,49 @@ func BenchmarkValidity(b *testing.B) {
 			_ = start
 			b.ReportMetric(float64(v.Steps), "solves")
 			b.ReportMetric(v.LevelDBm, "limit-dBm")
+		})
+	}
+}
+
+// BenchmarkHard solves the steady state of every demo and every circuit
+// of testdata/hard that names a distortion drive, by harmonic balance and
+// by shooting (default settings each), so that the two can be set side by
+// side on small circuits driven hard, where shooting is at its best:
+//
+//	go test -run '^$' -bench 'Hard' -benchtime 1x ./ac/balance/
+func BenchmarkHard(b *testing.B) {
+	var paths []string
+	for _, dir := range []string{"demo", "hard"} {
+		p, _ := filepath.Glob(filepath.Join("..", "..", "testdata", dir, "*.yaml"))
+		paths = append(paths, p...)
+	}
+	for _, p := range paths {
+		c, err := circuit.Load(p)
+		if err != nil {
+			b.Fatal(err)
+		}
+		if !c.Analysis.Distortion.Set {
+			continue
+		}
+		nw := linearise(b, c)
+		d := fileDrive(b, c)
+		name := strings.TrimSuffix(filepath.Base(p), ".yaml")
+		b.Run(name+"/hb", func(b *testing.B) {
+			var r *Result
+			for b.Loop() {
+				if r, err = Solve(nw, d, Settings{}); err != nil {
+					b.Fatal(err)
+				}
+			}
+			b.ReportMetric(float64(r.Stats.Harmonics), "harmonics")
+			b.ReportMetric(float64(r.Stats.Iterations), "newton")
+		})
+		b.Run(name+"/shooting", func(b *testing.B) {
+			for b.Loop() {
+				if _, err := ac.SteadyState(nw, d, ac.SteadySettings{}); err != nil {
+					b.Fatal(err)
+				}
+			}
 		})
 	}
 }
