@@ -80,7 +80,7 @@ func benchNetwork(b *testing.B, kind string, n int) (nw *smallsignal.Network, re
 					for i, p := range nw.Ports {
 						ref[i] = p.Impedance
 					}
-					if sweepEngine(nw, freqs, ref, []string{nw.Names[0]}, engineReduced) != nil {
+					if first(sweepEngine(nw, freqs, ref, []string{nw.Names[0]}, engineReduced)) != nil {
 						return nw, rejected
 					}
 					rejected++
@@ -160,7 +160,7 @@ func BenchmarkEngines(b *testing.B) {
 				for i, p := range nw.Ports {
 					ref[i] = p.Impedance
 				}
-				if sweepEngine(nw, freqs, ref, s.Probes, engineReduced) == nil {
+				if first(sweepEngine(nw, freqs, ref, s.Probes, engineReduced)) == nil {
 					b.Fatalf("%s n=%d: the reduction fails its accuracy check", kind, n)
 				}
 				luPoints, luBatch := 200, 10
@@ -394,5 +394,104 @@ func BenchmarkForms(b *testing.B) {
 			b.ReportMetric(even, "break-even")
 			b.ReportMetric(even/float64(n), "break-even/n")
 		})
+	}
+}
+
+// BenchmarkSteadyLadder: the periodic steady state of the diode-loaded
+// ladder (benchLadder) of n unknowns at 1 GHz, -20 dBm into port 1,
+// default settings. Its cost is that of the time steps: an LU of the n×n
+// step matrix and the sensitivity products, per step.
+//
+//	go test -run '^$' -bench SteadyLadder -benchtime 1x -count 3 ./ac/
+func BenchmarkSteadyLadder(b *testing.B) {
+	for _, n := range []int{60, 150} {
+		b.Run(fmt.Sprintf("n=%d", n), func(b *testing.B) {
+			nw := network(b, benchLadder(n))
+			d := Drive{Input: 0, Output: Output{Port: 1}, FrequencyHz: 1e9, EMF: DBmToEMF(-20, 50)}
+			var iters int
+			for b.Loop() {
+				st, err := SteadyState(nw, d, SteadySettings{})
+				if err != nil {
+					b.Fatal(err)
+				}
+				iters = st.Iterations
+			}
+			b.ReportMetric(float64(iters), "newton-iterations")
+		})
+	}
+}
+
+// factorPlain is lu.factor without its skip of zero multipliers: the
+// textbook dense elimination (Golub and Van Loan, algorithm 3.4.1) that
+// touches every entry below and right of each pivot, whatever the
+// sparsity. It is the baseline a dense solver with no regard for zeros
+// would give.
+func (f *lu) factorPlain() error {
+	n, a := f.n, f.a
+	for k := 0; k < n; k++ {
+		p, big := k, cabs1(a[k*n+k])
+		for i := k + 1; i < n; i++ {
+			if v := cabs1(a[i*n+k]); v > big {
+				p, big = i, v
+			}
+		}
+		f.piv[k] = p
+		if big == 0 {
+			return errSingular
+		}
+		if p != k {
+			rk, rp := a[k*n:(k+1)*n], a[p*n:(p+1)*n]
+			for j := range rk {
+				rk[j], rp[j] = rp[j], rk[j]
+			}
+		}
+		inv := 1 / a[k*n+k]
+		f.inv[k] = inv
+		rowK := a[k*n : (k+1)*n]
+		for i := k + 1; i < n; i++ {
+			rowI := a[i*n : (i+1)*n]
+			l := rowI[k] * inv
+			rowI[k] = l
+			for j := k + 1; j < n; j++ {
+				rowI[j] -= l * rowK[j]
+			}
+		}
+	}
+	return nil
+}
+
+// BenchmarkLUBaselines: one factorisation of Y(jω) at 1 GHz for the
+// ladder and a random network of 200 unknowns, by the LU the sweeps use
+// (which skips a row whose multiplier is zero: on a sparse ladder most
+// are) and by the plain dense elimination. BenchmarkEngines's "LU per
+// point" column is the first; this gives the second beside it.
+//
+//	go test -run '^$' -bench LUBaselines -count 5 ./ac/
+func BenchmarkLUBaselines(b *testing.B) {
+	for _, kind := range []string{"ladder", "random"} {
+		nw, _ := benchNetwork(b, kind, 200)
+		g, c := nw.G.RawMatrix(), nw.C.RawMatrix()
+		f := newLU(nw.N)
+		w := 2 * math.Pi * 1e9
+		for _, plain := range []bool{false, true} {
+			name := kind + "/skipping-zeros"
+			if plain {
+				name = kind + "/plain"
+			}
+			b.Run(name, func(b *testing.B) {
+				for b.Loop() {
+					f.load(g.Data, c.Data, g.Stride, c.Stride, w)
+					var err error
+					if plain {
+						err = f.factorPlain()
+					} else {
+						err = f.factor()
+					}
+					if err != nil {
+						b.Fatal(err)
+					}
+				}
+			})
+		}
 	}
 }

@@ -36,6 +36,5 @@
 // noise and each port termination's noise, carried to the output by one
 // adjoint solve per frequency (Noise, IntegrateNoise, Detector).
 //
-// Files. Touchstone version 1.1 and 2.0 S-parameter files
-// (WriteTouchstone, ReadTouchstone).
+// Touchstone files are their own package, ac/touchstone.
 package ac

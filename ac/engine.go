@@ -126,6 +126,14 @@ const schurPointsPerUnknown = 3
 // maxShiftedDecades, and the Schur form before both for sweeps long
 // enough to repay it (schurPointsPerUnknown).
 func reduceAccurate(nw *smallsignal.Network, lo, hi float64, points int, accurate func(*reduction) bool) *reduction {
+	r, _ := reduceAccurateTried(nw, lo, hi, points, accurate)
+	return r
+}
+
+// reduceAccurateTried is reduceAccurate that also returns the forms it
+// tried and refused (their reduction failed, or their accuracy check).
+func reduceAccurateTried(nw *smallsignal.Network, lo, hi float64, points int, accurate func(*reduction) bool) (*reduction, []Engine) {
+	var refused []Engine
 	forms := []reductionForm{formShifted, formTriangular}
 	if hi > lo*math.Pow(10, maxShiftedDecades) {
 		forms[0], forms[1] = forms[1], forms[0]
@@ -134,10 +142,42 @@ func reduceAccurate(nw *smallsignal.Network, lo, hi float64, points int, accurat
 	}
 	for _, form := range forms {
 		if r, err := reduceFor(nw, lo, hi, form); err == nil && accurate(r) {
-			return r
+			return r, refused
 		}
+		refused = append(refused, form.engine())
 	}
-	return nil
+	return nil, refused
+}
+
+// Engine names a method that solves Y(jw) x = b over a sweep.
+type Engine string
+
+// The engines.
+const (
+	EngineLU         Engine = "LU"                         // a complex LU of Y(jw) per point, O(n³)
+	EngineSchur      Engine = "shifted Schur form"         // reduction of K⁻¹C to real Schur form, O(n²) a point
+	EngineHessenberg Engine = "shifted Hessenberg form"    // reduction of K⁻¹C to Hessenberg form, O(n²) a point
+	EngineTriangular Engine = "Hessenberg-triangular form" // QR and Dgghrd of (G, C), O(n²) a point
+)
+
+func (f reductionForm) engine() Engine {
+	switch f {
+	case formSchur:
+		return EngineSchur
+	case formTriangular:
+		return EngineTriangular
+	}
+	return EngineHessenberg
+}
+
+// Stats says how a sweep ran: the engine that solved its first point,
+// how many points each engine solved, and the reduction forms that were
+// tried and refused by their accuracy check before it.
+type Stats struct {
+	Engine  Engine
+	Reduced int // points solved on a reduction
+	LU      int // points solved by the LU
+	Refused []Engine
 }
 
 // checkFrequencies returns the frequencies the accuracy check probes:
@@ -197,8 +237,9 @@ func (r *reduction) refinedPoint(nw *smallsignal.Network, ref []float64, probes 
 		for i := 0; i < np; i++ {
 			pt.S[i][j] = sEntry(nw.PortVoltage(i, x), ref, i, j)
 		}
+		g, c := portRows(nw, j)
+		pt.InputImpedance[j] = inputImpedance(nw.PortVoltage(j, x), portCurrent(g, c, w, x))
 	}
-	setImpedances(&pt, ref)
 	for _, p := range probes {
 		pt.Probes = append(pt.Probes, at(x0, p))
 	}
@@ -280,20 +321,20 @@ func pointsDiffer(p, q Point, rel, floor float64) string {
 // sweepEngine returns the reduction to run a sweep of freqsHz on, or nil
 // for the dense LU: by cost (reducedPays) unless choice forces a method,
 // and only if the reduction passes its accuracy check.
-func sweepEngine(nw *smallsignal.Network, freqsHz []float64, ref []float64, probes []string, choice engine) *reduction {
+func sweepEngine(nw *smallsignal.Network, freqsHz []float64, ref []float64, probes []string, choice engine) (*reduction, []Engine) {
 	if choice == engineLU || len(freqsHz) == 0 {
-		return nil
+		return nil, nil
 	}
 	if choice == engineAuto && !reducedPays(nw.N, len(freqsHz)) {
-		return nil
+		return nil, nil
 	}
 	for _, f := range freqsHz {
 		if CheckFrequency(f) != nil {
-			return nil // the LU path reports it where it occurs
+			return nil, nil // the LU path reports it where it occurs
 		}
 	}
 	lo, hi, _ := sweepRange(freqsHz)
-	return reduceAccurate(nw, lo, hi, len(freqsHz), func(r *reduction) bool {
+	return reduceAccurateTried(nw, lo, hi, len(freqsHz), func(r *reduction) bool {
 		return r.sweepAccurate(nw, ref, probes, lo, hi)
 	})
 }
@@ -314,8 +355,11 @@ type pointEval struct {
 	ref  []float64
 	c, y [][]complex128 // per port: excitation in reduced coordinates; solution
 	vrow [][]float64    // port voltage i = vrow[i]·y
-	prow [][]float64    // probe k's voltage = prow[k]·y
-	dy   []complex128
+	// The current the network draws at port i for the excitation there
+	// is (grow[i] + jω crow[i])·y (portRows, in reduced coordinates).
+	grow, crow [][]float64
+	prow       [][]float64 // probe k's voltage = prow[k]·y
+	dy         []complex128
 	// reciprocal: G and C are symmetric, so S is (power waves, real
 	// references): the column of the group delay's output port comes
 	// from its row, which the adjoint solve gives, and that port needs no
@@ -364,6 +408,11 @@ func (r *reduction) points(nw *smallsignal.Network, ref []float64, probes []stri
 			}
 		}
 		ev.vrow = append(ev.vrow, v)
+	}
+	for i := range nw.Ports {
+		g, c := portRows(nw, i)
+		ev.grow = append(ev.grow, combineRows(g, row))
+		ev.crow = append(ev.crow, combineRows(c, row))
 	}
 	for _, name := range probes {
 		ev.prow = append(ev.prow, row(probeIndex(nw, name)))
@@ -435,7 +484,23 @@ func (ev *pointEval) at(hz float64, store *pointStore) (Point, bool) {
 			pt.S[i][out] = pt.S[out][i]
 		}
 	}
-	setImpedances(&pt, ref)
+	w := 2 * math.Pi * hz
+	for i := 0; i < np; i++ {
+		if ev.reciprocal && i == out {
+			// No solve of its own: Z from S, whose diagonal entry came
+			// from the adjoint, unless S is near ±1, where that form
+			// has lost its digits and the port gets its solve after all.
+			sii := pt.S[i][i]
+			if cmplx.Abs(1-sii) > nearUnit && cmplx.Abs(1+sii) > nearUnit {
+				pt.InputImpedance[i] = complex(ref[i], 0) * (1 + sii) / (1 - sii)
+				continue
+			}
+			copy(ev.y[i], ev.c[i])
+			r.solveY(ev.y[i])
+		}
+		v := dotReal(ev.vrow[i], ev.y[i])
+		pt.InputImpedance[i] = inputImpedance(v, dotReal(ev.grow[i], ev.y[i])+complex(0, w)*dotReal(ev.crow[i], ev.y[i]))
+	}
 	for _, p := range ev.prow {
 		pt.Probes = append(pt.Probes, dotReal(p, ev.y[0]))
 	}
@@ -590,4 +655,31 @@ func newSolver(nw *smallsignal.Network, freqsHz []float64, choice engine) solver
 		return newLUSolver(nw)
 	}
 	return r
+}
+
+// nearUnit is how close to ±1 an S-parameter may come before Z_0 (1 +
+// S)/(1 - S) is no longer trusted for the input impedance: it keeps about
+// half of float64's digits there.
+const nearUnit = 1e-8
+
+// combineRows returns Σ_k a_k row(k): the row vector a over the unknowns
+// carried into reduced coordinates.
+func combineRows(a []float64, row func(int) []float64) []float64 {
+	var out []float64
+	for k, v := range a {
+		if v == 0 {
+			continue
+		}
+		r := row(k)
+		if out == nil {
+			out = make([]float64, len(r))
+		}
+		for j, z := range r {
+			out[j] += v * z
+		}
+	}
+	if out == nil {
+		out = row(-1)
+	}
+	return out
 }

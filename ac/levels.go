@@ -27,7 +27,7 @@ const floorDBc = -140
 func Compare(e *Estimate, s *Steady) []Comparison {
 	est := []complex128{complex(e.DCShift, 0), e.Fundamental, e.HD2, e.HD3}
 	names := []string{"dc", "1", "2", "3"}
-	fund := cmplx.Abs(e.Fundamental)
+	fund := cmplx.Abs(e.Linear)
 	var out []Comparison
 	for k := 0; k < len(est) && k < len(s.Output); k++ {
 		c := Comparison{Name: names[k], Order: k, Waveform: s.Output[k].Amplitude}
@@ -42,17 +42,6 @@ func Compare(e *Estimate, s *Steady) []Comparison {
 		out = append(out, c)
 	}
 	return out
-}
-
-// worstDiff returns the largest |DiffDB| over the trustable comparisons.
-func worstDiff(cs []Comparison) float64 {
-	w := 0.0
-	for _, c := range cs {
-		if c.Trustable && !math.IsNaN(c.DiffDB) {
-			w = math.Max(w, math.Abs(c.DiffDB))
-		}
-	}
-	return w
 }
 
 // LevelPoint is the waveform at one input level.
@@ -84,65 +73,208 @@ func LevelSweep(nw *smallsignal.Network, d Drive, levelsDBm []float64, s SteadyS
 	return out, nil
 }
 
+// ValidityOutcome says what the search for the validity limit found.
+type ValidityOutcome int
+
+// The outcomes of ValidityLimit.
+const (
+	// LimitFound: the estimates held at one level and not at a higher
+	// one; LevelDBm is the limit, bisected to 0.05 dB.
+	LimitFound ValidityOutcome = iota
+	// HeldThroughout: the estimates held at every level tried; the limit
+	// lies above LevelDBm, the highest level tried.
+	HeldThroughout
+	// NeverHeld: the estimates differed from the waveform by more than
+	// the tolerance at every level tried, down to LowestDBm; LevelDBm is
+	// NaN and WorstDB holds the difference seen there.
+	NeverHeld
+	// SolveFailed: a waveform solve failed (Err) before a limit was
+	// bracketed. LevelDBm is the highest level at which the estimates
+	// were seen to hold, or NaN when none was.
+	SolveFailed
+)
+
 // Validity is the small-signal validity limit at a bias: the highest input
 // level at which the Volterra estimates of the DC shift and harmonics 1-3
 // hold within TolDB of the waveform.
 type Validity struct {
-	LevelDBm float64 // the limit, available power per tone
-	TolDB    float64
-	Found    bool // false: the estimates held up to the highest level tried
-	Steps    int  // steady-state solves used
+	Outcome   ValidityOutcome
+	LevelDBm  float64 // available power per tone; NaN when nothing held (see Outcome)
+	TolDB     float64
+	LowestDBm float64 // the lowest level tried
+	// WorstDB and WorstProduct are the largest difference between
+	// estimate and waveform at LowestDBm, and the product it belongs to
+	// ("dc", "1", "2", "3").
+	WorstDB      float64
+	WorstProduct string
+	Err          error // SolveFailed: why the waveform solve failed
+	FailedDBm    float64
+	Steps        int // steady-state solves used
 }
+
+// Found reports whether a limit was bracketed and bisected.
+func (v *Validity) Found() bool { return v.Outcome == LimitFound }
+
+// Note says in one sentence what the search found, with the level or the
+// difference seen; it never presents a level that was not observed as a
+// limit.
+func (v *Validity) Note() string {
+	switch v.Outcome {
+	case LimitFound:
+		return fmt.Sprintf("the estimates hold within %.1f dB up to %.1f dBm available per tone (%d waveform solves)", v.TolDB, v.LevelDBm, v.Steps)
+	case HeldThroughout:
+		return fmt.Sprintf("the estimates hold within %.1f dB at every level tried, up to %.1f dBm; the limit lies higher", v.TolDB, v.LevelDBm)
+	case NeverHeld:
+		return fmt.Sprintf("no validity limit: the estimates differ from the waveform by %.2g dB (%s) already at %.1f dBm, the lowest level tried; they do not hold in this range",
+			v.WorstDB, productName(v.WorstProduct), v.LowestDBm)
+	default:
+		if math.IsNaN(v.LevelDBm) {
+			return fmt.Sprintf("no validity limit: the waveform solve failed at %.1f dBm (%v)", v.FailedDBm, v.Err)
+		}
+		return fmt.Sprintf("the estimates hold within %.1f dB up to at least %.1f dBm; the waveform solve failed at %.1f dBm (%v), so the limit was not bracketed",
+			v.TolDB, v.LevelDBm, v.FailedDBm, v.Err)
+	}
+}
+
+func productName(p string) string {
+	switch p {
+	case "dc":
+		return "DC shift"
+	case "1":
+		return "fundamental"
+	case "2":
+		return "second harmonic"
+	case "3":
+		return "third harmonic"
+	}
+	return p
+}
+
+// worst returns the largest |DiffDB| over the trustable comparisons and
+// the product it belongs to.
+func worst(cs []Comparison) (float64, string) {
+	w, name := 0.0, ""
+	for _, c := range cs {
+		if c.Trustable && !math.IsNaN(c.DiffDB) && math.Abs(c.DiffDB) >= w {
+			w, name = math.Abs(c.DiffDB), c.Name
+		}
+	}
+	return w, name
+}
+
+// validityDescent is how far below startDBm ValidityLimit looks, in
+// 10 dB steps, when the estimates do not hold at startDBm.
+const validityDescent = 60
 
 // ValidityLimit steps the input level up from startDBm in 2 dB steps, each
 // steady state starting the next, until an estimate departs from the
 // waveform by more than tolDB (or maxDBm is reached), then bisects the last
-// step to 0.05 dB.
+// step to 0.05 dB. When the estimates do not hold at startDBm it first
+// looks down in 10 dB steps, up to 60 dB lower, for a level where they do.
+// A failed waveform solve ends the search with Outcome SolveFailed: it is
+// not taken as the estimates' departure. The error is for a drive the
+// estimate refuses.
 func ValidityLimit(nw *smallsignal.Network, d Drive, startDBm, maxDBm, tolDB float64, s SteadySettings) (*Validity, error) {
 	z0 := nw.Ports[d.Input].Impedance
-	v := &Validity{TolDB: tolDB}
-	check := func(l float64, start *Steady) (*Steady, bool, error) {
+	v := &Validity{TolDB: tolDB, LevelDBm: math.NaN(), LowestDBm: startDBm, WorstDB: math.NaN(), FailedDBm: math.NaN()}
+	var solveErr error
+	// check reports whether the estimates hold at level l; a failed
+	// solve sets solveErr.
+	check := func(l float64, start *Steady) (*Steady, bool, float64, string, error) {
 		d.EMF = DBmToEMF(l, z0)
 		e, err := Volterra(nw, Drive{Input: d.Input, Output: d.Output, FrequencyHz: d.FrequencyHz, EMF: d.EMF})
 		if err != nil {
-			return nil, false, err
+			return nil, false, 0, "", err
 		}
 		s.Start = start
 		st, err := SteadyState(nw, d, s)
 		v.Steps++
 		if err != nil {
-			return nil, false, err
+			solveErr = fmt.Errorf("at %.1f dBm: %w", l, err)
+			return nil, false, 0, "", nil
 		}
-		return st, worstDiff(Compare(e, st)) <= tolDB, nil
+		w, name := worst(Compare(e, st))
+		return st, w <= tolDB, w, name, nil
 	}
-	good, bad := math.NaN(), math.NaN()
-	var prev *Steady
-	for l := startDBm; l <= maxDBm+1e-9; l += 2 {
-		st, ok, err := check(l, prev)
-		if err != nil || !ok {
-			bad = l
-			break
-		}
-		good, prev = l, st
-	}
-	if math.IsNaN(good) {
-		return v, fmt.Errorf("the estimates already differ from the waveform by more than %.2g dB at %.1f dBm", tolDB, startDBm)
-	}
-	if math.IsNaN(bad) {
-		v.LevelDBm = good
+	failed := func(l float64) (*Validity, error) {
+		v.Outcome, v.Err, v.FailedDBm = SolveFailed, solveErr, l
 		return v, nil
 	}
-	v.Found = true
+
+	good, bad := math.NaN(), math.NaN()
+	var prev *Steady
+	st, ok, w, name, err := check(startDBm, nil)
+	if err != nil {
+		return nil, err
+	}
+	if solveErr != nil {
+		return failed(startDBm)
+	}
+	if ok {
+		good, prev = startDBm, st
+	} else {
+		// Look down for a level where the estimates hold.
+		bad = startDBm
+		v.WorstDB, v.WorstProduct = w, name
+		for l := startDBm - 10; l >= startDBm-validityDescent-1e-9; l -= 10 {
+			st, ok, w, name, err = check(l, st)
+			if err != nil {
+				return nil, err
+			}
+			if solveErr != nil {
+				return failed(l)
+			}
+			v.LowestDBm = l
+			if ok {
+				good, prev = l, st
+				break
+			}
+			bad = l
+			v.WorstDB, v.WorstProduct = w, name
+		}
+		if math.IsNaN(good) {
+			v.Outcome = NeverHeld
+			return v, nil
+		}
+	}
+	if math.IsNaN(bad) {
+		for l := startDBm + 2; l <= maxDBm+1e-9; l += 2 {
+			st, ok, _, _, err := check(l, prev)
+			if err != nil {
+				return nil, err
+			}
+			if solveErr != nil {
+				v.LevelDBm = good
+				return failed(l)
+			}
+			if !ok {
+				bad = l
+				break
+			}
+			good, prev = l, st
+		}
+	}
+	if math.IsNaN(bad) {
+		v.Outcome, v.LevelDBm = HeldThroughout, good
+		return v, nil
+	}
 	for bad-good > 0.05 {
 		mid := (good + bad) / 2
-		st, ok, err := check(mid, prev)
-		if err == nil && ok {
+		st, ok, _, _, err := check(mid, prev)
+		if err != nil {
+			return nil, err
+		}
+		if solveErr != nil {
+			v.LevelDBm = good
+			return failed(mid)
+		}
+		if ok {
 			good, prev = mid, st
 		} else {
 			bad = mid
 		}
 	}
-	v.LevelDBm = good
+	v.Outcome, v.LevelDBm = LimitFound, good
 	return v, nil
 }
 

@@ -494,7 +494,7 @@ func VoltageSensitivity(nw *smallsignal.Network, s NoiseSettings, carrierHz floa
 	if est.DCShift == 0 || est.Balanced(DC) {
 		return 0, ErrNoRectification
 	}
-	return est.DCShift * 8 * nw.Ports[s.Input].Impedance, nil
+	return est.DCShift / AvailablePower(1, nw.Ports[s.Input].Impedance), nil
 }
 
 // VideoSensitivity returns the detector's voltage sensitivity when the
@@ -530,7 +530,7 @@ func VideoSensitivity(nw *smallsignal.Network, s NoiseSettings, carrierHz float6
 	x := make([]complex128, nw.N)
 	nw.Excitation(s.Input, 1, x)
 	f.solve(x)
-	perWatt := 8 * nw.Ports[s.Input].Impedance
+	perWatt := 1 / AvailablePower(1, nw.Ports[s.Input].Impedance)
 	rect := make([]float64, len(nw.Diodes))
 	for k, d := range nw.Diodes {
 		rect[k] = perWatt * d.G2 * sqAbs(at(x, d.Junction)-at(x, d.Cathode)) / 2

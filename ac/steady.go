@@ -6,6 +6,9 @@ import (
 	"math"
 
 	"github.com/mjibson/go-dsp/fft"
+	"gonum.org/v1/gonum/blas"
+	"gonum.org/v1/gonum/blas/blas64"
+	"gonum.org/v1/gonum/lapack/lapack64"
 	"gonum.org/v1/gonum/mat"
 
 	"qpoint/bias/diode"
@@ -37,6 +40,10 @@ type Harmonic struct {
 	Amplitude float64 // peak volts (amperes for diode currents); order 0: the mean
 	PhaseDeg  float64 // of the cosine phasor; zero for order 0
 	Phasor    complex128
+	// BelowFloor is true where the amplitude lies below the steady
+	// state's NoiseFloor: the solver's rounding, not the circuit. Set on
+	// a Steady's Output.
+	BelowFloor bool
 }
 
 // Steady is the periodic steady state of the circuit under a one-tone
@@ -46,9 +53,16 @@ type Steady struct {
 	// Output holds the output's harmonics: order 0 is the change of its DC
 	// level caused by the signal (the DC shift), orders 1..K its phasors.
 	Output []Harmonic
-	// THDPercent is sqrt(sum_k>=2 A_k²) / A_1 in percent; NaN where the
-	// output carries no fundamental (A_1 = 0), for which THD is undefined.
+	// THDPercent is sqrt(sum_k>=2 A_k²) / A_1 in percent over the
+	// harmonics above NoiseFloor; NaN where the fundamental is below the
+	// floor (or zero), for which THD is undefined, and where every
+	// harmonic from the 2nd up is below it: then THDBelowPercent bounds
+	// it.
 	THDPercent float64
+	// THDBelowPercent is 100 sqrt(K-1) NoiseFloor / A_1 where every
+	// harmonic from the 2nd up lies below the floor (THD is less than
+	// this); zero otherwise.
+	THDBelowPercent float64
 	// DiodeCurrents[k] holds the harmonics of diode k's junction current
 	// (order 0 is its mean, not its change).
 	DiodeCurrents [][]Harmonic
@@ -90,6 +104,9 @@ type Steady struct {
 // voltage scale: the shooting and time-step tolerances stop near 1e-13 of
 // the node voltages, and the FFT adds its own rounding.
 const floorRel = 1e-12
+
+// dcFloorRel is the same for the DC shift (order 0).
+const dcFloorRel = 1e-10
 
 // MaxSteadyUnknowns bounds the size of a circuit SteadyState takes.
 const MaxSteadyUnknowns = 300
@@ -196,14 +213,7 @@ func SteadyState(nw *smallsignal.Network, d Drive, s SteadySettings) (*Steady, e
 	res.Output = richardson(hc, hf, n, 2*n+1)
 	res.Output[0].Amplitude -= dcOut
 	res.Output[0].Phasor -= complex(dcOut, 0)
-	var sum float64
-	for _, h := range res.Output[2:] {
-		sum += h.Amplitude * h.Amplitude
-	}
-	res.THDPercent = math.NaN()
-	if a1 := res.Output[1].Amplitude; a1 > 0 {
-		res.THDPercent = 100 * math.Sqrt(sum) / a1
-	}
+	res.FinishHarmonics(scale)
 	for j := range nw.Diodes {
 		res.DiodeCurrents = append(res.DiodeCurrents, richardson(harmonics(coarse.currents[j], k), harmonics(fine.currents[j], k), n, 2*n+1))
 	}
@@ -576,6 +586,58 @@ type trajectory struct {
 	currents  [][]float64
 	terminals [][]float64
 	junctions [][]float64
+
+	scratch, scratch2 []float64 // the sensitivity products' storage
+}
+
+// sNextScratch returns *buf resized to n, reusing its storage.
+func sNextScratch(buf *[]float64, n int) []float64 {
+	if cap(*buf) < n {
+		*buf = make([]float64, n)
+	}
+	*buf = (*buf)[:n]
+	return *buf
+}
+
+// sparseRows holds the nonzeros of the dynamic rows of a dense n×n matrix
+// (the charge Jacobian C), row by row.
+type sparseRows struct {
+	start []int // row i's entries are col[start[i]:start[i+1]]
+	col   []int
+	val   []float64
+}
+
+// load takes the nonzeros of the rows of dense (n×n, row-major) that dyn
+// marks; the other rows are left empty.
+func (s *sparseRows) load(dense []float64, n int, dyn []bool) {
+	s.start = append(s.start[:0], 0)
+	s.col, s.val = s.col[:0], s.val[:0]
+	for i := 0; i < n; i++ {
+		if dyn[i] {
+			for j, v := range dense[i*n : (i+1)*n] {
+				if v != 0 {
+					s.col = append(s.col, j)
+					s.val = append(s.val, v)
+				}
+			}
+		}
+		s.start = append(s.start, len(s.col))
+	}
+}
+
+// mulTo sets dst (n×w, row-major) to the matrix times x (n×w).
+func (s *sparseRows) mulTo(dst, x []float64, w int) {
+	n := len(s.start) - 1
+	for i := 0; i < n; i++ {
+		row := dst[i*w : (i+1)*w]
+		clear(row)
+		for e := s.start[i]; e < s.start[i+1]; e++ {
+			c, xr := s.val[e], x[s.col[e]*w:(s.col[e]+1)*w]
+			for j, v := range xr {
+				row[j] += c * v
+			}
+		}
+	}
 }
 
 // integrate runs the trapezoidal rule over one period from (x0, p). With
@@ -660,18 +722,23 @@ func (sh *shooter) integrate(x0, p []float64, steps int, sens bool) (*trajectory
 	record(x, 0)
 
 	qPrev := append([]float64(nil), q...)
-	cPrev := append([]float64(nil), jc...)
-	jac := mat.NewDense(n, n, nil)
-	var lu mat.LU
+	var cPrev, cNow sparseRows
+	cPrev.load(jc, n, sh.dyn)
+	// The step matrix is factored in place by LAPACK's dgetrf, without
+	// the condition estimate a mat.LU makes (dgecon, which cost 40 % of a
+	// small circuit's solve and which nothing here reads): an exactly zero
+	// pivot is the only failure, as solved allows for mat.LU.
+	jac := blas64.General{Rows: n, Cols: n, Stride: n, Data: make([]float64, n*n)}
+	ipiv := make([]int, n)
 	xn := append([]float64(nil), x...)
 	rhs := make([]float64, n)
-	// Work storage reused by every step: the Newton update and the
-	// sensitivity system and its solution (S and sSpare alternate).
-	rhsVec, dx := mat.NewVecDense(n, rhs), mat.NewVecDense(n, nil)
-	var b, sNext *mat.Dense
+	dx := blas64.General{Rows: n, Cols: 1, Stride: 1, Data: make([]float64, n)}
+	// Work storage reused by every step: the sensitivity system's right
+	// side, solved in place, and S's spare (the two alternate).
+	var b blas64.General
 	var sSpare []float64
 	if sens {
-		b, sNext = mat.NewDense(n, nz, nil), mat.NewDense(n, nz, nil)
+		b = blas64.General{Rows: n, Cols: nz, Stride: nz, Data: make([]float64, n*nz)}
 		sSpare = make([]float64, n*nz)
 	}
 	vl := make([]float64, len(sh.nw.Diodes))
@@ -686,16 +753,17 @@ func (sh *shooter) integrate(x0, p []float64, steps int, sens bool) (*trajectory
 		a, mem := 2/h, 1.0
 		// stepMatrix loads J = dF/dx = G(x) + a C(x) on dynamic rows,
 		// G(x) on algebraic ones, from the last evaluation, into jac.
-		stepMatrix := func() {
+		stepMatrix := func() bool {
 			for i := 0; i < n; i++ {
-				for j := 0; j < n; j++ {
-					v := jg[i*n+j]
-					if sh.dyn[i] {
-						v += a * jc[i*n+j]
+				row := jac.Data[i*n : (i+1)*n]
+				copy(row, jg[i*n:(i+1)*n])
+				if sh.dyn[i] {
+					for j, c := range jc[i*n : (i+1)*n] {
+						row[j] += a * c
 					}
-					jac.Set(i, j, v)
 				}
 			}
+			return lapack64.Getrf(jac, ipiv)
 		}
 		// Newton for x_{n+1}: F = f + a (q - q_n) - mem qd_n on dynamic
 		// rows, f on algebraic rows.
@@ -713,11 +781,11 @@ func (sh *shooter) integrate(x0, p []float64, steps int, sens bool) (*trajectory
 				}
 				rhs[i] = -r
 			}
-			stepMatrix()
-			lu.Factorize(jac)
-			if err := lu.SolveVecTo(dx, false, rhsVec); !solved(err) {
+			copy(dx.Data, rhs)
+			if !stepMatrix() {
 				return nil, fmt.Errorf("singular step matrix at t = %g s", t)
 			}
+			lapack64.Getrs(blas.NoTrans, jac, dx, ipiv)
 			// Judge the step on the node voltages: branch currents follow
 			// from them and can carry the rounding of a milliohm part.
 			// Newton converges quadratically until rounding stops it:
@@ -725,13 +793,13 @@ func (sh *shooter) integrate(x0, p []float64, steps int, sens bool) (*trajectory
 			// that no longer shrinks.
 			worst, moved, vmax := 0.0, 0.0, 0.0
 			for i := 0; i < n; i++ {
-				nx := xn[i] + dx.AtVec(i)
+				nx := xn[i] + dx.Data[i]
 				if math.IsNaN(nx) || math.IsInf(nx, 0) {
 					return nil, fmt.Errorf("the waveform diverged at t = %g s", t)
 				}
 				if i < sh.nw.NodeUnknowns {
-					worst = math.Max(worst, math.Abs(dx.AtVec(i))/(math.Abs(nx)+1e-3))
-					moved = math.Max(moved, math.Abs(dx.AtVec(i)))
+					worst = math.Max(worst, math.Abs(dx.Data[i])/(math.Abs(nx)+1e-3))
+					moved = math.Max(moved, math.Abs(dx.Data[i]))
 					vmax = math.Max(vmax, math.Abs(nx))
 				}
 				xn[i] = nx
@@ -763,53 +831,43 @@ func (sh *shooter) integrate(x0, p []float64, steps int, sens bool) (*trajectory
 		}
 		// Re-evaluate at the converged point for the memory and Jacobians.
 		sh.eval(xn, t, p, f, q, jg, jc, nil)
+		cNow.load(jc, n, sh.dyn)
 		if sens {
 			// J S_{n+1} = a C_n S_n + mem Qd_n - df/dp  (dynamic rows)
 			// J S_{n+1} = -df/dp                        (algebraic rows)
-			stepMatrix()
-			lu.Factorize(jac)
-			for i := 0; i < n; i++ {
-				for j := 0; j < nz; j++ {
-					var v float64
-					if sh.dyn[i] {
-						var cs float64
-						for l := 0; l < n; l++ {
-							if c := cPrev[i*n+l]; c != 0 {
-								cs += c * S[l*nz+j]
-							}
-						}
-						v = a*cs + mem*Qd[i*nz+j]
-					}
-					if j >= n {
-						v -= dfdp[i*m+j-n]
-					}
-					b.Set(i, j, v)
-				}
-			}
-			if err := lu.SolveTo(sNext, false, b); !solved(err) {
+			// C is sparse (capacitors and junction charges): its products
+			// cost O(nnz (n+m)) through its rows' nonzeros, not O(n² (n+m)).
+			if !stepMatrix() {
 				return nil, fmt.Errorf("singular step matrix at t = %g s", t)
 			}
-			raw := sNext.RawMatrix()
-			// Qd_{n+1} = a (C_{n+1} S_{n+1} - C_n S_n) - mem Qd_n.
-			newS := sSpare
+			// cs = C_n S_n on dynamic rows, kept for Qd below.
+			cs := sNextScratch(&tr.scratch, n*nz)
+			cPrev.mulTo(cs, S, nz)
 			for i := 0; i < n; i++ {
-				copy(newS[i*nz:(i+1)*nz], raw.Data[i*raw.Stride:i*raw.Stride+nz])
+				row := b.Data[i*nz : (i+1)*nz]
+				if sh.dyn[i] {
+					for j := range row {
+						row[j] = a*cs[i*nz+j] + mem*Qd[i*nz+j]
+					}
+				} else {
+					clear(row)
+				}
+				for k := 0; k < m; k++ {
+					row[n+k] -= dfdp[i*m+k]
+				}
 			}
+			lapack64.Getrs(blas.NoTrans, jac, b, ipiv)
+			newS := sSpare
+			copy(newS, b.Data)
+			// Qd_{n+1} = a (C_{n+1} S_{n+1} - C_n S_n) - mem Qd_n.
+			cn := sNextScratch(&tr.scratch2, n*nz)
+			cNow.mulTo(cn, newS, nz)
 			for i := 0; i < n; i++ {
 				if !sh.dyn[i] {
 					continue
 				}
 				for j := 0; j < nz; j++ {
-					var cn, cp float64
-					for l := 0; l < n; l++ {
-						if c := jc[i*n+l]; c != 0 {
-							cn += c * newS[l*nz+j]
-						}
-						if c := cPrev[i*n+l]; c != 0 {
-							cp += c * S[l*nz+j]
-						}
-					}
-					Qd[i*nz+j] = a*(cn-cp) - mem*Qd[i*nz+j]
+					Qd[i*nz+j] = a*(cn[i*nz+j]-cs[i*nz+j]) - mem*Qd[i*nz+j]
 				}
 			}
 			S, sSpare = newS, S
@@ -833,7 +891,7 @@ func (sh *shooter) integrate(x0, p []float64, steps int, sens bool) (*trajectory
 			}
 		}
 		copy(qPrev, q)
-		copy(cPrev, jc)
+		cPrev, cNow = cNow, cPrev
 		copy(x, xn)
 		for k, i := range sh.ports {
 			tr.meanPort[k] += sh.portVoltage(i, x) / float64(steps)

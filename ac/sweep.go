@@ -46,17 +46,27 @@ type Response struct {
 	Ports  []PortInfo
 	Probes []string
 	Points []Point
+	Stats  Stats // which engine ran, and any fallback
 }
 
-// Run sweeps nw over freqs and returns every point.
+// Run sweeps nw over freqs and returns every point, and in Stats how the
+// sweep ran.
 func Run(nw *smallsignal.Network, freqs []float64, s Settings) (*Response, error) {
 	r := &Response{}
-	ports, probes, err := Sweep(nw, freqs, s, func(p Point) error {
+	ws := new(Workspace)
+	ports, probes, err := ws.Sweep(nw, freqs, s, func(p Point) error {
 		r.Points = append(r.Points, p)
 		return nil
 	})
-	r.Ports, r.Probes = ports, probes
+	r.Ports, r.Probes, r.Stats = ports, probes, ws.SweepStats()
 	return r, err
+}
+
+// SweepStats says how the workspace's last Sweep ran.
+func (ws *Workspace) SweepStats() Stats {
+	st := ws.stats
+	st.Refused = append([]Engine(nil), st.Refused...)
+	return st
 }
 
 // Sweep computes the response at each frequency in turn and hands it to
@@ -126,12 +136,18 @@ func (ws *Workspace) sweep(nw *smallsignal.Network, freqs []float64, s Settings,
 
 	// The reduced engine takes the points it can; the LU the rest.
 	done := 0
-	if r := sweepEngine(nw, freqs, ref, probes, choice); r != nil {
+	r, refused := sweepEngine(nw, freqs, ref, probes, choice)
+	ws.stats = Stats{Engine: EngineLU, Refused: refused}
+	if r != nil {
+		ws.stats.Engine = r.form.engine()
 		var err error
-		if done, err = r.sweep(nw, freqs, ref, probes, visit, &ws.store); err != nil || done == len(freqs) {
+		done, err = r.sweep(nw, freqs, ref, probes, visit, &ws.store)
+		ws.stats.Reduced = done
+		if err != nil || done == len(freqs) {
 			return ports, probes, err
 		}
 	}
+	ws.stats.LU = len(freqs) - done
 
 	n, np := nw.N, len(nw.Ports)
 	f := ws.factorization(n)
@@ -145,6 +161,10 @@ func (ws *Workspace) sweep(nw *smallsignal.Network, freqs []float64, s Settings,
 	}
 	ws.slope = vector(ws.slope, n)
 	dx := ws.slope
+	gRows, cRows := make([][]float64, np), make([][]float64, np)
+	for i := range gRows {
+		gRows[i], cRows[i] = portRows(nw, i)
+	}
 	for _, hz := range freqs[done:] {
 		if err := CheckFrequency(hz); err != nil {
 			return ports, probes, err
@@ -165,8 +185,8 @@ func (ws *Workspace) sweep(nw *smallsignal.Network, freqs []float64, s Settings,
 			for i := 0; i < np; i++ {
 				pt.S[i][j] = sEntry(nw.PortVoltage(i, x[j]), ref, i, j)
 			}
+			pt.InputImpedance[j] = inputImpedance(nw.PortVoltage(j, x[j]), portCurrent(gRows[j], cRows[j], w, x[j]))
 		}
-		setImpedances(&pt, ref)
 		for _, name := range probes {
 			v, _ := nw.NodeVoltage(name, x[0])
 			pt.Probes = append(pt.Probes, v)
@@ -202,15 +222,6 @@ func sEntry(v complex128, ref []float64, i, j int) complex128 {
 		s--
 	}
 	return s
-}
-
-// setImpedances fills a point's input impedances from its S-matrix:
-// Z_i = R_i (1 + S_ii)/(1 - S_ii).
-func setImpedances(pt *Point, ref []float64) {
-	for i := range pt.InputImpedance {
-		sii := pt.S[i][i]
-		pt.InputImpedance[i] = complex(ref[i], 0) * (1 + sii) / (1 - sii)
-	}
 }
 
 // setGroupDelay sets the point's group delay -d(arg S)/dw of S_out,1 from

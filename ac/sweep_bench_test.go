@@ -80,3 +80,33 @@ func BenchmarkVolterraSweep(b *testing.B) {
 		})
 	}
 }
+
+// BenchmarkVolterraLadderSweep: the distortion estimate of the 150-unknown
+// diode ladder (benchLadder) at 100 frequencies from 10 MHz to 1 GHz, one
+// tone, as `distortion --sweep-frequency` makes it: each frequency alone
+// (Volterra: dense LUs at f, 2f and 3f) against VolterraSweep (one solver,
+// the reduction, for all 300 product frequencies).
+//
+//	go test -run '^$' -bench VolterraLadderSweep -benchtime 3x -count 3 ./ac/
+func BenchmarkVolterraLadderSweep(b *testing.B) {
+	nw := network(b, benchLadder(150))
+	freqs, _ := LogGrid(10e6, 1e9, 50)
+	d := Drive{Input: 0, Output: Output{Port: 1}, EMF: DBmToEMF(-30, 50)}
+	b.Run("each", func(b *testing.B) {
+		for b.Loop() {
+			for _, f := range freqs {
+				d.FrequencyHz = f
+				if _, err := Volterra(nw, d); err != nil {
+					b.Fatal(err)
+				}
+			}
+		}
+	})
+	b.Run("sweep", func(b *testing.B) {
+		for b.Loop() {
+			if err := VolterraSweep(nw, d, freqs, func(*Estimate) error { return nil }); err != nil {
+				b.Fatal(err)
+			}
+		}
+	})
+}

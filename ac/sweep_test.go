@@ -310,3 +310,28 @@ func demo(t *testing.T, name string) string {
 	}
 	return string(data)
 }
+
+// TestRunStats: Run says which engine solved the points: the LU for a
+// short sweep of the small detector demo, the reduction for a long sweep
+// of the 24-section ladder (a form that passed its accuracy check, so
+// none refused before it), every point counted once.
+func TestRunStats(t *testing.T) {
+	small := network(t, demo(t, "detector"))
+	freqs, _ := LogGrid(10e6, 6e9, 10)
+	r, err := Run(small, freqs, Settings{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if r.Stats.Engine != EngineLU || r.Stats.LU != len(freqs) || r.Stats.Reduced != 0 {
+		t.Errorf("detector: %+v; want the LU for all %d points", r.Stats, len(freqs))
+	}
+	big := network(t, benchLadder(75))
+	long, _ := LinearGrid(1e6, 1e9, 400)
+	r, err = Run(big, long, Settings{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if r.Stats.Engine == EngineLU || r.Stats.Reduced+r.Stats.LU != len(long) || len(r.Stats.Refused) != 0 {
+		t.Errorf("ladder: %+v; want a reduction over all %d points", r.Stats, len(long))
+	}
+}

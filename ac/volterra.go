@@ -32,6 +32,7 @@ type Product string
 // The products of the Volterra estimate.
 const (
 	DC      Product = "dc"       // rectified shift of the output's DC level
+	Gain3   Product = "gain3"    // third-order term at f1: compression or expansion, AM-to-PM
 	HD2     Product = "hd2"      // 2 f1
 	HD3     Product = "hd3"      // 3 f1
 	IM2Sum  Product = "im2_sum"  // f1 + f2
@@ -67,7 +68,15 @@ type Contribution struct {
 type Estimate struct {
 	Drive Drive
 
-	Fundamental complex128 // output at f1
+	// Linear is the first-order (small-signal) output at f1, and
+	// Fundamental the output at f1 to third order: Linear plus the
+	// third-order term of the first tone alone, which carries the gain
+	// compression (or expansion) and the AM-to-PM conversion. Products in
+	// dBc and the intercepts are taken relative to Linear, so that they
+	// follow the exact slopes of the weakly nonlinear range (HD2 1 dB/dB,
+	// HD3 and IM3 2 dB/dB relative).
+	Linear      complex128
+	Fundamental complex128
 	HD2, HD3    complex128 // output at 2 f1 and 3 f1
 	DCShift     float64    // change of the output's DC level, V
 
@@ -104,6 +113,16 @@ func (e *Estimate) Balanced(p Product) bool {
 	return false
 }
 
+// Clone returns a copy of the estimate that shares no storage with it, for
+// keeping an estimate a workspace or VolterraSweep will overwrite.
+func (e *Estimate) Clone() *Estimate {
+	c := *e
+	c.Contributions = append([]Contribution(nil), e.Contributions...)
+	c.Junctions = append([]complex128(nil), e.Junctions...)
+	c.balanced = append([]Product(nil), e.balanced...)
+	return &c
+}
+
 // OneTone returns the estimate as the first tone alone would give it: the
 // one-tone products of a two-tone estimate are the same numbers, so
 // nothing is solved again.
@@ -113,22 +132,99 @@ func (e *Estimate) OneTone() *Estimate {
 	one.SecondFundamental, one.IM2Sum, one.IM2Diff, one.IM3 = 0, 0, 0, 0
 	one.Contributions = nil
 	for _, c := range e.Contributions {
-		if c.Product == DC || c.Product == HD2 || c.Product == HD3 {
+		if c.Product == DC || c.Product == HD2 || c.Product == HD3 || c.Product == Gain3 {
 			one.Contributions = append(one.Contributions, c)
 		}
 	}
 	one.balanced = nil
 	for _, p := range e.balanced {
-		if p == DC || p == HD2 || p == HD3 {
+		if p == DC || p == HD2 || p == HD3 || p == Gain3 {
 			one.balanced = append(one.balanced, p)
 		}
 	}
 	return &one
 }
 
-// dBc returns 20 log10(|p| / |fundamental|).
+// dBc returns 20 log10(|p| / |Linear|).
 func (e *Estimate) dBc(p complex128) float64 {
-	return 20 * math.Log10(cmplx.Abs(p)/cmplx.Abs(e.Fundamental))
+	return 20 * math.Log10(cmplx.Abs(p)/cmplx.Abs(e.Linear))
+}
+
+// GainChangeDB returns the change of the gain at f1 that the third-order
+// term brings at this level, 20 log10(|Fundamental| / |Linear|) in dB:
+// negative for compression, positive for expansion.
+func (e *Estimate) GainChangeDB() float64 {
+	return 20 * math.Log10(cmplx.Abs(e.Fundamental)/cmplx.Abs(e.Linear))
+}
+
+// PhaseChangeDeg returns the phase the third-order term adds to the
+// output at f1 at this level, arg(Fundamental / Linear) in degrees.
+func (e *Estimate) PhaseChangeDeg() float64 {
+	return cmplx.Phase(e.Fundamental/e.Linear) * 180 / math.Pi
+}
+
+// series returns r = a3/a1, the ratio of the third-order to the
+// first-order coefficient of the output at f1 in powers of the EMF:
+// Fundamental = Linear (1 + r E²).
+func (e *Estimate) series() complex128 {
+	E := e.Drive.EMF
+	return (e.Fundamental - e.Linear) / (e.Linear * complex(E*E, 0))
+}
+
+// AMPMDegPerDB returns the AM-to-PM conversion of the third-order series
+// at this level: dφ/dP_in in degrees per dB, with φ = arg(1 + r E²) and
+// E² ∝ 10^(P_in/10), so dφ/dP = Im(r E² / (1 + r E²)) ln 10 / 10 (common
+// practice: the slope of the output phase against input power).
+func (e *Estimate) AMPMDegPerDB() float64 {
+	E := e.Drive.EMF
+	rs := e.series() * complex(E*E, 0)
+	return imag(rs/(1+rs)) * math.Ln10 / 10 * 180 / math.Pi
+}
+
+// GainStepDBm returns the available input power (dBm per tone) at which
+// the third-order series Linear·(1 + r E²) changes the gain at f1 by
+// stepDB, and whether that is a compression (true) or an expansion. It
+// solves |1 + r s| = 10^(∓stepDB/20) for the smallest s = E² > 0, trying
+// compression first: with t = 10^(-stepDB/10) - 1 the quadratic
+// |r|² s² + 2 Re(r) s - t = 0. It returns NaN when the series changes the
+// gain by less than stepDB at every level (r = 0). This is the estimate a
+// third-order model gives (for a memoryless cubic, 9.6 dB below IIP3:
+// common practice); above it the higher orders the series leaves out
+// matter, so set it beside the waveform's.
+func (e *Estimate) GainStepDBm(stepDB float64) (float64, bool) {
+	r := e.series()
+	r2 := real(r)*real(r) + imag(r)*imag(r)
+	if r2 == 0 || cmplx.IsNaN(r) || math.IsInf(r2, 0) {
+		return math.NaN(), false
+	}
+	smallest := func(target float64) float64 {
+		t := target - 1 // |1 + r s|² = target
+		// r2 s² + 2 Re(r) s - t = 0
+		b, c := 2*real(r), -t
+		disc := b*b - 4*r2*c
+		if disc < 0 {
+			return math.NaN()
+		}
+		sq := math.Sqrt(disc)
+		best := math.NaN()
+		for _, s := range []float64{(-b - sq) / (2 * r2), (-b + sq) / (2 * r2)} {
+			if s > 0 && (math.IsNaN(best) || s < best) {
+				best = s
+			}
+		}
+		return best
+	}
+	down := smallest(math.Pow(10, -stepDB/10))
+	up := smallest(math.Pow(10, stepDB/10))
+	compress := !math.IsNaN(down) && (math.IsNaN(up) || down <= up)
+	s := up
+	if compress {
+		s = down
+	}
+	if math.IsNaN(s) {
+		return math.NaN(), false
+	}
+	return EMFToDBm(math.Sqrt(s), e.inputZ0), compress
 }
 
 // HD2dBc returns the second harmonic relative to the fundamental, in dB.
@@ -147,13 +243,14 @@ func (e *Estimate) IM3dBc() float64 { return e.dBc(e.IM3) }
 // E²/(8 Z0), in dBm.
 func (e *Estimate) InputDBm() float64 { return EMFToDBm(e.Drive.EMF, e.inputZ0) }
 
-// OutputDBm returns the fundamental's power into the output port's
-// reference impedance, |V|²/(2 Z0), in dBm, and false for a bare node.
+// OutputDBm returns the small-signal fundamental's power into the output
+// port's reference impedance, |Linear|²/(2 Z0), in dBm, and false for a
+// bare node.
 func (e *Estimate) OutputDBm() (float64, bool) {
 	if e.outputZ0 == 0 {
 		return 0, false
 	}
-	a := cmplx.Abs(e.Fundamental)
+	a := cmplx.Abs(e.Linear)
 	return 10 * math.Log10(a*a/(2*e.outputZ0)*1e3), true
 }
 
@@ -173,14 +270,19 @@ func (e *Estimate) OIP3dBm() (float64, bool) {
 // product, P_in - IM2dBc.
 func (e *Estimate) IIP2dBm() float64 { return e.InputDBm() - e.IM2dBc() }
 
+// AvailablePower returns the power a generator of EMF amplitude emf (peak
+// volts) behind a real z0 delivers into a matched load, E²/(8 z0) in
+// watts: half the EMF across the load, |E/2|²/(2 z0) (common practice).
+func AvailablePower(emf, z0 float64) float64 { return emf * emf / (8 * z0) }
+
 // EMFToDBm converts a generator EMF amplitude behind z0 to its available
-// power E²/(8 z0) in dBm.
+// power AvailablePower in dBm.
 func EMFToDBm(emf, z0 float64) float64 {
-	return 10 * math.Log10(emf*emf/(8*z0)*1e3)
+	return 10 * math.Log10(AvailablePower(emf, z0)*1e3)
 }
 
 // DBmToEMF converts available power in dBm behind z0 to the generator's
-// EMF amplitude, E = sqrt(8 z0 P).
+// EMF amplitude, E = sqrt(8 z0 P), the inverse of EMFToDBm.
 func DBmToEMF(dbm, z0 float64) float64 {
 	return math.Sqrt(8 * z0 * math.Pow(10, dbm/10) * 1e-3)
 }
@@ -201,9 +303,15 @@ type volterra struct {
 func (v *volterra) solveAt(w float64, b []complex128) ([]complex128, error) {
 	var f solver = v.sys
 	if w == 0 {
-		dc := v.ws.dcSolver(v.nw)
-		if err := dc.f.factor(); err != nil {
-			return nil, fmt.Errorf("at %g Hz: %w", w/(2*math.Pi), err)
+		// Within one VolterraSweep the network's DC matrix stays the
+		// same: it is factored once.
+		dc := &v.ws.dc
+		if !v.ws.dcFactored {
+			dc = v.ws.dcSolver(v.nw)
+			if err := dc.f.factor(); err != nil {
+				return nil, fmt.Errorf("at %g Hz: %w", w/(2*math.Pi), err)
+			}
+			v.ws.dcFactored = v.ws.keepDC
 		}
 		f = dc
 	} else if err := f.at(w); err != nil {
@@ -305,6 +413,11 @@ func (v *volterra) output(x []complex128) complex128 {
 //
 //	at 2w:  (g2 + j2w c2) v_1²/2        at DC: g2 |v_1|²/2
 //	at 3w:  (g3 + j3w c3) v_1³/4 + (g2 + j3w c2) v_1 v_2
+//	at w:   (3/4)(g3 + jw c3) |v_1|² v_1 + (g2 + jw c2)(2 v_0 v_1 + v_1* v_2)
+//
+// where v_0 and v_2 are the junction's own DC shift and second-harmonic
+// phasor; the last is the third-order term of the fundamental (gain
+// compression or expansion and AM-to-PM).
 //
 // and with a second tone v_b at w2: (g2 + j w_s c2) v_a v_b at w1 + w2,
 // (g2 + j w_d c2) v_a v_b* at w1 - w2, and at 2w1 - w2
@@ -325,32 +438,96 @@ func (ws *Workspace) Volterra(nw *smallsignal.Network, d Drive) (*Estimate, erro
 	return ws.volterraOn(nw, d, engineAuto)
 }
 
+// productFrequencies appends the frequencies at which an estimate of d
+// solves Y(jw): f1, 2 f1, 3 f1 and, with a second tone, f2, f1 + f2,
+// f1 - f2 and 2 f1 - f2.
+func productFrequencies(dst []float64, d Drive) []float64 {
+	dst = append(dst, d.FrequencyHz, 2*d.FrequencyHz, 3*d.FrequencyHz)
+	if d.SecondToneHz != 0 {
+		f1, f2 := d.FrequencyHz, d.SecondToneHz
+		dst = append(dst, f2, f1+f2, f1-f2, 2*f1-f2)
+	}
+	return dst
+}
+
+// VolterraSweep estimates distortion at each frequency of freqsHz: the
+// drive d with its first tone moved there (and a second tone, if any,
+// kept at the same offset from it). All the estimates share one solver
+// for Y(jw) over every product frequency, so a long sweep of a larger
+// network runs on the reduced engine (O(n²) a frequency) as Sweep and
+// Noise do, instead of dense LUs per product. visit receives each
+// estimate in turn; the estimate is overwritten by the next, so visit
+// copies what it keeps.
+func VolterraSweep(nw *smallsignal.Network, d Drive, freqsHz []float64, visit func(*Estimate) error) error {
+	return new(Workspace).volterraSweep(nw, d, freqsHz, visit, engineAuto)
+}
+
+func (ws *Workspace) volterraSweep(nw *smallsignal.Network, d Drive, freqsHz []float64, visit func(*Estimate) error, choice engine) error {
+	offset := d.SecondToneHz - d.FrequencyHz
+	drive := func(f float64) Drive {
+		x := d
+		x.FrequencyHz = f
+		if d.SecondToneHz != 0 {
+			x.SecondToneHz = f + offset
+		}
+		return x
+	}
+	var all []float64
+	for _, f := range freqsHz {
+		all = productFrequencies(all, drive(f))
+	}
+	sys := newSolver(nw, all, choice)
+	ws.keepDC, ws.dcFactored = true, false
+	defer func() { ws.keepDC, ws.dcFactored = false, false }()
+	for _, f := range freqsHz {
+		e, err := ws.volterraWith(nw, drive(f), sys)
+		if err != nil {
+			return err
+		}
+		if err := visit(e); err != nil {
+			return err
+		}
+	}
+	return nil
+}
+
 func (ws *Workspace) volterraOn(nw *smallsignal.Network, d Drive, choice engine) (*Estimate, error) {
+	if err := checkDrive(nw, d); err != nil {
+		return nil, err
+	}
+	// Y(jw) is solved at the products' frequencies: a few points, where
+	// the LU is usually cheaper than a reduction (newSolver decides).
+	ws.frequencies = productFrequencies(ws.frequencies[:0], d)
+	return ws.volterraWith(nw, d, ws.estimateSolver(nw, ws.frequencies, choice))
+}
+
+// checkDrive refuses a drive the estimate cannot take.
+func checkDrive(nw *smallsignal.Network, d Drive) error {
 	if d.Input < 0 || d.Input >= len(nw.Ports) {
-		return nil, fmt.Errorf("input port %d: the circuit has %d ports", d.Input+1, len(nw.Ports))
+		return fmt.Errorf("input port %d: the circuit has %d ports", d.Input+1, len(nw.Ports))
 	}
 	if err := CheckFrequency(d.FrequencyHz); err != nil {
-		return nil, err
+		return err
 	}
 	if d.SecondToneHz != 0 {
 		if err := CheckFrequency(d.SecondToneHz); err != nil {
-			return nil, err
+			return err
 		}
 		if d.SecondToneHz == d.FrequencyHz {
-			return nil, fmt.Errorf("the second tone must differ from the first (both %g Hz)", d.FrequencyHz)
+			return fmt.Errorf("the second tone must differ from the first (both %g Hz)", d.FrequencyHz)
 		}
 	}
-	// Y(jw) is solved at f1, 2 f1, 3 f1 and, with a second tone, at f2,
-	// f1 + f2, f1 - f2 and 2 f1 - f2: a few points, where the LU is
-	// usually cheaper than a reduction (newSolver decides).
-	freqs := append(ws.frequencies[:0], d.FrequencyHz, 2*d.FrequencyHz, 3*d.FrequencyHz)
-	if d.SecondToneHz != 0 {
-		f1, f2 := d.FrequencyHz, d.SecondToneHz
-		freqs = append(freqs, f2, f1+f2, f1-f2, 2*f1-f2)
+	return nil
+}
+
+// volterraWith makes the estimate with sys solving Y(jw) at its products'
+// frequencies.
+func (ws *Workspace) volterraWith(nw *smallsignal.Network, d Drive, sys solver) (*Estimate, error) {
+	if err := checkDrive(nw, d); err != nil {
+		return nil, err
 	}
-	ws.frequencies = freqs
 	v := &ws.volterra
-	*v = volterra{nw: nw, n: nw.N, out: vector(v.out, nw.N), adjoint: v.adjoint, sys: ws.estimateSolver(nw, freqs, choice), ws: ws}
+	*v = volterra{nw: nw, n: nw.N, out: vector(v.out, nw.N), adjoint: v.adjoint, sys: sys, ws: ws}
 	if ws.estimate == nil {
 		ws.estimate = new(Estimate)
 	}
@@ -401,7 +578,8 @@ func (ws *Workspace) volterraOn(nw *smallsignal.Network, d Drive, choice engine)
 		return nil, err
 	}
 	ws.firstA = va
-	est.Fundamental = v.output(x1) * e
+	est.Linear = v.output(x1) * e
+	est.Fundamental = est.Linear
 	for _, vk := range va {
 		est.Junctions = append(est.Junctions, vk*e)
 	}
@@ -415,11 +593,16 @@ func (ws *Workspace) volterraOn(nw *smallsignal.Network, d Drive, choice engine)
 		cur[k] = complex(coef(k).G2*sqAbs(va[k])/2, 0)
 		chg[k] = 0
 	}
-	_, dc, err := v.product(DC, 0, cur, chg, e*e, est)
+	x0, dc, err := v.product(DC, 0, cur, chg, e*e, est)
 	if err != nil {
 		return nil, err
 	}
 	est.DCShift = real(dc)
+	v0 := vector(ws.shift, nd)
+	ws.shift = v0
+	for k := range v0 {
+		v0[k] = v.junction(k, x0)
+	}
 
 	// Second harmonic.
 	for k := range cur {
@@ -447,6 +630,21 @@ func (ws *Workspace) volterraOn(nw *smallsignal.Network, d Drive, choice engine)
 	if _, est.HD3, err = v.product(HD3, 3*w1, cur, chg, e*e*e, est); err != nil {
 		return nil, err
 	}
+
+	// Third order at the fundamental: the cubic terms' (3/4)|v1|² v1 and
+	// the second-order terms mixing v1 with the junction's own DC shift
+	// and second harmonic, 2 v0 v1 + v1* v2.
+	for k := range cur {
+		cube := 0.75 * complex(sqAbs(va[k]), 0) * va[k]
+		cross := 2*v0[k]*va[k] + cmplx.Conj(va[k])*v2[k]
+		cur[k] = complex(coef(k).G3, 0)*cube + complex(coef(k).G2, 0)*cross
+		chg[k] = complex(coef(k).C3, 0)*cube + complex(coef(k).C2, 0)*cross
+	}
+	_, third, err := v.product(Gain3, w1, cur, chg, e*e*e, est)
+	if err != nil {
+		return nil, err
+	}
+	est.Fundamental = est.Linear + third
 
 	if d.SecondToneHz == 0 {
 		return est, nil

@@ -35,9 +35,9 @@ func TestVolterraExponentialLimits(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		hd2 := cmplx.Abs(est.HD2) / cmplx.Abs(est.Fundamental)
-		hd3 := cmplx.Abs(est.HD3) / cmplx.Abs(est.Fundamental)
-		im3 := cmplx.Abs(est.IM3) / cmplx.Abs(est.Fundamental)
+		hd2 := cmplx.Abs(est.HD2) / cmplx.Abs(est.Linear)
+		hd3 := cmplx.Abs(est.HD3) / cmplx.Abs(est.Linear)
+		im3 := cmplx.Abs(est.IM3) / cmplx.Abs(est.Linear)
 		// The 1 µΩ parts perturb the junction voltage by about g·1µΩ ≈ 2e-5.
 		if math.Abs(hd2/(x/4)-1) > 1e-4 || math.Abs(hd3/(x*x/24)-1) > 1e-4 || math.Abs(im3/(x*x/8)-1) > 1e-4 {
 			t.Errorf("x = %g: HD2 = %g (x/4 = %g), HD3 = %g (x²/24 = %g), IM3 = %g (x²/8 = %g)", x, hd2, x/4, hd3, x*x/24, im3, x*x/8)

@@ -39,7 +39,13 @@ type Workspace struct {
 	firstA      []complex128 // per diode: first-order junction phasor at f1
 	firstB      []complex128 // and at f2
 	second      []complex128 // second harmonic junction phasor
-	parts       []Contribution
+	shift       []complex128 // DC shift of the junction voltage
+	stats       Stats        // how the last Sweep ran
+	// keepDC is set during a VolterraSweep, whose estimates share one
+	// network: the DC factorisation made for the first is kept
+	// (dcFactored) for the rest.
+	keepDC, dcFactored bool
+	parts              []Contribution
 }
 
 // ReservePoints makes one allocation for the next Sweep's points: room for

@@ -127,7 +127,16 @@ func (s *system) newton(st *state, lambda, gmin float64, maxIter int, w *scratch
 			// own small conductance. Once the updates stall below
 			// stallTol and KCL holds, the iterate is as good as float64
 			// allows.
-			stalled := final && worst <= stallTol/relTol && worst > prevWorst/4
+			//
+			// A node held only by the picosiemens of junctions beside
+			// the siemens of a series resistance stalls far above
+			// stallTol: its voltage moves by the resistance's rounding
+			// over the junctions' conductance. Such an iterate is as
+			// good as float64 allows when every node balances to the
+			// rounding floor and 1e-9 of its currents alone, without
+			// the absolute 1e-12 A that would let a leakage node sit
+			// anywhere.
+			stalled := final && worst > prevWorst/4 && (worst <= stallTol/relTol || s.roundingLimited(st.x, w))
 			prevWorst = worst
 			if !stalled {
 				continue
@@ -190,6 +199,19 @@ func (s *system) kclRatio(x []float64, w *scratch) (ratio, worst float64) {
 		ratio = math.Max(ratio, math.Abs(w.r[i])/tol)
 	}
 	return ratio, worst
+}
+
+// roundingLimited reports whether every node's residual at x is within
+// 1e-9 of the current magnitudes there plus the rounding floor of its
+// currents, with no absolute allowance.
+func (s *system) roundingLimited(x []float64, w *scratch) bool {
+	s.residual(x, w.r, w.scale, w.floor)
+	for i := 0; i < s.nNodes; i++ {
+		if !(math.Abs(w.r[i]) <= kclRelTol*w.scale[i]+w.floor[i]) {
+			return false
+		}
+	}
+	return true
 }
 
 // conductanceStepping solves with a large gmin and steps it down to zero,

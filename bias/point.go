@@ -14,7 +14,7 @@ type Point struct {
 	Nodes        []Node   // every named node but ground, in file order
 	Sources      []Source // voltage and current sources, in file order
 	Inductors    []Source // DC current of each inductor, in file order
-	Diodes       []Diode  // in file order
+	Diodes       []QPoint // in file order
 	Warnings     []Warning
 	Stats        Stats
 
@@ -39,8 +39,8 @@ type Source struct {
 	Current float64 // A
 }
 
-// Diode is a diode's Q point.
-type Diode struct {
+// QPoint is a diode's Q point.
+type QPoint struct {
 	Name   string
 	Model  string
 	Device *diode.Device // the model at the point's temperature
@@ -68,6 +68,10 @@ type Diode struct {
 	// ideal junction's saturation current: the junction is in reverse
 	// breakdown.
 	InBreakdown bool
+
+	// share is g_d Z for a junction carrying more than forcedCurrent (NaN
+	// otherwise): see currentShare.
+	share float64
 }
 
 // Voltage returns the voltage of the named node, 0 for ground, and whether
@@ -122,30 +126,50 @@ func (s *system) point(st *state, p *Point) {
 		p.Sources = append(p.Sources, Source{Name: part.Name, Kind: part.Kind, Current: -i.value})
 	}
 
+	var shareBuf []float64
 	for _, j := range s.junctions {
 		part := c.Parts[j.part]
 		junction := volt(st.x, j.internal) - volt(st.x, j.cathode)
 		vt := volt(st.x, j.anode) - volt(st.x, j.cathode)
 		i := j.dev.Current(junction)
-		d := Diode{
+		current := i.Value
+		if j.internal != j.anode {
+			// Both the junction law at the junction voltage and the
+			// series resistance's g·(v_a - v_i) give the diode's current;
+			// each is known to the rounding of its voltage difference
+			// times its conductance. Report the better known.
+			va, vi, vk := volt(st.x, j.anode), volt(st.x, j.internal), volt(st.x, j.cathode)
+			gs := 1 / j.dev.Params.SeriesResistance
+			if gs*(abs(va)+abs(vi)) < i.D1*(abs(vi)+abs(vk)) {
+				current = (va - vi) * gs
+			}
+		}
+		d := QPoint{
 			Name:                 part.Name,
 			Model:                part.Model,
 			Device:               j.dev,
 			Voltage:              vt,
 			JunctionVoltage:      junction,
-			Current:              i.Value,
+			Current:              current,
 			Conductance:          i.D1,
 			DynamicResistance:    1 / i.D1,
 			JunctionCapacitance:  j.dev.DepletionCharge(junction).D1,
 			DiffusionCapacitance: j.dev.DiffusionCharge(junction).D1,
-			Power:                vt * i.Value,
+			Power:                vt * current,
 		}
 		if i.D1 == 0 {
 			d.DynamicResistance = math.Inf(1)
 		}
 		d.InBreakdown = -j.dev.BreakdownCurrent(junction).Value > j.dev.SaturationCurrent
+		d.share = math.NaN()
+		if d.Current > forcedCurrent && s.mat != nil {
+			if shareBuf == nil {
+				shareBuf = make([]float64, s.n)
+			}
+			d.share = s.currentShare(j, i.D1, shareBuf)
+		}
 		r := j.dev.Params.Ratings
-		d.CurrentFraction = fraction(math.Max(i.Value, 0), r.MaxCurrent)
+		d.CurrentFraction = fraction(math.Max(current, 0), r.MaxCurrent)
 		d.ReverseVoltageFraction = fraction(math.Max(-vt, 0), r.MaxReverseVoltage)
 		d.PowerFraction = fraction(d.Power, r.MaxPower)
 		p.Diodes = append(p.Diodes, d)
@@ -158,4 +182,19 @@ func fraction(v, rating float64) float64 {
 		return math.NaN()
 	}
 	return v / rating
+}
+
+// currentShare returns the fraction g_d / (g_d + G_c) of a small current
+// injected across the junction that the junction itself takes, where G_c
+// is the conductance the rest of the circuit (series resistance included)
+// presents to it: g_d Z with Z the impedance across the junction from the
+// Newton matrix's factors. Near 1 the circuit feeds the junction a current
+// (a resistance sets it); near 0 the circuit holds the junction's voltage
+// and its current follows the exponential alone.
+func (s *system) currentShare(j junction, g float64, b []float64) float64 {
+	clear(b)
+	addRHS(b, j.internal, 1)
+	addRHS(b, j.cathode, -1)
+	s.mat.Solve(b)
+	return g * (volt(b, j.internal) - volt(b, j.cathode))
 }

@@ -177,9 +177,6 @@ func TestRandomCircuitFiles(t *testing.T) {
 	t.Logf("%d random networks in %v; strategies that converged: %v", count, time.Since(begin), strategies)
 }
 
-// eps is the float64 machine epsilon.
-const eps = 0x1p-52
-
 // checkKCLFloor recomputes, from the reported point alone, the current
 // balance at every node, and at every diode's internal node (the current
 // in R_S against the junction's), and fails the test where it exceeds
@@ -226,7 +223,7 @@ func checkCurrents(t *testing.T, c *circuit.Circuit, p *Point, withFloor bool) {
 	for _, s := range append(append([]Source(nil), p.Sources...), p.Inductors...) {
 		current[s.Name] = s.Current
 	}
-	diodes := map[string]Diode{}
+	diodes := map[string]QPoint{}
 	for _, d := range p.Diodes {
 		diodes[d.Name] = d
 	}

@@ -13,6 +13,12 @@ import (
 type Failure struct {
 	Circuit  string
 	Attempts []Attempt
+	// JunctionOnly lists the nodes whose every DC connection is a diode
+	// terminal. Between reverse-biased junctions such a node is held only
+	// by leakage currents e^(-|v|/nV_T) below I_S, and with series
+	// resistances beside them those balances fall below the rounding of
+	// the resistances' currents: float64 cannot place the node.
+	JunctionOnly []string
 }
 
 func (f *Failure) Error() string {
@@ -25,6 +31,21 @@ func (f *Failure) Error() string {
 		}
 		fmt.Fprintf(&b, "%s %s (%d iterations: %v)", sep, a.Strategy, a.Iterations, a.Err)
 	}
+	if n := len(f.JunctionOnly); n > 0 {
+		list := f.JunctionOnly
+		if n > 8 {
+			list = list[:8]
+		}
+		subject, verb, its := "node", "connects", "its voltage rests"
+		if n > 1 {
+			subject, verb, its = "nodes", "connect", "their voltages rest"
+		}
+		fmt.Fprintf(&b, "; %s %s %s only to junctions: where those are reverse biased %s on leakage balances below the rounding of the currents beside them, which float64 cannot resolve; add a resistance that sets each (1 GΩ to gnd or a neighbour changes the currents by no more than the node's voltage over 1 GΩ)",
+			subject, strings.Join(quoteAll(list), ", "), verb, its)
+		if n > 8 {
+			fmt.Fprintf(&b, " (and %d more)", n-8)
+		}
+	}
 	return b.String()
 }
 
@@ -36,8 +57,10 @@ func (f *Failure) Error() string {
 // KCL at every node to 1e-12 A + 1e-9 × (sum of current magnitudes at the
 // node) and has node voltages converged to 1e-9 relative, or, where the
 // rounding of large currents keeps the updates from shrinking that far,
-// until they stall below 1e-6 relative. When every strategy fails the
-// error is a *Failure.
+// until they stall below 1e-6 relative. A strategy's point counts only
+// when the values it reports pass an independent check of KCL (verify);
+// a point that converged but fails it is recorded as that attempt's
+// error. When every strategy fails the error is a *Failure.
 func Solve(c *circuit.Circuit, s Settings) (*Point, error) {
 	return new(Workspace).Solve(c, s)
 }
@@ -115,20 +138,63 @@ func (ws *Workspace) Solve(c *circuit.Circuit, s Settings) (*Point, error) {
 		if err != nil {
 			continue
 		}
-		stats.Strategy = strategy
-		stats.ResidualRatio, stats.Residual = sys.kclRatio(st.x, w)
 		if ws.point == nil {
 			ws.point = new(Point)
 		}
 		p := ws.point
 		// The point takes the attempts' storage, the workspace the
 		// point's old list for the next call.
-		ws.attempts = p.Stats.Attempts[:0]
+		old := p.Stats.Attempts[:0]
 		sys.point(st, p)
+		// Converged on its own terms is not enough: the point as
+		// reported must pass an independent check of KCL.
+		if err := sys.verify(p); err != nil {
+			stats.Attempts[len(stats.Attempts)-1].Err = err
+			continue
+		}
+		stats.Strategy = strategy
+		stats.ResidualRatio, stats.Residual = sys.kclRatio(st.x, w)
+		ws.attempts = old
 		stats.Runtime = time.Since(begin)
 		p.Stats = stats
 		return p, nil
 	}
 	ws.attempts = nil // the error keeps the list
-	return nil, &Failure{Circuit: c.File, Attempts: stats.Attempts}
+	return nil, &Failure{Circuit: c.File, Attempts: stats.Attempts, JunctionOnly: junctionOnly(c)}
+}
+
+// junctionOnly returns the named nodes whose every DC connection is a
+// diode terminal.
+func junctionOnly(c *circuit.Circuit) []string {
+	other := map[string]bool{}
+	touched := map[string]bool{}
+	for _, p := range c.Parts {
+		for _, n := range p.Nodes {
+			touched[n] = true
+			if p.Kind != circuit.Diode && p.Kind != circuit.Capacitor {
+				other[n] = true
+			}
+		}
+	}
+	for _, p := range c.Ports {
+		if !p.ACCoupled {
+			other[p.Node] = true
+			other[p.Return] = true
+		}
+	}
+	var nodes []string
+	for _, n := range c.Nodes {
+		if touched[n] && !other[n] {
+			nodes = append(nodes, n)
+		}
+	}
+	return nodes
+}
+
+func quoteAll(s []string) []string {
+	q := make([]string, len(s))
+	for i, x := range s {
+		q[i] = "`" + x + "`"
+	}
+	return q
 }

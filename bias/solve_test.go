@@ -10,53 +10,15 @@ import (
 	"qpoint/bias/diode"
 )
 
-// lambertW returns the principal branch W(z) for z = exp(logZ) > 0, by
-// Halley's iteration on f(w) = w + ln w - ln z, which stays finite for the
-// enormous arguments of a diode at 100 V (Corless et al., "On the Lambert W
-// function", Adv. Comput. Math. 5, 1996, for W and its properties).
-func lambertW(logZ float64) float64 {
-	w := 1.0
-	if logZ > 1 {
-		w = logZ - math.Log(logZ)
-	} else if logZ < -1 {
-		w = math.Exp(logZ)
-	}
-	for i := 0; i < 100; i++ {
-		f := w + math.Log(w) - logZ
-		d1 := 1 + 1/w
-		d2 := -1 / (w * w)
-		step := 2 * f * d1 / (2*d1*d1 - f*d2)
-		next := w - step
-		if next <= 0 {
-			next = w / 2
-		}
-		if math.Abs(next-w) <= 1e-16*math.Abs(w) {
-			return next
-		}
-		w = next
-	}
-	return w
-}
-
-func TestLambertWOmega(t *testing.T) {
-	// W(1) = Ω = 0.5671432904097838 (the omega constant; Corless et al. 1996).
-	if got := lambertW(0); math.Abs(got-0.5671432904097838) > 1e-15 {
-		t.Errorf("W(1) = %.17g, want the omega constant 0.5671432904097838", got)
-	}
-	// W(x e^x) = x, the defining identity.
-	for _, x := range []float64{1e-6, 0.3, 2, 50, 3000} {
-		if got := lambertW(math.Log(x) + x); math.Abs(got-x) > 1e-14*x {
-			t.Errorf("W(%g e^%g) = %.17g, want %g", x, x, got, x)
-		}
-	}
-}
-
 // TestSeriesResistorClosedForm checks the solver against the exact current
 // of a diode in series with a resistor (Banwell and Jayakumar, "Exact
 // analytical solution for current flow through diode with series
 // resistance", Electronics Letters 36(4), 2000):
 //
 //	I = (n V_T / R) W((I_S R / (n V_T)) exp((V + I_S R) / (n V_T))) - I_S
+//
+// as diode.TerminalCurrent evaluates it (W checked there on the omega
+// constant, Corless et al. 1996).
 func TestSeriesResistorClosedForm(t *testing.T) {
 	cases := []struct {
 		is, n, r, v float64
@@ -87,12 +49,12 @@ func TestSeriesResistorClosedForm(t *testing.T) {
 				if err != nil {
 					t.Fatal(err)
 				}
-				nvt := c.n * diode.ThermalVoltage(300.15)
-				logZ := math.Log(c.is*c.r/nvt) + (c.v+c.is*c.r)/nvt
-				want := nvt/c.r*lambertW(logZ) - c.is
+				q := *p
+				q.SeriesResistance = c.r
+				want, _ := diode.New(q, 300.15).TerminalCurrent(c.v)
 				got := pt.Diodes[0].Current
-				if rel := math.Abs(got-want) / want; rel > 1e-9 {
-					t.Errorf("current %.12g A, Lambert W closed form %.12g A (relative error %.2g, want < 1e-9)", got, want, rel)
+				if rel := math.Abs(got-want) / want; rel > 1e-12 {
+					t.Errorf("current %.15g A, Lambert W closed form %.15g A (relative error %.2g, want < 1e-12)", got, want, rel)
 				}
 				checkKCL(t, nt.c, pt)
 			})
@@ -340,4 +302,89 @@ func TestRandomNetworks(t *testing.T) {
 		}
 	}
 	t.Logf("strategies that converged: %v", strategies)
+}
+
+// TestColdJunctionClosedForm: a silicon junction (I_S = 1e-14 A at 27 °C,
+// E_g = 1.11 eV, p = 3, n = 1) fed from 2 V through 1 kΩ, far below room
+// temperature. At 40 K the junction needs an exponent near 310 and at 10 K
+// near 1280, and I_S(T) itself underflows a float64 at 10 K (about
+// e^-1287 A). The expected point is the Lambert W closed form of Banwell
+// and Jayakumar (Electronics Letters 36(4), 2000), taken in logarithmic
+// form with ln I_S(T) from the temperature law of Gray, Hurst, Lewis,
+// Meyer (5th ed., 2009, ch. 1) written out here:
+//
+//	ln I_S(T) = ln I_S(T0) + (p/n) ln(T/T0) + (q E_g/(n k)) (1/T0 - 1/T)
+//	I = (n V_T/R) W(exp(ln I_S + ln(R/(n V_T)) + V/(n V_T))) - I_S
+//
+// This reproduces the 1.0700 V (40 K) and 1.1035 V (10 K) quoted in
+// issue 13.
+func TestColdJunctionClosedForm(t *testing.T) {
+	const (
+		is0, gap, p, t0 = 1e-14, 1.11, 3.0, 300.15
+		supply, r       = 2.0, 1e3
+		k, q            = 1.380649e-23, 1.602176634e-19 // BIPM 2019, exact
+	)
+	cases := []struct {
+		tempK, volts float64 // volts: the issue's figure, four places
+	}{
+		{77, 0},
+		{40, 1.0700},
+		{10, 1.1035},
+		{4, 0},
+	}
+	for _, c := range cases {
+		t.Run(fmt.Sprintf("%gK", c.tempK), func(t *testing.T) {
+			nt := newNet("cold")
+			m := nt.model("si", is0, 1)
+			m.GapEnergy, m.SaturationExponent, m.MeasuredAtK = gap, p, t0
+			nt.V("Vs", "in", circuit.Ground, supply)
+			nt.R("R1", "in", "a", r).D("D1", "a", circuit.Ground, "si")
+			pt, err := Solve(nt.c, Settings{TemperatureK: c.tempK})
+			if err != nil {
+				t.Fatal(err)
+			}
+			nvt := k * c.tempK / q
+			logIS := math.Log(is0) + p*math.Log(c.tempK/t0) + q*gap/k*(1/t0-1/c.tempK)
+			want := nvt/r*lambertW(logIS+math.Log(r/nvt)+supply/nvt) - math.Exp(logIS)
+			d := pt.Diodes[0]
+			if rel := math.Abs(d.Current-want) / want; rel > 1e-9 {
+				t.Errorf("current %.12g A, closed form %.12g A (relative error %.2g, want < 1e-9)", d.Current, want, rel)
+			}
+			wantV := supply - want*r
+			if math.Abs(d.Voltage-wantV) > 1e-9 {
+				t.Errorf("diode voltage %.9f V, closed form %.9f V", d.Voltage, wantV)
+			}
+			if c.volts != 0 && math.Abs(wantV-c.volts) > 0.5e-4 {
+				t.Errorf("closed form gives %.5f V, the issue quotes %.4f V", wantV, c.volts)
+			}
+			checkKCL(t, nt.c, pt)
+			t.Logf("%g K: ln I_S = %.2f, V_D = %.6f V, I = %.6g A by %s", c.tempK, logIS, wantV, want, pt.Stats.Strategy)
+		})
+	}
+}
+
+// lambertW returns W(z) for z = e^logZ > 0, taking the logarithm so that
+// arguments far beyond float64 (e^300) are fine: it solves
+// w + ln w = logZ by Newton's method (Corless et al., "On the Lambert W
+// function", 1996, for the principal branch on z > 0). This test copy is
+// independent of the library's.
+func lambertW(logZ float64) float64 {
+	w := math.Exp(logZ) // small z: W(z) ≈ z
+	if logZ > 1 {
+		w = logZ - math.Log(logZ)
+	} else if logZ > -2 {
+		w = 0.5
+	}
+	for i := 0; i < 100; i++ {
+		f := w + math.Log(w) - logZ
+		next := w - f/(1+1/w) // Newton on w + ln w
+		if next <= 0 {
+			next = w / 2
+		}
+		if math.Abs(next-w) <= 1e-16*w {
+			return next
+		}
+		w = next
+	}
+	return w
 }

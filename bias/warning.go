@@ -2,7 +2,9 @@ package bias
 
 import (
 	"fmt"
+	"math"
 
+	"qpoint/bias/diode"
 	"qpoint/bias/si"
 )
 
@@ -28,10 +30,16 @@ const (
 	LeakageDominated
 	// Model: the model had to be adjusted at this temperature.
 	Model
-	// Overdriven: the circuit forces a forward voltage across the junction
-	// with nothing to limit its current, so the result lies where the
-	// exponential law has no physical meaning.
+	// Overdriven: the junction's forward current is set by the
+	// exponential law alone, because the circuit holds its voltage with
+	// nothing to limit the current, and that current is more than a
+	// milliampere; or it carries more than 10 A whatever sets it; or its
+	// voltage lies beyond where the law implies diode.MaxLawCurrent.
 	Overdriven
+	// Wiring: the circuit file's own warning (circuit.Warning), carried
+	// with the point: a node that looks like gnd, a node with one
+	// terminal. The message starts with FILE:LINE:COL.
+	Wiring
 )
 
 // String names the kind as JSON and tables print it.
@@ -47,14 +55,23 @@ func (k WarningKind) String() string {
 		return "model"
 	case Overdriven:
 		return "overdriven"
+	case Wiring:
+		return "wiring"
 	}
 	return "unknown"
 }
 
-// overdriveArg is the forward bias, in units of n V_T, beyond which a
-// junction's current (at least e^60 I_S, 1e8 A even at I_S = 1e-18 A) is
-// not a physical result.
-const overdriveArg = 60
+// forcedCurrent is the forward current above which a junction whose
+// voltage the circuit holds (its current set by the exponential alone, so
+// that 10 mV more at room temperature is half as much current again) gets
+// a caution, and hugeCurrent the current no junction of a detector, mixer,
+// attenuator or limiter carries, whatever sets it (common practice: small-
+// signal and RF junctions are rated in milliamperes to an ampere).
+const (
+	forcedCurrent = 1e-3 // A
+	hugeCurrent   = 10   // A
+	forcedShare   = 0.1  // below it the circuit holds the junction's voltage (R_c < r_d/9)
+)
 
 func cautions(p *Point) []Warning {
 	var w []Warning
@@ -77,9 +94,16 @@ func cautions(p *Point) []Warning {
 			add(d.Name, RatingExceeded, "dissipation %s exceeds the %s rating (%.0f%%)",
 				si.Format(d.Power, "W", 3), si.Format(r.MaxPower, "W", 3), 100*d.PowerFraction)
 		}
-		if d.JunctionVoltage > overdriveArg*dev.NVT() {
-			add(d.Name, Overdriven, "junction forced to %s with nothing to limit its current (%s): no real part survives this; add the resistance that sets the current",
-				si.Format(d.JunctionVoltage, "V", 3), si.Format(d.Current, "A", 3))
+		switch {
+		case dev.OnTangent(d.JunctionVoltage):
+			add(d.Name, Overdriven, "junction forced to %s, where its law would carry more than %s: nothing limits its current, and the figures for it describe no real part; add the resistance that sets the current",
+				si.Format(d.JunctionVoltage, "V", 3), si.Format(diode.MaxLawCurrent, "A", 1))
+		case d.share < forcedShare:
+			add(d.Name, Overdriven, "junction forced to %s with nothing to limit its current (%s, set by the exponential alone: %s more would multiply it by %.3g); add the resistance that sets the current",
+				si.Format(d.JunctionVoltage, "V", 3), si.Format(d.Current, "A", 3), si.Format(10e-3, "V", 2), math.Exp(10e-3/dev.NVT()))
+		case d.Current > hugeCurrent && !(d.CurrentFraction > 1):
+			add(d.Name, Overdriven, "forward current %s: more than any detector, mixer or limiter junction carries; check the values that set it",
+				si.Format(d.Current, "A", 3))
 		}
 		kneeVoltage := dev.Params.BreakdownVoltage
 		switch {
@@ -99,6 +123,9 @@ func cautions(p *Point) []Warning {
 				add(d.Model, Model, "%s", n)
 			}
 		}
+	}
+	for _, cw := range p.Circuit.Warnings {
+		add("", Wiring, "%s", cw)
 	}
 	return w
 }

@@ -15,7 +15,7 @@ func describe(p *Point) string {
 	q.Circuit = nil
 	q.Stats.Runtime = 0
 	devices := ""
-	q.Diodes = append([]Diode(nil), p.Diodes...)
+	q.Diodes = append([]QPoint(nil), p.Diodes...)
 	for i := range q.Diodes {
 		devices += fmt.Sprintf("%+v\n", *q.Diodes[i].Device)
 		q.Diodes[i].Device = nil

@@ -192,8 +192,7 @@ func TestStudyEdgeCases(t *testing.T) {
 	single.Settings.Axis.Values = single.Settings.Axis.Values[:1]
 	flat := supplyStudy(t)
 	for i := range flat.Steps {
-		flat.Steps[i].HD2dBc = -40
-		flat.Steps[i].DCShift = 0
+		flat.Steps[i].Distortion = []study.Distortion{{FrequencyHz: 2.45e9, HD2dBc: -40}}
 		flat.Steps[i].Err = nil
 		if flat.Steps[i].Diodes == nil {
 			flat.Steps[i] = sr.Steps[0]
@@ -202,8 +201,7 @@ func TestStudyEdgeCases(t *testing.T) {
 	nanSteps := supplyStudy(t)
 	for i := range nanSteps.Steps {
 		if i%3 == 0 {
-			nanSteps.Steps[i].HD2dBc = math.NaN()
-			nanSteps.Steps[i].DCShift = math.Inf(1)
+			nanSteps.Steps[i].Distortion = []study.Distortion{{FrequencyHz: 2.45e9, HD2dBc: math.NaN(), DCShift: math.Inf(1)}}
 		}
 	}
 	logAxis := supplyStudy(t)
@@ -279,7 +277,7 @@ func TestStudyCurvesPanels(t *testing.T) {
 	if got := len(many.Panels); got != maxStudyPanels {
 		t.Errorf("six units: %d panels, want %d", got, maxStudyPanels)
 	}
-	if !strings.Contains(many.Note, "dc_shift") || !strings.Contains(many.Note, "sensitivity") {
+	if !strings.Contains(many.Note, "DC shift") || !strings.Contains(many.Note, "Detector sensitivity") {
 		t.Errorf("note %q: want the measures left out named", many.Note)
 	}
 	bad := StudyCurves(sr, measures(t, "probe.nowhere@2.45GHz"), "Supply", "V")

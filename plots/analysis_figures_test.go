@@ -22,6 +22,7 @@ func analysisFigures(t *testing.T) []struct {
 	det := detectorDistortion(t)
 	freqs, density, names, shares := noiseSpectrum()
 	sr := supplyStudy(t)
+	fit := demoFit(t)
 	return []struct {
 		name string
 		fig  *Figure
@@ -33,6 +34,9 @@ func analysisFigures(t *testing.T) []struct {
 		{"supply-study-map", HeatMap(supplyFrequencyMap(t), measures(t, "s11")[0], "Supply Vcc", "V", "Frequency", "Hz")},
 		{"synthetic-noise-density", NoiseDensity(freqs, density, "V/√Hz", math.Sqrt(4*1.380649e-23*300*50))},
 		{"synthetic-noise-contributions", NoiseContributions(freqs, names, shares)},
+		{"detector-fit-forward", ForwardFit(fit)},
+		{"detector-fit-reverse", ReverseFit(fit)},
+		{"detector-fit-capacitance", CapacitanceFit(fit)},
 	}
 }
 

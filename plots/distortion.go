@@ -428,7 +428,7 @@ func LevelSweep(points []ac.LevelPoint, e *ac.Estimate, compressionDBm float64, 
 	offset, dBm := 0.0, false
 	if e != nil {
 		if pe, ok := e.OutputDBm(); ok {
-			if f := cmplx.Abs(e.Fundamental); f > 0 && finite(pe) {
+			if f := cmplx.Abs(e.Linear); f > 0 && finite(pe) {
 				offset, dBm = pe-20*math.Log10(f), true
 			}
 		}
@@ -494,7 +494,7 @@ func LevelSweep(points []ac.LevelPoint, e *ac.Estimate, compressionDBm float64, 
 	var lines []curve
 	var lineOf []int
 	if e != nil && finite(inDBm) {
-		est := []complex128{e.Fundamental, e.HD2, e.HD3, complex(e.DCShift, 0)}
+		est := []complex128{e.Linear, e.HD2, e.HD3, complex(e.DCShift, 0)}
 		prods := []ac.Product{"", ac.HD2, ac.HD3, ac.DC}
 		for k, pr := range levelProducts {
 			if prods[k] != "" && e.Balanced(prods[k]) {

@@ -102,7 +102,7 @@ var synthetic = []struct {
 // the new figures (-samples DIR) and rewrite the files with -update.
 func TestGolden(t *testing.T) {
 	for _, s := range synthetic {
-		for _, f := range ResponseFigures(s.make()) {
+		for _, f := range ResponseFigures(s.make(), 0) {
 			what := s.name + "-" + f.Name
 			t.Run(what, func(t *testing.T) {
 				svg := render(t, f, "svg")
@@ -152,7 +152,7 @@ func around(s string, col int) string {
 
 func TestRenderingIsDeterministic(t *testing.T) {
 	r := lowPass()
-	for _, f := range ResponseFigures(r) {
+	for _, f := range ResponseFigures(r, 0) {
 		a, b := render(t, f, "svg"), render(t, f, "svg")
 		if !bytes.Equal(a, b) {
 			t.Errorf("%s: two renderings of the same figure differ at %s", f.Name, firstDifference(a, b))
@@ -168,7 +168,7 @@ func TestWriteSamples(t *testing.T) {
 		t.Fatal(err)
 	}
 	for _, s := range synthetic {
-		for _, f := range ResponseFigures(s.make()) {
+		for _, f := range ResponseFigures(s.make(), 0) {
 			for _, format := range []string{"png", "svg"} {
 				path := filepath.Join(*samples, s.name+"-"+f.Name+"."+format)
 				if err := os.WriteFile(path, render(t, f, format), 0o644); err != nil {
@@ -181,7 +181,7 @@ func TestWriteSamples(t *testing.T) {
 
 func TestFigureNamesAndKeys(t *testing.T) {
 	var names []string
-	for _, f := range ResponseFigures(lowPass()) {
+	for _, f := range ResponseFigures(lowPass(), 0) {
 		names = append(names, f.Name)
 	}
 	if got, want := strings.Join(names, " "), "gain-phase impedance smith group-delay"; got != want {
@@ -203,7 +203,7 @@ func TestFigureNamesAndKeys(t *testing.T) {
 		{"one-port has no S21", Bode(detectorPort()), "S11"},
 		{"chosen traces", Bode(lowPass(), SParameter(2, 2), SParameter(1, 2)), "S22|S12"},
 		{"impedance per port", Impedance(lowPass()), "R, in|X, in|R, out|X, out"},
-		{"smith per port", Smith(lowPass()), "S11, in|S22, out"},
+		{"smith per port", Smith(lowPass(), 0), "S11, in|S22, out"},
 	}
 	for _, tt := range tests {
 		if got := keyOf(tt.fig); got != tt.want {
@@ -359,7 +359,7 @@ func TestEdgeCases(t *testing.T) {
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
-			figs := ResponseFigures(c.r)
+			figs := ResponseFigures(c.r, 0)
 			if len(figs) != 4 {
 				t.Fatalf("%d figures, want 4", len(figs))
 			}
@@ -411,5 +411,32 @@ func TestWrapNote(t *testing.T) {
 	want := []string{"aaaa · bbbb", "cc", "dddddddddddd"}
 	if strings.Join(got, "|") != strings.Join(want, "|") {
 		t.Errorf("wrapNote = %q, want %q", got, want)
+	}
+}
+
+// TestSmithDesignFrequency: a design frequency inside the sweep is marked
+// on port 1's trace and named in the key; outside the sweep, or zero, it
+// is neither.
+func TestSmithDesignFrequency(t *testing.T) {
+	r := lowPass()
+	fs := frequencies(r)
+	mid := math.Sqrt(fs[0] * fs[len(fs)-1])
+	for _, c := range []struct {
+		hz   float64
+		want bool
+	}{{mid, true}, {0, false}, {fs[len(fs)-1] * 10, false}} {
+		f := Smith(r, c.hz)
+		keyed := false
+		for _, k := range f.Key {
+			keyed = keyed || strings.HasPrefix(k.Label, "design frequency")
+		}
+		var marked bool
+		tr := SmithTrace{Gamma: values(r, SParameter(1, 1)), FrequencyHz: fs, DesignHz: c.hz}
+		for _, m := range tr.markers(smithFrame{radius: 100}) {
+			marked = marked || m.kind == markerDesign
+		}
+		if keyed != c.want || marked != c.want {
+			t.Errorf("design at %g Hz: keyed %v, marked %v; want %v", c.hz, keyed, marked, c.want)
+		}
 	}
 }

@@ -109,7 +109,7 @@ func distortionFixture(t *testing.T, demo string, out ac.Output, hz, dBm float64
 		if dc.levels, err = ac.LevelSweep(nw, d, levels, ac.SteadySettings{}, nil); err != nil {
 			t.Fatal(err)
 		}
-		gain := cmplx.Abs(dc.estimate.Fundamental) / d.EMF
+		gain := cmplx.Abs(dc.estimate.Linear) / d.EMF
 		dc.compression, dc.compressed = ac.Compression(dc.levels, gain)
 		dc.freqs = logSweep(100e6, 6e9, 12)
 		for _, f := range dc.freqs {
@@ -178,11 +178,9 @@ func supplyStudy(t *testing.T) *study.Result {
 		current := 10e-9 + math.Max(0, v-0.1)/220e3
 		rd := 1.05 * 0.02585 / current
 		s11 := complex(-0.12-0.02*v, 0.1)
-		st.Diodes = []study.Diode{{Name: "D1", Current: current, DynamicResistance: rd, VideoResistance: rd + 20}}
-		st.Responses = []study.Response{{FrequencyHz: 2.45e9, S: [][]complex128{{s11, 0}, {0.01, 0}}, InputImpedance: []complex128{50 * (1 + s11) / (1 - s11)}, Probes: []complex128{0.5}}}
-		st.HD2dBc = -45 + 1.4*v
-		st.HD3dBc = -75 + 2.1*v
-		st.DCShift = 3e-4 * (1 + v/4)
+		st.Diodes = []study.DiodeState{{Name: "D1", Current: current, DynamicResistance: rd, VideoResistance: rd + 20}}
+		st.Responses = []study.Spot{{FrequencyHz: 2.45e9, S: [][]complex128{{s11, 0}, {0.01, 0}}, InputImpedance: []complex128{50 * (1 + s11) / (1 - s11)}, Probes: []complex128{0.5}}}
+		st.Distortion = []study.Distortion{{FrequencyHz: 2.45e9, HD2dBc: -45 + 1.4*v, HD3dBc: -75 + 2.1*v, DCShift: 3e-4 * (1 + v/4)}}
 		r.Steps = append(r.Steps, st)
 	}
 	return r
@@ -227,8 +225,8 @@ func supplyFrequencyMap(t *testing.T) *study.Result {
 			detune := q * (f/f0 - f0/f)
 			z := complex(50*(1+0.3*v/3.3), 50*detune)
 			s11 := (z - 50) / (z + 50)
-			st.Responses = []study.Response{{FrequencyHz: f, S: [][]complex128{{s11}}, InputImpedance: []complex128{z}}}
-			st.Diodes = []study.Diode{{Name: "D1", Current: 1e-8 * math.Pow(10, 3*v/3.3), DynamicResistance: 1}}
+			st.Responses = []study.Spot{{FrequencyHz: f, S: [][]complex128{{s11}}, InputImpedance: []complex128{z}}}
+			st.Diodes = []study.DiodeState{{Name: "D1", Current: 1e-8 * math.Pow(10, 3*v/3.3), DynamicResistance: 1}}
 		}
 	}
 	return r

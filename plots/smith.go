@@ -20,8 +20,10 @@ import (
 // grid has circles of constant normalised resistance and arcs of constant
 // normalised reactance; the trace of each port carries markers at the
 // first frequency (dot), the last (square) and at decades between (rings),
-// labelled with their frequencies.
-func Smith(r *ac.Response) *Figure {
+// labelled with their frequencies. A design frequency designHz inside the
+// sweep (the signal's, where the match matters; zero for none) is marked
+// on port 1's trace, the input's, with a diamond and named in the key.
+func Smith(r *ac.Response, designHz float64) *Figure {
 	chart := &SmithChart{}
 	var key []KeyEntry
 	for i := range r.Ports {
@@ -31,6 +33,9 @@ func Smith(r *ac.Response) *Figure {
 			FrequencyHz: frequencies(r),
 			Line:        traceLine(i),
 		}
+		if i == 0 {
+			t.DesignHz = designHz
+		}
 		if i < len(Palette) {
 			// Colour alone tells these ports apart, and dashes would
 			// break up the markers; past the palette's end the dash is
@@ -39,6 +44,9 @@ func Smith(r *ac.Response) *Figure {
 		}
 		chart.Traces = append(chart.Traces, t)
 		key = append(key, KeyEntry{Label: t.Name, Thumbs: []plot.Thumbnailer{t}})
+	}
+	if len(chart.Traces) > 0 && chart.Traces[0].inSweep(designHz) {
+		key = append(key, KeyEntry{Label: "design frequency, " + si.Format(designHz, "Hz", 4), Thumbs: []plot.Thumbnailer{designThumb{}}})
 	}
 	p := NewPanel("", "")
 	p.HideAxes()
@@ -63,7 +71,22 @@ type SmithTrace struct {
 	Gamma       []complex128 // normalised to the port's reference impedance
 	FrequencyHz []float64    // Gamma[i] is at FrequencyHz[i]
 	Line        draw.LineStyle
+	DesignHz    float64 // marked with a diamond when inside the sweep; zero for none
 }
+
+// inSweep reports whether hz lies within the trace's frequencies.
+func (t SmithTrace) inSweep(hz float64) bool {
+	if !(hz > 0) || len(t.FrequencyHz) == 0 {
+		return false
+	}
+	lo, hi := t.FrequencyHz[0], t.FrequencyHz[len(t.FrequencyHz)-1]
+	return hz >= math.Min(lo, hi) && hz <= math.Max(lo, hi)
+}
+
+// designThumb is the design-frequency marker, for a key.
+type designThumb struct{}
+
+func (designThumb) Thumbnail(c *draw.Canvas) { drawMarker(c, markerDesign, ink, c.Center()) }
 
 // Thumbnail draws the trace's line with a marker, for a key.
 func (t SmithTrace) Thumbnail(c *draw.Canvas) {
@@ -212,7 +235,7 @@ func (s *SmithChart) Plot(c draw.Canvas, _ *plot.Plot) {
 	// Rings first, so that where a decade falls on an end of the sweep
 	// the end's own marker stays on top.
 	var taken []vg.Rectangle
-	for _, kind := range []markerKind{markerDecade, markerLast, markerFirst} {
+	for _, kind := range []markerKind{markerDecade, markerLast, markerFirst, markerDesign} {
 		for _, m := range marks {
 			if m.kind == kind && c.Contains(m.at) {
 				drawMarker(&c, m.kind, m.color, m.at)
@@ -300,6 +323,7 @@ const (
 	markerFirst  markerKind = iota // filled dot at the first frequency
 	markerLast                     // filled square at the last
 	markerDecade                   // ring at each decade between
+	markerDesign                   // diamond at the design frequency
 )
 
 type marker struct {
@@ -332,6 +356,13 @@ func (t SmithTrace) markers(f smithFrame) []marker {
 		return ms
 	}
 	ms = append(ms, mk(markerLast, t.Gamma[last], t.FrequencyHz[last]))
+	if t.inSweep(t.DesignHz) {
+		if g, ok := t.interpolate(t.DesignHz); ok {
+			d := mk(markerDesign, g, t.DesignHz)
+			d.color = ink
+			ms = append(ms, d)
+		}
+	}
 	lo, hi := t.FrequencyHz[first], t.FrequencyHz[last]
 	if lo > hi {
 		lo, hi = hi, lo
@@ -407,6 +438,18 @@ func drawMarker(c *draw.Canvas, kind markerKind, clr color.Color, at vg.Point) {
 		c.SetColor(clr)
 		c.Fill(p)
 		c.SetLineStyle(halo)
+		c.Stroke(p)
+	case markerDesign:
+		q := r * 1.5
+		var p vg.Path
+		p.Move(vg.Point{X: at.X, Y: at.Y + q})
+		p.Line(vg.Point{X: at.X + q, Y: at.Y})
+		p.Line(vg.Point{X: at.X, Y: at.Y - q})
+		p.Line(vg.Point{X: at.X - q, Y: at.Y})
+		p.Close()
+		c.SetColor(background)
+		c.Fill(p)
+		c.SetLineStyle(draw.LineStyle{Color: clr, Width: vg.Points(1.4)})
 		c.Stroke(p)
 	case markerLast:
 		q := r * 0.9

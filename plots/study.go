@@ -21,6 +21,17 @@ const maxStudyPanels = 4
 // maxStudyCurves bounds the curves of one panel of a two-axis study.
 const maxStudyCurves = 6
 
+// StudyMark marks what a target search or an optimisation found on the
+// panel of its measure: a ring at (X, Y), the varied value and the
+// measure there, with a label, and for a target a dashed horizontal line
+// at Target, named in the key.
+type StudyMark struct {
+	Measure *study.Measure
+	X, Y    float64
+	Label   string
+	Target  float64 // NaN: not a target
+}
+
 // StudyCurves shows measures against the study's varied quantity, named
 // xLabel and measured in xUnit (an SI unit symbol such as "V", or "" for a
 // number). The x axis is logarithmic when the study's values are spaced
@@ -32,8 +43,10 @@ const maxStudyCurves = 6
 // six values of the second quantity, evenly picked. At most four panels
 // are drawn; the note names what is left out. A y axis of a positive
 // quantity spanning two decades or more is logarithmic. Steps that did not
-// solve leave gaps.
-func StudyCurves(r *study.Result, measures []*study.Measure, xLabel, xUnit string) *Figure {
+// solve leave gaps. Marks are drawn on the panel that shows their measure
+// (matched by its text) in a study of one quantity.
+func StudyCurves(r *study.Result, measures []*study.Measure, xLabel, xUnit string, marks ...StudyMark) *Figure {
+	xUnit = tickUnit(xUnit)
 	fig := &Figure{
 		Name:   "study",
 		Title:  "Study",
@@ -81,7 +94,7 @@ func StudyCurves(r *study.Result, measures []*study.Measure, xLabel, xUnit strin
 		var left []string
 		for _, pn := range panels[maxStudyPanels:] {
 			for _, k := range pn.measures {
-				left = append(left, ms[k].Text)
+				left = append(left, MeasureName(ms[k]))
 			}
 		}
 		notes = append(notes, "not shown, to keep four panels: "+strings.Join(left, ", "))
@@ -145,11 +158,39 @@ func StudyCurves(r *study.Result, measures []*study.Measure, xLabel, xUnit strin
 				}
 			}
 		}
-		yLog := logWorthy(pn.unit, cs)
-		span := spanYOf(cs)
+		// The marks on this panel, and their targets' lines.
+		var rings []*levelMark
+		var targets []float64
+		if !twoAxes {
+			for _, mk := range marks {
+				for _, k := range pn.measures {
+					if mk.Measure != nil && mk.Measure.Text == ms[k].Text && finite(mk.X) && finite(mk.Y) {
+						rings = append(rings, &levelMark{x: mk.X, y: mk.Y, label: mk.Label})
+						if finite(mk.Target) {
+							targets = append(targets, mk.Target)
+						}
+					}
+				}
+			}
+		}
+		var targetCurves []curve
+		if len(targets) > 0 {
+			x0, x1 := axisSpan(xs, xLog)
+			for _, t := range targets {
+				targetCurves = append(targetCurves, newCurve([]float64{x0, x1}, []float64{t, t}, xLog, false))
+			}
+		}
+		yLog := logWorthy(pn.unit, append(append([]curve{}, cs...), targetCurves...))
+		span := spanYOf(append(append([]curve{}, cs...), targetCurves...))
 		if yLog {
 			for i := range cs {
 				cs[i] = decadeCurve(cs[i])
+			}
+			for i := range targetCurves {
+				targetCurves[i] = decadeCurve(targetCurves[i])
+			}
+			for _, g := range rings {
+				g.y = math.Log10(g.y)
 			}
 		}
 		p.Add(framePlotter{X: xTicker(xLog, xUnit)})
@@ -166,6 +207,15 @@ func StudyCurves(r *study.Result, measures []*study.Measure, xLabel, xUnit strin
 				label = MeasureName(ms[ks[i]])
 			}
 			fig.Key = append(fig.Key, KeyEntry{Label: label, Thumbs: []plot.Thumbnailer{thumb}})
+		}
+		for i, c := range targetCurves {
+			thumb := c.add(p, referenceLine)
+			if i == 0 {
+				fig.Key = append(fig.Key, KeyEntry{Label: "target", Thumbs: []plot.Thumbnailer{thumb}})
+			}
+		}
+		for _, g := range rings {
+			p.Add(g)
 		}
 		// Axes last: adding the curves widened them to the raw data.
 		x0, x1 := axisSpan(xs, xLog)
@@ -231,6 +281,12 @@ func MeasureName(m *study.Measure) string {
 		n = "DC shift"
 	case "sensitivity":
 		n = "Detector sensitivity"
+	case "noise_figure":
+		n = "Noise figure"
+	case "nep":
+		n = "Noise-equivalent power"
+	case "tss":
+		n = "Tangential sensitivity"
 	default:
 		n = strings.ReplaceAll(m.Name, "_", " ")
 		if n != "" {
@@ -252,7 +308,7 @@ func MeasureName(m *study.Measure) string {
 // dbSuffix is the unit a decibel axis label carries; other units are on
 // the tick labels.
 func dbSuffix(unit string) string {
-	if unit == "dB" || unit == "dBc" {
+	if unit == "dB" || unit == "dBc" || unit == "dBm" {
 		return " (" + unit + ")"
 	}
 	return ""
@@ -265,6 +321,8 @@ func unitGroupName(unit string) string {
 		return "Magnitude (dB)"
 	case "dBc":
 		return "Relative to the fundamental (dBc)"
+	case "dBm":
+		return "Power (dBm)"
 	case "ohm":
 		return "Resistance, reactance"
 	case "V":
@@ -285,7 +343,7 @@ func unitGroupName(unit string) string {
 // for decibels, which are plain numbers.
 func tickUnit(unit string) string {
 	switch unit {
-	case "dB", "dBc":
+	case "dB", "dBc", "dBm":
 		return ""
 	case "ohm":
 		return "Ω"
@@ -296,7 +354,7 @@ func tickUnit(unit string) string {
 // logWorthy reports whether values in unit are best on a logarithmic
 // axis: all positive and spanning two decades or more. Decibels never.
 func logWorthy(unit string, cs []curve) bool {
-	if unit == "dB" || unit == "dBc" {
+	if unit == "dB" || unit == "dBc" || unit == "dBm" {
 		return false
 	}
 	lo, hi := math.Inf(1), math.Inf(-1)
@@ -526,6 +584,7 @@ func plural(n int, what string) string {
 // spaced geometrically is logarithmic. Cells whose step did not solve, or
 // where the measure has no value, are hatched grey.
 func HeatMap(r *study.Result, m *study.Measure, xLabel, xUnit, yLabel, yUnit string) *Figure {
+	xUnit, yUnit = tickUnit(xUnit), tickUnit(yUnit)
 	p := NewPanel(xLabel, yLabel)
 	fig := &Figure{
 		Name:   "study-map",
@@ -589,7 +648,7 @@ func HeatMap(r *study.Result, m *study.Measure, xLabel, xUnit, yLabel, yUnit str
 		}
 	}
 	scale := &ColourScale{Label: label}
-	if positive && unit != "dB" && unit != "dBc" && lo > 0 && hi/lo >= 100 {
+	if positive && unit != "dB" && unit != "dBc" && unit != "dBm" && lo > 0 && hi/lo >= 100 {
 		scale.Log = true
 		scale.Min, scale.Max = logRange(lo, hi, 1, 10)
 		scale.Ticks = LogTicks{Unit: tickUnit(unit)}
@@ -745,3 +804,7 @@ func (m *colourMap) Plot(c draw.Canvas, p *plot.Plot) {
 		{X: c.Max.X, Y: c.Max.Y}, {X: c.Min.X, Y: c.Max.Y}, {X: c.Min.X, Y: c.Min.Y},
 	})
 }
+
+// referenceLine draws a target or other reference level: thin, dashed,
+// in the soft ink, so no curve is mistaken for it.
+var referenceLine = draw.LineStyle{Color: inkSoft, Width: vg.Points(1), Dashes: []vg.Length{vg.Points(4), vg.Points(3)}}

@@ -104,7 +104,7 @@ func newProductBars(s *ac.Steady, e *ac.Estimate) *productBars {
 			b.wave = math.NaN()
 		}
 		if e != nil {
-			fund := cmplx.Abs(e.Fundamental)
+			fund := cmplx.Abs(e.Linear)
 			mark := func(v complex128, pr ac.Product) {
 				b.est = ratioDB(cmplx.Abs(v), fund)
 				b.balanced = e.Balanced(pr)

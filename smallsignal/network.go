@@ -2,6 +2,7 @@ package smallsignal
 
 import (
 	"fmt"
+	"math"
 
 	"gonum.org/v1/gonum/mat"
 
@@ -69,6 +70,28 @@ type Diode struct {
 	// JunctionCapacitance and DiffusionCapacitance split c1.
 	JunctionCapacitance  float64
 	DiffusionCapacitance float64
+}
+
+// CurrentSensitivity returns the diode's short-circuit current sensitivity
+// at frequency f in A/W of RF power absorbed by the chip (junction and
+// series resistance):
+//
+//	β = (g2/g1) / (1 + R_S/R_j + ω² C² R_S R_j)
+//
+// where g1, g2 are the junction current's Taylor coefficients (g2/g1 =
+// 1/(2 n V_T) for the ideal law), R_j = 1/g1 and C the junction's total
+// capacitance. The rectified current is g2|v|²/2 for junction voltage v,
+// the power absorbed in the junction |v|²g1/2, and the chip absorbs
+// 1 + R_S/R_j + ω²C²R_S R_j times that; Cowley and Sorensen (1966) give the
+// same frequency roll-off as 1/(1 + ω²C²R_S R_j) and the resistive loss as
+// 1/(1 + R_S/R_j).
+func (d Diode) CurrentSensitivity(f float64) float64 {
+	if d.G1 <= 0 {
+		return 0
+	}
+	rj := 1 / d.G1
+	w := 2 * math.Pi * f
+	return (d.G2 / d.G1) / (1 + d.SeriesResistance/rj + w*w*d.C1*d.C1*d.SeriesResistance*rj)
 }
 
 // New linearises the circuit at point p.
@@ -212,6 +235,9 @@ func (w *Workspace) New(p *bias.Point) (*Network, error) {
 	if n == 0 {
 		return nil, fmt.Errorf("smallsignal: the circuit has no unknowns")
 	}
+	if n > MaxUnknowns {
+		return nil, &TooLargeError{Unknowns: n}
+	}
 	nw.G = zeroMatrix(nw.G, n)
 	nw.C = zeroMatrix(nw.C, n)
 	for _, t := range conds {
@@ -285,7 +311,7 @@ func (w *Workspace) New(p *bias.Point) (*Network, error) {
 
 // quiescent returns the Q point of the diode named name, the k-th diode of
 // the circuit in file order, as p lists them.
-func quiescent(p *bias.Point, k int, name string) (bias.Diode, bool) {
+func quiescent(p *bias.Point, k int, name string) (bias.QPoint, bool) {
 	if k < len(p.Diodes) && p.Diodes[k].Name == name {
 		return p.Diodes[k], true
 	}
@@ -294,7 +320,7 @@ func quiescent(p *bias.Point, k int, name string) (bias.Diode, bool) {
 			return d, true
 		}
 	}
-	return bias.Diode{}, false
+	return bias.QPoint{}, false
 }
 
 // branchCurrent returns the DC current of a voltage source or inductor at
@@ -443,4 +469,24 @@ func (nw *Network) WithReferences(z []float64) *Network {
 		out.Ports[i].Impedance = z[i]
 	}
 	return &out
+}
+
+// MaxUnknowns bounds the unknowns of a network New builds. The network
+// and the analyses on it hold dense n×n matrices: G, C and their linear
+// parts here (4 × 8n² bytes), a complex LU per frequency (16n²) and the
+// reduced sweep engines' bases and forms (about 6 × 8n² more), so that at
+// this bound every analysis stays within about 1 GB (12 × 8 × 3000² is
+// 864 MB). The DC solve, banded, takes circuits far larger.
+const MaxUnknowns = 3000
+
+// TooLargeError is New's refusal of a network beyond MaxUnknowns, before
+// anything is allocated for it.
+type TooLargeError struct {
+	Unknowns int
+}
+
+func (e *TooLargeError) Error() string {
+	gb := 12 * 8 * float64(e.Unknowns) * float64(e.Unknowns) / 1e9
+	return fmt.Sprintf("smallsignal: the network has %d unknowns (nodes, internal diode nodes and branch currents); the small-signal analyses would hold dense matrices of that order, about %.3g GB; accepted: up to %d unknowns, which keeps them within about 1 GB (the DC bias solve takes larger circuits)",
+		e.Unknowns, gb, MaxUnknowns)
 }

@@ -161,6 +161,9 @@ func sortProducts(ps []Product) {
 	})
 }
 
+// floorRel is NoiseFloor relative to the voltage scale (see Result).
+const floorRel = 1e-12
+
 // Steady returns the result as the steady state package ac describes
 // (the form shooting gives), for comparison, tables and continuation:
 // for one tone Output holds harmonics 0..Report; for two tones Output
@@ -187,15 +190,10 @@ func (r *Result) Steady() *ac.Steady {
 	for _, d := range r.DiodeCurrents {
 		st.DiodeCurrents = append(st.DiodeCurrents, harm(d))
 	}
-	var sum float64
-	for _, h := range st.Output {
-		if h.Order >= 2 {
-			sum += h.Amplitude * h.Amplitude
-		}
-	}
-	st.THDPercent = math.NaN()
-	if len(st.Output) > 1 && st.Output[1].Amplitude > 0 && !r.spec.twoTone {
-		st.THDPercent = 100 * math.Sqrt(sum) / st.Output[1].Amplitude
+	st.FinishHarmonics(r.NoiseFloor / floorRel)
+	if r.spec.twoTone {
+		// With two tones the harmonics of f1 alone are not a THD.
+		st.THDPercent, st.THDBelowPercent = math.NaN(), 0
 	}
 	if r.spec.twoTone {
 		for _, p := range r.Output {

@@ -883,7 +883,7 @@ func (sv *solver) result(sys *system, x []complex128) *Result {
 	for _, v := range nw.Bias[:nw.NodeUnknowns] {
 		scale = math.Max(scale, math.Abs(v))
 	}
-	r.NoiseFloor = 1e-12 * scale
+	r.NoiseFloor = floorRel * scale
 	r.Stats = sv.stats
 	r.Stats.Harmonics = spec.order
 	r.Stats.Products = len(spec.products)

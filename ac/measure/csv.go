@@ -54,19 +54,29 @@ func (e *ParseError) Unwrap() error { return e.Err }
 
 const acceptedNumber = "accepted: decimal numbers such as 0.0125 or -1.5e-3 (a decimal comma with ; or tab separators)"
 
-// field is one cell of a line and the 1-based column where it starts.
+// field is one cell of a line and the 1-based column where it starts;
+// quoted tells that it was written in double quotes.
 type field struct {
-	text string
-	col  int
+	text   string
+	col    int
+	quoted bool
 }
 
 // ReadCSV reads a waveform: either two columns, time in seconds and value
 // in volts, or one value column with the sample rate in opts. Columns are
 // separated by commas, semicolons, tabs or runs of spaces (the first data
-// line decides); with semicolons or tabs a decimal comma is accepted. A
-// first line without any number is a header and is skipped; '#' starts a
-// comment that runs to the end of the line; blank lines are skipped;
-// fields may be quoted.
+// line decides); with semicolons or tabs, or inside double quotes, a
+// decimal comma is accepted ("0,125"). Fields may be quoted, with "" for a
+// quote inside. '#' starts a comment that runs to the end of the line;
+// blank lines are skipped.
+//
+// Lines before the first data line that start with a word, not a number,
+// are the instrument's header and metadata (a column header, the model, a
+// record length) and are skipped. A metadata line naming the sample
+// interval ("Sample Interval,1e-06", "X Increment;2E-9", "dt 5e-7") or the
+// sample rate ("Sample Rate,1e6") gives the rate of a one-column file, and
+// for a file with a time column it must agree with the times to 0.1 %, as
+// opts.SampleRateHz must; a rate in opts takes precedence over the file's.
 //
 // Times must rise strictly and be uniformly spaced: each step within
 // 1 ppm of the median step plus 1 ppm of the time's magnitude (what seven
@@ -89,8 +99,10 @@ func ReadCSV(r io.Reader, opts CSVOptions) (*Waveform, error) {
 		lineOf        []int // the line of each sample, for the time checks
 		columns       int   // 0 until the first data line
 		sep           byte
-		header        bool
 		lineNo        int
+		lastPreamble  int     // the last header or metadata line
+		fileRate      float64 // the rate a metadata line gives
+		fileRateLine  int
 	)
 	for sc.Scan() {
 		lineNo++
@@ -108,8 +120,16 @@ func ReadCSV(r io.Reader, opts CSVOptions) (*Waveform, error) {
 		if columns == 0 {
 			s := detectSeparator(line)
 			fields := trimEmpty(split(line, s), 1)
-			if !header && len(times)+len(values) == 0 && !anyNumber(fields, s) {
-				header = true // the first content line, with no number in it
+			if !leadingNumber(fields, s) {
+				// A header or metadata line: it starts with a word.
+				lastPreamble = lineNo
+				if r, ok := metadataRate(line, s); ok && fileRate == 0 {
+					if !(r >= MinSampleRateHz && r <= MaxSampleRateHz) {
+						return nil, &ParseError{Line: lineNo, Column: 1,
+							Msg: fmt.Sprintf("the file's sample interval or rate gives %g Hz; accepted: %g Hz to %g Hz", r, MinSampleRateHz, MaxSampleRateHz)}
+					}
+					fileRate, fileRateLine = r, lineNo
+				}
 				continue
 			}
 			sep = s
@@ -118,9 +138,9 @@ func ReadCSV(r io.Reader, opts CSVOptions) (*Waveform, error) {
 			case columns > 2:
 				return nil, &ParseError{Line: lineNo, Column: fields[2].col,
 					Msg: fmt.Sprintf("%d columns; accepted: two columns (time in s, value in V) or one value column", columns)}
-			case columns == 1 && opts.SampleRateHz == 0:
+			case columns == 1 && opts.SampleRateHz == 0 && fileRate == 0:
 				return nil, &ParseError{Line: lineNo, Column: fields[0].col, Err: ErrNoSampleRate,
-					Msg: "one value column and no sample rate; accepted: a time column before the values, or the sample rate given with the file"}
+					Msg: "one value column and no sample rate; accepted: a time column before the values, or the sample rate given with the file or in a metadata line such as `Sample Interval,1e-06`"}
 			}
 		}
 		fields := trimEmpty(split(line, sep), columns)
@@ -138,7 +158,7 @@ func ReadCSV(r io.Reader, opts CSVOptions) (*Waveform, error) {
 		}
 		nums := [2]float64{}
 		for i, f := range fields {
-			v, err := parseNumber(f.text, sep)
+			v, err := parseNumber(f, sep)
 			if err != "" {
 				return nil, &ParseError{Line: lineNo, Column: f.col, Msg: err}
 			}
@@ -162,11 +182,19 @@ func ReadCSV(r io.Reader, opts CSVOptions) (*Waveform, error) {
 		return nil, &ParseError{Line: lineNo + 1, Column: 1, Msg: msg}
 	}
 	end := max(lineNo, 1)
+	if len(values) == 0 && lastPreamble > 0 {
+		return nil, &ParseError{Line: lastPreamble, Column: 1,
+			Msg: fmt.Sprintf("no numeric data follows the header and metadata that end at line %d; accepted: rows of numbers after the header, time in s and value in V, or one value column", lastPreamble)}
+	}
 	if len(values) < MinSamples {
 		return nil, &ParseError{Line: end, Column: 1,
 			Msg: fmt.Sprintf("the file ends after %d samples; accepted: at least %d samples", len(values), MinSamples)}
 	}
-	w := &Waveform{Samples: values, SampleRateHz: opts.SampleRateHz}
+	given := opts.SampleRateHz
+	if given == 0 {
+		given = fileRate
+	}
+	w := &Waveform{Samples: values, SampleRateHz: given}
 	if columns == 2 {
 		start, rate, err := checkTimes(times, lineOf)
 		if err != nil {
@@ -176,7 +204,15 @@ func ReadCSV(r io.Reader, opts CSVOptions) (*Waveform, error) {
 			return nil, &ParseError{Line: lineOf[0], Column: 1,
 				Msg: fmt.Sprintf("the time column gives a sample rate of %.7g Hz but %.7g Hz was given; accepted: a sample rate that agrees with the time column to 0.1 %%, or none", rate, opts.SampleRateHz)}
 		}
+		if opts.SampleRateHz == 0 && fileRate != 0 && math.Abs(rate-fileRate) > 1e-3*rate {
+			return nil, &ParseError{Line: fileRateLine, Column: 1,
+				Msg: fmt.Sprintf("this line gives a sample rate of %.7g Hz but the time column %.7g Hz; accepted: a sample interval that agrees with the time column to 0.1 %%", fileRate, rate)}
+		}
 		w.StartS, w.SampleRateHz = start, rate
+		// A time stamp is known to the spacing of float64 numbers at its
+		// size; the rate, from the span, to that over the span.
+		last := max(math.Abs(times[0]), math.Abs(times[len(times)-1]))
+		w.RateUncertainty = (math.Nextafter(last, math.Inf(1)) - last) / (times[len(times)-1] - times[0])
 	}
 	return w, nil
 }
@@ -195,8 +231,10 @@ func detectSeparator(line string) byte {
 	return 0
 }
 
-// split cuts a line into trimmed, unquoted fields with their columns.
-// Empty trailing fields (a separator at the end of the line) are dropped.
+// split cuts a line into trimmed, unquoted fields with their columns. A
+// field in double quotes may hold the separator; "" inside it is a quote.
+// Empty trailing fields (a separator at the end of the line) are dropped
+// by trimEmpty.
 func split(line string, sep byte) []field {
 	var out []field
 	if sep == ' ' {
@@ -210,7 +248,8 @@ func split(line string, sep byte) []field {
 				j++
 			}
 			if j > i {
-				out = append(out, field{unquote(line[i:j]), i + 1})
+				text, quoted := unquote(line[i:j])
+				out = append(out, field{text, i + 1, quoted})
 			}
 			i = j
 		}
@@ -218,15 +257,39 @@ func split(line string, sep byte) []field {
 	}
 	start := 0
 	for {
+		// Skip leading blanks; a quote then opens a quoted field.
+		i := start
+		for i < len(line) && (line[i] == ' ' || line[i] == '\t' && sep != '\t' || line[i] == '\r') {
+			i++
+		}
 		end := len(line)
-		if sep != 0 {
+		if i < len(line) && line[i] == '"' {
+			// The field runs to the closing quote (not a doubled one).
+			k := i + 1
+			for k < len(line) {
+				if line[k] == '"' {
+					if k+1 < len(line) && line[k+1] == '"' {
+						k += 2
+						continue
+					}
+					break
+				}
+				k++
+			}
+			if sep != 0 {
+				if m := strings.IndexByte(line[min(k, len(line)):], sep); m >= 0 {
+					end = k + m
+				}
+			}
+		} else if sep != 0 {
 			if k := strings.IndexByte(line[start:], sep); k >= 0 {
 				end = start + k
 			}
 		}
 		cell := line[start:end]
 		lead := len(cell) - len(strings.TrimLeft(cell, " \t\r"))
-		out = append(out, field{unquote(strings.TrimSpace(cell)), start + lead + 1})
+		text, quoted := unquote(strings.TrimSpace(cell))
+		out = append(out, field{text, start + lead + 1, quoted})
 		if end == len(line) {
 			break
 		}
@@ -251,38 +314,82 @@ func plural(n int, word string) string {
 	return fmt.Sprintf("%d %ss", n, word)
 }
 
-func unquote(s string) string {
+// unquote strips a field's double quotes, undoubling "" inside, and
+// reports whether it was quoted.
+func unquote(s string) (string, bool) {
 	if len(s) >= 2 && s[0] == '"' && s[len(s)-1] == '"' {
-		return strings.TrimSpace(s[1 : len(s)-1])
+		return strings.TrimSpace(strings.ReplaceAll(s[1:len(s)-1], `""`, `"`)), true
 	}
-	return s
+	return s, false
 }
 
-// anyNumber reports whether any field reads as a number, finite or not.
-func anyNumber(fields []field, sep byte) bool {
-	for _, f := range fields {
-		if _, err := strconv.ParseFloat(decimalPoint(f.text, sep), 64); err == nil {
-			return true
+// leadingNumber reports whether a line's first field reads as a number,
+// finite or not: a data line, not a header or metadata line.
+func leadingNumber(fields []field, sep byte) bool {
+	if len(fields) == 0 {
+		return false
+	}
+	_, err := strconv.ParseFloat(decimalPoint(fields[0], sep), 64)
+	return err == nil || errors.Is(err, strconv.ErrRange)
+}
+
+// metadataRate reads the sample rate a metadata line gives: a line that
+// starts by naming the sample interval (interval, increment, time step,
+// dt: seconds) or the sample rate (Hz), and the first number after that
+// name. A decimal comma is read as the line's separator allows.
+func metadataRate(line string, sep byte) (float64, bool) {
+	lower := strings.ToLower(line)
+	var at int
+	interval := false
+	for _, k := range []struct {
+		word     string
+		interval bool
+	}{{"sample interval", true}, {"sampling interval", true}, {"x increment", true}, {"xincrement", true}, {"horizontal increment", true},
+		{"increment", true}, {"interval", true}, {"time step", true}, {"timestep", true}, {"delta t", true}, {"dt", true},
+		{"sample rate", false}, {"sampling rate", false}, {"samplerate", false}} {
+		if i := strings.Index(lower, k.word); i >= 0 && strings.TrimLeft(lower[:i], " \t\"") == "" {
+			at, interval = i+len(k.word), k.interval
+			break
 		}
+		at = -1
 	}
-	return false
+	if at < 0 {
+		return 0, false
+	}
+	for _, tok := range strings.FieldsFunc(line[at:], func(r rune) bool {
+		return r == ' ' || r == '\t' || r == ':' || r == '=' || r == '"' || r == ';' || r == ',' && sep != ';' && sep != '\t' && !strings.Contains(line[at:], "\"")
+	}) {
+		t := strings.TrimSuffix(strings.TrimSuffix(tok, "Hz"), "s")
+		v, err := strconv.ParseFloat(decimalPoint(field{text: t, quoted: strings.Contains(line[at:], "\"")}, sep), 64)
+		if err != nil || !(v > 0) || math.IsInf(v, 0) {
+			continue
+		}
+		if interval {
+			return 1 / v, true
+		}
+		return v, true
+	}
+	return 0, false
 }
 
-// decimalPoint turns a decimal comma into a point where the separator
-// leaves no doubt: with ; or tab separators, one comma and no point.
-func decimalPoint(s string, sep byte) string {
-	if (sep == ';' || sep == '\t') && strings.Count(s, ",") == 1 && !strings.Contains(s, ".") {
+// decimalPoint turns a decimal comma into a point where nothing else can
+// be meant: with ; or tab separators, or inside quotes, one comma and no
+// point.
+func decimalPoint(f field, sep byte) string {
+	s := f.text
+	if (sep == ';' || sep == '\t' || f.quoted) && strings.Count(s, ",") == 1 && !strings.Contains(s, ".") {
 		return strings.Replace(s, ",", ".", 1)
 	}
 	return s
 }
 
 // parseNumber reads one finite number, or says what is wrong with it.
-func parseNumber(s string, sep byte) (float64, string) {
+func parseNumber(f field, sep byte) (float64, string) {
+	s := f.text
 	if s == "" {
 		return 0, "an empty field; " + acceptedNumber
 	}
-	v, err := strconv.ParseFloat(decimalPoint(s, sep), 64)
+	v, err := strconv.ParseFloat(decimalPoint(f, sep), 64)
 	show := s
 	if len(show) > 40 {
 		show = show[:40] + "..."

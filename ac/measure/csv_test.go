@@ -45,6 +45,14 @@ func TestReadCSV(t *testing.T) {
 		{"times printed to 7 digits", rows(500, 0.0123, func(_ int, t, v float64) string { return fmt.Sprintf("%.7g,%.6g", t, v) }), CSVOptions{}, 500, 1e5, 0.0123, 0, false},
 		{"time column with agreeing rate", rows(20, 0, plain), CSVOptions{SampleRateHz: 100.01e3}, 20, 1e5, 0, 0, false},
 		{"inline comment", rows(20, 0, func(i int, t, v float64) string { return fmt.Sprintf("%.9g, %d # note", t, i) }), CSVOptions{}, 20, 1e5, 0, 1, true},
+		{"two header lines", "t,v\nunits,volts\n" + rows(20, 0, plain), CSVOptions{}, 20, 1e5, 0, 0, false},
+		{"commas with quoted decimal commas", "\"Zeit\",\"Spannung\"\n" + rows(20, 0, func(i int, t, _ float64) string {
+			return strings.ReplaceAll(fmt.Sprintf("\"%.9f\",\"%d.5\"", t, i), ".", ",")
+		}), CSVOptions{}, 20, 1e5, 0, 1.5, true},
+		{"instrument export with metadata", "Model,QX-200\nFirmware,1.02\nSample Interval,1e-05\nRecord Length,20\nTime,CH1\n" + rows(20, 0, plain), CSVOptions{}, 20, 1e5, 0, 0, false},
+		{"one column, interval from metadata", "Sample Interval: 1e-05 s\nVolts\n" + rows(20, 0, func(i int, _, _ float64) string { return fmt.Sprint(i) }), CSVOptions{}, 20, 1e5, 0, 1, true},
+		{"one column, rate from metadata, decimal comma", "Sample Rate;2,5e6\n" + rows(20, 0, func(i int, _, _ float64) string { return fmt.Sprintf("\"%d,25\"", i) }), CSVOptions{}, 20, 2.5e6, 0, 1.25, true},
+		{"the rate given beats the file's", "Sample Interval,1e-05\n" + rows(20, 0, func(i int, _, _ float64) string { return fmt.Sprint(i) }), CSVOptions{SampleRateHz: 1e3}, 20, 1e3, 0, 1, true},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
@@ -80,7 +88,9 @@ func TestReadCSVErrors(t *testing.T) {
 		want      []string
 	}{
 		{"word in the data", "t,v\n" + with(4, "4e-05,abc"), CSVOptions{}, 6, 7, []string{`"abc" is not a number`, "accepted: decimal numbers"}},
-		{"second header", "t,v\nunits,volts\n" + good, CSVOptions{}, 2, 1, []string{`"units" is not a number`}},
+		{"header only", "Model,QX-200\nSample Interval,1e-05\nTime,CH1\n", CSVOptions{}, 3, 1, []string{"no numeric data follows the header and metadata that end at line 3"}},
+		{"metadata interval disagrees", "Sample Interval,2e-05\nTime,CH1\n" + good, CSVOptions{}, 1, 1, []string{"gives a sample rate of 50000 Hz but the time column 100000 Hz"}},
+		{"word after the data began", "t,v\n" + with(0, "0,0\nunits,volts"), CSVOptions{}, 3, 1, []string{`"units" is not a number`}},
 		{"NaN", with(3, "3e-05,NaN"), CSVOptions{}, 4, 7, []string{`"NaN" is not a finite number`}},
 		{"infinity", with(3, "3e-05, -Inf"), CSVOptions{}, 4, 8, []string{"not a finite number"}},
 		{"overflow", with(3, "3e-05,1e999"), CSVOptions{}, 4, 7, []string{"too large"}},
@@ -158,6 +168,38 @@ func BenchmarkReadCSV100k(b *testing.B) {
 	for b.Loop() {
 		if _, err := ReadCSV(strings.NewReader(in), CSVOptions{}); err != nil {
 			b.Fatal(err)
+		}
+	}
+}
+
+// TestTimeOffsetResolution: time stamps written with an offset of 1e9 s
+// and a step of 1 µs are resolved by float64 only to 1.2e-7 s (the
+// spacing of doubles at 1e9, IEEE 754 binary64), so the sample rate from
+// the span can be off by about 1.2e-7 s / 1 ms over a 1000-sample record.
+// The reader reports that uncertainty, and the rate it reads lies within
+// it; the same record from zero is resolved to rounding (issue 13,
+// item 14).
+func TestTimeOffsetResolution(t *testing.T) {
+	for _, offset := range []float64{0, 1e9} {
+		var b strings.Builder
+		b.WriteString("time,voltage\n")
+		for i := 0; i < 1000; i++ {
+			fmt.Fprintf(&b, "%.17g,%.9g\n", offset+float64(i)*1e-6, math.Sin(2*math.Pi*float64(i)/100))
+		}
+		w, err := ReadCSV(strings.NewReader(b.String()), CSVOptions{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		ulp := math.Nextafter(offset+999e-6, 2e9) - (offset + 999e-6)
+		want := ulp / 999e-6
+		if math.Abs(w.RateUncertainty-want) > 1e-3*want {
+			t.Errorf("offset %g s: rate uncertainty %g, want %g", offset, w.RateUncertainty, want)
+		}
+		if err := math.Abs(w.SampleRateHz-1e6) / 1e6; err > w.RateUncertainty+1e-15 {
+			t.Errorf("offset %g s: rate %g Hz is off by %g, beyond the stated %g", offset, w.SampleRateHz, err, w.RateUncertainty)
+		}
+		if warned := w.RateUncertainty > RateUncertaintyLimit; warned != (offset != 0) {
+			t.Errorf("offset %g s: uncertainty %g, warned %v", offset, w.RateUncertainty, warned)
 		}
 	}
 }

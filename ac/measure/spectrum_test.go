@@ -134,3 +134,36 @@ func highestSidelobe(win Window) float64 {
 	}
 	return worst
 }
+
+// TestWindowWeightsCosineSums: the weights gonum's dsp/window gives, taken
+// in the DFT-even form, equal the cosine sums of Harris (Proc. IEEE 66(1),
+// 1978, eq. 33 and Table I) w[n] = Σ (-1)^m a_m cos(2π m n / N), with the
+// flat-top coefficients of D'Antona and Ferrero (2006, from memory).
+func TestWindowWeightsCosineSums(t *testing.T) {
+	for _, c := range []struct {
+		w Window
+		a []float64
+	}{
+		{BlackmanHarris, []float64{0.35875, 0.48829, 0.14128, 0.01168}},
+		{Hann, []float64{0.5, 0.5}},
+		{FlatTop, []float64{0.21557895, 0.41663158, 0.277263158, 0.083578947, 0.006947368}},
+		{Rectangular, []float64{1}},
+	} {
+		for _, n := range []int{1, 16, 1001, 65536} {
+			got := c.w.Weights(n)
+			if len(got) != n || c.w.HalfWidthBins() != len(c.a) {
+				t.Fatalf("%s: %d weights for %d, half-width %d for %d terms", c.w, len(got), n, c.w.HalfWidthBins(), len(c.a))
+			}
+			for i := range got {
+				v, sign := c.a[0], -1.0
+				for m := 1; m < len(c.a); m++ {
+					v += sign * c.a[m] * math.Cos(2*math.Pi*float64((m*i)%n)/float64(n))
+					sign = -sign
+				}
+				if math.Abs(got[i]-v) > 1e-12 {
+					t.Fatalf("%s, N = %d: w[%d] = %.16g, cosine sum %.16g", c.w, n, i, got[i], v)
+				}
+			}
+		}
+	}
+}

@@ -10,7 +10,18 @@ type Waveform struct {
 	SampleRateHz float64   // fs, samples per second
 	StartS       float64   // t0, the time of the first sample, s
 	Samples      []float64 // x[n] at t0 + n/fs, volts
+	// RateUncertainty is the relative uncertainty of SampleRateHz when it
+	// comes from a time column: the spacing of float64 numbers at the
+	// largest time stamp over the record's span. Every frequency read
+	// from the record carries it. Zero for a rate given outright.
+	RateUncertainty float64
 }
+
+// RateUncertaintyLimit is the relative sample-rate uncertainty above which
+// a reader of the record is warned: where time stamps carry an offset so
+// large that float64 (or the digits written) no longer resolve their step
+// well, frequencies can be off by more than a part per million.
+const RateUncertaintyLimit = 1e-6
 
 // DurationS is the record length N/fs: the span one period of the
 // periodic extension covers, as the transform sees it.

@@ -2,8 +2,9 @@ package measure
 
 import (
 	"fmt"
-	"math"
 	"strings"
+
+	"gonum.org/v1/gonum/dsp/window"
 )
 
 // Window is the taper applied to the record before the transform and used
@@ -48,14 +49,18 @@ const (
 	Rectangular
 )
 
+// windowInfo gives each window's name, its number of cosine terms (the
+// main lobe's half-width in bins) and gonum's dsp/window function, which
+// holds the coefficients above.
 var windowInfo = [...]struct {
-	name   string
-	coeffs []float64
+	name  string
+	terms int
+	apply func([]float64) []float64
 }{
-	BlackmanHarris: {"blackman-harris", []float64{0.35875, 0.48829, 0.14128, 0.01168}},
-	Hann:           {"hann", []float64{0.5, 0.5}},
-	FlatTop:        {"flat-top", []float64{0.21557895, 0.41663158, 0.277263158, 0.083578947, 0.006947368}},
-	Rectangular:    {"rectangular", []float64{1}},
+	BlackmanHarris: {"blackman-harris", 4, window.BlackmanHarris},
+	Hann:           {"hann", 2, window.Hann},
+	FlatTop:        {"flat-top", 5, window.FlatTop},
+	Rectangular:    {"rectangular", 1, window.Rectangular},
 }
 
 // WindowNames lists the accepted window names, default first.
@@ -90,28 +95,26 @@ func (w Window) HalfWidthBins() int {
 	if !w.valid() {
 		return 1
 	}
-	return len(windowInfo[w].coeffs)
+	return windowInfo[w].terms
 }
 
-// Weights returns the N weights w[0..N-1] of the DFT-even window.
+// Weights returns the N weights w[0..N-1] of the DFT-even window. gonum's
+// dsp/window gives the symmetric form, cos(2π m n/(L-1)) over L points;
+// the DFT-even form over N points is the symmetric one over N+1 points
+// without its last (Harris 1978, sec. IV).
 func (w Window) Weights(n int) []float64 {
-	a := windowInfo[BlackmanHarris].coeffs
+	apply := windowInfo[BlackmanHarris].apply
 	if w.valid() {
-		a = windowInfo[w].coeffs
+		apply = windowInfo[w].apply
 	}
-	out := make([]float64, n)
+	out := make([]float64, n+1)
 	for i := range out {
-		v := a[0]
-		sign := -1.0
-		for m := 1; m < len(a); m++ {
-			// The product m*i is reduced modulo n first, so the argument
-			// stays below 2π and keeps full precision in long records.
-			v += sign * a[m] * math.Cos(2*math.Pi*float64((m*i)%n)/float64(n))
-			sign = -sign
-		}
-		out[i] = v
+		out[i] = 1
 	}
-	return out
+	if n == 0 {
+		return out[:0]
+	}
+	return apply(out)[:n]
 }
 
 // NoiseBandwidthBins is the equivalent noise bandwidth of n weights in

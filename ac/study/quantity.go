@@ -16,37 +16,101 @@ import (
 //	s11, s21, s12, s22          S-parameter magnitude in dB   (@f)
 //	zin_re, zin_im, zin_mag     port 1's input impedance, ohm  (@f)
 //	probe.NODE                  probe transfer in dB           (@f)
-//	hd2, hd3                    distortion estimate in dBc
-//	dc_shift                    rectified output shift, V
-//	sensitivity                 output DC per available input power, V/W
+//	noise_figure                noise figure in dB             (@f)
+//	hd2, hd3                    distortion estimate in dBc     (@f of the distortion)
+//	dc_shift                    rectified output shift, V      (@f of the distortion)
+//	sensitivity                 output DC per available input power, V/W (@f of the distortion)
+//	nep                         detector noise-equivalent power, W/√Hz
+//	tss                         detector tangential sensitivity, dBm
 //	current.D, voltage.D, dynamic_resistance.D, junction_capacitance.D,
 //	video_resistance.D          a diode's Q point
 //	current_sensitivity.D, voltage_sensitivity.D                   (@f)
+//
+// A frequency marked (@f) is one of the study's frequencies, the first
+// when none is given; one marked (@f of the distortion) is one of the
+// distortion frequencies, the first when none is given.
 type Measure struct {
 	Text        string
 	Name        string
 	Part        string
-	FrequencyHz float64 // zero: the study's first frequency
-	Unit        string  // "dB", "dBc", "ohm", "V", "A", "F", "V/W", "A/W"
-	quantity    circuit.Quantity
+	FrequencyHz float64 // zero: the first study (or distortion) frequency
+	Unit        string  // "dB", "dBc", "dBm", "ohm", "V", "A", "F", "V/W", "A/W", "W/√Hz"
+	// Signed, for a measure whose sign is only a polarity (Polar), makes
+	// Optimize act on the signed value instead of the magnitude.
+	Signed   bool
+	quantity circuit.Quantity
+	spec     measureSpec
 }
 
-var measures = map[string]struct {
+// frequencyUse says which frequencies a measure's @F picks among.
+type frequencyUse int
+
+const (
+	noFrequency frequencyUse = iota
+	studyFrequency
+	distortionFrequency
+)
+
+type measureSpec struct {
 	unit     string
 	q        circuit.Quantity
 	needPart bool
-	needFreq bool
-}{
-	"s11": {"dB", circuit.Dimensionless, false, true}, "s21": {"dB", circuit.Dimensionless, false, true},
-	"s12": {"dB", circuit.Dimensionless, false, true}, "s22": {"dB", circuit.Dimensionless, false, true},
-	"zin_re": {"ohm", circuit.Resistance, false, true}, "zin_im": {"ohm", circuit.Resistance, false, true},
-	"zin_mag": {"ohm", circuit.Resistance, false, true}, "probe": {"dB", circuit.Dimensionless, true, true},
-	"hd2": {"dBc", circuit.Dimensionless, false, false}, "hd3": {"dBc", circuit.Dimensionless, false, false},
-	"dc_shift": {"V", circuit.Voltage, false, false}, "sensitivity": {"V/W", circuit.Dimensionless, false, false},
-	"current": {"A", circuit.Current, true, false}, "voltage": {"V", circuit.Voltage, true, false},
-	"dynamic_resistance": {"ohm", circuit.Resistance, true, false}, "junction_capacitance": {"F", circuit.Capacitance, true, false},
-	"video_resistance":    {"ohm", circuit.Resistance, true, false},
-	"current_sensitivity": {"A/W", circuit.Dimensionless, true, true}, "voltage_sensitivity": {"V/W", circuit.Dimensionless, true, true},
+	freq     frequencyUse
+	// polar: the sign only says which way the output moves (a detector's
+	// polarity), so the best value is the largest magnitude.
+	polar bool
+	// needs is what the step must compute for the measure.
+	needs need
+}
+
+type need int
+
+const (
+	needNothing need = iota
+	needDrive
+	needNoise
+	needDetector
+)
+
+var measures = map[string]measureSpec{
+	"s11":                  {unit: "dB", q: circuit.Dimensionless, freq: studyFrequency},
+	"s21":                  {unit: "dB", q: circuit.Dimensionless, freq: studyFrequency},
+	"s12":                  {unit: "dB", q: circuit.Dimensionless, freq: studyFrequency},
+	"s22":                  {unit: "dB", q: circuit.Dimensionless, freq: studyFrequency},
+	"zin_re":               {unit: "ohm", q: circuit.Resistance, freq: studyFrequency},
+	"zin_im":               {unit: "ohm", q: circuit.Resistance, freq: studyFrequency},
+	"zin_mag":              {unit: "ohm", q: circuit.Resistance, freq: studyFrequency},
+	"probe":                {unit: "dB", q: circuit.Dimensionless, needPart: true, freq: studyFrequency},
+	"noise_figure":         {unit: "dB", q: circuit.Dimensionless, freq: studyFrequency, needs: needNoise},
+	"hd2":                  {unit: "dBc", q: circuit.Dimensionless, freq: distortionFrequency, needs: needDrive},
+	"hd3":                  {unit: "dBc", q: circuit.Dimensionless, freq: distortionFrequency, needs: needDrive},
+	"dc_shift":             {unit: "V", q: circuit.Voltage, freq: distortionFrequency, polar: true, needs: needDrive},
+	"sensitivity":          {unit: "V/W", q: circuit.Dimensionless, freq: distortionFrequency, polar: true, needs: needDrive},
+	"nep":                  {unit: "W/√Hz", q: circuit.Dimensionless, needs: needDetector},
+	"tss":                  {unit: "dBm", q: circuit.Dimensionless, needs: needDetector},
+	"current":              {unit: "A", q: circuit.Current, needPart: true},
+	"voltage":              {unit: "V", q: circuit.Voltage, needPart: true},
+	"dynamic_resistance":   {unit: "ohm", q: circuit.Resistance, needPart: true},
+	"junction_capacitance": {unit: "F", q: circuit.Capacitance, needPart: true},
+	"video_resistance":     {unit: "ohm", q: circuit.Resistance, needPart: true},
+	"current_sensitivity":  {unit: "A/W", q: circuit.Dimensionless, needPart: true, freq: studyFrequency, polar: true},
+	"voltage_sensitivity":  {unit: "V/W", q: circuit.Dimensionless, needPart: true, freq: studyFrequency, polar: true},
+}
+
+// Polar reports whether the measure's sign is only a polarity (a
+// detector's voltage sensitivity, a DC shift): Optimize then seeks the
+// largest or smallest magnitude unless Signed is set.
+func (m *Measure) Polar() bool { return m.spec.polar }
+
+// OnMagnitude reports whether Optimize acts on |value|.
+func (m *Measure) OnMagnitude() bool { return m.spec.polar && !m.Signed }
+
+// objective is what Optimize compares.
+func (m *Measure) objective(v float64) float64 {
+	if m.OnMagnitude() {
+		return math.Abs(v)
+	}
+	return v
 }
 
 // MeasureNames lists the accepted measure names.
@@ -82,10 +146,10 @@ func ParseMeasure(s string) (*Measure, error) {
 	if !spec.needPart && part != "" {
 		return nil, fmt.Errorf("`%s` takes no part name", s)
 	}
-	if !spec.needFreq && m.FrequencyHz != 0 {
+	if spec.freq == noFrequency && m.FrequencyHz != 0 {
 		return nil, fmt.Errorf("`%s` does not depend on a chosen frequency; drop @…", s)
 	}
-	m.Name, m.Part, m.Unit, m.quantity = name, part, spec.unit, spec.q
+	m.Name, m.Part, m.Unit, m.quantity, m.spec = name, part, spec.unit, spec.q, spec
 	return m, nil
 }
 
@@ -106,14 +170,21 @@ func (m *Measure) ParseValue(s string) (float64, error) {
 	return v, nil
 }
 
-// NeedsDrive reports whether the measure needs a distortion drive.
-func (m *Measure) NeedsDrive() bool {
-	switch m.Name {
-	case "hd2", "hd3", "dc_shift", "sensitivity":
-		return true
-	}
-	return false
-}
+// NeedsDrive reports whether the measure needs a distortion drive (a
+// signal level).
+func (m *Measure) NeedsDrive() bool { return m.spec.needs == needDrive }
+
+// NeedsNoise reports whether the measure needs the noise figure
+// (Settings.NoiseFigure).
+func (m *Measure) NeedsNoise() bool { return m.spec.needs == needNoise }
+
+// NeedsDetector reports whether the measure needs the detector figures
+// (Settings.Detector).
+func (m *Measure) NeedsDetector() bool { return m.spec.needs == needDetector }
+
+// AtDistortion reports whether the measure's @F picks a distortion
+// frequency rather than a study frequency.
+func (m *Measure) AtDistortion() bool { return m.spec.freq == distortionFrequency }
 
 // Of reads the measure from a step; freqs are the study's frequencies.
 func (m *Measure) Of(st *Step, freqs []float64, probes []string) (float64, error) {
@@ -121,7 +192,7 @@ func (m *Measure) Of(st *Step, freqs []float64, probes []string) (float64, error
 		return math.NaN(), st.Err
 	}
 	fi := 0
-	if m.FrequencyHz != 0 {
+	if m.FrequencyHz != 0 && m.spec.freq == studyFrequency {
 		fi = -1
 		for i, f := range freqs {
 			if f == m.FrequencyHz {
@@ -132,7 +203,7 @@ func (m *Measure) Of(st *Step, freqs []float64, probes []string) (float64, error
 			return math.NaN(), fmt.Errorf("%s: %g Hz is not among the study's frequencies", m.Text, m.FrequencyHz)
 		}
 	}
-	resp := func() (*Response, error) {
+	resp := func() (*Spot, error) {
 		if fi >= len(st.Responses) {
 			return nil, fmt.Errorf("%s: the circuit has no ports or no study frequency", m.Text)
 		}
@@ -148,7 +219,7 @@ func (m *Measure) Of(st *Step, freqs []float64, probes []string) (float64, error
 		}
 		return 20 * math.Log10(cmplx.Abs(r.S[i][j])), nil
 	}
-	diode := func() (*Diode, error) {
+	diode := func() (*DiodeState, error) {
 		for k := range st.Diodes {
 			if st.Diodes[k].Name == m.Part {
 				return &st.Diodes[k], nil
@@ -193,14 +264,48 @@ func (m *Measure) Of(st *Step, freqs []float64, probes []string) (float64, error
 			}
 		}
 		return math.NaN(), fmt.Errorf("%s: `%s` is not a probe of the circuit; accepted: %s", m.Text, m.Part, strings.Join(probes, ", "))
-	case "hd2":
-		return st.HD2dBc, nil
-	case "hd3":
-		return st.HD3dBc, nil
-	case "dc_shift":
-		return st.DCShift, nil
-	case "sensitivity":
-		return st.DetectorSensitivity, nil
+	case "hd2", "hd3", "dc_shift", "sensitivity":
+		if len(st.Distortion) == 0 {
+			return math.NaN(), fmt.Errorf("%s: the study estimates no distortion; give a signal level", m.Text)
+		}
+		d := &st.Distortion[0]
+		if m.FrequencyHz != 0 {
+			d = nil
+			var have []string
+			for k := range st.Distortion {
+				if st.Distortion[k].FrequencyHz == m.FrequencyHz {
+					d = &st.Distortion[k]
+				}
+				have = append(have, fmt.Sprintf("%g Hz", st.Distortion[k].FrequencyHz))
+			}
+			if d == nil {
+				return math.NaN(), fmt.Errorf("%s: %g Hz is not a distortion frequency of the study; accepted: %s", m.Text, m.FrequencyHz, strings.Join(have, ", "))
+			}
+		}
+		switch m.Name {
+		case "hd2":
+			return d.HD2dBc, nil
+		case "hd3":
+			return d.HD3dBc, nil
+		case "dc_shift":
+			return d.DCShift, nil
+		}
+		return d.Sensitivity, nil
+	case "noise_figure":
+		if fi >= len(st.NoiseFigureDB) {
+			return math.NaN(), fmt.Errorf("%s: the study computes no noise figure", m.Text)
+		}
+		return st.NoiseFigureDB[fi], nil
+	case "nep", "tss":
+		switch {
+		case st.Detection == nil:
+			return math.NaN(), fmt.Errorf("%s: the study computes no detector figures", m.Text)
+		case !st.Detection.Detects:
+			return math.NaN(), fmt.Errorf("%s: the output does not detect the carrier (its DC level does not move)", m.Text)
+		case m.Name == "tss":
+			return st.Detection.TangentialDBm, nil
+		}
+		return st.Detection.NEP, nil
 	}
 	d, err := diode()
 	if err != nil {

@@ -6,6 +6,7 @@ import (
 	"math"
 	"math/cmplx"
 	"runtime"
+	"slices"
 	"sync"
 	"sync/atomic"
 
@@ -66,18 +67,71 @@ type Settings struct {
 	// SecondIsFrequency the second axis is frequency instead.
 	FrequenciesHz     []float64
 	SecondIsFrequency bool
-	// Distortion: when Drive.EMF > 0, each step estimates HD2, HD3 and the
-	// DC shift for this drive (frequency taken from Drive).
-	Drive ac.Drive
-	// Workers running steps in parallel; zero means all cores.
+	// Distortion: when Drive.EMF > 0, each step estimates the
+	// fundamental, HD2, HD3 and the DC shift for this drive at each of
+	// DistortionHz (at Drive.FrequencyHz alone when DistortionHz is
+	// empty). Drive's input and output also set the signal path of the
+	// noise figure and the detector figures.
+	Drive        ac.Drive
+	DistortionHz []float64
+	// NoiseFigure, when true, computes each step's noise figure at each
+	// study frequency (FrequenciesHz) from Drive.Input to Drive.Output.
+	NoiseFigure bool
+	// Detector, when not nil, computes each step's noise-equivalent power
+	// and tangential sensitivity (ac.Detector) with the carrier at the
+	// first distortion frequency.
+	Detector *DetectorSettings
+	// Workers running steps in parallel; zero means all cores. No more
+	// run than there are chains of steps to share out.
 	Workers int
 	// Progress, when not nil, is called after each step with the count
 	// done; calls come from one goroutine at a time.
 	Progress func(done, total int)
 }
 
-// Diode is a diode's state at one step.
-type Diode struct {
+// DetectorSettings give the video band over which a detector's output
+// noise is counted for its tangential sensitivity; its noise-equivalent
+// power is taken at the band's geometric centre (ac.Detector).
+type DetectorSettings struct {
+	VideoFromHz, VideoToHz float64
+}
+
+// DistortionFrequencies returns the frequencies at which the study
+// estimates distortion: DistortionHz, else the drive's frequency; none
+// without a drive.
+func (s *Settings) DistortionFrequencies() []float64 {
+	if s.Drive.EMF <= 0 {
+		return nil
+	}
+	if len(s.DistortionHz) > 0 {
+		return s.DistortionHz
+	}
+	return []float64{s.Drive.FrequencyHz}
+}
+
+// Detection is a detector's sensitivity limit at one step (ac.Detector).
+type Detection struct {
+	// Detects is false where the carrier does not move the output's DC
+	// level: the output is not a detector's, and the figures are zero.
+	Detects       bool
+	NEP           float64 // noise-equivalent power, W/√Hz, at the video band's centre
+	TangentialDBm float64 // tangential sensitivity, dBm of available power
+}
+
+// Distortion is the Volterra estimate at one step and one frequency.
+type Distortion struct {
+	FrequencyHz    float64
+	Fundamental    float64 // output at f1 to third order, V peak
+	HD2dBc, HD3dBc float64
+	DCShift        float64 // V
+	// Sensitivity is the DC shift at the output per available input
+	// power, V/W: the whole circuit's voltage sensitivity including its
+	// match. Its sign is the detector's polarity.
+	Sensitivity float64
+}
+
+// DiodeState is a diode's state at one step.
+type DiodeState struct {
 	Name                 string
 	Current              float64 // A
 	Voltage              float64 // V, terminal
@@ -94,8 +148,8 @@ type Diode struct {
 	Warnings           int
 }
 
-// Response is the small-signal response at one frequency.
-type Response struct {
+// Spot is the small-signal response at one frequency.
+type Spot struct {
 	FrequencyHz    float64
 	S              [][]complex128
 	InputImpedance []complex128
@@ -109,21 +163,26 @@ type Step struct {
 
 	Iterations int           // Newton iterations of the bias solve
 	Strategy   bias.Strategy // how the bias converged
-	Diodes     []Diode
-	Responses  []Response // one per study frequency
+	Diodes     []DiodeState
+	Responses  []Spot // one per study frequency
 	Warnings   []bias.Warning
 
-	// Distortion estimate (when asked for): output fundamental, HD2 and
-	// HD3 in dBc and the DC shift.
-	Fundamental    float64
-	HD2dBc, HD3dBc float64
-	DCShift        float64
-	// DetectorSensitivity is the DC shift at the output per available
-	// input power, V/W, at the drive's frequency: the whole circuit's
-	// voltage sensitivity including its match.
-	DetectorSensitivity float64
+	// Distortion holds the estimates at each distortion frequency
+	// (Settings.DistortionFrequencies), when asked for.
+	Distortion []Distortion
+	// NoiseFigureDB is the noise figure at each study frequency, when
+	// asked for.
+	NoiseFigureDB []float64
+	// Detection holds the detector figures, when asked for
+	// (Settings.Detector).
+	Detection *Detection
 
 	Err error // non-nil when this step could not be solved
+
+	// sensitivities holds every diode's two sensitivities at each
+	// frequency, in one block (Diode.CurrentSensitivity and
+	// VoltageSensitivity are its slices).
+	sensitivities []float64
 }
 
 // Result is a whole study.
@@ -190,6 +249,9 @@ func Run(c *circuit.Circuit, s Settings) (*Result, error) {
 	if workers <= 0 {
 		workers = runtime.GOMAXPROCS(0)
 	}
+	// More workers than chains would only wait: each holds a workspace,
+	// so a huge count costs memory and time for nothing.
+	workers = min(workers, len(chains))
 	// Workers take the next chain by an atomic counter: no goroutine hands
 	// chains out, so a worker never waits for one to be scheduled.
 	var next atomic.Int64
@@ -267,6 +329,13 @@ func runStep(c *circuit.Circuit, s Settings, i, j int, prev *bias.Point, st *Ste
 			}
 		}
 	}
+	return analyse(cc, temp, freqs, s, prev, st, ws)
+}
+
+// analyse solves circuit cc at temperature temp (kelvin) from prev, and
+// fills st with what s asks for at the frequencies freqs, in the storage
+// of ws. It returns the bias point, as runStep does.
+func analyse(cc *circuit.Circuit, temp float64, freqs []float64, s Settings, prev *bias.Point, st *Step, ws *workspace) *bias.Point {
 	p, err := ws.bias.Solve(cc, bias.Settings{TemperatureK: temp, Start: prev})
 	if err != nil {
 		st.Err = err
@@ -281,17 +350,18 @@ func runStep(c *circuit.Circuit, s Settings, i, j int, prev *bias.Point, st *Ste
 		return p
 	}
 	if len(p.Diodes) > 0 {
-		st.Diodes = make([]Diode, 0, len(p.Diodes))
+		st.Diodes = slices.Grow(st.Diodes[:0], len(p.Diodes))
 	}
 	// Every diode's two sensitivities at each frequency, in one block.
 	nf := len(freqs)
 	var sensitivities []float64
 	if nf > 0 {
-		sensitivities = make([]float64, 2*nf*len(p.Diodes))
+		st.sensitivities = slices.Grow(st.sensitivities[:0], 2*nf*len(p.Diodes))[:2*nf*len(p.Diodes)]
+		sensitivities = st.sensitivities
 	}
 	for k, d := range p.Diodes {
 		sd := nw.Diodes[k]
-		dd := Diode{
+		dd := DiodeState{
 			Name: d.Name, Current: d.Current, Voltage: d.Voltage,
 			DynamicResistance: d.DynamicResistance, JunctionCapacitance: d.JunctionCapacitance,
 			DiffusionCapacitance: d.DiffusionCapacitance,
@@ -301,7 +371,7 @@ func runStep(c *circuit.Circuit, s Settings, i, j int, prev *bias.Point, st *Ste
 			block := sensitivities[2*nf*k : 2*nf*(k+1)]
 			dd.CurrentSensitivity, dd.VoltageSensitivity = block[:nf:nf], block[nf:2*nf:2*nf]
 			for fi, f := range freqs {
-				b := Sensitivity(sd, f)
+				b := sd.CurrentSensitivity(f)
 				dd.CurrentSensitivity[fi] = b
 				dd.VoltageSensitivity[fi] = b * dd.VideoResistance
 			}
@@ -314,10 +384,10 @@ func runStep(c *circuit.Circuit, s Settings, i, j int, prev *bias.Point, st *Ste
 		st.Diodes = append(st.Diodes, dd)
 	}
 	if len(nw.Ports) > 0 && len(freqs) > 0 {
-		st.Responses = make([]Response, 0, len(freqs))
+		st.Responses = slices.Grow(st.Responses[:0], len(freqs))
 		ws.ac.ReservePoints(len(freqs), len(nw.Ports), len(nw.Point.Circuit.Probes))
 		_, _, err := ws.ac.Sweep(nw, freqs, ac.Settings{}, func(pt ac.Point) error {
-			st.Responses = append(st.Responses, Response{pt.FrequencyHz, pt.S, pt.InputImpedance, pt.Probes})
+			st.Responses = append(st.Responses, Spot{pt.FrequencyHz, pt.S, pt.InputImpedance, pt.Probes})
 			return nil
 		})
 		if err != nil {
@@ -325,40 +395,54 @@ func runStep(c *circuit.Circuit, s Settings, i, j int, prev *bias.Point, st *Ste
 			return p
 		}
 	}
-	if s.Drive.EMF > 0 && len(nw.Ports) > 0 {
-		d := s.Drive
-		d.SecondToneHz = 0
-		e, err := ws.ac.Volterra(nw, d)
+	if df := s.DistortionFrequencies(); len(df) > 0 && len(nw.Ports) > 0 {
+		st.Distortion = slices.Grow(st.Distortion[:0], len(df))
+		for _, f := range df {
+			d := s.Drive
+			d.SecondToneHz = 0
+			d.FrequencyHz = f
+			e, err := ws.ac.Volterra(nw, d)
+			if err != nil {
+				st.Err = err
+				return p
+			}
+			pin := ac.AvailablePower(d.EMF, nw.Ports[d.Input].Impedance)
+			st.Distortion = append(st.Distortion, Distortion{FrequencyHz: f,
+				Fundamental: cmplx.Abs(e.Fundamental), HD2dBc: e.HD2dBc(), HD3dBc: e.HD3dBc(),
+				DCShift: e.DCShift, Sensitivity: e.DCShift / pin})
+		}
+	}
+	path := ac.NoiseSettings{Input: s.Drive.Input, Output: s.Drive.Output}
+	if s.NoiseFigure && len(nw.Ports) > 0 && len(freqs) > 0 {
+		r, err := ac.Noise(nw, freqs, path)
 		if err != nil {
 			st.Err = err
 			return p
 		}
-		st.Fundamental = cmplx.Abs(e.Fundamental)
-		st.HD2dBc, st.HD3dBc, st.DCShift = e.HD2dBc(), e.HD3dBc(), e.DCShift
-		pin := d.EMF * d.EMF / (8 * nw.Ports[d.Input].Impedance)
-		st.DetectorSensitivity = e.DCShift / pin
+		st.NoiseFigureDB = slices.Grow(st.NoiseFigureDB[:0], len(freqs))[:len(freqs)]
+		for i, pt := range r.Points {
+			st.NoiseFigureDB[i] = pt.FigureDB()
+		}
+	}
+	if s.Detector != nil && len(nw.Ports) > 0 {
+		if st.Detection == nil {
+			st.Detection = new(Detection)
+		}
+		*st.Detection = Detection{}
+		carrier := s.Drive.FrequencyHz
+		if df := s.DistortionHz; len(df) > 0 {
+			carrier = df[0]
+		}
+		det, err := ac.Detector(nw, path, carrier, s.Detector.VideoFromHz, s.Detector.VideoToHz)
+		switch {
+		case errors.Is(err, ac.ErrNoRectification):
+			// Not a detector at this step: the figures stay NaN.
+		case err != nil:
+			st.Err = err
+			return p
+		default:
+			*st.Detection = Detection{Detects: true, NEP: det.NEP, TangentialDBm: det.TangentialDBm()}
+		}
 	}
 	return p
-}
-
-// Sensitivity returns a diode's short-circuit current sensitivity at
-// frequency f in A/W of RF power absorbed by the chip (junction and series
-// resistance):
-//
-//	β = (g2/g1) / (1 + R_S/R_j + ω² C² R_S R_j)
-//
-// where g1, g2 are the junction current's Taylor coefficients (g2/g1 =
-// 1/(2 n V_T) for the ideal law), R_j = 1/g1 and C the junction's total
-// capacitance. The rectified current is g2|v|²/2 for junction voltage v,
-// the power absorbed in the junction |v|²g1/2, and the chip absorbs
-// 1 + R_S/R_j + ω²C²R_S R_j times that; Cowley and Sorensen (1966) give the
-// same frequency roll-off as 1/(1 + ω²C²R_S R_j) and the resistive loss as
-// 1/(1 + R_S/R_j).
-func Sensitivity(d smallsignal.Diode, f float64) float64 {
-	if d.G1 <= 0 {
-		return 0
-	}
-	rj := 1 / d.G1
-	w := 2 * math.Pi * f
-	return (d.G2 / d.G1) / (1 + d.SeriesResistance/rj + w*w*d.C1*d.C1*d.SeriesResistance*rj)
 }

@@ -72,7 +72,7 @@ ports:
 		d := nw.Diodes[0]
 		nvt := 1.1 * diode.ThermalVoltage(300.15)
 		if rs == 0 {
-			if got := Sensitivity(d, 1e3); math.Abs(got*2*nvt-1) > 1e-12 {
+			if got := d.CurrentSensitivity(1e3); math.Abs(got*2*nvt-1) > 1e-12 {
 				t.Errorf("β at 1 kHz with R_S = 0: %.6g A/W, want 1/(2 n V_T) = %.6g A/W", got, 1/(2*nvt))
 			}
 			continue
@@ -80,7 +80,7 @@ ports:
 		rj := 1 / d.G1
 		for _, f := range []float64{1e8, 1e9, 1e10, 3e10} {
 			w := 2 * math.Pi * f
-			ratio := Sensitivity(d, f) / Sensitivity(d, 1)
+			ratio := d.CurrentSensitivity(f) / d.CurrentSensitivity(1)
 			want := 1 / (1 + w*w*d.C1*d.C1*rs*rj)
 			// R_S/R_j = 0.5/1.1k: the product form and the exact share
 			// of absorbed power differ by that order.

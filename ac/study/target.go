@@ -16,6 +16,9 @@ type Solution struct {
 	Tolerance  float64    // on Value, absolute
 	Iterations int        // refinement evaluations
 	AtEdge     bool       // an optimum at the end of the range
+	// OnMagnitude: the optimisation compared |measure| because its sign
+	// is only a polarity (Measure.OnMagnitude); Measure keeps the sign.
+	OnMagnitude bool
 }
 
 // ErrNoCrossing reports a target the measure does not reach in the range.
@@ -172,8 +175,8 @@ func Optimize(r *Result, m *Measure, maximize bool, tol float64) (*Solution, err
 			}
 			continue
 		}
-		if sign*v > best {
-			best, bi = sign*v, i
+		if o := sign * m.objective(v); o > best {
+			best, bi = o, i
 		}
 	}
 	if bi < 0 {
@@ -186,7 +189,7 @@ func Optimize(r *Result, m *Measure, maximize bool, tol float64) (*Solution, err
 		if err != nil {
 			return math.Inf(-1)
 		}
-		return sign * v
+		return sign * m.objective(v)
 	}
 	span := math.Abs(xs[len(xs)-1] - xs[0])
 	const g = 0.6180339887498949 // (√5 - 1)/2
@@ -211,8 +214,13 @@ func Optimize(r *Result, m *Measure, maximize bool, tol float64) (*Solution, err
 		x, v = x2, f2
 	}
 	if best > v {
-		x, v = xs[bi], best
+		x = xs[bi]
 	}
-	return &Solution{Value: x, Measure: sign * v, Bracket: [2]float64{lo, hi}, Tolerance: tol * span, Iterations: n,
-		AtEdge: bi == 0 || bi == len(xs)-1}, nil
+	// Report the measure's own (signed) value at the optimum.
+	val, err := m.Of(evaluate(r.Circuit, r.Settings, x), freqs, r.Probes)
+	if err != nil {
+		return nil, err
+	}
+	return &Solution{Value: x, Measure: val, Bracket: [2]float64{lo, hi}, Tolerance: tol * span, Iterations: n,
+		AtEdge: bi == 0 || bi == len(xs)-1, OnMagnitude: m.OnMagnitude()}, nil
 }

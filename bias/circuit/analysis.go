@@ -3,11 +3,11 @@ package circuit
 import (
 	"strings"
 
-	"gopkg.in/yaml.v3"
+	"go.yaml.in/yaml/v3"
 )
 
 var (
-	analysisKeys   = []string{"response", "distortion", "study"}
+	analysisKeys   = []string{"response", "distortion", "study", "yield"}
 	responseKeys   = []string{"from", "to", "per_decade", "points"}
 	distortionKeys = []string{"input", "output", "frequency", "level", "second_tone"}
 	studyKeys      = []string{"vary", "from", "to", "steps", "log"}
@@ -31,6 +31,9 @@ func (l *loader) analysis(n *yaml.Node) {
 	}
 	if e, ok := f["study"]; ok {
 		l.study(e.val)
+	}
+	if e, ok := f["yield"]; ok {
+		l.yieldDefaults(e.val)
 	}
 }
 

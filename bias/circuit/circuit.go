@@ -93,8 +93,9 @@ type Level struct {
 	IsPower   bool // true: DBm holds the level; false: PeakVolts does
 }
 
-// Response holds the file's defaults for a frequency response.
-type Response struct {
+// ResponseDefaults holds the file's defaults for a frequency response
+// (analysis.response).
+type ResponseDefaults struct {
 	Set       bool
 	FromHz    float64
 	ToHz      float64
@@ -103,8 +104,9 @@ type Response struct {
 	Pos       Pos
 }
 
-// Distortion holds the file's defaults for a distortion analysis.
-type Distortion struct {
+// DistortionDefaults holds the file's defaults for a distortion analysis
+// (analysis.distortion).
+type DistortionDefaults struct {
 	Set          bool
 	Input        string // port name
 	Output       string // port or node name
@@ -115,8 +117,9 @@ type Distortion struct {
 	Pos          Pos
 }
 
-// Study holds the file's defaults for a bias study.
-type Study struct {
+// StudyDefaults holds the file's defaults for a bias study
+// (analysis.study).
+type StudyDefaults struct {
 	Set   bool
 	Vary  string // "PART.value", "MODEL.parameter_name" or "temperature"
 	From  float64
@@ -128,9 +131,10 @@ type Study struct {
 
 // Analysis holds the optional analysis defaults.
 type Analysis struct {
-	Response   Response
-	Distortion Distortion
-	Study      Study
+	Response   ResponseDefaults
+	Distortion DistortionDefaults
+	Study      StudyDefaults
+	Yield      YieldDefaults // tolerance.go
 }
 
 // Circuit is a loaded and checked circuit file. All values are in SI base
@@ -148,4 +152,15 @@ type Circuit struct {
 	// Nodes lists every node other than Ground, in order of first
 	// appearance in the file.
 	Nodes []string
+	// Overrides lists the values set from outside the file (WithOverride),
+	// in the order they were applied.
+	Overrides []Override
+	// Warnings lists what the loader found legal but probably not meant,
+	// in file order.
+	Warnings []Warning
+	// Tolerances lists the values that spread from part to part, in part
+	// order, and ToleranceGroups the values that spread together
+	// (tolerance.go).
+	Tolerances      []Tolerance
+	ToleranceGroups []ToleranceGroup
 }

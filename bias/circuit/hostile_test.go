@@ -2,6 +2,7 @@ package circuit
 
 import (
 	"errors"
+	"fmt"
 	"os"
 	"path/filepath"
 	"regexp"
@@ -159,5 +160,52 @@ func TestLoadOversize(t *testing.T) {
 			t.Errorf("Load(%s) allocated %d bytes, want at most %d", c.path, alloc, c.maxAlloc)
 		}
 		t.Logf("%s: refused in %v, %d bytes allocated", filepath.Base(c.path), took, after.TotalAlloc-before.TotalAlloc)
+	}
+}
+
+// TestWiringWarnings: names that differ from gnd only by case, spaces or
+// invisible characters, and nodes with one terminal, load (they are
+// legal) but are warned about at their FILE:LINE:COL (issue 13, item 4).
+// The demos and the hard circuits draw no such warning.
+func TestWiringWarnings(t *testing.T) {
+	const head = "diode_models:\n  m: {saturation_current: 1e-14}\nparts:\n  - {type: voltage_source, name: V1, plus: a, minus: gnd, value: 1}\n  - {type: resistor, name: R1, between: [a, k], value: 1k}\n  - {type: resistor, name: R3, between: [k, gnd], value: 1k}\n"
+	cases := []struct {
+		line  string // the sixth line of the file
+		kinds []WarningKind
+		at    string
+	}{
+		{`  - {type: diode, name: D1, anode: k, cathode: GND, model: m}`, []WarningKind{GroundLookalike, Dangling}, "7:48"},
+		{`  - {type: diode, name: D1, anode: k, cathode: "gnd ", model: m}`, []WarningKind{GroundLookalike, Dangling}, "7:48"},
+		{`  - {type: diode, name: D1, anode: k, cathode: "gnd\u200b", model: m}`, []WarningKind{GroundLookalike, Dangling}, "7:48"},
+		{`  - {type: diode, name: D1, anode: k, cathode: "g\u00adnd", model: m}`, []WarningKind{GroundLookalike, Dangling}, "7:48"},
+		{`  - {type: diode, name: D1, anode: k, cathode: kk, model: m}`, []WarningKind{Dangling}, "7:48"},
+		{`  - {type: diode, name: D1, anode: k, cathode: gnd, model: m}`, nil, ""},
+	}
+	for _, c := range cases {
+		cir, err := Parse("w.yaml", []byte(head+c.line+"\n"))
+		if err != nil {
+			t.Fatalf("%s: %v", c.line, err)
+		}
+		var kinds []WarningKind
+		for _, w := range cir.Warnings {
+			kinds = append(kinds, w.Kind)
+			if got := fmt.Sprintf("%d:%d", w.Line, w.Col); got != c.at {
+				t.Errorf("%s: warning at %s, want %s: %v", c.line, got, c.at, w)
+			}
+		}
+		if fmt.Sprint(kinds) != fmt.Sprint(c.kinds) {
+			t.Errorf("%s: warnings %v, want %v (%v)", c.line, kinds, c.kinds, cir.Warnings)
+		}
+	}
+	paths, _ := filepath.Glob("../../testdata/demo/*.yaml")
+	hard, _ := filepath.Glob("../../testdata/hard/*.yaml")
+	for _, path := range append(paths, hard...) {
+		cir, err := Load(path)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if len(cir.Warnings) > 0 {
+			t.Errorf("%s: %v", path, cir.Warnings)
+		}
 	}
 }

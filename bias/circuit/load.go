@@ -7,11 +7,12 @@ import (
 	"io"
 	"os"
 	"regexp"
+	"sort"
 	"strconv"
 	"strings"
 	"unicode/utf8"
 
-	"gopkg.in/yaml.v3"
+	"go.yaml.in/yaml/v3"
 )
 
 // MaxFileSize is the largest circuit file accepted, in bytes. A hand-written
@@ -23,7 +24,7 @@ const MaxFileSize = 1 << 20
 // diode values hold at unless the file says otherwise.
 const defaultTemperatureK = 27 + zeroCelsiusK
 
-var topKeys = []string{"name", "temperature", "diode_models", "parts", "ports", "probes", "analysis"}
+var topKeys = []string{"name", "temperature", "diode_models", "parts", "ports", "probes", "analysis", "tolerance_groups"}
 
 // Load reads and checks the circuit file at path. Problems in the file come
 // back as an ErrorList naming file, line and column of each; a file that
@@ -58,6 +59,11 @@ func Parse(file string, data []byte) (*Circuit, error) {
 	if err := finish(l.errs); err != nil {
 		return nil, err
 	}
+	c.Warnings = append(c.Warnings, plausibility(c, l.written)...)
+	sort.SliceStable(c.Warnings, func(i, j int) bool {
+		a, b := c.Warnings[i], c.Warnings[j]
+		return a.Line < b.Line || a.Line == b.Line && a.Col < b.Col
+	})
 	return c, nil
 }
 
@@ -72,6 +78,9 @@ type loader struct {
 	file string
 	errs []*Error
 	c    *Circuit
+	// written keeps the part and model values as the file wrote them,
+	// for the plausibility cautions.
+	written []written
 
 	// nodeAt is the first place each node other than gnd appears in parts.
 	nodeAt map[string]Pos
@@ -89,6 +98,8 @@ type loader struct {
 	partKind map[string]Kind // part name -> kind, for parts whose type is known
 	modelAt  map[string]Pos  // diode model name -> where it is named
 	portAt   map[string]Pos  // port name -> where it is named
+
+	tolerances *toleranceState // spreads read so far (tolerance.go)
 }
 
 // errorf records a problem at node n.
@@ -334,6 +345,11 @@ func (l *loader) circuit(root *yaml.Node) *Circuit {
 		l.partsComplete = false
 	}
 	l.collectNodes()
+	if e, ok := top["tolerance_groups"]; ok {
+		l.resolveTolerances(&e)
+	} else {
+		l.resolveTolerances(nil)
+	}
 	if e, ok := top["ports"]; ok {
 		l.ports(e.val)
 	}
@@ -345,6 +361,7 @@ func (l *loader) circuit(root *yaml.Node) *Circuit {
 	}
 	if e, ok := top["parts"]; ok && l.partsComplete && l.portsComplete {
 		l.topology(e.key)
+		l.wiring()
 	}
 	return l.c
 }

@@ -84,12 +84,12 @@ func TestLoadFull(t *testing.T) {
 		t.Errorf("Nodes = %v, want %v (order of first appearance, without gnd)", c.Nodes, want)
 	}
 	wantAnalysis := Analysis{
-		Response: Response{Set: true, FromHz: 10e6, ToHz: 6e9, PerDecade: 40, Pos: Pos{49, 15}},
-		Distortion: Distortion{Set: true, Input: "rf", Output: "video", OutputIsPort: true,
+		Response: ResponseDefaults{Set: true, FromHz: 10e6, ToHz: 6e9, PerDecade: 40, Pos: Pos{49, 15}},
+		Distortion: DistortionDefaults{Set: true, Input: "rf", Output: "video", OutputIsPort: true,
 			FrequencyHz: 2.45e9, Level: Level{DBm: -30, IsPower: true}, SecondToneHz: 2.451e9, Pos: Pos{50, 15}},
-		Study: Study{Set: true, Vary: "Rbias.value", From: 10e3, To: 1e6, Steps: 20, Log: true, Pos: Pos{51, 15}},
+		Study: StudyDefaults{Set: true, Vary: "Rbias.value", From: 10e3, To: 1e6, Steps: 20, Log: true, Pos: Pos{51, 15}},
 	}
-	if c.Analysis != wantAnalysis {
+	if !reflect.DeepEqual(c.Analysis, wantAnalysis) {
 		t.Errorf("Analysis = %+v\nwant %+v", c.Analysis, wantAnalysis)
 	}
 }

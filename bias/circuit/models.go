@@ -3,7 +3,7 @@ package circuit
 import (
 	"qpoint/bias/diode"
 
-	"gopkg.in/yaml.v3"
+	"go.yaml.in/yaml/v3"
 )
 
 // modelKey is one numeric key of a diode model: its quantity, the range it
@@ -132,7 +132,7 @@ func (l *loader) models(n *yaml.Node) {
 func (l *loader) model(n *yaml.Node, name string) diode.Params {
 	p := diode.Defaults()
 	what := "diode model `" + name + "`"
-	f := l.fields(n, what, modelKeyNames(), nil)
+	f := l.fields(n, what, append(modelKeyNames(), "spread"), nil)
 	if n.Kind != yaml.MappingNode {
 		return p
 	}
@@ -144,6 +144,7 @@ func (l *loader) model(n *yaml.Node, name string) diode.Params {
 		label := mk.key + " of " + what
 		if v, ok := l.value(e.val, mk.q, label, mk.r); ok {
 			*mk.field(&p) = v
+			l.written = append(l.written, written{pos: Pos{e.val.Line, e.val.Column}, owner: name, key: mk.key, model: true, text: e.val.Value, v: v})
 		}
 	}
 	if _, ok := f["saturation_current"]; !ok {
@@ -165,6 +166,9 @@ func (l *loader) model(n *yaml.Node, name string) diode.Params {
 	}
 	if e, ok := f["ratings"]; ok {
 		p.Ratings = l.ratings(e.val, what)
+	}
+	if e, ok := f["spread"]; ok {
+		l.modelSpread(e.val, name, what)
 	}
 	return p
 }

@@ -5,7 +5,7 @@ import (
 	"sort"
 	"strings"
 
-	"gopkg.in/yaml.v3"
+	"go.yaml.in/yaml/v3"
 )
 
 var kindNames = []string{"resistor", "capacitor", "inductor", "voltage_source", "current_source", "diode"}
@@ -32,7 +32,7 @@ var kindSpecs = map[Kind]kindSpec{
 func (s kindSpec) keys() []string {
 	keys := append([]string{"type", "name"}, s.terminals...)
 	if s.hasValue {
-		keys = append(keys, "value")
+		keys = append(keys, "value", "tolerance")
 	} else {
 		keys = append(keys, "model")
 	}
@@ -165,9 +165,13 @@ func (l *loader) part(i int, n *yaml.Node) (p Part, complete bool) {
 			what := "value of " + label
 			if v, ok := l.value(e.val, spec.q, what, spec.r); ok {
 				p.Value = v
+				l.written = append(l.written, written{pos: Pos{e.val.Line, e.val.Column}, owner: p.Name, key: "value", kind: kind, text: e.val.Value, v: v})
 			}
 		} else {
 			l.missing(n, "value", keys, "%s has no `value`; accepted: value: %s", label, spec.q.Accepted())
+		}
+		if e, ok := f["tolerance"]; ok {
+			l.partTolerance(e.val, &p, label)
 		}
 	} else {
 		l.diodeModel(n, f, keys, label, &p)

@@ -342,6 +342,13 @@ func contains(list []string, s string) bool {
 // levelAccepted describes how a signal level is written.
 const levelAccepted = "the generator's available power in dBm, e.g. -20dBm, or a peak voltage with unit V, e.g. 50mV"
 
+// MinLevelDBm and MaxLevelDBm bound a signal level's available power:
+// -200 dBm is far below any thermal floor, +90 dBm is a megawatt.
+const (
+	MinLevelDBm = -200
+	MaxLevelDBm = 90
+)
+
 // ParseLevel reads a signal level: the available power of a port's
 // generator in dBm (-20dBm, no prefix) or a peak voltage above zero with its
 // unit (50mV). A bare number is refused because it could be either.
@@ -376,7 +383,7 @@ func ParseLevel(s string) (Level, error) {
 	}
 	if power {
 		// -200 dBm is far below any thermal floor; +90 dBm is a megawatt.
-		if num < -200 || num > 90 {
+		if num < MinLevelDBm || num > MaxLevelDBm {
 			return fail("outside -200 dBm to +90 dBm")
 		}
 		return Level{DBm: num, IsPower: true}, nil

@@ -12,11 +12,21 @@ import (
 // junction nears and passes V_bi, where the textbook law has a pole.
 const depletionKnee = 0.5
 
-// maxExpArg bounds the argument of the junction exponentials. Beyond it a
-// law continues along its tangent so that a Newton iterate far from any
-// solution cannot overflow; no physical bias comes near it (e^200 I_S is
-// more than 1e60 A even for I_S = 1e-27 A).
-const maxExpArg = 200
+// MaxLawCurrent bounds the current a junction law may imply. Beyond the
+// junction voltage where I_S e^(v/nV_T) (or the breakdown knee's
+// I_BV e^(u/nV_T)) reaches it, the law continues along its tangent, so that
+// a Newton iterate far from any solution cannot overflow. The bound is set
+// by the current, not by a fixed argument of the exponential: at 10 K a
+// silicon junction needs e^1280 I_S to carry a milliampere, and a fixed
+// bound on the argument would cut the law off long before any current
+// flows. No circuit within the documented limits drives this much through
+// a resistance (1 MV across 1e-12 ohm is 1e18 A), so a junction that
+// reaches the tangent is one forced by a voltage with nothing to limit its
+// current, and OnTangent reports it.
+const MaxLawCurrent = 1e30
+
+// logMaxLawCurrent is ln MaxLawCurrent.
+var logMaxLawCurrent = math.Log(MaxLawCurrent)
 
 // Device is a diode model at one temperature: the parameters of Params
 // scaled to TempK, ready for evaluation.
@@ -24,10 +34,14 @@ type Device struct {
 	Params Params  // as given, valid at Params.MeasuredAtK
 	TempK  float64 // temperature the laws below hold at
 
-	ThermalVoltage      float64 // V_T = kT/q
-	SaturationCurrent   float64 // I_S(T)
-	BuiltInPotential    float64 // V_bi(T)
-	ZeroBiasCapacitance float64 // C_j0(T)
+	ThermalVoltage    float64 // V_T = kT/q
+	SaturationCurrent float64 // I_S(T); zero where it underflows, see LogSaturationCurrent
+	// LogSaturationCurrent is ln I_S(T), which the laws use: far below
+	// T0 the saturation current itself underflows (a silicon junction at
+	// 10 K has I_S near e^-1287 A) while the currents it implies do not.
+	LogSaturationCurrent float64
+	BuiltInPotential     float64 // V_bi(T)
+	ZeroBiasCapacitance  float64 // C_j0(T)
 
 	nvt float64 // n V_T
 
@@ -58,8 +72,11 @@ func New(p Params, tempK float64) *Device {
 	t0 := p.MeasuredAtK
 	ratio := tempK / t0
 	vt0 := Boltzmann / Charge // volts per kelvin
-	d.SaturationCurrent = p.SaturationCurrent * math.Pow(ratio, p.SaturationExponent/p.Ideality) *
-		math.Exp(p.GapEnergy/(p.Ideality*vt0)*(1/t0-1/tempK))
+	// In logarithmic form, so that neither factor can underflow or
+	// overflow on its own.
+	d.LogSaturationCurrent = math.Log(p.SaturationCurrent) + p.SaturationExponent/p.Ideality*math.Log(ratio) +
+		p.GapEnergy/(p.Ideality*vt0)*(1/t0-1/tempK)
+	d.SaturationCurrent = math.Exp(d.LogSaturationCurrent)
 
 	builtIn := p.GapEnergy + ratio*(p.BuiltInPotential-p.GapEnergy) - 3*d.ThermalVoltage*math.Log(ratio)
 	// The law is for a junction between two doped regions; far from T0 or
@@ -78,30 +95,48 @@ func New(p Params, tempK float64) *Device {
 // NVT returns n V_T, the junction's exponential voltage scale.
 func (d *Device) NVT() float64 { return d.nvt }
 
-// expLaw returns s·exp(a) and its first three derivatives with respect to a,
-// continuing along the tangent beyond maxExpArg.
-func expLaw(a float64) (e, e1, e2, e3 float64) {
-	if a <= maxExpArg {
-		e = math.Exp(a)
-		return e, e, e, e
+// boundedExp returns c(a) = exp(logScale + a) and its first three
+// derivatives with respect to a, continuing along the tangent beyond the
+// argument where c reaches MaxLawCurrent.
+func boundedExp(logScale, a float64) (e, e1, e2, e3 float64) {
+	if top := logMaxLawCurrent - logScale; a > top {
+		return MaxLawCurrent * (1 + a - top), MaxLawCurrent, 0, 0
 	}
-	em := math.Exp(maxExpArg)
-	return em * (1 + a - maxExpArg), em, 0, 0
+	e = math.Exp(logScale + a)
+	return e, e, e, e
+}
+
+// OnTangent reports whether the junction voltage v lies beyond the point
+// where the forward law or the breakdown knee implies MaxLawCurrent, where
+// the laws continue along their tangents and no longer describe a
+// junction.
+func (d *Device) OnTangent(v float64) bool {
+	if v/d.nvt > logMaxLawCurrent-d.LogSaturationCurrent {
+		return true
+	}
+	kneeVoltage := d.Params.BreakdownVoltage
+	return kneeVoltage > 0 && -(v+kneeVoltage)/d.nvt > logMaxLawCurrent-math.Log(d.Params.BreakdownCurrent)
 }
 
 // ForwardCurrent returns the ideal junction current
 //
 //	i_f(v) = I_S (exp(v / (n V_T)) - 1)
 //
-// without the breakdown knee.
+// without the breakdown knee, evaluated as exp(ln I_S + v/(n V_T)) - I_S so
+// that an I_S(T) too small for a float64 still gives the current it
+// implies.
 func (d *Device) ForwardCurrent(v float64) Law {
-	e, e1, e2, e3 := expLaw(v / d.nvt)
-	saturation := d.SaturationCurrent
+	a := v / d.nvt
+	e, e1, e2, e3 := boundedExp(d.LogSaturationCurrent, a)
+	value := e - d.SaturationCurrent
+	if math.Abs(a) < 1 {
+		value = d.SaturationCurrent * math.Expm1(a) // no cancellation near zero bias
+	}
 	return Law{
-		Value: saturation * (e - 1),
-		D1:    saturation * e1 / d.nvt,
-		D2:    saturation * e2 / (d.nvt * d.nvt),
-		D3:    saturation * e3 / (d.nvt * d.nvt * d.nvt),
+		Value: value,
+		D1:    e1 / d.nvt,
+		D2:    e2 / (d.nvt * d.nvt),
+		D3:    e3 / (d.nvt * d.nvt * d.nvt),
 	}
 }
 
@@ -117,14 +152,19 @@ func (d *Device) BreakdownCurrent(v float64) Law {
 		return Law{}
 	}
 	kneeCurrent := d.Params.BreakdownCurrent
-	e, e1, e2, e3 := expLaw(-(v + kneeVoltage) / d.nvt)
-	e0 := math.Exp(-kneeVoltage / d.nvt)
+	logKnee := math.Log(kneeCurrent)
+	e, e1, e2, e3 := boundedExp(logKnee, -(v+kneeVoltage)/d.nvt)
+	e0, _, _, _ := boundedExp(logKnee, -kneeVoltage/d.nvt)
+	value := -(e - e0)
+	if a := v / d.nvt; math.Abs(a) < 1 {
+		value = -e0 * math.Expm1(-a) // exactly zero at zero bias
+	}
 	k := d.nvt
 	return Law{
-		Value: -kneeCurrent * (e - e0),
-		D1:    kneeCurrent * e1 / k,
-		D2:    -kneeCurrent * e2 / (k * k),
-		D3:    kneeCurrent * e3 / (k * k * k),
+		Value: value,
+		D1:    e1 / k,
+		D2:    -e2 / (k * k),
+		D3:    e3 / (k * k * k),
 	}
 }
 
@@ -193,7 +233,7 @@ func (d *Device) Charge(v float64) Law {
 // limited: n V_T ln(n V_T / (√2 I_S)), where the exponential's curvature
 // makes a full linear step unsafe (Vlach and Singhal, 2nd ed., 1994).
 func (d *Device) CriticalVoltage() float64 {
-	return d.nvt * math.Log(d.nvt/(math.Sqrt2*d.SaturationCurrent))
+	return d.nvt * (math.Log(d.nvt/math.Sqrt2) - d.LogSaturationCurrent)
 }
 
 // Limit returns the junction voltage a Newton iteration should use next when

@@ -128,3 +128,55 @@ func TestLimit(t *testing.T) {
 		t.Errorf("Limit(-10, -3.7) = %g, %v; want a limited step into breakdown", v, lim)
 	}
 }
+
+// TestColdSaturationCurrent: far below T0, I_S(T) underflows a float64
+// while the currents it implies do not. The law of Gray, Hurst, Lewis,
+// Meyer (ch. 1) in logarithmic form gives ln I_S(10 K) near -1287.6 for a
+// 1e-14 A silicon junction (E_g 1.11 eV, p = 3); the forward law at 1.1 V
+// must then be exp(ln I_S + v/(n V_T)), a few hundred microamperes, not
+// zero.
+func TestColdSaturationCurrent(t *testing.T) {
+	p := Defaults()
+	p.SaturationCurrent = 1e-14
+	d := New(p, 10)
+	k, q := 1.380649e-23, 1.602176634e-19
+	wantLog := math.Log(1e-14) + 3*math.Log(10/300.15) + q*1.11/k*(1/300.15-1.0/10)
+	if math.Abs(d.LogSaturationCurrent-wantLog) > 1e-9*math.Abs(wantLog) {
+		t.Errorf("ln I_S(10 K) = %.12g, want %.12g", d.LogSaturationCurrent, wantLog)
+	}
+	v := 1.1
+	want := math.Exp(wantLog + v/d.NVT())
+	got := d.ForwardCurrent(v)
+	if math.Abs(got.Value-want) > 1e-9*want || math.Abs(got.D1-want/d.NVT()) > 1e-9*want/d.NVT() {
+		t.Errorf("i_f(1.1 V) at 10 K = %+v, want %g A", got, want)
+	}
+	if d.OnTangent(v) {
+		t.Errorf("1.1 V at 10 K reported on the tangent")
+	}
+}
+
+// TestLawBound: beyond the voltage where the law implies MaxLawCurrent it
+// continues along its tangent, continuous in value and slope, forward and
+// into the breakdown knee alike.
+func TestLawBound(t *testing.T) {
+	d := New(testParams(), 300.15)
+	top := d.NVT() * (math.Log(MaxLawCurrent) - d.LogSaturationCurrent)
+	below, above := d.ForwardCurrent(top*(1-1e-12)), d.ForwardCurrent(top*(1+1e-12))
+	if math.Abs(below.Value-above.Value) > 1e-6*MaxLawCurrent || math.Abs(below.D1-above.D1) > 1e-6*below.D1 {
+		t.Errorf("forward law jumps at its bound: %+v then %+v", below, above)
+	}
+	if !d.OnTangent(top*1.01) || d.OnTangent(top*0.99) {
+		t.Errorf("OnTangent wrong about the forward bound %g V", top)
+	}
+	far := d.Current(10 * top)
+	if math.IsInf(far.Value, 0) || math.IsNaN(far.Value) || far.D1 != MaxLawCurrent/d.NVT() {
+		t.Errorf("far beyond the bound: %+v", far)
+	}
+	knee := -d.Params.BreakdownVoltage - d.NVT()*(math.Log(MaxLawCurrent)-math.Log(d.Params.BreakdownCurrent))
+	if !d.OnTangent(knee-0.01) || d.OnTangent(knee+0.01) {
+		t.Errorf("OnTangent wrong about the breakdown bound %g V", knee)
+	}
+	if l := d.Current(3 * knee); math.IsInf(l.Value, 0) || math.IsNaN(l.Value) {
+		t.Errorf("far into breakdown: %+v", l)
+	}
+}

@@ -8,7 +8,7 @@ import (
 	"strings"
 	"testing"
 
-	"qpoint/ac"
+	"qpoint/ac/touchstone"
 )
 
 // TestResponseJSONContract checks the response document's shape: ports,
@@ -75,7 +75,7 @@ func TestResponseFiles(t *testing.T) {
 		t.Fatal(err)
 	}
 	defer f.Close()
-	_, pts, err := ac.ReadTouchstone(f, 2)
+	_, pts, err := touchstone.Read(f, 2)
 	if err != nil || len(pts) != len(lines)-1 {
 		t.Errorf("Touchstone read back: %d points, err %v", len(pts), err)
 	}

@@ -108,7 +108,7 @@ func demoResponse(w io.Writer, c *circuit.Circuit, p *bias.Point) error {
 	if err != nil {
 		return analysisError(err)
 	}
-	responseTable(r, 5).write(w)
+	report.ResponseTable(r, 5).WriteText(w)
 	fmt.Fprintln(w)
 	return nil
 }

@@ -9,13 +9,17 @@ import (
 	"sort"
 	"strconv"
 	"strings"
+	"time"
 
+	"github.com/schollz/progressbar/v3"
 	"github.com/spf13/cobra"
+	"golang.org/x/term"
 
 	"qpoint/ac"
 	"qpoint/bias"
 	"qpoint/bias/circuit"
 	"qpoint/bias/si"
+	"qpoint/plots/report"
 	"qpoint/smallsignal"
 )
 
@@ -23,10 +27,12 @@ type distortionFlags struct {
 	input, output, frequency, level, secondTone string
 	sweepLevel, sweepFrequency                  string
 	temperature                                 string
+	videoBandwidth                              string
 	samples, harmonics                          int
 	noLimit                                     bool
 	asJSON                                      bool
 	plotsDir                                    string
+	sets                                        []string
 	steady                                      steadyFlags
 }
 
@@ -65,14 +71,16 @@ Settings come from the flags, else from the file's analysis.distortion.`,
 		},
 	}
 	f := cmd.Flags()
+	addSetFlag(cmd, &fl.sets)
 	f.StringVar(&fl.input, "input", "", "input port name (default: the file's, else the first port)")
 	f.StringVar(&fl.output, "output", "", "output port or node name (default: the file's, else the last port)")
 	f.StringVar(&fl.frequency, "frequency", "", "signal frequency, e.g. 2.45GHz")
 	f.StringVar(&fl.level, "level", "", "signal level per tone: -30dBm or a peak voltage such as 10mV")
 	f.StringVar(&fl.secondTone, "second-tone", "", "frequency of a second tone of the same level, for IM2, IM3 and intercepts; none drops the file's")
-	f.StringVar(&fl.sweepLevel, "sweep-level", "", "solve the waveform over levels FROM:TO:STEP, e.g. -50dBm:0dBm:1dB")
+	f.StringVar(&fl.sweepLevel, "sweep-level", "", "solve the waveform over levels FROM:TO:STEP, e.g. -50dBm:0dBm:1dB or 1mV:300mV:1dB (peak volts into a matched load)")
 	f.StringVar(&fl.sweepFrequency, "sweep-frequency", "", "estimate over frequencies FROM:TO:PER-DECADE, e.g. 100MHz:6GHz:20")
 	f.StringVar(&fl.temperature, "temperature", "", "circuit temperature, overriding the file's (e.g. 85C)")
+	f.StringVar(&fl.videoBandwidth, "video-bandwidth", "", "a detector's video band for its tangential sensitivity: HIGH (from 1 Hz) or LOW:HIGH [2MHz]")
 	f.IntVar(&fl.samples, "samples", 255, "waveform samples per period (the solver also uses 2N+1)")
 	f.IntVar(&fl.harmonics, "harmonics", 5, "highest harmonic order reported from the waveform")
 	f.BoolVar(&fl.noLimit, "no-limit", false, "skip the search for the validity limit")
@@ -93,9 +101,12 @@ type distortionSetup struct {
 	levelDBm float64
 }
 
-func resolveDistortion(path string, fl *distortionFlags) (*distortionSetup, error) {
-	c, err := loadCircuit(path)
+func resolveDistortion(warn io.Writer, path string, fl *distortionFlags) (*distortionSetup, error) {
+	c, err := loadCircuit(warn, path, fl.sets, fl.temperature)
 	if err != nil {
+		return nil, err
+	}
+	if err := checkOutputsEarly(fl.plotsDir); err != nil {
 		return nil, err
 	}
 	return resolveDistortionFor(c, fl, nil)
@@ -146,7 +157,7 @@ func distortionDrive(c *circuit.Circuit, fl *distortionFlags) (*distortionSetup,
 		return nil, inputError(fmt.Errorf("no signal frequency: give --frequency (e.g. 2.45GHz) or analysis.distortion.frequency in the file"))
 	}
 	if err := ac.CheckFrequency(freq); err != nil {
-		return nil, inputError(fmt.Errorf("flag --frequency: %w", err))
+		return nil, inputError(fmt.Errorf("%s%w", origin(c, "frequency", fl.frequency != "", def.Pos), err))
 	}
 	lv := def.Level
 	haveLevel := def.Set
@@ -167,6 +178,13 @@ func distortionDrive(c *circuit.Circuit, fl *distortionFlags) (*distortionSetup,
 		// load: half its EMF.
 		s.levelDBm = ac.EMFToDBm(2*lv.PeakVolts, z0)
 	}
+	// A peak voltage within the voltage range can still be a power
+	// beyond the level range at the port's impedance (1 MV into 50 Ω is
+	// +130 dBm): the limits hold for the level, however it is written.
+	if !(s.levelDBm >= circuit.MinLevelDBm && s.levelDBm <= circuit.MaxLevelDBm) {
+		return nil, inputError(fmt.Errorf("%s%s at port %s's %s is %.4g dBm; accepted: %g dBm to %+g dBm of available power (a peak voltage into a matched load of that port)",
+			origin(c, "level", fl.level != "", def.Pos), levelText(lv), in, si.Format(z0, "Ω", 4), s.levelDBm, float64(circuit.MinLevelDBm), float64(circuit.MaxLevelDBm)))
+	}
 	second := def.SecondToneHz
 	if fl.secondTone == "none" {
 		second = 0
@@ -177,7 +195,7 @@ func distortionDrive(c *circuit.Circuit, fl *distortionFlags) (*distortionSetup,
 	}
 	if second != 0 {
 		if err := ac.CheckFrequency(second); err != nil {
-			return nil, inputError(fmt.Errorf("flag --second-tone: %w", err))
+			return nil, inputError(fmt.Errorf("%s%w", origin(c, "second-tone", fl.secondTone != "", def.Pos), err))
 		}
 		if second == freq {
 			return nil, inputError(fmt.Errorf("flag --second-tone: must differ from the signal frequency %s", si.Format(freq, "Hz", 6)))
@@ -214,8 +232,49 @@ func parseRange(flag, s string, q circuit.Quantity, stepQ circuit.Quantity) (fro
 	return from, to, step, nil
 }
 
+// parseLevelRange reads a level sweep FROM:TO:STEP: each end a power
+// (-50dBm, or a bare number in dBm) or a peak voltage into a matched load
+// (10mV, as --level takes it), the step in dB. It returns the ends in dBm
+// of available power behind z0.
+func parseLevelRange(flag, s string, z0 float64) (from, to, step float64, err error) {
+	const example = "e.g. -50dBm:0dBm:1dB or 1mV:300mV:1dB"
+	parts := strings.Split(s, ":")
+	if len(parts) != 3 {
+		return 0, 0, 0, inputError(fmt.Errorf("flag --%s: `%s` is not FROM:TO:STEP; %s", flag, s, example))
+	}
+	level := func(t string) (float64, error) {
+		t = strings.TrimSpace(t)
+		if v, err := circuit.ParseBounded(t, circuit.Dimensionless); err == nil {
+			return v, nil // a bare number is dBm
+		}
+		lv, err := circuit.ParseLevel(t)
+		if err != nil {
+			return 0, err
+		}
+		if lv.IsPower {
+			return lv.DBm, nil
+		}
+		return ac.EMFToDBm(2*lv.PeakVolts, z0), nil
+	}
+	if from, err = level(parts[0]); err == nil {
+		if to, err = level(parts[1]); err == nil {
+			step, err = circuit.ParseBounded(strings.TrimSpace(strings.TrimSuffix(strings.TrimSpace(parts[2]), "dB")), circuit.Dimensionless)
+		}
+	}
+	if err != nil {
+		return 0, 0, 0, inputError(fmt.Errorf("flag --%s: %w; %s", flag, err, example))
+	}
+	if !(step > 0) || !(to > from) {
+		return 0, 0, 0, inputError(fmt.Errorf("flag --%s: `%s` must rise from FROM to TO with a positive STEP in dB; %s", flag, s, example))
+	}
+	if from < -200 || to > 90 {
+		return 0, 0, 0, inputError(fmt.Errorf("flag --%s: `%s` spans %.1f to %.1f dBm; accepted: levels within -200 to +90 dBm", flag, s, from, to))
+	}
+	return from, to, step, nil
+}
+
 func runDistortion(cmd *cobra.Command, path string, fl *distortionFlags) error {
-	s, err := resolveDistortion(path, fl)
+	s, err := resolveDistortion(cmd.ErrOrStderr(), path, fl)
 	if err != nil {
 		return err
 	}
@@ -244,17 +303,12 @@ func runDistortion(cmd *cobra.Command, path string, fl *distortionFlags) error {
 			return inputError(fmt.Errorf("flag --sweep-frequency: %w", err))
 		}
 		var rows []frequencyRow
-		for _, f := range grid {
-			d := s.drive
-			d.FrequencyHz = f
-			if d.SecondToneHz != 0 {
-				d.SecondToneHz = f + (s.drive.SecondToneHz - s.drive.FrequencyHz)
-			}
-			e, err := ac.Volterra(s.nw, d)
-			if err != nil {
-				return analysisError(err)
-			}
-			rows = append(rows, frequencyRow{f, e})
+		err = ac.VolterraSweep(s.nw, s.drive, grid, func(e *ac.Estimate) error {
+			rows = append(rows, frequencyRow{e.Drive.FrequencyHz, e.Clone()})
+			return nil
+		})
+		if err != nil {
+			return analysisError(err)
 		}
 		if fl.plotsDir != "" {
 			if err := writeDistortionFrequencyPlot(fl.plotsDir, rows); err != nil {
@@ -304,19 +358,21 @@ func runDistortion(cmd *cobra.Command, path string, fl *distortionFlags) error {
 	var limit *ac.Validity
 	if !fl.noLimit {
 		limit, err = ac.ValidityLimit(s.nw, one, s.levelDBm-40, s.levelDBm+40, 0.5, settings)
-		if err == nil {
-			doc.ValidityLimitDBm = number(limit.LevelDBm)
-			doc.ValidityLimitFound = limit.Found
+		if err != nil {
+			return analysisError(fmt.Errorf("validity limit: %w", err))
 		}
+		doc.setValidity(limit)
 	}
 
 	var sweep, twoSweep []ac.LevelPoint
 	var ip *ac.Intercept
 	var ipErr error
+	var transfer *ac.Transfer
+	tss := math.NaN()
 	var compression float64
 	var compressed bool
 	if fl.sweepLevel != "" {
-		from, to, step, err := parseRange("sweep-level", fl.sweepLevel, circuit.Dimensionless, circuit.Dimensionless)
+		from, to, step, err := parseLevelRange("sweep-level", fl.sweepLevel, s.c.Ports[s.drive.Input].Impedance)
 		if err != nil {
 			return err
 		}
@@ -337,7 +393,7 @@ func runDistortion(cmd *cobra.Command, path string, fl *distortionFlags) error {
 		if err != nil {
 			fmt.Fprintf(cmd.ErrOrStderr(), "qpoint: level sweep stopped: %v\n", err)
 		}
-		gain := cmplx.Abs(oneEst.Fundamental) / oneEst.Drive.EMF
+		gain := cmplx.Abs(oneEst.Linear) / oneEst.Drive.EMF
 		compression, compressed = ac.Compression(sweep, gain)
 		if compressed {
 			doc.CompressionDBm = number(compression)
@@ -346,12 +402,18 @@ func runDistortion(cmd *cobra.Command, path string, fl *distortionFlags) error {
 			doc.LevelSweep = append(doc.LevelSweep, levelJSON{number(p.LevelDBm), waveformJSONOf(p.Steady)})
 		}
 		doc.Cautions = append(doc.Cautions, sweepCautions(sweep)...)
+		if transfer, tss, err = detectorTransfer(s, sweep, fl.videoBandwidth); err != nil {
+			return err
+		}
+		if transfer != nil {
+			doc.Transfer = transferJSONOf(transfer, tss)
+		}
 		if two != nil {
 			twoSweep, ip, ipErr = twoToneLevelSweep(cmd, s, waveSettings, levels, doc)
 		}
 	}
 	if fl.plotsDir != "" {
-		if err := writeDistortionPlots(fl.plotsDir, s, oneEst, st, sweep, twoToneFigures(two, est)...); err != nil {
+		if err := writeDistortionPlots(fl.plotsDir, s, oneEst, st, sweep, transfer, tss, twoToneFigures(two, est)...); err != nil {
 			return err
 		}
 	}
@@ -373,6 +435,9 @@ func runDistortion(cmd *cobra.Command, path string, fl *distortionFlags) error {
 		writeLevelSweep(out, sweep, oneEst, compression, compressed)
 		writeCautions(out, sweepCautions(sweep))
 	}
+	if transfer != nil {
+		writeTransfer(out, transfer, tss)
+	}
 	if len(twoSweep) > 0 {
 		writeTwoToneSweep(out, twoSweep, ip, ipErr, est)
 	}
@@ -380,6 +445,64 @@ func runDistortion(cmd *cobra.Command, path string, fl *distortionFlags) error {
 		fmt.Fprintf(out, "figures written to %s\n", fl.plotsDir)
 	}
 	return nil
+}
+
+// detectorTransfer returns the transfer curve of a detector output from
+// the level sweep, with its tangential sensitivity over the video band
+// (NaN when it cannot be found); nil when the output is not a detector's.
+func detectorTransfer(s *distortionSetup, sweep []ac.LevelPoint, videoBand string) (*ac.Transfer, float64, error) {
+	path := ac.NoiseSettings{Input: s.drive.Input, Output: s.drive.Output}
+	if len(sweep) < 3 || !ac.Detects(s.nw, path, s.drive.FrequencyHz) {
+		return nil, math.NaN(), nil
+	}
+	if videoBand == "" {
+		videoBand = "2MHz"
+	}
+	lo, hi, err := parseBand("video-bandwidth", videoBand, defaultVideoFromHz)
+	if err != nil {
+		return nil, math.NaN(), err
+	}
+	gamma, err := ac.VoltageSensitivity(s.nw, path, s.drive.FrequencyHz)
+	if err != nil {
+		return nil, math.NaN(), analysisError(err)
+	}
+	t, err := ac.DetectorTransfer(sweep, gamma)
+	if err != nil {
+		return nil, math.NaN(), nil
+	}
+	tss := math.NaN()
+	if det, err := ac.Detector(s.nw, path, s.drive.FrequencyHz, lo, hi); err == nil {
+		tss = det.TangentialDBm()
+	}
+	return t, tss, nil
+}
+
+// writeTransfer prints a detector's transfer curve and its square-law
+// range.
+func writeTransfer(w io.Writer, t *ac.Transfer, tssDBm float64) {
+	tb := &table{title: "Detector transfer curve (waveform)", header: []string{"input", "output DC change", "from square law"}}
+	for _, p := range t.Points {
+		tb.add(fmt.Sprintf("%.1f dBm", p.LevelDBm), si.Format(p.Volts, "V", 4), fmt.Sprintf("%+.3f dB", p.DeviationDB))
+	}
+	tb.write(w)
+	fmt.Fprintf(w, "  square law V = γP with γ = %s (small-signal voltage sensitivity)\n", si.Format(t.SensitivityVPerW, "V/W", 4))
+	fmt.Fprintf(w, "  log-log slope %.3f at the lowest level, %.3f at the highest (1: square law, 0.5: linear detection)\n", t.LowSlope, t.HighSlope)
+	if math.IsNaN(t.DeviationDBm) {
+		fmt.Fprintf(w, "  within 1 dB of square law over the whole sweep, or beyond it from the lowest level\n")
+	} else {
+		fmt.Fprintf(w, "  1 dB from square law at %.2f dBm input\n", t.DeviationDBm)
+	}
+	if !math.IsNaN(tssDBm) {
+		fmt.Fprintf(w, "  tangential sensitivity %.2f dBm", tssDBm)
+		if dr := t.DynamicRangeDB(tssDBm); !math.IsNaN(dr) {
+			fmt.Fprintf(w, "; square-law dynamic range %.1f dB", dr)
+		}
+		fmt.Fprintln(w)
+		if len(t.Points) > 0 && t.Points[0].LevelDBm > tssDBm {
+			fmt.Fprintf(w, "  the sweep starts above the tangential sensitivity; start below %.0f dBm to see the whole range\n", math.Floor(tssDBm))
+		}
+	}
+	fmt.Fprintln(w)
 }
 
 type frequencyRow struct {
@@ -390,7 +513,8 @@ type frequencyRow struct {
 func writeDistortionHeader(w io.Writer, s *distortionSetup) {
 	fmt.Fprintf(w, "%s\n", s.c.Name)
 	fmt.Fprintf(w, "  file         %s\n", s.c.File)
-	fmt.Fprintf(w, "  bias         %s\n", biasLine(s.p))
+	writeOverrides(w, s.c)
+	fmt.Fprintf(w, "  bias         %s\n", report.BiasLine(s.p))
 	z0 := s.c.Ports[s.drive.Input].Impedance
 	fmt.Fprintf(w, "  drive        port %s, %s, %.2f dBm available (EMF %s peak behind %s)\n", s.inName,
 		si.Format(s.drive.FrequencyHz, "Hz", 6), s.levelDBm, si.Format(s.drive.EMF, "V", 4), si.Format(z0, "Ω", 4))
@@ -433,13 +557,24 @@ func writeEstimate(w io.Writer, e *ac.Estimate) {
 func estimateTable(e *ac.Estimate) (*table, []string) {
 	var notes []string
 	t := &table{title: "Volterra estimate (third order)", header: []string{"quantity", "value"}}
-	if cmplx.Abs(e.Fundamental) <= 1e-12*e.Drive.EMF {
+	if cmplx.Abs(e.Linear) <= 1e-12*e.Drive.EMF {
 		t.add("fundamental", "none: this output is isolated from the input")
 	} else {
 		t.add("fundamental", si.Format(cmplx.Abs(e.Fundamental), "V", 4)+" peak")
 	}
-	if p, ok := e.OutputDBm(); ok && cmplx.Abs(e.Fundamental) > 1e-12*e.Drive.EMF {
-		t.add("fundamental power", fmt.Sprintf("%.2f dBm", p))
+	if p, ok := e.OutputDBm(); ok && cmplx.Abs(e.Linear) > 1e-12*e.Drive.EMF {
+		t.add("fundamental power", fmt.Sprintf("%.2f dBm", p+e.GainChangeDB()))
+	}
+	if cmplx.Abs(e.Linear) > 1e-12*e.Drive.EMF {
+		t.add("gain change at f1", gainChange(e.GainChangeDB()))
+		t.add("phase change at f1", fmt.Sprintf("%+.3g° (AM-to-PM %+.3g°/dB)", e.PhaseChangeDeg(), e.AMPMDegPerDB()))
+		if l, compress := e.GainStepDBm(1); !math.IsNaN(l) {
+			kind := "1 dB compression (series)"
+			if !compress {
+				kind = "1 dB expansion (series)"
+			}
+			t.add(kind, fmt.Sprintf("%.2f dBm input", l))
+		}
 	}
 	const cancelled = "cancelled by symmetry"
 	pick := func(p ac.Product, v string) string {
@@ -469,6 +604,19 @@ func estimateTable(e *ac.Estimate) (*table, []string) {
 	return t, notes
 }
 
+// gainChange prints the third-order gain change at f1 with its sense.
+func gainChange(db float64) string {
+	switch {
+	case math.IsNaN(db):
+		return "—"
+	case db < 0:
+		return fmt.Sprintf("%+.3g dB (compression)", db)
+	case db > 0:
+		return fmt.Sprintf("%+.3g dB (expansion)", db)
+	}
+	return "0 dB"
+}
+
 func writeContributions(w io.Writer, e *ac.Estimate) {
 	contributionTable(e).write(w)
 }
@@ -483,7 +631,7 @@ func contributionTable(e *ac.Estimate) *table {
 		}
 		byProduct[c.Product] = append(byProduct[c.Product], c)
 	}
-	label := map[ac.Product]string{ac.DC: "DC shift", ac.HD2: "HD2", ac.HD3: "HD3", ac.IM2Sum: "IM2 f1+f2", ac.IM2Diff: "IM2 f1-f2", ac.IM3: "IM3"}
+	label := map[ac.Product]string{ac.DC: "DC shift", ac.Gain3: "f1, 3rd order", ac.HD2: "HD2", ac.HD3: "HD3", ac.IM2Sum: "IM2 f1+f2", ac.IM2Diff: "IM2 f1-f2", ac.IM3: "IM3"}
 	for _, p := range order {
 		cs := byProduct[p]
 		sort.SliceStable(cs, func(i, j int) bool { return cmplx.Abs(cs[i].Phasor) > cmplx.Abs(cs[j].Phasor) })
@@ -509,6 +657,19 @@ func writeWaveform(w io.Writer, s *ac.Steady) {
 	t, note := waveformTable(s)
 	t.write(w)
 	fmt.Fprintf(w, "  %s\n", note)
+	if len(s.Stress) > 0 {
+		stressTable(s).write(w)
+	}
+}
+
+// stressTable gives every diode's extremes over the period: what its
+// ratings, or the breakdown knee, are to be held against.
+func stressTable(s *ac.Steady) *table {
+	t := &table{title: "Diode extremes over the period (waveform)", header: []string{"diode", "peak forward current", "peak reverse voltage", "mean power"}}
+	for _, d := range s.Stress {
+		t.add(d.Name, si.Format(d.PeakCurrent, "A", 4), si.Format(d.PeakReverseVoltage, "V", 4), si.Format(d.MeanPower, "W", 4))
+	}
+	return t
 }
 
 func waveformTable(s *ac.Steady) (*table, string) {
@@ -567,11 +728,7 @@ func comparisonTable(cs []ac.Comparison, v *ac.Validity) (*table, string) {
 		return t, "nothing at this output lies above the solver's floor, so there is nothing to compare"
 	}
 	if v != nil {
-		if v.Found {
-			note = fmt.Sprintf("the estimates hold within %.1f dB up to %.1f dBm available per tone (%d waveform solves)", v.TolDB, v.LevelDBm, v.Steps)
-		} else {
-			note = fmt.Sprintf("the estimates hold within %.1f dB over every level tried, up to %.1f dBm", v.TolDB, v.LevelDBm)
-		}
+		note = v.Note()
 	}
 	return t, note
 }
@@ -579,9 +736,18 @@ func comparisonTable(cs []ac.Comparison, v *ac.Validity) (*table, string) {
 func writeLevelSweep(w io.Writer, pts []ac.LevelPoint, e *ac.Estimate, comp float64, ok bool) {
 	levelSweepTable(pts).write(w)
 	if ok {
-		fmt.Fprintf(w, "  1 dB compression at %.2f dBm input\n", comp)
+		fmt.Fprintf(w, "  1 dB compression at %.2f dBm input (waveform)\n", comp)
 	} else {
-		fmt.Fprintf(w, "  no 1 dB compression within the sweep\n")
+		fmt.Fprintf(w, "  no 1 dB compression within the sweep (waveform)\n")
+	}
+	if e != nil {
+		if l, compress := e.GainStepDBm(1); !math.IsNaN(l) {
+			kind := "compression"
+			if !compress {
+				kind = "expansion"
+			}
+			fmt.Fprintf(w, "  1 dB %s at %.2f dBm input (third-order series estimate)\n", kind, l)
+		}
 	}
 	fmt.Fprintln(w)
 }
@@ -590,9 +756,30 @@ func levelSweepTable(pts []ac.LevelPoint) *table {
 	t := &table{title: "Level sweep (waveform)", header: []string{"input", "fundamental", "2nd", "3rd", "DC shift", "THD"}}
 	for _, p := range pts {
 		o := p.Steady.Output
-		t.add(fmt.Sprintf("%.1f dBm", p.LevelDBm), si.Format(o[1].Amplitude, "V", 4),
-			waveDBc(20*math.Log10(o[2].Amplitude/o[1].Amplitude)), waveDBc(20*math.Log10(o[3].Amplitude/o[1].Amplitude)),
-			si.Format(o[0].Amplitude, "V", 4), fmt.Sprintf("%.3g %%", p.Steady.THDPercent))
+		floor := "< " + si.Format(p.Steady.NoiseFloor, "V", 2)
+		cell := func(h ac.Harmonic, text string) string {
+			if h.BelowFloor || o[1].BelowFloor {
+				return "below floor"
+			}
+			return text
+		}
+		fund, shift := si.Format(o[1].Amplitude, "V", 4), si.Format(o[0].Amplitude, "V", 4)
+		if o[1].BelowFloor {
+			fund = floor
+		}
+		if o[0].BelowFloor {
+			shift = "below floor"
+		}
+		thd := fmt.Sprintf("%.3g %%", p.Steady.THDPercent)
+		switch {
+		case p.Steady.THDBelowPercent > 0:
+			thd = fmt.Sprintf("< %.2g %%", p.Steady.THDBelowPercent)
+		case math.IsNaN(p.Steady.THDPercent):
+			thd = "—"
+		}
+		t.add(fmt.Sprintf("%.1f dBm", p.LevelDBm), fund,
+			cell(o[2], waveDBc(20*math.Log10(o[2].Amplitude/o[1].Amplitude))), cell(o[3], waveDBc(20*math.Log10(o[3].Amplitude/o[1].Amplitude))),
+			shift, thd)
 	}
 	return t
 }
@@ -614,37 +801,42 @@ func writeFrequencySweep(w io.Writer, rows []frequencyRow) {
 	fmt.Fprintln(w)
 }
 
-// progress draws a bar on standard error when it is a terminal, and
-// nothing otherwise.
+// progress draws a bar with the count, rate and time left on standard
+// error when it is a terminal (golang.org/x/term), and nothing otherwise,
+// so that logs and pipes stay clean. The bar is schollz/progressbar's.
 type progress struct {
-	w     io.Writer
-	label string
-	total int
-	on    bool
+	bar *progressbar.ProgressBar
 }
 
 func newProgress(w io.Writer, label string, total int) *progress {
-	on := false
-	if f, ok := w.(*os.File); ok {
-		if st, err := f.Stat(); err == nil && st.Mode()&os.ModeCharDevice != 0 {
-			on = true
-		}
+	f, ok := w.(*os.File)
+	if !ok || !term.IsTerminal(int(f.Fd())) || total <= 1 {
+		return &progress{}
 	}
-	return &progress{w: w, label: label, total: total, on: on}
+	return &progress{bar: progressbar.NewOptions(total,
+		progressbar.OptionSetWriter(w),
+		progressbar.OptionSetDescription(label),
+		progressbar.OptionShowCount(),
+		progressbar.OptionSetPredictTime(true),
+		progressbar.OptionSetWidth(30),
+		progressbar.OptionThrottle(100*time.Millisecond),
+		progressbar.OptionClearOnFinish(),
+		progressbar.OptionSetTheme(progressbar.Theme{Saucer: "█", SaucerPadding: "·", BarStart: "[", BarEnd: "]"}),
+	)}
 }
 
+// update shows done steps of total; it may be called from any goroutine
+// that holds the caller's lock, as study progress is.
 func (p *progress) update(done, total int) {
-	if !p.on {
-		return
+	if p.bar != nil {
+		_ = p.bar.Set(done)
 	}
-	const width = 30
-	n := width * done / max(total, 1)
-	fmt.Fprintf(p.w, "\r%s [%s%s] %d/%d", p.label, strings.Repeat("█", n), strings.Repeat("·", width-n), done, total)
 }
 
+// done removes the bar.
 func (p *progress) done() {
-	if p.on {
-		fmt.Fprint(p.w, "\r\033[K")
+	if p.bar != nil {
+		_ = p.bar.Finish()
 	}
 }
 
@@ -659,33 +851,26 @@ func writeCautions(w io.Writer, c []string) {
 	}
 }
 
-// sweepCautions returns, for each kind of overstress met in a level sweep,
-// the lowest level at which it appears.
+// sweepCautions returns, for each diode and kind of overstress met in a
+// level sweep, the lowest level at which it appears.
 func sweepCautions(pts []ac.LevelPoint) []string {
-	seen := map[string]bool{}
+	type key struct {
+		diode string
+		kind  ac.StressKind
+	}
+	seen := map[key]bool{}
 	var out []string
 	for _, p := range pts {
-		for _, c := range p.Steady.Cautions() {
-			kind := cautionKind(c)
-			if seen[kind] {
+		for _, c := range p.Steady.StressCautions() {
+			k := key{c.Diode, c.Kind}
+			if seen[k] {
 				continue
 			}
-			seen[kind] = true
-			out = append(out, fmt.Sprintf("from %.1f dBm: %s", p.LevelDBm, c))
+			seen[k] = true
+			out = append(out, fmt.Sprintf("from %.1f dBm: %s", p.LevelDBm, c.Message))
 		}
 	}
 	return out
-}
-
-// cautionKind names a caution by its diode and what it concerns.
-func cautionKind(c string) string {
-	name, rest, _ := strings.Cut(c, ": ")
-	for _, k := range []string{"forward current", "reverse voltage", "dissipation", "breakdown"} {
-		if strings.Contains(rest, k) {
-			return name + "/" + k
-		}
-	}
-	return c
 }
 
 // writeJunctionDrive prints each junction's drive x = |v|/(n V_T) at the
@@ -701,4 +886,22 @@ func writeJunctionDrive(w io.Writer, s *distortionSetup, e *ac.Estimate) {
 	if len(parts) > 0 {
 		fmt.Fprintf(w, "  junction drive x = |v|/(n V_T) at f1: %s\n", strings.Join(parts, ", "))
 	}
+}
+
+// origin names where a setting came from in a message: the flag when the
+// user gave it, else the file's analysis.distortion section at its
+// FILE:LINE:COL.
+func origin(c *circuit.Circuit, flag string, fromFlag bool, at circuit.Pos) string {
+	if fromFlag {
+		return "flag --" + flag + ": "
+	}
+	return fmt.Sprintf("%s:%d:%d: analysis.distortion.%s: ", c.File, at.Line, at.Col, strings.ReplaceAll(flag, "-", "_"))
+}
+
+// levelText writes a level as the user gave it.
+func levelText(lv circuit.Level) string {
+	if lv.IsPower {
+		return fmt.Sprintf("%g dBm", lv.DBm)
+	}
+	return si.Format(lv.PeakVolts, "V", 4) + " peak"
 }

@@ -52,14 +52,14 @@ func removePartials() int {
 	return n
 }
 
-// exitOnInterrupt makes an interrupt (Ctrl-C) or a termination request
-// remove the temporary files of outputs not yet finished, say so, and exit
+// exitOnInterrupt makes an interrupt (Ctrl-C), a termination request or a
+// hang-up (the terminal closed) remove the temporary files of outputs not yet finished, say so, and exit
 // with the shell's status for that signal (128 + its number). Finished
 // outputs are whole already; unfinished ones are left as they were before
 // the command ran. It returns a function that stops listening.
 func exitOnInterrupt(stderr io.Writer) (stop func()) {
 	ch := make(chan os.Signal, 1)
-	signal.Notify(ch, os.Interrupt, syscall.SIGTERM)
+	signal.Notify(ch, os.Interrupt, syscall.SIGTERM, syscall.SIGHUP)
 	done := make(chan struct{})
 	go func() {
 		select {
@@ -83,15 +83,34 @@ func exitOnInterrupt(stderr io.Writer) (stop func()) {
 // writeFileAtomic writes a whole file or nothing: the content goes to a
 // temporary file in the same directory, which is synced and renamed over
 // path only when write succeeded. A write that fails or panics leaves any
-// old file at path untouched and removes the temporary file.
+// old file at path untouched and removes the temporary file. A file
+// replaced keeps its permission bits; a new one gets 0644.
+//
+// Only a regular file is ever replaced. A symbolic link is followed and
+// its target written (atomically, when the target is a regular file); a
+// character device or a named pipe (/dev/null, /dev/stdout, a FIFO) is
+// written through, as a stream that cannot be whole or nothing; anything
+// else (a directory, a socket, a block device, a dangling link) is
+// refused.
 func writeFileAtomic(path string, write func(w io.Writer) error) (err error) {
 	if err := refuseInput(path); err != nil {
 		return err
 	}
-	dir := filepath.Dir(path)
-	tmp, err := os.CreateTemp(dir, "."+filepath.Base(path)+".*.partial")
+	target, through, err := outputTarget(path)
 	if err != nil {
-		return fmt.Errorf("cannot write %s: %w", path, err)
+		return err
+	}
+	if through {
+		return writeThrough(path, target, write)
+	}
+	mode := os.FileMode(0o644)
+	if st, err := os.Stat(target); err == nil {
+		mode = st.Mode().Perm()
+	}
+	dir := filepath.Dir(target)
+	tmp, err := os.CreateTemp(dir, "."+filepath.Base(target)+".*.partial")
+	if err != nil {
+		return inputError(fmt.Errorf("cannot write %s: %w", path, err))
 	}
 	addPartial(tmp.Name())
 	defer dropPartial(tmp.Name())
@@ -117,20 +136,79 @@ func writeFileAtomic(path string, write func(w io.Writer) error) (err error) {
 	if err := tmp.Close(); err != nil {
 		return fmt.Errorf("writing %s: %w", path, err)
 	}
-	if err := os.Chmod(tmp.Name(), 0o644); err != nil {
+	if err := os.Chmod(tmp.Name(), mode); err != nil {
 		return fmt.Errorf("writing %s: %w", path, err)
 	}
-	if err := os.Rename(tmp.Name(), path); err != nil {
+	if err := os.Rename(tmp.Name(), target); err != nil {
 		return fmt.Errorf("writing %s: %w", path, err)
 	}
 	renamed = true
 	return nil
 }
 
-// refuseInputs fails when any of paths ("" skipped) names one of the
-// command's input files: a command with several outputs checks them all
-// before it writes any, so that a refusal leaves none behind.
+// outputTarget returns the file an output named path goes to: path itself,
+// or the target of the symbolic link it names, and whether that is a
+// device or pipe to write through rather than replace. It refuses what
+// may not be written.
+func outputTarget(path string) (target string, through bool, err error) {
+	st, err := os.Lstat(path)
+	if errors.Is(err, os.ErrNotExist) {
+		return path, false, nil
+	}
+	if err != nil {
+		return "", false, inputError(fmt.Errorf("cannot write %s: %w", path, err))
+	}
+	target = path
+	if st.Mode()&os.ModeSymlink != 0 {
+		resolved, err := filepath.EvalSymlinks(path)
+		if err != nil {
+			return "", false, inputError(fmt.Errorf("refusing to write %s: it is a symbolic link whose target cannot be reached (%v); accepted: a regular file, a link to one, or a device such as /dev/null", path, err))
+		}
+		target = resolved
+		if st, err = os.Stat(resolved); err != nil {
+			return "", false, inputError(fmt.Errorf("cannot write %s: %w", path, err))
+		}
+	}
+	switch m := st.Mode(); {
+	case m.IsRegular():
+		return target, false, nil
+	case m&os.ModeCharDevice != 0, m&os.ModeNamedPipe != 0:
+		return target, true, nil
+	case m.IsDir():
+		return "", false, inputError(fmt.Errorf("refusing to write %s: it is a directory; accepted: a file name", path))
+	default:
+		return "", false, inputError(fmt.Errorf("refusing to write %s: it is a %v, not a regular file; accepted: a regular file, a link to one, or a character device or named pipe to write through", path, m.Type()))
+	}
+}
+
+// writeThrough writes to an existing device or named pipe as a stream.
+func writeThrough(path, target string, write func(w io.Writer) error) error {
+	f, err := os.OpenFile(target, os.O_WRONLY, 0)
+	if err != nil {
+		return fmt.Errorf("cannot write %s: %w", path, err)
+	}
+	bw := bufio.NewWriter(f)
+	err = write(bw)
+	if err == nil {
+		err = bw.Flush()
+	}
+	if cerr := f.Close(); err == nil {
+		err = cerr
+	}
+	if err != nil {
+		return fmt.Errorf("writing %s: %w", path, err)
+	}
+	return nil
+}
+
+// refuseInputs checks a command's outputs before it writes any (or
+// starts work): none may name an input file, two may not name one file
+// (a CSV under a figure's name in the figure folder, two flags on one
+// path), each must be a place writeFileAtomic can write (a regular file,
+// a link to one, a device or pipe, or a new name), and each one's folder
+// must be a folder or creatable. Empty paths are skipped.
 func refuseInputs(paths ...string) error {
+	seen := map[string]string{}
 	for _, p := range paths {
 		if p == "" {
 			continue
@@ -138,8 +216,64 @@ func refuseInputs(paths ...string) error {
 		if err := refuseInput(p); err != nil {
 			return err
 		}
+		target, _, err := outputTarget(p)
+		if err != nil {
+			return err
+		}
+		key, err := filepath.Abs(target)
+		if err != nil {
+			key = filepath.Clean(target)
+		}
+		if first, ok := seen[key]; ok {
+			if first == p {
+				return inputError(fmt.Errorf("refusing to write %s twice: two outputs (a flag and a figure, or two flags) name it; choose different output names", p))
+			}
+			return inputError(fmt.Errorf("refusing to write %s twice: %s and %s name the same file; choose different output names", target, first, p))
+		}
+		seen[key] = p
+		if err := refuseFolder(filepath.Dir(target), p); err != nil {
+			return err
+		}
 	}
 	return nil
+}
+
+// checkOutputsEarly checks a command's named files and its figure folder
+// before any work, so that a wrong output is refused in a moment rather
+// than after a long analysis or after another output was replaced. The
+// files a figure folder will hold are checked again, by name, before any
+// is written.
+func checkOutputsEarly(plotsDir string, files ...string) error {
+	if err := refuseInputs(files...); err != nil {
+		return err
+	}
+	if plotsDir == "" {
+		return nil
+	}
+	if st, err := os.Stat(plotsDir); err == nil && !st.IsDir() {
+		return inputError(fmt.Errorf("flag --plots: %s is not a directory; accepted: a folder, existing or new", plotsDir))
+	}
+	return refuseFolder(plotsDir, plotsDir)
+}
+
+// refuseFolder fails when dir, the folder an output goes to, exists as
+// something other than a folder, or lies under such a thing.
+func refuseFolder(dir, output string) error {
+	for d := dir; ; d = filepath.Dir(d) {
+		st, err := os.Stat(d)
+		if err == nil {
+			if !st.IsDir() {
+				return inputError(fmt.Errorf("cannot write %s: %s is not a directory", output, d))
+			}
+			return nil
+		}
+		if !errors.Is(err, os.ErrNotExist) {
+			return inputError(fmt.Errorf("cannot write %s: %w", output, err))
+		}
+		if parent := filepath.Dir(d); parent == d {
+			return nil
+		}
+	}
 }
 
 // refuseInput fails when path names one of the command's input files.

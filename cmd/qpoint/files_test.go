@@ -11,6 +11,7 @@ import (
 	"testing"
 
 	"qpoint/ac"
+	"qpoint/ac/touchstone"
 	"qpoint/bias"
 	"qpoint/bias/circuit"
 	"qpoint/smallsignal"
@@ -101,7 +102,7 @@ func TestWriteInterrupted(t *testing.T) {
 			return writeResponseCSV(&failAfter{w, 20 << 10}, r)
 		}, errDiskFull, false},
 		{"Touchstone writer fails after 1 kB", func(w io.Writer) error {
-			return ac.WriteTouchstone(&failAfter{w, 1 << 10}, r.Ports, r.Points, ac.FormatRI, nil)
+			return writeTouchstone(&failAfter{w, 1 << 10}, &circuit.Circuit{}, r, touchstone.FormatRI)
 		}, errDiskFull, false},
 		{"generator panics midway", func(w io.Writer) error {
 			io.WriteString(w, big)

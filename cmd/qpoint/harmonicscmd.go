@@ -6,9 +6,10 @@ import (
 	"io"
 	"math"
 	"os"
+	"strconv"
+
 	"qpoint/ac"
 	"qpoint/bias/si"
-	"strconv"
 
 	"github.com/spf13/cobra"
 
@@ -24,6 +25,7 @@ type waveformFlags struct {
 	asJSON      bool
 	// Prediction to compare with: a circuit file and its drive.
 	circuitPath, input, output, level string
+	sets                              []string
 }
 
 func newHarmonicsCmd() *cobra.Command {
@@ -71,6 +73,7 @@ hann (2 periods), flat-top (5 periods), rectangular (1 period).`,
 	f.IntVar(&fl.harmonics, "harmonics", measure.DefaultHarmonics, "highest harmonic order to report")
 	f.BoolVar(&fl.asJSON, "json", false, "print one JSON document (SI units) instead of the tables")
 	f.StringVar(&fl.circuitPath, "circuit", "", "compare with the waveform this circuit file predicts at the measured fundamental")
+	addSetFlag(cmd, &fl.sets)
 	f.StringVar(&fl.input, "input", "", "with --circuit: the input port (default: the file's, else the first)")
 	f.StringVar(&fl.output, "output", "", "with --circuit: the output port or node that was captured (default: the file's)")
 	f.StringVar(&fl.level, "level", "", "with --circuit: the drive level, e.g. -20dBm (default: the file's)")
@@ -134,7 +137,7 @@ func runWaveformHarmonics(cmd *cobra.Command, path string, fl *waveformFlags) er
 	var pred *ac.Steady
 	if fl.circuitPath != "" {
 		k := min(fl.harmonics, 25)
-		if pred, err = predictHarmonics(fl, r.FundamentalHz, k); err != nil {
+		if pred, err = predictHarmonics(cmd.ErrOrStderr(), fl, r.FundamentalHz, k); err != nil {
 			return err
 		}
 	}
@@ -155,8 +158,8 @@ func runWaveformHarmonics(cmd *cobra.Command, path string, fl *waveformFlags) er
 
 // predictHarmonics solves the circuit's steady state at the measured
 // fundamental with the flags' (or the file's) drive.
-func predictHarmonics(fl *waveformFlags, fundamentalHz float64, k int) (*ac.Steady, error) {
-	ds, err := resolveDistortion(fl.circuitPath, &distortionFlags{input: fl.input, output: fl.output, level: fl.level,
+func predictHarmonics(warn io.Writer, fl *waveformFlags, fundamentalHz float64, k int) (*ac.Steady, error) {
+	ds, err := resolveDistortion(warn, fl.circuitPath, &distortionFlags{input: fl.input, output: fl.output, level: fl.level, sets: fl.sets,
 		frequency: strconv.FormatFloat(fundamentalHz, 'g', -1, 64) + "Hz"})
 	if err != nil {
 		return nil, err
@@ -233,6 +236,11 @@ func writeWaveformHarmonics(w io.Writer, path string, wf *measure.Waveform, r *m
 	}
 	fmt.Fprintf(w, "  fundamental  %s, %s; %.2f periods captured\n", si.Format(r.FundamentalHz, "Hz", 7), how, r.Periods)
 	fmt.Fprintf(w, "  window       %s\n", r.Window)
+	if u := wf.RateUncertainty; u > measure.RateUncertaintyLimit {
+		fmt.Fprintf(w, "  ! caution: the time stamps start at %s, where float64 resolves only %s, %.2g of the %s step: the sample rate and every frequency here can be off by %.2g (%s at the fundamental); subtract the offset from the time column\n",
+			si.Format(wf.StartS, "s", 4), si.Format(u*(float64(r.Samples-1)/r.SampleRateHz), "s", 2),
+			u*float64(r.Samples-1), si.Format(1/r.SampleRateHz, "s", 3), u, si.Format(u*r.FundamentalHz, "Hz", 2))
+	}
 
 	t := &table{title: "Harmonics", header: []string{"order", "frequency", "amplitude", "dBc", "phase °"}}
 	absent := 0
@@ -309,6 +317,9 @@ type waveformHarmonicsJSON struct {
 	NoiseRMS              number                 `json:"noise_rms"`
 	NoiseDensity          number                 `json:"noise_density"`
 	Prediction            *waveformJSON          `json:"prediction,omitempty"`
+	// SampleRateUncertainty is the relative uncertainty of the sample
+	// rate from the time column's resolution (0 when given outright).
+	SampleRateUncertainty number `json:"sample_rate_uncertainty"`
 }
 
 func waveformHarmonicsDocument(path string, w *measure.Waveform, r *measure.Result) *waveformHarmonicsJSON {
@@ -318,6 +329,7 @@ func waveformHarmonicsDocument(path string, w *measure.Waveform, r *measure.Resu
 		Periods: number(r.Periods), THDPercent: number(r.THDPercent), THDdB: number(r.THDdB),
 		SINADdB: number(r.SINADdB), NoiseAndDistortionRMS: number(r.NoiseDistortionRMS),
 		NoiseRMS: number(r.NoiseRMS), NoiseDensity: number(r.NoiseDensity),
+		SampleRateUncertainty: number(w.RateUncertainty),
 	}
 	for _, h := range r.Harmonics {
 		d.Harmonics = append(d.Harmonics, waveformHarmonicJSON{Order: h.Order, Frequency: number(h.FrequencyHz),

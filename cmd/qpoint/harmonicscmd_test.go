@@ -4,7 +4,9 @@ import (
 	"bytes"
 	"encoding/json"
 	"errors"
+	"fmt"
 	"math"
+	"os"
 	"path/filepath"
 	"regexp"
 	"strings"
@@ -209,5 +211,57 @@ func TestHarmonicsDecimalComma(t *testing.T) {
 	h := doc.Harmonics[1]
 	if math.Abs(doc.Fundamental/62.5e3-1) > 1e-6 || math.Abs(h.Amplitude-1) > 1e-5 || math.Abs(h.Phase-wantPhase) > 0.01 || doc.StartTime != 1e-3 {
 		t.Errorf("f0 %g Hz, %g V at %g° from t0 = %g s; want 62.5 kHz, 1 V at %.2f° from 1 ms", doc.Fundamental, h.Amplitude, h.Phase, doc.StartTime, wantPhase)
+	}
+}
+
+// TestHarmonicsInstrumentExport: a recorder export with metadata lines
+// before its header and decimal commas inside quoted comma-separated
+// fields reads whole: 1 kHz at 200 kHz (from `Sample Interval,5e-06`),
+// and the 1 % third harmonic the file was written with is -40 dBc.
+func TestHarmonicsInstrumentExport(t *testing.T) {
+	out, errs, code := runHarmonicsCLI(t, "../../testdata/waveforms/instrument_export.csv", "--json")
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	var doc struct {
+		SampleRate  float64 `json:"sample_rate"`
+		Fundamental float64 `json:"fundamental"`
+		Harmonics   []struct {
+			Order int      `json:"order"`
+			DBc   *float64 `json:"dbc"`
+		} `json:"harmonics"`
+	}
+	if err := json.Unmarshal([]byte(out), &doc); err != nil {
+		t.Fatal(err)
+	}
+	if math.Abs(doc.SampleRate/200e3-1) > 1e-9 || math.Abs(doc.Fundamental/1e3-1) > 1e-6 {
+		t.Fatalf("rate %g Hz, fundamental %g Hz; want 200 kHz and 1 kHz", doc.SampleRate, doc.Fundamental)
+	}
+	for _, h := range doc.Harmonics {
+		if h.Order == 3 && (h.DBc == nil || math.Abs(*h.DBc+40) > 0.01) {
+			t.Errorf("third harmonic %v dBc, want -40 dBc", h.DBc)
+		}
+	}
+}
+
+// TestHarmonicsTimeOffsetCaution: a record whose time stamps carry an
+// offset of 1e9 s with a 1 µs step says that its frequencies can be off,
+// and by how much (issue 13, item 14).
+func TestHarmonicsTimeOffsetCaution(t *testing.T) {
+	var b strings.Builder
+	b.WriteString("time,voltage\n")
+	for i := 0; i < 1000; i++ {
+		fmt.Fprintf(&b, "%.17g,%.9g\n", 1e9+float64(i)*1e-6, math.Sin(2*math.Pi*float64(i)/100))
+	}
+	file := filepath.Join(t.TempDir(), "offset.csv")
+	if err := os.WriteFile(file, []byte(b.String()), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	out, errs, code := runCLI(t, "harmonics", file)
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	if !strings.Contains(out, "can be off by 0.00012") {
+		t.Errorf("no caution on the time offset:\n%s", out)
 	}
 }

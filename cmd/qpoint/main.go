@@ -10,6 +10,9 @@ import (
 	"io"
 	"os"
 	"runtime/debug"
+	"strings"
+	"unicode"
+	"unicode/utf8"
 
 	"github.com/spf13/cobra"
 )
@@ -41,23 +44,22 @@ func main() {
 	os.Exit(code)
 }
 
-// batchMemoryLimit is the heap size at which the garbage collector starts
-// working when tuneGC has switched off its proportional trigger.
-const batchMemoryLimit = 1 << 30
+// gcPercent is the garbage collector's target the command runs with
+// unless the user set GOGC or GOMEMLIMIT: the heap may grow to five times
+// what is live before a collection. The collector's default (100) cost a
+// parallel study a fifth of its two-worker scaling in BENCHMARKS.md's
+// measurement (1.55 against 1.92 on the attenuator study), while switching
+// it off until 1 GiB, as earlier versions did, let `qpoint demo` peak at
+// 590 MB for no gain in speed. At 400 the demo peaks near 37 MB.
+const gcPercent = 400
 
-// tuneGC lets the garbage collector run only as the heap nears 1 GiB,
-// unless the user set GOGC or GOMEMLIMIT. A qpoint run is a short batch
-// job. With the default proportional trigger the collector runs every few
-// megabytes while a study's results grow: measured on two cores, a 200-step
-// study at 50 frequencies scaled 1.61-1.76x from one worker to two with
-// it, and 1.79-1.90x without (BenchmarkStudy, BENCHMARKS.md). The limit
-// keeps memory bounded all the same.
+// tuneGC sets the collector's target to gcPercent, unless the user set
+// GOGC or GOMEMLIMIT.
 func tuneGC() {
 	if os.Getenv("GOGC") != "" || os.Getenv("GOMEMLIMIT") != "" {
 		return
 	}
-	debug.SetGCPercent(-1)
-	debug.SetMemoryLimit(batchMemoryLimit)
+	debug.SetGCPercent(gcPercent)
 }
 
 // run executes the command line args and returns the exit code. No panic
@@ -69,9 +71,16 @@ func run(args []string, stdout, stderr io.Writer) (code int) {
 			code = exitAnalysis
 		}
 	}()
-	root := newRoot(stdout, stderr)
+	out := &checkedWriter{w: &escapingWriter{w: stdout}}
+	stderr = &escapingWriter{w: stderr}
+	root := newRoot(out, stderr)
 	root.SetArgs(args)
 	err := root.Execute()
+	if err == nil && out.err != nil {
+		// A table or document that did not reach its reader is a
+		// failure, whatever the analysis did (a closed or full output).
+		err = analysisError(fmt.Errorf("writing standard output: %w", out.err))
+	}
 	if err == nil {
 		return exitOK
 	}
@@ -83,6 +92,117 @@ func run(args []string, stdout, stderr io.Writer) (code int) {
 	// Cobra's own errors are about flags and arguments.
 	fmt.Fprintln(stderr, "Run 'qpoint --help' for usage.")
 	return exitInput
+}
+
+// version describes the build from its build information: the module
+// version (a tag, or "(devel)" for a build from a checkout) and, where
+// the build recorded them, the revision, its time and whether the tree
+// had changes.
+func version() string {
+	info, ok := debug.ReadBuildInfo()
+	if !ok {
+		return "(no build information)"
+	}
+	v := info.Main.Version
+	if v == "" {
+		v = "(devel)"
+	}
+	var rev, at string
+	modified := false
+	for _, s := range info.Settings {
+		switch s.Key {
+		case "vcs.revision":
+			rev = s.Value
+		case "vcs.time":
+			at = s.Value
+		case "vcs.modified":
+			modified = s.Value == "true"
+		}
+	}
+	if rev != "" {
+		if len(rev) > 12 {
+			rev = rev[:12]
+		}
+		v += ", revision " + rev
+		if modified {
+			v += " with local changes"
+		}
+		if at != "" {
+			v += ", " + at
+		}
+	}
+	return v + ", " + info.GoVersion
+}
+
+// checkedWriter passes writes on and keeps the first error, so that a
+// command printing many lines with fmt.Fprintf cannot lose one unseen.
+type checkedWriter struct {
+	w   io.Writer
+	err error
+}
+
+func (c *checkedWriter) Write(p []byte) (int, error) {
+	if c.err != nil {
+		return 0, c.err
+	}
+	n, err := c.w.Write(p)
+	if err != nil {
+		c.err = err
+	}
+	return n, err
+}
+
+// escapingWriter passes text on with control characters and bidirectional
+// overrides written as visible escapes (\x07, \u202e): a name in a circuit
+// file or a flag can hold them (YAML's "\e[2J" is an escape sequence), and
+// printed raw they would act on the terminal or hide what a line says.
+// Tabs and line breaks pass unchanged. A character split between two
+// writes is held until the next.
+type escapingWriter struct {
+	w     io.Writer
+	carry []byte
+	buf   []byte
+}
+
+func (e *escapingWriter) Write(p []byte) (int, error) {
+	data := p
+	if len(e.carry) > 0 {
+		data = append(e.carry, p...)
+		e.carry = nil
+	}
+	out := e.buf[:0]
+	for i := 0; i < len(data); {
+		r, size := utf8.DecodeRune(data[i:])
+		if r == utf8.RuneError && size <= 1 && !utf8.FullRune(data[i:]) {
+			e.carry = append([]byte(nil), data[i:]...)
+			break
+		}
+		if hidden(r) && !(size == 1 && r == utf8.RuneError && data[i] >= 0x80) {
+			if r < 0x100 {
+				out = fmt.Appendf(out, "\\x%02x", r)
+			} else {
+				out = fmt.Appendf(out, "\\u%04x", r)
+			}
+		} else {
+			out = append(out, data[i:i+size]...)
+		}
+		i += size
+	}
+	e.buf = out
+	if _, err := e.w.Write(out); err != nil {
+		return 0, err
+	}
+	return len(p), nil
+}
+
+// hidden reports whether r is a control character other than tab and line
+// feed, or a character that reorders or hides text (Unicode's format
+// characters: bidirectional overrides, zero-width spaces and joiners).
+func hidden(r rune) bool {
+	if r == '\t' || r == '\n' {
+		return false
+	}
+	return unicode.IsControl(r) || unicode.Is(unicode.Cf, r)
 }
 
 func newRoot(stdout, stderr io.Writer) *cobra.Command {
@@ -109,8 +229,22 @@ them, and let the parts' ratings and your local practice govern.`,
 	root.SetOut(stdout)
 	root.SetErr(stderr)
 	root.SetFlagErrorFunc(func(c *cobra.Command, err error) error {
-		return inputError(fmt.Errorf("%w (see 'qpoint %s --help')", err, c.Name()))
+		return inputError(fmt.Errorf("%w (see '%s --help')", err, c.CommandPath()))
+	})
+	root.Version = version()
+	root.SetVersionTemplate("qpoint {{.Version}}\n")
+	root.SetHelpCommand(&cobra.Command{
+		Use:   "help [command]",
+		Short: "Help about any command",
+		RunE: func(c *cobra.Command, args []string) error {
+			target, rest, err := root.Find(args)
+			if err != nil || target == nil || len(rest) > 0 {
+				return inputError(fmt.Errorf("help: no command %q; accepted: one of the commands `qpoint --help` lists", strings.Join(args, " ")))
+			}
+			return target.Help()
+		},
 	})
 	root.AddCommand(newBiasCmd(), newResponseCmd(), newDistortionCmd(), newStudyCmd(), newNoiseCmd(), newReportCmd(), newHarmonicsCmd(), newDemoCmd())
+	root.AddCommand(newFitCmd(), newYieldCmd())
 	return root
 }

@@ -5,11 +5,13 @@ import (
 	"encoding/json"
 	"os"
 	"path/filepath"
-	"qpoint/bias"
 	"regexp"
 	"strconv"
 	"strings"
 	"testing"
+
+	"qpoint/bias"
+	"qpoint/plots/report"
 )
 
 func runCLI(t *testing.T, args ...string) (stdout, stderr string, code int) {
@@ -207,22 +209,22 @@ func TestBiasLine(t *testing.T) {
 	p := &bias.Point{TemperatureK: 300.15}
 	p.Stats.Strategy = bias.Newton
 	for k := 0; k < 3; k++ {
-		p.Diodes = append(p.Diodes, bias.Diode{Name: "D" + strconv.Itoa(k+1), Current: 1e-3 * float64(k+1)})
+		p.Diodes = append(p.Diodes, bias.QPoint{Name: "D" + strconv.Itoa(k+1), Current: 1e-3 * float64(k+1)})
 	}
-	if got, want := biasLine(p), "solved at 27.00 °C by newton; D1 at 1 mA; D2 at 2 mA; D3 at 3 mA"; got != want {
+	if got, want := report.BiasLine(p), "solved at 27.00 °C by newton; D1 at 1 mA; D2 at 2 mA; D3 at 3 mA"; got != want {
 		t.Errorf("three diodes: %q, want %q", got, want)
 	}
 	p.Diodes = nil
 	for k := 0; k < 9; k++ {
-		p.Diodes = append(p.Diodes, bias.Diode{Name: "D" + strconv.Itoa(k+1), Current: 1e-3 * float64((k+4)%9+1)})
+		p.Diodes = append(p.Diodes, bias.QPoint{Name: "D" + strconv.Itoa(k+1), Current: 1e-3 * float64((k+4)%9+1)})
 	}
-	if got, want := biasLine(p), "solved at 27.00 °C by newton; 9 diodes from 1 mA (D6) to 9 mA (D5); the bias command lists them all"; got != want {
+	if got, want := report.BiasLine(p), "solved at 27.00 °C by newton; 9 diodes from 1 mA (D6) to 9 mA (D5); the bias command lists them all"; got != want {
 		t.Errorf("nine diodes: %q, want %q", got, want)
 	}
 	for k := range p.Diodes {
 		p.Diodes[k].Current = 2e-3
 	}
-	if got, want := biasLine(p), "solved at 27.00 °C by newton; 9 diodes, each at 2 mA; the bias command lists them all"; got != want {
+	if got, want := report.BiasLine(p), "solved at 27.00 °C by newton; 9 diodes, each at 2 mA; the bias command lists them all"; got != want {
 		t.Errorf("nine equal diodes: %q, want %q", got, want)
 	}
 }
@@ -232,16 +234,37 @@ func TestBiasLine(t *testing.T) {
 func TestBiasCards(t *testing.T) {
 	p := &bias.Point{}
 	for k := 0; k < 3; k++ {
-		p.Diodes = append(p.Diodes, bias.Diode{Name: "D" + strconv.Itoa(k+1), Current: 1e-3})
+		p.Diodes = append(p.Diodes, bias.QPoint{Name: "D" + strconv.Itoa(k+1), Current: 1e-3})
 	}
 	if cards := biasCards(p); len(cards) != 3 || cards[0].Label != "D1 bias" {
 		t.Errorf("three diodes: %+v", cards)
 	}
 	for k := 3; k < 9; k++ {
-		p.Diodes = append(p.Diodes, bias.Diode{Name: "D" + strconv.Itoa(k+1), Current: 1e-3 * float64(k)})
+		p.Diodes = append(p.Diodes, bias.QPoint{Name: "D" + strconv.Itoa(k+1), Current: 1e-3 * float64(k)})
 	}
 	cards := biasCards(p)
 	if len(cards) != 1 || cards[0].Label != "bias of 9 diodes" || cards[0].Value != "1 mA to 8 mA" || !strings.HasPrefix(cards[0].Detail, "D1 to D9") {
 		t.Errorf("nine diodes: %+v", cards)
+	}
+}
+
+// TestVersionAndFlagHints: --version prints the build's version and Go
+// release; an unknown flag names the command once, with its help.
+func TestVersionAndFlagHints(t *testing.T) {
+	out, _, code := runCLI(t, "--version")
+	if code != 0 || !strings.HasPrefix(out, "qpoint ") || !strings.Contains(out, "go1.") {
+		t.Errorf("--version: exit %d, %q; want qpoint VERSION ..., goVERSION", code, out)
+	}
+	for _, c := range []struct {
+		args []string
+		want string
+	}{
+		{[]string{"--nosuch"}, "(see 'qpoint --help')"},
+		{[]string{"bias", "--nosuch", "x.yaml"}, "(see 'qpoint bias --help')"},
+	} {
+		_, errs, code := runCLI(t, c.args...)
+		if code != 2 || !strings.Contains(errs, c.want) || strings.Contains(errs, "qpoint qpoint") {
+			t.Errorf("%v: exit %d, %q; want exit 2 and %q", c.args, code, errs, c.want)
+		}
 	}
 }

@@ -2,23 +2,21 @@ package main
 
 import (
 	"encoding/csv"
-	"errors"
 	"fmt"
 	"io"
 	"math"
 	"math/cmplx"
 	"os"
 	"path/filepath"
-	"sort"
 	"strconv"
 	"strings"
 
 	"github.com/spf13/cobra"
 
 	"qpoint/ac"
+	"qpoint/ac/plan"
 	"qpoint/bias"
 	"qpoint/bias/circuit"
-	"qpoint/bias/diode"
 	"qpoint/bias/si"
 	"qpoint/plots"
 	"qpoint/plots/report"
@@ -30,9 +28,6 @@ import (
 const (
 	defaultVideoToHz   = 2e6
 	defaultVideoFromHz = 1
-	// detectorProbeDBm is the level at which an output is taken for a
-	// detector's when it carries more rectified DC than carrier.
-	detectorProbeDBm = -20
 )
 
 type noiseFlags struct {
@@ -47,6 +42,7 @@ type noiseFlags struct {
 	csvPath           string
 	plotsDir          string
 	rows              int
+	sets              []string
 }
 
 func newNoiseCmd() *cobra.Command {
@@ -90,6 +86,7 @@ is not computed here.`,
 		},
 	}
 	f := cmd.Flags()
+	addSetFlag(cmd, &fl.sets)
 	f.StringVar(&fl.input, "input", "", "port of the signal source (default: the file's distortion input, else the first port)")
 	f.StringVar(&fl.output, "output", "", "output port or node (default: the file's distortion output, else the last port)")
 	f.StringVar(&fl.from, "from", "", "lowest frequency of the sweep, e.g. 10MHz")
@@ -107,21 +104,13 @@ is not computed here.`,
 	return cmd
 }
 
-// noiseSetup is a resolved noise run.
+// noiseSetup is a resolved noise run: the circuit, its bias and network,
+// and the plan.
 type noiseSetup struct {
-	c        *circuit.Circuit
-	p        *bias.Point
-	nw       *smallsignal.Network
-	settings ac.NoiseSettings
-	inName   string // "" without an input port
-	outName  string
-	grid     []float64
-	// videoBand is a detector's video band; band the integration band.
-	videoBand [2]float64
-	band      [2]float64
-	hasBand   bool
-	carrierHz float64
-	detector  bool
+	c    *circuit.Circuit
+	p    *bias.Point
+	nw   *smallsignal.Network
+	plan *plan.Noise
 }
 
 // parseBand reads LOW:HIGH, or HIGH alone when lowDefault is positive.
@@ -159,176 +148,70 @@ func parseBand(flag, s string, lowDefault float64) (lo, hi float64, err error) {
 	return lo, hi, nil
 }
 
-// resolveNoiseFor resolves ports, bias, detector and frequencies for c.
-// resolveNoiseFor resolves the flags and the file's defaults for a loaded
-// circuit and linearises it at p, solving the bias first when p is nil.
+// resolveNoiseFor reads the flags into a request, solves the bias (when p
+// is nil) and linearises it, and resolves the plan.
 func resolveNoiseFor(c *circuit.Circuit, fl *noiseFlags, p *bias.Point) (*noiseSetup, error) {
-	s := &noiseSetup{c: c}
-	def := c.Analysis.Distortion
-	sp, err := resolveSignalPath(c, fl.input, fl.output)
-	if err != nil {
+	req := plan.NoiseRequest{Input: fl.input, Output: fl.output}
+	var err error
+	if req.Grid, err = gridRequest(fl.from, fl.to, fl.perDecade, fl.points); err != nil {
 		return nil, err
 	}
-	inIdx, in, o, out := sp.in, sp.inName, sp.out, sp.outName
-	if o.Port >= 0 && o.Port == inIdx {
-		if fl.input != "" {
-			return nil, inputError(fmt.Errorf("flags --input and --output: both name port `%s`; the output must be another port or a node", in))
-		}
-		inIdx, in = -1, "" // a one-port circuit: output noise only
-	}
-	s.settings = ac.NoiseSettings{Input: inIdx, Output: o}
-	s.inName, s.outName = in, out
-
 	if fl.carrier != "" {
-		v, err := circuit.ParseBounded(fl.carrier, circuit.Frequency)
-		if err != nil {
+		if req.CarrierHz, err = circuit.ParseBounded(fl.carrier, circuit.Frequency); err != nil {
 			return nil, inputError(fmt.Errorf("flag --carrier: %w", err))
 		}
-		if err := ac.CheckFrequency(v); err != nil {
-			return nil, inputError(fmt.Errorf("flag --carrier: %w", err))
-		}
-		s.carrierHz = v
-	} else if def.Set {
-		s.carrierHz = def.FrequencyHz
 	}
-	s.videoBand = [2]float64{defaultVideoFromHz, defaultVideoToHz}
 	if fl.videoBandwidth != "" {
-		lo, hi, err := parseBand("video-bandwidth", fl.videoBandwidth, defaultVideoFromHz)
+		lo, hi, err := parseBand("video-bandwidth", fl.videoBandwidth, plan.DefaultVideoFromHz)
 		if err != nil {
 			return nil, err
 		}
-		s.videoBand = [2]float64{lo, hi}
+		req.VideoBandHz = [2]float64{lo, hi}
 	}
 	if fl.bandwidth != "" {
 		lo, hi, err := parseBand("bandwidth", fl.bandwidth, 0)
 		if err != nil {
 			return nil, err
 		}
-		s.band, s.hasBand = [2]float64{lo, hi}, true
+		req.BandHz = [2]float64{lo, hi}
 	}
-	asked := fl.carrier != "" || fl.videoBandwidth != ""
-	if asked && s.carrierHz == 0 {
-		return nil, inputError(fmt.Errorf("flag --video-bandwidth: detector figures need the carrier frequency; give --carrier (e.g. 2.45GHz) or analysis.distortion.frequency in the file"))
+	// The path's errors come before the bias is solved.
+	if _, err := plan.SignalPath(c, fl.input, fl.output); err != nil {
+		return nil, planError(err)
 	}
-	if asked && inIdx < 0 {
-		return nil, inputError(fmt.Errorf("flags --carrier/--video-bandwidth: detector figures need an input port for the carrier"))
-	}
-
 	if p == nil {
 		if p, err = solveWithTemperature(c, fl.temperature); err != nil {
 			return nil, err
 		}
 	}
-	s.p = p
-	s.nw, err = smallsignal.New(s.p)
-	if err != nil {
+	s := &noiseSetup{c: c, p: p}
+	if s.nw, err = smallsignal.New(p); err != nil {
 		return nil, analysisError(err)
 	}
-	if s.carrierHz > 0 && inIdx >= 0 {
-		_, err := ac.VoltageSensitivity(s.nw, s.settings, s.carrierHz)
-		switch {
-		case err == nil && asked:
-			s.detector = true
-		case err == nil:
-			// Unasked, a detector is an output that carries more
-			// rectified DC than carrier at a small level; a DC-coupled
-			// attenuator or limiter rectifies a little too.
-			z0 := c.Ports[inIdx].Impedance
-			est, err := ac.Volterra(s.nw, ac.Drive{Input: inIdx, Output: o, FrequencyHz: s.carrierHz, EMF: ac.DBmToEMF(detectorProbeDBm, z0)})
-			s.detector = err == nil && math.Abs(est.DCShift) >= cmplx.Abs(est.Fundamental)
-		case asked && errors.Is(err, ac.ErrNoRectification):
-			return nil, inputError(fmt.Errorf("flags --carrier/--video-bandwidth: output %s is not a detector output: %w", out, err))
-		case asked:
-			return nil, analysisError(err)
-		}
-	}
-
-	// The sweep: a detector's video band unless the flags say otherwise,
-	// else the flags, the file's analysis.response, the defaults.
-	if s.detector && fl.from == "" && fl.to == "" {
-		if fl.perDecade != 0 && fl.points != 0 {
-			return nil, inputError(fmt.Errorf("flags --per-decade and --points: give one grid, not both"))
-		}
-		if fl.points > 0 {
-			s.grid, err = ac.LinearGrid(s.videoBand[0], s.videoBand[1], fl.points)
-		} else {
-			s.grid, err = ac.LogGrid(s.videoBand[0], s.videoBand[1], orDefault(fl.perDecade, defaultPerDecade))
-		}
-		if err != nil {
-			return nil, inputError(fmt.Errorf("flags --per-decade/--points: %w", err))
-		}
-	} else {
-		s.grid, err = sweepGrid(c, &responseFlags{from: fl.from, to: fl.to, perDecade: fl.perDecade, points: fl.points})
-		if err != nil {
-			return nil, err
-		}
-	}
-	if n := len(s.grid); !s.hasBand && n > 1 && s.grid[n-1] > s.grid[0] {
-		s.band, s.hasBand = [2]float64{s.grid[0], s.grid[n-1]}, true
+	if s.plan, err = plan.ResolveNoise(c, s.nw, req); err != nil {
+		return nil, planError(err)
 	}
 	return s, nil
-}
-
-// orDefault returns v, or d when v is zero.
-func orDefault(v, d int) int {
-	if v == 0 {
-		return d
-	}
-	return v
-}
-
-// noiseOutcome is everything a noise run computed.
-type noiseOutcome struct {
-	s    *noiseSetup
-	r    *ac.NoiseResult
-	band *ac.NoiseBand // nil without a band
-	det  *ac.Detection // nil unless a detector
-	// video is a detector's sensitivity γ(f) at each point's frequency.
-	video []complex128
-}
-
-// nep returns point i's noise-equivalent power v_n(f)/|γ(f)|.
-func (o *noiseOutcome) nep(i int) float64 {
-	return o.r.Points[i].Density() / cmplx.Abs(o.video[i])
-}
-
-func computeNoise(s *noiseSetup) (*noiseOutcome, error) {
-	o := &noiseOutcome{s: s}
-	var err error
-	if o.r, err = ac.Noise(s.nw, s.grid, s.settings); err != nil {
-		return nil, analysisError(err)
-	}
-	if s.hasBand {
-		if o.band, err = ac.IntegrateNoise(s.nw, s.settings, s.band[0], s.band[1]); err != nil {
-			return nil, analysisError(err)
-		}
-	}
-	if s.detector {
-		if o.det, err = ac.Detector(s.nw, s.settings, s.carrierHz, s.videoBand[0], s.videoBand[1]); err != nil {
-			return nil, analysisError(err)
-		}
-		if o.video, err = ac.VideoSensitivity(s.nw, s.settings, s.carrierHz, s.grid); err != nil {
-			return nil, analysisError(err)
-		}
-	}
-	return o, nil
 }
 
 func runNoise(cmd *cobra.Command, path string, fl *noiseFlags) error {
 	if fl.rows < 1 {
 		return inputError(fmt.Errorf("flag --rows: %d; accepted: 1 or more", fl.rows))
 	}
-	c, err := loadCircuit(path)
+	c, err := loadCircuit(cmd.ErrOrStderr(), path, fl.sets, fl.temperature)
 	if err != nil {
+		return err
+	}
+	if err := checkOutputsEarly(fl.plotsDir, fl.csvPath); err != nil {
 		return err
 	}
 	s, err := resolveNoiseFor(c, fl, nil)
 	if err != nil {
 		return err
 	}
-	o, err := computeNoise(s)
+	o, err := s.plan.Run(s.nw)
 	if err != nil {
-		return err
+		return analysisError(err)
 	}
 	// The figures' data go beside them.
 	tables := []struct {
@@ -341,7 +224,7 @@ func runNoise(cmd *cobra.Command, path string, fl *noiseFlags) error {
 	paths := []string{fl.csvPath}
 	var figs []*plots.Figure
 	if fl.plotsDir != "" {
-		figs = noiseFigures(o.r)
+		figs = report.NoiseFigures(o.Result)
 		for _, tb := range tables {
 			paths = append(paths, filepath.Join(fl.plotsDir, tb.name))
 		}
@@ -361,7 +244,7 @@ func runNoise(cmd *cobra.Command, path string, fl *noiseFlags) error {
 			return inputError(fmt.Errorf("flag --plots: %w", err))
 		}
 		for _, tb := range tables {
-			if err := writeFileAtomic(filepath.Join(fl.plotsDir, tb.name), func(w io.Writer) error { return tb.write(w, o.r) }); err != nil {
+			if err := writeFileAtomic(filepath.Join(fl.plotsDir, tb.name), func(w io.Writer) error { return tb.write(w, o.Result) }); err != nil {
 				return err
 			}
 		}
@@ -371,20 +254,20 @@ func runNoise(cmd *cobra.Command, path string, fl *noiseFlags) error {
 	}
 	out := cmd.OutOrStdout()
 	if fl.asJSON {
-		return writeJSON(out, noiseDocument(o))
+		return writeJSON(out, noiseDocument(s, o))
 	}
 	writeNoiseHeader(out, s)
-	noiseTable(o, fl.rows).write(out)
-	for _, n := range noiseNotes(o) {
+	report.NoiseTable(o, fl.rows).WriteText(out)
+	for _, n := range report.NoiseNotes(o) {
 		fmt.Fprintf(out, "  %s\n", n)
 	}
-	if o.band != nil {
-		bandTable(o).write(out)
-		sourceTable(o).write(out)
+	if o.Band != nil {
+		report.BandTable(o).WriteText(out)
+		report.SourceTable(o).WriteText(out)
 	}
-	if o.det != nil {
-		t, notes := detectorTable(o)
-		t.write(out)
+	if o.Detection != nil {
+		t, notes := report.DetectorTable(o)
+		t.WriteText(out)
 		for _, n := range notes {
 			fmt.Fprintf(out, "  %s\n", n)
 		}
@@ -399,247 +282,14 @@ func runNoise(cmd *cobra.Command, path string, fl *noiseFlags) error {
 	return nil
 }
 
-// noiseFigures returns the noise figures of package plots: the output
-// density against frequency, with the thermal floor sqrt(k T0 Z0) that a
-// 290 K source behind a matched, noiseless network leaves across an output
-// port's load, and each source's share of the output noise power, stacked.
-func noiseFigures(r *ac.NoiseResult) []*plots.Figure {
-	n := len(r.Points)
-	freqs, dens := make([]float64, n), make([]float64, n)
-	shares := make([][]float64, len(r.Sources))
-	for k := range shares {
-		shares[k] = make([]float64, n)
-	}
-	for i, pt := range r.Points {
-		freqs[i], dens[i] = pt.FrequencyHz, pt.Density()
-		for k, c := range pt.Contributions {
-			shares[k][i] = c / pt.Total
-		}
-	}
-	names := make([]string, len(r.Sources))
-	for k, src := range r.Sources {
-		names[k] = src.Label()
-	}
-	floor := 0.0
-	if r.OutputImpedance > 0 {
-		floor = math.Sqrt(diode.Boltzmann * ac.StandardNoiseTemperatureK * r.OutputImpedance)
-	}
-	return []*plots.Figure{plots.NoiseDensity(freqs, dens, "V/√Hz", floor), plots.NoiseContributions(freqs, names, shares)}
-}
-
-// temperatureText prints a noise temperature.
-func temperatureText(k float64) string {
-	if k == 0 {
-		return "0 K (noiseless)"
-	}
-	return strconv.FormatFloat(k, 'f', -1, 64) + " K"
-}
-
 func writeNoiseHeader(w io.Writer, s *noiseSetup) {
 	fmt.Fprintf(w, "%s\n", s.c.Name)
 	fmt.Fprintf(w, "  file         %s\n", s.c.File)
-	fmt.Fprintf(w, "  bias         %s\n", biasLine(s.p))
-	for _, line := range noiseSetupLines(s) {
+	writeOverrides(w, s.c)
+	fmt.Fprintf(w, "  bias         %s\n", report.BiasLine(s.p))
+	for _, line := range report.NoiseSetupLines(s.c, s.nw, s.plan) {
 		fmt.Fprintf(w, "  %-12s %s\n", line[0], line[1])
 	}
-}
-
-// noiseSetupLines describes input, output and sweep as label, text pairs.
-func noiseSetupLines(s *noiseSetup) [][2]string {
-	var lines [][2]string
-	set := s.settings
-	if set.Input >= 0 {
-		p := s.nw.Ports[set.Input]
-		t := ac.StandardNoiseTemperatureK * 1.0
-		if cp := s.c.Ports[set.Input]; cp.NoiseTemperatureSet {
-			t = cp.NoiseTemperatureK
-		}
-		text := fmt.Sprintf("port %s, %s source at %s", p.Name, si.Format(p.Impedance, "Ω", 4), temperatureText(t))
-		if !s.detector {
-			text += " as operated; at 290 K for the noise figure"
-		}
-		lines = append(lines, [2]string{"input", text})
-	} else {
-		lines = append(lines, [2]string{"input", "none: output noise only (no port to take as the signal source)"})
-	}
-	if set.Output.Port >= 0 {
-		p := s.nw.Ports[set.Output.Port]
-		t := ac.StandardNoiseTemperatureK * 1.0
-		if cp := s.c.Ports[set.Output.Port]; cp.NoiseTemperatureSet {
-			t = cp.NoiseTemperatureK
-		}
-		text := fmt.Sprintf("port %s, %s load at %s", p.Name, si.Format(p.Impedance, "Ω", 4), temperatureText(t))
-		if s.settings.Input >= 0 && !s.detector {
-			text += ": in the output noise, not in the noise figure"
-		} else {
-			text += ", counted in the output noise"
-		}
-		lines = append(lines, [2]string{"output", text})
-	} else {
-		lines = append(lines, [2]string{"output", "node " + set.Output.Node})
-	}
-	g := s.grid
-	what := ""
-	if s.detector && len(g) > 1 && g[0] == s.videoBand[0] && g[len(g)-1] == s.videoBand[1] {
-		what = " (the video band)"
-	}
-	if len(g) == 1 {
-		lines = append(lines, [2]string{"sweep", "1 point at " + si.Format(g[0], "Hz", 4)})
-	} else {
-		lines = append(lines, [2]string{"sweep", fmt.Sprintf("%d points, %s to %s%s", len(g), si.Format(g[0], "Hz", 4), si.Format(g[len(g)-1], "Hz", 4), what)})
-	}
-	return lines
-}
-
-// density prints a noise density.
-func density(v float64, unit string) string {
-	if math.IsNaN(v) || math.IsInf(v, 0) {
-		return "—"
-	}
-	return si.Format(v, unit, 4)
-}
-
-func figureText(db float64) string {
-	if math.IsNaN(db) {
-		return "—"
-	}
-	if math.IsInf(db, 1) {
-		return "∞"
-	}
-	if math.Abs(db) < 0.005 {
-		db = 0 // no "-0.00"
-	}
-	return strconv.FormatFloat(db, 'f', 2, 64) + " dB"
-}
-
-func shareText(f float64) string {
-	if math.IsNaN(f) {
-		return "—"
-	}
-	return strconv.FormatFloat(100*f, 'f', 1, 64) + " %"
-}
-
-// largest returns the label and share of the largest of contributions.
-func largest(sources []ac.NoiseSource, contributions []float64, total float64) string {
-	k := 0
-	for i, c := range contributions {
-		if c > contributions[k] {
-			k = i
-		}
-	}
-	if len(contributions) == 0 || !(total > 0) {
-		return "—"
-	}
-	return fmt.Sprintf("%s %s", sources[k].Label(), shareText(contributions[k]/total))
-}
-
-func noiseTable(o *noiseOutcome, rows int) *table {
-	r := o.r
-	hasInput := r.Settings.Input >= 0
-	t := &table{title: "Noise at the output", header: []string{"frequency", "output noise"}}
-	switch {
-	case o.det != nil:
-		t.header = append(t.header, "noise-equivalent power", "video response")
-	case hasInput:
-		t.header = append(t.header, "input-referred", "noise figure")
-	}
-	t.header = append(t.header, "largest source")
-	for _, i := range pickRows(len(r.Points), rows) {
-		pt := r.Points[i]
-		cells := []string{si.Format(pt.FrequencyHz, "Hz", 4), density(pt.Density(), "V/√Hz")}
-		switch {
-		case o.det != nil:
-			cells = append(cells, density(o.nep(i), "W/√Hz"), figureText(20*math.Log10(cmplx.Abs(o.video[i])/math.Abs(o.det.Sensitivity))))
-		case hasInput:
-			cells = append(cells, density(pt.InputReferred(), "V/√Hz"), figureText(pt.FigureDB()))
-		}
-		cells = append(cells, largest(r.Sources, pt.Contributions, pt.Total))
-		t.add(cells...)
-	}
-	return t
-}
-
-func noiseNotes(o *noiseOutcome) []string {
-	notes := []string{"output noise: every source as operated, each port's termination at its noise temperature"}
-	if o.det != nil {
-		notes = append(notes, "noise-equivalent power: output noise over the voltage sensitivity at that video frequency",
-			"video response: that sensitivity relative to its DC value")
-	} else if o.r.Settings.Input >= 0 {
-		notes = append(notes, fmt.Sprintf("input-referred: the circuit's own noise as an EMF in series with port %s's generator", o.s.inName),
-			"noise figure: source at 290 K, output load left out (IEEE); F = 1 + e_n²/(4 k 290 K Z0)")
-	}
-	return append(notes, "small-signal noise at the DC bias point: no large signal (a mixer's local oscillator) pumps the diodes")
-}
-
-func bandTable(o *noiseOutcome) *table {
-	b := o.band
-	t := &table{title: fmt.Sprintf("Integrated from %s to %s", si.Format(b.FromHz, "Hz", 4), si.Format(b.ToHz, "Hz", 4)), header: []string{"quantity", "value"}}
-	t.add("output noise", si.Format(b.RMS(), "V", 4)+" rms")
-	if o.r.Settings.Input >= 0 && o.det == nil {
-		t.add("input-referred", si.Format(b.InputReferredRMS(), "V", 4)+" rms (EMF)")
-		t.add("average noise figure", figureText(10*math.Log10(b.AverageFactor())))
-	}
-	t.add("integration grid", fmt.Sprintf("%d per decade, converged to %.0e", b.PerDecade, math.Max(b.Change, 1e-16)))
-	return t
-}
-
-// role says what part a source plays for the noise figure.
-func role(r *ac.NoiseResult, src ac.NoiseSource) string {
-	switch {
-	case src.Port >= 0 && src.Port == r.Settings.Input:
-		return "signal source"
-	case src.Port >= 0 && src.Port == r.Settings.Output.Port:
-		return "load"
-	case src.Port >= 0:
-		return "other port"
-	}
-	return "circuit"
-}
-
-func sourceTable(o *noiseOutcome) *table {
-	b := o.band
-	t := &table{title: "Where the noise comes from (share of the integrated output noise power)",
-		header: []string{"source", "role", "temperature", "output noise", "share"}}
-	order := make([]int, len(b.Sources))
-	for i := range order {
-		order[i] = i
-	}
-	sort.SliceStable(order, func(i, j int) bool { return b.Contributions[order[i]] > b.Contributions[order[j]] })
-	for _, k := range order {
-		src := b.Sources[k]
-		temp := "—"
-		if src.Kind == ac.ThermalNoise {
-			temp = temperatureText(src.TemperatureK)
-		}
-		rms := si.Format(math.Sqrt(b.Contributions[k]), "V", 4) + " rms"
-		if b.Contributions[k] < 1e-24*b.Total {
-			rms = "≈ 0" // balanced out, or no path to the output
-		}
-		t.add(src.Label(), role(o.r, src), temp, rms, shareText(b.Contributions[k]/b.Total))
-	}
-	return t
-}
-
-func detectorTable(o *noiseOutcome) (*table, []string) {
-	d := o.det
-	t := &table{title: "Detector sensitivity", header: []string{"quantity", "value"}}
-	t.add("carrier", si.Format(d.CarrierHz, "Hz", 5))
-	t.add("voltage sensitivity", fmt.Sprintf("%s (%s mV/µW)", si.Format(d.Sensitivity, "V/W", 4), strconv.FormatFloat(d.Sensitivity*1e-3, 'g', 4, 64)))
-	t.add("video band", fmt.Sprintf("%s to %s", si.Format(d.Video.FromHz, "Hz", 4), si.Format(d.Video.ToHz, "Hz", 4)))
-	t.add("video noise", si.Format(d.Video.RMS(), "V", 4)+" rms")
-	t.add("noise-equivalent power", fmt.Sprintf("%s at %s", density(d.NEP, "W/√Hz"), si.Format(d.SpotHz, "Hz", 4)))
-	t.add("tangential sensitivity", fmt.Sprintf("%.2f dBm (%s)", d.TangentialDBm(), si.Format(d.TangentialW, "W", 3)))
-	notes := []string{
-		fmt.Sprintf("voltage sensitivity γ: DC shift at %s per watt available from port %s, square-law limit (Volterra)", o.s.outName, o.s.inName),
-		"NEP = v_n / |γ| at the band's geometric centre; tangential sensitivity = 2.5 V_n / |γ| with V_n the rms video noise,",
-		"  a video signal-to-noise ratio of 8 dB (Cowley and Sorensen 1966)",
-	}
-	if r := d.TopResponse; r < math.Sqrt(0.5) {
-		notes = append(notes, fmt.Sprintf("the video circuit passes %.1f dB of the signal at %s, the top of the video band: pulses that need",
-			20*math.Log10(r), si.Format(d.Video.ToHz, "Hz", 4)),
-			"  the whole band will not reach full height; narrow --video-bandwidth or speed up the video circuit")
-	}
-	return t, notes
 }
 
 // sourceKey is a source's name for CSV headers and JSON.
@@ -656,11 +306,11 @@ func sourceKey(src ac.NoiseSource) string {
 
 // writeNoiseCSV writes one row per frequency: densities, noise figure and
 // each source's contribution, with a header naming each column's unit.
-func writeNoiseCSV(w io.Writer, o *noiseOutcome) error {
-	r := o.r
+func writeNoiseCSV(w io.Writer, o *plan.NoiseRun) error {
+	r := o.Result
 	cw := csv.NewWriter(w)
 	header := []string{"frequency_Hz", "output_noise_V_per_rtHz", "input_referred_V_per_rtHz", "noise_figure_dB"}
-	if o.det != nil {
+	if o.Detection != nil {
 		header = append(header, "nep_W_per_rtHz")
 	}
 	for _, src := range r.Sources {
@@ -671,8 +321,8 @@ func writeNoiseCSV(w io.Writer, o *noiseOutcome) error {
 	}
 	for i, pt := range r.Points {
 		row := []string{csvNumber(pt.FrequencyHz), csvNumber(pt.Density()), csvNumber(pt.InputReferred()), csvNumber(pt.FigureDB())}
-		if o.det != nil {
-			row = append(row, csvNumber(o.nep(i)))
+		if o.Detection != nil {
+			row = append(row, csvNumber(o.NEP(i)))
 		}
 		for _, c := range pt.Contributions {
 			row = append(row, csvNumber(c))
@@ -790,16 +440,16 @@ type noiseJSON struct {
 	Detector    *detectorJSON     `json:"detector,omitempty"`
 }
 
-func noiseDocument(o *noiseOutcome) *noiseJSON {
-	r, s := o.r, o.s
-	d := &noiseJSON{Circuit: s.c.Name, File: s.c.File, Temperature: number(r.TemperatureK), Output: s.outName,
+func noiseDocument(s *noiseSetup, o *plan.NoiseRun) *noiseJSON {
+	r := o.Result
+	d := &noiseJSON{Circuit: s.c.Name, File: s.c.File, Temperature: number(r.TemperatureK), Output: s.plan.OutputName,
 		OutputPort: r.Settings.Output.Port >= 0, Sources: []noiseSourceJSON{}, Points: []noisePointJSON{}}
 	if r.Settings.Input >= 0 {
-		name := s.inName
+		name := s.plan.InputName
 		d.Input = &name
 	}
 	for _, src := range r.Sources {
-		j := noiseSourceJSON{Name: src.Name, Where: src.Where, Kind: string(src.Kind), Role: role(r, src),
+		j := noiseSourceJSON{Name: src.Name, Where: src.Where, Kind: string(src.Kind), Role: report.NoiseRole(r, src),
 			White: number(src.White), Flicker: number(src.Flicker)}
 		if src.Kind == ac.ThermalNoise {
 			j.Temperature = number(src.TemperatureK)
@@ -812,16 +462,16 @@ func noiseDocument(o *noiseOutcome) *noiseJSON {
 		if r.Settings.Input >= 0 {
 			j.InputReferred, j.NoiseFigureDB = ptr(pt.InputReferred()), ptr(pt.FigureDB())
 		}
-		if o.det != nil {
-			j.NEP = ptr(o.nep(i))
-			j.VideoSensitivity = ptr(cmplx.Abs(o.video[i]))
+		if o.Detection != nil {
+			j.NEP = ptr(o.NEP(i))
+			j.VideoSensitivity = ptr(cmplx.Abs(o.Video[i]))
 		}
 		for k, c := range pt.Contributions {
 			j.Contributions[k] = number(c)
 		}
 		d.Points = append(d.Points, j)
 	}
-	if b := o.band; b != nil {
+	if b := o.Band; b != nil {
 		j := &noiseBandJSON{From: number(b.FromHz), To: number(b.ToHz), OutputRMS: number(b.RMS()), PerDecade: b.PerDecade,
 			Contributions: make([]number, len(b.Contributions))}
 		if r.Settings.Input >= 0 {
@@ -832,7 +482,7 @@ func noiseDocument(o *noiseOutcome) *noiseJSON {
 		}
 		d.Band = j
 	}
-	if det := o.det; det != nil {
+	if det := o.Detection; det != nil {
 		d.Detector = &detectorJSON{Carrier: number(det.CarrierHz), VoltageSensitivity: number(det.Sensitivity),
 			VideoFrom: number(det.Video.FromHz), VideoTo: number(det.Video.ToHz), VideoNoiseRMS: number(det.Video.RMS()),
 			NEP: number(det.NEP), NEPFrequency: number(det.SpotHz), VideoTopResponse: number(det.TopResponse), TangentialSensitivity: number(det.TangentialW), TangentialDBm: number(det.TangentialDBm())}
@@ -855,39 +505,39 @@ func noiseSection(c *circuit.Circuit, temperature string, p *bias.Point) (report
 		sec.Intro = "The noise analysis could not be set up: " + err.Error()
 		return sec, nil, nil
 	}
-	o, err := computeNoise(s)
+	o, err := s.plan.Run(s.nw)
 	if err != nil {
 		return sec, nil, err
 	}
 	var intro []string
-	for _, l := range noiseSetupLines(s) {
+	for _, l := range report.NoiseSetupLines(s.c, s.nw, s.plan) {
 		intro = append(intro, l[0]+": "+l[1])
 	}
 	sec.Intro = strings.Join(intro, "; ") + "."
-	for _, f := range noiseFigures(o.r) {
+	for _, f := range report.NoiseFigures(o.Result) {
 		fig, err := svgOf(f)
 		if err != nil {
 			return sec, nil, analysisError(err)
 		}
 		sec.Blocks = append(sec.Blocks, report.Block{Figure: fig})
 	}
-	sec.Blocks = append(sec.Blocks, report.Block{Table: noiseTable(o, 9).report()})
-	sec.Blocks = append(sec.Blocks, report.Block{Note: strings.Join(noiseNotes(o), "; ") + "."})
-	if o.band != nil {
-		sec.Blocks = append(sec.Blocks, report.Block{Table: bandTable(o).report()}, report.Block{Table: sourceTable(o).report()})
+	sec.Blocks = append(sec.Blocks, report.Block{Table: report.NoiseTable(o, 9)})
+	sec.Blocks = append(sec.Blocks, report.Block{Note: strings.Join(report.NoiseNotes(o), "; ") + "."})
+	if o.Band != nil {
+		sec.Blocks = append(sec.Blocks, report.Block{Table: report.BandTable(o)}, report.Block{Table: report.SourceTable(o)})
 	}
 	var cards []report.Card
-	if o.det != nil {
-		t, notes := detectorTable(o)
-		sec.Blocks = append(sec.Blocks, report.Block{Table: t.report()}, report.Block{Note: strings.Join(notes, "; ") + "."})
+	if o.Detection != nil {
+		t, notes := report.DetectorTable(o)
+		sec.Blocks = append(sec.Blocks, report.Block{Table: t}, report.Block{Note: strings.Join(notes, "; ") + "."})
 		cards = append(cards,
-			report.Card{Label: "noise-equivalent power", Value: density(o.det.NEP, "W/√Hz"), Detail: fmt.Sprintf("at %s video frequency", si.Format(o.det.SpotHz, "Hz", 3))},
-			report.Card{Label: "tangential sensitivity", Value: fmt.Sprintf("%.1f dBm", o.det.TangentialDBm()), Detail: fmt.Sprintf("at %s, video to %s", si.Format(o.det.CarrierHz, "Hz", 4), si.Format(o.det.Video.ToHz, "Hz", 3))})
-	} else if s.settings.Input >= 0 && s.carrierHz > 0 {
-		at, err := ac.Noise(s.nw, []float64{s.carrierHz}, s.settings)
+			report.Card{Label: "noise-equivalent power", Value: report.Density(o.Detection.NEP, "W/√Hz"), Detail: fmt.Sprintf("at %s video frequency", si.Format(o.Detection.SpotHz, "Hz", 3))},
+			report.Card{Label: "tangential sensitivity", Value: fmt.Sprintf("%.1f dBm", o.Detection.TangentialDBm()), Detail: fmt.Sprintf("at %s, video to %s", si.Format(o.Detection.CarrierHz, "Hz", 4), si.Format(o.Detection.Video.ToHz, "Hz", 3))})
+	} else if s.plan.Settings.Input >= 0 && s.plan.CarrierHz > 0 {
+		at, err := ac.Noise(s.nw, []float64{s.plan.CarrierHz}, s.plan.Settings)
 		if err == nil {
-			cards = append(cards, report.Card{Label: "noise figure", Value: figureText(at.Points[0].FigureDB()),
-				Detail: fmt.Sprintf("%s → %s at %s, source at 290 K", s.inName, s.outName, si.Format(s.carrierHz, "Hz", 4))})
+			cards = append(cards, report.Card{Label: "noise figure", Value: report.FigureText(at.Points[0].FigureDB()),
+				Detail: fmt.Sprintf("%s → %s at %s, source at 290 K", s.plan.InputName, s.plan.OutputName, si.Format(s.plan.CarrierHz, "Hz", 4))})
 		}
 	}
 	return sec, cards, nil

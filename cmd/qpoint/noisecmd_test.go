@@ -258,7 +258,7 @@ func TestNoiseDetectorChoice(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	text := strings.Replace(string(data), "{type: capacitor,      name: Cout,  between: [line, out],  value: 100pF}",
+	text := strings.Replace(string(data), "{type: capacitor,      name: Cout,  between: [line, out],  value: 100pF, tolerance: 5%}",
 		"{type: resistor,       name: Rout,  between: [line, out],  value: 1}", 1)
 	if text == string(data) {
 		t.Fatal("attenuator demo changed; update the test")

@@ -12,19 +12,34 @@ import (
 
 	"qpoint/ac"
 	"qpoint/ac/study"
+	"qpoint/ac/touchstone"
 	"qpoint/bias/circuit"
+	"qpoint/bias/si"
 )
 
-func parseTouchstoneFormat(s string) (ac.Format, error) {
-	f, err := ac.ParseFormat(s)
+func parseTouchstoneFormat(s string) (touchstone.Format, error) {
+	f, err := touchstone.ParseFormat(s)
 	if err != nil {
 		return 0, inputError(fmt.Errorf("flag --format: %w", err))
 	}
 	return f, nil
 }
 
-func writeTouchstone(w io.Writer, c *circuit.Circuit, r *ac.Response, f ac.Format) error {
-	return ac.WriteTouchstone(w, r.Ports, r.Points, f, touchstoneComment(c))
+func writeTouchstone(w io.Writer, c *circuit.Circuit, r *ac.Response, f touchstone.Format) error {
+	pts := make([]touchstone.Point, len(r.Points))
+	for i, p := range r.Points {
+		pts[i] = touchstone.Point{FrequencyHz: p.FrequencyHz, S: p.S}
+	}
+	return touchstone.Write(w, touchstonePorts(r.Ports), pts, f, touchstoneComment(c))
+}
+
+// touchstonePorts gives a sweep's ports as the file format names them.
+func touchstonePorts(ports []ac.PortInfo) []touchstone.Port {
+	out := make([]touchstone.Port, len(ports))
+	for i, p := range ports {
+		out[i] = touchstone.Port{Name: p.Name, Impedance: p.Impedance}
+	}
+	return out
 }
 
 // touchstoneComment is the comment a Touchstone file opens with.
@@ -66,12 +81,16 @@ func writeFigures(dir string, figs []*plots.Figure) error {
 	return nil
 }
 
-func writeDistortionPlots(dir string, s *distortionSetup, e *ac.Estimate, st *ac.Steady, sweep []ac.LevelPoint, extra ...*plots.Figure) error {
+func writeDistortionPlots(dir string, s *distortionSetup, e *ac.Estimate, st *ac.Steady, sweep []ac.LevelPoint, t *ac.Transfer, tssDBm float64, extra ...*plots.Figure) error {
 	comp, compressed := 0.0, false
 	if len(sweep) > 1 {
-		comp, compressed = ac.Compression(sweep, cmplx.Abs(e.Fundamental)/e.Drive.EMF)
+		comp, compressed = ac.Compression(sweep, cmplx.Abs(e.Linear)/e.Drive.EMF)
 	}
-	return writeFigures(dir, append(distortionFigures(e, st, sweep, comp, compressed), extra...))
+	figs := distortionFigures(e, st, sweep, comp, compressed)
+	if t != nil {
+		figs = append(figs, plots.DetectorTransfer(t, tssDBm))
+	}
+	return writeFigures(dir, append(figs, extra...))
 }
 
 func writeDistortionFrequencyPlot(dir string, rows []frequencyRow) error {
@@ -95,8 +114,8 @@ func distortionFigures(e *ac.Estimate, st *ac.Steady, sweep []ac.LevelPoint, com
 }
 
 // studyPlots returns the figures --plots writes for a study.
-func studyPlots(r *study.Result, show string) ([]*plots.Figure, error) {
-	figs := studyFigures(r, show)
+func studyPlots(r *study.Result, show string, marks ...plots.StudyMark) ([]*plots.Figure, error) {
+	figs := studyFigures(r, show, marks...)
 	if len(figs) == 0 {
 		return nil, inputError(fmt.Errorf("flag --show: none of the measures could be drawn"))
 	}
@@ -105,23 +124,31 @@ func studyPlots(r *study.Result, show string) ([]*plots.Figure, error) {
 
 // studyFigures returns the study's curves (one varied quantity) or a heat
 // map per measure (two), for the measures in show or a useful default set.
-func studyFigures(r *study.Result, show string) []*plots.Figure {
+func studyFigures(r *study.Result, show string, marks ...plots.StudyMark) []*plots.Figure {
 	var ms []*study.Measure
+	// A marked measure (the goal's) is always shown, first.
+	for _, mk := range marks {
+		if mk.Measure != nil {
+			ms = append(ms, mk.Measure)
+		}
+	}
 	if show != "" {
 		for _, t := range strings.Split(show, ",") {
 			if m, err := study.ParseMeasure(strings.TrimSpace(t)); err == nil {
-				ms = append(ms, m)
+				ms = appendMeasure(r, ms, m)
 			}
 		}
 	} else {
-		ms = defaultStudyMeasures(r)
+		for _, m := range defaultStudyMeasures(r) {
+			ms = appendMeasure(r, ms, m)
+		}
 	}
 	if len(ms) == 0 {
 		return nil
 	}
 	xl, xu := r.Settings.Axis.Vary.Text, r.Settings.Axis.Vary.Quantity.Unit()
 	if r.Settings.Second == nil {
-		return []*plots.Figure{plots.StudyCurves(r, ms, xl, xu)}
+		return []*plots.Figure{plots.StudyCurves(r, ms, xl, xu, marks...)}
 	}
 	yl, yu := "frequency", "Hz"
 	if !r.Settings.SecondIsFrequency {
@@ -141,6 +168,31 @@ func studyFigures(r *study.Result, show string) []*plots.Figure {
 	return figs
 }
 
+// appendMeasure appends m unless ms already reads the same figure: the
+// same name and part at the same frequency, an absent frequency being the
+// study's first (or the first distortion frequency).
+func appendMeasure(r *study.Result, ms []*study.Measure, m *study.Measure) []*study.Measure {
+	at := func(x *study.Measure) float64 {
+		if x.FrequencyHz != 0 {
+			return x.FrequencyHz
+		}
+		fs := r.Settings.FrequenciesHz
+		if x.AtDistortion() {
+			fs = r.Settings.DistortionFrequencies()
+		}
+		if len(fs) > 0 {
+			return fs[0]
+		}
+		return 0
+	}
+	for _, x := range ms {
+		if x.Name == m.Name && x.Part == m.Part && at(x) == at(m) {
+			return ms
+		}
+	}
+	return append(ms, m)
+}
+
 // defaultStudyMeasures picks what a designer looks at first: each diode's
 // current, the transmission or match at the first study frequency, and
 // the detector's sensitivity or the distortion when a level is set.
@@ -150,8 +202,14 @@ func defaultStudyMeasures(r *study.Result) []*study.Measure {
 	if first == nil {
 		return nil
 	}
+	// A study that varies a current would plot each diode's current
+	// against (nearly) itself: show the diode's voltage instead.
+	q := "current."
+	if r.Settings.Axis.Vary.Quantity == circuit.Current {
+		q = "voltage."
+	}
 	for _, d := range first.Diodes {
-		texts = append(texts, "current."+d.Name)
+		texts = append(texts, q+d.Name)
 	}
 	if len(first.Responses) > 0 {
 		if len(r.Ports) > 1 {
@@ -159,11 +217,22 @@ func defaultStudyMeasures(r *study.Result) []*study.Measure {
 		}
 		texts = append(texts, "s11")
 	}
-	if r.Settings.Drive.EMF > 0 {
-		texts = append(texts, "hd2")
-		if first.DCShift != 0 {
-			texts = append(texts, "sensitivity")
+	if len(first.NoiseFigureDB) > 0 {
+		texts = append(texts, "noise_figure")
+	}
+	for i, d := range first.Distortion {
+		// The first distortion frequency is the measures' default.
+		at := ""
+		if i > 0 {
+			at = "@" + strings.ReplaceAll(si.Format(d.FrequencyHz, "Hz", 6), " ", "")
 		}
+		texts = append(texts, "hd2"+at)
+		if d.DCShift != 0 {
+			texts = append(texts, "sensitivity"+at)
+		}
+	}
+	if first.Detection != nil && first.Detection.Detects {
+		texts = append(texts, "tss")
 	}
 	var ms []*study.Measure
 	for _, t := range texts {
@@ -172,4 +241,13 @@ func defaultStudyMeasures(r *study.Result) []*study.Measure {
 		}
 	}
 	return ms
+}
+
+// designFrequency is the frequency a circuit is designed for, as figures
+// mark it: the file's distortion frequency, or zero when it names none.
+func designFrequency(c *circuit.Circuit) float64 {
+	if d := c.Analysis.Distortion; d.Set {
+		return d.FrequencyHz
+	}
+	return 0
 }

@@ -22,6 +22,7 @@ import (
 
 func newReportCmd() *cobra.Command {
 	var outPath, temperature string
+	var sets []string
 	cmd := &cobra.Command{
 		Use:   "report FILE -o REPORT.html",
 		Short: "Write one self-contained HTML design report",
@@ -38,8 +39,11 @@ inline and fetches nothing: mail it, archive it, print it.`,
 			if outPath == "" {
 				return inputError(fmt.Errorf("flag -o is missing: name the HTML file to write, e.g. -o report.html"))
 			}
-			c, err := loadCircuit(args[0])
+			c, err := loadCircuit(cmd.ErrOrStderr(), args[0], sets, temperature)
 			if err != nil {
+				return err
+			}
+			if err := checkOutputsEarly("", outPath); err != nil {
 				return err
 			}
 			doc, err := buildReport(c, temperature)
@@ -55,6 +59,7 @@ inline and fetches nothing: mail it, archive it, print it.`,
 	}
 	cmd.Flags().StringVarP(&outPath, "output", "o", "", "the HTML file to write")
 	cmd.Flags().StringVar(&temperature, "temperature", "", "circuit temperature, overriding the file's (e.g. 85C)")
+	addSetFlag(cmd, &sets)
 	return cmd
 }
 
@@ -75,11 +80,17 @@ func buildReport(c *circuit.Circuit, temperature string) (*report.Document, erro
 	}
 	doc := &report.Document{
 		Title:    c.Name,
-		Subtitle: fmt.Sprintf("%s · %.2f °C · bias by %s in %s", c.File, celsius(p.TemperatureK), p.Stats.Strategy, plural(p.Stats.Iterations, "iteration")),
+		Subtitle: fmt.Sprintf("%s · %.2f °C · bias by %s in %s", c.File, report.Celsius(p.TemperatureK), p.Stats.Strategy, report.Plural(p.Stats.Iterations, "iteration")),
 		Footer: []string{
 			"Results are model estimates from the diode models in the circuit file. Confirm them by measurement before relying on them; the parts' ratings and your local practice govern.",
 			"Written by qpoint.",
 		},
+	}
+	if l := overridesLine(c); l != "" {
+		doc.Subtitle += " · values set for this run: " + l
+	}
+	for _, x := range c.Warnings {
+		doc.Cautions = append(doc.Cautions, fmt.Sprintf("line %d of the file: %s", x.Line, x.Message))
 	}
 	for _, w := range p.Warnings {
 		doc.Cautions = append(doc.Cautions, w.Part+": "+w.Message)
@@ -121,9 +132,9 @@ func buildReport(c *circuit.Circuit, temperature string) (*report.Document, erro
 
 	// Operating point.
 	sec = report.Section{ID: "bias", Title: "Operating point", Intro: fmt.Sprintf("Solved by %s in %s; largest current imbalance %s.",
-		p.Stats.Strategy, plural(p.Stats.Iterations, "iteration"), si.Format(p.Stats.Residual, "A", 2))}
-	for _, t := range biasTables(p) {
-		sec.Blocks = append(sec.Blocks, report.Block{Table: t.report()})
+		p.Stats.Strategy, report.Plural(p.Stats.Iterations, "iteration"), si.Format(p.Stats.Residual, "A", 2))}
+	for _, t := range report.BiasTables(p) {
+		sec.Blocks = append(sec.Blocks, report.Block{Table: t})
 	}
 	doc.Sections = append(doc.Sections, sec)
 
@@ -156,14 +167,14 @@ func buildReport(c *circuit.Circuit, temperature string) (*report.Document, erro
 	}
 	sec = report.Section{ID: "response", Title: "Small-signal response", Intro: fmt.Sprintf("%d points from %s to %s; every port terminated in its reference impedance.",
 		len(r.Points), si.Format(grid[0], "Hz", 4), si.Format(grid[len(grid)-1], "Hz", 4))}
-	for _, f := range plots.ResponseFigures(r) {
+	for _, f := range plots.ResponseFigures(r, designFrequency(c)) {
 		fig, err := svgOf(f)
 		if err != nil {
 			return nil, analysisError(err)
 		}
 		sec.Blocks = append(sec.Blocks, report.Block{Figure: fig})
 	}
-	sec.Blocks = append(sec.Blocks, report.Block{Table: responseTable(r, 9).report()})
+	sec.Blocks = append(sec.Blocks, report.Block{Table: report.ResponseTable(r, 9)})
 	doc.Sections = append(doc.Sections, sec)
 
 	// Distortion.
@@ -193,6 +204,14 @@ func buildReport(c *circuit.Circuit, temperature string) (*report.Document, erro
 		}
 		doc.Sections = append(doc.Sections, sec)
 	}
+	if len(c.Tolerances) > 0 {
+		sec, cards, err := yieldSection(c, temperature) // yieldcmd.go
+		if err != nil {
+			return nil, err
+		}
+		doc.Sections = append(doc.Sections, sec)
+		doc.Cards = append(doc.Cards, cards...)
+	}
 	return doc, nil
 }
 
@@ -220,13 +239,14 @@ func distortionSection(s *distortionSetup) (report.Section, []report.Card, error
 		return sec, cards, nil
 	}
 	wt, note := waveformTable(st)
-	sec.Blocks = append(sec.Blocks, report.Block{Table: wt.report()}, report.Block{Note: note})
+	sec.Blocks = append(sec.Blocks, report.Block{Table: wt.report()}, report.Block{Note: note}, report.Block{Table: stressTable(st).report()})
 	for _, c := range st.Cautions() {
 		cards = append(cards, report.Card{Label: "caution", Value: "overstress", Detail: c})
 	}
 	limit, lerr := ac.ValidityLimit(s.nw, one, s.levelDBm-40, s.levelDBm+40, 0.5, settings)
 	if lerr != nil {
 		limit = nil
+		sec.Blocks = append(sec.Blocks, report.Block{Note: "The validity limit could not be searched: " + lerr.Error()})
 	}
 	ct, cnote := comparisonTable(ac.Compare(oneEst, st), limit)
 	sec.Blocks = append(sec.Blocks, report.Block{Table: ct.report()})
@@ -244,7 +264,7 @@ func distortionSection(s *distortionSetup) (report.Section, []report.Card, error
 	}
 	comp, compressed := 0.0, false
 	if len(sweep) > 1 {
-		comp, compressed = ac.Compression(sweep, cmplx.Abs(oneEst.Fundamental)/oneEst.Drive.EMF)
+		comp, compressed = ac.Compression(sweep, cmplx.Abs(oneEst.Linear)/oneEst.Drive.EMF)
 	}
 	for _, f := range distortionFigures(oneEst, st, sweep, comp, compressed) {
 		fig, err := svgOf(f)
@@ -257,10 +277,41 @@ func distortionSection(s *distortionSetup) (report.Section, []report.Card, error
 		cards = append(cards, report.Card{Label: "second harmonic", Value: fmt.Sprintf("%.1f dBc", est.HD2dBc()), Detail: fmt.Sprintf("at %.0f dBm, %s", s.levelDBm, si.Format(s.drive.FrequencyHz, "Hz", 4))})
 	}
 	if limit != nil {
-		cards = append(cards, report.Card{Label: "small-signal limit", Value: fmt.Sprintf("%.1f dBm", limit.LevelDBm), Detail: "estimates within 0.5 dB of the waveform"})
+		switch limit.Outcome {
+		case ac.LimitFound:
+			cards = append(cards, report.Card{Label: "small-signal limit", Value: fmt.Sprintf("%.1f dBm", limit.LevelDBm), Detail: "estimates within 0.5 dB of the waveform"})
+		case ac.HeldThroughout:
+			cards = append(cards, report.Card{Label: "small-signal limit", Value: fmt.Sprintf("above %.1f dBm", limit.LevelDBm), Detail: "estimates within 0.5 dB at every level tried"})
+		default:
+			cards = append(cards, report.Card{Label: "small-signal limit", Value: "not found", Detail: limit.Note()})
+		}
 	}
 	if compressed {
 		cards = append(cards, report.Card{Label: "1 dB compression", Value: fmt.Sprintf("%.1f dBm", comp), Detail: "input, from the waveform"})
+	}
+	// A detector's transfer curve, from below its tangential
+	// sensitivity to beyond square law.
+	path := ac.NoiseSettings{Input: s.drive.Input, Output: s.drive.Output}
+	if ac.Detects(s.nw, path, s.drive.FrequencyHz) {
+		if det, err := ac.Detector(s.nw, path, s.drive.FrequencyHz, defaultVideoFromHz, defaultVideoToHz); err == nil {
+			var levels []float64
+			for l := math.Floor(det.TangentialDBm()/2)*2 - 10; l <= 10+1e-9; l += 2 {
+				levels = append(levels, l)
+			}
+			tsweep, _ := ac.LevelSweep(s.nw, one, levels, settings, nil)
+			if t, err := ac.DetectorTransfer(tsweep, det.Sensitivity); err == nil {
+				fig, err := svgOf(plots.DetectorTransfer(t, det.TangentialDBm()))
+				if err != nil {
+					return sec, nil, analysisError(err)
+				}
+				sec.Blocks = append(sec.Blocks, report.Block{Note: "Detector transfer curve, from the waveform at each level, with the tangential sensitivity over a 1 Hz to 2 MHz video band."},
+					report.Block{Figure: fig})
+				if !math.IsNaN(t.DeviationDBm) {
+					cards = append(cards, report.Card{Label: "square-law range", Value: fmt.Sprintf("%.1f dB", t.DynamicRangeDB(det.TangentialDBm())),
+						Detail: fmt.Sprintf("tangential sensitivity %.1f dBm to 1 dB deviation at %.1f dBm", det.TangentialDBm(), t.DeviationDBm)})
+				}
+			}
+		}
 	}
 	return sec, cards, nil
 }
@@ -278,7 +329,7 @@ func studySection(c *circuit.Circuit) (report.Section, error) {
 		return sec, analysisError(err)
 	}
 	sec.Intro = fmt.Sprintf("%s from %s to %s in %d steps (%d Newton iterations with continuation).", r.Settings.Axis.Vary.Text,
-		formatCell(r.Settings.Axis.Values[0], r.Settings.Axis.Vary.Quantity.Unit()), formatCell(r.Settings.Axis.Values[len(r.Settings.Axis.Values)-1], r.Settings.Axis.Vary.Quantity.Unit()),
+		report.FormatCell(r.Settings.Axis.Values[0], r.Settings.Axis.Vary.Quantity.Unit()), report.FormatCell(r.Settings.Axis.Values[len(r.Settings.Axis.Values)-1], r.Settings.Axis.Vary.Quantity.Unit()),
 		len(r.Steps), r.Newton)
 	for _, f := range studyFigures(r, "") {
 		fig, err := svgOf(f)
@@ -287,26 +338,26 @@ func studySection(c *circuit.Circuit) (report.Section, error) {
 		}
 		sec.Blocks = append(sec.Blocks, report.Block{Figure: fig})
 	}
-	cols := studyColumns(r)
-	t := studyTable(r, cols)
+	cols := report.StudyColumns(r)
+	t := report.StudyTable(r, cols)
 	// Keep the report's table readable: at most a dozen rows.
-	if n := len(t.rows); n > 12 {
+	if n := len(t.Rows); n > 12 {
 		var rows [][]string
 		for k := 0; k < 12; k++ {
-			rows = append(rows, t.rows[int(math.Round(float64(k)*float64(n-1)/11))])
+			rows = append(rows, t.Rows[int(math.Round(float64(k)*float64(n-1)/11))])
 		}
-		t.rows = rows
-		t.title = fmt.Sprintf("Study (12 of %d steps)", n)
+		t.Rows = rows
+		t.Caption = fmt.Sprintf("Study (12 of %d steps)", n)
 	}
-	sec.Blocks = append(sec.Blocks, report.Block{Table: t.report()})
+	sec.Blocks = append(sec.Blocks, report.Block{Table: t})
 	return sec, nil
 }
 
 // biasCards returns the report's headline cards for the diodes' bias: one
-// per diode, or for more than maxListedDiodes one card with their count and
+// per diode, or for more than report.MaxListedDiodes one card with their count and
 // current range (the operating-point section lists them all).
 func biasCards(p *bias.Point) []report.Card {
-	if len(p.Diodes) <= maxListedDiodes {
+	if len(p.Diodes) <= report.MaxListedDiodes {
 		var cards []report.Card
 		for _, d := range p.Diodes {
 			cards = append(cards, report.Card{Label: d.Name + " bias", Value: si.Format(d.Current, "A", 3),
@@ -314,7 +365,7 @@ func biasCards(p *bias.Point) []report.Card {
 		}
 		return cards
 	}
-	lo, hi := currentRange(p.Diodes)
+	lo, hi := report.CurrentRange(p.Diodes)
 	least, most := si.Format(lo.Current, "A", 3), si.Format(hi.Current, "A", 3)
 	card := report.Card{Label: fmt.Sprintf("bias of %d diodes", len(p.Diodes)), Value: least,
 		Detail: "each; the operating point lists them"}

@@ -314,3 +314,60 @@ func peakHeap(t *testing.T, f func()) uint64 {
 	<-done
 	return peak.Load()
 }
+
+// heapWatcher discards what is written to it and, every few megabytes,
+// collects garbage and records the largest live heap seen.
+type heapWatcher struct {
+	written, next int
+	peak          uint64
+}
+
+func (h *heapWatcher) Write(p []byte) (int, error) {
+	h.written += len(p)
+	if h.written >= h.next {
+		h.next = h.written + 4<<20
+		runtime.GC()
+		var m runtime.MemStats
+		runtime.ReadMemStats(&m)
+		h.peak = max(h.peak, m.HeapAlloc)
+	}
+	return len(p), nil
+}
+
+// TestResponseJSONStreams: response --json writes its points as they come
+// instead of holding the sweep (issue 13, item 9): the live heap while the
+// document is written stays far below what the points would take held
+// (about 300 bytes each for two ports, so 30 MB for these 100000).
+func TestResponseJSONStreams(t *testing.T) {
+	if testing.Short() {
+		t.Skip("a 100000-point sweep")
+	}
+	inputs = nil
+	var h heapWatcher
+	var errb bytes.Buffer
+	code := run([]string{"response", filepath.Join(demoDir, "attenuator.yaml"), "--points", "100000", "--json"}, &h, &errb)
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, errb.String())
+	}
+	if h.peak > 12<<20 {
+		t.Errorf("live heap reached %d MB while writing the JSON, want under 12 MB: the points are held", h.peak>>20)
+	}
+	t.Logf("%d MB written, live heap at most %.1f MB", h.written>>20, float64(h.peak)/(1<<20))
+}
+
+// TestWorkersBounded: a huge --workers is refused at once, and the
+// library runs no more workers than it has chains of steps.
+func TestWorkersBounded(t *testing.T) {
+	start := time.Now()
+	_, errs, code := runCLI(t, "study", filepath.Join(demoDir, "attenuator.yaml"), "--steps", "3", "--workers", "1000000000")
+	if code != exitInput || !strings.Contains(errs, "flag --workers") {
+		t.Errorf("--workers 1e9: exit %d, %q; want 2 naming the flag", code, errs)
+	}
+	_, errs, code = runCLI(t, "study", filepath.Join(demoDir, "attenuator.yaml"), "--steps", "3", "--workers", "1024")
+	if code != 0 {
+		t.Errorf("--workers 1024: exit %d, %s", code, errs)
+	}
+	if took := time.Since(start); took > 10*time.Second {
+		t.Errorf("took %v", took)
+	}
+}

@@ -1,11 +1,12 @@
 package main
 
 import (
+	"bufio"
 	"encoding/csv"
+	"encoding/json"
 	"fmt"
 	"io"
 	"math"
-	"math/cmplx"
 	"path/filepath"
 	"strconv"
 	"strings"
@@ -13,10 +14,12 @@ import (
 	"github.com/spf13/cobra"
 
 	"qpoint/ac"
+	"qpoint/ac/touchstone"
 	"qpoint/bias"
 	"qpoint/bias/circuit"
 	"qpoint/bias/si"
 	"qpoint/plots"
+	"qpoint/plots/report"
 	"qpoint/smallsignal"
 )
 
@@ -39,6 +42,7 @@ type responseFlags struct {
 	format      string
 	plotsDir    string
 	rows        int
+	sets        []string
 }
 
 func newResponseCmd() *cobra.Command {
@@ -64,6 +68,7 @@ else 1 MHz to 10 GHz at 20 points per decade.`,
 		},
 	}
 	f := cmd.Flags()
+	addSetFlag(cmd, &fl.sets)
 	f.StringVar(&fl.from, "from", "", "lowest frequency, e.g. 10MHz")
 	f.StringVar(&fl.to, "to", "", "highest frequency, e.g. 6GHz")
 	f.IntVar(&fl.perDecade, "per-decade", 0, "points per decade on a logarithmic grid")
@@ -165,8 +170,11 @@ func solveWithTemperature(c *circuit.Circuit, temperature string) (*bias.Point, 
 }
 
 func runResponse(cmd *cobra.Command, path string, fl *responseFlags) error {
-	c, err := loadCircuit(path)
+	c, err := loadCircuit(cmd.ErrOrStderr(), path, fl.sets, fl.temperature)
 	if err != nil {
+		return err
+	}
+	if err := checkOutputsEarly(fl.plotsDir, fl.csvPath, fl.touchstone); err != nil {
 		return err
 	}
 	if len(c.Ports) == 0 {
@@ -202,27 +210,42 @@ func runResponse(cmd *cobra.Command, path string, fl *responseFlags) error {
 	// Every named output is checked before any is written, so that a
 	// refusal leaves none behind.
 	if fl.touchstone != "" {
-		if want := ac.TouchstoneExt(len(c.Ports)); !strings.EqualFold(filepath.Ext(fl.touchstone), want) {
+		if want := touchstone.Ext(len(c.Ports)); !strings.EqualFold(filepath.Ext(fl.touchstone), want) {
 			return inputError(fmt.Errorf("flag --touchstone: %s has %d ports, so its file should end in %s (got %q)", c.Name, len(c.Ports), want, filepath.Ext(fl.touchstone)))
 		}
 	}
 	var r *ac.Response
-	if fl.plotsDir == "" && !fl.asJSON {
-		// Files and a table only: the points stream to the files, and
-		// the sweep keeps just the table's rows, whatever its length.
+	out := cmd.OutOrStdout()
+	if fl.plotsDir == "" {
+		// Files, JSON and a table only: the points stream to the files
+		// and standard output, and the sweep keeps just the table's
+		// rows, whatever its length.
 		if err := refuseInputs(fl.csvPath, fl.touchstone); err != nil {
 			return err
 		}
-		if r, err = streamResponse(nw, grid, ac.Settings{Reference: ref}, c, fl, format); err != nil {
+		var jsonOut io.Writer
+		if fl.asJSON {
+			jsonOut = out
+		}
+		if r, err = streamResponse(nw, grid, ac.Settings{Reference: ref}, c, fl, format, jsonOut); err != nil {
 			return err
 		}
+		if fl.asJSON {
+			return nil
+		}
 	} else {
+		// Figures need the whole sweep in memory: refuse one that would
+		// not fit rather than run out of it.
+		if need := sweepBytes(len(grid), len(c.Ports), len(c.Probes)); need > maxHeldSweepBytes {
+			return inputError(fmt.Errorf("flag --plots: %d points of %d ports take about %s in memory to draw, more than the %s allowed; accepted: at most %d points with --plots (files and --json stream any number)",
+				len(grid), len(c.Ports), si.Format(float64(need), "B", 2), si.Format(maxHeldSweepBytes, "B", 2), maxHeldSweepBytes/sweepBytes(1, len(c.Ports), len(c.Probes))))
+		}
 		if r, err = ac.Run(nw, grid, ac.Settings{Reference: ref}); err != nil {
 			return analysisError(err)
 		}
 		var figs []*plots.Figure
 		if fl.plotsDir != "" {
-			figs = plots.ResponseFigures(r)
+			figs = plots.ResponseFigures(r, designFrequency(c))
 		}
 		if err := refuseInputs(append([]string{fl.csvPath, fl.touchstone}, figurePaths(fl.plotsDir, figs)...)...); err != nil {
 			return err
@@ -245,7 +268,6 @@ func runResponse(cmd *cobra.Command, path string, fl *responseFlags) error {
 			}
 		}
 	}
-	out := cmd.OutOrStdout()
 	if fl.asJSON {
 		return writeJSON(out, responseDocument(r))
 	}
@@ -258,64 +280,13 @@ func runResponse(cmd *cobra.Command, path string, fl *responseFlags) error {
 	return nil
 }
 
-// pickRows chooses up to n points spread evenly over the sweep's index
-// range, always including the first and last.
-func pickRows(total, n int) []int {
-	if n < 2 || total <= n {
-		idx := make([]int, total)
-		for i := range idx {
-			idx[i] = i
-		}
-		return idx
-	}
-	var idx []int
-	for k := 0; k < n; k++ {
-		i := int(math.Round(float64(k) * float64(total-1) / float64(n-1)))
-		if len(idx) == 0 || idx[len(idx)-1] != i {
-			idx = append(idx, i)
-		}
-	}
-	return idx
-}
-
-func db(x complex128) float64  { return 20 * math.Log10(cmplx.Abs(x)) }
-func deg(x complex128) float64 { return cmplx.Phase(x) * 180 / math.Pi }
-
-func formatDB(v float64) string {
-	if math.IsInf(v, -1) {
-		return "-∞"
-	}
-	if math.IsNaN(v) || math.IsInf(v, 1) {
-		return "—"
-	}
-	// Below -200 dB a transfer is numerical noise of a perfectly balanced
-	// or isolated network, not a figure to read.
-	if v < -200 {
-		return "< -200"
-	}
-	return strconv.FormatFloat(v, 'f', 2, 64)
-}
-
-func formatImpedance(z complex128) string {
-	if cmplx.IsInf(z) || cmplx.IsNaN(z) {
-		return "open"
-	}
-	sign := "+"
-	x := imag(z)
-	if x < 0 {
-		sign = "−"
-		x = -x
-	}
-	return fmt.Sprintf("%s %s j%s", si.Format(real(z), "Ω", 4), sign, si.Format(x, "Ω", 4))
-}
-
 // writeResponseTable prints the header and the response at up to rows of
 // the sweep's frequencies grid; r holds either every point or just those
 // rows (streamResponse).
 func writeResponseTable(w io.Writer, c *circuit.Circuit, p *bias.Point, r *ac.Response, grid []float64, rows int) {
 	fmt.Fprintf(w, "%s\n", c.Name)
 	fmt.Fprintf(w, "  file         %s\n", c.File)
-	fmt.Fprintf(w, "  bias         %s\n", biasLine(p))
+	fmt.Fprintf(w, "  bias         %s\n", report.BiasLine(p))
 	var ports []string
 	for _, port := range r.Ports {
 		ports = append(ports, fmt.Sprintf("%s (%s)", port.Name, si.Format(port.Impedance, "Ω", 4)))
@@ -324,7 +295,7 @@ func writeResponseTable(w io.Writer, c *circuit.Circuit, p *bias.Point, r *ac.Re
 	first, last := grid[0], grid[len(grid)-1]
 	fmt.Fprintf(w, "  sweep        %d points, %s to %s\n", len(grid), si.Format(first, "Hz", 4), si.Format(last, "Hz", 4))
 
-	responseTable(r, rows).write(w)
+	report.ResponseTable(r, rows).WriteText(w)
 	name1 := r.Ports[0].Name
 	if len(r.Probes) > 0 {
 		fmt.Fprintf(w, "  probes: node voltage for a 1 V (peak) EMF behind port %s's reference impedance, in dB re 1 V\n", name1)
@@ -403,7 +374,7 @@ func (rw *responseCSV) close() error {
 // Touchstone files flags name as it comes, each whole or not at all, and
 // returns the response with only the points the table shows: the memory a
 // sweep takes does not grow with its length.
-func streamResponse(nw *smallsignal.Network, grid []float64, s ac.Settings, c *circuit.Circuit, fl *responseFlags, format ac.Format) (*ac.Response, error) {
+func streamResponse(nw *smallsignal.Network, grid []float64, s ac.Settings, c *circuit.Circuit, fl *responseFlags, format touchstone.Format, jsonOut io.Writer) (*ac.Response, error) {
 	r := &ac.Response{Probes: c.Probes}
 	for i, p := range nw.Ports {
 		z := p.Impedance
@@ -413,13 +384,13 @@ func streamResponse(nw *smallsignal.Network, grid []float64, s ac.Settings, c *c
 		r.Ports = append(r.Ports, ac.PortInfo{Name: p.Name, Impedance: z})
 	}
 	keep := map[int]bool{}
-	for _, i := range pickRows(len(grid), fl.rows) {
+	for _, i := range report.PickRows(len(grid), fl.rows) {
 		keep[i] = true
 	}
 	var sweepErr error
 	sweep := func(csvOut, touchstoneOut io.Writer) error {
 		var rw *responseCSV
-		var tw *ac.TouchstoneWriter
+		var tw *touchstone.Writer
 		var err error
 		if csvOut != nil {
 			if rw, err = newResponseCSV(csvOut, r.Ports, r.Probes); err != nil {
@@ -427,19 +398,31 @@ func streamResponse(nw *smallsignal.Network, grid []float64, s ac.Settings, c *c
 			}
 		}
 		if touchstoneOut != nil {
-			if tw, err = ac.NewTouchstoneWriter(touchstoneOut, r.Ports, format, touchstoneComment(c), len(grid)); err != nil {
+			if tw, err = touchstone.NewWriter(touchstoneOut, touchstonePorts(r.Ports), format, touchstoneComment(c), len(grid)); err != nil {
+				return err
+			}
+		}
+		var jw *responseJSONWriter
+		if jsonOut != nil {
+			if jw, err = newResponseJSONWriter(jsonOut, r.Ports); err != nil {
 				return err
 			}
 		}
 		k := 0
-		_, _, sweepErr = ac.Sweep(nw, grid, s, func(pt ac.Point) error {
+		var ws ac.Workspace
+		_, _, sweepErr = ws.Sweep(nw, grid, s, func(pt ac.Point) error {
+			if jw != nil {
+				if err := jw.write(pt, r.Probes); err != nil {
+					return err
+				}
+			}
 			if rw != nil {
 				if err := rw.write(pt); err != nil {
 					return err
 				}
 			}
 			if tw != nil {
-				if err := tw.Write(pt); err != nil {
+				if err := tw.Write(touchstone.Point{FrequencyHz: pt.FrequencyHz, S: pt.S}); err != nil {
 					return err
 				}
 			}
@@ -451,6 +434,12 @@ func streamResponse(nw *smallsignal.Network, grid []float64, s ac.Settings, c *c
 		})
 		if sweepErr != nil {
 			return sweepErr
+		}
+		r.Stats = ws.SweepStats()
+		if jw != nil {
+			if err := jw.close(r.Stats); err != nil {
+				return err
+			}
 		}
 		if rw != nil {
 			if err := rw.close(); err != nil {
@@ -531,10 +520,11 @@ type portJSON struct {
 type responseJSON struct {
 	Ports  []portJSON          `json:"ports"`
 	Points []responsePointJSON `json:"points"`
+	Solver *solverJSON         `json:"solver"`
 }
 
 func responseDocument(r *ac.Response) *responseJSON {
-	d := &responseJSON{}
+	d := &responseJSON{Solver: solverJSONOf(r.Stats)}
 	for _, p := range r.Ports {
 		d.Ports = append(d.Ports, portJSON{p.Name, number(p.Impedance)})
 	}
@@ -544,43 +534,6 @@ func responseDocument(r *ac.Response) *responseJSON {
 		d.Points = append(d.Points, j)
 	}
 	return d
-}
-
-// responseTable returns the response at up to rows frequencies.
-func responseTable(r *ac.Response, rows int) *table {
-	two := len(r.Ports) > 1
-	name1 := r.Ports[0].Name
-	t := &table{title: "Response"}
-	t.header = []string{"frequency"}
-	if two {
-		t.header = append(t.header, fmt.Sprintf("|S21| dB (%s→%s)", name1, r.Ports[1].Name), "∠S21 °")
-	}
-	t.header = append(t.header, fmt.Sprintf("return loss dB (%s)", name1), "VSWR", fmt.Sprintf("input impedance (%s)", name1))
-	for _, name := range r.Probes {
-		t.header = append(t.header, fmt.Sprintf("%s dB", name))
-	}
-	for _, i := range pickRows(len(r.Points), rows) {
-		pt := r.Points[i]
-		cells := []string{si.Format(pt.FrequencyHz, "Hz", 4)}
-		if two {
-			angle := strconv.FormatFloat(deg(pt.S[1][0]), 'f', 1, 64)
-			if db(pt.S[1][0]) < -200 {
-				angle = "—"
-			}
-			cells = append(cells, formatDB(db(pt.S[1][0])), angle)
-		}
-		g := cmplx.Abs(pt.S[0][0])
-		vswr := "∞"
-		if g < 1 {
-			vswr = strconv.FormatFloat((1+g)/(1-g), 'f', 2, 64)
-		}
-		cells = append(cells, formatDB(-db(pt.S[0][0])), vswr, formatImpedance(pt.InputImpedance[0]))
-		for _, v := range pt.Probes {
-			cells = append(cells, formatDB(db(v)))
-		}
-		t.add(cells...)
-	}
-	return t
 }
 
 // networkJSON converts an S-matrix, input impedances and probe voltages to
@@ -606,4 +559,85 @@ func networkJSON(s [][]complex128, zin []complex128, probeNames []string, probes
 		}
 	}
 	return js, jz, jp
+}
+
+// responseJSONWriter writes the response document a point at a time, the
+// same document responseDocument builds whole.
+type responseJSONWriter struct {
+	w      *bufio.Writer
+	points int
+}
+
+func newResponseJSONWriter(w io.Writer, ports []ac.PortInfo) (*responseJSONWriter, error) {
+	var js []portJSON
+	for _, p := range ports {
+		js = append(js, portJSON{p.Name, number(p.Impedance)})
+	}
+	head, err := json.MarshalIndent(js, "  ", "  ")
+	if err != nil {
+		return nil, err
+	}
+	bw := bufio.NewWriter(w)
+	fmt.Fprintf(bw, "{\n  \"ports\": %s,\n  \"points\": [", head)
+	return &responseJSONWriter{w: bw}, nil
+}
+
+func (jw *responseJSONWriter) write(pt ac.Point, probes []string) error {
+	j := responsePointJSON{Frequency: number(pt.FrequencyHz), GroupDelay: number(pt.GroupDelay)}
+	j.S, j.InputImpedance, j.Probes = networkJSON(pt.S, pt.InputImpedance, probes, pt.Probes)
+	b, err := json.MarshalIndent(j, "    ", "  ")
+	if err != nil {
+		return err
+	}
+	sep := ",\n    "
+	if jw.points == 0 {
+		sep = "\n    "
+	}
+	jw.points++
+	jw.w.WriteString(sep)
+	_, err = jw.w.Write(b)
+	return err
+}
+
+func (jw *responseJSONWriter) close(st ac.Stats) error {
+	if jw.points > 0 {
+		jw.w.WriteString("\n  ")
+	}
+	solver, err := json.MarshalIndent(solverJSONOf(st), "  ", "  ")
+	if err != nil {
+		return err
+	}
+	fmt.Fprintf(jw.w, "],\n  \"solver\": %s\n}\n", solver)
+	return jw.w.Flush()
+}
+
+// solverJSON says which engine solved a sweep's points: "LU" or the
+// reduction form, the points each took, and the forms tried and refused
+// by their accuracy check.
+type solverJSON struct {
+	Engine        string   `json:"engine"`
+	ReducedPoints int      `json:"reduced_points"`
+	LUPoints      int      `json:"lu_points"`
+	Refused       []string `json:"refused"`
+}
+
+func solverJSONOf(st ac.Stats) *solverJSON {
+	j := &solverJSON{Engine: string(st.Engine), ReducedPoints: st.Reduced, LUPoints: st.LU, Refused: []string{}}
+	for _, e := range st.Refused {
+		j.Refused = append(j.Refused, string(e))
+	}
+	return j
+}
+
+// maxHeldSweepBytes bounds the memory a sweep held whole (for figures)
+// may take, so that every documented input stays within about 1 GB.
+const maxHeldSweepBytes = 400 << 20
+
+// sweepBytes estimates the memory of points held sweep points of a
+// network with the given ports and probes: the S-matrix, the input
+// impedances and probe voltages (16 bytes each), their slice headers and
+// the point itself, and what the figures derive from each.
+func sweepBytes(points, ports, probes int) int {
+	perPoint := 16*(ports*ports+ports+probes) + 24*(ports+3) + 64 + 200
+	return points * perPoint
 }

@@ -140,7 +140,7 @@ func twoToneTable(st *ac.Steady, est *ac.Estimate) *table {
 				estimate = "cancelled"
 			}
 		case [2]int{1, 0}:
-			estimate = si.Format(math.Hypot(real(est.Fundamental), imag(est.Fundamental)), "V", 4)
+			estimate = si.Format(math.Hypot(real(est.Linear), imag(est.Linear)), "V", 4)
 		}
 		t.add(balance.ProductName(p.Orders[0], p.Orders[1]), si.Format(p.FrequencyHz, "Hz", 6), si.Format(p.Amplitude, "V", 4),
 			rel, strconv.FormatFloat(p.PhaseDeg, 'f', 1, 64)+"°", estimate)

@@ -6,7 +6,6 @@ import (
 	"fmt"
 	"io"
 	"math"
-	"math/cmplx"
 	"strconv"
 	"strings"
 	"time"
@@ -14,10 +13,11 @@ import (
 	"github.com/spf13/cobra"
 
 	"qpoint/ac"
+	"qpoint/ac/plan"
 	"qpoint/ac/study"
 	"qpoint/bias/circuit"
-	"qpoint/bias/si"
 	"qpoint/plots"
+	"qpoint/plots/report"
 )
 
 type studyFlags struct {
@@ -28,6 +28,9 @@ type studyFlags struct {
 	steps2               int
 	log2                 bool
 	frequencies          string
+	distortionFrequency  string
+	videoBandwidth       string
+	signed               bool
 	level, input, output string
 	target               string
 	maximize, minimize   string
@@ -36,6 +39,7 @@ type studyFlags struct {
 	asJSON               bool
 	csvPath, plotsDir    string
 	show                 string
+	sets                 []string
 }
 
 func newStudyCmd() *cobra.Command {
@@ -57,21 +61,34 @@ MODEL.KEY (e.g. detector_low_barrier.saturation_current). A second quantity
 --target "MEASURE=VALUE" finds where a measure meets a value, and
 --maximize / --minimize MEASURE find its best value in the range. Measures:
 s11, s21, s12, s22 (dB, @FREQ), zin_re, zin_im, zin_mag (ohm, @FREQ),
-probe.NODE (dB, @FREQ), hd2, hd3 (dBc), dc_shift (V), sensitivity (V/W),
-current.D, voltage.D, dynamic_resistance.D, junction_capacitance.D,
-video_resistance.D, current_sensitivity.D and voltage_sensitivity.D (@FREQ).
+probe.NODE (dB, @FREQ), noise_figure (dB, @FREQ), hd2, hd3 (dBc, @FREQ of
+the distortion), dc_shift (V), sensitivity (V/W), nep (W/√Hz) and tss
+(tangential sensitivity, dBm) of a detector, current.D, voltage.D,
+dynamic_resistance.D, junction_capacitance.D, video_resistance.D,
+current_sensitivity.D and voltage_sensitivity.D (@FREQ).
+
+Distortion (hd2, hd3, dc_shift, sensitivity) is estimated at the file's
+distortion frequency, or at each of --frequency; its columns name their
+frequency. A measure whose sign only says which way a detector's output
+moves (sensitivity, dc_shift, voltage_sensitivity, current_sensitivity)
+is maximised or minimised on its magnitude; --signed uses the sign.
+nep and tss count the output noise over --video-bandwidth (1 Hz to 2 MHz
+unless given) with the carrier at the distortion frequency.
 
 Steps run in parallel on all cores; the output is the same whatever the
 worker count. Defaults come from the file's analysis.study.`,
 		Example: `  qpoint study testdata/demo/attenuator.yaml --vary Vctl.value --from 0.9V --to 5V --steps 42
   qpoint study attenuator.yaml --vary Vctl.value --from 0.9V --to 5V --steps 40 --target "s21=-6dB@900MHz"
   qpoint study detector.yaml --vary Rbias.value --from 10k --to 1M --steps 30 --log --maximize "sensitivity"
+  qpoint study detector.yaml --vary Rbias.value --from 47k --to 4.7M --steps 25 --log --minimize tss
+  qpoint study detector.yaml --frequency 915MHz,2.45GHz --level -30dBm
   qpoint study detector.yaml --vary Vcc.value --from 0V --to 3.3V --steps 12 --vary2 temperature --from2 -40C --to2 85C --steps2 6
   qpoint study mixer.yaml --csv mixer-study.csv --plots figures/`,
 		Args: exactFile,
 		RunE: func(cmd *cobra.Command, args []string) error { return runStudy(cmd, args[0], &fl) },
 	}
 	f := cmd.Flags()
+	addSetFlag(cmd, &fl.sets)
 	f.StringVar(&fl.vary, "vary", "", "what to vary: temperature, PART.value or MODEL.KEY")
 	f.StringVar(&fl.from, "from", "", "first value, with units (e.g. 0V, 10k, -40C)")
 	f.StringVar(&fl.to, "to", "", "last value")
@@ -84,6 +101,9 @@ worker count. Defaults come from the file's analysis.study.`,
 	f.BoolVar(&fl.log2, "log2", false, "space the second quantity geometrically")
 	f.StringVar(&fl.frequencies, "frequencies", "", "comma-separated frequencies for the response, e.g. 900MHz,2.45GHz")
 	f.StringVar(&fl.level, "level", "", "signal level for the distortion estimates, e.g. -30dBm (default: the file's)")
+	f.StringVar(&fl.distortionFrequency, "frequency", "", "distortion frequency, or several comma-separated (default: the file's analysis.distortion frequency)")
+	f.StringVar(&fl.videoBandwidth, "video-bandwidth", "", "detector video band for nep and tss: HIGH (from 1 Hz) or LOW:HIGH [2MHz]")
+	f.BoolVar(&fl.signed, "signed", false, "optimise a polarity measure (sensitivity, dc_shift) on its signed value, not its magnitude")
 	f.StringVar(&fl.input, "input", "", "input port for distortion (default: the file's, else the first)")
 	f.StringVar(&fl.output, "output", "", "output port or node for distortion (default: the file's, else the last port)")
 	f.StringVar(&fl.target, "target", "", `find where MEASURE meets VALUE: "s21=-10dB@900MHz"`)
@@ -107,172 +127,57 @@ type studySetup struct {
 	value    float64
 }
 
-func parseAxis(c *circuit.Circuit, flag, what, from, to string, steps int, log bool) (*study.Axis, error) {
-	v, err := c.ResolveVary(what)
-	if err != nil {
-		return nil, inputError(fmt.Errorf("flag --%s: %w", flag, err))
-	}
-	suffix := strings.TrimPrefix(flag, "vary")
-	read := func(name, s string) (float64, error) {
-		if s == "" {
-			return 0, inputError(fmt.Errorf("flag --%s%s is missing; give the %s of %s as a %s, e.g. %s", name, suffix, name, what, v.Quantity, exampleOf(v.Quantity)))
-		}
-		x, err := circuit.ParseBounded(s, v.Quantity)
-		if err != nil {
-			return 0, inputError(fmt.Errorf("flag --%s%s: %w", name, suffix, err))
-		}
-		if err := v.Check(x); err != nil {
-			return 0, inputError(fmt.Errorf("flag --%s%s: %w", name, suffix, err))
-		}
-		return x, nil
-	}
-	a, err := read("from", from)
+func resolveStudy(warn io.Writer, path string, fl *studyFlags) (*studySetup, error) {
+	c, err := loadCircuit(warn, path, fl.sets, "")
 	if err != nil {
 		return nil, err
 	}
-	b, err := read("to", to)
-	if err != nil {
-		return nil, err
-	}
-	if steps < 1 || steps > 100000 {
-		return nil, inputError(fmt.Errorf("flag --steps%s: %d; accepted: 1 to 100000", suffix, steps))
-	}
-	vals, err := study.Grid(a, b, steps, log)
-	if err != nil {
-		return nil, inputError(fmt.Errorf("flags --from%s/--to%s: %w", suffix, suffix, err))
-	}
-	return &study.Axis{Vary: v, Values: vals}, nil
-}
-
-func exampleOf(q circuit.Quantity) string {
-	switch q {
-	case circuit.Temperature:
-		return "-40C"
-	case circuit.Voltage:
-		return "3.3V"
-	case circuit.Resistance:
-		return "47k"
-	case circuit.Current:
-		return "1mA"
-	}
-	return "1.5"
-}
-
-func resolveStudy(path string, fl *studyFlags) (*studySetup, error) {
-	c, err := loadCircuit(path)
-	if err != nil {
+	if err := checkOutputsEarly(fl.plotsDir, fl.csvPath); err != nil {
 		return nil, err
 	}
 	return resolveStudyFor(c, fl)
 }
 
-// resolveStudyFor resolves the flags and the file's defaults for a loaded
-// circuit.
+// resolveStudyFor reads the flags into a study request and resolves it
+// on the plan.
 func resolveStudyFor(c *circuit.Circuit, fl *studyFlags) (*studySetup, error) {
-	path := c.File
+	if !(fl.tolerance > 0 && fl.tolerance < 1) {
+		return nil, inputError(fmt.Errorf("flag --tolerance: %g; accepted: a fraction of the range above 0 and below 1, e.g. 1e-6", fl.tolerance))
+	}
+	if fl.workers < 0 || fl.workers > maxWorkers {
+		return nil, inputError(fmt.Errorf("flag --workers: %d; accepted: 0 (all cores) to %d", fl.workers, maxWorkers))
+	}
+	req := plan.StudyRequest{
+		Axis:    plan.AxisRequest{Vary: fl.vary, From: fl.from, To: fl.to, Steps: fl.steps, Log: fl.log},
+		Input:   fl.input,
+		Output:  fl.output,
+		Signed:  fl.signed,
+		Workers: fl.workers,
+	}
+	if fl.vary2 != "" {
+		req.Second = &plan.AxisRequest{Vary: fl.vary2, From: fl.from2, To: fl.to2, Steps: fl.steps2, Log: fl.log2}
+	}
 	var err error
-	def := c.Analysis.Study
-	s := &studySetup{c: c}
-	// The file's defaults fill what the flags leave out, when the flags
-	// vary the same thing (or nothing).
-	if fl.vary == "" && def.Set {
-		fl.vary = def.Vary
-		if fl.steps == 0 {
-			fl.steps = def.Steps
-		}
-		fl.log = fl.log || def.Log
-		if fl.from == "" || fl.to == "" {
-			v, err := c.ResolveVary(def.Vary)
-			if err != nil {
-				return nil, inputError(fmt.Errorf("%s: analysis.study: %w", path, err))
-			}
-			unit := v.Quantity.Unit()
-			if v.Quantity == circuit.Temperature {
-				unit = "K"
-			}
-			if fl.from == "" {
-				fl.from = strconv.FormatFloat(def.From, 'g', -1, 64) + unit
-			}
-			if fl.to == "" {
-				fl.to = strconv.FormatFloat(def.To, 'g', -1, 64) + unit
-			}
-		}
-	}
-	if fl.vary == "" {
-		return nil, inputError(errors.New("flag --vary is missing and the file has no analysis.study; e.g. --vary Vcc.value --from 0V --to 3.3V --steps 34"))
-	}
-	if fl.steps == 0 {
-		fl.steps = 21
-	}
-	ax, err := parseAxis(c, "vary", fl.vary, fl.from, fl.to, fl.steps, fl.log)
-	if err != nil {
+	if req.FrequenciesHz, err = frequencyList("frequencies", fl.frequencies); err != nil {
 		return nil, err
 	}
-	s.settings.Axis = *ax
-
-	// Study frequencies: flags, else the distortion frequency, else the
-	// middle of the response range.
-	var freqs []float64
-	if fl.frequencies != "" {
-		for _, t := range strings.Split(fl.frequencies, ",") {
-			f, err := circuit.ParseBounded(strings.TrimSpace(t), circuit.Frequency)
-			if err == nil {
-				err = ac.CheckFrequency(f)
-			}
-			if err != nil {
-				return nil, inputError(fmt.Errorf("flag --frequencies: %w", err))
-			}
-			freqs = append(freqs, f)
-		}
-	} else if c.Analysis.Distortion.Set {
-		freqs = []float64{c.Analysis.Distortion.FrequencyHz}
-	} else if c.Analysis.Response.Set {
-		freqs = []float64{math.Sqrt(c.Analysis.Response.FromHz * c.Analysis.Response.ToHz)}
-	} else {
-		freqs = []float64{1e9}
+	if req.DistortionHz, err = frequencyList("frequency", fl.distortionFrequency); err != nil {
+		return nil, err
 	}
-
-	if fl.vary2 != "" {
-		if fl.steps2 == 0 {
-			return nil, inputError(errors.New("flag --steps2 is missing: a second quantity needs its own --from2, --to2 and --steps2"))
+	if fl.level != "" {
+		lv, err := circuit.ParseLevel(fl.level)
+		if err != nil {
+			return nil, inputError(fmt.Errorf("flag --level: %w", err))
 		}
-		if fl.vary2 == "frequency" {
-			a, err := circuit.ParseBounded(fl.from2, circuit.Frequency)
-			if err != nil {
-				return nil, inputError(fmt.Errorf("flag --from2: %w", err))
-			}
-			b, err := circuit.ParseBounded(fl.to2, circuit.Frequency)
-			if err != nil {
-				return nil, inputError(fmt.Errorf("flag --to2: %w", err))
-			}
-			for _, f := range []float64{a, b} {
-				if err := ac.CheckFrequency(f); err != nil {
-					return nil, inputError(fmt.Errorf("flags --from2/--to2: %w", err))
-				}
-			}
-			vals, err := study.Grid(a, b, fl.steps2, fl.log2)
-			if err != nil {
-				return nil, inputError(fmt.Errorf("flags --from2/--to2: %w", err))
-			}
-			s.settings.Second = &study.Axis{Values: vals}
-			s.settings.SecondIsFrequency = true
-			freqs = nil
-		} else {
-			ax2, err := parseAxis(c, "vary2", fl.vary2, fl.from2, fl.to2, fl.steps2, fl.log2)
-			if err != nil {
-				return nil, err
-			}
-			if ax2.Vary.Text == ax.Vary.Text {
-				return nil, inputError(fmt.Errorf("flags --vary and --vary2 both vary %s; choose two different quantities", ax.Vary.Text))
-			}
-			s.settings.Second = ax2
-		}
-		if len(s.settings.Axis.Values)*len(s.settings.Second.Values) > 1_000_000 {
-			return nil, inputError(errors.New("flags --steps/--steps2: more than a million grid points"))
-		}
+		req.Level = &lv
 	}
-
-	// The goal, if any.
+	if fl.videoBandwidth != "" {
+		lo, hi, err := parseBand("video-bandwidth", fl.videoBandwidth, plan.DefaultVideoFromHz)
+		if err != nil {
+			return nil, err
+		}
+		req.VideoBandHz = [2]float64{lo, hi}
+	}
 	goals := 0
 	for _, g := range []string{fl.target, fl.maximize, fl.minimize} {
 		if g != "" {
@@ -282,80 +187,48 @@ func resolveStudyFor(c *circuit.Circuit, fl *studyFlags) (*studySetup, error) {
 	if goals > 1 {
 		return nil, inputError(errors.New("flags --target, --maximize and --minimize: give one at a time"))
 	}
-	if goals == 1 && s.settings.Second != nil {
-		return nil, inputError(errors.New("flags --target/--maximize/--minimize need a study of one quantity; drop --vary2"))
-	}
-	measureText := ""
 	switch {
 	case fl.target != "":
-		m, v, ok := strings.Cut(fl.target, "=")
-		if !ok {
-			return nil, inputError(fmt.Errorf("flag --target: `%s` is not MEASURE=VALUE; e.g. s21=-10dB@900MHz", fl.target))
-		}
-		// "s21=-10dB@900MHz": the frequency may follow the value.
-		if at := strings.IndexByte(v, '@'); at >= 0 {
-			m, v = m+v[at:], v[:at]
-		}
-		measureText, s.goal = m, "target"
-		s.measure, err = study.ParseMeasure(strings.TrimSpace(m))
-		if err != nil {
-			return nil, inputError(fmt.Errorf("flag --target: %w", err))
-		}
-		if s.value, err = s.measure.ParseValue(v); err != nil {
-			return nil, inputError(fmt.Errorf("flag --target: %w", err))
+		req.Goal = plan.Target
+		if req.MeasureText, req.TargetText, err = plan.ParseTarget(fl.target); err != nil {
+			return nil, planError(err)
 		}
 	case fl.maximize != "":
-		measureText, s.goal = fl.maximize, "maximize"
+		req.Goal, req.MeasureText = plan.Maximize, fl.maximize
 	case fl.minimize != "":
-		measureText, s.goal = fl.minimize, "minimize"
+		req.Goal, req.MeasureText = plan.Minimize, fl.minimize
 	}
-	if s.goal == "maximize" || s.goal == "minimize" {
-		if s.measure, err = study.ParseMeasure(strings.TrimSpace(measureText)); err != nil {
-			return nil, inputError(fmt.Errorf("flag --%s: %w", s.goal, err))
-		}
+	st, err := plan.ResolveStudy(c, req)
+	if err != nil {
+		return nil, planError(err)
 	}
-	if s.measure != nil && s.measure.FrequencyHz != 0 {
-		found := false
-		for _, f := range freqs {
-			found = found || f == s.measure.FrequencyHz
-		}
-		if !found {
-			freqs = append(freqs, s.measure.FrequencyHz)
-		}
-	}
-	s.settings.FrequenciesHz = freqs
-
-	// Distortion drive: when a level is given or the file has one.
-	def2 := c.Analysis.Distortion
-	levelText := fl.level
-	if levelText != "" || def2.Set {
-		d, err := distortionDrive(c, &distortionFlags{input: fl.input, output: fl.output, level: levelText,
-			frequency: strconv.FormatFloat(firstOr(freqs, def2.FrequencyHz), 'g', -1, 64) + "Hz"})
-		if err != nil {
-			return nil, err
-		}
-		d.drive.SecondToneHz = 0
-		s.settings.Drive = d.drive
-	}
-	if s.measure != nil && s.measure.NeedsDrive() && s.settings.Drive.EMF == 0 {
-		return nil, inputError(fmt.Errorf("measure %s needs a signal level: give --level (e.g. -30dBm)", s.measure.Text))
-	}
-	if fl.workers < 0 {
-		return nil, inputError(fmt.Errorf("flag --workers: %d; accepted: 0 (all cores) or more", fl.workers))
-	}
-	s.settings.Workers = fl.workers
+	s := &studySetup{c: c, settings: st.Settings, measure: st.Measure, value: st.Value}
+	s.goal = map[plan.GoalKind]string{plan.Target: "target", plan.Maximize: "maximize", plan.Minimize: "minimize"}[st.Goal]
 	return s, nil
 }
 
-func firstOr(f []float64, d float64) float64 {
-	if len(f) > 0 {
-		return f[0]
+// frequencyList reads a comma-separated list of frequencies given to flag;
+// nil for none.
+func frequencyList(flag, text string) ([]float64, error) {
+	if text == "" {
+		return nil, nil
 	}
-	return d
+	var out []float64
+	for _, t := range strings.Split(text, ",") {
+		f, err := circuit.ParseBounded(strings.TrimSpace(t), circuit.Frequency)
+		if err == nil {
+			err = ac.CheckFrequency(f)
+		}
+		if err != nil {
+			return nil, inputError(fmt.Errorf("flag --%s: %w", flag, err))
+		}
+		out = append(out, f)
+	}
+	return out, nil
 }
 
 func runStudy(cmd *cobra.Command, path string, fl *studyFlags) error {
-	s, err := resolveStudy(path, fl)
+	s, err := resolveStudy(cmd.ErrOrStderr(), path, fl)
 	if err != nil {
 		return err
 	}
@@ -394,10 +267,10 @@ func runStudy(cmd *cobra.Command, path string, fl *studyFlags) error {
 	if err != nil {
 		return analysisError(err)
 	}
-	cols := studyColumns(r)
+	cols := report.StudyColumns(r)
 	var figs []*plots.Figure
 	if fl.plotsDir != "" {
-		if figs, err = studyPlots(r, fl.show); err != nil {
+		if figs, err = studyPlots(r, fl.show, solutionMarks(s, sol)...); err != nil {
 			return err
 		}
 	}
@@ -431,89 +304,11 @@ func runStudy(cmd *cobra.Command, path string, fl *studyFlags) error {
 	return nil
 }
 
-// column is one column of the study's table and CSV.
-type column struct {
-	header string // CSV header with unit
-	title  string // table heading
-	unit   string // SI unit for the table ("" for dB figures)
-	get    func(st *study.Step) float64
-}
-
-func axisHeader(a *study.Axis, frequency bool) (string, string) {
-	if frequency {
-		return "frequency", "Hz"
-	}
-	return a.Vary.Text, a.Vary.Quantity.Unit()
-}
-
-func studyColumns(r *study.Result) []column {
-	var cols []column
-	name, unit := axisHeader(&r.Settings.Axis, false)
-	cols = append(cols, column{name + "_" + unitOrNumber(unit), name, unit, func(st *study.Step) float64 { return st.Values[0] }})
-	if r.Settings.Second != nil {
-		n2, u2 := axisHeader(r.Settings.Second, r.Settings.SecondIsFrequency)
-		cols = append(cols, column{n2 + "_" + unitOrNumber(u2), n2, u2, func(st *study.Step) float64 { return st.Values[1] }})
-	}
-	first := r.FirstSolved()
-	if first == nil {
-		return cols
-	}
-	for k, d := range first.Diodes {
-		k := k
-		cols = append(cols,
-			column{d.Name + ".current_A", d.Name + " current", "A", func(st *study.Step) float64 { return st.Diodes[k].Current }},
-			column{d.Name + ".dynamic_resistance_ohm", d.Name + " r_d", "Ω", func(st *study.Step) float64 { return st.Diodes[k].DynamicResistance }},
-			column{d.Name + ".junction_capacitance_F", d.Name + " C_j", "F", func(st *study.Step) float64 { return st.Diodes[k].JunctionCapacitance }},
-			column{d.Name + ".video_resistance_ohm", d.Name + " R_video", "Ω", func(st *study.Step) float64 { return st.Diodes[k].VideoResistance }})
-	}
-	nf := len(first.Responses)
-	for fi := 0; fi < nf; fi++ {
-		fi := fi
-		tag := ""
-		if !r.Settings.SecondIsFrequency {
-			tag = "@" + si.Format(first.Responses[fi].FrequencyHz, "Hz", 6)
-		}
-		ftag := strings.ReplaceAll(tag, " ", "")
-		if len(r.Ports) > 1 {
-			cols = append(cols, column{"s21_dB" + ftag, "S21 dB" + tag, "", func(st *study.Step) float64 { return 20 * math.Log10(cmplx.Abs(st.Responses[fi].S[1][0])) }})
-		}
-		cols = append(cols,
-			column{"s11_dB" + ftag, "S11 dB" + tag, "", func(st *study.Step) float64 { return 20 * math.Log10(cmplx.Abs(st.Responses[fi].S[0][0])) }},
-			column{"zin_re_ohm" + ftag, "Re Zin" + tag, "Ω", func(st *study.Step) float64 { return real(st.Responses[fi].InputImpedance[0]) }},
-			column{"zin_im_ohm" + ftag, "Im Zin" + tag, "Ω", func(st *study.Step) float64 { return imag(st.Responses[fi].InputImpedance[0]) }})
-		for pk, p := range r.Probes {
-			pk := pk
-			cols = append(cols, column{"probe." + p + "_dB" + ftag, p + " dB" + tag, "", func(st *study.Step) float64 { return 20 * math.Log10(cmplx.Abs(st.Responses[fi].Probes[pk])) }})
-		}
-		for k, d := range first.Diodes {
-			k := k
-			cols = append(cols,
-				column{d.Name + ".current_sensitivity_A/W" + ftag, d.Name + " β A/W" + tag, "", func(st *study.Step) float64 { return st.Diodes[k].CurrentSensitivity[fi] }},
-				column{d.Name + ".voltage_sensitivity_V/W" + ftag, d.Name + " γ V/W" + tag, "", func(st *study.Step) float64 { return st.Diodes[k].VoltageSensitivity[fi] }})
-		}
-	}
-	if r.Settings.Drive.EMF > 0 {
-		cols = append(cols,
-			column{"hd2_dBc", "HD2 dBc", "", func(st *study.Step) float64 { return st.HD2dBc }},
-			column{"hd3_dBc", "HD3 dBc", "", func(st *study.Step) float64 { return st.HD3dBc }},
-			column{"dc_shift_V", "DC shift", "V", func(st *study.Step) float64 { return st.DCShift }},
-			column{"sensitivity_V/W", "sensitivity V/W", "", func(st *study.Step) float64 { return st.DetectorSensitivity }})
-	}
-	return cols
-}
-
-func unitOrNumber(u string) string {
-	if u == "" {
-		return "1"
-	}
-	return u
-}
-
-func writeStudyCSV(w io.Writer, r *study.Result, cols []column) error {
+func writeStudyCSV(w io.Writer, r *study.Result, cols []report.StudyColumn) error {
 	cw := csv.NewWriter(w)
 	var header []string
 	for _, c := range cols {
-		header = append(header, c.header)
+		header = append(header, c.Key)
 	}
 	header = append(header, "newton_iterations", "error")
 	if err := cw.Write(header); err != nil {
@@ -523,11 +318,11 @@ func writeStudyCSV(w io.Writer, r *study.Result, cols []column) error {
 		st := &r.Steps[i]
 		var row []string
 		for k, c := range cols {
-			if st.Err != nil && k >= axisCount(r) {
+			if st.Err != nil && k >= report.AxisCount(r) {
 				row = append(row, "")
 				continue
 			}
-			row = append(row, strconv.FormatFloat(c.get(st), 'g', -1, 64))
+			row = append(row, strconv.FormatFloat(c.Get(st), 'g', -1, 64))
 		}
 		e := ""
 		if st.Err != nil {
@@ -542,54 +337,28 @@ func writeStudyCSV(w io.Writer, r *study.Result, cols []column) error {
 	return cw.Error()
 }
 
-func axisCount(r *study.Result) int {
-	if r.Settings.Second != nil {
-		return 2
-	}
-	return 1
-}
-
-func formatCell(v float64, unit string) string {
-	if unit == "" {
-		if math.IsNaN(v) || math.IsInf(v, 0) {
-			return "—"
-		}
-		if math.Abs(v) >= 1e4 || (math.Abs(v) < 1e-2 && v != 0) {
-			return si.Format(v, "", 4)
-		}
-		return strconv.FormatFloat(v, 'f', 2, 64)
-	}
-	if unit == "K" {
-		return fmt.Sprintf("%.2f °C", v-273.15)
-	}
-	u := unit
-	if u == "ohm" {
-		u = "Ω"
-	}
-	return si.Format(v, u, 4)
-}
-
-func writeStudyTable(w io.Writer, r *study.Result, cols []column, elapsed time.Duration, failed int) {
+func writeStudyTable(w io.Writer, r *study.Result, cols []report.StudyColumn, elapsed time.Duration, failed int) {
 	c := r.Circuit
 	fmt.Fprintf(w, "%s\n", c.Name)
 	fmt.Fprintf(w, "  file         %s\n", c.File)
+	writeOverrides(w, c)
 	what := r.Settings.Axis.Vary.Text
 	if r.Settings.Second != nil {
-		n2, _ := axisHeader(r.Settings.Second, r.Settings.SecondIsFrequency)
+		n2, _ := report.AxisHeader(r.Settings.Second, r.Settings.SecondIsFrequency)
 		what += " × " + n2
 	}
 	fmt.Fprintf(w, "  study        %s, %d steps in %s, %d Newton iterations\n", what, len(r.Steps), elapsed.Round(time.Millisecond), r.Newton)
 	if failed > 0 {
 		fmt.Fprintf(w, "  ! %d steps could not be solved; their rows are blank\n", failed)
 	}
-	studyTable(r, cols).write(w)
+	report.StudyTable(r, cols).WriteText(w)
 	warned := map[string]bool{}
 	for i := range r.Steps {
 		for _, x := range r.Steps[i].Warnings {
 			key := x.Part + x.Kind.String()
 			if !warned[key] {
 				warned[key] = true
-				fmt.Fprintf(w, "  ! %s at %s = %s: %s\n", x.Part, r.Settings.Axis.Vary.Text, formatCell(r.Steps[i].Values[0], r.Settings.Axis.Vary.Quantity.Unit()), x.Message)
+				fmt.Fprintf(w, "  ! %s at %s = %s: %s\n", x.Part, r.Settings.Axis.Vary.Text, report.FormatCell(r.Steps[i].Values[0], r.Settings.Axis.Vary.Quantity.Unit()), x.Message)
 			}
 		}
 	}
@@ -603,12 +372,16 @@ func writeSolution(w io.Writer, s *studySetup, r *study.Result, sol *study.Solut
 	case "target":
 		fmt.Fprintf(w, "Target %s = %g %s\n", s.measure.Text, s.value, s.measure.Unit)
 		fmt.Fprintf(w, "  met at %s = %s (bracket %s to %s, tolerance %s, %d refinements); %s there is %.6g %s\n",
-			what, formatCell(sol.Value, unit), formatCell(sol.Bracket[0], unit), formatCell(sol.Bracket[1], unit),
-			formatDifference(sol.Tolerance, unit), sol.Iterations, s.measure.Text, sol.Measure, s.measure.Unit)
+			what, report.FormatCell(sol.Value, unit), report.FormatCell(sol.Bracket[0], unit), report.FormatCell(sol.Bracket[1], unit),
+			report.FormatDifference(sol.Tolerance, unit), sol.Iterations, s.measure.Text, sol.Measure, s.measure.Unit)
 	default:
-		fmt.Fprintf(w, "%s of %s\n", map[string]string{"maximize": "Largest", "minimize": "Smallest"}[s.goal], s.measure.Text)
+		of := s.measure.Text
+		if sol.OnMagnitude {
+			of = "|" + of + "| (its sign is the polarity; --signed uses the signed value)"
+		}
+		fmt.Fprintf(w, "%s of %s\n", map[string]string{"maximize": "Largest", "minimize": "Smallest"}[s.goal], of)
 		fmt.Fprintf(w, "  %.6g %s at %s = %s (searched %s to %s, tolerance %s)\n", sol.Measure, s.measure.Unit, what,
-			formatCell(sol.Value, unit), formatCell(sol.Bracket[0], unit), formatCell(sol.Bracket[1], unit), formatDifference(sol.Tolerance, unit))
+			report.FormatCell(sol.Value, unit), report.FormatCell(sol.Bracket[0], unit), report.FormatCell(sol.Bracket[1], unit), report.FormatDifference(sol.Tolerance, unit))
 		if sol.AtEdge {
 			fmt.Fprintf(w, "  ! the best value lies at the end of the range; widen it to see whether it improves further\n")
 		}
@@ -616,32 +389,29 @@ func writeSolution(w io.Writer, s *studySetup, r *study.Result, sol *study.Solut
 	fmt.Fprintln(w)
 }
 
-// formatDifference prints a difference of the varied quantity: a
-// temperature difference stays in kelvin rather than becoming a Celsius
-// reading.
-func formatDifference(v float64, unit string) string {
-	if unit == "K" {
-		return si.Format(v, "K", 4)
+// solutionMarks marks a target's or optimum's solution on the study
+// figure.
+func solutionMarks(s *studySetup, sol *study.Solution) []plots.StudyMark {
+	if sol == nil || s.measure == nil {
+		return nil
 	}
-	return formatCell(v, unit)
+	mk := plots.StudyMark{Measure: s.measure, X: sol.Value, Y: sol.Measure, Target: math.NaN()}
+	val := report.FormatMeasure(sol.Measure, s.measure.Unit)
+	switch s.goal {
+	case "target":
+		mk.Target = s.value
+		mk.Label = "target met\n" + val
+	case "maximize":
+		mk.Label = "largest\n" + val
+	default:
+		mk.Label = "smallest\n" + val
+	}
+	if sol.OnMagnitude {
+		mk.Label = strings.Replace(mk.Label, "\n", " magnitude\n", 1)
+	}
+	return []plots.StudyMark{mk}
 }
 
-func studyTable(r *study.Result, cols []column) *table {
-	t := &table{title: "Study"}
-	for _, col := range cols {
-		t.header = append(t.header, col.title)
-	}
-	for i := range r.Steps {
-		st := &r.Steps[i]
-		var cells []string
-		for k, col := range cols {
-			if st.Err != nil && k >= axisCount(r) {
-				cells = append(cells, "failed")
-				continue
-			}
-			cells = append(cells, formatCell(col.get(st), col.unit))
-		}
-		t.add(cells...)
-	}
-	return t
-}
+// maxWorkers bounds --workers: far more than any machine's cores, and few
+// enough that their workspaces fit in memory.
+const maxWorkers = 1024

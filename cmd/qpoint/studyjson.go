@@ -2,6 +2,7 @@ package main
 
 import (
 	"qpoint/ac/study"
+	"qpoint/plots/report"
 )
 
 type studyDiodeJSON struct {
@@ -24,16 +25,29 @@ type studyResponseJSON struct {
 }
 
 type studyStepJSON struct {
-	Values      []number            `json:"values"`
-	Iterations  int                 `json:"iterations"`
-	Diodes      []studyDiodeJSON    `json:"diodes"`
-	Responses   []studyResponseJSON `json:"responses"`
-	HD2dBc      *number             `json:"hd2_dbc,omitempty"`
-	HD3dBc      *number             `json:"hd3_dbc,omitempty"`
-	DCShift     *number             `json:"dc_shift,omitempty"`
-	Sensitivity *number             `json:"sensitivity,omitempty"`
-	Warnings    []warningJSON       `json:"warnings"`
-	Error       string              `json:"error,omitempty"`
+	Values      []number              `json:"values"`
+	Iterations  int                   `json:"iterations"`
+	Diodes      []studyDiodeJSON      `json:"diodes"`
+	Responses   []studyResponseJSON   `json:"responses"`
+	Distortion  []studyDistortionJSON `json:"distortion,omitempty"`
+	NoiseFigure []number              `json:"noise_figure_db,omitempty"`
+	NEP         *number               `json:"nep,omitempty"`
+	TSSdBm      *number               `json:"tangential_sensitivity_dbm,omitempty"`
+	HD2dBc      *number               `json:"hd2_dbc,omitempty"`
+	HD3dBc      *number               `json:"hd3_dbc,omitempty"`
+	DCShift     *number               `json:"dc_shift,omitempty"`
+	Sensitivity *number               `json:"sensitivity,omitempty"`
+	Warnings    []warningJSON         `json:"warnings"`
+	Error       string                `json:"error,omitempty"`
+}
+
+type studyDistortionJSON struct {
+	Frequency   number `json:"frequency"`
+	Fundamental number `json:"fundamental"`
+	HD2dBc      number `json:"hd2_dbc"`
+	HD3dBc      number `json:"hd3_dbc"`
+	DCShift     number `json:"dc_shift"`
+	Sensitivity number `json:"sensitivity"`
 }
 
 type solutionJSON struct {
@@ -46,6 +60,9 @@ type solutionJSON struct {
 	Tolerance  number    `json:"tolerance"`
 	Iterations int       `json:"iterations"`
 	AtEdge     bool      `json:"at_edge"`
+	// OnMagnitude: the optimisation compared |measure|, its sign being a
+	// polarity; achieved keeps the sign.
+	OnMagnitude bool `json:"on_magnitude,omitempty"`
 }
 
 type studyJSON struct {
@@ -57,7 +74,7 @@ type studyJSON struct {
 	Columns  []string        `json:"columns"`
 }
 
-func studyDocument(r *study.Result, cols []column, s *studySetup, sol *study.Solution) *studyJSON {
+func studyDocument(r *study.Result, cols []report.StudyColumn, s *studySetup, sol *study.Solution) *studyJSON {
 	d := &studyJSON{Vary: []string{r.Settings.Axis.Vary.Text}, Shape: r.Shape, Newton: r.Newton}
 	if r.Settings.Second != nil {
 		if r.Settings.SecondIsFrequency {
@@ -67,7 +84,7 @@ func studyDocument(r *study.Result, cols []column, s *studySetup, sol *study.Sol
 		}
 	}
 	for _, c := range cols {
-		d.Columns = append(d.Columns, c.header)
+		d.Columns = append(d.Columns, c.Key)
 	}
 	for i := range r.Steps {
 		st := &r.Steps[i]
@@ -96,8 +113,21 @@ func studyDocument(r *study.Result, cols []column, s *studySetup, sol *study.Sol
 			rj.S, rj.InputImpedance, rj.Probes = networkJSON(resp.S, resp.InputImpedance, r.Probes, resp.Probes)
 			j.Responses = append(j.Responses, rj)
 		}
-		if r.Settings.Drive.EMF > 0 {
-			j.HD2dBc, j.HD3dBc, j.DCShift, j.Sensitivity = ptr(st.HD2dBc), ptr(st.HD3dBc), ptr(st.DCShift), ptr(st.DetectorSensitivity)
+		for k, x := range st.Distortion {
+			j.Distortion = append(j.Distortion, studyDistortionJSON{number(x.FrequencyHz), number(x.Fundamental),
+				number(x.HD2dBc), number(x.HD3dBc), number(x.DCShift), number(x.Sensitivity)})
+			if k == 0 {
+				// The first distortion frequency's figures also at the
+				// step's top level, where earlier versions put them.
+				j.HD2dBc, j.HD3dBc, j.DCShift, j.Sensitivity = ptr(x.HD2dBc), ptr(x.HD3dBc), ptr(x.DCShift), ptr(x.Sensitivity)
+			}
+		}
+		for _, nf := range st.NoiseFigureDB {
+			j.NoiseFigure = append(j.NoiseFigure, number(nf))
+		}
+		if r.Settings.Detector != nil {
+			d := report.Detection(st)
+			j.NEP, j.TSSdBm = ptr(d.NEP), ptr(d.TangentialDBm)
 		}
 		for _, w := range st.Warnings {
 			j.Warnings = append(j.Warnings, warningJSON{w.Part, w.Kind.String(), w.Message})
@@ -107,7 +137,7 @@ func studyDocument(r *study.Result, cols []column, s *studySetup, sol *study.Sol
 	if sol != nil {
 		sj := &solutionJSON{Goal: s.goal, Measure: s.measure.Text, Value: number(sol.Value), Achieved: number(sol.Measure),
 			Bracket: [2]number{number(sol.Bracket[0]), number(sol.Bracket[1])}, Tolerance: number(sol.Tolerance),
-			Iterations: sol.Iterations, AtEdge: sol.AtEdge}
+			Iterations: sol.Iterations, AtEdge: sol.AtEdge, OnMagnitude: sol.OnMagnitude}
 		if s.goal == "target" {
 			sj.Target = ptr(s.value)
 		}

@@ -46,8 +46,11 @@ type Block struct {
 	Note   string
 }
 
-// Table is a formatted table. Numeric columns are right-aligned: Align[i]
-// true means column i is numeric.
+// Table is a formatted table: a caption, a header row and rows of cells,
+// for the HTML page (Write) and the terminal (WriteText) alike. Numeric
+// columns are right-aligned: Align[i] true means column i is numeric;
+// without Align, a column other than the first is numeric when most of
+// its cells read as numbers.
 type Table struct {
 	Caption string
 	Header  []string
@@ -85,10 +88,8 @@ func Write(w io.Writer, d *Document) error {
 }
 
 var page = template.Must(template.New("page").Funcs(template.FuncMap{
-	"svg": func(f *Figure) template.HTML { return inlineSVG(f.SVG) },
-	"right": func(t *Table, i int) bool {
-		return i < len(t.Align) && t.Align[i]
-	},
+	"svg":   func(f *Figure) template.HTML { return inlineSVG(f.SVG) },
+	"right": func(t *Table, i int) bool { return t.numeric(i) },
 }).Parse(pageHTML))
 
 // The look is our own: a quiet slate and teal scheme, system fonts, and a

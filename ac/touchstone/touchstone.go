@@ -1,4 +1,23 @@
-package ac
+// Package touchstone writes and reads S-parameters in the Touchstone
+// format: Touchstone File Format Specification, version 2.0, IBIS Open
+// Forum, 2009. Version 1.1 is the subset of it that every tool reads:
+// comments start with '!', the option line is
+//
+//	# <HZ|KHZ|MHZ|GHZ> S <RI|MA|DB> R <ohms>
+//
+// and each frequency's data is the frequency followed by the matrix
+// elements, two numbers each. One- and two-ports put a whole frequency on
+// one line, a two-port in the column order N11 N21 N12 N22; three ports
+// and more write the matrix row by row, N11 N12 ... N1N, each row starting
+// a new line and at most four pairs on a line. Version 2.0 adds bracketed
+// keywords ([Version], [Number of Ports], [Two-Port Data Order],
+// [Number of Frequencies], [Reference], [Network Data], [End]) and with
+// them one reference impedance per port.
+//
+// The package is a leaf: it imports nothing of the project, so that any
+// layer may read a file (a circuit's measured block as well as a sweep's
+// result).
+package touchstone
 
 import (
 	"bufio"
@@ -11,21 +30,18 @@ import (
 	"strings"
 )
 
-// This file writes and reads S-parameters in the Touchstone format:
-// Touchstone File Format Specification, version 2.0, IBIS Open Forum, 2009.
-// Version 1.1 is the subset of it that every tool reads: comments start
-// with '!', the option line is
-//
-//	# <HZ|KHZ|MHZ|GHZ> S <RI|MA|DB> R <ohms>
-//
-// and each frequency's data is the frequency followed by the matrix
-// elements, two numbers each. One- and two-ports put a whole frequency on
-// one line, a two-port in the column order N11 N21 N12 N22; three ports
-// and more write the matrix row by row, N11 N12 ... N1N, each row starting
-// a new line and at most four pairs on a line. Version 2.0 adds bracketed
-// keywords ([Version], [Number of Ports], [Two-Port Data Order],
-// [Number of Frequencies], [Reference], [Network Data], [End]) and with
-// them one reference impedance per port.
+// Port is a network port: its name and real reference impedance in ohms.
+type Port struct {
+	Name      string
+	Impedance float64
+}
+
+// Point is the S-matrix at one frequency: S[i][j] is S_(i+1)(j+1), each
+// normalised to the ports' reference impedances.
+type Point struct {
+	FrequencyHz float64
+	S           [][]complex128
+}
 
 // Format is the way a Touchstone file writes each complex matrix element
 // (Touchstone 2.0, option line). The zero value is MA, the default of the
@@ -82,14 +98,14 @@ func (f *Format) Type() string { return "ri|ma|db" }
 
 func (f Format) valid() bool { return f == FormatMA || f == FormatRI || f == FormatDB }
 
-// TouchstoneExt returns the file extension the specification gives an
+// Ext returns the file extension the specification gives an
 // nPorts-port file: ".s1p", ".s2p", and so on.
-func TouchstoneExt(nPorts int) string { return ".s" + strconv.Itoa(nPorts) + "p" }
+func Ext(nPorts int) string { return ".s" + strconv.Itoa(nPorts) + "p" }
 
-// TouchstonePorts returns the port count a file name's extension declares,
+// PortCount returns the port count a file name's extension declares,
 // 2 for "amp.s2p" (in any case). A version 1.1 file says its port count
 // only this way.
-func TouchstonePorts(name string) (int, error) {
+func PortCount(name string) (int, error) {
 	i := strings.LastIndexByte(name, '.')
 	ext := strings.ToLower(name[i+1:])
 	if i < 0 || len(ext) < 3 || ext[0] != 's' || ext[len(ext)-1] != 'p' {
@@ -119,7 +135,7 @@ const maxLine = 16 << 20
 // back.
 const dbOfZero = -10000
 
-// WriteTouchstone writes points as a Touchstone file of len(ports) ports in
+// Write writes points as a Touchstone file of len(ports) ports in
 // format f, frequencies in Hz. Each line of comment becomes a '!' comment
 // in the header (the circuit name, the bias point); the header names
 // qpoint and the ports but no date, so that the same sweep always gives
@@ -140,11 +156,11 @@ const dbOfZero = -10000
 // orders them, and a version 1.1 reader takes a falling frequency in a
 // two-port file as the start of noise data); S must be len(ports) square
 // and finite.
-func WriteTouchstone(w io.Writer, ports []PortInfo, points []Point, f Format, comment []string) error {
+func Write(w io.Writer, ports []Port, points []Point, f Format, comment []string) error {
 	if len(points) == 0 {
 		return errors.New("touchstone: no points to write")
 	}
-	tw, err := NewTouchstoneWriter(w, ports, f, comment, len(points))
+	tw, err := NewWriter(w, ports, f, comment, len(points))
 	if err != nil {
 		return err
 	}
@@ -156,9 +172,9 @@ func WriteTouchstone(w io.Writer, ports []PortInfo, points []Point, f Format, co
 	return tw.Close()
 }
 
-// TouchstoneWriter writes a Touchstone file one point at a time, for sweeps
-// too long to hold in memory. It writes the same bytes as WriteTouchstone.
-type TouchstoneWriter struct {
+// Writer writes a Touchstone file one point at a time, for sweeps
+// too long to hold in memory. It writes the same bytes as Write.
+type Writer struct {
 	w       *bufio.Writer
 	n       int // ports
 	format  Format
@@ -171,14 +187,14 @@ type TouchstoneWriter struct {
 	buf     []byte
 }
 
-// NewTouchstoneWriter writes the header of a Touchstone file to w and
-// returns a writer for its points; see WriteTouchstone for the layout.
+// NewWriter writes the header of a Touchstone file to w and
+// returns a writer for its points; see Write for the layout.
 // nPoints is the number of points that will be written, or -1 when it is
 // not known. Version 2.0 states [Number of Frequencies] before the data,
 // so with per-port reference impedances nPoints must be given (a sweep
 // knows it: len(freqs)); whenever it is given, Close checks it. Close
 // must be called to complete the file; it does not close w.
-func NewTouchstoneWriter(w io.Writer, ports []PortInfo, f Format, comment []string, nPoints int) (*TouchstoneWriter, error) {
+func NewWriter(w io.Writer, ports []Port, f Format, comment []string, nPoints int) (*Writer, error) {
 	if len(ports) == 0 {
 		return nil, errors.New("touchstone: no ports")
 	}
@@ -193,7 +209,7 @@ func NewTouchstoneWriter(w io.Writer, ports []PortInfo, f Format, comment []stri
 			return nil, fmt.Errorf("touchstone: port %d (%s): reference impedance %g ohm: must be a positive real number", i+1, p.Name, p.Impedance)
 		}
 	}
-	tw := &TouchstoneWriter{w: bufio.NewWriter(w), n: len(ports), format: f, want: nPoints, lastHz: math.Inf(-1)}
+	tw := &Writer{w: bufio.NewWriter(w), n: len(ports), format: f, want: nPoints, lastHz: math.Inf(-1)}
 	for _, p := range ports[1:] {
 		if p.Impedance != ports[0].Impedance {
 			tw.v2 = true
@@ -287,7 +303,7 @@ func appendNum(b []byte, v float64) []byte { return strconv.AppendFloat(b, v, 'g
 // frequency out of order, a value that is not finite) is refused with an
 // error and leaves the file as it was; an error from the underlying writer
 // is returned by every later call.
-func (tw *TouchstoneWriter) Write(p Point) error {
+func (tw *Writer) Write(p Point) error {
 	if tw.err != nil {
 		return tw.err
 	}
@@ -368,7 +384,7 @@ func (tw *TouchstoneWriter) Write(p Point) error {
 }
 
 // pair returns the two numbers the format writes for s.
-func (tw *TouchstoneWriter) pair(s complex128) (float64, float64, error) {
+func (tw *Writer) pair(s complex128) (float64, float64, error) {
 	if cmplx.IsNaN(s) || cmplx.IsInf(s) {
 		return 0, 0, errors.New("not a finite number")
 	}
@@ -401,7 +417,7 @@ func (tw *TouchstoneWriter) pair(s complex128) (float64, float64, error) {
 // Close writes what the file still needs ([End] in version 2.0), checks
 // that as many points were written as announced, and flushes. It does not
 // close the underlying writer.
-func (tw *TouchstoneWriter) Close() error {
+func (tw *Writer) Close() error {
 	if tw.err != nil {
 		return tw.err
 	}
@@ -428,7 +444,7 @@ func (tw *TouchstoneWriter) Close() error {
 	return nil
 }
 
-// ReadTouchstone reads the S-parameters of a Touchstone file of version 1.1
+// Read reads the S-parameters of a Touchstone file of version 1.1
 // or 2.0 (Touchstone File Format Specification 2.0, IBIS Open Forum,
 // 2009): any frequency unit, RI, MA or DB numbers, comments anywhere, a
 // frequency's data over several lines; in version 2.0 also [Reference],
@@ -438,14 +454,13 @@ func (tw *TouchstoneWriter) Close() error {
 // and mixed-mode data are refused.
 //
 // nPorts is the port count, which a version 1.1 file states only in its
-// extension (TouchstonePorts); for version 2.0 it must agree with
+// extension (PortCount); for version 2.0 it must agree with
 // [Number of Ports], or be 0 to take it from there.
 //
 // Ports are named "1", "2", ... (the format has no port names) with the
-// file's reference impedances. Points carry the frequency in Hz, S and the
-// input impedances Z0i (1 + Sii)/(1 - Sii) (infinite where Sii = 1), as
-// Sweep gives them; GroupDelay is NaN, not being in the file. An error names the line and what was expected there.
-func ReadTouchstone(r io.Reader, nPorts int) (ports []PortInfo, points []Point, err error) {
+// file's reference impedances. Points carry the frequency in Hz and S. An
+// error names the line and what was expected there.
+func Read(r io.Reader, nPorts int) (ports []Port, points []Point, err error) {
 	if nPorts < 0 || nPorts > maxTouchstonePorts {
 		return nil, nil, fmt.Errorf("touchstone: %d ports: want 1 to %d, or 0 for a version 2.0 file to say", nPorts, maxTouchstonePorts)
 	}
@@ -467,17 +482,9 @@ func ReadTouchstone(r io.Reader, nPorts int) (ports []PortInfo, points []Point, 
 	if err := t.finish(); err != nil {
 		return nil, nil, err
 	}
-	ports = make([]PortInfo, t.n)
+	ports = make([]Port, t.n)
 	for i := range ports {
-		ports[i] = PortInfo{Name: strconv.Itoa(i + 1), Impedance: t.ref(i)}
-	}
-	for k := range t.points {
-		p := &t.points[k]
-		p.InputImpedance = make([]complex128, t.n)
-		for i := range p.InputImpedance {
-			sii := p.S[i][i]
-			p.InputImpedance[i] = complex(t.ref(i), 0) * (1 + sii) / (1 - sii)
-		}
+		ports[i] = Port{Name: strconv.Itoa(i + 1), Impedance: t.ref(i)}
 	}
 	return ports, t.points, nil
 }
@@ -500,7 +507,7 @@ const (
 	matUpper
 )
 
-// tsReader holds the state of ReadTouchstone between lines.
+// tsReader holds the state of Read between lines.
 type tsReader struct {
 	given       int // nPorts argument, 0 if not given
 	line        int
@@ -925,7 +932,7 @@ func (t *tsReader) data(text string) error {
 
 // point turns a frequency's numbers into a Point.
 func (t *tsReader) point(v []float64) (Point, error) {
-	p := Point{FrequencyHz: v[0] * t.mul, GroupDelay: math.NaN(), S: make([][]complex128, t.n)}
+	p := Point{FrequencyHz: v[0] * t.mul, S: make([][]complex128, t.n)}
 	for i := range p.S {
 		p.S[i] = make([]complex128, t.n)
 	}
