@@ -211,12 +211,26 @@ func (pb *productBars) Plot(c draw.Canvas, p *plot.Plot) {
 type productTicks struct{ items []productBar }
 
 func (t productTicks) Ticks(min, max float64) []plot.Tick {
+	// As few digits as keep every product's frequency apart from the
+	// others' (close tones need more).
+	digits := 3
+	for ; digits < 8; digits++ {
+		seen, clash := map[string]bool{}, false
+		for _, b := range t.items {
+			f := si.Format(b.freqHz, "Hz", digits)
+			clash = clash || seen[f]
+			seen[f] = true
+		}
+		if !clash {
+			break
+		}
+	}
 	var ts []plot.Tick
 	for _, b := range t.items {
 		if b.x < min || b.x > max {
 			continue
 		}
-		ts = append(ts, plot.Tick{Value: b.x, Label: productLabel(b.m, b.n) + "\n" + si.Format(b.freqHz, "Hz", 3)})
+		ts = append(ts, plot.Tick{Value: b.x, Label: productLabel(b.m, b.n) + "\n" + si.Format(b.freqHz, "Hz", digits)})
 	}
 	return ts
 }
