@@ -339,6 +339,9 @@ func runDistortion(cmd *cobra.Command, path string, fl *distortionFlags) error {
 	}
 	doc.Waveform = waveformJSONOf(st)
 	doc.Cautions = append([]string{}, st.Cautions()...)
+	if note := truncationNote(st); note != "" {
+		doc.Cautions = append(doc.Cautions, note)
+	}
 	oneEst := est.OneTone()
 	cmp := ac.Compare(oneEst, st)
 	for _, c := range cmp {
@@ -425,6 +428,9 @@ func runDistortion(cmd *cobra.Command, path string, fl *distortionFlags) error {
 	writeJunctionDrive(out, s, est)
 	writeContributions(out, est)
 	writeWaveform(out, st)
+	if note := truncationNote(st); note != "" {
+		fmt.Fprintf(out, "  %s\n", note)
+	}
 	writeCautions(out, st.Cautions())
 	writeComparison(out, cmp, limit)
 	if two != nil {
