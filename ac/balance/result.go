@@ -50,7 +50,9 @@ type Stats struct {
 	ContinuationSteps int
 	// Fallbacks lists, in order, what the solve had to do beyond plain
 	// Newton: "source stepping", "more harmonics", "finer grid",
-	// "direct solve".
+	// "wider preconditioner", "frequency-domain preconditioner" (a step
+	// the time-domain one could not serve), "direct solve" (a step GMRES
+	// could not solve).
 	Fallbacks []string
 	Runtime   time.Duration
 }
