@@ -25,7 +25,10 @@
 // currents, for one and two tones, with each diode's and each
 // nonlinearity's share found by an adjoint solve (Volterra). The full
 // nonlinear circuit's periodic steady state by shooting-Newton over the
-// trapezoidal rule (SteadyState), its harmonics by FFT. The two side by
+// trapezoidal rule (SteadyState), its harmonics by FFT; SteadyState runs
+// another method instead when SteadySettings.Method names one (package
+// balance: harmonic balance for one and two tones, and the automatic
+// choice), and MeasuredIntercept reads IIP3 from a two-tone level sweep. The two side by
 // side (Compare), the highest level at which they agree (ValidityLimit),
 // and the waveform over a range of levels (LevelSweep, Compression).
 //

@@ -27,6 +27,9 @@ type SteadySettings struct {
 	// Start, when not nil, is a steady state of the same circuit at a
 	// nearby level to start from (continuation over level).
 	Start *Steady
+	// Method solves for the steady state; nil is shooting (see
+	// SteadyMethod).
+	Method SteadyMethod
 }
 
 // Harmonic is one harmonic of a periodic waveform.
@@ -74,9 +77,22 @@ type Steady struct {
 	// and the DC node voltages.
 	NoiseFloor float64
 
-	Iterations int     // shooting-Newton iterations, both step sizes
-	Residual   float64 // final periodicity residual, max |x(T) - x(0)| scaled
-	Samples    int     // samples per period of the coarser solve
+	Iterations int     // Newton iterations (shooting: both step sizes)
+	Residual   float64 // final residual: shooting's periodicity, max |x(T) - x(0)| scaled; harmonic balance's KCL error relative to the node's currents
+	Samples    int     // samples per period of the coarser solve (shooting)
+
+	// Method names the method that found this steady state:
+	// MethodShooting or MethodHarmonicBalance; Choice, when the method was
+	// chosen automatically, says why.
+	Method string
+	Choice string
+	// Products holds, for a two-tone drive, the output at every mixing
+	// product m·f1 + n·f2 the method solved for; nil for one tone.
+	Products []ToneProduct
+	// State is the solving method's own record of the solution, which a
+	// method other than shooting reads back from SteadySettings.Start to
+	// continue from it (harmonic balance keeps its *balance.Result here).
+	State any
 
 	x0 []float64 // the periodic state, for continuation
 	p  []float64
@@ -112,7 +128,15 @@ var ErrNoSteadyState = errors.New("no periodic steady state found")
 // trapezoidal rule's (-1)^n ringing mode cannot be periodic), each
 // transformed with go-dsp's FFT, and the harmonic phasors combined by
 // Richardson's extrapolation for the rule's error in (ωh)².
+//
+// With s.Method set, the method given solves instead (see SteadyMethod):
+// this is the one entry point for every steady-state method, so that
+// LevelSweep and ValidityLimit continue from level to level whichever
+// method runs.
 func SteadyState(nw *smallsignal.Network, d Drive, s SteadySettings) (*Steady, error) {
+	if s.Method != nil {
+		return s.Method.SolveSteady(nw, d, s)
+	}
 	if d.SecondToneHz != 0 {
 		return nil, fmt.Errorf("the steady-state solve takes one tone")
 	}
@@ -171,8 +195,9 @@ func SteadyState(nw *smallsignal.Network, d Drive, s SteadySettings) (*Steady, e
 		Waveform:   fine.output,
 		x0:         fine.x0,
 		p:          fine.p,
+		Method:     MethodShooting,
 	}
-	res.Stress = stress(nw, fine.currents, fine.terminals, fine.junctions)
+	res.Stress = Stress(nw, fine.currents, fine.terminals, fine.junctions)
 	scale := d.EMF
 	for _, v := range nw.Bias[:nw.NodeUnknowns] {
 		scale = math.Max(scale, math.Abs(v))
@@ -186,31 +211,7 @@ func SteadyState(nw *smallsignal.Network, d Drive, s SteadySettings) (*Steady, e
 	res.Output = richardson(hc, hf, n, 2*n+1)
 	res.Output[0].Amplitude -= dcOut
 	res.Output[0].Phasor -= complex(dcOut, 0)
-	// Readings below the floor are rounding: a -200 dBm drive once
-	// showed 6 % THD and HD3 at -28 dBc of nothing but that.
-	for i := range res.Output {
-		res.Output[i].BelowFloor = res.Output[i].Amplitude < res.NoiseFloor
-	}
-	// The DC shift is the small difference of the waveform's mean and
-	// the bias: its rounding runs higher (measured up to 2e-11 of the
-	// voltage scale on the detector demo at -200 to -100 dBm).
-	res.Output[0].BelowFloor = res.Output[0].Amplitude < dcFloorRel*scale
-	var sum float64
-	above := 0
-	for _, h := range res.Output[2:] {
-		if !h.BelowFloor {
-			sum += h.Amplitude * h.Amplitude
-			above++
-		}
-	}
-	res.THDPercent = math.NaN()
-	if a1 := res.Output[1].Amplitude; a1 > 0 && !res.Output[1].BelowFloor {
-		if above > 0 {
-			res.THDPercent = 100 * math.Sqrt(sum) / a1
-		} else {
-			res.THDBelowPercent = 100 * math.Sqrt(float64(len(res.Output)-2)) * res.NoiseFloor / a1
-		}
-	}
+	res.FinishHarmonics(scale)
 	for j := range nw.Diodes {
 		res.DiodeCurrents = append(res.DiodeCurrents, richardson(harmonics(coarse.currents[j], k), harmonics(fine.currents[j], k), n, 2*n+1))
 	}

@@ -53,9 +53,10 @@ func smallJunctionCurrent(cj0 float64) float64 {
 // taken to be overdriven: cj0 × 3.3e11 A/F, the rule above.
 func OverdriveCurrent(cj0 float64) float64 { return smallJunctionCurrent(cj0) }
 
-// stress reduces the sampled currents and terminal voltages of one period
-// to each diode's extremes.
-func stress(nw *smallsignal.Network, currents, terminals, junctions [][]float64) []DiodeStress {
+// Stress reduces the sampled junction currents, terminal voltages and
+// junction voltages of one period (per diode, in the network's order) to
+// each diode's extremes, for Cautions.
+func Stress(nw *smallsignal.Network, currents, terminals, junctions [][]float64) []DiodeStress {
 	var out []DiodeStress
 	for k, d := range nw.Diodes {
 		if k >= len(currents) {

@@ -33,6 +33,7 @@ type distortionFlags struct {
 	asJSON                                      bool
 	plotsDir                                    string
 	sets                                        []string
+	steady                                      steadyFlags
 }
 
 func newDistortionCmd() *cobra.Command {
@@ -49,7 +50,10 @@ level and reports, at the output port or node:
              diode and which nonlinearity (current or charge) supplies each
              product
   waveform   the full nonlinear circuit solved to periodic steady state and
-             its harmonics, THD and DC shift
+             its harmonics, THD and DC shift, by harmonic balance or shooting
+             (--method); with --second-tone also every mixing product, IM2
+             and IM3 beside the estimate, and with --sweep-level the
+             intercept read from the waveform as a bench reads it
   side by side, with the difference in dB, and the highest input level at
              which the estimates hold within 0.5 dB: the small-signal
              validity limit at this bias
@@ -82,6 +86,7 @@ Settings come from the flags, else from the file's analysis.distortion.`,
 	f.BoolVar(&fl.noLimit, "no-limit", false, "skip the search for the validity limit")
 	f.BoolVar(&fl.asJSON, "json", false, "print one JSON document (SI units) instead of tables")
 	f.StringVar(&fl.plotsDir, "plots", "", "write the distortion figures (SVG and PNG) into this directory")
+	addSteadyFlags(f, &fl.steady)
 	return cmd
 }
 
@@ -280,6 +285,10 @@ func runDistortion(cmd *cobra.Command, path string, fl *distortionFlags) error {
 	if fl.samples < 4*fl.harmonics+1 || fl.samples > 65536 {
 		return inputError(fmt.Errorf("flag --samples: %d; accepted: at least 4 × harmonics + 1 and at most 65536", fl.samples))
 	}
+	waveSettings := settings
+	if settings.Method, waveSettings.Method, err = fl.steady.steadyMethods(s); err != nil {
+		return err
+	}
 	out := cmd.OutOrStdout()
 	doc := &distortionJSON{Input: s.inName, Output: s.outName, Frequency: number(s.drive.FrequencyHz), LevelDBm: number(s.levelDBm)}
 
@@ -324,16 +333,30 @@ func runDistortion(cmd *cobra.Command, path string, fl *distortionFlags) error {
 	doc.Estimate = estimateJSONOf(est)
 	one := s.drive
 	one.SecondToneHz = 0
-	st, err := ac.SteadyState(s.nw, one, settings)
+	st, err := ac.SteadyState(s.nw, one, waveSettings)
 	if err != nil {
 		return analysisError(fmt.Errorf("waveform at %.1f dBm: %w", s.levelDBm, err))
 	}
 	doc.Waveform = waveformJSONOf(st)
 	doc.Cautions = append([]string{}, st.Cautions()...)
+	if note := truncationNote(st); note != "" {
+		doc.Cautions = append(doc.Cautions, note)
+	}
 	oneEst := est.OneTone()
 	cmp := ac.Compare(oneEst, st)
 	for _, c := range cmp {
 		doc.Comparison = append(doc.Comparison, comparisonJSON{c.Order, number(c.Estimate), number(c.Waveform), number(c.DiffDB), c.Trustable})
+	}
+	var two *ac.Steady
+	if s.drive.SecondToneHz != 0 {
+		if two, err = ac.SteadyState(s.nw, s.drive, waveSettings); err != nil {
+			return analysisError(fmt.Errorf("two-tone waveform at %.1f dBm per tone: %w", s.levelDBm, err))
+		}
+		doc.Waveform.addTwoTone(two)
+		doc.Cautions = append(doc.Cautions, two.Cautions()...)
+		if note := truncationNote(two); note != "" {
+			doc.Cautions = append(doc.Cautions, note)
+		}
 	}
 	var limit *ac.Validity
 	if !fl.noLimit {
@@ -344,7 +367,9 @@ func runDistortion(cmd *cobra.Command, path string, fl *distortionFlags) error {
 		doc.setValidity(limit)
 	}
 
-	var sweep []ac.LevelPoint
+	var sweep, twoSweep []ac.LevelPoint
+	var ip *ac.Intercept
+	var ipErr error
 	var transfer *ac.Transfer
 	tss := math.NaN()
 	var compression float64
@@ -386,9 +411,12 @@ func runDistortion(cmd *cobra.Command, path string, fl *distortionFlags) error {
 		if transfer != nil {
 			doc.Transfer = transferJSONOf(transfer, tss)
 		}
+		if two != nil {
+			twoSweep, ip, ipErr = twoToneLevelSweep(cmd, s, waveSettings, levels, doc)
+		}
 	}
 	if fl.plotsDir != "" {
-		if err := writeDistortionPlots(fl.plotsDir, s, oneEst, st, sweep, transfer, tss); err != nil {
+		if err := writeDistortionPlots(fl.plotsDir, s, oneEst, st, sweep, transfer, tss, twoToneFigures(two, est)...); err != nil {
 			return err
 		}
 	}
@@ -400,14 +428,24 @@ func runDistortion(cmd *cobra.Command, path string, fl *distortionFlags) error {
 	writeJunctionDrive(out, s, est)
 	writeContributions(out, est)
 	writeWaveform(out, st)
+	if note := truncationNote(st); note != "" {
+		fmt.Fprintf(out, "  %s\n", note)
+	}
 	writeCautions(out, st.Cautions())
 	writeComparison(out, cmp, limit)
+	if two != nil {
+		writeTwoTone(out, two, est)
+		writeCautions(out, two.Cautions())
+	}
 	if len(sweep) > 0 {
 		writeLevelSweep(out, sweep, oneEst, compression, compressed)
 		writeCautions(out, sweepCautions(sweep))
 	}
 	if transfer != nil {
 		writeTransfer(out, transfer, tss)
+	}
+	if len(twoSweep) > 0 {
+		writeTwoToneSweep(out, twoSweep, ip, ipErr, est)
 	}
 	if fl.plotsDir != "" {
 		fmt.Fprintf(out, "figures written to %s\n", fl.plotsDir)
@@ -641,7 +679,7 @@ func stressTable(s *ac.Steady) *table {
 }
 
 func waveformTable(s *ac.Steady) (*table, string) {
-	t := &table{title: fmt.Sprintf("Waveform (periodic steady state, %d and %d samples per period)", s.Samples, 2*s.Samples+1),
+	t := &table{title: "Waveform (periodic steady state by " + methodLine(s) + ")",
 		header: []string{"order", "amplitude", "relative", "phase"}}
 	fund := s.Output[1].Amplitude
 	isolated := fund <= s.NoiseFloor
@@ -662,10 +700,10 @@ func waveformTable(s *ac.Steady) (*table, string) {
 		t.add(strconv.Itoa(h.Order), si.Format(h.Amplitude, "V", 4), rel, ph)
 	}
 	if isolated {
-		return t, fmt.Sprintf("no signal above the solver's floor (%s) reaches this output: it is isolated from the input; %d shooting iterations",
+		return t, fmt.Sprintf("no signal above the solver's floor (%s) reaches this output: it is isolated from the input; %d Newton iterations",
 			si.Format(s.NoiseFloor, "V", 2), s.Iterations)
 	}
-	return t, fmt.Sprintf("THD %.4g %%; %d shooting iterations; periodicity residual %.2g", s.THDPercent, s.Iterations, s.Residual)
+	return t, fmt.Sprintf("THD %.4g %%; %d Newton iterations; %s residual %.2g", s.THDPercent, s.Iterations, residualName(s), s.Residual)
 }
 
 func writeComparison(w io.Writer, cs []ac.Comparison, v *ac.Validity) {

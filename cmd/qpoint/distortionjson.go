@@ -85,11 +85,15 @@ type stressJSON struct {
 }
 
 type waveformJSON struct {
+	Method     string         `json:"method"`
 	Diodes     []stressJSON   `json:"diodes"`
 	Harmonics  []harmonicJSON `json:"harmonics"`
 	THDPercent number         `json:"thd_percent"`
 	Iterations int            `json:"iterations"`
 	Residual   number         `json:"residual"`
+	IM2dBc     *number        `json:"im2_dbc,omitempty"`
+	IM3dBc     *number        `json:"im3_dbc,omitempty"`
+	Products   []productJSON  `json:"products,omitempty"`
 }
 
 type comparisonJSON struct {
@@ -118,6 +122,8 @@ type distortionJSON struct {
 	ValidityNote       string           `json:"validity_note,omitempty"`
 	LevelSweep         []levelJSON      `json:"level_sweep,omitempty"`
 	CompressionDBm     number           `json:"compression_dbm,omitempty"`
+	TwoToneSweep       []levelJSON      `json:"two_tone_sweep,omitempty"`
+	MeasuredIntercept  *interceptJSON   `json:"measured_intercept,omitempty"`
 	Transfer           *transferJSON    `json:"transfer,omitempty"`
 	FrequencySweep     []*estimateJSON  `json:"frequency_sweep,omitempty"`
 	Cautions           []string         `json:"cautions,omitempty"`
@@ -172,7 +178,7 @@ func estimateJSONOf(e *ac.Estimate) *estimateJSON {
 }
 
 func waveformJSONOf(s *ac.Steady) *waveformJSON {
-	j := &waveformJSON{THDPercent: number(s.THDPercent), Iterations: s.Iterations, Residual: number(s.Residual), Diodes: []stressJSON{}}
+	j := &waveformJSON{Method: s.Method, THDPercent: number(s.THDPercent), Iterations: s.Iterations, Residual: number(s.Residual), Diodes: []stressJSON{}}
 	for _, d := range s.Stress {
 		j.Diodes = append(j.Diodes, stressJSON{d.Name, number(d.PeakCurrent), number(d.PeakReverseVoltage), number(d.MeanPower)})
 	}

@@ -81,7 +81,7 @@ func writeFigures(dir string, figs []*plots.Figure) error {
 	return nil
 }
 
-func writeDistortionPlots(dir string, s *distortionSetup, e *ac.Estimate, st *ac.Steady, sweep []ac.LevelPoint, t *ac.Transfer, tssDBm float64) error {
+func writeDistortionPlots(dir string, s *distortionSetup, e *ac.Estimate, st *ac.Steady, sweep []ac.LevelPoint, t *ac.Transfer, tssDBm float64, extra ...*plots.Figure) error {
 	comp, compressed := 0.0, false
 	if len(sweep) > 1 {
 		comp, compressed = ac.Compression(sweep, cmplx.Abs(e.Linear)/e.Drive.EMF)
@@ -90,7 +90,7 @@ func writeDistortionPlots(dir string, s *distortionSetup, e *ac.Estimate, st *ac
 	if t != nil {
 		figs = append(figs, plots.DetectorTransfer(t, tssDBm))
 	}
-	return writeFigures(dir, figs)
+	return writeFigures(dir, append(figs, extra...))
 }
 
 func writeDistortionFrequencyPlot(dir string, rows []frequencyRow) error {
