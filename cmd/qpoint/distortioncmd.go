@@ -16,6 +16,7 @@ import (
 	"golang.org/x/term"
 
 	"qpoint/ac"
+	"qpoint/ac/plan"
 	"qpoint/bias"
 	"qpoint/bias/circuit"
 	"qpoint/bias/si"
@@ -132,78 +133,37 @@ func resolveDistortionFor(c *circuit.Circuit, fl *distortionFlags, p *bias.Point
 	return s, nil
 }
 
-// distortionDrive resolves the input, output and drive from the flags and
-// the file's defaults, without solving anything.
+// distortionDrive reads the drive flags into a request and resolves it
+// on the plan, without solving anything.
 func distortionDrive(c *circuit.Circuit, fl *distortionFlags) (*distortionSetup, error) {
-	path := c.File
+	req := plan.DriveRequest{Input: fl.input, Output: fl.output}
 	var err error
-	if len(c.Ports) == 0 {
-		return nil, inputError(fmt.Errorf("%s: the circuit has no ports; distortion needs an input port (add a `ports:` list)", path))
-	}
-	def := c.Analysis.Distortion
-	s := &distortionSetup{c: c}
-	sp, err := resolveSignalPath(c, fl.input, fl.output)
-	if err != nil {
-		return nil, err
-	}
-	inIdx, in, o, out := sp.in, sp.inName, sp.out, sp.outName
-	freq := def.FrequencyHz
 	if fl.frequency != "" {
-		if freq, err = circuit.ParseBounded(fl.frequency, circuit.Frequency); err != nil {
+		if req.FrequencyHz, err = circuit.ParseBounded(fl.frequency, circuit.Frequency); err != nil {
 			return nil, inputError(fmt.Errorf("flag --frequency: %w", err))
 		}
 	}
-	if freq == 0 {
-		return nil, inputError(fmt.Errorf("no signal frequency: give --frequency (e.g. 2.45GHz) or analysis.distortion.frequency in the file"))
-	}
-	if err := ac.CheckFrequency(freq); err != nil {
-		return nil, inputError(fmt.Errorf("%s%w", origin(c, "frequency", fl.frequency != "", def.Pos), err))
-	}
-	lv := def.Level
-	haveLevel := def.Set
 	if fl.level != "" {
-		if lv, err = circuit.ParseLevel(fl.level); err != nil {
+		lv, err := circuit.ParseLevel(fl.level)
+		if err != nil {
 			return nil, inputError(fmt.Errorf("flag --level: %w", err))
 		}
-		haveLevel = true
+		req.Level = &lv
 	}
-	if !haveLevel {
-		lv = circuit.Level{DBm: -30, IsPower: true}
-	}
-	z0 := c.Ports[inIdx].Impedance
-	if lv.IsPower {
-		s.levelDBm = lv.DBm
-	} else {
-		// A peak voltage is what the generator delivers into a matched
-		// load: half its EMF.
-		s.levelDBm = ac.EMFToDBm(2*lv.PeakVolts, z0)
-	}
-	// A peak voltage within the voltage range can still be a power
-	// beyond the level range at the port's impedance (1 MV into 50 Ω is
-	// +130 dBm): the limits hold for the level, however it is written.
-	if !(s.levelDBm >= circuit.MinLevelDBm && s.levelDBm <= circuit.MaxLevelDBm) {
-		return nil, inputError(fmt.Errorf("%s%s at port %s's %s is %.4g dBm; accepted: %g dBm to %+g dBm of available power (a peak voltage into a matched load of that port)",
-			origin(c, "level", fl.level != "", def.Pos), levelText(lv), in, si.Format(z0, "Ω", 4), s.levelDBm, float64(circuit.MinLevelDBm), float64(circuit.MaxLevelDBm)))
-	}
-	second := def.SecondToneHz
-	if fl.secondTone == "none" {
-		second = 0
-	} else if fl.secondTone != "" {
-		if second, err = circuit.ParseBounded(fl.secondTone, circuit.Frequency); err != nil {
+	switch fl.secondTone {
+	case "":
+	case "none":
+		req.DropSecondTone = true
+	default:
+		if req.SecondToneHz, err = circuit.ParseBounded(fl.secondTone, circuit.Frequency); err != nil {
 			return nil, inputError(fmt.Errorf("flag --second-tone: %w", err))
 		}
 	}
-	if second != 0 {
-		if err := ac.CheckFrequency(second); err != nil {
-			return nil, inputError(fmt.Errorf("%s%w", origin(c, "second-tone", fl.secondTone != "", def.Pos), err))
-		}
-		if second == freq {
-			return nil, inputError(fmt.Errorf("flag --second-tone: must differ from the signal frequency %s", si.Format(freq, "Hz", 6)))
-		}
+	d, err := plan.ResolveDrive(c, req)
+	if err != nil {
+		return nil, planError(err)
 	}
-	s.drive = ac.Drive{Input: inIdx, Output: o, FrequencyHz: freq, EMF: ac.DBmToEMF(s.levelDBm, z0), SecondToneHz: second}
-	s.inName, s.outName = in, out
-	return s, nil
+	return &distortionSetup{c: c, drive: d.Drive, inName: d.InputName, outName: d.OutputName, levelDBm: d.LevelDBm}, nil
 }
 
 // parseRange reads FROM:TO:STEP.
@@ -892,22 +852,4 @@ func writeJunctionDrive(w io.Writer, s *distortionSetup, e *ac.Estimate) {
 	if len(parts) > 0 {
 		fmt.Fprintf(w, "  junction drive x = |v|/(n V_T) at f1: %s\n", strings.Join(parts, ", "))
 	}
-}
-
-// origin names where a setting came from in a message: the flag when the
-// user gave it, else the file's analysis.distortion section at its
-// FILE:LINE:COL.
-func origin(c *circuit.Circuit, flag string, fromFlag bool, at circuit.Pos) string {
-	if fromFlag {
-		return "flag --" + flag + ": "
-	}
-	return fmt.Sprintf("%s:%d:%d: analysis.distortion.%s: ", c.File, at.Line, at.Col, strings.ReplaceAll(flag, "-", "_"))
-}
-
-// levelText writes a level as the user gave it.
-func levelText(lv circuit.Level) string {
-	if lv.IsPower {
-		return fmt.Sprintf("%g dBm", lv.DBm)
-	}
-	return si.Format(lv.PeakVolts, "V", 4) + " peak"
 }

@@ -12,6 +12,7 @@ import (
 	"github.com/spf13/cobra"
 
 	"qpoint/ac"
+	"qpoint/ac/plan"
 	"qpoint/ac/transient"
 	"qpoint/bias"
 	"qpoint/bias/circuit"
@@ -137,12 +138,12 @@ func resolvePulse(c *circuit.Circuit, fl *pulseFlags, p *bias.Point) (*pulseSetu
 	if output == "" && def.Set {
 		output = def.Output
 	}
-	sp, err := resolveSignalPath(c, input, output)
+	sp, err := plan.SignalPath(c, input, output)
 	if err != nil {
-		return nil, err
+		return nil, planError(err)
 	}
-	s.inName, s.outName = sp.inName, sp.outName
-	z0 := c.Ports[sp.in].Impedance
+	s.inName, s.outName = sp.InputName, sp.OutputName
+	z0 := c.Ports[sp.Input].Impedance
 
 	// Each time setting: the flag, else the file's value.
 	readTime := func(flag, text string, fromFile float64, required bool) (float64, error) {
@@ -231,7 +232,7 @@ func resolvePulse(c *circuit.Circuit, fl *pulseFlags, p *bias.Point) (*pulseSetu
 	}
 
 	set := transient.PulseSettings{
-		Input: sp.in, Output: sp.out,
+		Input: sp.Input, Output: sp.Output,
 		Pulse: transient.Pulse{CarrierHz: carrier, CarrierEMF: ac.DBmToEMF(s.levelDBm, z0),
 			Width: width, Rise: rise, Fall: fall, Period: period, Count: count},
 		Transient: transient.Settings{RelativeTolerance: fl.tolerance, MaxSteps: fl.maxSteps},
