@@ -6,8 +6,6 @@ import (
 	"math"
 	"math/cmplx"
 	"os"
-	"sort"
-	"strconv"
 	"strings"
 	"time"
 
@@ -299,7 +297,7 @@ func runDistortion(cmd *cobra.Command, path string, fl *distortionFlags) error {
 	}
 	doc.Waveform = waveformJSONOf(st)
 	doc.Cautions = append([]string{}, st.Cautions()...)
-	if note := truncationNote(st); note != "" {
+	if note := report.TruncationNote(st); note != "" {
 		doc.Cautions = append(doc.Cautions, note)
 	}
 	oneEst := est.OneTone()
@@ -314,7 +312,7 @@ func runDistortion(cmd *cobra.Command, path string, fl *distortionFlags) error {
 		}
 		doc.Waveform.addTwoTone(two)
 		doc.Cautions = append(doc.Cautions, two.Cautions()...)
-		if note := truncationNote(two); note != "" {
+		if note := report.TruncationNote(two); note != "" {
 			doc.Cautions = append(doc.Cautions, note)
 		}
 	}
@@ -388,7 +386,7 @@ func runDistortion(cmd *cobra.Command, path string, fl *distortionFlags) error {
 	writeJunctionDrive(out, s, est)
 	writeContributions(out, est)
 	writeWaveform(out, st)
-	if note := truncationNote(st); note != "" {
+	if note := report.TruncationNote(st); note != "" {
 		fmt.Fprintf(out, "  %s\n", note)
 	}
 	writeCautions(out, st.Cautions())
@@ -446,11 +444,11 @@ func detectorTransfer(s *distortionSetup, sweep []ac.LevelPoint, videoBand strin
 // writeTransfer prints a detector's transfer curve and its square-law
 // range.
 func writeTransfer(w io.Writer, t *ac.Transfer, tssDBm float64) {
-	tb := &table{title: "Detector transfer curve (waveform)", header: []string{"input", "output DC change", "from square law"}}
+	tb := &report.Table{Caption: "Detector transfer curve (waveform)", Header: []string{"input", "output DC change", "from square law"}}
 	for _, p := range t.Points {
-		tb.add(fmt.Sprintf("%.1f dBm", p.LevelDBm), si.Format(p.Volts, "V", 4), fmt.Sprintf("%+.3f dB", p.DeviationDB))
+		tb.Add(fmt.Sprintf("%.1f dBm", p.LevelDBm), si.Format(p.Volts, "V", 4), fmt.Sprintf("%+.3f dB", p.DeviationDB))
 	}
-	tb.write(w)
+	tb.WriteText(w)
 	fmt.Fprintf(w, "  square law V = γP with γ = %s (small-signal voltage sensitivity)\n", si.Format(t.SensitivityVPerW, "V/W", 4))
 	fmt.Fprintf(w, "  log-log slope %.3f at the lowest level, %.3f at the highest (1: square law, 0.5: linear detection)\n", t.LowSlope, t.HighSlope)
 	if math.IsNaN(t.DeviationDBm) {
@@ -494,213 +492,38 @@ func writeDistortionHeader(w io.Writer, s *distortionSetup) {
 	fmt.Fprintf(w, "  output       %s %s\n", kind, s.outName)
 }
 
-func dbc(v float64) string {
-	if math.IsNaN(v) || math.IsInf(v, 0) {
-		return "—"
-	}
-	return strconv.FormatFloat(v, 'f', 1, 64) + " dBc"
-}
-
-// waveDBc prints a waveform harmonic relative to the fundamental, or says
-// it is lost in the solver's numerical floor (about -150 dBc).
-func waveDBc(v float64) string {
-	if v < -150 {
-		return "below floor"
-	}
-	return dbc(v)
-}
-
 func writeEstimate(w io.Writer, e *ac.Estimate) {
-	t, notes := estimateTable(e)
-	t.write(w)
+	t, notes := report.EstimateTable(e)
+	t.WriteText(w)
 	for _, n := range notes {
 		fmt.Fprintf(w, "  %s\n", n)
 	}
 }
 
-// estimateTable returns the Volterra estimate as a table, and notes to
-// print under it.
-func estimateTable(e *ac.Estimate) (*table, []string) {
-	var notes []string
-	t := &table{title: "Volterra estimate (third order)", header: []string{"quantity", "value"}}
-	if cmplx.Abs(e.Linear) <= 1e-12*e.Drive.EMF {
-		t.add("fundamental", "none: this output is isolated from the input")
-	} else {
-		t.add("fundamental", si.Format(cmplx.Abs(e.Fundamental), "V", 4)+" peak")
-	}
-	if p, ok := e.OutputDBm(); ok && cmplx.Abs(e.Linear) > 1e-12*e.Drive.EMF {
-		t.add("fundamental power", fmt.Sprintf("%.2f dBm", p+e.GainChangeDB()))
-	}
-	if cmplx.Abs(e.Linear) > 1e-12*e.Drive.EMF {
-		t.add("gain change at f1", gainChange(e.GainChangeDB()))
-		t.add("phase change at f1", fmt.Sprintf("%+.3g° (AM-to-PM %+.3g°/dB)", e.PhaseChangeDeg(), e.AMPMDegPerDB()))
-		if l, compress := e.GainStepDBm(1); !math.IsNaN(l) {
-			kind := "1 dB compression (series)"
-			if !compress {
-				kind = "1 dB expansion (series)"
-			}
-			t.add(kind, fmt.Sprintf("%.2f dBm input", l))
-		}
-	}
-	const cancelled = "cancelled by symmetry"
-	pick := func(p ac.Product, v string) string {
-		if e.Balanced(p) {
-			return cancelled
-		}
-		return v
-	}
-	t.add("second harmonic", pick(ac.HD2, dbc(e.HD2dBc())))
-	t.add("third harmonic", pick(ac.HD3, dbc(e.HD3dBc())))
-	t.add("DC shift", pick(ac.DC, si.Format(e.DCShift, "V", 4)))
-	if e.Drive.SecondToneHz != 0 {
-		t.add("IM2 at |f2 - f1|", pick(ac.IM2Diff, dbc(e.IM2dBc())))
-		t.add("IM3 at 2f1 - f2", pick(ac.IM3, dbc(e.IM3dBc())))
-		t.add("input intercept IIP3", pick(ac.IM3, fmt.Sprintf("%.2f dBm", e.IIP3dBm())))
-		if o, ok := e.OIP3dBm(); ok {
-			t.add("output intercept OIP3", pick(ac.IM3, fmt.Sprintf("%.2f dBm", o)))
-		}
-		t.add("input intercept IIP2", pick(ac.IM2Diff, fmt.Sprintf("%.2f dBm", e.IIP2dBm())))
-	}
-	for _, p := range []ac.Product{ac.DC, ac.HD2, ac.HD3, ac.IM2Diff, ac.IM3} {
-		if e.Balanced(p) {
-			notes = append(notes, fmt.Sprintf("products marked %q balance out between matched diodes; in a built circuit they follow the parts' mismatch", cancelled))
-			break
-		}
-	}
-	return t, notes
-}
-
-// gainChange prints the third-order gain change at f1 with its sense.
-func gainChange(db float64) string {
-	switch {
-	case math.IsNaN(db):
-		return "—"
-	case db < 0:
-		return fmt.Sprintf("%+.3g dB (compression)", db)
-	case db > 0:
-		return fmt.Sprintf("%+.3g dB (expansion)", db)
-	}
-	return "0 dB"
-}
-
 func writeContributions(w io.Writer, e *ac.Estimate) {
-	contributionTable(e).write(w)
-}
-
-func contributionTable(e *ac.Estimate) *table {
-	t := &table{title: "Where the distortion comes from", header: []string{"product", "diode", "nonlinearity", "phasor at output", "share"}}
-	byProduct := map[ac.Product][]ac.Contribution{}
-	var order []ac.Product
-	for _, c := range e.Contributions {
-		if _, ok := byProduct[c.Product]; !ok {
-			order = append(order, c.Product)
-		}
-		byProduct[c.Product] = append(byProduct[c.Product], c)
-	}
-	label := map[ac.Product]string{ac.DC: "DC shift", ac.Gain3: "f1, 3rd order", ac.HD2: "HD2", ac.HD3: "HD3", ac.IM2Sum: "IM2 f1+f2", ac.IM2Diff: "IM2 f1-f2", ac.IM3: "IM3"}
-	for _, p := range order {
-		cs := byProduct[p]
-		sort.SliceStable(cs, func(i, j int) bool { return cmplx.Abs(cs[i].Phasor) > cmplx.Abs(cs[j].Phasor) })
-		for i, c := range cs {
-			if c.Phasor == 0 {
-				continue
-			}
-			name := ""
-			if i == 0 {
-				name = label[p]
-			}
-			share := fmt.Sprintf("%.1f %%", c.Percent)
-			if math.IsNaN(c.Percent) {
-				share = "cancels"
-			}
-			t.add(name, c.Diode, string(c.Source), fmt.Sprintf("%s ∠%.0f°", si.Format(cmplx.Abs(c.Phasor), "V", 3), cmplx.Phase(c.Phasor)*180/math.Pi), share)
-		}
-	}
-	return t
+	report.ContributionTable(e).WriteText(w)
 }
 
 func writeWaveform(w io.Writer, s *ac.Steady) {
-	t, note := waveformTable(s)
-	t.write(w)
+	t, note := report.WaveformTable(s)
+	t.WriteText(w)
 	fmt.Fprintf(w, "  %s\n", note)
 	if len(s.Stress) > 0 {
-		stressTable(s).write(w)
+		report.StressTable(s).WriteText(w)
 	}
-}
-
-// stressTable gives every diode's extremes over the period: what its
-// ratings, or the breakdown knee, are to be held against.
-func stressTable(s *ac.Steady) *table {
-	t := &table{title: "Diode extremes over the period (waveform)", header: []string{"diode", "peak forward current", "peak reverse voltage", "mean power"}}
-	for _, d := range s.Stress {
-		t.add(d.Name, si.Format(d.PeakCurrent, "A", 4), si.Format(d.PeakReverseVoltage, "V", 4), si.Format(d.MeanPower, "W", 4))
-	}
-	return t
-}
-
-func waveformTable(s *ac.Steady) (*table, string) {
-	t := &table{title: "Waveform (periodic steady state by " + methodLine(s) + ")",
-		header: []string{"order", "amplitude", "relative", "phase"}}
-	fund := s.Output[1].Amplitude
-	isolated := fund <= s.NoiseFloor
-	for _, h := range s.Output {
-		rel, ph := "", ""
-		if h.Order == 0 {
-			t.add("0 (DC shift)", si.Format(h.Amplitude, "V", 4), "", "")
-			continue
-		}
-		rel = waveDBc(20 * math.Log10(h.Amplitude/fund))
-		if h.Order == 1 {
-			rel = "0 dBc"
-		}
-		if isolated {
-			rel = "—"
-		}
-		ph = fmt.Sprintf("%.1f°", h.PhaseDeg)
-		t.add(strconv.Itoa(h.Order), si.Format(h.Amplitude, "V", 4), rel, ph)
-	}
-	if isolated {
-		return t, fmt.Sprintf("no signal above the solver's floor (%s) reaches this output: it is isolated from the input; %d Newton iterations",
-			si.Format(s.NoiseFloor, "V", 2), s.Iterations)
-	}
-	return t, fmt.Sprintf("THD %.4g %%; %d Newton iterations; %s residual %.2g", s.THDPercent, s.Iterations, residualName(s), s.Residual)
 }
 
 func writeComparison(w io.Writer, cs []ac.Comparison, v *ac.Validity) {
-	t, note := comparisonTable(cs, v)
-	t.write(w)
+	t, note := report.ComparisonTable(cs, v)
+	t.WriteText(w)
 	if note != "" {
 		fmt.Fprintf(w, "  %s\n", note)
 	}
 	fmt.Fprintln(w)
 }
 
-func comparisonTable(cs []ac.Comparison, v *ac.Validity) (*table, string) {
-	t := &table{title: "Estimate beside waveform", header: []string{"product", "estimate", "waveform", "difference"}}
-	names := map[int]string{0: "DC shift", 1: "fundamental", 2: "2nd harmonic", 3: "3rd harmonic"}
-	for _, c := range cs {
-		diff := fmt.Sprintf("%+.3f dB", c.DiffDB)
-		if !c.Trustable {
-			diff = "below the solver's floor"
-		}
-		t.add(names[c.Order], si.Format(c.Estimate, "V", 4), si.Format(c.Waveform, "V", 4), diff)
-	}
-	note := ""
-	trusted := false
-	for _, c := range cs {
-		trusted = trusted || c.Trustable
-	}
-	if !trusted {
-		return t, "nothing at this output lies above the solver's floor, so there is nothing to compare"
-	}
-	if v != nil {
-		note = v.Note()
-	}
-	return t, note
-}
-
 func writeLevelSweep(w io.Writer, pts []ac.LevelPoint, e *ac.Estimate, comp float64, ok bool) {
-	levelSweepTable(pts).write(w)
+	report.LevelSweepTable(pts).WriteText(w)
 	if ok {
 		fmt.Fprintf(w, "  1 dB compression at %.2f dBm input (waveform)\n", comp)
 	} else {
@@ -718,52 +541,20 @@ func writeLevelSweep(w io.Writer, pts []ac.LevelPoint, e *ac.Estimate, comp floa
 	fmt.Fprintln(w)
 }
 
-func levelSweepTable(pts []ac.LevelPoint) *table {
-	t := &table{title: "Level sweep (waveform)", header: []string{"input", "fundamental", "2nd", "3rd", "DC shift", "THD"}}
-	for _, p := range pts {
-		o := p.Steady.Output
-		floor := "< " + si.Format(p.Steady.NoiseFloor, "V", 2)
-		cell := func(h ac.Harmonic, text string) string {
-			if h.BelowFloor || o[1].BelowFloor {
-				return "below floor"
-			}
-			return text
-		}
-		fund, shift := si.Format(o[1].Amplitude, "V", 4), si.Format(o[0].Amplitude, "V", 4)
-		if o[1].BelowFloor {
-			fund = floor
-		}
-		if o[0].BelowFloor {
-			shift = "below floor"
-		}
-		thd := fmt.Sprintf("%.3g %%", p.Steady.THDPercent)
-		switch {
-		case p.Steady.THDBelowPercent > 0:
-			thd = fmt.Sprintf("< %.2g %%", p.Steady.THDBelowPercent)
-		case math.IsNaN(p.Steady.THDPercent):
-			thd = "—"
-		}
-		t.add(fmt.Sprintf("%.1f dBm", p.LevelDBm), fund,
-			cell(o[2], waveDBc(20*math.Log10(o[2].Amplitude/o[1].Amplitude))), cell(o[3], waveDBc(20*math.Log10(o[3].Amplitude/o[1].Amplitude))),
-			shift, thd)
-	}
-	return t
-}
-
 func writeFrequencySweep(w io.Writer, rows []frequencyRow) {
-	t := &table{title: "Volterra estimate across frequency", header: []string{"frequency", "fundamental", "HD2", "HD3", "DC shift"}}
+	t := &report.Table{Caption: "Volterra estimate across frequency", Header: []string{"frequency", "fundamental", "HD2", "HD3", "DC shift"}}
 	two := len(rows) > 0 && rows[0].est.Drive.SecondToneHz != 0
 	if two {
-		t.header = append(t.header, "IM3", "IIP3")
+		t.Header = append(t.Header, "IM3", "IIP3")
 	}
 	for _, r := range rows {
-		cells := []string{si.Format(r.f, "Hz", 4), si.Format(cmplx.Abs(r.est.Fundamental), "V", 4), dbc(r.est.HD2dBc()), dbc(r.est.HD3dBc()), si.Format(r.est.DCShift, "V", 4)}
+		cells := []string{si.Format(r.f, "Hz", 4), si.Format(cmplx.Abs(r.est.Fundamental), "V", 4), report.DBc(r.est.HD2dBc()), report.DBc(r.est.HD3dBc()), si.Format(r.est.DCShift, "V", 4)}
 		if two {
-			cells = append(cells, dbc(r.est.IM3dBc()), fmt.Sprintf("%.2f dBm", r.est.IIP3dBm()))
+			cells = append(cells, report.DBc(r.est.IM3dBc()), fmt.Sprintf("%.2f dBm", r.est.IIP3dBm()))
 		}
-		t.add(cells...)
+		t.Add(cells...)
 	}
-	t.write(w)
+	t.WriteText(w)
 	fmt.Fprintln(w)
 }
 

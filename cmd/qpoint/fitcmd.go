@@ -304,7 +304,7 @@ func writeFit(w io.Writer, in *fitInput, r *extract.Result) {
 		fmt.Fprintf(w, "  C–V  %s  (%s%s)\n", f.path, report.Plural(len(f.table.Points), "point"), fileTemperatures(f, in.settings))
 	}
 
-	t := &table{title: "Fitted values", header: []string{"value", "fitted", "standard error", "status"}}
+	t := &report.Table{Caption: "Fitted values", Header: []string{"value", "fitted", "standard error", "status"}}
 	format := func(x float64, v extract.Value, digits int) string {
 		if v.Unit == "" {
 			return strconv.FormatFloat(x, 'g', digits, 64)
@@ -326,25 +326,25 @@ func writeFit(w io.Writer, in *fitInput, r *extract.Result) {
 				errText += fmt.Sprintf(" (%.2g %%)", 100*math.Abs(v.Error/v.Value))
 			}
 		}
-		t.add(valueLabels[v.Key], val, errText, v.Status.String())
+		t.Add(valueLabels[v.Key], val, errText, v.Status.String())
 	}
-	t.write(w)
+	t.WriteText(w)
 
 	if len(r.Correlations) > 0 {
-		c := &table{title: "Correlations of the fitted values", header: []string{"values", "coefficient"}}
+		c := &report.Table{Caption: "Correlations of the fitted values", Header: []string{"values", "coefficient"}}
 		for _, x := range r.Correlations {
 			if math.Abs(x.Coefficient) < 0.5 {
 				continue
 			}
-			c.add(valueLabels[x.A]+" with "+valueLabels[x.B], fmt.Sprintf("%+.3f", x.Coefficient))
+			c.Add(valueLabels[x.A]+" with "+valueLabels[x.B], fmt.Sprintf("%+.3f", x.Coefficient))
 		}
-		if len(c.rows) > 0 {
-			c.write(w)
+		if len(c.Rows) > 0 {
+			c.WriteText(w)
 			fmt.Fprintln(w, "  (pairs above 0.5 in size; --json lists all)")
 		}
 	}
 
-	res := &table{title: "Residuals, rms of ln(model/measured)", header: []string{"points", "count", "rms"}}
+	res := &report.Table{Caption: "Residuals, rms of ln(model/measured)", Header: []string{"points", "count", "rms"}}
 	for _, s := range []struct {
 		name string
 		n    int
@@ -352,10 +352,10 @@ func writeFit(w io.Writer, in *fitInput, r *extract.Result) {
 	}{{"forward I–V", len(r.Forward), r.Residuals.Forward}, {"breakdown", len(r.Breakdown), r.Residuals.Breakdown},
 		{"C–V", len(r.Capacitance), r.Residuals.Capacitance}} {
 		if s.n > 0 {
-			res.add(s.name, strconv.Itoa(s.n), fmt.Sprintf("%.3g %%", 100*s.rms))
+			res.Add(s.name, strconv.Itoa(s.n), fmt.Sprintf("%.3g %%", 100*s.rms))
 		}
 	}
-	res.write(w)
+	res.WriteText(w)
 
 	cautions := fitCautions(in, r)
 	if len(cautions) > 0 {

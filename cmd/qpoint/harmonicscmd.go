@@ -10,6 +10,7 @@ import (
 
 	"qpoint/ac"
 	"qpoint/bias/si"
+	"qpoint/plots/report"
 
 	"github.com/spf13/cobra"
 
@@ -176,7 +177,7 @@ func predictHarmonics(warn io.Writer, fl *waveformFlags, fundamentalHz float64, 
 // writePredictionComparison sets measured harmonics beside the predicted
 // ones, each relative to its own fundamental.
 func writePredictionComparison(w io.Writer, circuitPath string, r *measure.Result, p *ac.Steady) {
-	t := &table{title: "Measured beside predicted (" + circuitPath + ")", header: []string{"order", "measured", "predicted", "measured dBc", "predicted dBc", "difference"}}
+	t := &report.Table{Caption: "Measured beside predicted (" + circuitPath + ")", Header: []string{"order", "measured", "predicted", "measured dBc", "predicted dBc", "difference"}}
 	mf, pf := 0.0, p.Output[1].Amplitude
 	for _, h := range r.Harmonics {
 		if h.Order == 1 {
@@ -196,9 +197,9 @@ func writePredictionComparison(w io.Writer, circuitPath string, r *measure.Resul
 		if h.Order == 1 {
 			diff = fmt.Sprintf("%+.2f dB", 20*math.Log10(h.AmplitudeV/pa))
 		}
-		t.add(strconv.Itoa(h.Order), si.Format(h.AmplitudeV, "V", 4), si.Format(pa, "V", 4), waveDBc(md), waveDBc(pd), diff)
+		t.Add(strconv.Itoa(h.Order), si.Format(h.AmplitudeV, "V", 4), si.Format(pa, "V", 4), report.WaveDBc(md), report.WaveDBc(pd), diff)
 	}
-	t.write(w)
+	t.WriteText(w)
 	fmt.Fprintf(w, "  the fundamental's row compares absolute amplitudes; the others compare levels relative to each fundamental\n")
 }
 
@@ -242,23 +243,23 @@ func writeWaveformHarmonics(w io.Writer, path string, wf *measure.Waveform, r *m
 			u*float64(r.Samples-1), si.Format(1/r.SampleRateHz, "s", 3), u, si.Format(u*r.FundamentalHz, "Hz", 2))
 	}
 
-	t := &table{title: "Harmonics", header: []string{"order", "frequency", "amplitude", "dBc", "phase °"}}
+	t := &report.Table{Caption: "Harmonics", Header: []string{"order", "frequency", "amplitude", "dBc", "phase °"}}
 	absent := 0
 	for _, h := range r.Harmonics {
 		order := strconv.Itoa(h.Order)
 		if h.Order == 0 {
-			t.add("DC", si.Format(0, "Hz", 4), si.Format(h.AmplitudeV, "V", 5), "", "")
+			t.Add("DC", si.Format(0, "Hz", 4), si.Format(h.AmplitudeV, "V", 5), "", "")
 			continue
 		}
 		if !h.Present {
 			absent++
-			t.add(order, si.Format(h.FrequencyHz, "Hz", 6), "above fs/2", "", "")
+			t.Add(order, si.Format(h.FrequencyHz, "Hz", 6), "above fs/2", "", "")
 			continue
 		}
-		t.add(order, si.Format(h.FrequencyHz, "Hz", 6), si.Format(h.AmplitudeV, "V", 5),
+		t.Add(order, si.Format(h.FrequencyHz, "Hz", 6), si.Format(h.AmplitudeV, "V", 5),
 			waveformDB(h.DBc), strconv.FormatFloat(h.PhaseDeg, 'f', 2, 64))
 	}
-	t.write(w)
+	t.WriteText(w)
 	fmt.Fprintln(w)
 	last := len(r.Harmonics) - 1 - absent
 	if math.IsNaN(r.THDPercent) {

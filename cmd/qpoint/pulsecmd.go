@@ -439,31 +439,31 @@ func writePulseFigures(w io.Writer, s *pulseSetup, res *transient.PulseResult) {
 		return
 	}
 	for _, t := range pulseTables(s, res) {
-		t.write(w)
+		t.WriteText(w)
 	}
 }
 
 // pulseTables returns the figures of the last pulse, with each pulse's
 // when there are several.
-func pulseTables(s *pulseSetup, res *transient.PulseResult) []*table {
+func pulseTables(s *pulseSetup, res *transient.PulseResult) []*report.Table {
 	f := res.Figures
 	title := "Limiter figures"
 	if len(res.Pulses) > 1 {
 		title += fmt.Sprintf(" (pulse %d of %d)", f.Pulse+1, len(res.Pulses))
 	}
-	t := &table{title: title, header: []string{"quantity", "value", ""}}
+	t := &report.Table{Caption: title, Header: []string{"quantity", "value", ""}}
 	if res.Kind == transient.Detector {
-		t.title = strings.Replace(title, "Limiter", "Detector", 1)
-		t.add("video change at the end of the flat top", si.Format(f.Settled, "V", 4), "from the DC point's "+si.Format(res.Baseline, "V", 4))
+		t.Caption = strings.Replace(title, "Limiter", "Detector", 1)
+		t.Add("video change at the end of the flat top", si.Format(f.Settled, "V", 4), "from the DC point's "+si.Format(res.Baseline, "V", 4))
 		if !math.IsNaN(res.SteadyShift) {
-			t.add("steady-state DC shift", si.Format(res.SteadyShift, "V", 4), fmt.Sprintf("continuous carrier; the pulse reached %s", shareDB(f.Settled, res.SteadyShift)))
+			t.Add("steady-state DC shift", si.Format(res.SteadyShift, "V", 4), fmt.Sprintf("continuous carrier; the pulse reached %s", shareDB(f.Settled, res.SteadyShift)))
 		}
-		t.add("rise time, 10-90 %", timeOf(f.RiseTime), "of the change towards the steady state")
-		t.add("fall time, 90-10 %", timeOf(f.FallTime), "after the flat top")
-		return []*table{t}
+		t.Add("rise time, 10-90 %", timeOf(f.RiseTime), "of the change towards the steady state")
+		t.Add("fall time, 90-10 %", timeOf(f.FallTime), "after the flat top")
+		return []*report.Table{t}
 	}
 	spikeNote := fmt.Sprintf("%s after the pulse's start", timeOf(f.SpikeTime-f.Start))
-	t.add("spike leakage, peak", dbmOf(f.SpikePeak), spikeNote)
+	t.Add("spike leakage, peak", dbmOf(f.SpikePeak), spikeNote)
 	energy := si.Format(f.SpikeEnergy, "J", 3)
 	note := "above the flat leakage"
 	if f.SpikeEnergy == 0 {
@@ -472,20 +472,20 @@ func pulseTables(s *pulseSetup, res *transient.PulseResult) []*table {
 	if math.IsNaN(f.SpikeEnergy) {
 		energy, note = "—", ""
 	}
-	t.add("spike leakage, energy", energy, note)
-	t.add("flat leakage", dbmOf(f.Flat), fmt.Sprintf("over the end of the flat top; %s below the pulse", attenuation(res.LevelDBm(s.nw), f.Flat)))
+	t.Add("spike leakage, energy", energy, note)
+	t.Add("flat leakage", dbmOf(f.Flat), fmt.Sprintf("over the end of the flat top; %s below the pulse", attenuation(res.LevelDBm(s.nw), f.Flat)))
 	if res.Settings.Pulse.ProbeEMF != 0 {
-		t.add("recovery to within 1 dB", recoveryText(f.Recovery1dB, f.Recovery1dBBound), "of the probe's loss before the pulse")
-		t.add("recovery to within 3 dB", recoveryText(f.Recovery3dB, f.Recovery3dBBound), "")
-		t.add("probe loss before the pulse", fmt.Sprintf("%.3f dB", res.LossBefore), fmt.Sprintf("small-signal %.3f dB", res.SmallSignalLoss))
+		t.Add("recovery to within 1 dB", recoveryText(f.Recovery1dB, f.Recovery1dBBound), "of the probe's loss before the pulse")
+		t.Add("recovery to within 3 dB", recoveryText(f.Recovery3dB, f.Recovery3dBBound), "")
+		t.Add("probe loss before the pulse", fmt.Sprintf("%.3f dB", res.LossBefore), fmt.Sprintf("small-signal %.3f dB", res.SmallSignalLoss))
 	} else {
-		t.add("recovery", "—", "no probe (--probe none)")
+		t.Add("recovery", "—", "no probe (--probe none)")
 	}
-	tables := []*table{t}
+	tables := []*report.Table{t}
 	if len(res.Pulses) > 1 {
-		pt := &table{title: "Each pulse", header: []string{"pulse", "start", "spike peak", "spike energy", "flat leakage", "recovery 1 dB", "recovery 3 dB"}}
+		pt := &report.Table{Caption: "Each pulse", Header: []string{"pulse", "start", "spike peak", "spike energy", "flat leakage", "recovery 1 dB", "recovery 3 dB"}}
 		for _, q := range res.Pulses {
-			pt.add(strconv.Itoa(q.Pulse+1), si.Format(q.Start, "s", 4), dbmOf(q.SpikePeak), si.Format(q.SpikeEnergy, "J", 3), dbmOf(q.Flat),
+			pt.Add(strconv.Itoa(q.Pulse+1), si.Format(q.Start, "s", 4), dbmOf(q.SpikePeak), si.Format(q.SpikeEnergy, "J", 3), dbmOf(q.Flat),
 				recoveryText(q.Recovery1dB, q.Recovery1dBBound), recoveryText(q.Recovery3dB, q.Recovery3dBBound))
 		}
 		tables = append(tables, pt)
@@ -524,18 +524,18 @@ func recoveryText(t float64, bound bool) string {
 
 // writePulseStress prints each diode's extremes.
 func writePulseStress(w io.Writer, res *transient.PulseResult) {
-	stressTableOf(res).write(w)
+	stressTableOf(res).WriteText(w)
 }
 
 // stressTableOf returns each diode's extremes under the pulse.
-func stressTableOf(res *transient.PulseResult) *table {
-	t := &table{title: "Diodes under the pulse", header: []string{"diode", "peak junction current", "peak reverse voltage", "mean dissipation over the pulse", "past the knee"}}
+func stressTableOf(res *transient.PulseResult) *report.Table {
+	t := &report.Table{Caption: "Diodes under the pulse", Header: []string{"diode", "peak junction current", "peak reverse voltage", "mean dissipation over the pulse", "past the knee"}}
 	for _, d := range res.Diodes {
 		knee := "—"
 		if d.PastKnee > 0 {
 			knee = si.Format(d.PastKnee, "s", 3)
 		}
-		t.add(d.Name, si.Format(d.PeakCurrent, "A", 3), si.Format(d.PeakReverseVoltage, "V", 3), si.Format(d.PulsePower, "W", 3), knee)
+		t.Add(d.Name, si.Format(d.PeakCurrent, "A", 3), si.Format(d.PeakReverseVoltage, "V", 3), si.Format(d.PulsePower, "W", 3), knee)
 	}
 	return t
 }
@@ -662,12 +662,12 @@ func writePulseSweep(w io.Writer, s *pulseSetup, pts []transient.LevelPoint) {
 		}
 	}
 	header = append(header, "steps", "cautions")
-	t := &table{title: title, header: header}
+	t := &report.Table{Caption: title, Header: header}
 	for _, pt := range pts {
 		r := pt.Result
 		row := []string{fmt.Sprintf("%.1f dBm", pt.LevelDBm)}
 		if r == nil {
-			t.add(append(row, pt.Err.Error())...)
+			t.Add(append(row, pt.Err.Error())...)
 			continue
 		}
 		f := r.Figures
@@ -691,9 +691,9 @@ func writePulseSweep(w io.Writer, s *pulseSetup, pts []transient.LevelPoint) {
 			names = append(names, "stopped")
 		}
 		row = append(row, strconv.Itoa(r.Run.Stats.Accepted), strings.Join(names, ", "))
-		t.add(row...)
+		t.Add(row...)
 	}
-	t.write(w)
+	t.WriteText(w)
 	fmt.Fprintf(w, "  cautions name their kinds; run one level (--level) to read them in full\n\n")
 }
 
@@ -721,10 +721,10 @@ func pulseSection(c *circuit.Circuit, temperature string, p *bias.Point) (report
 	}
 	if len(res.Pulses) > 0 {
 		for _, t := range pulseTables(s, res) {
-			sec.Blocks = append(sec.Blocks, report.Block{Table: t.report()})
+			sec.Blocks = append(sec.Blocks, report.Block{Table: t})
 		}
 	}
-	sec.Blocks = append(sec.Blocks, report.Block{Table: stressTableOf(res).report()})
+	sec.Blocks = append(sec.Blocks, report.Block{Table: stressTableOf(res)})
 	for _, f := range plots.PulseFigures(res, s.nw) {
 		fig, err := svgOf(f)
 		if err != nil {

@@ -98,35 +98,35 @@ func buildReport(c *circuit.Circuit, temperature string) (*report.Document, erro
 	doc.Cards = append(doc.Cards, biasCards(p)...)
 
 	// Circuit summary.
-	parts := &table{title: "Parts", header: []string{"name", "type", "terminals", "value / model"}}
+	parts := &report.Table{Caption: "Parts", Header: []string{"name", "type", "terminals", "value / model"}}
 	for _, pt := range c.Parts {
 		val := pt.Model
 		if pt.Kind != circuit.Diode {
 			val = si.Format(pt.Value, map[circuit.Kind]string{circuit.Resistor: "Ω", circuit.Capacitor: "F", circuit.Inductor: "H", circuit.VoltageSource: "V", circuit.CurrentSource: "A"}[pt.Kind], 4)
 		}
-		parts.add(pt.Name, strings.ReplaceAll(pt.Kind.String(), "_", " "), pt.Nodes[0]+" → "+pt.Nodes[1], val)
+		parts.Add(pt.Name, strings.ReplaceAll(pt.Kind.String(), "_", " "), pt.Nodes[0]+" → "+pt.Nodes[1], val)
 	}
-	models := &table{title: "Diode models", header: []string{"model", "I_S", "n", "R_S", "C_j0", "V_bi", "m", "τ_T", "breakdown"}}
+	models := &report.Table{Caption: "Diode models", Header: []string{"model", "I_S", "n", "R_S", "C_j0", "V_bi", "m", "τ_T", "breakdown"}}
 	for _, name := range c.ModelOrder {
 		m := c.Models[name].Params
 		knee := "none"
 		if m.BreakdownVoltage > 0 {
 			knee = si.Format(m.BreakdownVoltage, "V", 3) + " at " + si.Format(m.BreakdownCurrent, "A", 3)
 		}
-		models.add(name, si.Format(m.SaturationCurrent, "A", 3), fmt.Sprintf("%.3g", m.Ideality), si.Format(m.SeriesResistance, "Ω", 3),
+		models.Add(name, si.Format(m.SaturationCurrent, "A", 3), fmt.Sprintf("%.3g", m.Ideality), si.Format(m.SeriesResistance, "Ω", 3),
 			si.Format(m.ZeroBiasCapacitance, "F", 3), si.Format(m.BuiltInPotential, "V", 3), fmt.Sprintf("%.3g", m.Grading), si.Format(m.TransitTime, "s", 3), knee)
 	}
-	ports := &table{title: "Ports", header: []string{"port", "node", "return", "impedance", "coupling"}}
+	ports := &report.Table{Caption: "Ports", Header: []string{"port", "node", "return", "impedance", "coupling"}}
 	for _, pt := range c.Ports {
 		coupling := "DC"
 		if pt.ACCoupled {
 			coupling = "AC (DC-blocked)"
 		}
-		ports.add(pt.Name, pt.Node, pt.Return, si.Format(pt.Impedance, "Ω", 4), coupling)
+		ports.Add(pt.Name, pt.Node, pt.Return, si.Format(pt.Impedance, "Ω", 4), coupling)
 	}
 	sec := report.Section{ID: "circuit", Title: "Circuit", Intro: fmt.Sprintf("%d parts, %d diode models, %d ports.", len(c.Parts), len(c.Models), len(c.Ports))}
-	for _, t := range []*table{parts, models, ports} {
-		sec.Blocks = append(sec.Blocks, report.Block{Table: t.report()})
+	for _, t := range []*report.Table{parts, models, ports} {
+		sec.Blocks = append(sec.Blocks, report.Block{Table: t})
 	}
 	doc.Sections = append(doc.Sections, sec)
 
@@ -142,14 +142,14 @@ func buildReport(c *circuit.Circuit, temperature string) (*report.Document, erro
 	if err != nil {
 		return nil, analysisError(err)
 	}
-	ssm := &table{title: "Small-signal model at the Q point", header: []string{"diode", "g_d", "r_d", "R_S", "C_j", "C_d", "g2", "g3", "c2", "c3"}}
+	ssm := &report.Table{Caption: "Small-signal model at the Q point", Header: []string{"diode", "g_d", "r_d", "R_S", "C_j", "C_d", "g2", "g3", "c2", "c3"}}
 	for _, d := range nw.Diodes {
-		ssm.add(d.Name, si.Format(d.G1, "S", 4), si.Format(1/d.G1, "Ω", 4), si.Format(d.SeriesResistance, "Ω", 3), si.Format(d.JunctionCapacitance, "F", 4),
+		ssm.Add(d.Name, si.Format(d.G1, "S", 4), si.Format(1/d.G1, "Ω", 4), si.Format(d.SeriesResistance, "Ω", 3), si.Format(d.JunctionCapacitance, "F", 4),
 			si.Format(d.DiffusionCapacitance, "F", 4), si.Format(d.G2, "A/V²", 3), si.Format(d.G3, "A/V³", 3), si.Format(d.C2, "F/V", 3), si.Format(d.C3, "F/V²", 3))
 	}
 	doc.Sections = append(doc.Sections, report.Section{ID: "model", Title: "Small-signal model",
 		Intro:  "Each diode is its junction conductance g_d in parallel with C_j + C_d, behind R_S. g2, g3, c2, c3 are the Taylor coefficients of junction current and charge that set its distortion.",
-		Blocks: []report.Block{{Table: ssm.report()}}})
+		Blocks: []report.Block{{Table: ssm}}})
 
 	if len(c.Ports) == 0 {
 		doc.Sections = append(doc.Sections, report.Section{ID: "signal", Title: "Signal analyses", Intro: "The circuit has no ports, so no response, distortion or study is shown."})
@@ -233,12 +233,12 @@ func distortionSection(s *distortionSetup) (report.Section, []report.Card, error
 	if err != nil {
 		return sec, nil, analysisError(err)
 	}
-	t, notes := estimateTable(est)
-	sec.Blocks = append(sec.Blocks, report.Block{Table: t.report()})
+	t, notes := report.EstimateTable(est)
+	sec.Blocks = append(sec.Blocks, report.Block{Table: t})
 	for _, n := range notes {
 		sec.Blocks = append(sec.Blocks, report.Block{Note: n})
 	}
-	sec.Blocks = append(sec.Blocks, report.Block{Table: contributionTable(est).report()})
+	sec.Blocks = append(sec.Blocks, report.Block{Table: report.ContributionTable(est)})
 	one := s.drive
 	one.SecondToneHz = 0
 	oneEst := est.OneTone()
@@ -248,8 +248,8 @@ func distortionSection(s *distortionSetup) (report.Section, []report.Card, error
 		sec.Blocks = append(sec.Blocks, report.Block{Note: "The waveform solve did not converge at this level: " + err.Error()})
 		return sec, cards, nil
 	}
-	wt, note := waveformTable(st)
-	sec.Blocks = append(sec.Blocks, report.Block{Table: wt.report()}, report.Block{Note: note}, report.Block{Table: stressTable(st).report()})
+	wt, note := report.WaveformTable(st)
+	sec.Blocks = append(sec.Blocks, report.Block{Table: wt}, report.Block{Note: note}, report.Block{Table: report.StressTable(st)})
 	for _, c := range st.Cautions() {
 		cards = append(cards, report.Card{Label: "caution", Value: "overstress", Detail: c})
 	}
@@ -258,8 +258,8 @@ func distortionSection(s *distortionSetup) (report.Section, []report.Card, error
 		limit = nil
 		sec.Blocks = append(sec.Blocks, report.Block{Note: "The validity limit could not be searched: " + lerr.Error()})
 	}
-	ct, cnote := comparisonTable(ac.Compare(oneEst, st), limit)
-	sec.Blocks = append(sec.Blocks, report.Block{Table: ct.report()})
+	ct, cnote := report.ComparisonTable(ac.Compare(oneEst, st), limit)
+	sec.Blocks = append(sec.Blocks, report.Block{Table: ct})
 	if cnote != "" {
 		sec.Blocks = append(sec.Blocks, report.Block{Note: cnote})
 	}

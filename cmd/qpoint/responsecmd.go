@@ -324,7 +324,7 @@ type responseCSV struct {
 	row []string
 }
 
-// newResponseCSV writes the header: the frequency, each S-parameter's
+// newResponseCSV writes the Header: the frequency, each S-parameter's
 // parts, each port's input impedance, each probe's voltage and the group
 // delay, with units.
 func newResponseCSV(w io.Writer, ports []ac.PortInfo, probes []string) (*responseCSV, error) {

@@ -4,15 +4,14 @@ import (
 	"fmt"
 	"io"
 	"math"
-	"strconv"
 	"strings"
 
 	"github.com/spf13/pflag"
 
 	"qpoint/ac"
 	"qpoint/ac/balance"
-	"qpoint/bias/si"
 	"qpoint/plots"
+	"qpoint/plots/report"
 )
 
 // steadyFlags choose how distortion solves the steady state.
@@ -68,27 +67,6 @@ func (fl *steadyFlags) steadyMethods(s *distortionSetup) (search, wave ac.Steady
 	return m, w, nil
 }
 
-// methodLine says which method found a steady state and, for the
-// automatic choice, why.
-func methodLine(st *ac.Steady) string {
-	line := st.Method
-	if r, ok := st.State.(*balance.Result); ok {
-		if r.Drive.SecondToneHz != 0 {
-			line += fmt.Sprintf(" (%s truncation of order %d, %d products)", truncationName(r), r.Stats.Harmonics, r.Stats.Products)
-		} else {
-			line += fmt.Sprintf(" (%d harmonics)", r.Stats.Harmonics)
-		}
-	} else if st.Method == ac.MethodShooting {
-		line += fmt.Sprintf(" (%d and %d samples per period)", st.Samples, 2*st.Samples+1)
-	}
-	if st.Choice != "" {
-		line += "; chosen: " + st.Choice
-	}
-	return line
-}
-
-func truncationName(r *balance.Result) string { return r.Truncation().String() }
-
 // productJSON is one mixing product of the two-tone waveform.
 type productJSON struct {
 	Orders    [2]int `json:"orders"`
@@ -108,49 +86,9 @@ func (j *waveformJSON) addTwoTone(st *ac.Steady) {
 	}
 }
 
-// twoToneTable lists the two-tone waveform's products, strongest first
-// within each order, and sets IM2 and IM3 beside the Volterra estimate.
-func twoToneTable(st *ac.Steady, est *ac.Estimate) *table {
-	t := &table{title: "Two-tone waveform (" + methodLine(st) + ")",
-		header: []string{"product", "frequency", "amplitude", "relative to f1", "phase", "estimate"}}
-	f1, _ := st.Product(1, 0)
-	for _, p := range st.Products {
-		if p.Orders == [2]int{0, 0} {
-			v := si.Format(p.Amplitude, "V", 4)
-			if math.Abs(p.Amplitude) <= st.NoiseFloor {
-				v = "below floor"
-			}
-			t.add("DC shift", "0 Hz", v, "", "", "")
-			continue
-		}
-		rel := waveDBc(20 * math.Log10(p.Amplitude/f1.Amplitude))
-		if p.Amplitude <= st.NoiseFloor {
-			rel = "below floor"
-		}
-		estimate := ""
-		switch p.Orders {
-		case [2]int{2, -1}:
-			estimate = dbc(est.IM3dBc())
-			if est.Balanced(ac.IM3) {
-				estimate = "cancelled"
-			}
-		case [2]int{-1, 1}, [2]int{1, -1}:
-			estimate = dbc(est.IM2dBc())
-			if est.Balanced(ac.IM2Diff) {
-				estimate = "cancelled"
-			}
-		case [2]int{1, 0}:
-			estimate = si.Format(math.Hypot(real(est.Linear), imag(est.Linear)), "V", 4)
-		}
-		t.add(balance.ProductName(p.Orders[0], p.Orders[1]), si.Format(p.FrequencyHz, "Hz", 6), si.Format(p.Amplitude, "V", 4),
-			rel, strconv.FormatFloat(p.PhaseDeg, 'f', 1, 64)+"°", estimate)
-	}
-	return t
-}
-
 func writeTwoTone(w io.Writer, st *ac.Steady, est *ac.Estimate) {
-	twoToneTable(st, est).write(w)
-	if note := truncationNote(st); note != "" {
+	report.TwoToneTable(st, est).WriteText(w)
+	if note := report.TruncationNote(st); note != "" {
 		fmt.Fprintf(w, "  %s\n", note)
 	}
 	var parts []string
@@ -171,19 +109,8 @@ func writeTwoTone(w io.Writer, st *ac.Steady, est *ac.Estimate) {
 	fmt.Fprintf(w, "  waveform against estimate: %s\n", strings.Join(parts, ", "))
 }
 
-// twoToneSweepTable lists a two-tone level sweep and the intercept read
-// from it as a bench reads it, beside the estimate's.
-func twoToneSweepTable(pts []ac.LevelPoint) *table {
-	t := &table{title: "Two-tone level sweep (waveform)", header: []string{"input per tone", "fundamental", "IM2", "IM3"}}
-	for _, p := range pts {
-		f1, _ := p.Steady.Product(1, 0)
-		t.add(fmt.Sprintf("%.1f dBm", p.LevelDBm), si.Format(f1.Amplitude, "V", 4), waveDBc(p.Steady.IM2dBc()), waveDBc(p.Steady.IM3dBc()))
-	}
-	return t
-}
-
 func writeTwoToneSweep(w io.Writer, pts []ac.LevelPoint, ip *ac.Intercept, ipErr error, est *ac.Estimate) {
-	twoToneSweepTable(pts).write(w)
+	report.TwoToneSweepTable(pts).WriteText(w)
 	if ipErr != nil {
 		fmt.Fprintf(w, "  no measured intercept: %v\n", ipErr)
 		return
@@ -219,14 +146,6 @@ func interceptJSONOf(ip *ac.Intercept) *interceptJSON {
 	return j
 }
 
-// residualName says what a steady state's residual measures.
-func residualName(st *ac.Steady) string {
-	if st.Method == ac.MethodHarmonicBalance {
-		return "KCL"
-	}
-	return "periodicity"
-}
-
 // twoToneLevelSweep solves the two-tone waveform at each level, each
 // from the last, and reads the intercept from it as a bench would.
 func twoToneLevelSweep(cmd interface{ ErrOrStderr() io.Writer }, s *distortionSetup, settings ac.SteadySettings,
@@ -251,23 +170,6 @@ func twoToneLevelSweep(cmd interface{ ErrOrStderr() io.Writer }, s *distortionSe
 		doc.MeasuredIntercept = interceptJSONOf(ip)
 	}
 	return pts, ip, ipErr
-}
-
-// truncationNote says, for a harmonic-balance solve that reached its
-// largest truncation before its top products fell below the tolerance,
-// how much the reported products still moved in the last growth: a bound
-// on the truncation's error in them. Empty otherwise.
-func truncationNote(st *ac.Steady) string {
-	r, ok := st.State.(*balance.Result)
-	if !ok || r.Stats.Unsettled == 0 {
-		return ""
-	}
-	what := fmt.Sprintf("%d harmonics", r.Stats.Harmonics)
-	if r.Drive.SecondToneHz != 0 {
-		what = fmt.Sprintf("order %d", r.Stats.Harmonics)
-	}
-	return fmt.Sprintf("harmonic balance stopped at %s with the spectrum still above 1e-10 of the largest signal: the reported values moved by up to %.2g %% (%.3f dB) in the last growth",
-		what, 100*r.Stats.Unsettled, 20*math.Log10(1+r.Stats.Unsettled))
 }
 
 // twoToneFigures is the two-tone spectrum, when there is a second tone.

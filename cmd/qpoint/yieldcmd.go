@@ -376,10 +376,10 @@ func writeYield(w io.Writer, r *yield.Result) {
 		fmt.Fprintf(w, "\nYield %s: %d of %d runs meet every target (95 %% interval %s to %s, Wilson score)\n",
 			percentOf(r.Yield), r.Passed, len(r.Runs), percentOf(r.Interval[0]), percentOf(r.Interval[1]))
 	}
-	yieldTargetTable(r).write(w)
-	yieldShareTable(r).write(w)
+	yieldTargetTable(r).WriteText(w)
+	yieldShareTable(r).WriteText(w)
 	if len(r.Corners) > 0 {
-		yieldCornerTable(r).write(w)
+		yieldCornerTable(r).WriteText(w)
 	}
 	if len(r.Cautions) > 0 {
 		fmt.Fprintln(w)
@@ -390,9 +390,9 @@ func writeYield(w io.Writer, r *yield.Result) {
 	fmt.Fprintln(w)
 }
 
-func yieldTargetTable(r *yield.Result) *table {
-	t := &table{title: "Targets (each run's worst reading over the temperatures)",
-		header: []string{"target", "nominal", "mean", "std dev", "first-order std dev", "0.1 %", "99.9 %", "runs meeting it"}}
+func yieldTargetTable(r *yield.Result) *report.Table {
+	t := &report.Table{Caption: "Targets (each run's worst reading over the temperatures)",
+		Header: []string{"target", "nominal", "mean", "std dev", "first-order std dev", "0.1 %", "99.9 %", "runs meeting it"}}
 	lo, hi := slices.Index(yield.QuantileLevels, 0.001), slices.Index(yield.QuantileLevels, 0.999)
 	for _, ts := range r.Targets {
 		u := ts.Target.Measure.Unit
@@ -400,7 +400,7 @@ func yieldTargetTable(r *yield.Result) *table {
 		if ts.Target.Bound == yield.Observe {
 			pass = "(no limit)"
 		}
-		t.add(ts.Target.Text, report.FormatMeasure(ts.Nominal, u), report.FormatMeasure(ts.Mean, u), formatSpread(ts.Std, u),
+		t.Add(ts.Target.Text, report.FormatMeasure(ts.Nominal, u), report.FormatMeasure(ts.Mean, u), formatSpread(ts.Std, u),
 			formatSpread(ts.LinearStd, u), report.FormatMeasure(ts.Quantiles[lo], u), report.FormatMeasure(ts.Quantiles[hi], u), pass)
 	}
 	return t
@@ -421,11 +421,11 @@ func formatSpread(v float64, unit string) string {
 
 // yieldShareTable ranks the values by their largest share of any
 // target's variance.
-func yieldShareTable(r *yield.Result) *table {
-	t := &table{title: "Which value to tighten: share of each target's variance (first order, central differences)",
-		header: []string{"value", "spread"}}
+func yieldShareTable(r *yield.Result) *report.Table {
+	t := &report.Table{Caption: "Which value to tighten: share of each target's variance (first order, central differences)",
+		Header: []string{"value", "spread"}}
 	for _, ts := range r.Targets {
-		t.header = append(t.header, ts.Target.Text)
+		t.Header = append(t.Header, ts.Target.Text)
 	}
 	c := r.Circuit
 	nv := len(c.Tolerances)
@@ -457,14 +457,14 @@ func yieldShareTable(r *yield.Result) *table {
 		for ti := range r.Targets {
 			row = append(row, percentOf(r.Sensitivities[ti*nv+k].Share))
 		}
-		t.add(row...)
+		t.Add(row...)
 	}
 	for gi, g := range c.ToleranceGroups {
 		row := []string{"group " + g.Name, fmt.Sprintf("ρ = %g", g.Correlation)}
 		for ti := range r.Targets {
 			row = append(row, percentOf(r.Groups[ti*len(c.ToleranceGroups)+gi].Share))
 		}
-		t.add(row...)
+		t.Add(row...)
 	}
 	return t
 }
@@ -480,9 +480,9 @@ func spreadText(t *circuit.Tolerance) string {
 	return "σ(ln) " + t.Text
 }
 
-func yieldCornerTable(r *yield.Result) *table {
-	t := &table{title: "Worst-case corners (each value at its band's end or 3 σ, the way that worsens the target)",
-		header: []string{"target", "limit", "nominal", "corner", "worst run", "corner meets it"}}
+func yieldCornerTable(r *yield.Result) *report.Table {
+	t := &report.Table{Caption: "Worst-case corners (each value at its band's end or 3 σ, the way that worsens the target)",
+		Header: []string{"target", "limit", "nominal", "corner", "worst run", "corner meets it"}}
 	for _, cn := range r.Corners {
 		ts := r.Targets[cn.Target]
 		u := ts.Target.Measure.Unit
@@ -497,7 +497,7 @@ func yieldCornerTable(r *yield.Result) *table {
 		if cn.Err != nil {
 			verdict = "not solved"
 		}
-		t.add(ts.Target.Text, report.FormatMeasure(ts.Target.Limit, u), report.FormatMeasure(ts.Nominal, u), report.FormatMeasure(cn.Reading, u), report.FormatMeasure(worst, u), verdict)
+		t.Add(ts.Target.Text, report.FormatMeasure(ts.Target.Limit, u), report.FormatMeasure(ts.Nominal, u), report.FormatMeasure(cn.Reading, u), report.FormatMeasure(worst, u), verdict)
 	}
 	return t
 }
@@ -594,11 +594,11 @@ func yieldSection(c *circuit.Circuit, temperature string) (report.Section, []rep
 	} else {
 		sec.Intro += " The file gives no yield targets (analysis.yield), so this shows how the main figures spread."
 	}
-	for _, t := range []*table{yieldTargetTable(r), yieldShareTable(r)} {
-		sec.Blocks = append(sec.Blocks, report.Block{Table: t.report()})
+	for _, t := range []*report.Table{yieldTargetTable(r), yieldShareTable(r)} {
+		sec.Blocks = append(sec.Blocks, report.Block{Table: t})
 	}
 	if len(r.Corners) > 0 {
-		sec.Blocks = append(sec.Blocks, report.Block{Table: yieldCornerTable(r).report()})
+		sec.Blocks = append(sec.Blocks, report.Block{Table: yieldCornerTable(r)})
 	}
 	for _, f := range yieldFigures(r) {
 		fig, err := svgOf(f)
