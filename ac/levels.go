@@ -110,6 +110,10 @@ type Validity struct {
 	Err          error // SolveFailed: why the waveform solve failed
 	FailedDBm    float64
 	Steps        int // steady-state solves used
+	// Held is the steady state at LevelDBm where the estimates were seen
+	// to hold (LimitFound, HeldThroughout), to start a later search at a
+	// nearby bias from (ValidityNear); nil otherwise.
+	Held *Steady
 }
 
 // Found reports whether a limit was bracketed and bisected.
@@ -181,20 +185,12 @@ func ValidityLimit(nw *smallsignal.Network, d Drive, startDBm, maxDBm, tolDB flo
 	// check reports whether the estimates hold at level l; a failed
 	// solve sets solveErr.
 	check := func(l float64, start *Steady) (*Steady, bool, float64, string, error) {
-		d.EMF = DBmToEMF(l, z0)
-		e, err := Volterra(nw, Drive{Input: d.Input, Output: d.Output, FrequencyHz: d.FrequencyHz, EMF: d.EMF})
-		if err != nil {
-			return nil, false, 0, "", err
-		}
-		s.Start = start
-		st, err := SteadyState(nw, d, s)
 		v.Steps++
-		if err != nil {
-			solveErr = fmt.Errorf("at %.1f dBm: %w", l, err)
-			return nil, false, 0, "", nil
+		st, ok, w, name, serr, err := validityCheck(nw, d, z0, l, tolDB, start, s)
+		if serr != nil {
+			solveErr = serr
 		}
-		w, name := worst(Compare(e, st))
-		return st, w <= tolDB, w, name, nil
+		return st, ok, w, name, err
 	}
 	failed := func(l float64) (*Validity, error) {
 		v.Outcome, v.Err, v.FailedDBm = SolveFailed, solveErr, l
@@ -255,7 +251,7 @@ func ValidityLimit(nw *smallsignal.Network, d Drive, startDBm, maxDBm, tolDB flo
 		}
 	}
 	if math.IsNaN(bad) {
-		v.Outcome, v.LevelDBm = HeldThroughout, good
+		v.Outcome, v.LevelDBm, v.Held = HeldThroughout, good, prev
 		return v, nil
 	}
 	for bad-good > 0.05 {
@@ -274,8 +270,27 @@ func ValidityLimit(nw *smallsignal.Network, d Drive, startDBm, maxDBm, tolDB flo
 			bad = mid
 		}
 	}
-	v.Outcome, v.LevelDBm = LimitFound, good
+	v.Outcome, v.LevelDBm, v.Held = LimitFound, good, prev
 	return v, nil
+}
+
+// validityCheck reports whether the estimates hold at level l within
+// tolDB: the Volterra estimate at l against the steady state solved from
+// start, with the largest difference and its product. A failed steady
+// state is solveErr; err is for a drive the estimate refuses.
+func validityCheck(nw *smallsignal.Network, d Drive, z0, l, tolDB float64, start *Steady, s SteadySettings) (st *Steady, ok bool, w float64, name string, solveErr, err error) {
+	d.EMF = DBmToEMF(l, z0)
+	e, err := Volterra(nw, Drive{Input: d.Input, Output: d.Output, FrequencyHz: d.FrequencyHz, EMF: d.EMF})
+	if err != nil {
+		return nil, false, 0, "", nil, err
+	}
+	s.Start = start
+	st, err = SteadyState(nw, d, s)
+	if err != nil {
+		return nil, false, 0, "", fmt.Errorf("at %.1f dBm: %w", l, err), nil
+	}
+	w, name = worst(Compare(e, st))
+	return st, w <= tolDB, w, name, nil, nil
 }
 
 // Compression returns the input level (dBm) at which the fundamental
