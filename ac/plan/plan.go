@@ -3,6 +3,7 @@ package plan
 import (
 	"errors"
 	"fmt"
+	"math"
 	"strings"
 
 	"qpoint/ac"
@@ -193,4 +194,17 @@ func DesignFrequency(c *circuit.Circuit) float64 {
 		return d.FrequencyHz
 	}
 	return 0
+}
+
+// SignalFrequency is the frequency an analysis that needs one takes when
+// the request names none: the file's distortion frequency, else the
+// geometric middle of its response range, else 1 GHz.
+func SignalFrequency(c *circuit.Circuit) float64 {
+	switch {
+	case c.Analysis.Distortion.Set:
+		return c.Analysis.Distortion.FrequencyHz
+	case c.Analysis.Response.Set:
+		return math.Sqrt(c.Analysis.Response.FromHz * c.Analysis.Response.ToHz)
+	}
+	return 1e9
 }

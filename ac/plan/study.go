@@ -1,7 +1,6 @@
 package plan
 
 import (
-	"math"
 	"slices"
 	"strings"
 
@@ -110,14 +109,7 @@ func ResolveStudy(c *circuit.Circuit, r StudyRequest) (*Study, error) {
 		}
 	}
 	if freqs == nil {
-		switch {
-		case c.Analysis.Distortion.Set:
-			freqs = []float64{c.Analysis.Distortion.FrequencyHz}
-		case c.Analysis.Response.Set:
-			freqs = []float64{math.Sqrt(c.Analysis.Response.FromHz * c.Analysis.Response.ToHz)}
-		default:
-			freqs = []float64{1e9}
-		}
+		freqs = []float64{SignalFrequency(c)}
 	}
 
 	if r.Second != nil {

@@ -1,0 +1,195 @@
+package main
+
+import (
+	"context"
+	"fmt"
+	"io"
+	"net"
+	"net/http"
+	"os"
+	"os/exec"
+	"path/filepath"
+	"runtime"
+	"strconv"
+	"strings"
+	"time"
+
+	"github.com/spf13/cobra"
+
+	"qpoint/ac/plan"
+	"qpoint/bias/circuit"
+	"qpoint/plots/explore"
+	"qpoint/plots/report"
+)
+
+// exploreOptions are the explore command's flags.
+type exploreOptions struct {
+	file, listen          string
+	circuitOut, reportOut string
+	open                  bool
+	sets                  []string
+}
+
+func newExploreCmd() *cobra.Command {
+	var o exploreOptions
+	cmd := &cobra.Command{
+		Use:   "explore FILE",
+		Short: "Vary values in a browser and watch the Q point, match and distortion move",
+		Long: `explore serves a page on this computer only (a loopback address) with a
+slider and a typed box for every source and part value, each diode-model
+key, the temperature and the drive's level and frequency. Every move
+redraws the diode Q points, each diode's I–V curve with its load line,
+the transmission and return loss over the file's band, the Smith chart
+with the drive's frequency marked, the Volterra estimate of the harmonics
+(and intermodulation, with a second tone) with the small-signal validity
+limit, and a detector's sensitivity. The full nonlinear waveform check
+runs when asked, with its progress shown.
+
+Two buttons keep what you found: one writes the values as a circuit file
+beside the original (FILE's name with .explored.yaml; never the original
+itself), the other the HTML report at those values (.explored.html).
+--circuit-out and --report-out name other files. The page fetches
+nothing from the network; the server reads no file but FILE and writes
+none but those two.
+
+The command runs until interrupted (Ctrl-C).`,
+		Example: `  qpoint explore testdata/demo/detector.yaml
+  qpoint explore mixer.yaml --listen 127.0.0.1:8470 --open
+  qpoint explore detector.yaml --set Rbias.value=100k --circuit-out detector-100k.yaml`,
+		Args: exactFile,
+		RunE: func(cmd *cobra.Command, args []string) error {
+			o.file = args[0]
+			return runExplore(context.Background(), cmd.OutOrStdout(), cmd.ErrOrStderr(), o, nil)
+		},
+	}
+	cmd.Flags().StringVar(&o.listen, "listen", "", "loopback address and port to serve on, e.g. 127.0.0.1:8470 (default: 127.0.0.1 and a free port)")
+	cmd.Flags().BoolVar(&o.open, "open", false, "start this computer's browser on the page")
+	cmd.Flags().StringVar(&o.circuitOut, "circuit-out", "", "circuit file the save button writes (default: FILE with .explored.yaml)")
+	cmd.Flags().StringVar(&o.reportOut, "report-out", "", "HTML file the report button writes (default: FILE with .explored.html)")
+	addSetFlag(cmd, &o.sets)
+	return cmd
+}
+
+// runExplore serves the explorer for o.file until ctx is done. ready,
+// when not nil, is called with the page's URL once the server listens.
+func runExplore(ctx context.Context, out, errw io.Writer, o exploreOptions, ready func(url string)) error {
+	if _, err := loadCircuit(errw, o.file, o.sets, ""); err != nil {
+		return err
+	}
+	src, err := os.ReadFile(o.file)
+	if err != nil {
+		return inputError(err)
+	}
+	s, err := explore.NewSession(o.file, src, o.sets)
+	if err != nil {
+		if plan.IsRequest(err) {
+			return planError(err)
+		}
+		return inputError(err)
+	}
+	stem := strings.TrimSuffix(o.file, filepath.Ext(o.file))
+	if o.circuitOut == "" {
+		o.circuitOut = stem + ".explored.yaml"
+	}
+	if o.reportOut == "" {
+		o.reportOut = stem + ".explored.html"
+	}
+	if err := checkOutputsEarly("", o.circuitOut, o.reportOut); err != nil {
+		return err
+	}
+	addr, err := loopbackAddress(o.listen)
+	if err != nil {
+		return err
+	}
+	ln, err := net.Listen("tcp", addr)
+	if err != nil {
+		return inputError(fmt.Errorf("flag --listen: %w", err))
+	}
+	defer ln.Close()
+	bound := ln.Addr().String()
+	_, port, _ := net.SplitHostPort(bound)
+	url := "http://" + bound + "/"
+	h := explore.Handler(s, explore.Settings{
+		Hosts:       []string{bound, "localhost:" + port},
+		CircuitPath: o.circuitOut,
+		SaveCircuit: func(data []byte) error {
+			return writeFileAtomic(o.circuitOut, func(w io.Writer) error {
+				_, err := w.Write(data)
+				return err
+			})
+		},
+		ReportPath: o.reportOut,
+		SaveReport: func(c *circuit.Circuit) error {
+			// The report is still assembled by the report command's
+			// buildReport (reportcmd.go), with the values set in c.
+			doc, err := buildReport(c, "")
+			if err != nil {
+				return err
+			}
+			return writeFileAtomic(o.reportOut, func(w io.Writer) error { return report.Write(w, doc) })
+		},
+	})
+	srv := &http.Server{Handler: h, ReadHeaderTimeout: 10 * time.Second, MaxHeaderBytes: 16 << 10, ErrorLog: nil}
+	fmt.Fprintf(out, "qpoint explore: %s\n  open %s in a browser on this computer; Ctrl-C stops the server\n  the save button writes %s, the report button %s\n",
+		o.file, url, o.circuitOut, o.reportOut)
+	if o.open {
+		if err := openBrowser(url); err != nil {
+			fmt.Fprintf(errw, "qpoint: could not start a browser (%v); open %s yourself\n", err, url)
+		}
+	}
+	if ready != nil {
+		ready(url)
+	}
+	served := make(chan error, 1)
+	go func() { served <- srv.Serve(ln) }()
+	select {
+	case err := <-served:
+		return analysisError(fmt.Errorf("the server stopped: %w", err))
+	case <-ctx.Done():
+	}
+	stop, cancel := context.WithTimeout(context.Background(), 5*time.Second)
+	defer cancel()
+	return srv.Shutdown(stop)
+}
+
+// loopbackAddress checks --listen: a loopback address (127.0.0.0/8, ::1
+// or localhost) and a port, 127.0.0.1 and a free port when not given.
+func loopbackAddress(s string) (string, error) {
+	const accepted = "accepted: a loopback address and port such as 127.0.0.1:8470, [::1]:8470 or localhost:8470 (port 0 picks a free one)"
+	if s == "" {
+		return "127.0.0.1:0", nil
+	}
+	host, port, err := net.SplitHostPort(s)
+	if err != nil {
+		return "", inputError(fmt.Errorf("flag --listen: %q is not HOST:PORT; %s", s, accepted))
+	}
+	if p, err := strconv.Atoi(port); err != nil || p < 0 || p > 65535 {
+		return "", inputError(fmt.Errorf("flag --listen: port %q is not a number from 0 to 65535; %s", port, accepted))
+	}
+	if strings.EqualFold(host, "localhost") {
+		host = "127.0.0.1"
+	}
+	ip := net.ParseIP(host)
+	if ip == nil || !ip.IsLoopback() {
+		return "", inputError(fmt.Errorf("flag --listen: %q is not a loopback address; the explorer serves this computer only; %s", host, accepted))
+	}
+	return net.JoinHostPort(ip.String(), port), nil
+}
+
+// openBrowser asks the desktop to open url in the user's browser.
+func openBrowser(url string) error {
+	var c *exec.Cmd
+	switch runtime.GOOS {
+	case "darwin":
+		c = exec.Command("open", url)
+	case "windows":
+		c = exec.Command("rundll32", "url.dll,FileProtocolHandler", url)
+	default:
+		c = exec.Command("xdg-open", url)
+	}
+	if err := c.Start(); err != nil {
+		return err
+	}
+	go c.Wait()
+	return nil
+}
