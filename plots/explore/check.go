@@ -27,11 +27,11 @@ type Progress struct {
 
 // CheckView is what a waveform check shows.
 type CheckView struct {
-	Cards    []Card   `json:"cards,omitempty"`
-	Tables   []Table  `json:"tables,omitempty"`
-	Figures  []Figure `json:"figures,omitempty"`
-	Notes    []string `json:"notes,omitempty"`
-	Cautions []string `json:"cautions,omitempty"`
+	Cards    []Card            `json:"cards,omitempty"`
+	Tables   []Table           `json:"tables,omitempty"`
+	Figures  []Figure          `json:"figures,omitempty"`
+	Notes    []string          `json:"notes,omitempty"`
+	Cautions []string          `json:"cautions,omitempty"`
 	Errors   map[string]string `json:"errors,omitempty"`
 	Failure  string            `json:"failure,omitempty"`
 	Seconds  float64           `json:"seconds"`
