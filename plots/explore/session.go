@@ -495,7 +495,7 @@ func (s *Session) response(pt *part, nw *smallsignal.Network, d *plan.Drive) err
 	pnt := at.Points[0]
 	where := "at " + si.Format(d.FrequencyHz, "Hz", 4)
 	if out := d.Drive.Output.Port; out >= 0 {
-		pt.cards = append(pt.cards, Card{Label: fmt.Sprintf("S%d%d", out+1, d.Drive.Input+1), Value: fmt.Sprintf("%.2f dB", report.DB(pnt.S[out][d.Drive.Input])), Detail: where})
+		pt.cards = append(pt.cards, Card{Label: fmt.Sprintf("S%d%d, %s to %s", out+1, d.Drive.Input+1, d.InputName, d.OutputName), Value: fmt.Sprintf("%.2f dB", report.DB(pnt.S[out][d.Drive.Input])), Detail: where})
 	}
 	in := d.Drive.Input
 	pt.cards = append(pt.cards, Card{Label: "return loss, " + d.InputName, Value: fmt.Sprintf("%.2f dB", -report.DB(pnt.S[in][in])),
@@ -578,8 +578,14 @@ func (s *Session) detector(pt *part, c *circuit.Circuit, nw *smallsignal.Network
 	return nil
 }
 
+// pageScale is the size the page draws figures at, relative to the
+// report's: the type keeps its size, so it reads larger beside the
+// smaller plot, as a panel a third of a screen wide needs.
+const pageScale = 0.82
+
 // figure renders f as SVG into the part.
 func (pt *part) figure(id string, f *plots.Figure) error {
+	f.Width, f.Height = f.Width*pageScale, f.Height*pageScale
 	var b bytes.Buffer
 	if err := plots.Write(&b, "svg", f); err != nil {
 		return err

@@ -142,7 +142,15 @@ function request() {
 
 function schedule() {
   state.pending = true;
+  settled();
   pump();
+}
+
+// settled marks on the page whether what it shows answers the values as
+// they stand (no move waiting or under way), for anyone watching it.
+function settled() {
+  const current = !state.pending && !state.inflight && state.shown === state.seq;
+  document.body.dataset.current = current ? '1' : '0';
 }
 
 function pump() {
@@ -178,7 +186,9 @@ async function send() {
     if (e.name !== 'AbortError') problems(['The server did not answer: ' + e.message]);
   } finally {
     if (state.inflight && state.inflight.seq === seq) state.inflight = null;
+    if (seq > state.shown && !state.inflight && !state.pending) state.shown = seq; // a stale or failed answer: nothing newer is coming
     pump();
+    settled();
   }
 }
 
@@ -249,7 +259,15 @@ function listInto(box, items) {
 
 const TABLE_ORDER = ['qpoints', 'estimate', 'detector', 'nodes', 'sources'];
 
+// render draws a move's answer: the panels, or the reasons there are
+// none (a refused value, a failed analysis), and counts the redraw.
 function render(v, ms) {
+  draw(v, ms);
+  state.redraws++;
+  document.body.dataset.redraws = String(state.redraws);
+}
+
+function draw(v, ms) {
   const panels = $('panels');
   for (const name in state.controls) {
     const c = state.controls[name];
@@ -290,8 +308,6 @@ function render(v, ms) {
   $('status').textContent = `server ${t.totalMs.toFixed(1)} ms (bias ${t.biasMs.toFixed(2)} ms, ${t.newton} Newton iterations by ${t.strategy}; ` +
     `response ${t.responseMs.toFixed(1)} ms; distortion ${t.distortionMs.toFixed(1)} ms, ${t.waveformSolves} waveform solves` +
     (t.detectorMs > 0 ? `; detector ${t.detectorMs.toFixed(1)} ms` : '') + `) · round trip ${ms.toFixed(0)} ms`;
-  state.redraws++;
-  document.body.dataset.redraws = String(state.redraws);
 }
 
 async function post(path, button) {
