@@ -10,7 +10,8 @@ import (
 // BenchmarkMove measures the server's time for one move of the page, as a
 // user drags a slider: each demo's study quantity (the one its file's
 // analysis.study varies) stepped 0.5 % of the slider's travel at a time,
-// back and forth over a fifth of it. Every step is a whole move: bias
+// back and forth over a fifth of it; and, as "DEMO/jumps", to scattered
+// positions over the whole slider, as a click on the track does. Every step is a whole move: bias
 // from the last point, the Q-point tables, the I–V figure, the response
 // with two figures, the Volterra estimate, the validity limit searched
 // from the last and, for the detector, its sensitivity, with the
@@ -28,31 +29,51 @@ func BenchmarkMove(b *testing.B) {
 		{"limiter", "temperature"},
 		{"mixer", "Vbias.value"},
 	} {
-		b.Run(k.demo, func(b *testing.B) {
-			s := newSession(b, k.demo)
-			vals := startValues(s)
-			ctl := control(b, s, k.control)
-			if _, err := s.Move(context.Background(), Request{Values: vals}); err != nil {
-				b.Fatal(err)
+		for _, jump := range []bool{false, true} {
+			name := k.demo
+			if jump {
+				name += "/jumps"
 			}
-			start := positionOf(ctl, ctl.Value)
-			solves := 0
-			b.ResetTimer()
-			for i := 0; i < b.N; i++ {
-				// A triangle wave of 40 steps of 5 positions each.
-				step := i % 80
-				if step >= 40 {
-					step = 80 - step
+			b.Run(name, func(b *testing.B) {
+				s := newSession(b, k.demo)
+				vals := startValues(s)
+				ctl := control(b, s, k.control)
+				if _, err := s.Move(context.Background(), Request{Values: vals}); err != nil {
+					b.Fatal(err)
 				}
-				vals[ctl.Name] = ctl.text(valueAt(ctl, start+5*step))
-				v, err := s.Move(context.Background(), Request{Values: vals})
-				if err != nil || v.Errors != nil || v.Failure != "" {
-					b.Fatalf("%s=%s: %v %v %s", ctl.Name, vals[ctl.Name], err, v.Errors, v.Failure)
+				start := positionOf(ctl, ctl.Value)
+				solves := 0
+				var stages [5]float64 // bias, operating point, response, distortion, detector (ms)
+				b.ResetTimer()
+				for i := 0; i < b.N; i++ {
+					// A triangle wave of 40 steps of 5 positions each, or
+					// jumps to scattered positions over the whole slider
+					// (a fixed sequence: 0, 379, 758, 137, ...).
+					pos := i % 80
+					if pos >= 40 {
+						pos = 80 - pos
+					}
+					pos = start + 5*pos
+					if jump {
+						pos = (379 * (i + 1)) % 1001
+					}
+					vals[ctl.Name] = ctl.text(valueAt(ctl, pos))
+					v, err := s.Move(context.Background(), Request{Values: vals})
+					if err != nil || v.Errors != nil || v.Failure != "" {
+						b.Fatalf("%s=%s: %v %v %s", ctl.Name, vals[ctl.Name], err, v.Errors, v.Failure)
+					}
+					solves += v.Timing.WaveformSolves
+					tm := v.Timing
+					for k, x := range []float64{tm.BiasMS, tm.OperatingMS, tm.ResponseMS, tm.DistortionMS, tm.DetectorMS} {
+						stages[k] += x
+					}
 				}
-				solves += v.Timing.WaveformSolves
-			}
-			b.ReportMetric(float64(solves)/float64(b.N), "waveforms/move")
-		})
+				b.ReportMetric(float64(solves)/float64(b.N), "waveforms/move")
+				for k, name := range []string{"bias", "iv", "response", "distortion", "detector"} {
+					b.ReportMetric(stages[k]/float64(b.N), name+"-ms/move")
+				}
+			})
+		}
 	}
 }
 
