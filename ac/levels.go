@@ -112,8 +112,12 @@ type Validity struct {
 	Steps        int // steady-state solves used
 	// Held is the steady state at LevelDBm where the estimates were seen
 	// to hold (LimitFound, HeldThroughout), to start a later search at a
-	// nearby bias from (ValidityNear); nil otherwise.
-	Held *Steady
+	// nearby bias from (ValidityNear); nil otherwise. Slope, from
+	// ValidityNear when it found a limit, is how steeply the worst
+	// difference grew across the last bracket, in decades per dB
+	// (ValiditySearch.Slope); zero otherwise.
+	Held  *Steady
+	Slope float64
 }
 
 // Found reports whether a limit was bracketed and bisected.

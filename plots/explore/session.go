@@ -49,6 +49,7 @@ type Session struct {
 	last  *bias.Point
 	held  *ac.Steady
 	limit float64 // the last validity limit (dBm), NaN for none
+	slope float64 // how steeply the estimates' difference grew there (decades/dB)
 }
 
 // NewSession reads the circuit file src (named file) and sets the
@@ -390,6 +391,9 @@ func (s *Session) Move(ctx context.Context, req Request) (*View, error) {
 		switch dist.validity.Outcome {
 		case ac.LimitFound, ac.HeldThroughout:
 			s.limit, s.held = dist.validity.LevelDBm, dist.validity.Held
+			if dist.validity.Slope > 0 {
+				s.slope = dist.validity.Slope
+			}
 		}
 	}
 	v.Timing.TotalMS = ms(time.Since(t0))
@@ -540,7 +544,7 @@ func (s *Session) distortion(ctx context.Context, pt *part, nw *smallsignal.Netw
 	steady := moveSteady
 	steady.Start = s.held
 	v, err := ac.ValidityNear(ctx, nw, d.OneTone(), ac.ValiditySearch{GuessDBm: guess, ResolutionDB: moveResolutionDB, TolDB: 0.5,
-		LowestDBm: lo, HighestDBm: hi, Steady: steady})
+		LowestDBm: lo, HighestDBm: hi, Steady: steady, Slope: s.slope})
 	if err != nil {
 		if ctx.Err() != nil {
 			return nil // stale: the move is dropped
