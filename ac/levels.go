@@ -118,6 +118,11 @@ type Validity struct {
 	// (ValiditySearch.Slope); zero otherwise.
 	Held  *Steady
 	Slope float64
+	// FailsDBm, from ValidityNear when it found a limit, is the level
+	// above LevelDBm where the estimates were seen not to hold: within
+	// its resolution unless its MaxSolves cut the search short. NaN
+	// otherwise.
+	FailsDBm float64
 }
 
 // Found reports whether a limit was bracketed and bisected.
@@ -184,7 +189,7 @@ const validityDescent = 60
 // estimate refuses.
 func ValidityLimit(nw *smallsignal.Network, d Drive, startDBm, maxDBm, tolDB float64, s SteadySettings) (*Validity, error) {
 	z0 := nw.Ports[d.Input].Impedance
-	v := &Validity{TolDB: tolDB, LevelDBm: math.NaN(), LowestDBm: startDBm, WorstDB: math.NaN(), FailedDBm: math.NaN()}
+	v := &Validity{TolDB: tolDB, LevelDBm: math.NaN(), LowestDBm: startDBm, WorstDB: math.NaN(), FailedDBm: math.NaN(), FailsDBm: math.NaN()}
 	var solveErr error
 	// check reports whether the estimates hold at level l; a failed
 	// solve sets solveErr.

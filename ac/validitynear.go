@@ -34,6 +34,12 @@ type ValiditySearch struct {
 	// measured it (Validity.Slope); zero means unknown. With it the first
 	// step goes straight to the crossing it predicts.
 	Slope float64
+	// MaxSolves, when positive, bounds the waveform solves spent closing
+	// the bracket once the limit is bracketed: the search then ends with
+	// a bracket wider than ResolutionDB (Validity.FailsDBm says how wide),
+	// for a caller that must answer in bounded time and refines later.
+	// Finding the bracket is never cut short.
+	MaxSolves int
 	// Progress, when not nil, is called after each waveform solve with
 	// the number of solves so far.
 	Progress func(solves int)
@@ -89,7 +95,7 @@ func ValidityNear(ctx context.Context, nw *smallsignal.Network, d Drive, s Valid
 	if math.IsNaN(g) {
 		g = s.HighestDBm
 	}
-	v := &Validity{TolDB: tol, LevelDBm: math.NaN(), LowestDBm: g, WorstDB: math.NaN(), FailedDBm: math.NaN()}
+	v := &Validity{TolDB: tol, LevelDBm: math.NaN(), LowestDBm: g, WorstDB: math.NaN(), FailedDBm: math.NaN(), FailsDBm: math.NaN()}
 	var solveErr error
 	check := func(l float64, start *Steady) (*probe, error) {
 		if err := ctx.Err(); err != nil {
@@ -97,6 +103,15 @@ func ValidityNear(ctx context.Context, nw *smallsignal.Network, d Drive, s Valid
 		}
 		v.Steps++
 		st, ok, w, name, serr, err := validityCheck(nw, d, z0, l, tol, start, s.Steady)
+		if serr != nil && start != nil && err == nil {
+			// A start from another bias can lead Newton astray where the
+			// DC point would not: try once from there.
+			if err := ctx.Err(); err != nil {
+				return nil, err
+			}
+			v.Steps++
+			st, ok, w, name, serr, err = validityCheck(nw, d, z0, l, tol, nil, s.Steady)
+		}
 		solveErr = serr
 		if s.Progress != nil {
 			s.Progress(v.Steps)
@@ -193,7 +208,7 @@ func ValidityNear(ctx context.Context, nw *smallsignal.Network, d Drive, s Valid
 
 	// Close the bracket to the resolution.
 	lastWidth := math.Inf(1)
-	for w := bad.l - good.l; w > res; w = bad.l - good.l {
+	for w := bad.l - good.l; w > res && (s.MaxSolves <= 0 || v.Steps < s.MaxSolves); w = bad.l - good.l {
 		l := crossing(good, bad, tol, s.Slope)
 		switch {
 		case math.IsNaN(l) || w > lastWidth/2:
@@ -221,7 +236,7 @@ func ValidityNear(ctx context.Context, nw *smallsignal.Network, d Drive, s Valid
 			bad = p
 		}
 	}
-	v.Outcome, v.LevelDBm, v.Held = LimitFound, good.l, good.st
+	v.Outcome, v.LevelDBm, v.Held, v.FailsDBm = LimitFound, good.l, good.st, bad.l
 	if good.w > 0 && bad.w > good.w && !math.IsInf(bad.w, 0) {
 		v.Slope = (math.Log10(bad.w) - math.Log10(good.w)) / (bad.l - good.l)
 	}

@@ -89,3 +89,28 @@ func TestValidityNearEnds(t *testing.T) {
 		t.Errorf("cancelled after the second solve: %v after %d solves", err, calls)
 	}
 }
+
+// TestValidityNearBounded: with MaxSolves the search stops closing its
+// bracket when the solves run out, and says how wide the bracket is: the
+// estimates held at LevelDBm and not at FailsDBm, both observed.
+func TestValidityNearBounded(t *testing.T) {
+	nw := network(t, demo(t, "mixer"))
+	d := Drive{Input: 0, Output: Output{Port: 2}, FrequencyHz: 1.9e9}
+	s := ValiditySearch{GuessDBm: -40, LowestDBm: -120, HighestDBm: 20, ResolutionDB: 0.05, Steady: SteadySettings{Harmonics: 5, Samples: 63}}
+	full, err := ValidityNear(context.Background(), nw, d, s)
+	if err != nil {
+		t.Fatal(err)
+	}
+	s.MaxSolves = 3
+	cut, err := ValidityNear(context.Background(), nw, d, s)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if full.Outcome != LimitFound || cut.Outcome != LimitFound || !(full.FailsDBm-full.LevelDBm <= 0.05) {
+		t.Fatalf("full %s (fails at %g); cut %s", full.Note(), full.FailsDBm, cut.Note())
+	}
+	if !(cut.Steps < full.Steps) || !(cut.LevelDBm <= full.LevelDBm+0.05) || !(cut.FailsDBm >= full.FailsDBm-0.05) {
+		t.Errorf("cut at %d solves: holds at %.3f, fails at %.3f; the full search (%d solves): %.3f to %.3f",
+			cut.Steps, cut.LevelDBm, cut.FailsDBm, full.Steps, full.LevelDBm, full.FailsDBm)
+	}
+}

@@ -206,6 +206,38 @@ func TestExploreInBrowser(t *testing.T) {
 		t.Errorf("typed 150k: the page shows %q, qpoint bias %q", shown, want)
 	}
 
+	// The waveform check, on request, shows its progress and then the
+	// waveform beside the estimate.
+	if err := chromedp.Do(bctx, chromedp.Click(chromedp.ID("check"))); err != nil {
+		t.Fatal(err)
+	}
+	seen := map[string]bool{}
+	for deadline := time.Now().Add(30 * time.Second); ; time.Sleep(20 * time.Millisecond) {
+		status, err := chromedp.Run(bctx, chromedp.Evaluate[string](`document.getElementById('check-status').textContent`))
+		if err != nil {
+			t.Fatal(err)
+		}
+		seen[status] = true
+		if strings.HasPrefix(status, "done in") {
+			break
+		}
+		if strings.HasPrefix(status, "The check failed") || strings.HasPrefix(status, "Stopped") || time.Now().After(deadline) {
+			t.Fatalf("the waveform check: %q", status)
+		}
+	}
+	progress := 0
+	for s := range seen {
+		if strings.Contains(s, "waveform solves") {
+			progress++
+		}
+	}
+	if progress < 2 {
+		t.Errorf("the check showed %d progress states: %v", progress, seen)
+	}
+	if n, err := chromedp.Run(bctx, chromedp.Evaluate[int](`document.querySelectorAll('#check-tables table, #check-figures img').length`)); err != nil || n < 5 {
+		t.Errorf("the check drew %d tables and figures (%v)", n, err)
+	}
+
 	// Keep what was found: the circuit file and the report.
 	if err := chromedp.Do(bctx, chromedp.Click(chromedp.ID("save-circuit")), chromedp.Click(chromedp.ID("save-report"))); err != nil {
 		t.Fatal(err)

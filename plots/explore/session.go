@@ -50,6 +50,7 @@ type Session struct {
 	held  *ac.Steady
 	limit float64 // the last validity limit (dBm), NaN for none
 	slope float64 // how steeply the estimates' difference grew there (decades/dB)
+	fails float64 // where the estimates were seen not to hold above it; NaN for none
 }
 
 // NewSession reads the circuit file src (named file) and sets the
@@ -66,7 +67,7 @@ func NewSession(file string, src []byte, sets []string) (*Session, error) {
 			return nil, err
 		}
 	}
-	s := &Session{file: file, src: src, base: c, start: start, limit: math.NaN()}
+	s := &Session{file: file, src: src, base: c, start: start, limit: math.NaN(), fails: math.NaN()}
 	if s.gridHz, err = plan.ResponseGrid(c, plan.Grid{}); err != nil {
 		return nil, err
 	}
@@ -171,7 +172,11 @@ type View struct {
 	Notes    []string           `json:"notes,omitempty"`
 	Cautions []string           `json:"cautions,omitempty"`
 	Set      string             `json:"set,omitempty"` // the values set, TARGET=VALUE, as the report names them
-	Timing   Timing             `json:"timing"`
+	// Refine asks for the same values again: the validity limit is known
+	// only to a wider bracket than a move resolves, and the next move
+	// starts from it.
+	Refine bool   `json:"refine,omitempty"`
+	Timing Timing `json:"timing"`
 }
 
 // values is a request resolved: the circuit with its values set and the
@@ -285,8 +290,15 @@ func (s *Session) begin(parent context.Context) (context.Context, context.Cancel
 // 255 (and TestValidityNearAgrees holds the two searches together).
 var moveSteady = ac.SteadySettings{Harmonics: 5, Samples: 63}
 
-// moveResolutionDB is the width a move's validity search bisects to.
-const moveResolutionDB = 0.25
+// moveResolutionDB is the width a move's validity search bisects to, and
+// moveMaxSolves the waveform solves it may spend closing its bracket:
+// a move that jumps far (a click on a slider's track, a typed value)
+// answers with a wider bracket, marked for refining, and the page asks
+// again at the same values, which starts from it.
+const (
+	moveResolutionDB = 0.25
+	moveMaxSolves    = 4
+)
 
 // moveNoiseTolerance is how far a move integrates a detector's video
 // noise: to 1e-4, which keeps the tangential sensitivity within 0.001 dB
@@ -386,11 +398,12 @@ func (s *Session) Move(ctx context.Context, req Request) (*View, error) {
 	}
 	v.Timing.ResponseMS, v.Timing.OperatingMS, v.Timing.DistortionMS, v.Timing.DetectorMS = resp.ms, op.ms, dist.ms, detect.ms
 	v.Timing.WaveformSolves = dist.solves
+	v.Refine = dist.refine
 	s.last = p
 	if dist.validity != nil {
 		switch dist.validity.Outcome {
 		case ac.LimitFound, ac.HeldThroughout:
-			s.limit, s.held = dist.validity.LevelDBm, dist.validity.Held
+			s.limit, s.held, s.fails = dist.validity.LevelDBm, dist.validity.Held, dist.validity.FailsDBm
 			if dist.validity.Slope > 0 {
 				s.slope = dist.validity.Slope
 			}
@@ -411,6 +424,7 @@ type part struct {
 	ms       float64
 	solves   int
 	validity *ac.Validity
+	refine   bool
 }
 
 func ms(d time.Duration) float64 { return float64(d.Microseconds()) / 1e3 }
@@ -536,15 +550,18 @@ func (s *Session) distortion(ctx context.Context, pt *part, nw *smallsignal.Netw
 		}
 	}
 	guess := s.limit
-	if math.IsNaN(guess) {
+	switch {
+	case math.IsNaN(guess):
 		guess = d.LevelDBm
+	case s.fails-s.limit > moveResolutionDB:
+		guess = (s.limit + s.fails) / 2 // inside the last bracket, left wide
 	}
 	lo := math.Max(circuit.MinLevelDBm, d.LevelDBm-100)
 	hi := math.Min(circuit.MaxLevelDBm, d.LevelDBm+40)
 	steady := moveSteady
 	steady.Start = s.held
 	v, err := ac.ValidityNear(ctx, nw, d.OneTone(), ac.ValiditySearch{GuessDBm: guess, ResolutionDB: moveResolutionDB, TolDB: 0.5,
-		LowestDBm: lo, HighestDBm: hi, Steady: steady, Slope: s.slope})
+		LowestDBm: lo, HighestDBm: hi, Steady: steady, Slope: s.slope, MaxSolves: moveMaxSolves})
 	if err != nil {
 		if ctx.Err() != nil {
 			return nil // stale: the move is dropped
@@ -556,6 +573,10 @@ func (s *Session) distortion(ctx context.Context, pt *part, nw *smallsignal.Netw
 	switch v.Outcome {
 	case ac.LimitFound:
 		card.Value = fmt.Sprintf("%.1f dBm", v.LevelDBm)
+		if v.FailsDBm-v.LevelDBm > moveResolutionDB+1e-9 {
+			card.Detail = fmt.Sprintf("estimates within 0.5 dB here, not at %.1f dBm; refining (%d waveform solves)", v.FailsDBm, v.Steps)
+			pt.refine = true
+		}
 	case ac.HeldThroughout:
 		card.Value = fmt.Sprintf("above %.1f dBm", v.LevelDBm)
 	default:

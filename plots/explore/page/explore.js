@@ -18,6 +18,7 @@ const state = {
   shown: 0,
   urls: {},        // figure id -> blob URL in use
   checking: null,  // AbortController of a running check
+  refines: 0,      // moves sent in a row only to refine the validity limit
 };
 
 // A move waiting longer than this behind one still being answered
@@ -141,6 +142,7 @@ function request() {
 }
 
 function schedule() {
+  state.refines = 0;
   state.pending = true;
   settled();
   pump();
@@ -181,6 +183,12 @@ async function send() {
     if (seq > state.shown) {
       state.shown = seq;
       render(v, performance.now() - t0);
+      // The validity limit came as a bracket: ask again at the same
+      // values (a few times at most), unless newer values are on the way.
+      if (v.refine && !state.pending && state.refines < 3) {
+        state.refines++;
+        state.pending = true;
+      }
     }
   } catch (e) {
     if (e.name !== 'AbortError') problems(['The server did not answer: ' + e.message]);
