@@ -334,3 +334,50 @@ func TestControls(t *testing.T) {
 		t.Errorf("ideality: %+v", c)
 	}
 }
+
+// TestSessionPlainCircuits: a circuit without ports still shows its Q
+// points and I–V figure and says why the rest is missing; one with ports
+// but no distortion defaults takes the plan's signal frequency, and its
+// saved file gains a distortion block the loader reads back.
+func TestSessionPlainCircuits(t *testing.T) {
+	bare := `name: bare
+diode_models:
+  d: {saturation_current: 10nA, series_resistance: 5}
+parts:
+  - {type: voltage_source, name: V1, plus: a, minus: gnd, value: 1V}
+  - {type: resistor, name: R1, between: [a, b], value: 1k}
+  - {type: diode, name: D1, anode: b, cathode: gnd, model: d}
+`
+	s, err := NewSession("bare.yaml", []byte(bare), nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	v, err := s.Move(context.Background(), Request{Values: startValues(s)})
+	if err != nil || v.Failure != "" || v.Errors != nil {
+		t.Fatalf("%v %s %v", err, v.Failure, v.Errors)
+	}
+	if len(v.Figures) != 1 || v.Figures[0].ID != "operating" || tableByID(v.Tables, "qpoints") == nil || !strings.Contains(strings.Join(v.Notes, " "), "no ports") {
+		t.Errorf("figures %d, notes %v", len(v.Figures), v.Notes)
+	}
+	ported := bare + `ports:
+  - {name: in, node: b, impedance: 50, coupling: ac}
+  - {name: out, node: a, impedance: 50, coupling: ac}
+`
+	s, err = NewSession("ported.yaml", []byte(ported), nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if f := control(t, s, DriveFrequency); f.Value != 1e9 {
+		t.Errorf("drive frequency %g Hz, want the plan's 1 GHz", f.Value)
+	}
+	vals := startValues(s)
+	vals[DriveLevel] = "-20dBm"
+	data, err := s.CircuitFile(Request{Values: vals})
+	if err != nil {
+		t.Fatal(err)
+	}
+	c, err := circuit.Parse("saved.yaml", data)
+	if err != nil || !c.Analysis.Distortion.Set || c.Analysis.Distortion.Level.DBm != -20 || c.Analysis.Distortion.FrequencyHz != 1e9 {
+		t.Errorf("saved: %v\n%s", err, data)
+	}
+}

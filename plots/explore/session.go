@@ -114,6 +114,17 @@ func (s *Session) Setup() Setup {
 	return u
 }
 
+// diodes counts the circuit's diodes.
+func (s *Session) diodes() int {
+	n := 0
+	for _, p := range s.base.Parts {
+		if p.Kind == circuit.Diode {
+			n++
+		}
+	}
+	return n
+}
+
 // Request is a move: every control's value as text, as typed or as a
 // slider wrote it (a control left out keeps the file's value), and the
 // diode the I–V figure shows.
@@ -221,8 +232,8 @@ func (s *Session) resolve(req Request) (*values, map[string]string) {
 		}
 	}
 	out := &values{c: c, diode: req.Diode}
-	if req.Diode < 0 || req.Diode >= len(s.Setup().Diodes) && req.Diode != 0 {
-		errs["diode"] = fmt.Sprintf("diode %d: the circuit has %d", req.Diode, len(s.Setup().Diodes))
+	if n := s.diodes(); req.Diode < 0 || req.Diode > 0 && req.Diode >= n {
+		errs["diode"] = fmt.Sprintf("diode %d: the circuit has %d", req.Diode, n)
 	}
 	if s.drive == nil {
 		return out, errs

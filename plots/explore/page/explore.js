@@ -304,6 +304,8 @@ function draw(v, ms) {
     if (c && document.activeElement !== c.slider) c.slider.value = positionOf(c.ctl, v.resolved[name]);
   }
   cardsInto($('cards'), v.cards);
+  const drawn = new Set((v.figures || []).map((f) => f.id));
+  for (const id of ['operating', 'match', 'smith']) $('fig-' + id).closest('figure').hidden = !drawn.has(id);
   for (const f of v.figures || []) showFigure(f.id, f.svg);
   const tables = $('tables');
   tables.textContent = '';
