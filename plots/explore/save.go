@@ -38,11 +38,11 @@ func (s *Session) CircuitFile(req Request) ([]byte, error) {
 		}
 		edits = append(edits, circuit.Edit{Target: "analysis.distortion.frequency", Text: freq},
 			circuit.Edit{Target: "analysis.distortion.level", Text: level})
-		said = append(said, "frequency="+freq, "level="+level)
+		said = append(said, DriveFrequency+"="+freq, DriveLevel+"="+level)
 		if d.SecondToneHz != 0 {
 			second := valueText(d.SecondToneHz, 9)
 			edits = append(edits, circuit.Edit{Target: "analysis.distortion.second_tone", Text: second})
-			said = append(said, "second_tone="+second)
+			said = append(said, "second tone="+second)
 		}
 	}
 	out, err := circuit.Rewrite(s.file, s.src, edits)
