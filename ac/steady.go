@@ -4,6 +4,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"strings"
 
 	"github.com/mjibson/go-dsp/fft"
 	"gonum.org/v1/gonum/blas/blas64"
@@ -109,6 +110,19 @@ const dcFloorRel = 1e-10
 // MaxSteadyUnknowns bounds the size of a circuit SteadyState takes.
 const MaxSteadyUnknowns = 300
 
+// ElementsError is the refusal of a method that solves the circuit in
+// time (shooting, the transient) to take lines or measured blocks, which
+// are known by their behaviour in frequency: harmonic balance takes them.
+type ElementsError struct {
+	Method   string
+	Elements []string
+}
+
+func (e *ElementsError) Error() string {
+	return fmt.Sprintf("%s solves the circuit in time and cannot carry %s, known by %s S-matrices in frequency; harmonic balance takes them",
+		e.Method, strings.Join(e.Elements, ", "), map[bool]string{true: "its", false: "their"}[len(e.Elements) == 1])
+}
+
 // ErrNoSteadyState reports a shooting solve that did not converge.
 var ErrNoSteadyState = errors.New("no periodic steady state found")
 
@@ -139,6 +153,9 @@ func SteadyState(nw *smallsignal.Network, d Drive, s SteadySettings) (*Steady, e
 	}
 	if d.SecondToneHz != 0 {
 		return nil, fmt.Errorf("the steady-state solve takes one tone")
+	}
+	if nw.HasElements() {
+		return nil, &ElementsError{Method: MethodShooting, Elements: nw.ElementNames()}
 	}
 	if err := CheckFrequency(d.FrequencyHz); err != nil {
 		return nil, err

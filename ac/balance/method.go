@@ -2,6 +2,7 @@ package balance
 
 import (
 	"fmt"
+	"strings"
 
 	"qpoint/ac"
 	"qpoint/smallsignal"
@@ -66,7 +67,7 @@ type Method struct {
 
 // choose returns the method Auto takes.
 func choose(nw *smallsignal.Network, d ac.Drive) Choice {
-	if d.SecondToneHz != 0 || nw.N > AutoShootingLimit {
+	if d.SecondToneHz != 0 || nw.N > AutoShootingLimit || nw.HasElements() {
 		return HarmonicBalance
 	}
 	return Shooting
@@ -105,7 +106,7 @@ func (m Method) solve(nw *smallsignal.Network, d ac.Drive, s ac.SteadySettings) 
 		return st, err
 	default:
 		st, err := m.balance(nw, d, s)
-		if err != nil && m.Choice == Auto && d.SecondToneHz == 0 && nw.N <= ac.MaxSteadyUnknowns {
+		if err != nil && m.Choice == Auto && d.SecondToneHz == 0 && nw.N <= ac.MaxSteadyUnknowns && !nw.HasElements() {
 			if sh, err2 := m.shoot(nw, d, s); err2 == nil {
 				sh.Choice = fmt.Sprintf("shooting, after harmonic balance failed (%v)", err)
 				return sh, nil
@@ -114,6 +115,8 @@ func (m Method) solve(nw *smallsignal.Network, d ac.Drive, s ac.SteadySettings) 
 		if err == nil && m.Choice == Auto {
 			if d.SecondToneHz != 0 {
 				st.Choice = "harmonic balance, for two tones"
+			} else if nw.HasElements() {
+				st.Choice = "harmonic balance, for lines and measured blocks (" + strings.Join(nw.ElementNames(), ", ") + ")"
 			} else {
 				st.Choice = fmt.Sprintf("harmonic balance, for a circuit of %d unknowns", nw.N)
 			}

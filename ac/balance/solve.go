@@ -54,6 +54,9 @@ func Solve(nw *smallsignal.Network, d ac.Drive, s Settings) (*Result, error) {
 	begin := time.Now()
 	s = s.withDefaults()
 	sv := &solver{nw: nw, d: d, s: s, stats: Stats{Method: ac.MethodHarmonicBalance}}
+	// Lines and measured blocks have no backward-difference form: the
+	// time-domain preconditioner cannot hold them.
+	sv.noTime = nw.HasElements()
 	if s.Timeout > 0 {
 		sv.deadline = begin.Add(s.Timeout)
 	}

@@ -102,3 +102,12 @@ func (c Conductor) At(freqHz float64) complex128 {
 	}
 	return complex(math.Hypot(c.DCResistance, rs), rs)
 }
+
+// Law is a uniform two-port line at any frequency: Ideal or Microstrip.
+type Law interface {
+	// At returns the line's telegrapher section at freqHz (0 for DC).
+	At(freqHz float64) Section
+	// Reference returns the real reference impedance of its S-matrix,
+	// its nominal characteristic impedance.
+	Reference() float64
+}
