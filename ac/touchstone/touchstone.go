@@ -698,7 +698,7 @@ func (t *tsReader) keyword(kw, arg string) error {
 			return err
 		}
 		if t.given > 0 && n != t.given {
-			return t.errf("[Number of Ports] %d, but %d ports were expected (from the file name?)", n, t.given)
+			return t.errf("[Number of Ports] %d, but %d ports were expected (from the file name or its use)", n, t.given)
 		}
 		t.n, t.nLine = n, t.line
 	case "two-port data order":

@@ -251,7 +251,9 @@ func (l *loader) idealLine(n *yaml.Node, f map[string]entry, d *Distributed, lab
 	if e, ok := f["length"]; ok {
 		v, okLen := l.value(e.val, Length, "length of "+label, positive)
 		if !hasVF {
-			l.errorf(e.key, "%s gives a `length` without `velocity_factor`; accepted: velocity_factor: the wave's speed over c, e.g. 0.66 (1 for a line in air)", label)
+			if len(given) == 1 {
+				l.errorf(e.key, "%s gives a `length` without `velocity_factor`; accepted: velocity_factor: the wave's speed over c, e.g. 0.66 (1 for a line in air)", label)
+			}
 			good = false
 		} else if factor, ok := l.ratio(vf.val, "velocity_factor of "+label); ok && okLen {
 			li.Length = v
@@ -588,7 +590,10 @@ func (l *loader) blockData(n *yaml.Node, d *Distributed, label string) {
 		}
 		return
 	}
-	want := 0
+	// A version 1.1 file states its port count in its extension alone;
+	// a file without one must be version 2.0, whose [Number of Ports] is
+	// then held to the terminals.
+	want := ports
 	if k, err := touchstone.PortCount(d.File); err == nil {
 		want = k
 		if k != ports {
@@ -906,4 +911,50 @@ func (l *loader) dcShorts() []dcShort {
 		}
 	}
 	return out
+}
+
+// floatingAboveDC reports groups of nodes that reach gnd at DC only
+// through a line's return conductor. Above DC a line is a two-port whose
+// ports carry balanced currents: its return conductor joins its two
+// returns at DC alone, and a node held only by it has no potential at
+// any other frequency (the network matrix would be singular there).
+func (l *loader) floatingAboveDC(index map[string]int) {
+	joins := false
+	for _, d := range l.c.Distributed {
+		joins = joins || d.JoinReturnsAtDC
+	}
+	if !joins {
+		return
+	}
+	uf := newUnionFind(len(index))
+	for _, p := range l.c.Parts {
+		if p.Kind != CurrentSource {
+			uf.union(index[p.Nodes[0]], index[p.Nodes[1]])
+		}
+	}
+	for _, p := range l.c.Ports {
+		uf.union(index[p.Node], index[p.Return])
+	}
+	for _, d := range l.c.Distributed {
+		for k := range d.Terminals {
+			uf.union(index[d.Terminals[k]], index[d.Returns[k]])
+		}
+	}
+	ground := uf.find(0)
+	reported := map[int]bool{}
+	for _, d := range l.c.Distributed {
+		if !d.JoinReturnsAtDC {
+			continue
+		}
+		for _, r := range d.Returns {
+			root := uf.find(index[r])
+			if root == ground || reported[root] {
+				continue
+			}
+			reported[root] = true
+			l.errorAt(d.Pos.Line, d.Pos.Col,
+				"return `%s` of %s `%s` reaches gnd only through the line's return conductor, which joins its two returns at DC alone: above DC each end of a line is a port with balanced currents, so `%s` would float; accepted: a path from `%s` to gnd or to the other return through some part (or the same node for both returns)",
+				r, d.Type, d.Name, r, r)
+		}
+	}
 }

@@ -22,6 +22,7 @@ func (l *loader) topology(partsKey *yaml.Node) {
 			Ground, groundHint(l.c.Nodes))
 	} else {
 		l.floatingNodes(index)
+		l.floatingAboveDC(index)
 	}
 	l.sourceLoops(index)
 }
