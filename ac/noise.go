@@ -245,6 +245,9 @@ type NoiseResult struct {
 	// bare node).
 	InputImpedance, OutputImpedance float64
 	Points                          []NoisePoint
+	// Outside lists the blocks and microstrips that some frequency lies
+	// outside the data or models of (a caution).
+	Outside []smallsignal.OutsideRange
 }
 
 // noise holds what every frequency of one analysis shares.
@@ -358,7 +361,7 @@ func noiseSweep(nw *smallsignal.Network, freqs []float64, s NoiseSettings, choic
 	if err != nil {
 		return nil, err
 	}
-	r := &NoiseResult{Settings: s, TemperatureK: nw.Point.TemperatureK, Sources: v.sources}
+	r := &NoiseResult{Settings: s, TemperatureK: nw.Point.TemperatureK, Sources: v.sources, Outside: nw.Outside(freqs)}
 	if s.Input >= 0 {
 		r.InputImpedance = nw.Ports[s.Input].Impedance
 	}

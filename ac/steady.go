@@ -82,6 +82,10 @@ type Steady struct {
 	Residual   float64 // final residual: shooting's periodicity, max |x(T) - x(0)| scaled; harmonic balance's KCL error relative to the node's currents
 	Samples    int     // samples per period of the coarser solve (shooting)
 
+	// Outside lists the blocks and microstrips that some frequency the
+	// method solved at lies outside the data or models of (a caution).
+	Outside []smallsignal.OutsideRange
+
 	// Method names the method that found this steady state:
 	// MethodShooting or MethodHarmonicBalance; Choice, when the method was
 	// chosen automatically, says why.

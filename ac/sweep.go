@@ -47,6 +47,10 @@ type Response struct {
 	Probes []string
 	Points []Point
 	Stats  Stats // which engine ran, and any fallback
+	// Outside lists the measured blocks and microstrip lines that some
+	// frequency of the sweep lies outside the data or models of: a
+	// caution, not an error.
+	Outside []smallsignal.OutsideRange
 }
 
 // Run sweeps nw over freqs and returns every point, and in Stats how the
@@ -59,6 +63,7 @@ func Run(nw *smallsignal.Network, freqs []float64, s Settings) (*Response, error
 		return nil
 	})
 	r.Ports, r.Probes, r.Stats = ports, probes, ws.SweepStats()
+	r.Outside = nw.Outside(freqs)
 	return r, err
 }
 

@@ -10,6 +10,7 @@ import (
 	"qpoint/bias/circuit"
 	"qpoint/bias/diode"
 	"qpoint/bias/line"
+	"qpoint/bias/si"
 )
 
 // Element is a transmission line, microstrip line or measured block of
@@ -325,12 +326,13 @@ type OutsideRange struct {
 
 // Message says the caution in a sentence.
 func (o OutsideRange) Message() string {
+	hz := func(f float64) string { return si.Format(f, "Hz", 4) }
 	if o.Type == circuit.TypeMicrostrip {
-		return fmt.Sprintf("%s %s: %d of the frequencies asked (up to %.4g Hz) lie above %.4g Hz, where the microstrip's dispersion law holds its accuracy (h/λ0 = 0.13)",
-			o.Type, o.Element, o.Count, o.Highest, o.ToHz)
+		return fmt.Sprintf("microstrip %s: %d of the frequencies asked (up to %s) lie above %s, where its dispersion law holds its stated accuracy (h/λ0 = 0.13)",
+			o.Element, o.Count, hz(o.Highest), hz(o.ToHz))
 	}
-	return fmt.Sprintf("%s %s: %d of the frequencies asked (%.4g Hz to %.4g Hz) lie outside its data, %.4g Hz to %.4g Hz: there S is not measured but held at the last point above the data and drawn linearly to the declared DC behaviour below them",
-		o.Type, o.Element, o.Count, o.Lowest, o.Highest, o.FromHz, o.ToHz)
+	return fmt.Sprintf("block %s: %d of the frequencies asked (%s to %s) lie outside its data, %s to %s: there S is not measured but held at the last point above the data and drawn linearly to the declared DC behaviour below them",
+		o.Element, o.Count, hz(o.Lowest), hz(o.Highest), hz(o.FromHz), hz(o.ToHz))
 }
 
 // Outside returns an OutsideRange for each element that some frequency

@@ -7,6 +7,7 @@ import (
 	"time"
 
 	"qpoint/ac"
+	"qpoint/smallsignal"
 )
 
 // Product is a signal at one mixing product m·f1 + n·f2 (for one tone,
@@ -79,6 +80,11 @@ type Result struct {
 	Times, Waveform []float64
 
 	Stats Stats
+	// Outside lists the blocks and microstrips that some product's
+	// frequency lies outside the data or models of (a caution), counting
+	// the products whose largest node phasor reaches 1e-5 (-100 dB) of
+	// the largest signal phasor.
+	Outside []smallsignal.OutsideRange
 
 	spec *spectrum
 	x    []complex128
@@ -175,7 +181,7 @@ func (r *Result) Steady() *ac.Steady {
 		Drive: r.Drive, Stress: r.Stress, NoiseFloor: r.NoiseFloor,
 		Times: r.Times, Waveform: r.Waveform,
 		Iterations: r.Stats.Iterations, Residual: r.Stats.Residual,
-		Method: ac.MethodHarmonicBalance, State: r,
+		Method: ac.MethodHarmonicBalance, State: r, Outside: r.Outside,
 	}
 	harm := func(list []Product) []ac.Harmonic {
 		var h []ac.Harmonic

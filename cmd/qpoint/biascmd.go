@@ -92,6 +92,12 @@ func loadCircuit(warn io.Writer, path string, sets []string, temperature string)
 		}
 		return nil, inputError(err)
 	}
+	// A measured block's file is an input too: no output may replace it.
+	for _, d := range c.Distributed {
+		if d.Path != "" {
+			inputs = append(inputs, d.Path)
+		}
+	}
 	// Legal but probably not meant: said on standard error, so that
 	// every command shows it and no JSON document changes shape.
 	for _, w := range c.Warnings {
@@ -135,6 +141,9 @@ func writeBias(w io.Writer, p *bias.Point) {
 		p.Stats.Strategy, report.Plural(p.Stats.Iterations, "iteration"), si.Format(p.Stats.Residual, "A", 2))
 
 	for _, t := range report.BiasTables(p) {
+		t.WriteText(w)
+	}
+	if t := lineTable(p); t != nil {
 		t.WriteText(w)
 	}
 

@@ -339,6 +339,11 @@ func runDistortion(cmd *cobra.Command, path string, fl *distortionFlags) error {
 	}
 	doc.Waveform = waveformJSONOf(st)
 	doc.Cautions = append([]string{}, st.Cautions()...)
+	outside := st.Outside
+	if len(outside) == 0 {
+		outside = est.Outside
+	}
+	doc.Cautions = append(doc.Cautions, outsideMessages(outside)...)
 	if note := truncationNote(st); note != "" {
 		doc.Cautions = append(doc.Cautions, note)
 	}
@@ -432,6 +437,7 @@ func runDistortion(cmd *cobra.Command, path string, fl *distortionFlags) error {
 		fmt.Fprintf(out, "  %s\n", note)
 	}
 	writeCautions(out, st.Cautions())
+	writeOutside(out, outside)
 	writeComparison(out, cmp, limit)
 	if two != nil {
 		writeTwoTone(out, two, est)

@@ -166,7 +166,7 @@ func predictHarmonics(warn io.Writer, fl *waveformFlags, fundamentalHz float64, 
 	}
 	d := ds.drive
 	d.SecondToneHz = 0
-	st, err := ac.SteadyState(ds.nw, d, ac.SteadySettings{Harmonics: k, Samples: max(255, 8*k+1)})
+	st, err := ac.SteadyState(ds.nw, d, ac.SteadySettings{Harmonics: k, Samples: max(255, 8*k+1), Method: steadyFor(ds.nw)})
 	if err != nil {
 		return nil, analysisError(fmt.Errorf("prediction from %s at %s: %w", fl.circuitPath, si.Format(fundamentalHz, "Hz", 6), err))
 	}

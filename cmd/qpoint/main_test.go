@@ -26,8 +26,8 @@ const demoDir = "../../testdata/demo"
 
 func TestBiasDemos(t *testing.T) {
 	files, _ := filepath.Glob(filepath.Join(demoDir, "*.yaml"))
-	if len(files) != 4 {
-		t.Fatalf("found %d demo circuits, want 4", len(files))
+	if len(files) != 5 {
+		t.Fatalf("found %d demo circuits, want 5", len(files))
 	}
 	for _, f := range files {
 		out, errs, code := runCLI(t, "bias", f)
@@ -167,10 +167,10 @@ func TestDemo(t *testing.T) {
 	if code != 0 {
 		t.Fatalf("exit %d: %s", code, errs)
 	}
-	if strings.Count(out, "Diode Q points") != 4 {
-		t.Errorf("demo printed %d Q-point tables, want 4", strings.Count(out, "Diode Q points"))
+	if strings.Count(out, "Diode Q points") != 5 {
+		t.Errorf("demo printed %d Q-point tables, want 5", strings.Count(out, "Diode Q points"))
 	}
-	for _, name := range []string{"index", "detector", "attenuator", "limiter", "mixer"} {
+	for _, name := range []string{"index", "detector", "attenuator", "limiter", "mixer", "matched_detector"} {
 		data, err := os.ReadFile(filepath.Join(dir, name+".html"))
 		if err != nil {
 			t.Errorf("demo wrote no %s.html: %v", name, err)

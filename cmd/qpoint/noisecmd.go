@@ -213,6 +213,7 @@ func runNoise(cmd *cobra.Command, path string, fl *noiseFlags) error {
 	if err != nil {
 		return analysisError(err)
 	}
+	cautionOutside(cmd.ErrOrStderr(), o.Result.Outside)
 	// The figures' data go beside them.
 	tables := []struct {
 		name  string

@@ -116,6 +116,13 @@ func buildReport(c *circuit.Circuit, temperature string) (*report.Document, erro
 		models.add(name, si.Format(m.SaturationCurrent, "A", 3), fmt.Sprintf("%.3g", m.Ideality), si.Format(m.SeriesResistance, "Ω", 3),
 			si.Format(m.ZeroBiasCapacitance, "F", 3), si.Format(m.BuiltInPotential, "V", 3), fmt.Sprintf("%.3g", m.Grading), si.Format(m.TransitTime, "s", 3), knee)
 	}
+	for _, lp := range report.LineParts(c, designFrequency(c)) {
+		val := si.Format(lp.Impedance, "Ω", 4) + ", " + si.Format(lp.Delay, "s", 4)
+		if lp.File != "" {
+			val = lp.File
+		}
+		parts.add(lp.Name, strings.ReplaceAll(lp.Type, "_", " "), lp.Between, val)
+	}
 	ports := &table{title: "Ports", header: []string{"port", "node", "return", "impedance", "coupling"}}
 	for _, pt := range c.Ports {
 		coupling := "DC"
@@ -124,7 +131,7 @@ func buildReport(c *circuit.Circuit, temperature string) (*report.Document, erro
 		}
 		ports.add(pt.Name, pt.Node, pt.Return, si.Format(pt.Impedance, "Ω", 4), coupling)
 	}
-	sec := report.Section{ID: "circuit", Title: "Circuit", Intro: fmt.Sprintf("%d parts, %d diode models, %d ports.", len(c.Parts), len(c.Models), len(c.Ports))}
+	sec := report.Section{ID: "circuit", Title: "Circuit", Intro: fmt.Sprintf("%d parts, %d diode models, %d ports.", len(c.Parts)+len(c.Distributed), len(c.Models), len(c.Ports))}
 	for _, t := range []*table{parts, models, ports} {
 		sec.Blocks = append(sec.Blocks, report.Block{Table: t.report()})
 	}
@@ -134,6 +141,9 @@ func buildReport(c *circuit.Circuit, temperature string) (*report.Document, erro
 	sec = report.Section{ID: "bias", Title: "Operating point", Intro: fmt.Sprintf("Solved by %s in %s; largest current imbalance %s.",
 		p.Stats.Strategy, report.Plural(p.Stats.Iterations, "iteration"), si.Format(p.Stats.Residual, "A", 2))}
 	for _, t := range report.BiasTables(p) {
+		sec.Blocks = append(sec.Blocks, report.Block{Table: t})
+	}
+	if t := lineTable(p); t != nil {
 		sec.Blocks = append(sec.Blocks, report.Block{Table: t})
 	}
 	doc.Sections = append(doc.Sections, sec)
@@ -165,6 +175,7 @@ func buildReport(c *circuit.Circuit, temperature string) (*report.Document, erro
 	if err != nil {
 		return nil, analysisError(err)
 	}
+	doc.Cautions = append(doc.Cautions, outsideMessages(r.Outside)...)
 	sec = report.Section{ID: "response", Title: "Small-signal response", Intro: fmt.Sprintf("%d points from %s to %s; every port terminated in its reference impedance.",
 		len(r.Points), si.Format(grid[0], "Hz", 4), si.Format(grid[len(grid)-1], "Hz", 4))}
 	for _, f := range plots.ResponseFigures(r, designFrequency(c)) {
@@ -242,7 +253,7 @@ func distortionSection(s *distortionSetup) (report.Section, []report.Card, error
 	one := s.drive
 	one.SecondToneHz = 0
 	oneEst := est.OneTone()
-	settings := ac.SteadySettings{Harmonics: 5}
+	settings := ac.SteadySettings{Harmonics: 5, Method: steadyFor(s.nw)}
 	st, err := ac.SteadyState(s.nw, one, settings)
 	if err != nil {
 		sec.Blocks = append(sec.Blocks, report.Block{Note: "The waveform solve did not converge at this level: " + err.Error()})

@@ -207,6 +207,7 @@ func runResponse(cmd *cobra.Command, path string, fl *responseFlags) error {
 	if err != nil {
 		return analysisError(err)
 	}
+	cautionOutside(cmd.ErrOrStderr(), nw.Outside(grid))
 	// Every named output is checked before any is written, so that a
 	// refusal leaves none behind.
 	if fl.touchstone != "" {
@@ -269,7 +270,7 @@ func runResponse(cmd *cobra.Command, path string, fl *responseFlags) error {
 		}
 	}
 	if fl.asJSON {
-		return writeJSON(out, responseDocument(r))
+		return writeJSON(out, responseDocument(r, c))
 	}
 	writeResponseTable(out, c, p, r, grid, fl.rows)
 	for _, x := range []struct{ what, path string }{{"CSV", fl.csvPath}, {"Touchstone", fl.touchstone}, {"figures", fl.plotsDir}} {
@@ -294,6 +295,10 @@ func writeResponseTable(w io.Writer, c *circuit.Circuit, p *bias.Point, r *ac.Re
 	fmt.Fprintf(w, "  ports        %s\n", strings.Join(ports, ", "))
 	first, last := grid[0], grid[len(grid)-1]
 	fmt.Fprintf(w, "  sweep        %d points, %s to %s\n", len(grid), si.Format(first, "Hz", 4), si.Format(last, "Hz", 4))
+	if len(c.Distributed) > 0 {
+		fmt.Fprintf(w, "  lines        %s\n", report.LineSummary(report.LineParts(c, designFrequency(c))))
+		fmt.Fprintf(w, "  solved by    %s: %s\n", r.Stats.Engine, "lines and blocks are not G + sC, so every point is factored")
+	}
 
 	report.ResponseTable(r, rows).WriteText(w)
 	name1 := r.Ports[0].Name
@@ -404,7 +409,7 @@ func streamResponse(nw *smallsignal.Network, grid []float64, s ac.Settings, c *c
 		}
 		var jw *responseJSONWriter
 		if jsonOut != nil {
-			if jw, err = newResponseJSONWriter(jsonOut, r.Ports); err != nil {
+			if jw, err = newResponseJSONWriter(jsonOut, r.Ports, lineParts(c, nil)); err != nil {
 				return err
 			}
 		}
@@ -518,13 +523,14 @@ type portJSON struct {
 }
 
 type responseJSON struct {
-	Ports  []portJSON          `json:"ports"`
-	Points []responsePointJSON `json:"points"`
-	Solver *solverJSON         `json:"solver"`
+	Ports       []portJSON          `json:"ports"`
+	Distributed []linePartJSON      `json:"distributed,omitempty"`
+	Points      []responsePointJSON `json:"points"`
+	Solver      *solverJSON         `json:"solver"`
 }
 
-func responseDocument(r *ac.Response) *responseJSON {
-	d := &responseJSON{Solver: solverJSONOf(r.Stats)}
+func responseDocument(r *ac.Response, c *circuit.Circuit) *responseJSON {
+	d := &responseJSON{Solver: solverJSONOf(r.Stats), Distributed: lineParts(c, nil)}
 	for _, p := range r.Ports {
 		d.Ports = append(d.Ports, portJSON{p.Name, number(p.Impedance)})
 	}
@@ -568,7 +574,7 @@ type responseJSONWriter struct {
 	points int
 }
 
-func newResponseJSONWriter(w io.Writer, ports []ac.PortInfo) (*responseJSONWriter, error) {
+func newResponseJSONWriter(w io.Writer, ports []ac.PortInfo, lines []linePartJSON) (*responseJSONWriter, error) {
 	var js []portJSON
 	for _, p := range ports {
 		js = append(js, portJSON{p.Name, number(p.Impedance)})
@@ -578,7 +584,15 @@ func newResponseJSONWriter(w io.Writer, ports []ac.PortInfo) (*responseJSONWrite
 		return nil, err
 	}
 	bw := bufio.NewWriter(w)
-	fmt.Fprintf(bw, "{\n  \"ports\": %s,\n  \"points\": [", head)
+	fmt.Fprintf(bw, "{\n  \"ports\": %s,", head)
+	if len(lines) > 0 {
+		dist, err := json.MarshalIndent(lines, "  ", "  ")
+		if err != nil {
+			return nil, err
+		}
+		fmt.Fprintf(bw, "\n  \"distributed\": %s,", dist)
+	}
+	fmt.Fprintf(bw, "\n  \"points\": [")
 	return &responseJSONWriter{w: bw}, nil
 }
 
@@ -619,10 +633,12 @@ type solverJSON struct {
 	ReducedPoints int      `json:"reduced_points"`
 	LUPoints      int      `json:"lu_points"`
 	Refused       []string `json:"refused"`
+	// Elements names the lines and blocks that kept the sweep on the LU.
+	Elements []string `json:"elements,omitempty"`
 }
 
 func solverJSONOf(st ac.Stats) *solverJSON {
-	j := &solverJSON{Engine: string(st.Engine), ReducedPoints: st.Reduced, LUPoints: st.LU, Refused: []string{}}
+	j := &solverJSON{Engine: string(st.Engine), ReducedPoints: st.Reduced, LUPoints: st.LU, Refused: []string{}, Elements: st.Elements}
 	for _, e := range st.Refused {
 		j.Refused = append(j.Refused, string(e))
 	}

@@ -52,6 +52,9 @@ func (fl *steadyFlags) steadyMethods(s *distortionSetup) (search, wave ac.Steady
 	if fl.truncationOrder < 2 || fl.truncationOrder > 60 {
 		return nil, nil, inputError(fmt.Errorf("flag --truncation-order: %d; accepted: 2 to 60 (3 or more for the diamond)", fl.truncationOrder))
 	}
+	if choice == balance.Shooting && s.nw.HasElements() {
+		return nil, nil, inputError(fmt.Errorf("flag --method: shooting solves the circuit in time and cannot carry %s, known by S-matrices in frequency; accepted: hb or auto (harmonic balance takes them)", strings.Join(s.nw.ElementNames(), ", ")))
+	}
 	m := balance.Method{Choice: choice, Settings: balance.Settings{Truncation: tr, Order: fl.truncationOrder}}
 	w := m
 	if s.drive.SecondToneHz != 0 {
