@@ -576,20 +576,29 @@ func (l *loader) blockData(n *yaml.Node, d *Distributed, label string) {
 	fail := func(format string, args ...any) {
 		l.errorf(n, "%s: `%s` %s; accepted: %s", label, d.File, fmt.Sprintf(format, args...), accepted)
 	}
+	// Look before opening: a named pipe would hold the load until
+	// someone wrote to it.
+	st, err := os.Stat(d.Path)
+	switch {
+	case err != nil:
+		fail("cannot be read: %v", unwrapPath(err))
+		return
+	case st.IsDir():
+		fail("is a folder")
+		return
+	case !st.Mode().IsRegular():
+		fail("is not a regular file")
+		return
+	case st.Size() > maxBlockFile:
+		fail("is %d bytes, more than the %d MiB a block's file may have", st.Size(), maxBlockFile>>20)
+		return
+	}
 	file, err := os.Open(d.Path)
 	if err != nil {
 		fail("cannot be read: %v", unwrapPath(err))
 		return
 	}
 	defer file.Close()
-	if st, err := file.Stat(); err == nil && (st.IsDir() || st.Mode().IsRegular() && st.Size() > maxBlockFile) {
-		if st.IsDir() {
-			fail("is a folder")
-		} else {
-			fail("is %d bytes, more than the %d MiB a block's file may have", st.Size(), maxBlockFile>>20)
-		}
-		return
-	}
 	// A version 1.1 file states its port count in its extension alone;
 	// a file without one must be version 2.0, whose [Number of Ports] is
 	// then held to the terminals.
