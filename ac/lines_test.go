@@ -38,6 +38,8 @@ ports:
 	if r.Stats.Engine != EngineLU || len(r.Stats.Elements) != 1 {
 		t.Errorf("stats %+v: want the LU, named for T1", r.Stats)
 	}
+	worst := 0.0
+	defer func() { t.Logf("largest relative error of Z_in against Pozar eq. 2.44: %.2g", worst) }()
 	for _, p := range r.Points {
 		w := 2 * math.Pi * p.FrequencyHz
 		zl := complex(30, -1/(w*2e-12))
@@ -50,6 +52,7 @@ ports:
 			want = complex(z0, 0) * (zl + complex(z0, 0)*tn) / (complex(z0, 0) + zl*tn)
 		}
 		got := p.InputImpedance[0]
+		worst = math.Max(worst, cmplx.Abs(got-want)/cmplx.Abs(want))
 		if cmplx.Abs(got-want) > 1e-9*cmplx.Abs(want) {
 			t.Errorf("at %g Hz: Z_in = %v, Pozar eq. 2.44 gives %v (rel %.2g)", p.FrequencyHz, got, want, cmplx.Abs(got-want)/cmplx.Abs(want))
 		}
@@ -93,6 +96,7 @@ ports:
 		r := run(t, nw, f0)
 		s := r.Points[0].S
 		if c.open {
+			t.Logf("open stub at f0: |S21| = %.2g, |S11| - 1 = %.2g", cmplx.Abs(s[1][0]), cmplx.Abs(s[0][0])-1)
 			if cmplx.Abs(s[1][0]) > 1e-9 || math.Abs(cmplx.Abs(s[0][0])-1) > 1e-9 {
 				t.Errorf("%s stub at f0: S21 = %v, S11 = %v; want a short: 0 and |1|", c.name, s[1][0], s[0][0])
 			}
@@ -101,6 +105,7 @@ ports:
 			// through line with 1 kΩ shunt, exactly 2/(2 + 50/1000) e^(-jβl)
 			// (Pozar Table 4.2 for the shunt admittance 1/1000).
 			want := complex(2/(2+50.0/1000), 0) * cmplx.Exp(complex(0, -2*math.Pi*f0*through))
+			t.Logf("%s stub at f0: |S21 - through line's| = %.2g", c.name, cmplx.Abs(s[1][0]-want))
 			if d := cmplx.Abs(s[1][0] - want); d > 1e-9 {
 				t.Errorf("%s stub at f0: S21 = %v, want %v (|Δ| %.2g)", c.name, s[1][0], want, d)
 			}
@@ -129,6 +134,7 @@ ports:
 `)
 	want := 0.3 / (0.7 * 299792458)
 	for _, p := range run(t, nw, 1e6, 1e8, 3e9).Points {
+		t.Logf("at %g Hz: group delay relative error %.2g", p.FrequencyHz, p.GroupDelay/want-1)
 		if math.Abs(p.GroupDelay-want) > 1e-9*want {
 			t.Errorf("at %g Hz: group delay %.12g s, want %.12g", p.FrequencyHz, p.GroupDelay, want)
 		}
@@ -200,6 +206,15 @@ ports:
 		t.Fatal(err)
 	}
 	got := run(t, block, freqs...)
+	worstS := 0.0
+	for k, pt := range got.Points {
+		for i := range pt.S {
+			for j := range pt.S[i] {
+				worstS = math.Max(worstS, cmplx.Abs(pt.S[i][j]-ref.Points[k].S[i][j]))
+			}
+		}
+	}
+	t.Logf("largest |ΔS| of the block against the lumped network: %.2g", worstS)
 	for k, pt := range got.Points {
 		for i := range pt.S {
 			for j := range pt.S[i] {
@@ -229,8 +244,11 @@ ports:
 	if err != nil {
 		t.Fatal(err)
 	}
+	worstN := 0.0
+	defer func() { t.Logf("largest relative difference of the output noise: %.2g", worstN) }()
 	for k := range freqs {
 		a, b := nl.Points[k], nb.Points[k]
+		worstN = math.Max(worstN, math.Abs(a.Total-b.Total)/a.Total)
 		if math.Abs(a.Total-b.Total) > 1e-9*a.Total || math.Abs(a.Circuit-b.Circuit) > 1e-9*a.Circuit {
 			t.Errorf("at %g Hz: output noise %g (circuit's own %g) V²/Hz, lumped %g (%g)", freqs[k], b.Total, b.Circuit, a.Total, a.Circuit)
 		}
@@ -267,6 +285,7 @@ ports:
 		zin := resp.Points[k].InputImpedance[1]
 		z := 50 * zin / (50 + zin)
 		want := 4 * 1.380649e-23 * 290 * real(z)
+		t.Logf("at %g Hz: output noise against 4kT Re Z: %.2g", p.FrequencyHz, p.Total/want-1)
 		if math.Abs(p.Total/want-1) > 1e-9 {
 			t.Errorf("at %g Hz: output noise %.12g V²/Hz, 4kT Re Z = %.12g", p.FrequencyHz, p.Total, want)
 		}
