@@ -12,7 +12,7 @@ import (
 
 	"github.com/spf13/cobra"
 
-	"qpoint/ac/study"
+	"qpoint/ac/plan"
 	"qpoint/ac/yield"
 	"qpoint/bias/circuit"
 	"qpoint/plots"
@@ -33,11 +33,6 @@ type yieldFlags struct {
 	csvPath, plotsDir string
 	sets              []string
 }
-
-// defaultRuns is the run count when neither the flag nor the file gives
-// one: enough that a yield near 95 % has a 95 % interval about ±1.4 %
-// wide.
-const defaultRuns = 1000
 
 func newYieldCmd() *cobra.Command {
 	var fl yieldFlags
@@ -81,7 +76,7 @@ Defaults come from the file's analysis.yield and analysis.distortion.`,
 	f := cmd.Flags()
 	addSetFlag(cmd, &fl.sets)
 	f.StringArrayVar(&fl.targets, "target", nil, `a condition every run must meet, MEASURE>VALUE or MEASURE<VALUE, e.g. "s21>-4.4dB@900MHz" (repeatable)`)
-	f.IntVar(&fl.runs, "runs", 0, fmt.Sprintf("circuits to draw, 1 to %d (default: the file's, else %d)", yield.MaxRuns, defaultRuns))
+	f.IntVar(&fl.runs, "runs", 0, fmt.Sprintf("circuits to draw, 1 to %d (default: the file's, else %d)", yield.MaxRuns, plan.DefaultRuns))
 	f.Uint64Var(&fl.seed, "seed", 0, "seed of the random draws (default: the file's, else 1)")
 	f.StringVar(&fl.temperatureRange, "temperature-range", "", "operating range LOW:HIGH, e.g. -40C:85C (default: the file's, else the circuit's temperature)")
 	f.StringVar(&fl.level, "level", "", "signal level for distortion targets, e.g. -10dBm (default: the file's)")
@@ -96,188 +91,64 @@ Defaults come from the file's analysis.yield and analysis.distortion.`,
 	return cmd
 }
 
-// resolveYield turns the flags and the file's defaults into the yield
-// settings. With no target from either, it returns observe-only targets
-// when observe is true (the report's spread of the main figures), and an
-// error otherwise.
+// resolveYield reads the flags into a request and resolves it on the
+// plan. With no target from either the flags or the file, it follows the
+// main figures when observe is true (the report's spread of them), and
+// fails otherwise.
 func resolveYield(c *circuit.Circuit, fl *yieldFlags, observe bool) (*yield.Settings, error) {
-	path := c.File
-	if len(c.Tolerances) == 0 {
-		return nil, inputError(fmt.Errorf("%s: the circuit has no tolerances; accepted: a `tolerance:` on a part (e.g. tolerance: 1%%) or a `spread:` on a diode model (e.g. spread: {saturation_current: {log_sigma: 0.3}})", path))
-	}
-	def := c.Analysis.Yield
-	s := &yield.Settings{Runs: defaultRuns, Seed: 1, Workers: fl.workers}
-	if def.Runs > 0 {
-		s.Runs = def.Runs
-	}
-	if fl.runs != 0 {
-		if fl.runs < 0 || fl.runs > yield.MaxRuns {
-			return nil, inputError(fmt.Errorf("flag --runs: %d; accepted: 1 to %d", fl.runs, yield.MaxRuns))
-		}
-		s.Runs = fl.runs
-	}
-	if def.SeedSet {
-		s.Seed = def.Seed
-	}
+	req := plan.YieldRequest{Targets: fl.targets, Runs: fl.runs, Workers: fl.workers, Input: fl.input, Output: fl.output, Observe: observe}
 	if fl.seedSet {
-		s.Seed = fl.seed
+		seed := fl.seed
+		req.Seed = &seed
 	}
-	if fl.workers < 0 {
-		return nil, inputError(fmt.Errorf("flag --workers: %d; accepted: 0 (all cores) or more", fl.workers))
-	}
-	switch {
-	case len(fl.targets) > 0:
-		for _, text := range fl.targets {
-			t, err := yield.ParseTarget(strings.TrimSpace(text))
-			if err != nil {
-				return nil, inputError(fmt.Errorf("flag --target: %w", err))
-			}
-			s.Targets = append(s.Targets, t)
-		}
-	case len(def.Targets) > 0:
-		for i, text := range def.Targets {
-			t, err := yield.ParseTarget(text)
-			if err != nil {
-				pos := def.TargetPos[i]
-				return nil, inputError(fmt.Errorf("%s:%d:%d: target of the yield analysis: %w", path, pos.Line, pos.Col, err))
-			}
-			s.Targets = append(s.Targets, t)
-		}
-	case observe:
-		s.Targets = observeTargets(c)
-	default:
-		return nil, inputError(errors.New(`flag --target is missing and the file has no analysis.yield targets; e.g. --target "s21>-6.2dB@900MHz" --target "hd3<-50dBc"`))
-	}
-
-	// A measure naming a diode or probe must find it.
-	var diodes []string
-	for _, p := range c.Parts {
-		if p.Kind == circuit.Diode {
-			diodes = append(diodes, p.Name)
-		}
-	}
-	for _, t := range s.Targets {
-		m := t.Measure
-		switch {
-		case m.Part == "":
-		case m.Name == "probe" && !slices.Contains(c.Probes, m.Part):
-			return nil, inputError(fmt.Errorf("target %s: `%s` is not a probe of the circuit; accepted: %s", t.Text, m.Part, nameOrNone(c.Probes)))
-		case m.Name != "probe" && !slices.Contains(diodes, m.Part):
-			return nil, inputError(fmt.Errorf("target %s: `%s` is not a diode of the circuit; accepted: %s", t.Text, m.Part, nameOrNone(diodes)))
-		}
-	}
-
-	// Temperatures: the range's ends and the circuit's own between them.
-	lo, hi, ranged := 0.0, 0.0, false
 	if fl.temperatureRange != "" {
 		a, b, ok := strings.Cut(fl.temperatureRange, ":")
 		const accepted = "LOW:HIGH, e.g. -40C:85C"
 		if !ok {
 			return nil, inputError(fmt.Errorf("flag --temperature-range: `%s` is not LOW:HIGH; accepted: %s", fl.temperatureRange, accepted))
 		}
-		var err error
-		if lo, err = circuit.ParseBounded(strings.TrimSpace(a), circuit.Temperature); err != nil {
+		lo, err := circuit.ParseBounded(strings.TrimSpace(a), circuit.Temperature)
+		if err != nil {
 			return nil, inputError(fmt.Errorf("flag --temperature-range: %w", err))
 		}
-		if hi, err = circuit.ParseBounded(strings.TrimSpace(b), circuit.Temperature); err != nil {
+		hi, err := circuit.ParseBounded(strings.TrimSpace(b), circuit.Temperature)
+		if err != nil {
 			return nil, inputError(fmt.Errorf("flag --temperature-range: %w", err))
 		}
 		if !(lo < hi) {
 			return nil, inputError(fmt.Errorf("flag --temperature-range: `%s` does not rise; accepted: %s", fl.temperatureRange, accepted))
 		}
-		ranged = true
-	} else if def.TemperatureRangeSet {
-		lo, hi, ranged = def.TemperatureRangeK[0], def.TemperatureRangeK[1], true
+		req.TemperatureRangeK = &[2]float64{lo, hi}
 	}
-	if ranged {
-		s.TemperaturesK = []float64{lo}
-		if lo < c.TemperatureK && c.TemperatureK < hi {
-			s.TemperaturesK = append(s.TemperaturesK, c.TemperatureK)
+	var err error
+	if fl.frequency != "" {
+		if req.FrequencyHz, err = circuit.ParseBounded(fl.frequency, circuit.Frequency); err != nil {
+			return nil, inputError(fmt.Errorf("flag --frequency: %w", err))
 		}
-		s.TemperaturesK = append(s.TemperaturesK, hi)
 	}
-
-	// The study frequency a measure without @F is read at: the file's
-	// distortion frequency, else the middle of its response range.
-	a := &s.Analysis
-	switch {
-	case c.Analysis.Distortion.Set:
-		a.FrequenciesHz = []float64{c.Analysis.Distortion.FrequencyHz}
-	case c.Analysis.Response.Set:
-		a.FrequenciesHz = []float64{math.Sqrt(c.Analysis.Response.FromHz * c.Analysis.Response.ToHz)}
-	default:
-		a.FrequenciesHz = []float64{1e9}
-	}
-	needDrive, needPath := false, false
-	for _, t := range s.Targets {
-		needDrive = needDrive || t.Measure.NeedsDrive()
-		needPath = needPath || t.Measure.NeedsNoise() || t.Measure.NeedsDetector()
-	}
-	def2 := c.Analysis.Distortion
-	if fl.level != "" || needDrive || needPath || fl.frequency != "" {
-		freq := fl.frequency
-		if freq == "" && !def2.Set {
-			freq = strconv.FormatFloat(a.FrequenciesHz[0], 'g', -1, 64) + "Hz"
+	if fl.level != "" {
+		lv, err := circuit.ParseLevel(fl.level)
+		if err != nil {
+			return nil, inputError(fmt.Errorf("flag --level: %w", err))
 		}
-		d, err := distortionDrive(c, &distortionFlags{input: fl.input, output: fl.output, level: fl.level, frequency: freq})
+		req.Level = &lv
+	}
+	if fl.videoBandwidth != "" {
+		lo, hi, err := parseBand("video-bandwidth", fl.videoBandwidth, plan.DefaultVideoFromHz)
 		if err != nil {
 			return nil, err
 		}
-		d.drive.SecondToneHz = 0
-		if fl.level == "" && !def2.Set {
-			d.drive.EMF = 0 // the path alone: no level was asked for
-		}
-		a.Drive = d.drive
-		a.DistortionHz = []float64{d.drive.FrequencyHz}
+		req.VideoBandHz = [2]float64{lo, hi}
 	}
-	for _, t := range s.Targets {
-		if t.Measure.NeedsDrive() && a.Drive.EMF == 0 {
-			return nil, inputError(fmt.Errorf("target %s needs a signal level: give --level (e.g. -30dBm)", t.Text))
+	s, err := plan.ResolveYield(c, req)
+	if err != nil {
+		var re *plan.RequestError
+		if errors.As(err, &re) && re.Settings[0] == "tolerances" {
+			return nil, inputError(re.Err)
 		}
-	}
-	if needPath || fl.videoBandwidth != "" {
-		vb := fl.videoBandwidth
-		if vb == "" {
-			vb = "2MHz"
-		}
-		vlo, vhi, err := parseBand("video-bandwidth", vb, 1)
-		if err != nil {
-			return nil, err
-		}
-		a.Detector = &study.DetectorSettings{VideoFromHz: vlo, VideoToHz: vhi}
+		return nil, planError(err)
 	}
 	return s, nil
-}
-
-// nameOrNone lists names for a message.
-func nameOrNone(names []string) string {
-	if len(names) == 0 {
-		return "none in this circuit"
-	}
-	return strings.Join(names, ", ")
-}
-
-// observeTargets are the figures the report follows when the file names
-// no yield targets: the transmission (or the input impedance of a
-// one-port) at the design frequency, and HD3 when the file gives a drive.
-func observeTargets(c *circuit.Circuit) []yield.Target {
-	var texts []string
-	if len(c.Ports) >= 2 {
-		texts = append(texts, "s21")
-	} else if len(c.Ports) == 1 {
-		texts = append(texts, "zin_mag")
-	}
-	if c.Analysis.Distortion.Set && len(c.Ports) > 0 {
-		texts = append(texts, "hd3")
-	}
-	var ts []yield.Target
-	for _, text := range texts {
-		m, err := study.ParseMeasure(text)
-		if err == nil {
-			ts = append(ts, yield.Target{Text: text, Measure: m, Bound: yield.Observe, Limit: math.NaN()})
-		}
-	}
-	return ts
 }
 
 func runYield(cmd *cobra.Command, path string, fl *yieldFlags) error {
