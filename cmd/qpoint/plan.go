@@ -17,7 +17,7 @@ func planError(err error) error {
 	if !errors.As(err, &re) {
 		return analysisError(err)
 	}
-	if re.FromFile() {
+	if re.FromFile() || len(re.Settings) == 0 {
 		return inputError(err)
 	}
 	names := make([]string, len(re.Settings))

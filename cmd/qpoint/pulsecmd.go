@@ -98,7 +98,7 @@ the flags, else from the file's analysis.pulse.`,
 }
 
 // pulseSetup is a resolved pulse run: the circuit at its bias point and
-// the settings, with where each setting came from for messages.
+// the plan.
 type pulseSetup struct {
 	c        *circuit.Circuit
 	p        *bias.Point
@@ -108,176 +108,75 @@ type pulseSetup struct {
 	outName  string
 	levelDBm float64
 	probeDBm float64 // NaN for no probe or the default
-	source   map[string]string
+	plan     *plan.Pulse
 }
 
 // where names the flag or file key a setting came from.
 func (s *pulseSetup) where(field string) string {
-	if w, ok := s.source[field]; ok {
+	if w := s.plan.Where(field); w != "" {
 		return w
 	}
 	return "flag --" + field
 }
 
-// resolvePulse resolves the flags and the file's defaults for a loaded
-// circuit and linearises it at p, solving the bias first when p is nil.
+// resolvePulse reads the flags into a request, resolves it on the plan,
+// and linearises the circuit at p, solving the bias first when p is nil.
 func resolvePulse(c *circuit.Circuit, fl *pulseFlags, p *bias.Point) (*pulseSetup, error) {
-	if len(c.Ports) == 0 {
-		return nil, inputError(fmt.Errorf("%s: the circuit has no ports; a pulse needs an input port (add a `ports:` list)", c.File))
-	}
-	if err := transient.Check(c); err != nil {
-		return nil, inputError(fmt.Errorf("%s: %w", c.File, err))
-	}
-	def := c.Analysis.Pulse
-	s := &pulseSetup{c: c, source: map[string]string{}, probeDBm: math.NaN()}
-	fileKey := func(key string) string { return "analysis.pulse." + key + " in " + c.File }
-	input, output := fl.input, fl.output
-	if input == "" && def.Set {
-		input = def.Input
-	}
-	if output == "" && def.Set {
-		output = def.Output
-	}
-	sp, err := plan.SignalPath(c, input, output)
-	if err != nil {
-		return nil, planError(err)
-	}
-	s.inName, s.outName = sp.InputName, sp.OutputName
-	z0 := c.Ports[sp.Input].Impedance
-
-	// Each time setting: the flag, else the file's value.
-	readTime := func(flag, text string, fromFile float64, required bool) (float64, error) {
-		if text != "" {
-			v, err := circuit.ParseBounded(text, circuit.Time)
-			if err != nil {
-				return 0, inputError(fmt.Errorf("flag --%s: %w", flag, err))
-			}
-			return v, nil
+	req := plan.PulseRequest{Input: fl.input, Output: fl.output, Pulses: fl.pulses,
+		RelativeTolerance: fl.tolerance, MaxSteps: fl.maxSteps, NoPeriod: fl.period == "none", NoProbe: fl.probe == "none"}
+	var err error
+	readTime := func(flag, text string, dst *float64) error {
+		if text == "" || text == "none" {
+			return nil
 		}
-		if def.Set && fromFile != 0 {
-			s.source[flag] = fileKey(flag)
-			return fromFile, nil
+		v, err := circuit.ParseBounded(text, circuit.Time)
+		if err != nil {
+			return inputError(fmt.Errorf("flag --%s: %w", flag, err))
 		}
-		if required {
-			return 0, inputError(fmt.Errorf("no pulse %s: give --%s (e.g. --%s 1us) or analysis.pulse.%s in the file", flag, flag, flag, flag))
-		}
-		return 0, nil
+		*dst = v
+		return nil
 	}
-	carrier := 0.0
-	switch {
-	case fl.carrier != "":
-		if carrier, err = circuit.ParseBounded(fl.carrier, circuit.Frequency); err != nil {
-			return nil, inputError(fmt.Errorf("flag --carrier: %w", err))
-		}
-	case def.Set:
-		carrier, s.source["carrier"] = def.CarrierHz, fileKey("carrier")
-	case c.Analysis.Distortion.Set:
-		carrier, s.source["carrier"] = c.Analysis.Distortion.FrequencyHz, "analysis.distortion.frequency in "+c.File
-	default:
-		return nil, inputError(fmt.Errorf("no carrier frequency: give --carrier (e.g. 3GHz) or analysis.pulse.carrier in the file"))
-	}
-	var lv circuit.Level
-	switch {
-	case fl.level != "":
-		if lv, err = circuit.ParseLevel(fl.level); err != nil {
-			return nil, inputError(fmt.Errorf("flag --level: %w", err))
-		}
-	case def.Set:
-		lv, s.source["level"] = def.Level, fileKey("level")
-	default:
-		return nil, inputError(fmt.Errorf("no pulse level: give --level (e.g. 40dBm) or analysis.pulse.level in the file"))
-	}
-	s.levelDBm = levelDBm(lv, z0)
-	width, err := readTime("width", fl.width, def.Width, true)
-	if err != nil {
-		return nil, err
-	}
-	rise, err := readTime("rise", fl.rise, def.Rise, false)
-	if err != nil {
-		return nil, err
-	}
-	fall, err := readTime("fall", fl.fall, def.Fall, false)
-	if err != nil {
-		return nil, err
-	}
-	period := 0.0
-	if fl.period != "none" {
-		if period, err = readTime("period", fl.period, def.Period, false); err != nil {
+	for _, t := range []struct {
+		flag, text string
+		dst        *float64
+	}{{"width", fl.width, &req.Width}, {"rise", fl.rise, &req.Rise}, {"fall", fl.fall, &req.Fall}, {"period", fl.period, &req.Period}, {"after", fl.after, &req.After}} {
+		if err := readTime(t.flag, t.text, t.dst); err != nil {
 			return nil, err
 		}
 	}
-	edge := math.Max(width/20, 1/carrier)
-	if rise == 0 && fl.rise == "" && (!def.Set || def.Rise == 0) {
-		rise = math.Min(edge, width)
+	if fl.after != "" && !(req.After > 0) {
+		return nil, inputError(fmt.Errorf("flag --after: %s; accepted: a positive time", fl.after))
 	}
-	if fall == 0 && fl.fall == "" && (!def.Set || def.Fall == 0) {
-		fall = math.Min(edge, width)
-	}
-	count := fl.pulses
-	switch {
-	case count < 0:
-		return nil, inputError(fmt.Errorf("flag --pulses: %d; accepted: 1 to 1000", count))
-	case count == 0 && def.Set && def.Pulses > 0 && period != 0:
-		count, s.source["count"] = def.Pulses, fileKey("pulses")
-	case count == 0 && period != 0:
-		count = 2
-	case count == 0:
-		count = 1
-	}
-	if count > 1 && period == 0 {
-		return nil, inputError(fmt.Errorf("flag --pulses: %d pulses need a period; give --period", count))
-	}
-	if _, fromFile := s.source["count"]; !fromFile {
-		s.source["count"] = "flag --pulses"
-	}
-
-	set := transient.PulseSettings{
-		Input: sp.Input, Output: sp.Output,
-		Pulse: transient.Pulse{CarrierHz: carrier, CarrierEMF: ac.DBmToEMF(s.levelDBm, z0),
-			Width: width, Rise: rise, Fall: fall, Period: period, Count: count},
-		Transient: transient.Settings{RelativeTolerance: fl.tolerance, MaxSteps: fl.maxSteps},
-	}
-	if !(fl.tolerance > 0 && fl.tolerance <= 0.1) {
-		return nil, inputError(fmt.Errorf("flag --tolerance: %g; accepted: above 0, at most 0.1 (1e-3 is the default)", fl.tolerance))
-	}
-	if fl.maxSteps < 1000 || fl.maxSteps > 1_000_000_000 {
-		return nil, inputError(fmt.Errorf("flag --max-steps: %d; accepted: 1000 to 1e9", fl.maxSteps))
-	}
-	if fl.after != "" {
-		if set.After, err = circuit.ParseBounded(fl.after, circuit.Time); err != nil {
-			return nil, inputError(fmt.Errorf("flag --after: %w", err))
-		}
-		if !(set.After > 0) {
-			return nil, inputError(fmt.Errorf("flag --after: %s; accepted: a positive time", fl.after))
+	if fl.carrier != "" {
+		if req.CarrierHz, err = circuit.ParseBounded(fl.carrier, circuit.Frequency); err != nil {
+			return nil, inputError(fmt.Errorf("flag --carrier: %w", err))
 		}
 	}
-	// The probe: none, a level, and a frequency.
-	probeHz := carrier
 	if fl.probeFrequency != "" {
-		if probeHz, err = circuit.ParseBounded(fl.probeFrequency, circuit.Frequency); err != nil {
+		if req.ProbeFrequencyHz, err = circuit.ParseBounded(fl.probeFrequency, circuit.Frequency); err != nil {
 			return nil, inputError(fmt.Errorf("flag --probe-frequency: %w", err))
 		}
 	}
-	switch fl.probe {
-	case "":
-		if fl.probeFrequency != "" {
-			s.probeDBm = transient.DefaultProbeDBm
-			set.Probe = &transient.Probe{FrequencyHz: probeHz, EMF: ac.DBmToEMF(s.probeDBm, z0)}
+	if fl.level != "" {
+		lv, err := circuit.ParseLevel(fl.level)
+		if err != nil {
+			return nil, inputError(fmt.Errorf("flag --level: %w", err))
 		}
-	case "none":
-		set.Probe = &transient.Probe{}
-	default:
-		plv, err := circuit.ParseLevel(fl.probe)
+		req.Level = &lv
+	}
+	if fl.probe != "" && fl.probe != "none" {
+		lv, err := circuit.ParseLevel(fl.probe)
 		if err != nil {
 			return nil, inputError(fmt.Errorf("flag --probe: %w; or none", err))
 		}
-		s.probeDBm = levelDBm(plv, z0)
-		set.Probe = &transient.Probe{FrequencyHz: probeHz, EMF: ac.DBmToEMF(s.probeDBm, z0)}
+		req.Probe = &lv
 	}
-	if err := set.Pulse.Check(); err != nil {
-		return nil, s.requestError(err)
+	pl, err := plan.ResolvePulse(c, req)
+	if err != nil {
+		return nil, planError(err)
 	}
-	s.settings = set
+	s := &pulseSetup{c: c, settings: pl.Settings, inName: pl.InputName, outName: pl.OutputName,
+		levelDBm: pl.LevelDBm, probeDBm: pl.ProbeDBm, plan: pl}
 	if p == nil {
 		if p, err = solveWithTemperature(c, fl.temperature); err != nil {
 			return nil, err
@@ -288,31 +187,6 @@ func resolvePulse(c *circuit.Circuit, fl *pulseFlags, p *bias.Point) (*pulseSetu
 		return nil, analysisError(err)
 	}
 	return s, nil
-}
-
-// levelDBm returns a level as available power behind z0: a peak voltage
-// is what the generator delivers into a matched load, half its EMF.
-func levelDBm(lv circuit.Level, z0 float64) float64 {
-	if lv.IsPower {
-		return lv.DBm
-	}
-	return ac.EMFToDBm(2*lv.PeakVolts, z0)
-}
-
-// requestError turns the library's refusal of a pulse into an input error
-// naming the flag or file key it concerns.
-func (s *pulseSetup) requestError(err error) error {
-	var re *transient.RequestError
-	if !errors.As(err, &re) {
-		return err
-	}
-	switch re.Field {
-	case "steps":
-		return inputError(fmt.Errorf("flag --max-steps: %s", re.Message))
-	case "delay":
-		return inputError(fmt.Errorf("the pulse: %s", re.Message))
-	}
-	return inputError(fmt.Errorf("%s: %s", s.where(re.Field), re.Message))
 }
 
 func runPulse(cmd *cobra.Command, path string, fl *pulseFlags) error {
@@ -748,4 +622,20 @@ func pulseSection(c *circuit.Circuit, temperature string, p *bias.Point) (report
 		}
 	}
 	return sec, cards, nil
+}
+
+// requestError names the flag or file key of a request the transient
+// refused while running.
+func (s *pulseSetup) requestError(err error) error {
+	var re *transient.RequestError
+	if !errors.As(err, &re) {
+		return err
+	}
+	switch re.Field {
+	case "steps":
+		return inputError(fmt.Errorf("flag --max-steps: %s", re.Message))
+	case "delay":
+		return inputError(fmt.Errorf("the pulse: %s", re.Message))
+	}
+	return inputError(fmt.Errorf("%s: %s", s.where(re.Field), re.Message))
 }
