@@ -289,22 +289,6 @@ func writePulseHeader(w io.Writer, s *pulseSetup, res *transient.PulseResult) {
 	}
 }
 
-// dbmOf returns a power in dBm, or "—".
-func dbmOf(w float64) string {
-	if !(w > 0) || math.IsInf(w, 0) {
-		return "—"
-	}
-	return fmt.Sprintf("%.2f dBm", 10*math.Log10(w*1e3))
-}
-
-// timeOf formats a duration, or "—" for none.
-func timeOf(t float64) string {
-	if math.IsNaN(t) || math.IsInf(t, 0) {
-		return "—"
-	}
-	return si.Format(t, "s", 4)
-}
-
 // writePulseFigures prints the limiter's or the detector's figures of the
 // last pulse, with each pulse's when there are several.
 func writePulseFigures(w io.Writer, s *pulseSetup, res *transient.PulseResult) {
@@ -312,106 +296,14 @@ func writePulseFigures(w io.Writer, s *pulseSetup, res *transient.PulseResult) {
 		fmt.Fprintln(w, "The run ended before the pulse did: no figures.")
 		return
 	}
-	for _, t := range pulseTables(s, res) {
+	for _, t := range report.PulseTables(s.nw, res) {
 		t.WriteText(w)
 	}
 }
 
-// pulseTables returns the figures of the last pulse, with each pulse's
-// when there are several.
-func pulseTables(s *pulseSetup, res *transient.PulseResult) []*report.Table {
-	f := res.Figures
-	title := "Limiter figures"
-	if len(res.Pulses) > 1 {
-		title += fmt.Sprintf(" (pulse %d of %d)", f.Pulse+1, len(res.Pulses))
-	}
-	t := &report.Table{Caption: title, Header: []string{"quantity", "value", ""}}
-	if res.Kind == transient.Detector {
-		t.Caption = strings.Replace(title, "Limiter", "Detector", 1)
-		t.Add("video change at the end of the flat top", si.Format(f.Settled, "V", 4), "from the DC point's "+si.Format(res.Baseline, "V", 4))
-		if !math.IsNaN(res.SteadyShift) {
-			t.Add("steady-state DC shift", si.Format(res.SteadyShift, "V", 4), fmt.Sprintf("continuous carrier; the pulse reached %s", shareDB(f.Settled, res.SteadyShift)))
-		}
-		t.Add("rise time, 10-90 %", timeOf(f.RiseTime), "of the change towards the steady state")
-		t.Add("fall time, 90-10 %", timeOf(f.FallTime), "after the flat top")
-		return []*report.Table{t}
-	}
-	spikeNote := fmt.Sprintf("%s after the pulse's start", timeOf(f.SpikeTime-f.Start))
-	t.Add("spike leakage, peak", dbmOf(f.SpikePeak), spikeNote)
-	energy := si.Format(f.SpikeEnergy, "J", 3)
-	note := "above the flat leakage"
-	if f.SpikeEnergy == 0 {
-		energy, note = "0 J", "no spike: the peak stays within 1 dB of the flat leakage"
-	}
-	if math.IsNaN(f.SpikeEnergy) {
-		energy, note = "—", ""
-	}
-	t.Add("spike leakage, energy", energy, note)
-	t.Add("flat leakage", dbmOf(f.Flat), fmt.Sprintf("over the end of the flat top; %s below the pulse", attenuation(res.LevelDBm(s.nw), f.Flat)))
-	if res.Settings.Pulse.ProbeEMF != 0 {
-		t.Add("recovery to within 1 dB", recoveryText(f.Recovery1dB, f.Recovery1dBBound), "of the probe's loss before the pulse")
-		t.Add("recovery to within 3 dB", recoveryText(f.Recovery3dB, f.Recovery3dBBound), "")
-		t.Add("probe loss before the pulse", fmt.Sprintf("%.3f dB", res.LossBefore), fmt.Sprintf("small-signal %.3f dB", res.SmallSignalLoss))
-	} else {
-		t.Add("recovery", "—", "no probe (--probe none)")
-	}
-	tables := []*report.Table{t}
-	if len(res.Pulses) > 1 {
-		pt := &report.Table{Caption: "Each pulse", Header: []string{"pulse", "start", "spike peak", "spike energy", "flat leakage", "recovery 1 dB", "recovery 3 dB"}}
-		for _, q := range res.Pulses {
-			pt.Add(strconv.Itoa(q.Pulse+1), si.Format(q.Start, "s", 4), dbmOf(q.SpikePeak), si.Format(q.SpikeEnergy, "J", 3), dbmOf(q.Flat),
-				recoveryText(q.Recovery1dB, q.Recovery1dBBound), recoveryText(q.Recovery3dB, q.Recovery3dBBound))
-		}
-		tables = append(tables, pt)
-	}
-	return tables
-}
-
-// shareDB says how close a value came to a reference, in dB.
-func shareDB(v, ref float64) string {
-	d := 20 * math.Log10(math.Abs(v/ref))
-	if math.IsNaN(d) || math.IsInf(d, 0) {
-		return "—"
-	}
-	return fmt.Sprintf("%+.2f dB of it", d)
-}
-
-// attenuation is how far the flat leakage lies below the carrier's
-// available power.
-func attenuation(levelDBm, flatW float64) string {
-	if !(flatW > 0) {
-		return "—"
-	}
-	return fmt.Sprintf("%.1f dB", levelDBm-10*math.Log10(flatW*1e3))
-}
-
-// recoveryText formats a recovery time, marking an upper bound.
-func recoveryText(t float64, bound bool) string {
-	switch {
-	case math.IsNaN(t):
-		return "—"
-	case bound:
-		return "≤ " + si.Format(t, "s", 3)
-	}
-	return si.Format(t, "s", 4)
-}
-
 // writePulseStress prints each diode's extremes.
 func writePulseStress(w io.Writer, res *transient.PulseResult) {
-	stressTableOf(res).WriteText(w)
-}
-
-// stressTableOf returns each diode's extremes under the pulse.
-func stressTableOf(res *transient.PulseResult) *report.Table {
-	t := &report.Table{Caption: "Diodes under the pulse", Header: []string{"diode", "peak junction current", "peak reverse voltage", "mean dissipation over the pulse", "past the knee"}}
-	for _, d := range res.Diodes {
-		knee := "—"
-		if d.PastKnee > 0 {
-			knee = si.Format(d.PastKnee, "s", 3)
-		}
-		t.Add(d.Name, si.Format(d.PeakCurrent, "A", 3), si.Format(d.PeakReverseVoltage, "V", 3), si.Format(d.PulsePower, "W", 3), knee)
-	}
-	return t
+	report.PulseStressTable(res).WriteText(w)
 }
 
 // writePulseCautions prints the typed cautions' messages.
@@ -546,9 +438,9 @@ func writePulseSweep(w io.Writer, s *pulseSetup, pts []transient.LevelPoint) {
 		}
 		f := r.Figures
 		if detector {
-			row = append(row, si.Format(f.Settled, "V", 4), si.Format(r.SteadyShift, "V", 4), timeOf(f.RiseTime), timeOf(f.FallTime))
+			row = append(row, si.Format(f.Settled, "V", 4), si.Format(r.SteadyShift, "V", 4), report.TimeOf(f.RiseTime), report.TimeOf(f.FallTime))
 		} else {
-			row = append(row, dbmOf(f.SpikePeak), si.Format(f.SpikeEnergy, "J", 3), dbmOf(f.Flat), recoveryText(f.Recovery1dB, f.Recovery1dBBound), recoveryText(f.Recovery3dB, f.Recovery3dBBound))
+			row = append(row, report.DBmOf(f.SpikePeak), si.Format(f.SpikeEnergy, "J", 3), report.DBmOf(f.Flat), report.RecoveryText(f.Recovery1dB, f.Recovery1dBBound), report.RecoveryText(f.Recovery3dB, f.Recovery3dBBound))
 		}
 		for _, d := range r.Diodes {
 			row = append(row, si.Format(d.PeakCurrent, "A", 3))
@@ -594,11 +486,11 @@ func pulseSection(c *circuit.Circuit, temperature string, p *bias.Point) (report
 		sec.Blocks = append(sec.Blocks, report.Block{Note: "The run " + runErr.Error() + "; the figures are of what it reached."})
 	}
 	if len(res.Pulses) > 0 {
-		for _, t := range pulseTables(s, res) {
+		for _, t := range report.PulseTables(s.nw, res) {
 			sec.Blocks = append(sec.Blocks, report.Block{Table: t})
 		}
 	}
-	sec.Blocks = append(sec.Blocks, report.Block{Table: stressTableOf(res)})
+	sec.Blocks = append(sec.Blocks, report.Block{Table: report.PulseStressTable(res)})
 	for _, f := range plots.PulseFigures(res, s.nw) {
 		fig, err := svgOf(f)
 		if err != nil {
@@ -613,11 +505,11 @@ func pulseSection(c *circuit.Circuit, temperature string, p *bias.Point) (report
 	f := res.Figures
 	if len(res.Pulses) > 0 {
 		if res.Kind == transient.Detector {
-			cards = append(cards, report.Card{Label: "pulse video", Value: si.Format(f.Settled, "V", 3), Detail: "rise " + timeOf(f.RiseTime) + ", fall " + timeOf(f.FallTime)})
+			cards = append(cards, report.Card{Label: "pulse video", Value: si.Format(f.Settled, "V", 3), Detail: "rise " + report.TimeOf(f.RiseTime) + ", fall " + report.TimeOf(f.FallTime)})
 		} else {
-			cards = append(cards, report.Card{Label: "flat leakage", Value: dbmOf(f.Flat), Detail: fmt.Sprintf("%.1f dBm pulse; spike %s", s.levelDBm, dbmOf(f.SpikePeak))})
+			cards = append(cards, report.Card{Label: "flat leakage", Value: report.DBmOf(f.Flat), Detail: fmt.Sprintf("%.1f dBm pulse; spike %s", s.levelDBm, report.DBmOf(f.SpikePeak))})
 			if pl.ProbeEMF != 0 {
-				cards = append(cards, report.Card{Label: "recovery", Value: recoveryText(f.Recovery1dB, f.Recovery1dBBound), Detail: "to within 1 dB of the loss before the pulse"})
+				cards = append(cards, report.Card{Label: "recovery", Value: report.RecoveryText(f.Recovery1dB, f.Recovery1dBBound), Detail: "to within 1 dB of the loss before the pulse"})
 			}
 		}
 	}

@@ -276,7 +276,7 @@ func distortionSection(s *distortionSetup) (report.Section, []report.Card, error
 	if len(sweep) > 1 {
 		comp, compressed = ac.Compression(sweep, cmplx.Abs(oneEst.Linear)/oneEst.Drive.EMF)
 	}
-	for _, f := range distortionFigures(oneEst, st, sweep, comp, compressed) {
+	for _, f := range report.DistortionFigures(oneEst, st, sweep, comp, compressed) {
 		fig, err := svgOf(f)
 		if err != nil {
 			return sec, nil, analysisError(err)
@@ -341,7 +341,7 @@ func studySection(c *circuit.Circuit) (report.Section, error) {
 	sec.Intro = fmt.Sprintf("%s from %s to %s in %d steps (%d Newton iterations with continuation).", r.Settings.Axis.Vary.Text,
 		report.FormatCell(r.Settings.Axis.Values[0], r.Settings.Axis.Vary.Quantity.Unit()), report.FormatCell(r.Settings.Axis.Values[len(r.Settings.Axis.Values)-1], r.Settings.Axis.Vary.Quantity.Unit()),
 		len(r.Steps), r.Newton)
-	for _, f := range studyFigures(r, "") {
+	for _, f := range report.StudyFigures(r, "") {
 		fig, err := svgOf(f)
 		if err != nil {
 			return sec, analysisError(err)

@@ -6,7 +6,6 @@ import (
 	"fmt"
 	"io"
 	"math"
-	"slices"
 	"strconv"
 	"strings"
 
@@ -172,7 +171,7 @@ func runYield(cmd *cobra.Command, path string, fl *yieldFlags) error {
 	}
 	var figs []*plots.Figure
 	if fl.plotsDir != "" {
-		figs = yieldFigures(r)
+		figs = report.YieldFigures(r)
 	}
 	if err := refuseInputs(append([]string{fl.csvPath}, figurePaths(fl.plotsDir, figs)...)...); err != nil {
 		return err
@@ -200,43 +199,13 @@ func runYield(cmd *cobra.Command, path string, fl *yieldFlags) error {
 	return nil
 }
 
-// yieldFigures draws a histogram of each target's worst reading.
-func yieldFigures(r *yield.Result) []*plots.Figure {
-	var figs []*plots.Figure
-	for t := range r.Targets {
-		figs = append(figs, plots.YieldHistogram(r, t))
-	}
-	return figs
-}
-
-// temperatureList prints the temperatures in degrees Celsius.
-func temperatureList(ks []float64) string {
-	var parts []string
-	for _, k := range ks {
-		parts = append(parts, fmt.Sprintf("%.2f °C", report.Celsius(k)))
-	}
-	return strings.Join(parts, ", ")
-}
-
-// percentOf prints a fraction as a percentage with enough digits for a
-// yield near 100 %.
-func percentOf(f float64) string {
-	if math.IsNaN(f) {
-		return "—"
-	}
-	if math.Abs(f) < 5e-5 {
-		f = 0 // no "-0.00 %" for a share that differences leave a hair below zero
-	}
-	return strconv.FormatFloat(100*f, 'f', 2, 64) + " %"
-}
-
 func writeYield(w io.Writer, r *yield.Result) {
 	c := r.Circuit
 	fmt.Fprintf(w, "%s\n", c.Name)
 	fmt.Fprintf(w, "  file         %s\n", c.File)
 	writeOverrides(w, c)
 	fmt.Fprintf(w, "  runs         %d, seed %d, %d workers, in %s\n", len(r.Runs), r.Settings.Seed, r.Stats.Workers, r.Stats.Runtime.Round(1e6))
-	fmt.Fprintf(w, "  temperatures %s\n", temperatureList(r.TemperaturesK))
+	fmt.Fprintf(w, "  temperatures %s\n", report.TemperatureList(r.TemperaturesK))
 	fmt.Fprintf(w, "  tolerances   %d values, %d groups; %d analyses, %d Newton iterations\n",
 		len(c.Tolerances), len(c.ToleranceGroups), r.Stats.Evaluations, r.Stats.NewtonIterations)
 	limited := false
@@ -245,12 +214,12 @@ func writeYield(w io.Writer, r *yield.Result) {
 	}
 	if limited {
 		fmt.Fprintf(w, "\nYield %s: %d of %d runs meet every target (95 %% interval %s to %s, Wilson score)\n",
-			percentOf(r.Yield), r.Passed, len(r.Runs), percentOf(r.Interval[0]), percentOf(r.Interval[1]))
+			report.PercentOf(r.Yield), r.Passed, len(r.Runs), report.PercentOf(r.Interval[0]), report.PercentOf(r.Interval[1]))
 	}
-	yieldTargetTable(r).WriteText(w)
-	yieldShareTable(r).WriteText(w)
+	report.YieldTargetTable(r).WriteText(w)
+	report.YieldShareTable(r).WriteText(w)
 	if len(r.Corners) > 0 {
-		yieldCornerTable(r).WriteText(w)
+		report.YieldCornerTable(r).WriteText(w)
 	}
 	if len(r.Cautions) > 0 {
 		fmt.Fprintln(w)
@@ -259,118 +228,6 @@ func writeYield(w io.Writer, r *yield.Result) {
 		}
 	}
 	fmt.Fprintln(w)
-}
-
-func yieldTargetTable(r *yield.Result) *report.Table {
-	t := &report.Table{Caption: "Targets (each run's worst reading over the temperatures)",
-		Header: []string{"target", "nominal", "mean", "std dev", "first-order std dev", "0.1 %", "99.9 %", "runs meeting it"}}
-	lo, hi := slices.Index(yield.QuantileLevels, 0.001), slices.Index(yield.QuantileLevels, 0.999)
-	for _, ts := range r.Targets {
-		u := ts.Target.Measure.Unit
-		pass := percentOf(ts.PassFraction)
-		if ts.Target.Bound == yield.Observe {
-			pass = "(no limit)"
-		}
-		t.Add(ts.Target.Text, report.FormatMeasure(ts.Nominal, u), report.FormatMeasure(ts.Mean, u), formatSpread(ts.Std, u),
-			formatSpread(ts.LinearStd, u), report.FormatMeasure(ts.Quantiles[lo], u), report.FormatMeasure(ts.Quantiles[hi], u), pass)
-	}
-	return t
-}
-
-// formatSpread prints a standard deviation: dB figures with three
-// decimals, the rest with SI prefixes.
-func formatSpread(v float64, unit string) string {
-	if math.IsNaN(v) {
-		return "—"
-	}
-	switch unit {
-	case "dB", "dBc", "dBm":
-		return strconv.FormatFloat(v, 'f', 3, 64) + " " + unit
-	}
-	return report.FormatMeasure(v, unit)
-}
-
-// yieldShareTable ranks the values by their largest share of any
-// target's variance.
-func yieldShareTable(r *yield.Result) *report.Table {
-	t := &report.Table{Caption: "Which value to tighten: share of each target's variance (first order, central differences)",
-		Header: []string{"value", "spread"}}
-	for _, ts := range r.Targets {
-		t.Header = append(t.Header, ts.Target.Text)
-	}
-	c := r.Circuit
-	nv := len(c.Tolerances)
-	best := make([]float64, nv)
-	for k := range best {
-		best[k] = math.Inf(-1)
-		for ti := range r.Targets {
-			if s := r.Sensitivities[ti*nv+k].Share; s > best[k] {
-				best[k] = s
-			}
-		}
-	}
-	order := make([]int, nv)
-	for k := range order {
-		order[k] = k
-	}
-	slices.SortStableFunc(order, func(a, b int) int {
-		switch {
-		case best[a] > best[b]:
-			return -1
-		case best[a] < best[b]:
-			return 1
-		}
-		return 0
-	})
-	for _, k := range order {
-		tol := &c.Tolerances[k]
-		row := []string{tol.Name, spreadText(tol)}
-		for ti := range r.Targets {
-			row = append(row, percentOf(r.Sensitivities[ti*nv+k].Share))
-		}
-		t.Add(row...)
-	}
-	for gi, g := range c.ToleranceGroups {
-		row := []string{"group " + g.Name, fmt.Sprintf("ρ = %g", g.Correlation)}
-		for ti := range r.Targets {
-			row = append(row, percentOf(r.Groups[ti*len(c.ToleranceGroups)+gi].Share))
-		}
-		t.Add(row...)
-	}
-	return t
-}
-
-// spreadText says how a value spreads, as the file wrote it.
-func spreadText(t *circuit.Tolerance) string {
-	switch t.Distribution {
-	case circuit.Uniform:
-		return "±" + t.Text + " band"
-	case circuit.Normal:
-		return "σ " + t.Text
-	}
-	return "σ(ln) " + t.Text
-}
-
-func yieldCornerTable(r *yield.Result) *report.Table {
-	t := &report.Table{Caption: "Worst-case corners (each value at its band's end or 3 σ, the way that worsens the target)",
-		Header: []string{"target", "limit", "nominal", "corner", "worst run", "corner meets it"}}
-	for _, cn := range r.Corners {
-		ts := r.Targets[cn.Target]
-		u := ts.Target.Measure.Unit
-		worst := ts.Min
-		if ts.Target.Bound == yield.AtMost {
-			worst = ts.Max
-		}
-		verdict := "yes"
-		if !cn.Passes {
-			verdict = "no"
-		}
-		if cn.Err != nil {
-			verdict = "not solved"
-		}
-		t.Add(ts.Target.Text, report.FormatMeasure(ts.Target.Limit, u), report.FormatMeasure(ts.Nominal, u), report.FormatMeasure(cn.Reading, u), report.FormatMeasure(worst, u), verdict)
-	}
-	return t
 }
 
 // writeYieldCSV writes one row per run: the drawn values, each target's
@@ -455,23 +312,23 @@ func yieldSection(c *circuit.Circuit, temperature string) (report.Section, []rep
 		return sec, nil, analysisError(err)
 	}
 	sec.Intro = fmt.Sprintf("%d circuits drawn over the file's %d toleranced values (seed %d) and analysed at %s.",
-		len(r.Runs), len(c.Tolerances), r.Settings.Seed, temperatureList(r.TemperaturesK))
+		len(r.Runs), len(c.Tolerances), r.Settings.Seed, report.TemperatureList(r.TemperaturesK))
 	var cards []report.Card
 	if len(r.Corners) > 0 {
 		sec.Intro += fmt.Sprintf(" %d of them meet every target: a yield of %s, 95 %% interval %s to %s (Wilson score).",
-			r.Passed, percentOf(r.Yield), percentOf(r.Interval[0]), percentOf(r.Interval[1]))
-		cards = append(cards, report.Card{Label: "yield", Value: percentOf(r.Yield),
-			Detail: fmt.Sprintf("%d of %d drawn circuits meet every target; 95 %% interval %s to %s", r.Passed, len(r.Runs), percentOf(r.Interval[0]), percentOf(r.Interval[1]))})
+			r.Passed, report.PercentOf(r.Yield), report.PercentOf(r.Interval[0]), report.PercentOf(r.Interval[1]))
+		cards = append(cards, report.Card{Label: "yield", Value: report.PercentOf(r.Yield),
+			Detail: fmt.Sprintf("%d of %d drawn circuits meet every target; 95 %% interval %s to %s", r.Passed, len(r.Runs), report.PercentOf(r.Interval[0]), report.PercentOf(r.Interval[1]))})
 	} else {
 		sec.Intro += " The file gives no yield targets (analysis.yield), so this shows how the main figures spread."
 	}
-	for _, t := range []*report.Table{yieldTargetTable(r), yieldShareTable(r)} {
+	for _, t := range []*report.Table{report.YieldTargetTable(r), report.YieldShareTable(r)} {
 		sec.Blocks = append(sec.Blocks, report.Block{Table: t})
 	}
 	if len(r.Corners) > 0 {
-		sec.Blocks = append(sec.Blocks, report.Block{Table: yieldCornerTable(r)})
+		sec.Blocks = append(sec.Blocks, report.Block{Table: report.YieldCornerTable(r)})
 	}
-	for _, f := range yieldFigures(r) {
+	for _, f := range report.YieldFigures(r) {
 		fig, err := svgOf(f)
 		if err != nil {
 			return sec, nil, analysisError(err)
