@@ -4,7 +4,6 @@ import (
 	"errors"
 	"fmt"
 	"io"
-	"strings"
 
 	"github.com/spf13/cobra"
 
@@ -108,18 +107,9 @@ func loadCircuit(warn io.Writer, path string, sets []string, temperature string)
 	return c, nil
 }
 
-// overridesLine lists the --set values a run applied, or "" for none.
-func overridesLine(c *circuit.Circuit) string {
-	var parts []string
-	for _, o := range c.Overrides {
-		parts = append(parts, o.String())
-	}
-	return strings.Join(parts, ", ")
-}
-
 // writeOverrides prints the header line of the --set values, if any.
 func writeOverrides(w io.Writer, c *circuit.Circuit) {
-	if l := overridesLine(c); l != "" {
+	if l := report.OverridesLine(c); l != "" {
 		fmt.Fprintf(w, "  set          %s\n", l)
 	}
 }

@@ -362,7 +362,7 @@ func runDistortion(cmd *cobra.Command, path string, fl *distortionFlags) error {
 		for _, p := range sweep {
 			doc.LevelSweep = append(doc.LevelSweep, levelJSON{number(p.LevelDBm), waveformJSONOf(p.Steady)})
 		}
-		doc.Cautions = append(doc.Cautions, sweepCautions(sweep)...)
+		doc.Cautions = append(doc.Cautions, report.SweepCautions(sweep)...)
 		if transfer, tss, err = detectorTransfer(s, sweep, fl.videoBandwidth); err != nil {
 			return err
 		}
@@ -397,7 +397,7 @@ func runDistortion(cmd *cobra.Command, path string, fl *distortionFlags) error {
 	}
 	if len(sweep) > 0 {
 		writeLevelSweep(out, sweep, oneEst, compression, compressed)
-		writeCautions(out, sweepCautions(sweep))
+		writeCautions(out, report.SweepCautions(sweep))
 	}
 	if transfer != nil {
 		writeTransfer(out, transfer, tss)
@@ -606,28 +606,6 @@ func writeCautions(w io.Writer, c []string) {
 	for _, x := range c {
 		fmt.Fprintf(w, "  ! %s\n", x)
 	}
-}
-
-// sweepCautions returns, for each diode and kind of overstress met in a
-// level sweep, the lowest level at which it appears.
-func sweepCautions(pts []ac.LevelPoint) []string {
-	type key struct {
-		diode string
-		kind  ac.StressKind
-	}
-	seen := map[key]bool{}
-	var out []string
-	for _, p := range pts {
-		for _, c := range p.Steady.StressCautions() {
-			k := key{c.Diode, c.Kind}
-			if seen[k] {
-				continue
-			}
-			seen[k] = true
-			out = append(out, fmt.Sprintf("from %.1f dBm: %s", p.LevelDBm, c.Message))
-		}
-	}
-	return out
 }
 
 // writeJunctionDrive prints each junction's drive x = |v|/(n V_T) at the

@@ -17,7 +17,6 @@ import (
 	"qpoint/ac/plan"
 	"qpoint/bias"
 	"qpoint/bias/circuit"
-	"qpoint/bias/si"
 	"qpoint/plots"
 	"qpoint/plots/report"
 	"qpoint/smallsignal"
@@ -488,57 +487,4 @@ func noiseDocument(s *noiseSetup, o *plan.NoiseRun) *noiseJSON {
 			NEP: number(det.NEP), NEPFrequency: number(det.SpotHz), VideoTopResponse: number(det.TopResponse), TangentialSensitivity: number(det.TangentialW), TangentialDBm: number(det.TangentialDBm())}
 	}
 	return d
-}
-
-// noiseSection is the noise part of the design report: the file's
-// defaults, the tables of the command, and headline cards (the noise
-// figure at the file's carrier, or a detector's NEP and tangential
-// sensitivity). A circuit without ports gets a section that says so.
-func noiseSection(c *circuit.Circuit, temperature string, p *bias.Point) (report.Section, []report.Card, error) {
-	sec := report.Section{ID: "noise", Title: "Noise"}
-	if len(c.Ports) == 0 {
-		sec.Intro = "The circuit has no ports, so no noise is shown."
-		return sec, nil, nil
-	}
-	s, err := resolveNoiseFor(c, &noiseFlags{temperature: temperature}, p)
-	if err != nil {
-		sec.Intro = "The noise analysis could not be set up: " + err.Error()
-		return sec, nil, nil
-	}
-	o, err := s.plan.Run(s.nw)
-	if err != nil {
-		return sec, nil, err
-	}
-	var intro []string
-	for _, l := range report.NoiseSetupLines(s.c, s.nw, s.plan) {
-		intro = append(intro, l[0]+": "+l[1])
-	}
-	sec.Intro = strings.Join(intro, "; ") + "."
-	for _, f := range report.NoiseFigures(o.Result) {
-		fig, err := svgOf(f)
-		if err != nil {
-			return sec, nil, analysisError(err)
-		}
-		sec.Blocks = append(sec.Blocks, report.Block{Figure: fig})
-	}
-	sec.Blocks = append(sec.Blocks, report.Block{Table: report.NoiseTable(o, 9)})
-	sec.Blocks = append(sec.Blocks, report.Block{Note: strings.Join(report.NoiseNotes(o), "; ") + "."})
-	if o.Band != nil {
-		sec.Blocks = append(sec.Blocks, report.Block{Table: report.BandTable(o)}, report.Block{Table: report.SourceTable(o)})
-	}
-	var cards []report.Card
-	if o.Detection != nil {
-		t, notes := report.DetectorTable(o)
-		sec.Blocks = append(sec.Blocks, report.Block{Table: t}, report.Block{Note: strings.Join(notes, "; ") + "."})
-		cards = append(cards,
-			report.Card{Label: "noise-equivalent power", Value: report.Density(o.Detection.NEP, "W/√Hz"), Detail: fmt.Sprintf("at %s video frequency", si.Format(o.Detection.SpotHz, "Hz", 3))},
-			report.Card{Label: "tangential sensitivity", Value: fmt.Sprintf("%.1f dBm", o.Detection.TangentialDBm()), Detail: fmt.Sprintf("at %s, video to %s", si.Format(o.Detection.CarrierHz, "Hz", 4), si.Format(o.Detection.Video.ToHz, "Hz", 3))})
-	} else if s.plan.Settings.Input >= 0 && s.plan.CarrierHz > 0 {
-		at, err := ac.Noise(s.nw, []float64{s.plan.CarrierHz}, s.plan.Settings)
-		if err == nil {
-			cards = append(cards, report.Card{Label: "noise figure", Value: report.FigureText(at.Points[0].FigureDB()),
-				Detail: fmt.Sprintf("%s → %s at %s, source at 290 K", s.plan.InputName, s.plan.OutputName, si.Format(s.plan.CarrierHz, "Hz", 4))})
-		}
-	}
-	return sec, cards, nil
 }

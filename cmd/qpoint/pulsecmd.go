@@ -463,59 +463,6 @@ func writePulseSweep(w io.Writer, s *pulseSetup, pts []transient.LevelPoint) {
 	fmt.Fprintf(w, "  cautions name their kinds; run one level (--level) to read them in full\n\n")
 }
 
-// pulseSection runs the file's pulse analysis for the report: its tables,
-// figures and cautions, and headline cards. A run that cannot be made is
-// a note in the section, not a failed report.
-func pulseSection(c *circuit.Circuit, temperature string, p *bias.Point) (report.Section, []report.Card, error) {
-	sec := report.Section{ID: "pulse", Title: "Under a pulse"}
-	s, err := resolvePulse(c, &pulseFlags{temperature: temperature, tolerance: 1e-3, maxSteps: 2_000_000}, p)
-	if err != nil {
-		sec.Intro = "The file's pulse could not be set up: " + err.Error()
-		return sec, nil, nil
-	}
-	res, runErr := transient.RunPulse(s.nw, s.settings)
-	if res == nil {
-		sec.Intro = "The pulse run failed: " + runErr.Error()
-		return sec, nil, nil
-	}
-	pl := res.Settings.Pulse
-	sec.Intro = fmt.Sprintf("Port %s driven by a %s carrier at %.1f dBm available, width %s, rise %s, fall %s; output at %s, read as a %s. The circuit is followed in time from its DC point (%s, %d steps).",
-		s.inName, si.Format(pl.CarrierHz, "Hz", 4), s.levelDBm, si.Format(pl.Width, "s", 3), si.Format(pl.Rise, "s", 3), si.Format(pl.Fall, "s", 3),
-		s.outName, res.Kind, res.Run.Stats.Method, res.Run.Stats.Accepted)
-	if runErr != nil {
-		sec.Blocks = append(sec.Blocks, report.Block{Note: "The run " + runErr.Error() + "; the figures are of what it reached."})
-	}
-	if len(res.Pulses) > 0 {
-		for _, t := range report.PulseTables(s.nw, res) {
-			sec.Blocks = append(sec.Blocks, report.Block{Table: t})
-		}
-	}
-	sec.Blocks = append(sec.Blocks, report.Block{Table: report.PulseStressTable(res)})
-	for _, f := range plots.PulseFigures(res, s.nw) {
-		fig, err := svgOf(f)
-		if err != nil {
-			return sec, nil, analysisError(err)
-		}
-		sec.Blocks = append(sec.Blocks, report.Block{Figure: fig})
-	}
-	var cards []report.Card
-	for _, x := range res.Cautions {
-		sec.Blocks = append(sec.Blocks, report.Block{Note: "Caution: " + x.Message})
-	}
-	f := res.Figures
-	if len(res.Pulses) > 0 {
-		if res.Kind == transient.Detector {
-			cards = append(cards, report.Card{Label: "pulse video", Value: si.Format(f.Settled, "V", 3), Detail: "rise " + report.TimeOf(f.RiseTime) + ", fall " + report.TimeOf(f.FallTime)})
-		} else {
-			cards = append(cards, report.Card{Label: "flat leakage", Value: report.DBmOf(f.Flat), Detail: fmt.Sprintf("%.1f dBm pulse; spike %s", s.levelDBm, report.DBmOf(f.SpikePeak))})
-			if pl.ProbeEMF != 0 {
-				cards = append(cards, report.Card{Label: "recovery", Value: report.RecoveryText(f.Recovery1dB, f.Recovery1dBBound), Detail: "to within 1 dB of the loss before the pulse"})
-			}
-		}
-	}
-	return sec, cards, nil
-}
-
 // requestError names the flag or file key of a request the transient
 // refused while running.
 func (s *pulseSetup) requestError(err error) error {
