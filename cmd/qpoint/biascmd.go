@@ -33,7 +33,8 @@ was tried), 2 bad input or usage.`,
   qpoint bias mixer.yaml --json > mixer-bias.json`,
 		Args: exactFile,
 		RunE: func(cmd *cobra.Command, args []string) error {
-			c, err := loadCircuit(cmd.ErrOrStderr(), args[0], sets, temperature)
+			g := guardOf(cmd)
+			c, err := g.loadCircuit(cmd.ErrOrStderr(), args[0], sets, temperature)
 			if err != nil {
 				return err
 			}
@@ -81,8 +82,8 @@ func exactFile(cmd *cobra.Command, args []string) error {
 // --temperature flag, which a --set of the temperature may not contradict.
 // The file's cautions (values that are legal but likely slips) go to
 // warn, one per line, as FILE:LINE:COL: caution: ....
-func loadCircuit(warn io.Writer, path string, sets []string, temperature string) (*circuit.Circuit, error) {
-	inputs = append(inputs, path)
+func (g *fileGuard) loadCircuit(warn io.Writer, path string, sets []string, temperature string) (*circuit.Circuit, error) {
+	g.read(path)
 	c, err := circuit.Load(path)
 	if err != nil {
 		var list circuit.ErrorList

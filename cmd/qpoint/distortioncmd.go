@@ -100,12 +100,12 @@ type distortionSetup struct {
 	levelDBm float64
 }
 
-func resolveDistortion(warn io.Writer, path string, fl *distortionFlags) (*distortionSetup, error) {
-	c, err := loadCircuit(warn, path, fl.sets, fl.temperature)
+func resolveDistortion(g *fileGuard, warn io.Writer, path string, fl *distortionFlags) (*distortionSetup, error) {
+	c, err := g.loadCircuit(warn, path, fl.sets, fl.temperature)
 	if err != nil {
 		return nil, err
 	}
-	if err := checkOutputsEarly(fl.plotsDir); err != nil {
+	if err := g.checkOutputsEarly(fl.plotsDir); err != nil {
 		return nil, err
 	}
 	return resolveDistortionFor(c, fl, nil)
@@ -232,7 +232,8 @@ func parseLevelRange(flag, s string, z0 float64) (from, to, step float64, err er
 }
 
 func runDistortion(cmd *cobra.Command, path string, fl *distortionFlags) error {
-	s, err := resolveDistortion(cmd.ErrOrStderr(), path, fl)
+	g := guardOf(cmd)
+	s, err := resolveDistortion(g, cmd.ErrOrStderr(), path, fl)
 	if err != nil {
 		return err
 	}
@@ -269,7 +270,7 @@ func runDistortion(cmd *cobra.Command, path string, fl *distortionFlags) error {
 			return analysisError(err)
 		}
 		if fl.plotsDir != "" {
-			if err := writeDistortionFrequencyPlot(fl.plotsDir, rows); err != nil {
+			if err := g.writeDistortionFrequencyPlot(fl.plotsDir, rows); err != nil {
 				return err
 			}
 		}
@@ -374,7 +375,7 @@ func runDistortion(cmd *cobra.Command, path string, fl *distortionFlags) error {
 		}
 	}
 	if fl.plotsDir != "" {
-		if err := writeDistortionPlots(fl.plotsDir, s, oneEst, st, sweep, transfer, tss, twoToneFigures(two, est)...); err != nil {
+		if err := g.writeDistortionPlots(fl.plotsDir, s, oneEst, st, sweep, transfer, tss, twoToneFigures(two, est)...); err != nil {
 			return err
 		}
 	}

@@ -90,6 +90,7 @@ func exactWaveform(cmd *cobra.Command, args []string) error {
 }
 
 func runWaveformHarmonics(cmd *cobra.Command, path string, fl *waveformFlags) error {
+	g := guardOf(cmd)
 	var opts measure.CSVOptions
 	if fl.sampleRate != "" {
 		v, err := circuit.ParseBounded(fl.sampleRate, circuit.Frequency)
@@ -123,7 +124,7 @@ func runWaveformHarmonics(cmd *cobra.Command, path string, fl *waveformFlags) er
 	}
 	s.Harmonics = fl.harmonics
 
-	w, err := readWaveformFile(path, opts)
+	w, err := g.readWaveformFile(path, opts)
 	if err != nil {
 		return err
 	}
@@ -138,7 +139,7 @@ func runWaveformHarmonics(cmd *cobra.Command, path string, fl *waveformFlags) er
 	var pred *ac.Steady
 	if fl.circuitPath != "" {
 		k := min(fl.harmonics, 25)
-		if pred, err = predictHarmonics(cmd.ErrOrStderr(), fl, r.FundamentalHz, k); err != nil {
+		if pred, err = predictHarmonics(g, cmd.ErrOrStderr(), fl, r.FundamentalHz, k); err != nil {
 			return err
 		}
 	}
@@ -159,8 +160,8 @@ func runWaveformHarmonics(cmd *cobra.Command, path string, fl *waveformFlags) er
 
 // predictHarmonics solves the circuit's steady state at the measured
 // fundamental with the flags' (or the file's) drive.
-func predictHarmonics(warn io.Writer, fl *waveformFlags, fundamentalHz float64, k int) (*ac.Steady, error) {
-	ds, err := resolveDistortion(warn, fl.circuitPath, &distortionFlags{input: fl.input, output: fl.output, level: fl.level, sets: fl.sets,
+func predictHarmonics(g *fileGuard, warn io.Writer, fl *waveformFlags, fundamentalHz float64, k int) (*ac.Steady, error) {
+	ds, err := resolveDistortion(g, warn, fl.circuitPath, &distortionFlags{input: fl.input, output: fl.output, level: fl.level, sets: fl.sets,
 		frequency: strconv.FormatFloat(fundamentalHz, 'g', -1, 64) + "Hz"})
 	if err != nil {
 		return nil, err
@@ -205,8 +206,8 @@ func writePredictionComparison(w io.Writer, circuitPath string, r *measure.Resul
 
 // readWaveformFile reads a waveform file; every failure is an input error,
 // placed as FILE:LINE:COL.
-func readWaveformFile(path string, opts measure.CSVOptions) (*measure.Waveform, error) {
-	inputs = append(inputs, path)
+func (g *fileGuard) readWaveformFile(path string, opts measure.CSVOptions) (*measure.Waveform, error) {
+	g.read(path)
 	f, err := os.Open(path)
 	if err != nil {
 		return nil, inputError(fmt.Errorf("cannot read the waveform file: %w", err))

@@ -5,6 +5,7 @@
 package main
 
 import (
+	"context"
 	"errors"
 	"fmt"
 	"io"
@@ -38,8 +39,9 @@ func analysisError(err error) error { return &exitError{exitAnalysis, err} }
 
 func main() {
 	tuneGC()
-	stop := exitOnInterrupt(os.Stderr)
-	code := run(os.Args[1:], os.Stdout, os.Stderr)
+	g := &fileGuard{}
+	stop := g.exitOnInterrupt(os.Stderr)
+	code := runGuarded(g, os.Args[1:], os.Stdout, os.Stderr)
 	stop()
 	os.Exit(code)
 }
@@ -65,6 +67,12 @@ func tuneGC() {
 // run executes the command line args and returns the exit code. No panic
 // escapes: one is reported as an internal error.
 func run(args []string, stdout, stderr io.Writer) (code int) {
+	return runGuarded(&fileGuard{}, args, stdout, stderr)
+}
+
+// runGuarded is run with the file guard g, which main also hands to the
+// interrupt handler.
+func runGuarded(g *fileGuard, args []string, stdout, stderr io.Writer) (code int) {
 	defer func() {
 		if r := recover(); r != nil {
 			fmt.Fprintf(stderr, "qpoint: internal error: %v\nPlease report this with the circuit file that caused it.\n", r)
@@ -75,7 +83,7 @@ func run(args []string, stdout, stderr io.Writer) (code int) {
 	stderr = &escapingWriter{w: stderr}
 	root := newRoot(out, stderr)
 	root.SetArgs(args)
-	err := root.Execute()
+	err := root.ExecuteContext(withGuard(context.Background(), g))
 	if err == nil && out.err != nil {
 		// A table or document that did not reach its reader is a
 		// failure, whatever the analysis did (a closed or full output).

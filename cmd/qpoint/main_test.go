@@ -16,7 +16,6 @@ import (
 
 func runCLI(t *testing.T, args ...string) (stdout, stderr string, code int) {
 	t.Helper()
-	inputs = nil
 	var out, errb bytes.Buffer
 	code = run(args, &out, &errb)
 	return out.String(), errb.String(), code

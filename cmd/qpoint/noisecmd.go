@@ -194,14 +194,15 @@ func resolveNoiseFor(c *circuit.Circuit, fl *noiseFlags, p *bias.Point) (*noiseS
 }
 
 func runNoise(cmd *cobra.Command, path string, fl *noiseFlags) error {
+	g := guardOf(cmd)
 	if fl.rows < 1 {
 		return inputError(fmt.Errorf("flag --rows: %d; accepted: 1 or more", fl.rows))
 	}
-	c, err := loadCircuit(cmd.ErrOrStderr(), path, fl.sets, fl.temperature)
+	c, err := g.loadCircuit(cmd.ErrOrStderr(), path, fl.sets, fl.temperature)
 	if err != nil {
 		return err
 	}
-	if err := checkOutputsEarly(fl.plotsDir, fl.csvPath); err != nil {
+	if err := g.checkOutputsEarly(fl.plotsDir, fl.csvPath); err != nil {
 		return err
 	}
 	s, err := resolveNoiseFor(c, fl, nil)
@@ -230,11 +231,11 @@ func runNoise(cmd *cobra.Command, path string, fl *noiseFlags) error {
 		paths = append(paths, figurePaths(fl.plotsDir, figs)...)
 	}
 	// Every named output is checked before any is written.
-	if err := refuseInputs(paths...); err != nil {
+	if err := g.refuseInputs(paths...); err != nil {
 		return err
 	}
 	if fl.csvPath != "" {
-		if err := writeFileAtomic(fl.csvPath, func(w io.Writer) error { return writeNoiseCSV(w, o) }); err != nil {
+		if err := g.writeFileAtomic(fl.csvPath, func(w io.Writer) error { return writeNoiseCSV(w, o) }); err != nil {
 			return err
 		}
 	}
@@ -243,11 +244,11 @@ func runNoise(cmd *cobra.Command, path string, fl *noiseFlags) error {
 			return inputError(fmt.Errorf("flag --plots: %w", err))
 		}
 		for _, tb := range tables {
-			if err := writeFileAtomic(filepath.Join(fl.plotsDir, tb.name), func(w io.Writer) error { return tb.write(w, o.Result) }); err != nil {
+			if err := g.writeFileAtomic(filepath.Join(fl.plotsDir, tb.name), func(w io.Writer) error { return tb.write(w, o.Result) }); err != nil {
 				return err
 			}
 		}
-		if err := writeFigures(fl.plotsDir, figs); err != nil {
+		if err := g.writeFigures(fl.plotsDir, figs); err != nil {
 			return err
 		}
 	}

@@ -17,7 +17,6 @@ import (
 // command on the root when main.go does not (yet).
 func runNoiseCLI(t *testing.T, args ...string) (stdout, stderr string, code int) {
 	t.Helper()
-	inputs = nil
 	var out, errb bytes.Buffer
 	root := newRoot(&out, &errb)
 	if c, _, err := root.Find([]string{"noise"}); err != nil || c.Name() != "noise" {

@@ -62,8 +62,8 @@ func figurePaths(dir string, figs []*plots.Figure) []string {
 
 // writeFigures writes each figure as SVG and PNG into dir, creating it.
 // A figure that would overwrite an input stops it before any is written.
-func writeFigures(dir string, figs []*plots.Figure) error {
-	if err := refuseInputs(figurePaths(dir, figs)...); err != nil {
+func (g *fileGuard) writeFigures(dir string, figs []*plots.Figure) error {
+	if err := g.refuseInputs(figurePaths(dir, figs)...); err != nil {
 		return err
 	}
 	if err := os.MkdirAll(dir, 0o755); err != nil {
@@ -72,7 +72,7 @@ func writeFigures(dir string, figs []*plots.Figure) error {
 	for _, f := range figs {
 		for _, format := range figureFormats {
 			path := filepath.Join(dir, f.Name+"."+format)
-			if err := writeFileAtomic(path, func(w io.Writer) error { return plots.Write(w, format, f) }); err != nil {
+			if err := g.writeFileAtomic(path, func(w io.Writer) error { return plots.Write(w, format, f) }); err != nil {
 				return err
 			}
 		}
@@ -80,7 +80,7 @@ func writeFigures(dir string, figs []*plots.Figure) error {
 	return nil
 }
 
-func writeDistortionPlots(dir string, s *distortionSetup, e *ac.Estimate, st *ac.Steady, sweep []ac.LevelPoint, t *ac.Transfer, tssDBm float64, extra ...*plots.Figure) error {
+func (g *fileGuard) writeDistortionPlots(dir string, s *distortionSetup, e *ac.Estimate, st *ac.Steady, sweep []ac.LevelPoint, t *ac.Transfer, tssDBm float64, extra ...*plots.Figure) error {
 	comp, compressed := 0.0, false
 	if len(sweep) > 1 {
 		comp, compressed = ac.Compression(sweep, cmplx.Abs(e.Linear)/e.Drive.EMF)
@@ -89,17 +89,17 @@ func writeDistortionPlots(dir string, s *distortionSetup, e *ac.Estimate, st *ac
 	if t != nil {
 		figs = append(figs, plots.DetectorTransfer(t, tssDBm))
 	}
-	return writeFigures(dir, append(figs, extra...))
+	return g.writeFigures(dir, append(figs, extra...))
 }
 
-func writeDistortionFrequencyPlot(dir string, rows []frequencyRow) error {
+func (g *fileGuard) writeDistortionFrequencyPlot(dir string, rows []frequencyRow) error {
 	var f []float64
 	var est []*ac.Estimate
 	for _, r := range rows {
 		f = append(f, r.f)
 		est = append(est, r.est)
 	}
-	return writeFigures(dir, []*plots.Figure{plots.DistortionVsFrequency(f, est)})
+	return g.writeFigures(dir, []*plots.Figure{plots.DistortionVsFrequency(f, est)})
 }
 
 // studyPlots returns the figures --plots writes for a study.

@@ -190,7 +190,8 @@ func resolvePulse(c *circuit.Circuit, fl *pulseFlags, p *bias.Point) (*pulseSetu
 }
 
 func runPulse(cmd *cobra.Command, path string, fl *pulseFlags) error {
-	c, err := loadCircuit(cmd.ErrOrStderr(), path, fl.sets, fl.temperature)
+	g := guardOf(cmd)
+	c, err := g.loadCircuit(cmd.ErrOrStderr(), path, fl.sets, fl.temperature)
 	if err != nil {
 		return err
 	}
@@ -198,7 +199,7 @@ func runPulse(cmd *cobra.Command, path string, fl *pulseFlags) error {
 	if err != nil {
 		return err
 	}
-	if err := refuseInputs(fl.csvPath); err != nil {
+	if err := g.refuseInputs(fl.csvPath); err != nil {
 		return err
 	}
 	out := cmd.OutOrStdout()
@@ -221,17 +222,17 @@ func runPulse(cmd *cobra.Command, path string, fl *pulseFlags) error {
 	var figs []*plots.Figure
 	if fl.plotsDir != "" {
 		figs = plots.PulseFigures(res, s.nw)
-		if err := refuseInputs(figurePaths(fl.plotsDir, figs)...); err != nil {
+		if err := g.refuseInputs(figurePaths(fl.plotsDir, figs)...); err != nil {
 			return err
 		}
 	}
 	if fl.csvPath != "" {
-		if err := writeFileAtomic(fl.csvPath, func(w io.Writer) error { return writePulseCSV(w, s, res) }); err != nil {
+		if err := g.writeFileAtomic(fl.csvPath, func(w io.Writer) error { return writePulseCSV(w, s, res) }); err != nil {
 			return err
 		}
 	}
 	if fl.plotsDir != "" {
-		if err := writeFigures(fl.plotsDir, figs); err != nil {
+		if err := g.writeFigures(fl.plotsDir, figs); err != nil {
 			return err
 		}
 	}
@@ -347,6 +348,7 @@ func writePulseCSV(w io.Writer, s *pulseSetup, res *transient.PulseResult) error
 // runPulseSweep repeats the run over carrier levels and prints the figures
 // against the level.
 func runPulseSweep(cmd *cobra.Command, s *pulseSetup, fl *pulseFlags) error {
+	g := guardOf(cmd)
 	z0 := s.c.Ports[s.settings.Input].Impedance
 	from, to, step, err := parseLevelRange("sweep-level", fl.sweepLevel, z0)
 	if err != nil {
@@ -378,7 +380,7 @@ func runPulseSweep(cmd *cobra.Command, s *pulseSetup, fl *pulseFlags) error {
 		}
 	}
 	if fl.plotsDir != "" {
-		if err := writeFigures(fl.plotsDir, []*plots.Figure{plots.PulseLevelSweep(pts)}); err != nil {
+		if err := g.writeFigures(fl.plotsDir, []*plots.Figure{plots.PulseLevelSweep(pts)}); err != nil {
 			return err
 		}
 	}

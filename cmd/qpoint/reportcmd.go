@@ -26,21 +26,22 @@ inline and fetches nothing: mail it, archive it, print it.`,
   qpoint report mixer.yaml -o mixer-85C.html --temperature 85C`,
 		Args: exactFile,
 		RunE: func(cmd *cobra.Command, args []string) error {
+			g := guardOf(cmd)
 			if outPath == "" {
 				return inputError(fmt.Errorf("flag -o is missing: name the HTML file to write, e.g. -o report.html"))
 			}
-			c, err := loadCircuit(cmd.ErrOrStderr(), args[0], sets, temperature)
+			c, err := g.loadCircuit(cmd.ErrOrStderr(), args[0], sets, temperature)
 			if err != nil {
 				return err
 			}
-			if err := checkOutputsEarly("", outPath); err != nil {
+			if err := g.checkOutputsEarly("", outPath); err != nil {
 				return err
 			}
 			doc, err := buildReport(c, temperature)
 			if err != nil {
 				return err
 			}
-			if err := writeFileAtomic(outPath, func(w io.Writer) error { return report.Write(w, doc) }); err != nil {
+			if err := g.writeFileAtomic(outPath, func(w io.Writer) error { return report.Write(w, doc) }); err != nil {
 				return err
 			}
 			fmt.Fprintf(cmd.OutOrStdout(), "report written to %s\n", outPath)

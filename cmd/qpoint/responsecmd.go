@@ -170,11 +170,12 @@ func solveWithTemperature(c *circuit.Circuit, temperature string) (*bias.Point, 
 }
 
 func runResponse(cmd *cobra.Command, path string, fl *responseFlags) error {
-	c, err := loadCircuit(cmd.ErrOrStderr(), path, fl.sets, fl.temperature)
+	g := guardOf(cmd)
+	c, err := g.loadCircuit(cmd.ErrOrStderr(), path, fl.sets, fl.temperature)
 	if err != nil {
 		return err
 	}
-	if err := checkOutputsEarly(fl.plotsDir, fl.csvPath, fl.touchstone); err != nil {
+	if err := g.checkOutputsEarly(fl.plotsDir, fl.csvPath, fl.touchstone); err != nil {
 		return err
 	}
 	if len(c.Ports) == 0 {
@@ -220,14 +221,14 @@ func runResponse(cmd *cobra.Command, path string, fl *responseFlags) error {
 		// Files, JSON and a table only: the points stream to the files
 		// and standard output, and the sweep keeps just the table's
 		// rows, whatever its length.
-		if err := refuseInputs(fl.csvPath, fl.touchstone); err != nil {
+		if err := g.refuseInputs(fl.csvPath, fl.touchstone); err != nil {
 			return err
 		}
 		var jsonOut io.Writer
 		if fl.asJSON {
 			jsonOut = out
 		}
-		if r, err = streamResponse(nw, grid, ac.Settings{Reference: ref}, c, fl, format, jsonOut); err != nil {
+		if r, err = streamResponse(g, nw, grid, ac.Settings{Reference: ref}, c, fl, format, jsonOut); err != nil {
 			return err
 		}
 		if fl.asJSON {
@@ -247,23 +248,23 @@ func runResponse(cmd *cobra.Command, path string, fl *responseFlags) error {
 		if fl.plotsDir != "" {
 			figs = plots.ResponseFigures(r, designFrequency(c))
 		}
-		if err := refuseInputs(append([]string{fl.csvPath, fl.touchstone}, figurePaths(fl.plotsDir, figs)...)...); err != nil {
+		if err := g.refuseInputs(append([]string{fl.csvPath, fl.touchstone}, figurePaths(fl.plotsDir, figs)...)...); err != nil {
 			return err
 		}
 		if fl.csvPath != "" {
-			if err := writeFileAtomic(fl.csvPath, func(w io.Writer) error { return writeResponseCSV(w, r) }); err != nil {
+			if err := g.writeFileAtomic(fl.csvPath, func(w io.Writer) error { return writeResponseCSV(w, r) }); err != nil {
 				return err
 			}
 		}
 		if fl.touchstone != "" {
-			if err := writeFileAtomic(fl.touchstone, func(w io.Writer) error {
+			if err := g.writeFileAtomic(fl.touchstone, func(w io.Writer) error {
 				return writeTouchstone(w, c, r, format)
 			}); err != nil {
 				return err
 			}
 		}
 		if fl.plotsDir != "" {
-			if err := writeFigures(fl.plotsDir, figs); err != nil {
+			if err := g.writeFigures(fl.plotsDir, figs); err != nil {
 				return err
 			}
 		}
@@ -374,7 +375,7 @@ func (rw *responseCSV) close() error {
 // Touchstone files flags name as it comes, each whole or not at all, and
 // returns the response with only the points the table shows: the memory a
 // sweep takes does not grow with its length.
-func streamResponse(nw *smallsignal.Network, grid []float64, s ac.Settings, c *circuit.Circuit, fl *responseFlags, format touchstone.Format, jsonOut io.Writer) (*ac.Response, error) {
+func streamResponse(g *fileGuard, nw *smallsignal.Network, grid []float64, s ac.Settings, c *circuit.Circuit, fl *responseFlags, format touchstone.Format, jsonOut io.Writer) (*ac.Response, error) {
 	r := &ac.Response{Probes: c.Probes}
 	for i, p := range nw.Ports {
 		z := p.Impedance
@@ -457,11 +458,11 @@ func streamResponse(nw *smallsignal.Network, grid []float64, s ac.Settings, c *c
 		if fl.touchstone == "" {
 			return sweep(csvOut, nil)
 		}
-		return writeFileAtomic(fl.touchstone, func(w io.Writer) error { return sweep(csvOut, w) })
+		return g.writeFileAtomic(fl.touchstone, func(w io.Writer) error { return sweep(csvOut, w) })
 	}
 	var err error
 	if fl.csvPath != "" {
-		err = writeFileAtomic(fl.csvPath, withTouchstone)
+		err = g.writeFileAtomic(fl.csvPath, withTouchstone)
 	} else {
 		err = withTouchstone(nil)
 	}

@@ -151,7 +151,8 @@ func resolveYield(c *circuit.Circuit, fl *yieldFlags, observe bool) (*yield.Sett
 }
 
 func runYield(cmd *cobra.Command, path string, fl *yieldFlags) error {
-	c, err := loadCircuit(cmd.ErrOrStderr(), path, fl.sets, "")
+	g := guardOf(cmd)
+	c, err := g.loadCircuit(cmd.ErrOrStderr(), path, fl.sets, "")
 	if err != nil {
 		return err
 	}
@@ -173,16 +174,16 @@ func runYield(cmd *cobra.Command, path string, fl *yieldFlags) error {
 	if fl.plotsDir != "" {
 		figs = report.YieldFigures(r)
 	}
-	if err := refuseInputs(append([]string{fl.csvPath}, figurePaths(fl.plotsDir, figs)...)...); err != nil {
+	if err := g.refuseInputs(append([]string{fl.csvPath}, figurePaths(fl.plotsDir, figs)...)...); err != nil {
 		return err
 	}
 	if fl.csvPath != "" {
-		if err := writeFileAtomic(fl.csvPath, func(w io.Writer) error { return writeYieldCSV(w, r) }); err != nil {
+		if err := g.writeFileAtomic(fl.csvPath, func(w io.Writer) error { return writeYieldCSV(w, r) }); err != nil {
 			return err
 		}
 	}
 	if fl.plotsDir != "" {
-		if err := writeFigures(fl.plotsDir, figs); err != nil {
+		if err := g.writeFigures(fl.plotsDir, figs); err != nil {
 			return err
 		}
 	}
