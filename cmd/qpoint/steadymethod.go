@@ -146,32 +146,6 @@ func interceptJSONOf(ip *ac.Intercept) *interceptJSON {
 	return j
 }
 
-// twoToneLevelSweep solves the two-tone waveform at each level, each
-// from the last, and reads the intercept from it as a bench would.
-func twoToneLevelSweep(cmd interface{ ErrOrStderr() io.Writer }, s *distortionSetup, settings ac.SteadySettings,
-	levels []float64, doc *distortionJSON) ([]ac.LevelPoint, *ac.Intercept, error) {
-	bar := newProgress(cmd.ErrOrStderr(), "two-tone sweep", len(levels))
-	pts, err := ac.LevelSweep(s.nw, s.drive, levels, settings, bar.update)
-	bar.done()
-	if err != nil {
-		fmt.Fprintf(cmd.ErrOrStderr(), "qpoint: two-tone level sweep stopped: %v\n", err)
-	}
-	z0 := 0.0
-	if s.drive.Output.Port >= 0 {
-		z0 = s.nw.Ports[s.drive.Output.Port].Impedance
-	}
-	ip, ipErr := ac.MeasuredIntercept(pts, z0)
-	for _, p := range pts {
-		w := waveformJSONOf(p.Steady)
-		w.addTwoTone(p.Steady)
-		doc.TwoToneSweep = append(doc.TwoToneSweep, levelJSON{number(p.LevelDBm), w})
-	}
-	if ipErr == nil {
-		doc.MeasuredIntercept = interceptJSONOf(ip)
-	}
-	return pts, ip, ipErr
-}
-
 // twoToneFigures is the two-tone spectrum, when there is a second tone.
 func twoToneFigures(two *ac.Steady, est *ac.Estimate) []*plots.Figure {
 	if two == nil {

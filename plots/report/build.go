@@ -5,7 +5,6 @@ import (
 	"errors"
 	"fmt"
 	"math"
-	"math/cmplx"
 	"strings"
 
 	"qpoint/ac"
@@ -229,63 +228,56 @@ func Build(c *circuit.Circuit, settings Settings) (*Document, error) {
 // drive d, the validity limit, a level sweep and, for a detector, its
 // transfer curve.
 func distortionSection(nw *smallsignal.Network, d *plan.Drive) (Section, []Card, error) {
-	s := struct {
-		nw       *smallsignal.Network
-		drive    ac.Drive
-		inName   string
-		outName  string
-		levelDBm float64
-	}{nw, d.Drive, d.InputName, d.OutputName, d.LevelDBm}
 	sec := Section{ID: "distortion", Title: "Distortion",
-		Intro: fmt.Sprintf("Port %s driven at %s, %.1f dBm available; output at %s.", s.inName, si.Format(s.drive.FrequencyHz, "Hz", 5), s.levelDBm, s.outName)}
+		Intro: fmt.Sprintf("Port %s driven at %s, %.1f dBm available; output at %s.", d.InputName, si.Format(d.Drive.FrequencyHz, "Hz", 5), d.LevelDBm, d.OutputName)}
 	var cards []Card
-	est, err := ac.Volterra(s.nw, s.drive)
-	if err != nil {
+	// The waveform, the validity limit and a level sweep around the
+	// chosen level for the figures.
+	settings := ac.SteadySettings{Harmonics: 5}
+	var levels []float64
+	for l := d.LevelDBm - 30; l <= d.LevelDBm+20+1e-9; l += 2 {
+		levels = append(levels, l)
+	}
+	res, err := plan.RunDistortion(nw, d, plan.DistortionRequest{Waveform: settings, Sweep: settings, Validity: true, Levels: levels})
+	if res == nil {
 		return sec, nil, err
 	}
+	est := res.Estimate
 	t, notes := EstimateTable(est)
 	sec.Blocks = append(sec.Blocks, Block{Table: t})
 	for _, n := range notes {
 		sec.Blocks = append(sec.Blocks, Block{Note: n})
 	}
 	sec.Blocks = append(sec.Blocks, Block{Table: ContributionTable(est)})
-	one := s.drive
-	one.SecondToneHz = 0
-	oneEst := est.OneTone()
-	settings := ac.SteadySettings{Harmonics: 5}
-	st, err := ac.SteadyState(s.nw, one, settings)
-	if err != nil {
-		sec.Blocks = append(sec.Blocks, Block{Note: "The waveform solve did not converge at this level: " + err.Error()})
+	var werr *plan.WaveformError
+	if errors.As(err, &werr) {
+		sec.Blocks = append(sec.Blocks, Block{Note: "The waveform solve did not converge at this level: " + werr.Err.Error()})
 		return sec, cards, nil
 	}
+	if err != nil {
+		return sec, nil, err
+	}
+	one := d.OneTone()
+	oneEst, st := res.OneTone, res.Waveform
 	wt, note := WaveformTable(st)
 	sec.Blocks = append(sec.Blocks, Block{Table: wt}, Block{Note: note}, Block{Table: StressTable(st)})
 	for _, c := range st.Cautions() {
 		cards = append(cards, Card{Label: "caution", Value: "overstress", Detail: c})
 	}
-	limit, lerr := ac.ValidityLimit(s.nw, one, s.levelDBm-40, s.levelDBm+40, 0.5, settings)
-	if lerr != nil {
-		limit = nil
-		sec.Blocks = append(sec.Blocks, Block{Note: "The validity limit could not be searched: " + lerr.Error()})
+	limit := res.Validity
+	if res.ValidityErr != nil {
+		sec.Blocks = append(sec.Blocks, Block{Note: "The validity limit could not be searched: " + res.ValidityErr.Error()})
 	}
-	ct, cnote := ComparisonTable(ac.Compare(oneEst, st), limit)
+	ct, cnote := ComparisonTable(res.Comparison, limit)
 	sec.Blocks = append(sec.Blocks, Block{Table: ct})
 	if cnote != "" {
 		sec.Blocks = append(sec.Blocks, Block{Note: cnote})
 	}
-	// A level sweep around the chosen level for the figures.
-	var levels []float64
-	for l := s.levelDBm - 30; l <= s.levelDBm+20+1e-9; l += 2 {
-		levels = append(levels, l)
-	}
-	sweep, _ := ac.LevelSweep(s.nw, one, levels, settings, nil)
+	sweep := res.Sweep
 	if cs := SweepCautions(sweep); len(cs) > 0 {
 		sec.Blocks = append(sec.Blocks, Block{Note: "Over the level sweep: " + strings.Join(cs, "; ") + "."})
 	}
-	comp, compressed := 0.0, false
-	if len(sweep) > 1 {
-		comp, compressed = ac.Compression(sweep, cmplx.Abs(oneEst.Linear)/oneEst.Drive.EMF)
-	}
+	comp, compressed := res.CompressionDBm, res.Compressed
 	for _, f := range DistortionFigures(oneEst, st, sweep, comp, compressed) {
 		fig, err := SVGOf(f)
 		if err != nil {
@@ -294,7 +286,7 @@ func distortionSection(nw *smallsignal.Network, d *plan.Drive) (Section, []Card,
 		sec.Blocks = append(sec.Blocks, Block{Figure: fig})
 	}
 	if !est.Balanced(ac.HD2) {
-		cards = append(cards, Card{Label: "second harmonic", Value: fmt.Sprintf("%.1f dBc", est.HD2dBc()), Detail: fmt.Sprintf("at %.0f dBm, %s", s.levelDBm, si.Format(s.drive.FrequencyHz, "Hz", 4))})
+		cards = append(cards, Card{Label: "second harmonic", Value: fmt.Sprintf("%.1f dBc", est.HD2dBc()), Detail: fmt.Sprintf("at %.0f dBm, %s", d.LevelDBm, si.Format(d.Drive.FrequencyHz, "Hz", 4))})
 	}
 	if limit != nil {
 		switch limit.Outcome {
@@ -311,14 +303,14 @@ func distortionSection(nw *smallsignal.Network, d *plan.Drive) (Section, []Card,
 	}
 	// A detector's transfer curve, from below its tangential
 	// sensitivity to beyond square law.
-	path := ac.NoiseSettings{Input: s.drive.Input, Output: s.drive.Output}
-	if ac.Detects(s.nw, path, s.drive.FrequencyHz) {
-		if det, err := ac.Detector(s.nw, path, s.drive.FrequencyHz, plan.DefaultVideoFromHz, plan.DefaultVideoToHz); err == nil {
+	path := ac.NoiseSettings{Input: d.Drive.Input, Output: d.Drive.Output}
+	if ac.Detects(nw, path, d.Drive.FrequencyHz) {
+		if det, err := ac.Detector(nw, path, d.Drive.FrequencyHz, plan.DefaultVideoFromHz, plan.DefaultVideoToHz); err == nil {
 			var levels []float64
 			for l := math.Floor(det.TangentialDBm()/2)*2 - 10; l <= 10+1e-9; l += 2 {
 				levels = append(levels, l)
 			}
-			tsweep, _ := ac.LevelSweep(s.nw, one, levels, settings, nil)
+			tsweep, _ := ac.LevelSweep(nw, one, levels, settings, nil)
 			if t, err := ac.DetectorTransfer(tsweep, det.Sensitivity); err == nil {
 				fig, err := SVGOf(plots.DetectorTransfer(t, det.TangentialDBm()))
 				if err != nil {
