@@ -213,6 +213,27 @@ func runNoise(cmd *cobra.Command, path string, fl *noiseFlags) error {
 	if err != nil {
 		return analysisError(err)
 	}
+	if err := g.writeNoiseFiles(fl, o); err != nil {
+		return err
+	}
+	out := cmd.OutOrStdout()
+	if fl.asJSON {
+		return writeJSON(out, noiseDocument(s, o))
+	}
+	writeNoiseText(out, s, o, fl.rows)
+	fmt.Fprintln(out)
+	if fl.csvPath != "" {
+		fmt.Fprintf(out, "CSV written to %s\n", fl.csvPath)
+	}
+	if fl.plotsDir != "" {
+		fmt.Fprintf(out, "figures written to %s (noise-density, noise-contributions: SVG, PNG and CSV data)\n", fl.plotsDir)
+	}
+	return nil
+}
+
+// writeNoiseFiles writes the CSV file and the figures with their data
+// the flags name, after checking every one of them.
+func (g *fileGuard) writeNoiseFiles(fl *noiseFlags, o *plan.NoiseRun) error {
 	// The figures' data go beside them.
 	tables := []struct {
 		name  string
@@ -239,25 +260,25 @@ func runNoise(cmd *cobra.Command, path string, fl *noiseFlags) error {
 			return err
 		}
 	}
-	if fl.plotsDir != "" {
-		if err := os.MkdirAll(fl.plotsDir, 0o755); err != nil {
-			return inputError(fmt.Errorf("flag --plots: %w", err))
-		}
-		for _, tb := range tables {
-			if err := g.writeFileAtomic(filepath.Join(fl.plotsDir, tb.name), func(w io.Writer) error { return tb.write(w, o.Result) }); err != nil {
-				return err
-			}
-		}
-		if err := g.writeFigures(fl.plotsDir, figs); err != nil {
+	if fl.plotsDir == "" {
+		return nil
+	}
+	if err := os.MkdirAll(fl.plotsDir, 0o755); err != nil {
+		return inputError(fmt.Errorf("flag --plots: %w", err))
+	}
+	for _, tb := range tables {
+		if err := g.writeFileAtomic(filepath.Join(fl.plotsDir, tb.name), func(w io.Writer) error { return tb.write(w, o.Result) }); err != nil {
 			return err
 		}
 	}
-	out := cmd.OutOrStdout()
-	if fl.asJSON {
-		return writeJSON(out, noiseDocument(s, o))
-	}
+	return g.writeFigures(fl.plotsDir, figs)
+}
+
+// writeNoiseText prints the noise tables: density, band, sources and a
+// detector's figures.
+func writeNoiseText(out io.Writer, s *noiseSetup, o *plan.NoiseRun, rows int) {
 	writeNoiseHeader(out, s)
-	report.NoiseTable(o, fl.rows).WriteText(out)
+	report.NoiseTable(o, rows).WriteText(out)
 	for _, n := range report.NoiseNotes(o) {
 		fmt.Fprintf(out, "  %s\n", n)
 	}
@@ -272,14 +293,6 @@ func runNoise(cmd *cobra.Command, path string, fl *noiseFlags) error {
 			fmt.Fprintf(out, "  %s\n", n)
 		}
 	}
-	fmt.Fprintln(out)
-	if fl.csvPath != "" {
-		fmt.Fprintf(out, "CSV written to %s\n", fl.csvPath)
-	}
-	if fl.plotsDir != "" {
-		fmt.Fprintf(out, "figures written to %s (noise-density, noise-contributions: SVG, PNG and CSV data)\n", fl.plotsDir)
-	}
-	return nil
 }
 
 func writeNoiseHeader(w io.Writer, s *noiseSetup) {
