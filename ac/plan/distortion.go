@@ -6,6 +6,7 @@ import (
 	"math/cmplx"
 
 	"qpoint/ac"
+	"qpoint/ac/steady"
 	"qpoint/smallsignal"
 )
 
@@ -14,8 +15,8 @@ import (
 type DistortionRequest struct {
 	// Waveform solves the waveforms at the drive's level (one tone, and
 	// both tones with TwoTone); Sweep solves the validity search and the
-	// level sweeps. Zero values take ac.SteadySettings' defaults.
-	Waveform, Sweep ac.SteadySettings
+	// level sweeps. Zero values take steady.Settings' defaults.
+	Waveform, Sweep steady.Settings
 	// TwoTone solves the waveform under both tones too, when the drive
 	// has a second tone, and sweeps both tones over Levels.
 	TwoTone bool
@@ -44,15 +45,15 @@ type Distortion struct {
 	Estimate, OneTone *ac.Estimate
 	// Waveform is the steady state under the first tone alone, at the
 	// drive's level; TwoTone the one under both tones.
-	Waveform, TwoTone *ac.Steady
+	Waveform, TwoTone *steady.State
 	// Comparison sets the estimate beside the waveform, order by order.
-	Comparison []ac.Comparison
+	Comparison []steady.Comparison
 	// Validity is the small-signal limit (with Request.Validity).
-	Validity    *ac.Validity
+	Validity    *steady.Validity
 	ValidityErr error
 	// Sweep is the level sweep, as far as it got: SweepErr says why it
 	// stopped early.
-	Sweep    []ac.LevelPoint
+	Sweep    []steady.LevelPoint
 	SweepErr error
 	// CompressionDBm is the 1 dB compression point found in the sweep,
 	// when Compressed.
@@ -63,14 +64,14 @@ type Distortion struct {
 	// TangentialDBm its tangential sensitivity over the video band (NaN
 	// when it cannot be found).
 	// TransferErr says why a detector's sensitivity could not be found.
-	Transfer      *ac.Transfer
+	Transfer      *steady.Transfer
 	TangentialDBm float64
 	TransferErr   error
 	// TwoToneSweep sweeps both tones over the levels; Intercept is the
 	// third-order intercept measured from it, or InterceptErr why not.
-	TwoToneSweep    []ac.LevelPoint
+	TwoToneSweep    []steady.LevelPoint
 	TwoToneSweepErr error
-	Intercept       *ac.Intercept
+	Intercept       *steady.Intercept
 	InterceptErr    error
 }
 
@@ -87,17 +88,17 @@ func RunDistortion(nw *smallsignal.Network, d *Drive, r DistortionRequest) (*Dis
 	}
 	res.OneTone = res.Estimate.OneTone()
 	one := d.OneTone()
-	if res.Waveform, err = ac.SteadyState(nw, one, r.Waveform); err != nil {
+	if res.Waveform, err = steady.Solve(nw, one, r.Waveform); err != nil {
 		return res, &WaveformError{What: "waveform", LevelDBm: d.LevelDBm, Err: err}
 	}
-	res.Comparison = ac.Compare(res.OneTone, res.Waveform)
+	res.Comparison = steady.Compare(res.OneTone, res.Waveform)
 	if r.TwoTone && d.SecondToneHz != 0 {
-		if res.TwoTone, err = ac.SteadyState(nw, d.Drive, r.Waveform); err != nil {
+		if res.TwoTone, err = steady.Solve(nw, d.Drive, r.Waveform); err != nil {
 			return res, &WaveformError{What: "two-tone waveform", LevelDBm: d.LevelDBm, Err: err}
 		}
 	}
 	if r.Validity {
-		res.Validity, res.ValidityErr = ac.ValidityLimit(nw, one, d.LevelDBm-40, d.LevelDBm+40, 0.5, r.Sweep)
+		res.Validity, res.ValidityErr = steady.ValidityLimit(nw, one, d.LevelDBm-40, d.LevelDBm+40, 0.5, r.Sweep)
 		if res.ValidityErr != nil {
 			res.Validity = nil
 		}
@@ -108,7 +109,7 @@ func RunDistortion(nw *smallsignal.Network, d *Drive, r DistortionRequest) (*Dis
 	res.Sweep, res.SweepErr = levelSweep(nw, one, r, "level sweep")
 	if len(res.Sweep) > 0 {
 		gain := cmplx.Abs(res.OneTone.Linear) / res.OneTone.Drive.EMF
-		res.CompressionDBm, res.Compressed = ac.Compression(res.Sweep, gain)
+		res.CompressionDBm, res.Compressed = steady.Compression(res.Sweep, gain)
 	}
 	res.Transfer, res.TangentialDBm, res.TransferErr = transferOf(nw, d, res.Sweep, r.VideoHz)
 	if res.TwoTone != nil {
@@ -117,7 +118,7 @@ func RunDistortion(nw *smallsignal.Network, d *Drive, r DistortionRequest) (*Dis
 		if d.Drive.Output.Port >= 0 {
 			z0 = nw.Ports[d.Drive.Output.Port].Impedance
 		}
-		res.Intercept, res.InterceptErr = ac.MeasuredIntercept(res.TwoToneSweep, z0)
+		res.Intercept, res.InterceptErr = steady.MeasuredIntercept(res.TwoToneSweep, z0)
 	}
 	return res, nil
 }
@@ -141,14 +142,14 @@ func (e *WaveformError) Error() string {
 func (e *WaveformError) Unwrap() error { return e.Err }
 
 // levelSweep sweeps the drive over r.Levels, reporting progress.
-func levelSweep(nw *smallsignal.Network, d ac.Drive, r DistortionRequest, stage string) ([]ac.LevelPoint, error) {
+func levelSweep(nw *smallsignal.Network, d ac.Drive, r DistortionRequest, stage string) ([]steady.LevelPoint, error) {
 	var update func(done, total int)
 	if r.Progress != nil {
 		var end func()
 		update, end = r.Progress(stage, len(r.Levels))
 		defer end()
 	}
-	return ac.LevelSweep(nw, d, r.Levels, r.Sweep, update)
+	return steady.LevelSweep(nw, d, r.Levels, r.Sweep, update)
 }
 
 // transferOf is a detector's transfer curve from the sweep and its
@@ -156,7 +157,7 @@ func levelSweep(nw *smallsignal.Network, d ac.Drive, r DistortionRequest, stage 
 // is not a detector's, the sweep is shorter than three levels or the
 // curve cannot be drawn from it; an error when the detector's
 // sensitivity cannot be found.
-func transferOf(nw *smallsignal.Network, d *Drive, sweep []ac.LevelPoint, videoHz [2]float64) (*ac.Transfer, float64, error) {
+func transferOf(nw *smallsignal.Network, d *Drive, sweep []steady.LevelPoint, videoHz [2]float64) (*steady.Transfer, float64, error) {
 	path := ac.NoiseSettings{Input: d.Drive.Input, Output: d.Drive.Output}
 	if len(sweep) < 3 || !ac.Detects(nw, path, d.FrequencyHz) {
 		return nil, math.NaN(), nil
@@ -168,7 +169,7 @@ func transferOf(nw *smallsignal.Network, d *Drive, sweep []ac.LevelPoint, videoH
 	if err != nil {
 		return nil, math.NaN(), err
 	}
-	t, err := ac.DetectorTransfer(sweep, gamma)
+	t, err := steady.DetectorTransfer(sweep, gamma)
 	if err != nil {
 		return nil, math.NaN(), nil
 	}

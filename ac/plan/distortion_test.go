@@ -5,8 +5,8 @@ import (
 	"math/cmplx"
 	"testing"
 
-	"qpoint/ac"
 	"qpoint/ac/balance"
+	"qpoint/ac/steady"
 	"qpoint/bias"
 	"qpoint/smallsignal"
 )
@@ -71,7 +71,7 @@ func TestRunDistortionDetector(t *testing.T) {
 	if math.Abs(a-b) > 1e-6*b {
 		t.Errorf("fundamental %g V in the sweep at the drive's level, %g V in the waveform", a, b)
 	}
-	var c ac.Comparison
+	var c steady.Comparison
 	for _, c = range res.Comparison {
 		if c.Order == 1 {
 			break
@@ -111,7 +111,7 @@ func TestRunDistortionTwoTones(t *testing.T) {
 		t.Error("two tones solved without TwoTone")
 	}
 	res, err := RunDistortion(nw, d, DistortionRequest{TwoTone: true, Levels: levels,
-		Waveform: ac.SteadySettings{Method: balance.Method{}}, Sweep: ac.SteadySettings{Method: balance.Method{}}})
+		Waveform: steady.Settings{Method: balance.Method{}}, Sweep: steady.Settings{Method: balance.Method{}}})
 	if err != nil {
 		t.Fatal(err)
 	}

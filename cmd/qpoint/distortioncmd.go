@@ -15,6 +15,7 @@ import (
 
 	"qpoint/ac"
 	"qpoint/ac/plan"
+	"qpoint/ac/steady"
 	"qpoint/bias"
 	"qpoint/bias/circuit"
 	"qpoint/bias/si"
@@ -290,7 +291,7 @@ func distortionRequest(cmd *cobra.Command, s *distortionSetup, fl *distortionFla
 	if fl.samples < 4*fl.harmonics+1 || fl.samples > 65536 {
 		return req, inputError(fmt.Errorf("flag --samples: %d; accepted: at least 4 × harmonics + 1 and at most 65536", fl.samples))
 	}
-	req.Sweep = ac.SteadySettings{Samples: fl.samples, Harmonics: fl.harmonics}
+	req.Sweep = steady.Settings{Samples: fl.samples, Harmonics: fl.harmonics}
 	req.Waveform = req.Sweep
 	var err error
 	if req.Sweep.Method, req.Waveform.Method, err = fl.steady.steadyMethods(s); err != nil {
@@ -444,7 +445,7 @@ func writeDistortionText(out io.Writer, s *distortionSetup, res *plan.Distortion
 
 // writeTransfer prints a detector's transfer curve and its square-law
 // range.
-func writeTransfer(w io.Writer, t *ac.Transfer, tssDBm float64) {
+func writeTransfer(w io.Writer, t *steady.Transfer, tssDBm float64) {
 	tb := &report.Table{Caption: "Detector transfer curve (waveform)", Header: []string{"input", "output DC change", "from square law"}}
 	for _, p := range t.Points {
 		tb.Add(fmt.Sprintf("%.1f dBm", p.LevelDBm), si.Format(p.Volts, "V", 4), fmt.Sprintf("%+.3f dB", p.DeviationDB))
@@ -505,7 +506,7 @@ func writeContributions(w io.Writer, e *ac.Estimate) {
 	report.ContributionTable(e).WriteText(w)
 }
 
-func writeWaveform(w io.Writer, s *ac.Steady) {
+func writeWaveform(w io.Writer, s *steady.State) {
 	t, note := report.WaveformTable(s)
 	t.WriteText(w)
 	fmt.Fprintf(w, "  %s\n", note)
@@ -514,7 +515,7 @@ func writeWaveform(w io.Writer, s *ac.Steady) {
 	}
 }
 
-func writeComparison(w io.Writer, cs []ac.Comparison, v *ac.Validity) {
+func writeComparison(w io.Writer, cs []steady.Comparison, v *steady.Validity) {
 	t, note := report.ComparisonTable(cs, v)
 	t.WriteText(w)
 	if note != "" {
@@ -523,7 +524,7 @@ func writeComparison(w io.Writer, cs []ac.Comparison, v *ac.Validity) {
 	fmt.Fprintln(w)
 }
 
-func writeLevelSweep(w io.Writer, pts []ac.LevelPoint, e *ac.Estimate, comp float64, ok bool) {
+func writeLevelSweep(w io.Writer, pts []steady.LevelPoint, e *ac.Estimate, comp float64, ok bool) {
 	report.LevelSweepTable(pts).WriteText(w)
 	if ok {
 		fmt.Fprintf(w, "  1 dB compression at %.2f dBm input (waveform)\n", comp)

@@ -8,13 +8,13 @@ import (
 	"os"
 	"strconv"
 
-	"qpoint/ac"
 	"qpoint/bias/si"
 	"qpoint/plots/report"
 
 	"github.com/spf13/cobra"
 
 	"qpoint/ac/measure"
+	"qpoint/ac/steady"
 	"qpoint/bias/circuit"
 )
 
@@ -136,7 +136,7 @@ func runWaveformHarmonics(cmd *cobra.Command, path string, fl *waveformFlags) er
 	case err != nil:
 		return analysisError(fmt.Errorf("%s: %w", path, err))
 	}
-	var pred *ac.Steady
+	var pred *steady.State
 	if fl.circuitPath != "" {
 		k := min(fl.harmonics, 25)
 		if pred, err = predictHarmonics(g, cmd.ErrOrStderr(), fl, r.FundamentalHz, k); err != nil {
@@ -160,7 +160,7 @@ func runWaveformHarmonics(cmd *cobra.Command, path string, fl *waveformFlags) er
 
 // predictHarmonics solves the circuit's steady state at the measured
 // fundamental with the flags' (or the file's) drive.
-func predictHarmonics(g *fileGuard, warn io.Writer, fl *waveformFlags, fundamentalHz float64, k int) (*ac.Steady, error) {
+func predictHarmonics(g *fileGuard, warn io.Writer, fl *waveformFlags, fundamentalHz float64, k int) (*steady.State, error) {
 	ds, err := resolveDistortion(g, warn, fl.circuitPath, &distortionFlags{input: fl.input, output: fl.output, level: fl.level, sets: fl.sets,
 		frequency: strconv.FormatFloat(fundamentalHz, 'g', -1, 64) + "Hz"})
 	if err != nil {
@@ -168,7 +168,7 @@ func predictHarmonics(g *fileGuard, warn io.Writer, fl *waveformFlags, fundament
 	}
 	d := ds.drive
 	d.SecondToneHz = 0
-	st, err := ac.SteadyState(ds.nw, d, ac.SteadySettings{Harmonics: k, Samples: max(255, 8*k+1)})
+	st, err := steady.Solve(ds.nw, d, steady.Settings{Harmonics: k, Samples: max(255, 8*k+1)})
 	if err != nil {
 		return nil, analysisError(fmt.Errorf("prediction from %s at %s: %w", fl.circuitPath, si.Format(fundamentalHz, "Hz", 6), err))
 	}
@@ -177,7 +177,7 @@ func predictHarmonics(g *fileGuard, warn io.Writer, fl *waveformFlags, fundament
 
 // writePredictionComparison sets measured harmonics beside the predicted
 // ones, each relative to its own fundamental.
-func writePredictionComparison(w io.Writer, circuitPath string, r *measure.Result, p *ac.Steady) {
+func writePredictionComparison(w io.Writer, circuitPath string, r *measure.Result, p *steady.State) {
 	t := &report.Table{Caption: "Measured beside predicted (" + circuitPath + ")", Header: []string{"order", "measured", "predicted", "measured dBc", "predicted dBc", "difference"}}
 	mf, pf := 0.0, p.Output[1].Amplitude
 	for _, h := range r.Harmonics {

@@ -11,6 +11,7 @@ import (
 	"qpoint/plots/report"
 
 	"qpoint/ac"
+	"qpoint/ac/steady"
 	"qpoint/ac/study"
 	"qpoint/ac/touchstone"
 	"qpoint/bias/circuit"
@@ -80,10 +81,10 @@ func (g *fileGuard) writeFigures(dir string, figs []*plots.Figure) error {
 	return nil
 }
 
-func (g *fileGuard) writeDistortionPlots(dir string, s *distortionSetup, e *ac.Estimate, st *ac.Steady, sweep []ac.LevelPoint, t *ac.Transfer, tssDBm float64, extra ...*plots.Figure) error {
+func (g *fileGuard) writeDistortionPlots(dir string, s *distortionSetup, e *ac.Estimate, st *steady.State, sweep []steady.LevelPoint, t *steady.Transfer, tssDBm float64, extra ...*plots.Figure) error {
 	comp, compressed := 0.0, false
 	if len(sweep) > 1 {
-		comp, compressed = ac.Compression(sweep, cmplx.Abs(e.Linear)/e.Drive.EMF)
+		comp, compressed = steady.Compression(sweep, cmplx.Abs(e.Linear)/e.Drive.EMF)
 	}
 	figs := report.DistortionFigures(e, st, sweep, comp, compressed)
 	if t != nil {

@@ -9,6 +9,7 @@ import (
 
 	"qpoint/ac"
 	"qpoint/ac/plan"
+	"qpoint/ac/steady"
 	"qpoint/ac/study"
 	"qpoint/ac/transient"
 	"qpoint/ac/yield"
@@ -30,10 +31,10 @@ func OverridesLine(c *circuit.Circuit) string {
 
 // SweepCautions returns, for each diode and kind of overstress met in a
 // level sweep, the lowest level at which it appears.
-func SweepCautions(pts []ac.LevelPoint) []string {
+func SweepCautions(pts []steady.LevelPoint) []string {
 	type key struct {
 		diode string
-		kind  ac.StressKind
+		kind  steady.StressKind
 	}
 	seen := map[key]bool{}
 	var out []string
@@ -233,7 +234,7 @@ func distortionSection(nw *smallsignal.Network, d *plan.Drive) (Section, []Card,
 	var cards []Card
 	// The waveform, the validity limit and a level sweep around the
 	// chosen level for the figures.
-	settings := ac.SteadySettings{Harmonics: 5}
+	settings := steady.Settings{Harmonics: 5}
 	var levels []float64
 	for l := d.LevelDBm - 30; l <= d.LevelDBm+20+1e-9; l += 2 {
 		levels = append(levels, l)
@@ -290,9 +291,9 @@ func distortionSection(nw *smallsignal.Network, d *plan.Drive) (Section, []Card,
 	}
 	if limit != nil {
 		switch limit.Outcome {
-		case ac.LimitFound:
+		case steady.LimitFound:
 			cards = append(cards, Card{Label: "small-signal limit", Value: fmt.Sprintf("%.1f dBm", limit.LevelDBm), Detail: "estimates within 0.5 dB of the waveform"})
-		case ac.HeldThroughout:
+		case steady.HeldThroughout:
 			cards = append(cards, Card{Label: "small-signal limit", Value: fmt.Sprintf("above %.1f dBm", limit.LevelDBm), Detail: "estimates within 0.5 dB at every level tried"})
 		default:
 			cards = append(cards, Card{Label: "small-signal limit", Value: "not found", Detail: limit.Note()})
@@ -310,8 +311,8 @@ func distortionSection(nw *smallsignal.Network, d *plan.Drive) (Section, []Card,
 			for l := math.Floor(det.TangentialDBm()/2)*2 - 10; l <= 10+1e-9; l += 2 {
 				levels = append(levels, l)
 			}
-			tsweep, _ := ac.LevelSweep(nw, one, levels, settings, nil)
-			if t, err := ac.DetectorTransfer(tsweep, det.Sensitivity); err == nil {
+			tsweep, _ := steady.LevelSweep(nw, one, levels, settings, nil)
+			if t, err := steady.DetectorTransfer(tsweep, det.Sensitivity); err == nil {
 				fig, err := SVGOf(plots.DetectorTransfer(t, det.TangentialDBm()))
 				if err != nil {
 					return sec, nil, err

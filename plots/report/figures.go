@@ -5,6 +5,7 @@ import (
 	"strings"
 
 	"qpoint/ac"
+	"qpoint/ac/steady"
 	"qpoint/ac/study"
 	"qpoint/bias/circuit"
 	"qpoint/bias/si"
@@ -13,7 +14,7 @@ import (
 
 // DistortionFigures returns the harmonic spectrum and, with a level sweep,
 // the output-versus-level figure.
-func DistortionFigures(e *ac.Estimate, st *ac.Steady, sweep []ac.LevelPoint, comp float64, compressed bool) []*plots.Figure {
+func DistortionFigures(e *ac.Estimate, st *steady.State, sweep []steady.LevelPoint, comp float64, compressed bool) []*plots.Figure {
 	figs := []*plots.Figure{plots.HarmonicSpectrum(st, e)}
 	if len(sweep) > 1 {
 		figs = append(figs, plots.LevelSweep(sweep, e, comp, compressed))
