@@ -690,3 +690,22 @@ func Detector(nw *smallsignal.Network, s NoiseSettings, carrierHz, videoFromHz, 
 		TangentialW: tangentialRatio * vn / math.Abs(g),
 	}, nil
 }
+
+// detectorProbeDBm is the small level at which Detects compares the
+// rectified output with the carrier.
+const detectorProbeDBm = -20
+
+// Detects reports whether the output of s is a detector's for a carrier
+// at carrierHz: the output is not AC-coupled, the carrier shifts its DC
+// level (VoltageSensitivity succeeds), and at a small level (-20 dBm
+// available) the shift is at least the carrier's own amplitude there. A
+// DC-coupled attenuator or limiter rectifies a little too; this tells
+// them apart from a detector.
+func Detects(nw *smallsignal.Network, s NoiseSettings, carrierHz float64) bool {
+	if _, err := VoltageSensitivity(nw, s, carrierHz); err != nil {
+		return false
+	}
+	z0 := nw.Ports[s.Input].Impedance
+	est, err := Volterra(nw, Drive{Input: s.Input, Output: s.Output, FrequencyHz: carrierHz, EMF: DBmToEMF(detectorProbeDBm, z0)})
+	return err == nil && math.Abs(est.DCShift) >= cmplx.Abs(est.Linear)
+}

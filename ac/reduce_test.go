@@ -13,6 +13,7 @@ import (
 
 	"gonum.org/v1/gonum/mat"
 
+	"qpoint/ac/internal/fixture"
 	"qpoint/bias"
 	"qpoint/bias/circuit"
 	"qpoint/smallsignal"
@@ -790,7 +791,7 @@ func TestNoiseEngines(t *testing.T) {
 		networks = append(networks, network(t, diodeLadder(sections)))
 	}
 	for _, n := range []int{21, 45, 90} {
-		networks = append(networks, network(t, benchLadder(n)))
+		networks = append(networks, network(t, fixture.Ladder(n)))
 	}
 	reduced, trials := 0, 0
 	rng := rand.New(rand.NewPCG(53, 1))

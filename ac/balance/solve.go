@@ -8,6 +8,7 @@ import (
 	"time"
 
 	"qpoint/ac"
+	"qpoint/ac/steady"
 	"qpoint/smallsignal"
 )
 
@@ -53,7 +54,7 @@ var ErrTruncation = errors.New("harmonic balance: the spectrum does not fall off
 func Solve(nw *smallsignal.Network, d ac.Drive, s Settings) (*Result, error) {
 	begin := time.Now()
 	s = s.withDefaults()
-	sv := &solver{nw: nw, d: d, s: s, stats: Stats{Method: ac.MethodHarmonicBalance}}
+	sv := &solver{nw: nw, d: d, s: s, stats: Stats{Method: steady.MethodHarmonicBalance}}
 	// Lines and measured blocks have no backward-difference form: the
 	// time-domain preconditioner cannot hold them.
 	sv.noTime = nw.HasElements()
@@ -886,7 +887,7 @@ func (sv *solver) result(sys *system, x []complex128) *Result {
 		sys.grid.toTime(tp, nil, terminals[d], nil)
 		junctions[d] = append([]float64(nil), j.v...)
 	}
-	r.Stress = ac.Stress(nw, currents, terminals, junctions)
+	r.Stress = steady.Stress(nw, currents, terminals, junctions)
 	scale := sv.d.EMF
 	for _, v := range nw.Bias[:nw.NodeUnknowns] {
 		scale = math.Max(scale, math.Abs(v))

@@ -8,12 +8,13 @@ import (
 	"os"
 	"strconv"
 
-	"qpoint/ac"
 	"qpoint/bias/si"
+	"qpoint/plots/report"
 
 	"github.com/spf13/cobra"
 
 	"qpoint/ac/measure"
+	"qpoint/ac/steady"
 	"qpoint/bias/circuit"
 )
 
@@ -89,6 +90,7 @@ func exactWaveform(cmd *cobra.Command, args []string) error {
 }
 
 func runWaveformHarmonics(cmd *cobra.Command, path string, fl *waveformFlags) error {
+	g := guardOf(cmd)
 	var opts measure.CSVOptions
 	if fl.sampleRate != "" {
 		v, err := circuit.ParseBounded(fl.sampleRate, circuit.Frequency)
@@ -122,7 +124,7 @@ func runWaveformHarmonics(cmd *cobra.Command, path string, fl *waveformFlags) er
 	}
 	s.Harmonics = fl.harmonics
 
-	w, err := readWaveformFile(path, opts)
+	w, err := g.readWaveformFile(path, opts)
 	if err != nil {
 		return err
 	}
@@ -134,10 +136,10 @@ func runWaveformHarmonics(cmd *cobra.Command, path string, fl *waveformFlags) er
 	case err != nil:
 		return analysisError(fmt.Errorf("%s: %w", path, err))
 	}
-	var pred *ac.Steady
+	var pred *steady.State
 	if fl.circuitPath != "" {
 		k := min(fl.harmonics, 25)
-		if pred, err = predictHarmonics(cmd.ErrOrStderr(), fl, r.FundamentalHz, k); err != nil {
+		if pred, err = predictHarmonics(g, cmd.ErrOrStderr(), fl, r.FundamentalHz, k); err != nil {
 			return err
 		}
 	}
@@ -158,15 +160,15 @@ func runWaveformHarmonics(cmd *cobra.Command, path string, fl *waveformFlags) er
 
 // predictHarmonics solves the circuit's steady state at the measured
 // fundamental with the flags' (or the file's) drive.
-func predictHarmonics(warn io.Writer, fl *waveformFlags, fundamentalHz float64, k int) (*ac.Steady, error) {
-	ds, err := resolveDistortion(warn, fl.circuitPath, &distortionFlags{input: fl.input, output: fl.output, level: fl.level, sets: fl.sets,
+func predictHarmonics(g *fileGuard, warn io.Writer, fl *waveformFlags, fundamentalHz float64, k int) (*steady.State, error) {
+	ds, err := resolveDistortion(g, warn, fl.circuitPath, &distortionFlags{input: fl.input, output: fl.output, level: fl.level, sets: fl.sets,
 		frequency: strconv.FormatFloat(fundamentalHz, 'g', -1, 64) + "Hz"})
 	if err != nil {
 		return nil, err
 	}
 	d := ds.drive
 	d.SecondToneHz = 0
-	st, err := ac.SteadyState(ds.nw, d, ac.SteadySettings{Harmonics: k, Samples: max(255, 8*k+1), Method: steadyFor(ds.nw)})
+	st, err := steady.Solve(ds.nw, d, steady.Settings{Harmonics: k, Samples: max(255, 8*k+1), Method: steadyFor(ds.nw)})
 	if err != nil {
 		return nil, analysisError(fmt.Errorf("prediction from %s at %s: %w", fl.circuitPath, si.Format(fundamentalHz, "Hz", 6), err))
 	}
@@ -175,8 +177,8 @@ func predictHarmonics(warn io.Writer, fl *waveformFlags, fundamentalHz float64, 
 
 // writePredictionComparison sets measured harmonics beside the predicted
 // ones, each relative to its own fundamental.
-func writePredictionComparison(w io.Writer, circuitPath string, r *measure.Result, p *ac.Steady) {
-	t := &table{title: "Measured beside predicted (" + circuitPath + ")", header: []string{"order", "measured", "predicted", "measured dBc", "predicted dBc", "difference"}}
+func writePredictionComparison(w io.Writer, circuitPath string, r *measure.Result, p *steady.State) {
+	t := &report.Table{Caption: "Measured beside predicted (" + circuitPath + ")", Header: []string{"order", "measured", "predicted", "measured dBc", "predicted dBc", "difference"}}
 	mf, pf := 0.0, p.Output[1].Amplitude
 	for _, h := range r.Harmonics {
 		if h.Order == 1 {
@@ -196,16 +198,16 @@ func writePredictionComparison(w io.Writer, circuitPath string, r *measure.Resul
 		if h.Order == 1 {
 			diff = fmt.Sprintf("%+.2f dB", 20*math.Log10(h.AmplitudeV/pa))
 		}
-		t.add(strconv.Itoa(h.Order), si.Format(h.AmplitudeV, "V", 4), si.Format(pa, "V", 4), waveDBc(md), waveDBc(pd), diff)
+		t.Add(strconv.Itoa(h.Order), si.Format(h.AmplitudeV, "V", 4), si.Format(pa, "V", 4), report.WaveDBc(md), report.WaveDBc(pd), diff)
 	}
-	t.write(w)
+	t.WriteText(w)
 	fmt.Fprintf(w, "  the fundamental's row compares absolute amplitudes; the others compare levels relative to each fundamental\n")
 }
 
 // readWaveformFile reads a waveform file; every failure is an input error,
 // placed as FILE:LINE:COL.
-func readWaveformFile(path string, opts measure.CSVOptions) (*measure.Waveform, error) {
-	inputs = append(inputs, path)
+func (g *fileGuard) readWaveformFile(path string, opts measure.CSVOptions) (*measure.Waveform, error) {
+	g.read(path)
 	f, err := os.Open(path)
 	if err != nil {
 		return nil, inputError(fmt.Errorf("cannot read the waveform file: %w", err))
@@ -242,23 +244,23 @@ func writeWaveformHarmonics(w io.Writer, path string, wf *measure.Waveform, r *m
 			u*float64(r.Samples-1), si.Format(1/r.SampleRateHz, "s", 3), u, si.Format(u*r.FundamentalHz, "Hz", 2))
 	}
 
-	t := &table{title: "Harmonics", header: []string{"order", "frequency", "amplitude", "dBc", "phase °"}}
+	t := &report.Table{Caption: "Harmonics", Header: []string{"order", "frequency", "amplitude", "dBc", "phase °"}}
 	absent := 0
 	for _, h := range r.Harmonics {
 		order := strconv.Itoa(h.Order)
 		if h.Order == 0 {
-			t.add("DC", si.Format(0, "Hz", 4), si.Format(h.AmplitudeV, "V", 5), "", "")
+			t.Add("DC", si.Format(0, "Hz", 4), si.Format(h.AmplitudeV, "V", 5), "", "")
 			continue
 		}
 		if !h.Present {
 			absent++
-			t.add(order, si.Format(h.FrequencyHz, "Hz", 6), "above fs/2", "", "")
+			t.Add(order, si.Format(h.FrequencyHz, "Hz", 6), "above fs/2", "", "")
 			continue
 		}
-		t.add(order, si.Format(h.FrequencyHz, "Hz", 6), si.Format(h.AmplitudeV, "V", 5),
+		t.Add(order, si.Format(h.FrequencyHz, "Hz", 6), si.Format(h.AmplitudeV, "V", 5),
 			waveformDB(h.DBc), strconv.FormatFloat(h.PhaseDeg, 'f', 2, 64))
 	}
-	t.write(w)
+	t.WriteText(w)
 	fmt.Fprintln(w)
 	last := len(r.Harmonics) - 1 - absent
 	if math.IsNaN(r.THDPercent) {

@@ -4,9 +4,8 @@ import (
 	"fmt"
 	"io"
 
-	"qpoint/ac"
-	"qpoint/ac/balance"
 	"qpoint/ac/plan"
+	"qpoint/ac/steady"
 	"qpoint/bias"
 	"qpoint/bias/circuit"
 	"qpoint/plots/report"
@@ -91,9 +90,16 @@ func writeOutside(w io.Writer, o []smallsignal.OutsideRange) {
 // would otherwise solve by shooting (nil): harmonic balance, by the
 // automatic choice, when it holds lines or blocks, which shooting cannot
 // carry.
-func steadyFor(nw *smallsignal.Network) ac.SteadyMethod {
-	if nw.HasElements() {
-		return balance.Method{Choice: balance.Auto}
+func steadyFor(nw *smallsignal.Network) steady.Method {
+	return plan.ForElements(nw, nil)
+}
+
+// outsideOf returns the range cautions of a distortion run: the
+// waveform's (harmonic balance sees every product it solved), else the
+// estimate's.
+func outsideOf(res *plan.Distortion) []smallsignal.OutsideRange {
+	if res.Waveform != nil && len(res.Waveform.Outside) > 0 {
+		return res.Waveform.Outside
 	}
-	return nil
+	return res.Estimate.Outside
 }

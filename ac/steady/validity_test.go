@@ -1,9 +1,11 @@
-package ac
+package steady
 
 import (
 	"math"
 	"strings"
 	"testing"
+
+	"qpoint/ac"
 )
 
 // TestValidityNeverPresentsADefault: driven far above its range, the
@@ -12,8 +14,8 @@ import (
 // estimates holding there and not one step above.
 func TestValidityNeverPresentsADefault(t *testing.T) {
 	nw := network(t, demo(t, "detector"))
-	d := Drive{Input: 0, Output: Output{Port: 1}, FrequencyHz: 2.45e9}
-	s := SteadySettings{Harmonics: 5}
+	d := ac.Drive{Input: 0, Output: ac.Output{Port: 1}, FrequencyHz: 2.45e9}
+	s := Settings{Harmonics: 5}
 	v, err := ValidityLimit(nw, d, -20, 60, 0.5, s)
 	if err != nil {
 		t.Fatal(err)
@@ -28,12 +30,12 @@ func TestValidityNeverPresentsADefault(t *testing.T) {
 		l    float64
 		hold bool
 	}{{v.LevelDBm, true}, {v.LevelDBm + 0.1, false}} {
-		d.EMF = DBmToEMF(c.l, 50)
-		e, err := Volterra(nw, d)
+		d.EMF = ac.DBmToEMF(c.l, 50)
+		e, err := ac.Volterra(nw, d)
 		if err != nil {
 			t.Fatal(err)
 		}
-		st, err := SteadyState(nw, d, s)
+		st, err := Solve(nw, d, s)
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -49,8 +51,8 @@ func TestValidityNeverPresentsADefault(t *testing.T) {
 // there, and its note says so rather than naming a level as the limit.
 func TestValidityNeverHeld(t *testing.T) {
 	nw := network(t, demo(t, "detector"))
-	d := Drive{Input: 0, Output: Output{Port: 1}, FrequencyHz: 2.45e9}
-	v, err := ValidityLimit(nw, d, 0, 20, 1e-9, SteadySettings{Harmonics: 5})
+	d := ac.Drive{Input: 0, Output: ac.Output{Port: 1}, FrequencyHz: 2.45e9}
+	v, err := ValidityLimit(nw, d, 0, 20, 1e-9, Settings{Harmonics: 5})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -67,8 +69,8 @@ func TestValidityNeverHeld(t *testing.T) {
 // level tried, the note says the limit lies higher.
 func TestValidityHeldThroughout(t *testing.T) {
 	nw := network(t, demo(t, "detector"))
-	d := Drive{Input: 0, Output: Output{Port: 1}, FrequencyHz: 2.45e9}
-	v, err := ValidityLimit(nw, d, -80, -70, 0.5, SteadySettings{Harmonics: 5})
+	d := ac.Drive{Input: 0, Output: ac.Output{Port: 1}, FrequencyHz: 2.45e9}
+	v, err := ValidityLimit(nw, d, -80, -70, 0.5, Settings{Harmonics: 5})
 	if err != nil {
 		t.Fatal(err)
 	}

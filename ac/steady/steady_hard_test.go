@@ -1,4 +1,4 @@
-package ac
+package steady
 
 import (
 	"math"
@@ -7,6 +7,7 @@ import (
 	"testing"
 	"time"
 
+	"qpoint/ac"
 	"qpoint/bias"
 	"qpoint/bias/circuit"
 	"qpoint/smallsignal"
@@ -16,16 +17,16 @@ import (
 // input port's generator at the level given (a peak voltage is what the
 // generator delivers into a matched load, half its EMF), the output a port
 // or a node.
-func hardDrive(t *testing.T, c *circuit.Circuit) Drive {
+func hardDrive(t *testing.T, c *circuit.Circuit) ac.Drive {
 	t.Helper()
 	d := c.Analysis.Distortion
-	drive := Drive{Input: -1, Output: Output{Port: -1, Node: d.Output}, FrequencyHz: d.FrequencyHz}
+	drive := ac.Drive{Input: -1, Output: ac.Output{Port: -1, Node: d.Output}, FrequencyHz: d.FrequencyHz}
 	for i, p := range c.Ports {
 		if p.Name == d.Input {
 			drive.Input = i
 		}
 		if p.Name == d.Output {
-			drive.Output = Output{Port: i}
+			drive.Output = ac.Output{Port: i}
 		}
 	}
 	if drive.Input < 0 {
@@ -33,7 +34,7 @@ func hardDrive(t *testing.T, c *circuit.Circuit) Drive {
 	}
 	z0 := c.Ports[drive.Input].Impedance
 	if d.Level.IsPower {
-		drive.EMF = DBmToEMF(d.Level.DBm, z0)
+		drive.EMF = ac.DBmToEMF(d.Level.DBm, z0)
 	} else {
 		drive.EMF = 2 * d.Level.PeakVolts
 	}
@@ -47,7 +48,7 @@ func hardDrive(t *testing.T, c *circuit.Circuit) Drive {
 // must hold, to 1 % of the largest of them, when the period is sampled twice
 // as finely: the solver's own extrapolation is checked against a finer grid.
 func TestHardSteadyState(t *testing.T) {
-	paths, err := filepath.Glob(filepath.Join("..", "testdata", "hard", "*.yaml"))
+	paths, err := filepath.Glob(filepath.Join("..", "..", "testdata", "hard", "*.yaml"))
 	if err != nil || len(paths) < 25 {
 		t.Fatalf("found %d hard circuits, want at least 25: %v", len(paths), err)
 	}
@@ -72,13 +73,13 @@ func TestHardSteadyState(t *testing.T) {
 			}
 			d := hardDrive(t, c)
 			start := time.Now()
-			st, err := SteadyState(nw, d, SteadySettings{})
+			st, err := Solve(nw, d, Settings{})
 			if err != nil {
 				t.Fatalf("at %.3g V EMF: %v", d.EMF, err)
 			}
 			took := time.Since(start)
 			checkSteadyFinite(t, st)
-			fine, err := SteadyState(nw, d, SteadySettings{Samples: 511, Start: st})
+			fine, err := Solve(nw, d, Settings{Samples: 511, Start: st})
 			if err != nil {
 				t.Fatalf("at 511 samples per period: %v", err)
 			}
@@ -105,7 +106,7 @@ func TestHardSteadyState(t *testing.T) {
 
 // checkSteadyFinite fails on any NaN or infinity in a steady state, but a
 // NaN THD where the output has no fundamental.
-func checkSteadyFinite(t *testing.T, st *Steady) {
+func checkSteadyFinite(t *testing.T, st *State) {
 	t.Helper()
 	all := append([]Harmonic(nil), st.Output...)
 	for _, h := range st.DiodeCurrents {

@@ -1,9 +1,11 @@
-package ac
+package steady
 
 import (
 	"math"
 	"math/cmplx"
 	"testing"
+
+	"qpoint/ac"
 
 	"gonum.org/v1/gonum/dsp/fourier"
 )
@@ -13,8 +15,8 @@ import (
 // practice; the intercept construction rests on it).
 func TestLevelSweepSlopes(t *testing.T) {
 	nw := network(t, demo(t, "detector"))
-	d := Drive{Input: 0, Output: Output{Port: 1}, FrequencyHz: 2.45e9}
-	pts, err := LevelSweep(nw, d, []float64{-60, -50}, SteadySettings{}, nil)
+	d := ac.Drive{Input: 0, Output: ac.Output{Port: 1}, FrequencyHz: 2.45e9}
+	pts, err := LevelSweep(nw, d, []float64{-60, -50}, Settings{}, nil)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -32,7 +34,7 @@ func TestLevelSweepSlopes(t *testing.T) {
 // the same samples.
 func TestHarmonicsAgainstGonumFFT(t *testing.T) {
 	nw := network(t, demo(t, "limiter"))
-	st, err := SteadyState(nw, Drive{Input: 0, Output: Output{Port: 1}, FrequencyHz: 1e9, EMF: DBmToEMF(5, 50)}, SteadySettings{Harmonics: 7})
+	st, err := Solve(nw, ac.Drive{Input: 0, Output: ac.Output{Port: 1}, FrequencyHz: 1e9, EMF: ac.DBmToEMF(5, 50)}, Settings{Harmonics: 7})
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -1,4 +1,4 @@
-package ac
+package steady
 
 import (
 	"math"
@@ -6,37 +6,10 @@ import (
 	"os"
 	"testing"
 
+	"qpoint/ac"
+	"qpoint/ac/internal/fixture"
 	"qpoint/bias/diode"
 )
-
-// besselI returns the modified Bessel function I_k(x) by its power series
-// sum_m (x/2)^(2m+k) / (m! (m+k)!), which converges quickly for x <= 3.
-func besselI(k int, x float64) float64 {
-	term := math.Pow(x/2, float64(k))
-	for j := 2; j <= k; j++ {
-		term /= float64(j)
-	}
-	sum := term
-	for m := 1; m < 60; m++ {
-		term *= (x / 2) * (x / 2) / (float64(m) * float64(m+k))
-		sum += term
-	}
-	return sum
-}
-
-// TestBesselTable checks the series against Abramowitz and Stegun,
-// "Handbook of Mathematical Functions", 1964, Table 9.8 (values also in
-// ../shared/design/references.md).
-func TestBesselTable(t *testing.T) {
-	for _, c := range []struct {
-		k    int
-		want float64
-	}{{0, 1.266065878}, {1, 0.565159104}, {2, 0.135747670}, {3, 0.022168425}} {
-		if got := besselI(c.k, 1); math.Abs(got-c.want) > 1e-9 {
-			t.Errorf("I_%d(1) = %.10f, Table 9.8 gives %.9f", c.k, got, c.want)
-		}
-	}
-}
 
 // TestSteadyStateBessel: a junction driven by v = V0 + V cos(wt) carries
 // harmonics 2 I_S e^(V0/nV_T) I_k(x), x = V/(n V_T) (Abramowitz and Stegun
@@ -45,16 +18,16 @@ func TestSteadyStateBessel(t *testing.T) {
 	nw := network(t, junctionFixtureTight)
 	vt := diode.ThermalVoltage(300.15)
 	for _, x := range []float64{0.1, 1, 3} {
-		st, err := SteadyState(nw, Drive{Input: 0, Output: Output{Port: -1, Node: "s"}, FrequencyHz: 1e6, EMF: x * vt}, SteadySettings{Samples: 64, Harmonics: 3})
+		st, err := Solve(nw, ac.Drive{Input: 0, Output: ac.Output{Port: -1, Node: "s"}, FrequencyHz: 1e6, EMF: x * vt}, Settings{Samples: 64, Harmonics: 3})
 		if err != nil {
 			t.Fatal(err)
 		}
 		i0 := 1e-14 * math.Exp(0.6/vt)
 		h := st.DiodeCurrents[0]
 		for k := 0; k <= 3; k++ {
-			want := 2 * i0 * besselI(k, x)
+			want := 2 * i0 * fixture.BesselI(k, x)
 			if k == 0 {
-				want = i0*besselI(0, x) - 1e-14 // the mean includes -I_S
+				want = i0*fixture.BesselI(0, x) - 1e-14 // the mean includes -I_S
 			}
 			if rel := math.Abs(h[k].Amplitude/want - 1); rel > 1e-6 {
 				t.Errorf("x = %g, harmonic %d: %.10g A, Bessel law %.10g A (relative error %.2g)", x, k, h[k].Amplitude, want, rel)
@@ -84,12 +57,12 @@ ports:
 // frequency domain and one in the time domain, check each other.
 func TestVolterraMatchesWaveform(t *testing.T) {
 	nw := network(t, demo(t, "detector"))
-	d := Drive{Input: 0, Output: Output{Port: 1}, FrequencyHz: 2.45e9, EMF: DBmToEMF(-50, 50)}
-	est, err := Volterra(nw, d)
+	d := ac.Drive{Input: 0, Output: ac.Output{Port: 1}, FrequencyHz: 2.45e9, EMF: ac.DBmToEMF(-50, 50)}
+	est, err := ac.Volterra(nw, d)
 	if err != nil {
 		t.Fatal(err)
 	}
-	st, err := SteadyState(nw, d, SteadySettings{})
+	st, err := Solve(nw, d, Settings{})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -99,7 +72,7 @@ func TestVolterraMatchesWaveform(t *testing.T) {
 	x := cmplx.Abs(est.Junctions[0]) / nw.Diodes[0].Device.NVT()
 	charge := 0.0
 	for _, c := range est.Contributions {
-		if c.Product == HD2 && c.Source == ChargeLaw {
+		if c.Product == ac.HD2 && c.Source == ac.ChargeLaw {
 			charge = c.Percent
 		}
 	}
@@ -144,8 +117,8 @@ ports:
 probes: [v]
 `)
 	// Rv Cv = 408 ns = 1000 periods at 2.45 GHz.
-	d := Drive{Input: 0, Output: Output{Port: -1, Node: "v"}, FrequencyHz: 2.45e9, EMF: DBmToEMF(-10, 50)}
-	st, err := SteadyState(nw, d, SteadySettings{})
+	d := ac.Drive{Input: 0, Output: ac.Output{Port: -1, Node: "v"}, FrequencyHz: 2.45e9, EMF: ac.DBmToEMF(-10, 50)}
+	st, err := Solve(nw, d, Settings{})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -165,14 +138,14 @@ probes: [v]
 // once read THD 6 % and HD3 -28 dBc (issue 13, item 5). At -60 dBm the
 // second harmonic is real and agrees with the estimate to 0.5 dB.
 func TestReadingsBelowFloor(t *testing.T) {
-	src, err := os.ReadFile("../testdata/demo/detector.yaml")
+	src, err := os.ReadFile("../../testdata/demo/detector.yaml")
 	if err != nil {
 		t.Fatal(err)
 	}
 	nw := network(t, string(src))
 	for _, dbm := range []float64{-200, -160, -120} {
-		d := Drive{Input: 0, Output: Output{Port: 1}, FrequencyHz: 2.45e9, EMF: DBmToEMF(dbm, 50)}
-		st, err := SteadyState(nw, d, SteadySettings{})
+		d := ac.Drive{Input: 0, Output: ac.Output{Port: 1}, FrequencyHz: 2.45e9, EMF: ac.DBmToEMF(dbm, 50)}
+		st, err := Solve(nw, d, Settings{})
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -185,12 +158,12 @@ func TestReadingsBelowFloor(t *testing.T) {
 			t.Errorf("%g dBm: THD %g %%, want none (rounding)", dbm, st.THDPercent)
 		}
 	}
-	d := Drive{Input: 0, Output: Output{Port: 1}, FrequencyHz: 2.45e9, EMF: DBmToEMF(-60, 50)}
-	st, err := SteadyState(nw, d, SteadySettings{})
+	d := ac.Drive{Input: 0, Output: ac.Output{Port: 1}, FrequencyHz: 2.45e9, EMF: ac.DBmToEMF(-60, 50)}
+	st, err := Solve(nw, d, Settings{})
 	if err != nil {
 		t.Fatal(err)
 	}
-	e, err := Volterra(nw, d)
+	e, err := ac.Volterra(nw, d)
 	if err != nil {
 		t.Fatal(err)
 	}

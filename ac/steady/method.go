@@ -1,8 +1,9 @@
-package ac
+package steady
 
 import (
 	"math"
 
+	"qpoint/ac"
 	"qpoint/smallsignal"
 )
 
@@ -12,15 +13,15 @@ const (
 	MethodHarmonicBalance = "harmonic balance"
 )
 
-// SteadyMethod is a way of solving for the periodic (or, with two tones,
-// quasi-periodic) steady state. SteadyState uses it when
-// SteadySettings.Method is set; shooting, in this package, is the default,
+// Method is a way of solving for the periodic (or, with two tones,
+// quasi-periodic) steady state. Solve uses it when
+// Settings.Method is set; shooting, in this package, is the default,
 // and package balance supplies harmonic balance and the automatic choice
-// between the two. SolveSteady receives the settings SteadyState was
+// between the two. SolveSteady receives the settings Solve was
 // given, Method included, and returns a Steady whose Method names what
 // ran.
-type SteadyMethod interface {
-	SolveSteady(nw *smallsignal.Network, d Drive, s SteadySettings) (*Steady, error)
+type Method interface {
+	SolveSteady(nw *smallsignal.Network, d ac.Drive, s Settings) (*State, error)
 }
 
 // ToneProduct is the output at one mixing product m·f1 + n·f2 of a
@@ -36,7 +37,7 @@ type ToneProduct struct {
 
 // Product returns the output at m·f1 + n·f2 (or its mirror -m, -n, the
 // same frequency) and false when the steady state holds no such product.
-func (s *Steady) Product(m, n int) (ToneProduct, bool) {
+func (s *State) Product(m, n int) (ToneProduct, bool) {
 	for _, p := range s.Products {
 		if (p.Orders[0] == m && p.Orders[1] == n) || (p.Orders[0] == -m && p.Orders[1] == -n) {
 			return p, true
@@ -47,13 +48,13 @@ func (s *Steady) Product(m, n int) (ToneProduct, bool) {
 
 // IM2dBc returns the two-tone output at |f2 - f1| relative to the output
 // at f1, in dB (NaN for one tone), as Estimate.IM2dBc does.
-func (s *Steady) IM2dBc() float64 { return s.relative(-1, 1) }
+func (s *State) IM2dBc() float64 { return s.relative(-1, 1) }
 
 // IM3dBc returns the two-tone output at 2 f1 - f2 relative to the output
 // at f1, in dB (NaN for one tone), as Estimate.IM3dBc does.
-func (s *Steady) IM3dBc() float64 { return s.relative(2, -1) }
+func (s *State) IM3dBc() float64 { return s.relative(2, -1) }
 
-func (s *Steady) relative(m, n int) float64 {
+func (s *State) relative(m, n int) float64 {
 	f1, ok1 := s.Product(1, 0)
 	p, ok2 := s.Product(m, n)
 	if !ok1 || !ok2 {
@@ -67,7 +68,7 @@ func (s *Steady) relative(m, n int) float64 {
 // shift) and computes THD from those above it, as every method's Steady
 // reports them; scale is the circuit's voltage scale, the larger of the
 // drive's EMF and the DC node voltages.
-func (s *Steady) FinishHarmonics(scale float64) {
+func (s *State) FinishHarmonics(scale float64) {
 	// Readings below the floor are rounding: a -200 dBm drive once
 	// showed 6 % THD and HD3 at -28 dBc of nothing but that.
 	for i := range s.Output {

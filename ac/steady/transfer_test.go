@@ -1,8 +1,10 @@
-package ac
+package steady
 
 import (
 	"math"
 	"testing"
+
+	"qpoint/ac"
 )
 
 // TestDetectorTransfer: the detector demo's output follows square law,
@@ -18,8 +20,8 @@ func TestDetectorTransfer(t *testing.T) {
 		t.Skip("a 36-level waveform sweep")
 	}
 	nw := network(t, demo(t, "detector"))
-	d := Drive{Input: 0, Output: Output{Port: 1}, FrequencyHz: 2.45e9}
-	gamma, err := VoltageSensitivity(nw, NoiseSettings{Input: 0, Output: d.Output}, d.FrequencyHz)
+	d := ac.Drive{Input: 0, Output: ac.Output{Port: 1}, FrequencyHz: 2.45e9}
+	gamma, err := ac.VoltageSensitivity(nw, ac.NoiseSettings{Input: 0, Output: d.Output}, d.FrequencyHz)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -27,7 +29,7 @@ func TestDetectorTransfer(t *testing.T) {
 	for l := -60.0; l <= 10; l += 2 {
 		levels = append(levels, l)
 	}
-	pts, err := LevelSweep(nw, d, levels, SteadySettings{Harmonics: 5}, nil)
+	pts, err := LevelSweep(nw, d, levels, Settings{Harmonics: 5}, nil)
 	if err != nil {
 		t.Fatal(err)
 	}

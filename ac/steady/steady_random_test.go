@@ -1,4 +1,4 @@
-package ac
+package steady
 
 import (
 	"fmt"
@@ -9,6 +9,7 @@ import (
 	"testing"
 	"time"
 
+	"qpoint/ac"
 	"qpoint/bias"
 	"qpoint/bias/circuit"
 	"qpoint/bias/circuit/circuittest"
@@ -128,19 +129,19 @@ func TestRandomSteadyState(t *testing.T) {
 				t.Fatal(err)
 			}
 			d := hardDrive(t, c)
-			st, err := SteadyState(nw, d, SteadySettings{})
+			st, err := Solve(nw, d, Settings{})
 			if err != nil {
 				t.Fatalf("at %.3g dBm, %.4g Hz: %v", c.Analysis.Distortion.Level.DBm, d.FrequencyHz, err)
 			}
 			checkSteadyFinite(t, st)
 			iterations += st.Iterations
 
-			d.EMF = DBmToEMF(-70, c.Ports[d.Input].Impedance)
-			small, err := SteadyState(nw, d, SteadySettings{})
+			d.EMF = ac.DBmToEMF(-70, c.Ports[d.Input].Impedance)
+			small, err := Solve(nw, d, Settings{})
 			if err != nil {
 				t.Fatalf("at -70 dBm: %v", err)
 			}
-			est, err := Volterra(nw, d)
+			est, err := ac.Volterra(nw, d)
 			if err != nil {
 				t.Fatal(err)
 			}

@@ -1,4 +1,4 @@
-package ac
+package steady
 
 import (
 	"fmt"
@@ -112,7 +112,7 @@ type StressCaution struct {
 // for a junction without a current rating whose peak current exceeds what
 // its capacitance says a junction of its size takes (smallJunctionCurrent).
 // Results past a rating describe a part that may be damaged.
-func (s *Steady) StressCautions() []StressCaution {
+func (s *State) StressCautions() []StressCaution {
 	var c []StressCaution
 	add := func(d DiodeStress, k StressKind, v, l float64, format string, args ...any) {
 		c = append(c, StressCaution{Diode: d.Name, Kind: k, Value: v, Limit: l, Message: d.Name + ": " + fmt.Sprintf(format, args...)})
@@ -144,7 +144,7 @@ func (s *Steady) StressCautions() []StressCaution {
 }
 
 // Cautions returns the messages of StressCautions.
-func (s *Steady) Cautions() []string {
+func (s *State) Cautions() []string {
 	var m []string
 	for _, c := range s.StressCautions() {
 		m = append(m, c.Message)

@@ -1,4 +1,4 @@
-package ac
+package steady
 
 import (
 	"errors"

@@ -1,10 +1,11 @@
-package ac
+package steady
 
 import (
 	"fmt"
 	"math"
 	"math/cmplx"
 
+	"qpoint/ac"
 	"qpoint/smallsignal"
 )
 
@@ -24,7 +25,7 @@ const floorDBc = -140
 
 // Compare returns the estimate beside the waveform for the DC shift and
 // harmonics 1 to 3.
-func Compare(e *Estimate, s *Steady) []Comparison {
+func Compare(e *ac.Estimate, s *State) []Comparison {
 	est := []complex128{complex(e.DCShift, 0), e.Fundamental, e.HD2, e.HD3}
 	names := []string{"dc", "1", "2", "3"}
 	fund := cmplx.Abs(e.Linear)
@@ -48,19 +49,19 @@ func Compare(e *Estimate, s *Steady) []Comparison {
 type LevelPoint struct {
 	LevelDBm float64 // available power per tone
 	EMF      float64
-	Steady   *Steady
+	Steady   *State
 }
 
 // LevelSweep solves the steady state at each available input power (dBm)
 // in turn, each solution starting the next (continuation in level).
-func LevelSweep(nw *smallsignal.Network, d Drive, levelsDBm []float64, s SteadySettings, progress func(done, total int)) ([]LevelPoint, error) {
+func LevelSweep(nw *smallsignal.Network, d ac.Drive, levelsDBm []float64, s Settings, progress func(done, total int)) ([]LevelPoint, error) {
 	z0 := nw.Ports[d.Input].Impedance
 	var out []LevelPoint
-	var prev *Steady
+	var prev *State
 	for i, l := range levelsDBm {
-		d.EMF = DBmToEMF(l, z0)
+		d.EMF = ac.DBmToEMF(l, z0)
 		s.Start = prev
-		st, err := SteadyState(nw, d, s)
+		st, err := Solve(nw, d, s)
 		if err != nil {
 			return out, fmt.Errorf("at %.2f dBm: %w", l, err)
 		}
@@ -174,20 +175,20 @@ const validityDescent = 60
 // A failed waveform solve ends the search with Outcome SolveFailed: it is
 // not taken as the estimates' departure. The error is for a drive the
 // estimate refuses.
-func ValidityLimit(nw *smallsignal.Network, d Drive, startDBm, maxDBm, tolDB float64, s SteadySettings) (*Validity, error) {
+func ValidityLimit(nw *smallsignal.Network, d ac.Drive, startDBm, maxDBm, tolDB float64, s Settings) (*Validity, error) {
 	z0 := nw.Ports[d.Input].Impedance
 	v := &Validity{TolDB: tolDB, LevelDBm: math.NaN(), LowestDBm: startDBm, WorstDB: math.NaN(), FailedDBm: math.NaN()}
 	var solveErr error
 	// check reports whether the estimates hold at level l; a failed
 	// solve sets solveErr.
-	check := func(l float64, start *Steady) (*Steady, bool, float64, string, error) {
-		d.EMF = DBmToEMF(l, z0)
-		e, err := Volterra(nw, Drive{Input: d.Input, Output: d.Output, FrequencyHz: d.FrequencyHz, EMF: d.EMF})
+	check := func(l float64, start *State) (*State, bool, float64, string, error) {
+		d.EMF = ac.DBmToEMF(l, z0)
+		e, err := ac.Volterra(nw, ac.Drive{Input: d.Input, Output: d.Output, FrequencyHz: d.FrequencyHz, EMF: d.EMF})
 		if err != nil {
 			return nil, false, 0, "", err
 		}
 		s.Start = start
-		st, err := SteadyState(nw, d, s)
+		st, err := Solve(nw, d, s)
 		v.Steps++
 		if err != nil {
 			solveErr = fmt.Errorf("at %.1f dBm: %w", l, err)
@@ -202,7 +203,7 @@ func ValidityLimit(nw *smallsignal.Network, d Drive, startDBm, maxDBm, tolDB flo
 	}
 
 	good, bad := math.NaN(), math.NaN()
-	var prev *Steady
+	var prev *State
 	st, ok, w, name, err := check(startDBm, nil)
 	if err != nil {
 		return nil, err

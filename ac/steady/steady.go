@@ -1,4 +1,4 @@
-package ac
+package steady
 
 import (
 	"errors"
@@ -10,15 +10,16 @@ import (
 	"gonum.org/v1/gonum/blas/blas64"
 	"gonum.org/v1/gonum/mat"
 
+	"qpoint/ac"
 	"qpoint/ac/nonlinear"
 	"qpoint/smallsignal"
 )
 
-// SteadySettings control the periodic steady-state solve.
-type SteadySettings struct {
+// Settings control the periodic steady-state solve.
+type Settings struct {
 	// Samples per period; zero means 255. An even count is raised by
 	// one (the trapezoidal rule needs an odd count here, see
-	// SteadyState). The solve also runs at 2N+1 and combines the two by
+	// Solve). The solve also runs at 2N+1 and combines the two by
 	// Richardson extrapolation.
 	Samples int
 	// Harmonics is the highest order reported; zero means 5.
@@ -27,10 +28,10 @@ type SteadySettings struct {
 	MaxIterations int
 	// Start, when not nil, is a steady state of the same circuit at a
 	// nearby level to start from (continuation over level).
-	Start *Steady
+	Start *State
 	// Method solves for the steady state; nil is shooting (see
-	// SteadyMethod).
-	Method SteadyMethod
+	// Method).
+	Method Method
 }
 
 // Harmonic is one harmonic of a periodic waveform.
@@ -41,14 +42,14 @@ type Harmonic struct {
 	Phasor    complex128
 	// BelowFloor is true where the amplitude lies below the steady
 	// state's NoiseFloor: the solver's rounding, not the circuit. Set on
-	// a Steady's Output.
+	// a State's Output.
 	BelowFloor bool
 }
 
-// Steady is the periodic steady state of the circuit under a one-tone
+// State is the periodic steady state of the circuit under a one-tone
 // drive, and the harmonics of its output.
-type Steady struct {
-	Drive Drive
+type State struct {
+	Drive ac.Drive
 	// Output holds the output's harmonics: order 0 is the change of its DC
 	// level caused by the signal (the DC shift), orders 1..K its phasors.
 	Output []Harmonic
@@ -95,7 +96,7 @@ type Steady struct {
 	// product m·f1 + n·f2 the method solved for; nil for one tone.
 	Products []ToneProduct
 	// State is the solving method's own record of the solution, which a
-	// method other than shooting reads back from SteadySettings.Start to
+	// method other than shooting reads back from Settings.Start to
 	// continue from it (harmonic balance keeps its *balance.Result here).
 	State any
 
@@ -111,8 +112,8 @@ const floorRel = 1e-12
 // dcFloorRel is the same for the DC shift (order 0).
 const dcFloorRel = 1e-10
 
-// MaxSteadyUnknowns bounds the size of a circuit SteadyState takes.
-const MaxSteadyUnknowns = 300
+// MaxUnknowns bounds the size of a circuit Solve takes.
+const MaxUnknowns = 300
 
 // ElementsError is the refusal of a method that solves the circuit in
 // time (shooting, the transient) to take lines or measured blocks, which
@@ -127,10 +128,10 @@ func (e *ElementsError) Error() string {
 		e.Method, strings.Join(e.Elements, ", "), map[bool]string{true: "its", false: "their"}[len(e.Elements) == 1])
 }
 
-// ErrNoSteadyState reports a shooting solve that did not converge.
-var ErrNoSteadyState = errors.New("no periodic steady state found")
+// ErrNotFound reports a shooting solve that did not converge.
+var ErrNotFound = errors.New("no periodic steady state found")
 
-// SteadyState solves the full nonlinear circuit driven by the input port's
+// Solve solves the full nonlinear circuit driven by the input port's
 // generator, d.EMF cos(2π f t) behind its reference impedance, for its
 // periodic steady state, by Newton's method on the period map (shooting:
 // Aprille and Trick, "Steady-state analysis of nonlinear circuits with
@@ -147,11 +148,11 @@ var ErrNoSteadyState = errors.New("no periodic steady state found")
 // transformed with go-dsp's FFT, and the harmonic phasors combined by
 // Richardson's extrapolation for the rule's error in (ωh)².
 //
-// With s.Method set, the method given solves instead (see SteadyMethod):
+// With s.Method set, the method given solves instead (see Method):
 // this is the one entry point for every steady-state method, so that
 // LevelSweep and ValidityLimit continue from level to level whichever
 // method runs.
-func SteadyState(nw *smallsignal.Network, d Drive, s SteadySettings) (*Steady, error) {
+func Solve(nw *smallsignal.Network, d ac.Drive, s Settings) (*State, error) {
 	if s.Method != nil {
 		return s.Method.SolveSteady(nw, d, s)
 	}
@@ -161,14 +162,14 @@ func SteadyState(nw *smallsignal.Network, d Drive, s SteadySettings) (*Steady, e
 	if nw.HasElements() {
 		return nil, &ElementsError{Method: MethodShooting, Elements: nw.ElementNames()}
 	}
-	if err := CheckFrequency(d.FrequencyHz); err != nil {
+	if err := ac.CheckFrequency(d.FrequencyHz); err != nil {
 		return nil, err
 	}
 	// Each time step factors a dense n×n matrix and carries an n×n
 	// sensitivity: O(n³) per step, about 770 steps per solve. Past a few
 	// hundred unknowns one solve takes minutes; say so instead.
-	if nw.N > MaxSteadyUnknowns {
-		return nil, fmt.Errorf("the circuit has %d unknowns; the steady-state solver is dense and takes at most %d", nw.N, MaxSteadyUnknowns)
+	if nw.N > MaxUnknowns {
+		return nil, fmt.Errorf("the circuit has %d unknowns; the steady-state solver is dense and takes at most %d", nw.N, MaxUnknowns)
 	}
 	if d.Input < 0 || d.Input >= len(nw.Ports) {
 		return nil, fmt.Errorf("input port %d: the circuit has %d ports", d.Input+1, len(nw.Ports))
@@ -207,7 +208,7 @@ func SteadyState(nw *smallsignal.Network, d Drive, s SteadySettings) (*Steady, e
 	if err != nil {
 		return nil, err
 	}
-	res := &Steady{
+	res := &State{
 		Drive:      d,
 		Iterations: coarse.iterations + fine.iterations,
 		Residual:   math.Max(coarse.residual, fine.residual),
@@ -240,7 +241,7 @@ func SteadyState(nw *smallsignal.Network, d Drive, s SteadySettings) (*Steady, e
 }
 
 // outputVector returns e_out with output voltage e_outᵀ x.
-func outputVector(nw *smallsignal.Network, o Output) ([]complex128, error) {
+func outputVector(nw *smallsignal.Network, o ac.Output) ([]complex128, error) {
 	e := make([]complex128, nw.N)
 	if o.Port >= 0 {
 		if o.Port >= len(nw.Ports) {
@@ -303,21 +304,21 @@ func richardson(coarse, fine []Harmonic, n1, n2 int) []Harmonic {
 type shooter struct {
 	nw    *smallsignal.Network
 	sys   *nonlinear.System
-	d     Drive
+	d     ac.Drive
 	out   []complex128
 	n     int
 	ports []int // indices of AC-coupled ports: each has a DC-block voltage
 	dyn   []bool
 }
 
-func newShooter(nw *smallsignal.Network, d Drive, out []complex128) *shooter {
+func newShooter(nw *smallsignal.Network, d ac.Drive, out []complex128) *shooter {
 	sys := nonlinear.New(nw, d.Input)
 	return &shooter{nw: nw, sys: sys, d: d, out: out, n: nw.N, ports: sys.Blocked, dyn: sys.Dynamic}
 }
 
 // initial returns the starting state: the DC point, with each DC block
 // holding its port's DC voltage, or a given nearby steady state.
-func (sh *shooter) initial(start *Steady) ([]float64, []float64) {
+func (sh *shooter) initial(start *State) ([]float64, []float64) {
 	if start != nil && len(start.x0) == sh.n && len(start.p) == len(sh.ports) {
 		return append([]float64(nil), start.x0...), append([]float64(nil), start.p...)
 	}
@@ -365,7 +366,7 @@ func (sh *shooter) solve(x0, p []float64, steps, maxIter int) (*period, error) {
 			// step, halving it, and go on from the first start the
 			// period can be integrated from.
 			if taken == nil || halvings >= maxHalvings {
-				return nil, fmt.Errorf("%w: %v", ErrNoSteadyState, err)
+				return nil, fmt.Errorf("%w: %v", ErrNotFound, err)
 			}
 			lambda /= 2
 			halvings++
@@ -412,7 +413,7 @@ func (sh *shooter) solve(x0, p []float64, steps, maxIter int) (*period, error) {
 		lu.Factorize(jac)
 		dz := mat.NewVecDense(nz, nil)
 		if err := lu.SolveVecTo(dz, false, mat.NewVecDense(nz, r)); !solved(err) {
-			return nil, fmt.Errorf("%w: the period map's Jacobian is singular", ErrNoSteadyState)
+			return nil, fmt.Errorf("%w: the period map's Jacobian is singular", ErrNotFound)
 		}
 		// Converged when the voltages move by less than 1e-9 relative (or
 		// 1e-12 of the largest voltage, the rounding level); branch
@@ -445,13 +446,13 @@ func (sh *shooter) solve(x0, p []float64, steps, maxIter int) (*period, error) {
 			// period once more for the samples.
 			final, err := sh.integrate(x0, p, steps, false)
 			if err != nil {
-				return nil, fmt.Errorf("%w: %v", ErrNoSteadyState, err)
+				return nil, fmt.Errorf("%w: %v", ErrNotFound, err)
 			}
 			return &period{x0: x0, p: p, iterations: it, residual: lastRes,
 				times: final.times, output: final.output, currents: final.currents, terminals: final.terminals, junctions: final.junctions}, nil
 		}
 	}
-	return nil, fmt.Errorf("%w in %d shooting iterations (residual %.3g)", ErrNoSteadyState, maxIter, lastRes)
+	return nil, fmt.Errorf("%w in %d shooting iterations (residual %.3g)", ErrNotFound, maxIter, lastRes)
 }
 
 // maxHalvings bounds how often one solve halves a shooting step whose

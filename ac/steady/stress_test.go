@@ -1,26 +1,28 @@
-package ac
+package steady
 
 import (
 	"math"
 	"strings"
 	"testing"
+
+	"qpoint/ac"
 )
 
 // TestStressCautions: the limiter demo at +20 dBm is driven past its
 // clamp diodes' current rating; at -20 dBm nothing is exceeded.
 func TestStressCautions(t *testing.T) {
 	nw := network(t, demo(t, "limiter"))
-	d := Drive{Input: 0, Output: Output{Port: 1}, FrequencyHz: 1e9}
-	d.EMF = DBmToEMF(-20, 50)
-	st, err := SteadyState(nw, d, SteadySettings{})
+	d := ac.Drive{Input: 0, Output: ac.Output{Port: 1}, FrequencyHz: 1e9}
+	d.EMF = ac.DBmToEMF(-20, 50)
+	st, err := Solve(nw, d, Settings{})
 	if err != nil {
 		t.Fatal(err)
 	}
 	if c := st.Cautions(); len(c) != 0 {
 		t.Errorf("at -20 dBm: cautions %q, want none", c)
 	}
-	d.EMF = DBmToEMF(27, 50)
-	st, err = SteadyState(nw, d, SteadySettings{Start: st})
+	d.EMF = ac.DBmToEMF(27, 50)
+	st, err = Solve(nw, d, Settings{Start: st})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -59,8 +61,8 @@ ports:
 // level it does not, and the peak current is reported either way.
 func TestStressWithoutRatings(t *testing.T) {
 	nw := network(t, overdrivenNoRating)
-	d := Drive{Input: 0, Output: Output{Port: 1}, FrequencyHz: 100e6, EMF: DBmToEMF(-20, 50)}
-	st, err := SteadyState(nw, d, SteadySettings{})
+	d := ac.Drive{Input: 0, Output: ac.Output{Port: 1}, FrequencyHz: 100e6, EMF: ac.DBmToEMF(-20, 50)}
+	st, err := Solve(nw, d, Settings{})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -70,8 +72,8 @@ func TestStressWithoutRatings(t *testing.T) {
 	if got, want := st.Stress[0].SmallJunctionCurrent, 0.05e-12*1e-4/0.3e-15; math.Abs(got/want-1) > 1e-12 {
 		t.Errorf("small-junction current %g A, want %g A", got, want)
 	}
-	d.EMF = DBmToEMF(30, 50)
-	st, err = SteadyState(nw, d, SteadySettings{Start: st})
+	d.EMF = ac.DBmToEMF(30, 50)
+	st, err = Solve(nw, d, Settings{Start: st})
 	if err != nil {
 		t.Fatal(err)
 	}
