@@ -180,13 +180,18 @@ func (m Microstrip) skinPerMetre() float64 {
 func (m Microstrip) Attenuation(freqHz float64) (conductor, dielectric float64) {
 	z0, e := m.ImpedanceAt(freqHz)
 	conductor = m.SurfaceResistance(freqHz) * m.skinPerMetre() / (2 * z0)
+	return conductor, m.dielectricAttenuation(freqHz, e)
+}
+
+// dielectricAttenuation is α_d at freqHz for the effective permittivity e
+// there (Attenuation).
+func (m Microstrip) dielectricAttenuation(freqHz, e float64) float64 {
 	q := 1.0
 	if m.Permittivity-1 > 1e-12 {
 		q = (e - 1) / (m.Permittivity - 1)
 	}
 	k0 := 2 * math.Pi * freqHz / SpeedOfLight
-	dielectric = k0 * m.Permittivity * q * m.LossTangent / (2 * math.Sqrt(e))
-	return conductor, dielectric
+	return k0 * m.Permittivity * q * m.LossTangent / (2 * math.Sqrt(e))
 }
 
 // DCResistance returns the strip's resistance at DC, ℓ/(σ w t); the
@@ -207,7 +212,7 @@ func (m Microstrip) At(freqHz float64) Section {
 	w := 2 * math.Pi * freqHz
 	ls := z0 * math.Sqrt(e) / SpeedOfLight
 	cs := math.Sqrt(e) / (z0 * SpeedOfLight)
-	_, ad := m.Attenuation(freqHz)
+	ad := m.dielectricAttenuation(freqHz, e)
 	const refHz = 1e9
 	cond := Conductor{
 		DCResistance: m.DCResistance() * l / m.Length,
