@@ -4,8 +4,6 @@ import (
 	"fmt"
 	"math"
 	"math/rand/v2"
-	"os"
-	"path/filepath"
 	"runtime"
 	"slices"
 	"strings"
@@ -15,6 +13,7 @@ import (
 	"gonum.org/v1/gonum/blas"
 	"gonum.org/v1/gonum/blas/cblas128"
 
+	"qpoint/ac/internal/fixture"
 	"qpoint/smallsignal"
 )
 
@@ -27,35 +26,6 @@ import (
 //
 //	go test -run '^$' -bench 'Ladder' -count 5 ./bias/
 
-// benchLadder returns the YAML of a diode-loaded LC ladder with exactly n
-// unknowns: k sections (series inductor, shunt capacitor, a Schottky
-// diode with series resistance) between two 50 Ω ports, all diodes biased
-// from a 3.3 V supply through one resistor and the inductors; 3k + 3
-// unknowns, the remainder made up by resistive nodes at the input. The
-// values are invented for the benchmark.
-func benchLadder(n int) string {
-	k := (n - 3) / 3
-	var b strings.Builder
-	b.WriteString(`name: benchmark ladder
-diode_models:
-  sk: {saturation_current: 1uA, ideality: 1.05, series_resistance: 10, zero_bias_capacitance: 0.2pF, built_in_potential: 0.3V, grading_coefficient: 0.5}
-parts:
-  - {type: voltage_source, name: Vcc, plus: vcc, minus: gnd, value: 3.3V}
-  - {type: resistor, name: Rbias, between: [vcc, n0], value: 1k}
-`)
-	for i := 1; i <= k; i++ {
-		fmt.Fprintf(&b, "  - {type: inductor, name: L%d, between: [n%d, n%d], value: 2nH}\n", i, i-1, i)
-		fmt.Fprintf(&b, "  - {type: capacitor, name: C%d, between: [n%d, gnd], value: 0.8pF}\n", i, i)
-		fmt.Fprintf(&b, "  - {type: diode, name: D%d, anode: n%d, cathode: gnd, model: sk}\n", i, i)
-	}
-	for j := 0; j < n-3-3*k; j++ {
-		fmt.Fprintf(&b, "  - {type: resistor, name: X%d, between: [n0, x%d], value: 1k}\n", j, j)
-		fmt.Fprintf(&b, "  - {type: resistor, name: Y%d, between: [x%d, gnd], value: 1k}\n", j, j)
-	}
-	fmt.Fprintf(&b, "ports:\n  - {name: in, node: n0, impedance: 50}\n  - {name: out, node: n%d, impedance: 50}\n", k)
-	return b.String()
-}
-
 // benchNetwork returns a network of exactly n unknowns: the ladder or a
 // random one (randomMNA: couplings everywhere). A random network whose
 // reduction fails the accuracy check over the benchmark's sweep would be
@@ -65,7 +35,7 @@ func benchNetwork(b *testing.B, kind string, n int) (nw *smallsignal.Network, re
 	b.Helper()
 	switch kind {
 	case "ladder":
-		nw = network(b, benchLadder(n))
+		nw = network(b, fixture.Ladder(n))
 		if nw.N != n {
 			b.Fatalf("ladder has %d unknowns, want %d", nw.N, n)
 		}
@@ -269,41 +239,6 @@ func median(v []float64) float64 {
 	return (s[len(s)/2-1] + s[len(s)/2]) / 2
 }
 
-// BenchmarkSteadyState: the periodic steady state of the detector demo
-// under its own distortion drive (2.45 GHz at -30 dBm into the rf port,
-// observed at the video port), default settings.
-func BenchmarkSteadyState(b *testing.B) {
-	data, err := os.ReadFile(filepath.Join("..", "testdata", "demo", "detector.yaml"))
-	if err != nil {
-		b.Fatal(err)
-	}
-	nw := network(b, string(data))
-	dist := nw.Point.Circuit.Analysis.Distortion
-	in, out := -1, -1
-	for i, p := range nw.Ports {
-		if p.Name == dist.Input {
-			in = i
-		}
-		if p.Name == dist.Output {
-			out = i
-		}
-	}
-	if in < 0 || out < 0 || !dist.Level.IsPower {
-		b.Fatalf("the detector demo's distortion analysis changed: %+v", dist)
-	}
-	d := Drive{Input: in, Output: Output{Port: out}, FrequencyHz: dist.FrequencyHz,
-		EMF: DBmToEMF(dist.Level.DBm, nw.Ports[in].Impedance)}
-	var iters int
-	for b.Loop() {
-		st, err := SteadyState(nw, d, SteadySettings{})
-		if err != nil {
-			b.Fatal(err)
-		}
-		iters = st.Iterations
-	}
-	b.ReportMetric(float64(iters), "newton-iterations")
-}
-
 // TestReducedSweepStreams: a reduced sweep allocates per point only the
 // point it hands to visit (the S-matrix, impedances and probes: a few
 // hundred bytes), nothing of order n or n², so a sweep's memory is the
@@ -351,7 +286,7 @@ func TestReducedSweepStreams(t *testing.T) {
 func BenchmarkForms(b *testing.B) {
 	for _, n := range []int{20, 50, 100, 200, 500} {
 		b.Run(fmt.Sprintf("n=%d", n), func(b *testing.B) {
-			nw := network(b, benchLadder(n))
+			nw := network(b, fixture.Ladder(n))
 			ref := []float64{50, 50}
 			probes := []string{nw.Names[0]}
 			setup := map[reductionForm]float64{}
@@ -393,30 +328,6 @@ func BenchmarkForms(b *testing.B) {
 			even := (setup[formSchur] - setup[formShifted]) / (point[formShifted] - point[formSchur])
 			b.ReportMetric(even, "break-even")
 			b.ReportMetric(even/float64(n), "break-even/n")
-		})
-	}
-}
-
-// BenchmarkSteadyLadder: the periodic steady state of the diode-loaded
-// ladder (benchLadder) of n unknowns at 1 GHz, -20 dBm into port 1,
-// default settings. Its cost is that of the time steps: an LU of the n×n
-// step matrix and the sensitivity products, per step.
-//
-//	go test -run '^$' -bench SteadyLadder -benchtime 1x -count 3 ./ac/
-func BenchmarkSteadyLadder(b *testing.B) {
-	for _, n := range []int{60, 150} {
-		b.Run(fmt.Sprintf("n=%d", n), func(b *testing.B) {
-			nw := network(b, benchLadder(n))
-			d := Drive{Input: 0, Output: Output{Port: 1}, FrequencyHz: 1e9, EMF: DBmToEMF(-20, 50)}
-			var iters int
-			for b.Loop() {
-				st, err := SteadyState(nw, d, SteadySettings{})
-				if err != nil {
-					b.Fatal(err)
-				}
-				iters = st.Iterations
-			}
-			b.ReportMetric(float64(iters), "newton-iterations")
 		})
 	}
 }

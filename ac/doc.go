@@ -23,18 +23,14 @@
 //
 // Distortion. Volterra estimates to third order by the method of nonlinear
 // currents, for one and two tones, with each diode's and each
-// nonlinearity's share found by an adjoint solve (Volterra). The full
-// nonlinear circuit's periodic steady state by shooting-Newton over the
-// trapezoidal rule (SteadyState), its harmonics by FFT; SteadyState runs
-// another method instead when SteadySettings.Method names one (package
-// balance: harmonic balance for one and two tones, and the automatic
-// choice), and MeasuredIntercept reads IIP3 from a two-tone level sweep. The two side by
-// side (Compare), the highest level at which they agree (ValidityLimit),
-// and the waveform over a range of levels (LevelSweep, Compression).
+// nonlinearity's share found by an adjoint solve (Volterra,
+// VolterraSweep). The full nonlinear circuit's periodic steady state, the
+// waveform the estimates are checked against, is package ac/steady.
 //
 // Noise. Every resistor's thermal noise, each junction's shot and flicker
 // noise and each port termination's noise, carried to the output by one
 // adjoint solve per frequency (Noise, IntegrateNoise, Detector).
 //
-// Touchstone files are their own package, ac/touchstone.
+// Touchstone files are their own package, ac/touchstone; the periodic
+// steady state, level sweeps and the validity limit are ac/steady.
 package ac

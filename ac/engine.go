@@ -178,6 +178,10 @@ type Stats struct {
 	Reduced int // points solved on a reduction
 	LU      int // points solved by the LU
 	Refused []Engine
+	// Elements names the lines and measured blocks that kept the sweep
+	// on the LU: their rows depend on frequency other than as G + sC,
+	// so (G, C) holds no reduction of the network.
+	Elements []string
 }
 
 // checkFrequencies returns the frequencies the accuracy check probes:
@@ -322,7 +326,8 @@ func pointsDiffer(p, q Point, rel, floor float64) string {
 // for the dense LU: by cost (reducedPays) unless choice forces a method,
 // and only if the reduction passes its accuracy check.
 func sweepEngine(nw *smallsignal.Network, freqsHz []float64, ref []float64, probes []string, choice engine) (*reduction, []Engine) {
-	if choice == engineLU || len(freqsHz) == 0 {
+	if choice == engineLU || len(freqsHz) == 0 || nw.HasElements() {
+		// Lines and measured blocks are not G + sC: nothing to reduce.
 		return nil, nil
 	}
 	if choice == engineAuto && !reducedPays(nw.N, len(freqsHz)) {
@@ -618,18 +623,32 @@ type solver interface {
 	solveT(b []complex128)
 }
 
-// luSolver is the dense LU as a solver.
+// luSolver is the dense LU as a solver. With nw set, the network's
+// lines and measured blocks add their rows at each frequency.
 type luSolver struct {
 	f    *lu
 	g, c blas64.General
+	nw   *smallsignal.Network
 }
 
 func newLUSolver(nw *smallsignal.Network) *luSolver {
-	return &luSolver{f: newLU(nw.N), g: nw.G.RawMatrix(), c: nw.C.RawMatrix()}
+	return &luSolver{f: newLU(nw.N), g: nw.G.RawMatrix(), c: nw.C.RawMatrix(), nw: elementsOf(nw)}
+}
+
+// elementsOf returns nw when it holds lines or measured blocks, nil
+// otherwise: what a luSolver needs to stamp them.
+func elementsOf(nw *smallsignal.Network) *smallsignal.Network {
+	if nw.HasElements() {
+		return nw
+	}
+	return nil
 }
 
 func (s *luSolver) at(w float64) error {
 	s.f.load(s.g.Data, s.c.Data, s.g.Stride, s.c.Stride, w)
+	if s.nw != nil {
+		s.nw.Stamp(w, s.f.a, s.f.n)
+	}
 	return s.f.factor()
 }
 
@@ -643,7 +662,7 @@ func (r *reduction) at(w float64) error { return r.factor(w) }
 // it pays for that many points, and it passes its accuracy check
 // (solveAccurate); the dense LU otherwise.
 func newSolver(nw *smallsignal.Network, freqsHz []float64, choice engine) solver {
-	if choice == engineLU {
+	if choice == engineLU || nw.HasElements() {
 		return newLUSolver(nw)
 	}
 	lo, hi, ok := sweepRange(freqsHz)

@@ -91,25 +91,6 @@ func ExampleVolterra() {
 	// gain change +0.01085 dB (1 + x²/8: +0.01085 dB)
 }
 
-// The same junction solved to periodic steady state: its harmonics are
-// 2 I_S e^(V0/nV_T) I_k(x) (Abramowitz and Stegun 9.6.34); with x = 1,
-// I_2(1)/I_1(1) = 0.135747670/0.565159104 (Table 9.8).
-func ExampleSteadyState() {
-	nw := network(voltageDriven)
-	d := ac.Drive{Input: 0, Output: ac.Output{Port: -1, Node: "s"}, FrequencyHz: 1e6, EMF: nw.Diodes[0].Device.NVT()}
-	st, err := ac.SteadyState(nw, d, ac.SteadySettings{Harmonics: 3})
-	if err != nil {
-		fmt.Println(err)
-		return
-	}
-	h := st.DiodeCurrents[0]
-	fmt.Printf("I2/I1 = %.6f (table: %.6f)\n", h[2].Amplitude/h[1].Amplitude, 0.135747670/0.565159104)
-	fmt.Println("method: shooting,", st.Samples, "samples per period")
-	// Output:
-	// I2/I1 = 0.240194 (table: 0.240194)
-	// method: shooting, 255 samples per period
-}
-
 const voltageDriven = `
 temperature: 300.15K
 diode_models:

@@ -33,6 +33,8 @@ const (
 	InSeriesResistance = "series resistance"
 	InJunction         = "junction"
 	InTermination      = "termination"
+	InLine             = "line"           // a transmission or microstrip line, by Twiss's theorem
+	InBlock            = "measured block" // an S-parameter block, by Twiss's theorem
 )
 
 // NoiseSource is one noise current source of the network, uncorrelated
@@ -50,11 +52,37 @@ type NoiseSource struct {
 	White        float64 // A²/Hz
 	Flicker      float64 // A²: S_i = Flicker / f
 	a, b         int     // unknowns the current flows between
+	// element, for a line or measured block, is the part whose thermal
+	// noise by Twiss's theorem this is: correlated sources in its rows
+	// (smallsignal.Element.NoiseCorrelation), White and Flicker zero.
+	element *smallsignal.Element
 }
 
-// Density returns the source's current noise density S_i(f) in A²/Hz.
+// Density returns the source's current noise density S_i(f) in A²/Hz;
+// zero for a line or measured block, whose noise is a correlation matrix
+// of sources in its own rows (smallsignal.Element.NoiseCorrelation).
 func (s NoiseSource) Density(freqHz float64) float64 {
 	return s.White + s.Flicker/freqHz
+}
+
+// output returns the source's output noise density, V²/Hz, for the
+// adjoint solution z (Y(jω)ᵀ z = e_out): S_i |z_a - z_b|², or for a line
+// or block zᵀ C z̄ over its rows, C the correlation of its row sources
+// (Σ_kl z_k C_kl z̄_l, real and non-negative for passive data).
+func (s NoiseSource) output(hz float64, z []complex128, corr []complex128) float64 {
+	e := s.element
+	if e == nil {
+		return s.Density(hz) * sqAbs(at(z, s.a)-at(z, s.b))
+	}
+	p := e.Ports()
+	e.NoiseCorrelation(hz, s.TemperatureK, corr[:p*p])
+	var sum complex128
+	for k := 0; k < p; k++ {
+		for l := 0; l < p; l++ {
+			sum += z[e.Branch+k] * corr[k*p+l] * cmplx.Conj(z[e.Branch+l])
+		}
+	}
+	return math.Max(real(sum), 0)
 }
 
 // Label names the source for a reader: "D1 junction (shot)".
@@ -64,6 +92,9 @@ func (s NoiseSource) Label() string {
 	}
 	if s.Where == InTermination {
 		return fmt.Sprintf("port %s termination (%s)", s.Name, s.Kind)
+	}
+	if s.element != nil {
+		return fmt.Sprintf("%s %s (%s, Twiss)", s.Where, s.Name, s.Kind)
 	}
 	return fmt.Sprintf("%s %s (%s)", s.Name, s.Where, s.Kind)
 }
@@ -82,7 +113,9 @@ func thermal(r, tempK float64) float64 {
 // resistance at the circuit temperature, each junction's shot noise
 // 2q(I_D + 2 I_S) and, where the model has it, flicker noise K |I_D|^a / f
 // (bias/diode: Device.ShotNoise, Device.FlickerNoise), then the thermal
-// noise of every port's reference resistance at the port's noise
+// noise of every line and measured block at the circuit temperature by
+// Twiss's theorem (one source each, correlated across its ports), then the
+// thermal noise of every port's reference resistance at the port's noise
 // temperature (T0 = 290 K unless the file gives noise_temperature).
 // Capacitors, inductors and the ideal DC sources are noiseless.
 func NoiseSources(nw *smallsignal.Network) []NoiseSource {
@@ -117,6 +150,14 @@ func NoiseSources(nw *smallsignal.Network) []NoiseSource {
 					Flicker: d.Device.FlickerNoise(d.JunctionVoltage, 1), a: d.Junction, b: d.Cathode})
 			}
 		}
+	}
+	for i := range nw.Elements {
+		e := &nw.Elements[i]
+		where := InLine
+		if e.Block != nil {
+			where = InBlock
+		}
+		out = append(out, NoiseSource{Name: e.Name, Where: where, Kind: ThermalNoise, Port: -1, TemperatureK: tk, element: e})
 	}
 	for i, p := range nw.Ports {
 		t := float64(StandardNoiseTemperatureK)
@@ -204,6 +245,9 @@ type NoiseResult struct {
 	// bare node).
 	InputImpedance, OutputImpedance float64
 	Points                          []NoisePoint
+	// Outside lists the blocks and microstrips that some frequency lies
+	// outside the data or models of (a caution).
+	Outside []smallsignal.OutsideRange
 }
 
 // noise holds what every frequency of one analysis shares.
@@ -215,6 +259,7 @@ type noise struct {
 	sys     solver // Y(jw) at the noise frequencies: the reduction or the LU
 	z       []complex128
 	outPort int
+	corr    []complex128 // a line's or block's noise correlation
 }
 
 // newNoise sets up the noise analysis of nw at freqs (in hertz): the
@@ -226,6 +271,11 @@ func newNoise(nw *smallsignal.Network, s NoiseSettings, freqs []float64, choice 
 	}
 	v := &noise{nw: nw, s: s, sources: NoiseSources(nw), out: make([]complex128, nw.N),
 		z: make([]complex128, nw.N), outPort: -1}
+	for _, e := range nw.Elements {
+		if p := e.Ports(); len(v.corr) < p*p {
+			v.corr = make([]complex128, p*p)
+		}
+	}
 	if s.Output.Port >= 0 {
 		if s.Output.Port >= len(nw.Ports) {
 			return nil, fmt.Errorf("output port %d: the circuit has %d ports", s.Output.Port+1, len(nw.Ports))
@@ -265,8 +315,7 @@ func (v *noise) at(hz float64) (NoisePoint, error) {
 	v.sys.solveT(z)
 	pt := NoisePoint{FrequencyHz: hz, Contributions: make([]float64, len(v.sources))}
 	for k, s := range v.sources {
-		t := at(z, s.a) - at(z, s.b)
-		c := s.Density(hz) * sqAbs(t)
+		c := s.output(hz, z, v.corr)
 		pt.Contributions[k] = c
 		pt.Total += c
 		if s.Port < 0 || (s.Port != v.s.Input && s.Port != v.outPort) {
@@ -312,7 +361,7 @@ func noiseSweep(nw *smallsignal.Network, freqs []float64, s NoiseSettings, choic
 	if err != nil {
 		return nil, err
 	}
-	r := &NoiseResult{Settings: s, TemperatureK: nw.Point.TemperatureK, Sources: v.sources}
+	r := &NoiseResult{Settings: s, TemperatureK: nw.Point.TemperatureK, Sources: v.sources, Outside: nw.Outside(freqs)}
 	if s.Input >= 0 {
 		r.InputImpedance = nw.Ports[s.Input].Impedance
 	}
@@ -530,6 +579,7 @@ func VideoSensitivity(nw *smallsignal.Network, s NoiseSettings, carrierHz float6
 	f := newLU(nw.N)
 	g, c := nw.G.RawMatrix(), nw.C.RawMatrix()
 	f.load(g.Data, c.Data, g.Stride, c.Stride, 2*math.Pi*carrierHz)
+	nw.Stamp(2*math.Pi*carrierHz, f.a, f.n)
 	if err := f.factor(); err != nil {
 		return nil, fmt.Errorf("at %g Hz: %w", carrierHz, err)
 	}
@@ -553,6 +603,7 @@ func VideoSensitivity(nw *smallsignal.Network, s NoiseSettings, carrierHz float6
 			}
 			f.load(g.Data, c.Data, g.Stride, c.Stride, 2*math.Pi*hz)
 		}
+		nw.Stamp(2*math.Pi*hz, f.a, f.n)
 		if err := f.factor(); err != nil {
 			return nil, fmt.Errorf("at %g Hz: %w", hz, err)
 		}
@@ -654,4 +705,23 @@ func DetectorWithin(nw *smallsignal.Network, s NoiseSettings, carrierHz, videoFr
 		TopResponse: cmplx.Abs(gv[1]) / math.Abs(g),
 		TangentialW: tangentialRatio * vn / math.Abs(g),
 	}, nil
+}
+
+// detectorProbeDBm is the small level at which Detects compares the
+// rectified output with the carrier.
+const detectorProbeDBm = -20
+
+// Detects reports whether the output of s is a detector's for a carrier
+// at carrierHz: the output is not AC-coupled, the carrier shifts its DC
+// level (VoltageSensitivity succeeds), and at a small level (-20 dBm
+// available) the shift is at least the carrier's own amplitude there. A
+// DC-coupled attenuator or limiter rectifies a little too; this tells
+// them apart from a detector.
+func Detects(nw *smallsignal.Network, s NoiseSettings, carrierHz float64) bool {
+	if _, err := VoltageSensitivity(nw, s, carrierHz); err != nil {
+		return false
+	}
+	z0 := nw.Ports[s.Input].Impedance
+	est, err := Volterra(nw, Drive{Input: s.Input, Output: s.Output, FrequencyHz: carrierHz, EMF: DBmToEMF(detectorProbeDBm, z0)})
+	return err == nil && math.Abs(est.DCShift) >= cmplx.Abs(est.Linear)
 }

@@ -47,6 +47,10 @@ type Response struct {
 	Probes []string
 	Points []Point
 	Stats  Stats // which engine ran, and any fallback
+	// Outside lists the measured blocks and microstrip lines that some
+	// frequency of the sweep lies outside the data or models of: a
+	// caution, not an error.
+	Outside []smallsignal.OutsideRange
 }
 
 // Run sweeps nw over freqs and returns every point, and in Stats how the
@@ -59,6 +63,7 @@ func Run(nw *smallsignal.Network, freqs []float64, s Settings) (*Response, error
 		return nil
 	})
 	r.Ports, r.Probes, r.Stats = ports, probes, ws.SweepStats()
+	r.Outside = nw.Outside(freqs)
 	return r, err
 }
 
@@ -66,7 +71,15 @@ func Run(nw *smallsignal.Network, freqs []float64, s Settings) (*Response, error
 func (ws *Workspace) SweepStats() Stats {
 	st := ws.stats
 	st.Refused = append([]Engine(nil), st.Refused...)
+	st.Elements = append([]string(nil), st.Elements...)
 	return st
+}
+
+// elementSlope returns a zero work vector of n numbers for the elements'
+// dY/dω x.
+func (ws *Workspace) elementSlope(n int) []complex128 {
+	ws.slopeElements = vector(ws.slopeElements, n)
+	return ws.slopeElements
 }
 
 // Sweep computes the response at each frequency in turn and hands it to
@@ -138,6 +151,9 @@ func (ws *Workspace) sweep(nw *smallsignal.Network, freqs []float64, s Settings,
 	done := 0
 	r, refused := sweepEngine(nw, freqs, ref, probes, choice)
 	ws.stats = Stats{Engine: EngineLU, Refused: refused}
+	if nw.HasElements() {
+		ws.stats.Elements = nw.ElementNames()
+	}
 	if r != nil {
 		ws.stats.Engine = r.form.engine()
 		var err error
@@ -175,6 +191,7 @@ func (ws *Workspace) sweep(nw *smallsignal.Network, freqs []float64, s Settings,
 				f.a[i*n+j] = complex(g.Data[i*g.Stride+j], w*c.Data[i*c.Stride+j])
 			}
 		}
+		nw.Stamp(w, f.a, n)
 		if err := f.factor(); err != nil {
 			return ports, probes, fmt.Errorf("at %g Hz: %w", hz, err)
 		}
@@ -202,6 +219,14 @@ func (ws *Workspace) sweep(nw *smallsignal.Network, freqs []float64, s Settings,
 				}
 			}
 			dx[i] = -1i * s
+		}
+		if nw.HasElements() {
+			// dY/dω of the lines and blocks, which are not jωC.
+			slope := ws.elementSlope(n)
+			nw.ElementsSlope(w, x[0], slope)
+			for i := range dx {
+				dx[i] -= slope[i]
+			}
 		}
 		f.solve(dx)
 		// S21 = k V and S11 = 2 V - 1: both derivatives follow from dV/dw.

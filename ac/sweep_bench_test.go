@@ -6,6 +6,8 @@ import (
 	"path/filepath"
 	"strings"
 	"testing"
+
+	"qpoint/ac/internal/fixture"
 )
 
 // BenchmarkDemoSweep times a 1000-point sweep (10 MHz to 10 GHz) of each
@@ -89,7 +91,7 @@ func BenchmarkVolterraSweep(b *testing.B) {
 //
 //	go test -run '^$' -bench VolterraLadderSweep -benchtime 3x -count 3 ./ac/
 func BenchmarkVolterraLadderSweep(b *testing.B) {
-	nw := network(b, benchLadder(150))
+	nw := network(b, fixture.Ladder(150))
 	freqs, _ := LogGrid(10e6, 1e9, 50)
 	d := Drive{Input: 0, Output: Output{Port: 1}, EMF: DBmToEMF(-30, 50)}
 	b.Run("each", func(b *testing.B) {

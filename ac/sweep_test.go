@@ -10,8 +10,7 @@ import (
 
 	"gonum.org/v1/gonum/mat"
 
-	"qpoint/bias"
-	"qpoint/bias/circuit"
+	"qpoint/ac/internal/fixture"
 	"qpoint/smallsignal"
 )
 
@@ -31,24 +30,6 @@ func demoNetworks(tb testing.TB) (names []string, networks []*smallsignal.Networ
 		networks = append(networks, network(tb, string(data)))
 	}
 	return names, networks
-}
-
-// network loads a circuit from YAML text and linearises it at its bias.
-func network(tb testing.TB, src string) *smallsignal.Network {
-	tb.Helper()
-	c, err := circuit.Parse("test.yaml", []byte(src))
-	if err != nil {
-		tb.Fatal(err)
-	}
-	p, err := bias.Solve(c, bias.Settings{})
-	if err != nil {
-		tb.Fatal(err)
-	}
-	nw, err := smallsignal.New(p)
-	if err != nil {
-		tb.Fatal(err)
-	}
-	return nw
 }
 
 func run(t *testing.T, nw *smallsignal.Network, freqs ...float64) *Response {
@@ -302,15 +283,6 @@ ports:
 	}
 }
 
-func demo(t *testing.T, name string) string {
-	t.Helper()
-	data, err := os.ReadFile(filepath.Join("..", "testdata", "demo", name+".yaml"))
-	if err != nil {
-		t.Fatal(err)
-	}
-	return string(data)
-}
-
 // TestRunStats: Run says which engine solved the points: the LU for a
 // short sweep of the small detector demo, the reduction for a long sweep
 // of the 24-section ladder (a form that passed its accuracy check, so
@@ -325,7 +297,7 @@ func TestRunStats(t *testing.T) {
 	if r.Stats.Engine != EngineLU || r.Stats.LU != len(freqs) || r.Stats.Reduced != 0 {
 		t.Errorf("detector: %+v; want the LU for all %d points", r.Stats, len(freqs))
 	}
-	big := network(t, benchLadder(75))
+	big := network(t, fixture.Ladder(75))
 	long, _ := LinearGrid(1e6, 1e9, 400)
 	r, err = Run(big, long, Settings{})
 	if err != nil {
@@ -335,3 +307,8 @@ func TestRunStats(t *testing.T) {
 		t.Errorf("ladder: %+v; want a reduction over all %d points", r.Stats, len(long))
 	}
 }
+
+var (
+	network = fixture.Network
+	demo    = fixture.Demo
+)

@@ -67,6 +67,9 @@ type Contribution struct {
 // of the input generator.
 type Estimate struct {
 	Drive Drive
+	// Outside lists the blocks and microstrips that some product's
+	// frequency lies outside the data or models of (a caution).
+	Outside []smallsignal.OutsideRange
 
 	// Linear is the first-order (small-signal) output at f1, and
 	// Fundamental the output at f1 to third order: Linear plus the
@@ -534,6 +537,9 @@ func (ws *Workspace) volterraWith(nw *smallsignal.Network, d Drive, sys solver) 
 	est := ws.estimate
 	*est = Estimate{Drive: d, inputZ0: nw.Ports[d.Input].Impedance,
 		Contributions: est.Contributions[:0], Junctions: est.Junctions[:0], balanced: est.balanced[:0]}
+	if nw.HasElements() {
+		est.Outside = nw.Outside(productFrequencies(nil, d))
+	}
 	if d.Output.Port >= 0 {
 		if d.Output.Port >= len(nw.Ports) {
 			return nil, fmt.Errorf("output port %d: the circuit has %d ports", d.Output.Port+1, len(nw.Ports))

@@ -5,62 +5,8 @@ import (
 	"math/cmplx"
 	"testing"
 
-	"qpoint/bias/diode"
+	"qpoint/ac/internal/fixture"
 )
-
-// TestThirdOrderFundamental: for a junction driven by an ideal voltage
-// V0 + V cos(wt) the current at w is exactly 2 I_S e^(V0/nV_T) I_1(x),
-// x = V/(n V_T) (Abramowitz and Stegun 9.6.34), whose series
-// 2 I_1(x) = x (1 + x²/8 + x⁴/192 + ...) (A&S 9.6.10) makes the
-// third-order estimate x (1 + x²/8). The estimate is set beside both the
-// Bessel law and the shooting waveform; at x = 0.77 it must hold within
-// 0.05 dB (the first-order fundamental alone is 0.6 dB off there).
-func TestThirdOrderFundamental(t *testing.T) {
-	nw := network(t, junctionFixtureTight)
-	vt := diode.ThermalVoltage(300.15)
-	i0 := 1e-14 * math.Exp(0.6/vt)
-	for _, c := range []struct {
-		x, tolDB float64
-	}{
-		// The tolerance is the next term of the series, x⁴/192, as dB,
-		// with a margin: 0.1 -> 4.5e-6 dB, 0.77 -> 0.015 dB, 1 -> 0.027 dB.
-		{0.1, 1e-4}, {0.3, 1e-3}, {0.77, 0.05}, {1.0, 0.05},
-	} {
-		d := Drive{Input: 0, Output: Output{Port: -1, Node: "s"}, FrequencyHz: 1e6, EMF: c.x * vt}
-		est, err := Volterra(nw, d)
-		if err != nil {
-			t.Fatal(err)
-		}
-		st, err := SteadyState(nw, d, SteadySettings{Samples: 128, Harmonics: 3})
-		if err != nil {
-			t.Fatal(err)
-		}
-		// The output is the current through the 10 nΩ sense resistor.
-		bessel := 2 * i0 * besselI(1, c.x) * 1e-8
-		wave := st.Output[1].Amplitude
-		lin := 20 * math.Log10(cmplx.Abs(est.Linear)/wave)
-		third := 20 * math.Log10(cmplx.Abs(est.Fundamental)/wave)
-		t.Logf("x = %4.2f: first order %+.4f dB, third order %+.5f dB from the waveform; waveform/Bessel %.2g",
-			c.x, lin, third, wave/bessel-1)
-		if math.Abs(wave/bessel-1) > 1e-6 {
-			t.Errorf("x = %g: the waveform's fundamental %.10g V is not the Bessel law's %.10g V", c.x, wave, bessel)
-		}
-		if math.Abs(third) > c.tolDB {
-			t.Errorf("x = %g: the third-order fundamental is %.4f dB from the waveform, want within %g dB", c.x, third, c.tolDB)
-		}
-		// The series gives exactly 1 + x²/8 relative to the linear term.
-		if got, want := cmplx.Abs(est.Fundamental/est.Linear), 1+c.x*c.x/8; math.Abs(got/want-1) > 1e-6 {
-			t.Errorf("x = %g: Fundamental/Linear = %.9f, series 1 + x²/8 = %.9f", c.x, got, want)
-		}
-		// An exponential driven by a voltage expands, without phase.
-		if g := est.GainChangeDB(); !(g > 0) {
-			t.Errorf("x = %g: gain change %.4g dB, want an expansion", c.x, g)
-		}
-		if p := est.PhaseChangeDeg(); math.Abs(p) > 1e-6 {
-			t.Errorf("x = %g: phase change %.3g°, want none for a memoryless drive", c.x, p)
-		}
-	}
-}
 
 // TestGainStepCubic: for a series Linear (1 + r E²) the 1 dB step solves
 // |1 + r E²| = 10^(∓1/20) exactly; with r real and negative (a compressing
@@ -100,7 +46,7 @@ func TestGainStepCubic(t *testing.T) {
 // each frequency's estimate as a lone Volterra on the dense LU does, to
 // 1e-9 (the equality the tests hold the engines to).
 func TestVolterraSweepEqualsEach(t *testing.T) {
-	nw := network(t, benchLadder(75))
+	nw := network(t, fixture.Ladder(75))
 	freqs, _ := LogGrid(10e6, 1e9, 20)
 	for _, two := range []bool{false, true} {
 		d := Drive{Input: 0, Output: Output{Port: 1}, EMF: DBmToEMF(-30, 50)}

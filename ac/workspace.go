@@ -27,6 +27,9 @@ type Workspace struct {
 	ports     []PortInfo
 	solutions [][]complex128 // one per port's excitation
 	slope     []complex128   // dx/dw for the group delay
+	// slopeElements is dY/dω x of the lines and blocks, for the group
+	// delay.
+	slopeElements []complex128
 
 	// Volterra.
 	volterra    volterra
@@ -80,6 +83,7 @@ func (ws *Workspace) dcSolver(nw *smallsignal.Network) *luSolver {
 	nw.GDCTo(&ws.gdc)
 	g := ws.gdc.RawMatrix()
 	ws.dc.f.loadReal(g.Data, g.Stride)
+	nw.Stamp(0, ws.dc.f.a, ws.dc.f.n)
 	return &ws.dc
 }
 
@@ -88,8 +92,8 @@ func (ws *Workspace) dcSolver(nw *smallsignal.Network) *luSolver {
 // the reduction (always, for the few frequencies of an estimate, unless
 // choice forces the reduction), newSolver's choice otherwise.
 func (ws *Workspace) estimateSolver(nw *smallsignal.Network, freqsHz []float64, choice engine) solver {
-	if choice == engineLU || choice == engineAuto && !reducedPays(nw.N, len(freqsHz)) {
-		ws.solver = luSolver{f: ws.factorization(nw.N), g: nw.G.RawMatrix(), c: nw.C.RawMatrix()}
+	if choice == engineLU || choice == engineAuto && !reducedPays(nw.N, len(freqsHz)) || nw.HasElements() {
+		ws.solver = luSolver{f: ws.factorization(nw.N), g: nw.G.RawMatrix(), c: nw.C.RawMatrix(), nw: elementsOf(nw)}
 		return &ws.solver
 	}
 	return newSolver(nw, freqsHz, choice)

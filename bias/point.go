@@ -15,8 +15,11 @@ type Point struct {
 	Sources      []Source // voltage and current sources, in file order
 	Inductors    []Source // DC current of each inductor, in file order
 	Diodes       []QPoint // in file order
-	Warnings     []Warning
-	Stats        Stats
+	// Distributed holds each line's and block's DC currents, in file
+	// order (distributed.go).
+	Distributed []DistributedCurrents
+	Warnings    []Warning
+	Stats       Stats
 
 	x     []float64 // the solution vector, for continuation
 	vl    []float64
@@ -100,6 +103,8 @@ func (s *system) point(st *state, p *Point) {
 		Sources:   p.Sources[:0],
 		Inductors: p.Inductors[:0],
 		Diodes:    p.Diodes[:0],
+		// Distributed: pointDistributed below.
+		Distributed: p.Distributed,
 	}
 	for i, name := range c.Nodes {
 		p.Nodes = append(p.Nodes, Node{name, st.x[i]})
@@ -126,6 +131,7 @@ func (s *system) point(st *state, p *Point) {
 		p.Sources = append(p.Sources, Source{Name: part.Name, Kind: part.Kind, Current: -i.value})
 	}
 
+	s.pointDistributed(st.x, p)
 	var shareBuf []float64
 	for _, j := range s.junctions {
 		part := c.Parts[j.part]

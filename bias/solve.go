@@ -182,6 +182,11 @@ func junctionOnly(c *circuit.Circuit) []string {
 			other[p.Return] = true
 		}
 	}
+	for _, d := range c.Distributed {
+		for _, n := range d.Nodes() {
+			other[n] = true
+		}
+	}
 	var nodes []string
 	for _, n := range c.Nodes {
 		if touched[n] && !other[n] {

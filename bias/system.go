@@ -59,6 +59,7 @@ type system struct {
 	vsources  []vsource
 	isources  []isource
 	junctions []junction
+	elements  []element // lines and measured blocks (distributed.go)
 
 	mat *band.Matrix
 
@@ -159,6 +160,9 @@ func (s *system) build(c *circuit.Circuit, tempK float64) error {
 			s.isources = append(s.isources, isource{a, b, p.Value, pi})
 		}
 	}
+	if err := s.buildDistributed(c, node); err != nil {
+		return err
+	}
 	for _, p := range c.Ports {
 		if p.ACCoupled {
 			continue
@@ -190,6 +194,7 @@ func (s *system) build(c *circuit.Circuit, tempK float64) error {
 	for _, j := range s.junctions {
 		s.edges = append(s.edges, [2]int{j.internal, j.cathode})
 	}
+	s.distributedEdges()
 	if s.mat != nil && s.orderN == s.n && slices.Equal(s.orderEdges, s.edges) {
 		return nil // the same structure: the same ordering and band
 	}
@@ -268,6 +273,7 @@ func (s *system) assemble(vl []float64, lambda, gmin float64, b []float64) {
 		addRHS(b, src.from, -lambda*src.value)
 		addRHS(b, src.to, lambda*src.value)
 	}
+	s.assembleDistributed()
 	for k, j := range s.junctions {
 		i := j.dev.Current(vl[k])
 		g := i.D1
@@ -333,6 +339,7 @@ func (s *system) residual(x, r, scale, floor []float64) {
 	for _, src := range s.isources {
 		flow(src.from, src.to, src.value)
 	}
+	s.residualDistributed(x, r, scale, flow)
 	for _, j := range s.junctions {
 		v := volt(x, j.internal) - volt(x, j.cathode)
 		i := j.dev.Current(v)

@@ -119,6 +119,9 @@ func (s *system) verify(p *Point) error {
 			}
 		}
 	}
+	if err := s.verifyDistributed(p, volts, flow); err != nil {
+		return err
+	}
 	for _, port := range c.Ports {
 		if port.ACCoupled {
 			continue

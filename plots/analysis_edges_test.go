@@ -10,6 +10,7 @@ import (
 	"gonum.org/v1/plot"
 
 	"qpoint/ac"
+	"qpoint/ac/steady"
 	"qpoint/ac/study"
 )
 
@@ -42,21 +43,21 @@ func TestDistortionEdgeCases(t *testing.T) {
 	mixer := mixerDistortion(t)
 	nan := math.NaN()
 
-	short := &ac.Steady{Drive: det.steady.Drive, Output: det.steady.Output[:1]}
-	holes := &ac.Steady{Drive: det.steady.Drive, THDPercent: nan}
+	short := &steady.State{Drive: det.steady.Drive, Output: det.steady.Output[:1]}
+	holes := &steady.State{Drive: det.steady.Drive, THDPercent: nan}
 	holes.Output = append(holes.Output, det.steady.Output...)
 	holes.Output[2].Amplitude = nan
 	holes.Output[3].Amplitude = math.Inf(1)
-	deadFund := &ac.Steady{Drive: det.steady.Drive, Output: append([]ac.Harmonic(nil), det.steady.Output...)}
+	deadFund := &steady.State{Drive: det.steady.Drive, Output: append([]steady.Harmonic(nil), det.steady.Output...)}
 	deadFund.Output[1].Amplitude = 0
 	blank := &ac.Estimate{} // no generator impedance, zero phasors: every ratio NaN
-	multiplier := &ac.Steady{Drive: det.steady.Drive, Output: append([]ac.Harmonic(nil), det.steady.Output...)}
+	multiplier := &steady.State{Drive: det.steady.Drive, Output: append([]steady.Harmonic(nil), det.steady.Output...)}
 	multiplier.Output[2].Amplitude = 4 * multiplier.Output[1].Amplitude // a doubler: 12 dB above the fundamental
 
 	onePoint := det.levels[10:11]
-	withGaps := append([]ac.LevelPoint(nil), det.levels...)
+	withGaps := append([]steady.LevelPoint(nil), det.levels...)
 	withGaps[3].Steady = nil
-	withGaps[6] = ac.LevelPoint{LevelDBm: nan, Steady: det.levels[6].Steady}
+	withGaps[6] = steady.LevelPoint{LevelDBm: nan, Steady: det.levels[6].Steady}
 
 	nilEst := append([]*ac.Estimate(nil), det.perFreq...)
 	nilEst[2], nilEst[5] = nil, nil

@@ -15,6 +15,7 @@ import (
 	"gonum.org/v1/plot/vg/draw"
 
 	"qpoint/ac"
+	"qpoint/ac/steady"
 	"qpoint/bias/si"
 )
 
@@ -32,7 +33,7 @@ const waveformFloorDBc = -150
 // solver's numerical floor, have no bar and are labelled "floor"; a
 // product the circuit's symmetry cancels is labelled "balanced". Either
 // argument may be nil.
-func HarmonicSpectrum(s *ac.Steady, e *ac.Estimate) *Figure {
+func HarmonicSpectrum(s *steady.State, e *ac.Estimate) *Figure {
 	p := NewPanel("Harmonic order", "Relative to the fundamental (dBc)")
 	fig := &Figure{
 		Name:   "harmonics",
@@ -112,7 +113,7 @@ func ratioDB(a, ref float64) float64 {
 }
 
 // spectrumNote states the drive, the output and the DC shift.
-func spectrumNote(s *ac.Steady, e *ac.Estimate) string {
+func spectrumNote(s *steady.State, e *ac.Estimate) string {
 	var parts []string
 	var d *ac.Drive
 	switch {
@@ -224,7 +225,7 @@ var _ plot.Plotter = (*spectrum)(nil)
 
 // newSpectrum reads the bars from the waveform and the marks from the
 // estimate; either may be nil.
-func newSpectrum(s *ac.Steady, e *ac.Estimate) *spectrum {
+func newSpectrum(s *steady.State, e *ac.Estimate) *spectrum {
 	sp := &spectrum{}
 	if s != nil {
 		sp.fundHz = s.Drive.FrequencyHz
@@ -415,7 +416,7 @@ var levelProducts = []struct {
 // -150 dBc, the solver's numerical floor, are left out; the y axis spans
 // at most 100 dB below the top, or down to the fundamental's lowest point,
 // and a product lying wholly below it is left out of the key.
-func LevelSweep(points []ac.LevelPoint, e *ac.Estimate, compressionDBm float64, compressed bool) *Figure {
+func LevelSweep(points []steady.LevelPoint, e *ac.Estimate, compressionDBm float64, compressed bool) *Figure {
 	p := NewPanel("Available input power (dBm)", "")
 	fig := &Figure{
 		Name:   "level-sweep",
@@ -585,7 +586,7 @@ func LevelSweep(points []ac.LevelPoint, e *ac.Estimate, compressionDBm float64, 
 }
 
 // levelNote states what the curves are and where the compression is.
-func levelNote(points []ac.LevelPoint, e *ac.Estimate, dBm bool, offset, compDBm float64, compressed, marked bool) string {
+func levelNote(points []steady.LevelPoint, e *ac.Estimate, dBm bool, offset, compDBm float64, compressed, marked bool) string {
 	var parts []string
 	var d *ac.Drive
 	n := 0

@@ -7,6 +7,7 @@ import (
 	"testing"
 
 	"qpoint/ac"
+	"qpoint/ac/steady"
 	"qpoint/ac/study"
 	"qpoint/bias"
 	"qpoint/bias/circuit"
@@ -45,8 +46,8 @@ func demoNetwork(t *testing.T, name string) *smallsignal.Network {
 // distortionCase is everything the distortion figures of one drive need.
 type distortionCase struct {
 	estimate    *ac.Estimate
-	steady      *ac.Steady
-	levels      []ac.LevelPoint
+	steady      *steady.State
+	levels      []steady.LevelPoint
 	compression float64
 	compressed  bool
 	freqs       []float64
@@ -99,18 +100,18 @@ func distortionFixture(t *testing.T, demo string, out ac.Output, hz, dBm float64
 		if dc.estimate, err = ac.Volterra(nw, d); err != nil {
 			t.Fatal(err)
 		}
-		if dc.steady, err = ac.SteadyState(nw, d, ac.SteadySettings{Harmonics: 7}); err != nil {
+		if dc.steady, err = steady.Solve(nw, d, steady.Settings{Harmonics: 7}); err != nil {
 			t.Fatal(err)
 		}
 		var levels []float64
 		for l := -40.0; l <= 10; l += 2.5 {
 			levels = append(levels, l)
 		}
-		if dc.levels, err = ac.LevelSweep(nw, d, levels, ac.SteadySettings{}, nil); err != nil {
+		if dc.levels, err = steady.LevelSweep(nw, d, levels, steady.Settings{}, nil); err != nil {
 			t.Fatal(err)
 		}
 		gain := cmplx.Abs(dc.estimate.Linear) / d.EMF
-		dc.compression, dc.compressed = ac.Compression(dc.levels, gain)
+		dc.compression, dc.compressed = steady.Compression(dc.levels, gain)
 		dc.freqs = logSweep(100e6, 6e9, 12)
 		for _, f := range dc.freqs {
 			two := d

@@ -27,36 +27,59 @@ const bandBins = 1200
 // period), so that each holds a whole swing. It returns the key's
 // thumbnail.
 func waveBand(p *plot.Plot, ts, ys []float64, lo, hi, cycle float64, clr color.Color) plot.Thumbnailer {
-	var xs, vs []float64
+	n := 0
 	for i, t := range ts {
 		if t >= lo && t <= hi && i < len(ys) {
-			xs, vs = append(xs, t), append(vs, ys[i])
+			n++
 		}
 	}
 	line := draw.LineStyle{Color: clr, Width: vg.Points(0.8)}
-	if len(xs) <= 2*bandBins {
+	if n <= 2*bandBins {
+		xs, vs := make([]float64, 0, n), make([]float64, 0, n)
+		for i, t := range ts {
+			if t >= lo && t <= hi && i < len(ys) {
+				xs, vs = append(xs, t), append(vs, ys[i])
+			}
+		}
 		return newCurve(xs, vs, false, false).add(p, line)
 	}
 	bins := bandBins
 	if cycle > 0 {
 		bins = max(1, min(bins, int((hi-lo)/cycle)))
 	}
+	// One pass: each sample goes to the column [a, b) holding it, a =
+	// lo + k width, with the same comparisons a column-by-column scan
+	// would make.
 	width := (hi - lo) / float64(bins)
-	var top, bottom plotter.XYs
-	for k := 0; k < bins; k++ {
-		a, b := lo+float64(k)*width, lo+float64(k+1)*width
-		least, most := math.Inf(1), math.Inf(-1)
-		for i, x := range xs {
-			if x >= a && x < b && finite(vs[i]) {
-				least, most = math.Min(least, vs[i]), math.Max(most, vs[i])
-			}
-		}
-		if least > most {
+	least, most := make([]float64, bins), make([]float64, bins)
+	for k := range least {
+		least[k], most[k] = math.Inf(1), math.Inf(-1)
+	}
+	for i, x := range ts {
+		if i >= len(ys) || x < lo || x > hi || !finite(ys[i]) {
 			continue
 		}
+		k := min(bins-1, max(0, int((x-lo)/width)))
+		for k > 0 && x < lo+float64(k)*width {
+			k--
+		}
+		for k < bins-1 && x >= lo+float64(k+1)*width {
+			k++
+		}
+		if x < lo+float64(k)*width || x >= lo+float64(k+1)*width {
+			continue
+		}
+		least[k], most[k] = math.Min(least[k], ys[i]), math.Max(most[k], ys[i])
+	}
+	var top, bottom plotter.XYs
+	for k := 0; k < bins; k++ {
+		if least[k] > most[k] {
+			continue
+		}
+		a, b := lo+float64(k)*width, lo+float64(k+1)*width
 		mid := (a + b) / 2
-		top = append(top, plotter.XY{X: mid, Y: most})
-		bottom = append(bottom, plotter.XY{X: mid, Y: least})
+		top = append(top, plotter.XY{X: mid, Y: most[k]})
+		bottom = append(bottom, plotter.XY{X: mid, Y: least[k]})
 	}
 	for i, j := 0, len(bottom)-1; i < j; i, j = i+1, j-1 {
 		bottom[i], bottom[j] = bottom[j], bottom[i]
@@ -68,6 +91,22 @@ func waveBand(p *plot.Plot, ts, ys []float64, lo, hi, cycle float64, clr color.C
 		p.Add(poly)
 	}
 	return &plotter.Line{LineStyle: draw.LineStyle{Color: clr, Width: vg.Points(4)}}
+}
+
+// finiteSpan returns the least and greatest finite ys whose ts lie in
+// [lo, hi] (every one when ts is nil): the extent of their curve, without
+// building it.
+func finiteSpan(ts, ys []float64, lo, hi float64) (least, most float64) {
+	least, most = math.Inf(1), math.Inf(-1)
+	for i, y := range ys {
+		if ts != nil && (i >= len(ts) || ts[i] < lo || ts[i] > hi) {
+			continue
+		}
+		if finite(y) && (ts == nil || finite(ts[i])) {
+			least, most = math.Min(least, y), math.Max(most, y)
+		}
+	}
+	return least, most
 }
 
 // cycleOf is the longer of the carrier's and the probe's periods.
@@ -175,7 +214,7 @@ func pulseOutput(r *transient.PulseResult, nw *smallsignal.Network) *Figure {
 	newCurve(r.EnvelopeTimes, down, false, false).add(top, envStyle)
 	fig.Key = append(fig.Key, KeyEntry{Label: "output", Thumbs: []plot.Thumbnailer{wave}},
 		KeyEntry{Label: "its envelope at the carrier", Thumbs: []plot.Thumbnailer{env}})
-	ylo, yhi := spanY([]curve{newCurve(run.Times, r.Output, false, false)})
+	ylo, yhi := finiteSpan(run.Times, r.Output, math.Inf(-1), math.Inf(1))
 	top.Y.Min, top.Y.Max = linearRange(ylo, yhi, 1e-3, -1, 1, linearStep)
 	top.Y.Tick.Marker = LinearTicks{}
 	timeAxis(top, lo, hi)
@@ -316,12 +355,6 @@ func pulseEdges(r *transient.PulseResult) *Figure {
 		if !(hi > lo) {
 			continue
 		}
-		var xs, ys []float64
-		for j, t := range run.Times {
-			if t >= lo && t <= hi {
-				xs, ys = append(xs, t), append(ys, r.Output[j])
-			}
-		}
 		wave := waveBand(pl, run.Times, r.Output, lo, hi, cycleOf(r), Palette[0])
 		var ex, eu, ed []float64
 		for j, t := range r.EnvelopeTimes {
@@ -336,7 +369,7 @@ func pulseEdges(r *transient.PulseResult) *Figure {
 			fig.Key = append(fig.Key, KeyEntry{Label: "output", Thumbs: []plot.Thumbnailer{wave}},
 				KeyEntry{Label: "envelope", Thumbs: []plot.Thumbnailer{env}})
 		}
-		ylo, yhi := spanY([]curve{newCurve(xs, ys, false, false)})
+		ylo, yhi := finiteSpan(run.Times, r.Output, lo, hi)
 		pl.Y.Min, pl.Y.Max = linearRange(ylo, yhi, 1e-3, -1, 1, linearStep)
 		pl.Y.Tick.Marker = LinearTicks{}
 		timeAxis(pl, lo, hi)
@@ -367,7 +400,7 @@ func pulseJunctions(r *transient.PulseResult) *Figure {
 		}
 		th := waveBand(p, run.Times, d.Current, lo, hi, cycleOf(r), clr)
 		fig.Key = append(fig.Key, KeyEntry{Label: d.Name, Thumbs: []plot.Thumbnailer{th}})
-		a, b := spanY([]curve{newCurve(run.Times, d.Current, false, false)})
+		a, b := finiteSpan(run.Times, d.Current, math.Inf(-1), math.Inf(1))
 		ylo, yhi = math.Min(ylo, a), math.Max(yhi, b)
 	}
 	for _, d := range r.Diodes {

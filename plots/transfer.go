@@ -10,7 +10,7 @@ import (
 	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
 
-	"qpoint/ac"
+	"qpoint/ac/steady"
 	"qpoint/bias/si"
 )
 
@@ -22,7 +22,7 @@ import (
 // curve departs 1 dB is marked, and the tangential sensitivity, when
 // tssDBm is finite, is a dotted vertical line: between them lies the
 // detector's square-law dynamic range.
-func DetectorTransfer(t *ac.Transfer, tssDBm float64) *Figure {
+func DetectorTransfer(t *steady.Transfer, tssDBm float64) *Figure {
 	top := NewPanel("", "Output DC change")
 	bottom := NewPanel("Available input power (dBm)", "Deviation from square law (dB)")
 	fig := &Figure{

@@ -11,6 +11,7 @@ import (
 	"gonum.org/v1/plot/vg/draw"
 
 	"qpoint/ac"
+	"qpoint/ac/steady"
 	"qpoint/bias/si"
 )
 
@@ -29,7 +30,7 @@ const twoToneOrder = 3
 // the estimate's level, as HarmonicSpectrum does. Products below -150
 // dBc, the solvers' numerical floor, are labelled "floor"; those the
 // circuit's symmetry cancels in the estimate, "balanced". e may be nil.
-func TwoToneSpectrum(s *ac.Steady, e *ac.Estimate) *Figure {
+func TwoToneSpectrum(s *steady.State, e *ac.Estimate) *Figure {
 	p := NewPanel("Mixing product", "Relative to the output at f1 (dBc)")
 	fig := &Figure{
 		Name:   "two-tone",
@@ -91,7 +92,7 @@ type productBars struct {
 
 var _ plot.Plotter = (*productBars)(nil)
 
-func newProductBars(s *ac.Steady, e *ac.Estimate) *productBars {
+func newProductBars(s *steady.State, e *ac.Estimate) *productBars {
 	f1, _ := s.Product(1, 0)
 	groups := map[int][]productBar{}
 	for _, p := range s.Products {

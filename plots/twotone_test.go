@@ -9,6 +9,7 @@ import (
 
 	"qpoint/ac"
 	"qpoint/ac/balance"
+	"qpoint/ac/steady"
 )
 
 // TestTwoToneSpectrum draws the detector demo's two-tone products (by
@@ -35,7 +36,7 @@ func TestTwoToneSpectrum(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		st, err := ac.SteadyState(nw, d, ac.SteadySettings{Method: balance.Method{Choice: balance.HarmonicBalance}})
+		st, err := steady.Solve(nw, d, steady.Settings{Method: balance.Method{Choice: balance.HarmonicBalance}})
 		if err != nil {
 			t.Fatal(err)
 		}

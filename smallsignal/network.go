@@ -17,7 +17,9 @@ const Ground = -1
 // Network is a circuit linearised at a bias point, Y(s) = G + sC, in
 // modified nodal form. Unknowns are the named nodes (in file order), then
 // each diode's internal junction node where it has series resistance, then
-// one branch current per inductor and per voltage source.
+// one branch current per inductor and per voltage source, then the port
+// currents of the lines and measured blocks, whose rows are not part of
+// G + sC but added at each frequency (Elements, Stamp).
 type Network struct {
 	Point *bias.Point
 	N     int // number of unknowns
@@ -30,6 +32,10 @@ type Network struct {
 	Nodes  map[string]int // named node -> unknown index
 	Ports  []Port
 	Diodes []Diode
+	// Elements are the lines and measured blocks, whose rows depend on
+	// frequency other than as G + jωC (distributed.go); their current
+	// unknowns come last.
+	Elements []Element
 
 	// The large-signal view of the same unknowns, for time-domain
 	// analysis: the linear parts alone (no diode stamps), the right-hand
@@ -140,7 +146,7 @@ func (w *Workspace) New(p *bias.Point) (*Network, error) {
 	*nw = Network{
 		Point: p, Nodes: nw.Nodes,
 		G: nw.G, C: nw.C, GLinear: nw.GLinear, CLinear: nw.CLinear,
-		Names: nw.Names[:0], Ports: nw.Ports[:0], Diodes: nw.Diodes[:0],
+		Names: nw.Names[:0], Ports: nw.Ports[:0], Diodes: nw.Diodes[:0], Elements: nw.Elements[:0],
 		Sources: nw.Sources, Bias: nw.Bias,
 	}
 	c := p.Circuit
@@ -230,7 +236,10 @@ func (w *Workspace) New(p *bias.Point) (*Network, error) {
 
 	nNodes := len(nw.Names)
 	nw.NodeUnknowns = nNodes
-	n := nNodes + len(branches)
+	n, err := nw.addElements(c, nNodes+len(branches), node)
+	if err != nil {
+		return nil, err
+	}
 	nw.N = n
 	if n == 0 {
 		return nil, fmt.Errorf("smallsignal: the circuit has no unknowns")
@@ -296,6 +305,7 @@ func (w *Workspace) New(p *bias.Point) (*Network, error) {
 		nw.C.Set(k, k, -br.l)
 		k++
 	}
+	nw.finishElements(p)
 	// Everything so far is linear: keep it for the time-domain solver,
 	// then add the diodes' small-signal stamps.
 	nw.GLinear = copyMatrix(nw.GLinear, nw.G)

@@ -8,6 +8,7 @@ import (
 	"time"
 
 	"qpoint/ac"
+	"qpoint/ac/steady"
 	"qpoint/bias/circuit"
 )
 
@@ -74,7 +75,7 @@ func BenchmarkLadderShooting(b *testing.B) {
 		b.Run(fmt.Sprintf("n=%d", n), func(b *testing.B) {
 			nw := network(b, ladder(n))
 			for b.Loop() {
-				if _, err := ac.SteadyState(nw, ladderDrive(), ac.SteadySettings{Harmonics: 5}); err != nil {
+				if _, err := steady.Solve(nw, ladderDrive(), steady.Settings{Harmonics: 5}); err != nil {
 					b.Fatal(err)
 				}
 			}
@@ -94,11 +95,11 @@ func BenchmarkValidity(b *testing.B) {
 			if m == Shooting && testing.Short() {
 				b.Skip("minutes")
 			}
-			var v *ac.Validity
+			var v *steady.Validity
 			start := time.Now()
 			for b.Loop() {
 				var err error
-				v, err = ac.ValidityLimit(nw, d, -70, 10, 0.5, ac.SteadySettings{Method: Method{Choice: m}})
+				v, err = steady.ValidityLimit(nw, d, -70, 10, 0.5, steady.Settings{Method: Method{Choice: m}})
 				if err != nil {
 					b.Fatal(err)
 				}
@@ -145,7 +146,7 @@ func BenchmarkHard(b *testing.B) {
 		})
 		b.Run(name+"/shooting", func(b *testing.B) {
 			for b.Loop() {
-				if _, err := ac.SteadyState(nw, d, ac.SteadySettings{}); err != nil {
+				if _, err := steady.Solve(nw, d, steady.Settings{}); err != nil {
 					b.Fatal(err)
 				}
 			}

@@ -6,7 +6,7 @@ import (
 	"testing"
 	"time"
 
-	"qpoint/ac"
+	"qpoint/ac/steady"
 	"qpoint/bias/circuit"
 )
 
@@ -24,11 +24,11 @@ func compareWithShooting(t *testing.T, c *circuit.Circuit, floorDBc float64) {
 	d := fileDrive(t, c)
 	const harmonics = 10
 	t0 := time.Now()
-	coarse, err := ac.SteadyState(nw, d, ac.SteadySettings{Harmonics: harmonics})
+	coarse, err := steady.Solve(nw, d, steady.Settings{Harmonics: harmonics})
 	if err != nil {
 		t.Skipf("shooting does not solve it: %v", err)
 	}
-	sh, err := ac.SteadyState(nw, d, ac.SteadySettings{Harmonics: harmonics, Samples: 1023, Start: coarse})
+	sh, err := steady.Solve(nw, d, steady.Settings{Harmonics: harmonics, Samples: 1023, Start: coarse})
 	if err != nil {
 		t.Skipf("shooting does not solve it at 1023 samples: %v", err)
 	}

@@ -19,8 +19,8 @@
 //
 // Solve returns a Result with its Stats; Result.Steady gives the form
 // package ac's shooting gives, and Method plugs harmonic balance (or the
-// automatic choice between it and shooting) into ac.SteadyState, so that
-// ac.LevelSweep and ac.ValidityLimit use it with continuation between
+// automatic choice between it and shooting) into steady.Solve, so that
+// steady.LevelSweep and steady.ValidityLimit use it with continuation between
 // levels.
 //
 // Sources: K. S. Kundert and A. Sangiovanni-Vincentelli, "Simulation of

@@ -23,6 +23,8 @@ type linear struct {
 	dc     []float64 // the AC-coupled ports' terminations, removed at DC
 	y      [][]complex128
 	edges  [][2]int
+	nw     *smallsignal.Network
+	index  map[[2]int]int // entry of (row, column), with lines or blocks
 }
 
 // newLinear gathers the linear network's pattern and values from the
@@ -46,13 +48,25 @@ func newLinear(nw *smallsignal.Network) *linear {
 		add(p.Node, p.Return, -v)
 		add(p.Return, p.Node, -v)
 	}
-	l := &linear{n: n, rowPtr: make([]int, n+1)}
+	// The lines' and blocks' rows are entries of their own, valued at
+	// each product (setFrequencies).
+	elem := map[[2]int]bool{}
+	for i := range nw.Elements {
+		nw.Elements[i].Pattern(func(r, c int) { elem[[2]int{r, c}] = true })
+	}
+	l := &linear{n: n, rowPtr: make([]int, n+1), nw: nw}
+	if len(elem) > 0 {
+		l.index = map[[2]int]int{}
+	}
 	for i := 0; i < n; i++ {
 		for j := 0; j < n; j++ {
 			gv, cv := g.Data[i*g.Stride+j], c.Data[i*c.Stride+j]
 			dv, ok := dcOff[[2]int{i, j}]
-			if gv == 0 && cv == 0 && !ok {
+			if gv == 0 && cv == 0 && !ok && !elem[[2]int{i, j}] {
 				continue
+			}
+			if l.index != nil {
+				l.index[[2]int{i, j}] = len(l.cols)
 			}
 			l.cols = append(l.cols, j)
 			l.g = append(l.g, gv)
@@ -77,6 +91,18 @@ func (l *linear) setFrequencies(s *spectrum) {
 				v[e] = complex(l.g[e]-l.dc[e], 0)
 			} else {
 				v[e] = complex(l.g[e], p.omega*l.c[e])
+			}
+		}
+		if l.index != nil {
+			// Lines and blocks at the product's signed frequency (the
+			// DC relation at DC).
+			var s []complex128
+			for i := range l.nw.Elements {
+				el := &l.nw.Elements[i]
+				if need := el.Ports() * el.Ports(); len(s) < need {
+					s = make([]complex128, need)
+				}
+				el.Entries(p.omega, s, func(r, c int, val complex128) { v[l.index[[2]int{r, c}]] += val })
 			}
 		}
 		l.y[k] = v

@@ -2,8 +2,10 @@ package balance
 
 import (
 	"fmt"
+	"strings"
 
 	"qpoint/ac"
+	"qpoint/ac/steady"
 	"qpoint/smallsignal"
 )
 
@@ -51,10 +53,10 @@ func ParseChoice(s string) (Choice, error) {
 // of the two (BENCHMARKS.md).
 const AutoShootingLimit = 30
 
-// Method is an ac.SteadyMethod: set it as ac.SteadySettings.Method and
-// ac.SteadyState (and so ac.LevelSweep and ac.ValidityLimit) solves by
+// Method is a steady.Method: set it as steady.Settings.Method and
+// steady.Solve (and so steady.LevelSweep and steady.ValidityLimit) solves by
 // the method chosen. Settings are harmonic balance's; Settings.Report and
-// Settings.Start are taken from the ac.SteadySettings instead (Harmonics,
+// Settings.Start are taken from the steady.Settings instead (Harmonics,
 // and Start when it holds a harmonic-balance solution).
 type Method struct {
 	Choice   Choice
@@ -66,7 +68,7 @@ type Method struct {
 
 // choose returns the method Auto takes.
 func choose(nw *smallsignal.Network, d ac.Drive) Choice {
-	if d.SecondToneHz != 0 || nw.N > AutoShootingLimit {
+	if d.SecondToneHz != 0 || nw.N > AutoShootingLimit || nw.HasElements() {
 		return HarmonicBalance
 	}
 	return Shooting
@@ -74,7 +76,7 @@ func choose(nw *smallsignal.Network, d ac.Drive) Choice {
 
 // SolveSteady solves by the method chosen and returns the steady state
 // with Method naming what ran.
-func (m Method) SolveSteady(nw *smallsignal.Network, d ac.Drive, s ac.SteadySettings) (*ac.Steady, error) {
+func (m Method) SolveSteady(nw *smallsignal.Network, d ac.Drive, s steady.Settings) (*steady.State, error) {
 	st, err := m.solve(nw, d, s)
 	if err == nil && m.Reason != "" {
 		st.Choice = m.Reason
@@ -82,7 +84,7 @@ func (m Method) SolveSteady(nw *smallsignal.Network, d ac.Drive, s ac.SteadySett
 	return st, err
 }
 
-func (m Method) solve(nw *smallsignal.Network, d ac.Drive, s ac.SteadySettings) (*ac.Steady, error) {
+func (m Method) solve(nw *smallsignal.Network, d ac.Drive, s steady.Settings) (*steady.State, error) {
 	choice := m.Choice
 	if choice == Auto {
 		choice = choose(nw, d)
@@ -105,7 +107,7 @@ func (m Method) solve(nw *smallsignal.Network, d ac.Drive, s ac.SteadySettings) 
 		return st, err
 	default:
 		st, err := m.balance(nw, d, s)
-		if err != nil && m.Choice == Auto && d.SecondToneHz == 0 && nw.N <= ac.MaxSteadyUnknowns {
+		if err != nil && m.Choice == Auto && d.SecondToneHz == 0 && nw.N <= steady.MaxUnknowns && !nw.HasElements() {
 			if sh, err2 := m.shoot(nw, d, s); err2 == nil {
 				sh.Choice = fmt.Sprintf("shooting, after harmonic balance failed (%v)", err)
 				return sh, nil
@@ -114,6 +116,8 @@ func (m Method) solve(nw *smallsignal.Network, d ac.Drive, s ac.SteadySettings) 
 		if err == nil && m.Choice == Auto {
 			if d.SecondToneHz != 0 {
 				st.Choice = "harmonic balance, for two tones"
+			} else if nw.HasElements() {
+				st.Choice = "harmonic balance, for lines and measured blocks (" + strings.Join(nw.ElementNames(), ", ") + ")"
 			} else {
 				st.Choice = fmt.Sprintf("harmonic balance, for a circuit of %d unknowns", nw.N)
 			}
@@ -122,15 +126,15 @@ func (m Method) solve(nw *smallsignal.Network, d ac.Drive, s ac.SteadySettings) 
 	}
 }
 
-func (m Method) shoot(nw *smallsignal.Network, d ac.Drive, s ac.SteadySettings) (*ac.Steady, error) {
+func (m Method) shoot(nw *smallsignal.Network, d ac.Drive, s steady.Settings) (*steady.State, error) {
 	s.Method = nil
-	if s.Start != nil && s.Start.Method != ac.MethodShooting {
+	if s.Start != nil && s.Start.Method != steady.MethodShooting {
 		s.Start = nil
 	}
-	return ac.SteadyState(nw, d, s)
+	return steady.Solve(nw, d, s)
 }
 
-func (m Method) balance(nw *smallsignal.Network, d ac.Drive, s ac.SteadySettings) (*ac.Steady, error) {
+func (m Method) balance(nw *smallsignal.Network, d ac.Drive, s steady.Settings) (*steady.State, error) {
 	hs := m.Settings
 	if d.SecondToneHz == 0 {
 		hs.Report = s.Harmonics

@@ -5,9 +5,10 @@ import (
 	"testing"
 
 	"qpoint/ac"
+	"qpoint/ac/steady"
 )
 
-// TestMethodChoice: through ac.SteadyState, the automatic choice takes
+// TestMethodChoice: through steady.Solve, the automatic choice takes
 // shooting for a small lumped circuit under one tone and harmonic
 // balance for two tones and for large circuits, says which ran, and both
 // methods agree on the detector.
@@ -19,14 +20,14 @@ func TestMethodChoice(t *testing.T) {
 		second float64
 		want   string
 	}{
-		{Auto, 0, ac.MethodShooting},
-		{Auto, 2.46e9, ac.MethodHarmonicBalance},
-		{HarmonicBalance, 0, ac.MethodHarmonicBalance},
-		{Shooting, 0, ac.MethodShooting},
+		{Auto, 0, steady.MethodShooting},
+		{Auto, 2.46e9, steady.MethodHarmonicBalance},
+		{HarmonicBalance, 0, steady.MethodHarmonicBalance},
+		{Shooting, 0, steady.MethodShooting},
 	} {
 		dd := d
 		dd.SecondToneHz = c.second
-		st, err := ac.SteadyState(nw, dd, ac.SteadySettings{Method: Method{Choice: c.choice}})
+		st, err := steady.Solve(nw, dd, steady.Settings{Method: Method{Choice: c.choice}})
 		if err != nil {
 			t.Fatalf("%s: %v", c.choice, err)
 		}
@@ -40,21 +41,21 @@ func TestMethodChoice(t *testing.T) {
 			t.Errorf("two tones: no products in the steady state")
 		}
 	}
-	if _, err := ac.SteadyState(nw, ac.Drive{Input: d.Input, Output: d.Output, FrequencyHz: d.FrequencyHz, SecondToneHz: 2.46e9, EMF: d.EMF},
-		ac.SteadySettings{Method: Method{Choice: Shooting}}); err == nil {
+	if _, err := steady.Solve(nw, ac.Drive{Input: d.Input, Output: d.Output, FrequencyHz: d.FrequencyHz, SecondToneHz: 2.46e9, EMF: d.EMF},
+		steady.Settings{Method: Method{Choice: Shooting}}); err == nil {
 		t.Errorf("shooting accepted two tones")
 	}
 	big := network(t, ladder(100))
-	st, err := ac.SteadyState(big, ladderDrive(), ac.SteadySettings{Method: Method{}})
+	st, err := steady.Solve(big, ladderDrive(), steady.Settings{Method: Method{}})
 	if err != nil {
 		t.Fatal(err)
 	}
-	if st.Method != ac.MethodHarmonicBalance {
+	if st.Method != steady.MethodHarmonicBalance {
 		t.Errorf("a 100-unknown ladder: %q ran, want harmonic balance", st.Method)
 	}
 }
 
-// TestLevelSweepContinues: a level sweep through ac.LevelSweep by
+// TestLevelSweepContinues: a level sweep through steady.LevelSweep by
 // harmonic balance starts each level from the last, taking fewer Newton
 // iterations than cold solves, and gives the same harmonics (to 1e-6
 // relative) as a cold solve at each level.
@@ -62,8 +63,8 @@ func TestLevelSweepContinues(t *testing.T) {
 	nw := network(t, demo(t, "limiter"))
 	d := fileDrive(t, nw.Point.Circuit)
 	levels := []float64{-10, -5, 0, 5}
-	m := ac.SteadySettings{Method: Method{Choice: HarmonicBalance}}
-	pts, err := ac.LevelSweep(nw, d, levels, m, nil)
+	m := steady.Settings{Method: Method{Choice: HarmonicBalance}}
+	pts, err := steady.LevelSweep(nw, d, levels, m, nil)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -72,7 +73,7 @@ func TestLevelSweepContinues(t *testing.T) {
 		warm += p.Steady.Iterations
 		dd := d
 		dd.EMF = p.EMF
-		c, err := ac.SteadyState(nw, dd, m)
+		c, err := steady.Solve(nw, dd, m)
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -102,11 +103,11 @@ func TestMeasuredIntercept(t *testing.T) {
 	for l := -75.0; l <= -20; l += 5 {
 		levels = append(levels, l)
 	}
-	pts, err := ac.LevelSweep(nw, d, levels, ac.SteadySettings{Method: Method{}}, nil)
+	pts, err := steady.LevelSweep(nw, d, levels, steady.Settings{Method: Method{}}, nil)
 	if err != nil {
 		t.Fatal(err)
 	}
-	ip, err := ac.MeasuredIntercept(pts, nw.Ports[d.Output.Port].Impedance)
+	ip, err := steady.MeasuredIntercept(pts, nw.Ports[d.Output.Port].Impedance)
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -7,6 +7,8 @@ import (
 	"time"
 
 	"qpoint/ac"
+	"qpoint/ac/steady"
+	"qpoint/smallsignal"
 )
 
 // Product is a signal at one mixing product m·f1 + n·f2 (for one tone,
@@ -21,7 +23,7 @@ type Product struct {
 
 // Stats says what a solve did.
 type Stats struct {
-	Method string // always ac.MethodHarmonicBalance
+	Method string // always steady.MethodHarmonicBalance
 	// Iterations counts Newton iterations over every continuation step,
 	// harmonic count and grid; LinearIterations the GMRES products with
 	// the Jacobian among them.
@@ -70,7 +72,7 @@ type Result struct {
 	// Stress holds each diode's extremes over the time grid: one period
 	// for one tone; for two tones the artificial grid, which passes
 	// through the waveform's extremes only approximately.
-	Stress []ac.DiodeStress
+	Stress []steady.DiodeStress
 	// NoiseFloor is the amplitude below which a product is rounding, not
 	// the circuit: 1e-12 of the largest of the drive's EMF and the DC
 	// node voltages, as for shooting.
@@ -79,6 +81,11 @@ type Result struct {
 	Times, Waveform []float64
 
 	Stats Stats
+	// Outside lists the blocks and microstrips that some product's
+	// frequency lies outside the data or models of (a caution), counting
+	// the products whose largest node phasor reaches 1e-5 (-100 dB) of
+	// the largest signal phasor.
+	Outside []smallsignal.OutsideRange
 
 	spec *spectrum
 	x    []complex128
@@ -170,20 +177,20 @@ const floorRel = 1e-12
 // (the form shooting gives), for comparison, tables and continuation:
 // for one tone Output holds harmonics 0..Report; for two tones Output
 // holds the harmonics of f1 alone and Products every reported product.
-func (r *Result) Steady() *ac.Steady {
-	st := &ac.Steady{
+func (r *Result) Steady() *steady.State {
+	st := &steady.State{
 		Drive: r.Drive, Stress: r.Stress, NoiseFloor: r.NoiseFloor,
 		Times: r.Times, Waveform: r.Waveform,
 		Iterations: r.Stats.Iterations, Residual: r.Stats.Residual,
-		Method: ac.MethodHarmonicBalance, State: r,
+		Method: steady.MethodHarmonicBalance, State: r, Outside: r.Outside,
 	}
-	harm := func(list []Product) []ac.Harmonic {
-		var h []ac.Harmonic
+	harm := func(list []Product) []steady.Harmonic {
+		var h []steady.Harmonic
 		for _, p := range list {
 			if p.Orders[1] != 0 || p.Orders[0] < 0 {
 				continue
 			}
-			h = append(h, ac.Harmonic{Order: p.Orders[0], Amplitude: p.Amplitude, PhaseDeg: p.PhaseDeg, Phasor: p.Phasor})
+			h = append(h, steady.Harmonic{Order: p.Orders[0], Amplitude: p.Amplitude, PhaseDeg: p.PhaseDeg, Phasor: p.Phasor})
 		}
 		sort.Slice(h, func(i, j int) bool { return h[i].Order < h[j].Order })
 		return h
@@ -199,7 +206,7 @@ func (r *Result) Steady() *ac.Steady {
 	}
 	if r.spec.twoTone {
 		for _, p := range r.Output {
-			st.Products = append(st.Products, ac.ToneProduct{Orders: p.Orders, FrequencyHz: p.FrequencyHz,
+			st.Products = append(st.Products, steady.ToneProduct{Orders: p.Orders, FrequencyHz: p.FrequencyHz,
 				Amplitude: p.Amplitude, PhaseDeg: p.PhaseDeg, Phasor: p.Phasor})
 		}
 	}

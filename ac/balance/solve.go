@@ -8,6 +8,7 @@ import (
 	"time"
 
 	"qpoint/ac"
+	"qpoint/ac/steady"
 	"qpoint/smallsignal"
 )
 
@@ -53,7 +54,10 @@ var ErrTruncation = errors.New("harmonic balance: the spectrum does not fall off
 func Solve(nw *smallsignal.Network, d ac.Drive, s Settings) (*Result, error) {
 	begin := time.Now()
 	s = s.withDefaults()
-	sv := &solver{nw: nw, d: d, s: s, stats: Stats{Method: ac.MethodHarmonicBalance}}
+	sv := &solver{nw: nw, d: d, s: s, stats: Stats{Method: steady.MethodHarmonicBalance}}
+	// Lines and measured blocks have no backward-difference form: the
+	// time-domain preconditioner cannot hold them.
+	sv.noTime = nw.HasElements()
 	if s.Timeout > 0 {
 		sv.deadline = begin.Add(s.Timeout)
 	}
@@ -372,6 +376,11 @@ func (sv *solver) continuation(spec *spectrum, x []complex128, lam0 float64) (*s
 	}
 	return sys, x, nil
 }
+
+// outsideFloor is the size, relative to the largest signal phasor, below
+// which a product outside a block's data or a microstrip's models is not
+// cautioned (Result.Outside): -100 dB.
+const outsideFloor = 1e-5
 
 // maxContinuation bounds the drive levels one source stepping tries.
 const maxContinuation = 120
@@ -878,7 +887,7 @@ func (sv *solver) result(sys *system, x []complex128) *Result {
 		sys.grid.toTime(tp, nil, terminals[d], nil)
 		junctions[d] = append([]float64(nil), j.v...)
 	}
-	r.Stress = ac.Stress(nw, currents, terminals, junctions)
+	r.Stress = steady.Stress(nw, currents, terminals, junctions)
 	scale := sv.d.EMF
 	for _, v := range nw.Bias[:nw.NodeUnknowns] {
 		scale = math.Max(scale, math.Abs(v))
@@ -888,5 +897,28 @@ func (sv *solver) result(sys *system, x []complex128) *Result {
 	r.Stats.Harmonics = spec.order
 	r.Stats.Products = len(spec.products)
 	r.Stats.Samples = S
+	if nw.HasElements() {
+		// Products the lines and blocks hold a stake in: those whose
+		// largest node phasor reaches outsideFloor of the largest signal
+		// phasor. A top harmonic 200 dB down past a block's data is no
+		// reason for a caution.
+		var big float64
+		for k := 1; k < len(spec.products); k++ {
+			for i := 0; i < nw.NodeUnknowns; i++ {
+				big = math.Max(big, cmplx.Abs(x[k*n+i]))
+			}
+		}
+		var freqs []float64
+		for k, p := range spec.products {
+			top := 0.0
+			for i := 0; i < nw.NodeUnknowns; i++ {
+				top = math.Max(top, cmplx.Abs(x[k*n+i]))
+			}
+			if k == 0 || top >= outsideFloor*big {
+				freqs = append(freqs, p.omega/(2*math.Pi))
+			}
+		}
+		r.Outside = nw.Outside(freqs)
+	}
 	return r
 }

@@ -43,6 +43,9 @@ type RequestError struct {
 }
 
 func (e *RequestError) Error() string {
+	if len(e.Settings) == 0 {
+		return e.Err.Error()
+	}
 	if e.File != "" {
 		return fmt.Sprintf("%s:%d:%d: %s: %v", e.File, e.Pos.Line, e.Pos.Col, e.Key, e.Err)
 	}

@@ -475,9 +475,9 @@ func Read(r io.Reader, nPorts int) (ports []Port, points []Point, err error) {
 	}
 	if err := sc.Err(); err != nil {
 		if errors.Is(err, bufio.ErrTooLong) {
-			return nil, nil, fmt.Errorf("touchstone line %d: longer than %d MiB: %w", t.line+1, maxLine>>20, err)
+			return nil, nil, &LineError{Line: t.line + 1, Err: fmt.Errorf("longer than %d MiB: %w", maxLine>>20, err)}
 		}
-		return nil, nil, fmt.Errorf("touchstone line %d: %w", t.line+1, err)
+		return nil, nil, &LineError{Line: t.line + 1, Err: err}
 	}
 	if err := t.finish(); err != nil {
 		return nil, nil, err
@@ -539,8 +539,21 @@ type tsReader struct {
 }
 
 func (t *tsReader) errf(format string, a ...any) error {
-	return fmt.Errorf("touchstone line %d: "+format, append([]any{t.line}, a...)...)
+	return &LineError{Line: t.line, Err: fmt.Errorf(format, a...)}
 }
+
+// LineError is a problem at a line of a Touchstone file: Read's errors
+// about the file's contents are LineErrors, so that a caller can point at
+// the line (a circuit file's block names the file and the line).
+type LineError struct {
+	Line int   // 1-based
+	Err  error // what is wrong there
+}
+
+func (e *LineError) Error() string { return fmt.Sprintf("touchstone line %d: %v", e.Line, e.Err) }
+
+// Unwrap returns what is wrong.
+func (e *LineError) Unwrap() error { return e.Err }
 
 func (t *tsReader) ref(i int) float64 {
 	if t.refs != nil {
@@ -685,7 +698,7 @@ func (t *tsReader) keyword(kw, arg string) error {
 			return err
 		}
 		if t.given > 0 && n != t.given {
-			return t.errf("[Number of Ports] %d, but %d ports were expected (from the file name?)", n, t.given)
+			return t.errf("[Number of Ports] %d, but %d ports were expected (from the file name or its use)", n, t.given)
 		}
 		t.n, t.nLine = n, t.line
 	case "two-port data order":
@@ -999,7 +1012,7 @@ func polar(m, deg float64) complex128 {
 func (t *tsReader) finish() error {
 	switch {
 	case !t.started:
-		return fmt.Errorf("touchstone line %d: the file is empty: expected an option line or [Version] 2.0", t.line)
+		return &LineError{Line: t.line, Err: errors.New("the file is empty: expected an option line or [Version] 2.0")}
 	case t.refWant:
 		return t.errf("end of file: [Reference] on line %d has %d of %d impedances", t.refLine, len(t.refs), t.n)
 	case len(t.rec) > 0:

@@ -21,7 +21,7 @@ import (
 // Electronics", 1972, sec. 16-4): within 3 %, the junction's capacitance
 // and its slight departure from square law at -40 dBm being left out of
 // the closed form. The video change at the end of the flat top, 16 tau
-// in, must match the steady state's DC shift (ac.SteadyState) within
+// in, must match the steady state's DC shift (steady.Solve) within
 // 0.05 dB.
 func TestDetectorVideo(t *testing.T) {
 	nw := network(t, `

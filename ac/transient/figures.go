@@ -5,7 +5,7 @@ import (
 	"math"
 	"math/cmplx"
 
-	"qpoint/ac"
+	"qpoint/ac/steady"
 	"qpoint/bias/si"
 	"qpoint/smallsignal"
 )
@@ -354,7 +354,7 @@ func (res *PulseResult) stress(nw *smallsignal.Network, r *Result) {
 				si.Format(st.PeakCurrent, "A", 3), si.Format(rt.MaxCurrent, "A", 3), 100*st.PeakCurrent/rt.MaxCurrent, si.Format(st.PeakCurrentTime, "s", 4))
 		}
 		if rt.MaxCurrent == 0 && d.Device.ZeroBiasCapacitance > 0 {
-			if lim := ac.OverdriveCurrent(d.Device.ZeroBiasCapacitance); st.PeakCurrent > lim {
+			if lim := steady.OverdriveCurrent(d.Device.ZeroBiasCapacitance); st.PeakCurrent > lim {
 				add(SmallJunction, st.PeakCurrent, lim, "peak junction current %s; its model gives no current rating, and a junction of its %s zero-bias capacitance is overdriven above about %s",
 					si.Format(st.PeakCurrent, "A", 3), si.Format(d.Device.ZeroBiasCapacitance, "F", 3), si.Format(lim, "A", 3))
 			}

@@ -9,6 +9,7 @@ import (
 	"gonum.org/v1/gonum/mat"
 
 	"qpoint/ac"
+	"qpoint/ac/steady"
 	"qpoint/bias/si"
 	"qpoint/smallsignal"
 )
@@ -74,7 +75,7 @@ type PulseSettings struct {
 	// Source, Initial and Watch are set by RunPulse.
 	Transient Settings
 	// Steady are the settings of the detector's periodic steady state.
-	Steady ac.SteadySettings
+	Steady steady.Settings
 }
 
 // Window lengths, in periods of what they demodulate: the carrier's
@@ -224,7 +225,7 @@ type PulseResult struct {
 	// (Pozar, ch. 4), or of 2 V_out/E_p at a node output.
 	LossBefore, SmallSignalLoss float64
 	// Baseline is the output's DC-point value, V; SteadyShift the change
-	// of its DC level under the continuous carrier from ac.SteadyState
+	// of its DC level under the continuous carrier from steady.Solve
 	// (detector; NaN otherwise or when the steady state failed).
 	Baseline, SteadyShift float64
 
@@ -339,7 +340,7 @@ func RunPulse(nw *smallsignal.Network, s PulseSettings) (*PulseResult, error) {
 		res.SmallSignalLoss = lossDB(nw, s.Input, s.Output, vout, p.ProbeEMF)
 	}
 	if kind == Detector {
-		st, err := ac.SteadyState(nw, ac.Drive{Input: s.Input, Output: s.Output, FrequencyHz: p.CarrierHz, EMF: p.CarrierEMF}, s.Steady)
+		st, err := steady.Solve(nw, ac.Drive{Input: s.Input, Output: s.Output, FrequencyHz: p.CarrierHz, EMF: p.CarrierEMF}, s.Steady)
 		if err == nil {
 			res.SteadyShift = st.Output[0].Amplitude
 		} else {

@@ -7,12 +7,13 @@ import (
 	"testing"
 
 	"qpoint/ac"
+	"qpoint/ac/steady"
 )
 
 // TestSettlesToSteadyState runs a long pulse of a carrier and, over the
 // last whole periods of its flat top, reads the output's DC shift and
 // harmonics; they must match the periodic steady state that shooting
-// finds (ac.SteadyState: Aprille and Trick, Proc. IEEE 60(1), 1972, an
+// finds (steady.Solve: Aprille and Trick, Proc. IEEE 60(1), 1972, an
 // independent method on the trapezoidal rule with Richardson's
 // extrapolation) within 0.01 dB on every harmonic that stands above
 // -80 dBc (the even harmonics of the symmetric limiter are zero but for
@@ -47,7 +48,7 @@ ports:
 		nw := network(t, tc.file)
 		emf := ac.DBmToEMF(tc.levelDBm, nw.Ports[0].Impedance)
 		const harmonics = 5
-		st, err := ac.SteadyState(nw, ac.Drive{Input: 0, Output: tc.output, FrequencyHz: tc.carrier, EMF: emf}, ac.SteadySettings{Harmonics: harmonics, Samples: 1023})
+		st, err := steady.Solve(nw, ac.Drive{Input: 0, Output: tc.output, FrequencyHz: tc.carrier, EMF: emf}, steady.Settings{Harmonics: harmonics, Samples: 1023})
 		if err != nil {
 			t.Fatal(err)
 		}

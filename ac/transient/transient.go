@@ -194,6 +194,10 @@ func Check(c *circuit.Circuit) error {
 			return fmt.Errorf("part %s (%s): the transient analysis has no time-domain model for it; accepted: resistors, capacitors, inductors, DC sources and diodes (an S-parameter block is data in frequency: replace it with lumped parts)", p.Name, p.Kind)
 		}
 	}
+	if len(c.Distributed) > 0 {
+		d := c.Distributed[0]
+		return fmt.Errorf("part %s (%s): the transient analysis has no time-domain model for it (it is known by its S-matrix in frequency); accepted: resistors, capacitors, inductors, DC sources and diodes; harmonic balance takes lines and blocks for a periodic drive", d.Name, d.Type)
+	}
 	return nil
 }
 

@@ -281,6 +281,10 @@ func (l *loader) varied(n *yaml.Node, v string) (Quantity, rule, bool) {
 		}
 		return mk.q, mk.r, true
 	}
+	if typ := l.distributedName(owner); typ != "" {
+		l.errorf(n, "`vary` of the study names %s `%s`, whose values a study does not vary; accepted: %s", typ, owner, varyAccepted)
+		return 0, rule{}, false
+	}
 	if _, named := l.partAt[owner]; named {
 		return 0, rule{}, false // the part could not be read; its error says why
 	}

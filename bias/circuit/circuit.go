@@ -181,4 +181,7 @@ type Circuit struct {
 	// (tolerance.go).
 	Tolerances      []Tolerance
 	ToleranceGroups []ToleranceGroup
+	// Distributed lists the transmission lines, microstrip lines and
+	// S-parameter blocks, in file order (distributed.go).
+	Distributed []Distributed
 }

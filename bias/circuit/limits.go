@@ -25,6 +25,7 @@ var spans = [...]span{
 	Power:         {0, 1e12, "a power up to 1e12 W"},
 	Energy:        {0, 1e3, "an energy up to 1000 eV"},
 	Temperature:   {1e-3, 1e9, "a temperature from 1 mK to 1e9 K"},
+	Length:        {1e-12, 1e6, "a length from 1 pm to 1000 km"},
 }
 
 // outOfSpan returns what is wrong with v as a value of q, or "" when its

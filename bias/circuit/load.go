@@ -100,6 +100,9 @@ type loader struct {
 	portAt   map[string]Pos  // port name -> where it is named
 
 	tolerances *toleranceState // spreads read so far (tolerance.go)
+	// distributed is what the lines and blocks read so far need
+	// (distributed.go).
+	distributed *distributedState
 }
 
 // errorf records a problem at node n.
@@ -359,6 +362,7 @@ func (l *loader) circuit(root *yaml.Node) *Circuit {
 	if e, ok := top["analysis"]; ok {
 		l.analysis(e.val)
 	}
+	l.resolveOpenEnds()
 	if e, ok := top["parts"]; ok && l.partsComplete && l.portsComplete {
 		l.topology(e.key)
 		l.wiring()

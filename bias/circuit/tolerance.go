@@ -525,6 +525,8 @@ func (l *loader) findTolerance(n *yaml.Node, name string) int {
 			name, owner, l.diodesOf(owner, key), accepted)
 	case !isPart:
 		l.errorf(n, "`%s` names `%s`, which is not a part%s; accepted: %s", name, owner, didYouMean(name, all), accepted)
+	case l.distributedName(owner) != "":
+		l.errorf(n, "`%s` names %s `%s`, which has no tolerance; accepted: %s", name, l.distributedName(owner), owner, accepted)
 	case isDiode && key == "value":
 		l.errorf(n, "`%s`: a diode has no value; accepted: a key of its model's spread, e.g. %s.saturation_current, or %s", name, owner, accepted)
 	case !isDiode && key != "value":

@@ -22,6 +22,7 @@ func (l *loader) topology(partsKey *yaml.Node) {
 			Ground, groundHint(l.c.Nodes))
 	} else {
 		l.floatingNodes(index)
+		l.floatingAboveDC(index)
 	}
 	l.sourceLoops(index)
 }
@@ -59,6 +60,9 @@ func (l *loader) floatingNodes(index map[string]int) {
 			uf.union(index[p.Node], index[p.Return])
 		}
 	}
+	for _, e := range l.dcPaths() {
+		uf.union(index[e[0]], index[e[1]])
+	}
 	ground := uf.find(0)
 	var roots []int
 	groups := map[int][]string{}
@@ -93,6 +97,26 @@ func (l *loader) floatingNodes(index map[string]int) {
 			}
 		}
 	}
+	// A group reached only by distributed parts is pointed at through
+	// the first of them, with what it does at DC.
+	openAt := map[int]string{}
+	for i := range l.c.Distributed {
+		d := &l.c.Distributed[i]
+		for _, node := range d.Nodes() {
+			r := uf.find(index[node])
+			if r == ground {
+				continue
+			}
+			if first[r] == nil {
+				first[r] = &Part{Name: d.Name, Pos: d.Pos}
+			}
+			if d.DCText == "open" || d.DCText == "through" {
+				if _, ok := openAt[r]; !ok {
+					openAt[r] = d.Name
+				}
+			}
+		}
+	}
 	for _, r := range roots {
 		nodes := groups[r]
 		subject, verb := fmt.Sprintf("node %s has", nameList(nodes, 8)), "is"
@@ -110,26 +134,46 @@ func (l *loader) floatingNodes(index map[string]int) {
 				subject, verb, plainList(feeders[r], 8), hint, nodes[0])
 			continue
 		}
+		also := ""
+		if name, ok := openAt[r]; ok {
+			also = fmt.Sprintf(", or block `%s`, open there at DC", name)
+		}
 		l.errorAt(at.Line, at.Col,
-			"%s no DC path to gnd, only capacitors or ac-coupled ports reach it%s; accepted: a DC path to gnd through a resistor, inductor, diode, voltage source or dc-coupled port",
-			subject, hint)
+			"%s no DC path to gnd, only capacitors or ac-coupled ports reach it%s%s; accepted: a DC path to gnd through a resistor, inductor, diode, voltage source, line or dc-coupled port",
+			subject, also, hint)
 	}
 }
 
-// sourceLoops reports each loop made only of voltage sources and inductors,
-// at the part that closes it, naming every part in the loop.
+// sourceLoops reports each loop made only of voltage sources, inductors
+// and parts that are shorts at DC (lossless lines, blocks joining
+// terminals), at the part that closes it, naming every part in the loop.
 func (l *loader) sourceLoops(index map[string]int) {
+	type short struct {
+		a, b int
+		name string
+		what int // 0 voltage source, 1 inductor, 2 line or block
+		pos  Pos
+	}
+	var shorts []short
+	for _, p := range l.c.Parts {
+		switch p.Kind {
+		case VoltageSource:
+			shorts = append(shorts, short{index[p.Nodes[0]], index[p.Nodes[1]], p.Name, 0, p.Pos})
+		case Inductor:
+			shorts = append(shorts, short{index[p.Nodes[0]], index[p.Nodes[1]], p.Name, 1, p.Pos})
+		}
+	}
+	for _, e := range l.dcShorts() {
+		shorts = append(shorts, short{index[e.a], index[e.b], e.name, 2, e.pos})
+	}
 	type edge struct{ to, part int }
 	uf := newUnionFind(len(index))
 	adj := make([][]edge, len(index))
 	via := make([]edge, len(index)) // via[node] is the tree edge the walk reached it by
 	seen := make([]bool, len(index))
 	var touched []int
-	for i, p := range l.c.Parts {
-		if p.Kind != VoltageSource && p.Kind != Inductor {
-			continue
-		}
-		a, b := index[p.Nodes[0]], index[p.Nodes[1]]
+	for i, p := range shorts {
+		a, b := p.a, p.b
 		if a == b {
 			continue // already reported as a part shorted on itself
 		}
@@ -160,29 +204,22 @@ func (l *loader) sourceLoops(index map[string]int) {
 				}
 			}
 		}
-		names := []string{p.Name}
-		sources, inductors := 0, 0
-		count := func(k Kind) {
-			if k == VoltageSource {
-				sources++
-			} else {
-				inductors++
+		names := []string{p.name}
+		var count [3]int
+		count[p.what]++
+		for x := b; x != a; x = via[x].to {
+			q := shorts[via[x].part]
+			names = append(names, q.name)
+			count[q.what]++
+		}
+		var kinds []string
+		for k, word := range []string{"voltage sources", "inductors", "lines and blocks shorted at DC"} {
+			if count[k] > 0 {
+				kinds = append(kinds, word)
 			}
 		}
-		count(p.Kind)
-		for x := b; x != a; x = via[x].to {
-			q := l.c.Parts[via[x].part]
-			names = append(names, q.Name)
-			count(q.Kind)
-		}
-		what := "voltage sources and inductors"
-		switch {
-		case inductors == 0:
-			what = "voltage sources"
-		case sources == 0:
-			what = "inductors"
-		}
-		l.errorAt(p.Pos.Line, p.Pos.Col,
+		what := strings.Join(kinds, " and ")
+		l.errorAt(p.pos.Line, p.pos.Col,
 			"%s %s form a loop with nothing else in it, a short circuit at DC where the current around the loop is undetermined; accepted: a resistor or other part in every such loop, e.g. a source's internal resistance",
 			what, nameList(names, 12))
 	}

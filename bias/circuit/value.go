@@ -25,6 +25,7 @@ const (
 	Power                         // watt
 	Energy                        // electronvolt, for band-gap energies
 	Temperature                   // kelvin, written in degrees Celsius or kelvin
+	Length                        // metre: a line's length, a strip's width
 )
 
 // quantityInfo describes how a quantity is written.
@@ -46,6 +47,7 @@ var quantities = [...]quantityInfo{
 	Power:         {"power", []string{"W"}, "75m or 75mW"},
 	Energy:        {"energy", []string{"eV"}, "1.11 or 1.11eV"},
 	Temperature:   {"temperature", []string{"C", "K"}, "27C or 300.15K"},
+	Length:        {"length", []string{"m"}, "8mm or 35um (m is metre as a unit, milli as a prefix)"},
 }
 
 // prefixes are the SI multipliers the circuit file knows. They are
@@ -421,6 +423,8 @@ func (q Quantity) Unit() string {
 		return "eV"
 	case Temperature:
 		return "K"
+	case Length:
+		return "m"
 	}
 	return ""
 }

@@ -60,6 +60,11 @@ func (c *Circuit) ResolveVary(v string) (*Vary, error) {
 		}
 		return &Vary{Text: v, Kind: VaryModel, Model: owner, Key: key, Quantity: mk.q, r: mk.r}, nil
 	}
+	for _, d := range c.Distributed {
+		if d.Name == owner {
+			return nil, fmt.Errorf("`%s` names %s `%s`, whose values a study does not vary; accepted: %s", v, d.Type, owner, varyAccepted)
+		}
+	}
 	var all []string
 	for _, p := range c.Parts {
 		if p.Kind != Diode {

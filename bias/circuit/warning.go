@@ -34,6 +34,15 @@ const (
 	// can mean (a 10 F capacitor in a GHz circuit): likely a slip of the
 	// prefix; the message names the value likely meant (plausible.go).
 	Implausible
+	// NotPassive: a measured block's data have a largest singular value
+	// of S above 1 (distributed.go).
+	NotPassive
+	// SparseData: a measured block's data turn a phase by more than
+	// linear interpolation follows between two frequencies.
+	SparseData
+	// OutsideModel: a microstrip outside the range where its models
+	// state their accuracy.
+	OutsideModel
 )
 
 // String names the kind as JSON and tables print it.
@@ -45,6 +54,12 @@ func (k WarningKind) String() string {
 		return "dangling-node"
 	case Implausible:
 		return "implausible-value"
+	case NotPassive:
+		return "not-passive"
+	case SparseData:
+		return "sparse-data"
+	case OutsideModel:
+		return "outside-model"
 	}
 	return "unknown"
 }
@@ -65,6 +80,17 @@ func (l *loader) wiring() {
 	for _, p := range l.c.Ports {
 		terminals[p.Node]++
 		terminals[p.Return]++
+	}
+	for _, d := range l.c.Distributed {
+		for k, n := range d.Nodes() {
+			terminals[n]++
+			if d.Line != nil && k < 2 {
+				terminals[n]++ // a line's end with nothing else on it is an open stub
+			}
+			if _, ok := firstPart[n]; !ok {
+				firstPart[n] = d.Name
+			}
+		}
 	}
 	for _, name := range l.c.Nodes {
 		at := l.nodeAt[name]

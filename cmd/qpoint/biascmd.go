@@ -4,7 +4,6 @@ import (
 	"errors"
 	"fmt"
 	"io"
-	"strings"
 
 	"github.com/spf13/cobra"
 
@@ -34,7 +33,8 @@ was tried), 2 bad input or usage.`,
   qpoint bias mixer.yaml --json > mixer-bias.json`,
 		Args: exactFile,
 		RunE: func(cmd *cobra.Command, args []string) error {
-			c, err := loadCircuit(cmd.ErrOrStderr(), args[0], sets, temperature)
+			g := guardOf(cmd)
+			c, err := g.loadCircuit(cmd.ErrOrStderr(), args[0], sets, temperature)
 			if err != nil {
 				return err
 			}
@@ -82,8 +82,8 @@ func exactFile(cmd *cobra.Command, args []string) error {
 // --temperature flag, which a --set of the temperature may not contradict.
 // The file's cautions (values that are legal but likely slips) go to
 // warn, one per line, as FILE:LINE:COL: caution: ....
-func loadCircuit(warn io.Writer, path string, sets []string, temperature string) (*circuit.Circuit, error) {
-	inputs = append(inputs, path)
+func (g *fileGuard) loadCircuit(warn io.Writer, path string, sets []string, temperature string) (*circuit.Circuit, error) {
+	g.read(path)
 	c, err := circuit.Load(path)
 	if err != nil {
 		var list circuit.ErrorList
@@ -91,6 +91,12 @@ func loadCircuit(warn io.Writer, path string, sets []string, temperature string)
 			return nil, inputError(fmt.Errorf("%d problems in the circuit file:\n%w", len(list), err))
 		}
 		return nil, inputError(err)
+	}
+	// A measured block's file is an input too: no output may replace it.
+	for _, d := range c.Distributed {
+		if d.Path != "" {
+			g.read(d.Path)
+		}
 	}
 	// Legal but probably not meant: said on standard error, so that
 	// every command shows it and no JSON document changes shape.
@@ -108,18 +114,9 @@ func loadCircuit(warn io.Writer, path string, sets []string, temperature string)
 	return c, nil
 }
 
-// overridesLine lists the --set values a run applied, or "" for none.
-func overridesLine(c *circuit.Circuit) string {
-	var parts []string
-	for _, o := range c.Overrides {
-		parts = append(parts, o.String())
-	}
-	return strings.Join(parts, ", ")
-}
-
 // writeOverrides prints the header line of the --set values, if any.
 func writeOverrides(w io.Writer, c *circuit.Circuit) {
-	if l := overridesLine(c); l != "" {
+	if l := report.OverridesLine(c); l != "" {
 		fmt.Fprintf(w, "  set          %s\n", l)
 	}
 }
@@ -135,6 +132,9 @@ func writeBias(w io.Writer, p *bias.Point) {
 		p.Stats.Strategy, report.Plural(p.Stats.Iterations, "iteration"), si.Format(p.Stats.Residual, "A", 2))
 
 	for _, t := range report.BiasTables(p) {
+		t.WriteText(w)
+	}
+	if t := lineTable(p); t != nil {
 		t.WriteText(w)
 	}
 

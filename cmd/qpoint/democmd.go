@@ -38,6 +38,7 @@ start your own.`,
   qpoint demo --dir /tmp/reports`,
 		Args: cobra.NoArgs,
 		RunE: func(cmd *cobra.Command, args []string) error {
+			g := guardOf(cmd)
 			names, err := fs.Glob(qpoint.Demos, "testdata/demo/*.yaml")
 			if err != nil {
 				return err
@@ -73,14 +74,14 @@ start your own.`,
 					return err
 				}
 				out := filepath.Join(dir, base+".html")
-				if err := writeFileAtomic(out, func(fw io.Writer) error { return report.Write(fw, doc) }); err != nil {
+				if err := g.writeFileAtomic(out, func(fw io.Writer) error { return report.Write(fw, doc) }); err != nil {
 					return err
 				}
 				fmt.Fprintf(w, "report: %s (%s)\n", out, time.Since(begin).Round(time.Millisecond))
 				index = append(index, demoEntry{File: base + ".html", Title: c.Name, Cautions: len(doc.Cautions)})
 			}
 			idx := filepath.Join(dir, "index.html")
-			if err := writeFileAtomic(idx, func(fw io.Writer) error { return demoIndex.Execute(fw, index) }); err != nil {
+			if err := g.writeFileAtomic(idx, func(fw io.Writer) error { return demoIndex.Execute(fw, index) }); err != nil {
 				return err
 			}
 			fmt.Fprintf(w, "\nOpen %s in a browser for all four reports.\n", idx)

@@ -15,6 +15,7 @@ import (
 
 	"qpoint/ac"
 	"qpoint/ac/plan"
+	"qpoint/ac/steady"
 	"qpoint/bias"
 	"qpoint/bias/circuit"
 	"qpoint/bias/si"
@@ -91,6 +92,7 @@ Settings come from the flags, else from the file's analysis.distortion.`,
 
 // distortionSetup is a resolved distortion run.
 type distortionSetup struct {
+	planned  *plan.Drive
 	c        *circuit.Circuit
 	p        *bias.Point
 	nw       *smallsignal.Network
@@ -100,12 +102,12 @@ type distortionSetup struct {
 	levelDBm float64
 }
 
-func resolveDistortion(warn io.Writer, path string, fl *distortionFlags) (*distortionSetup, error) {
-	c, err := loadCircuit(warn, path, fl.sets, fl.temperature)
+func resolveDistortion(g *fileGuard, warn io.Writer, path string, fl *distortionFlags) (*distortionSetup, error) {
+	c, err := g.loadCircuit(warn, path, fl.sets, fl.temperature)
 	if err != nil {
 		return nil, err
 	}
-	if err := checkOutputsEarly(fl.plotsDir); err != nil {
+	if err := g.checkOutputsEarly(fl.plotsDir); err != nil {
 		return nil, err
 	}
 	return resolveDistortionFor(c, fl, nil)
@@ -161,7 +163,7 @@ func distortionDrive(c *circuit.Circuit, fl *distortionFlags) (*distortionSetup,
 	if err != nil {
 		return nil, planError(err)
 	}
-	return &distortionSetup{c: c, drive: d.Drive, inName: d.InputName, outName: d.OutputName, levelDBm: d.LevelDBm}, nil
+	return &distortionSetup{planned: d, c: c, drive: d.Drive, inName: d.InputName, outName: d.OutputName, levelDBm: d.LevelDBm}, nil
 }
 
 // parseRange reads FROM:TO:STEP.
@@ -232,218 +234,220 @@ func parseLevelRange(flag, s string, z0 float64) (from, to, step float64, err er
 }
 
 func runDistortion(cmd *cobra.Command, path string, fl *distortionFlags) error {
-	s, err := resolveDistortion(cmd.ErrOrStderr(), path, fl)
+	g := guardOf(cmd)
+	s, err := resolveDistortion(g, cmd.ErrOrStderr(), path, fl)
 	if err != nil {
 		return err
 	}
-	if fl.harmonics < 3 || fl.harmonics > 50 {
-		return inputError(fmt.Errorf("flag --harmonics: %d; accepted: 3 to 50", fl.harmonics))
+	if fl.sweepFrequency != "" {
+		return runDistortionFrequency(cmd, g, s, fl)
 	}
-	settings := ac.SteadySettings{Samples: fl.samples, Harmonics: fl.harmonics}
-	if fl.samples < 4*fl.harmonics+1 || fl.samples > 65536 {
-		return inputError(fmt.Errorf("flag --samples: %d; accepted: at least 4 × harmonics + 1 and at most 65536", fl.samples))
-	}
-	waveSettings := settings
-	if settings.Method, waveSettings.Method, err = fl.steady.steadyMethods(s); err != nil {
+	req, err := distortionRequest(cmd, s, fl)
+	if err != nil {
 		return err
 	}
-	out := cmd.OutOrStdout()
-	doc := &distortionJSON{Input: s.inName, Output: s.outName, Frequency: number(s.drive.FrequencyHz), LevelDBm: number(s.levelDBm)}
-
-	// Frequency sweep of the estimate only.
-	if fl.sweepFrequency != "" {
-		from, to, perDec, err := parseRange("sweep-frequency", fl.sweepFrequency, circuit.Frequency, circuit.Dimensionless)
-		if err != nil {
-			return err
-		}
-		grid, err := ac.LogGrid(from, to, int(perDec))
-		if err != nil {
-			return inputError(fmt.Errorf("flag --sweep-frequency: %w", err))
-		}
-		var rows []frequencyRow
-		err = ac.VolterraSweep(s.nw, s.drive, grid, func(e *ac.Estimate) error {
-			rows = append(rows, frequencyRow{e.Drive.FrequencyHz, e.Clone()})
-			return nil
-		})
-		if err != nil {
-			return analysisError(err)
-		}
-		if fl.plotsDir != "" {
-			if err := writeDistortionFrequencyPlot(fl.plotsDir, rows); err != nil {
-				return err
-			}
-		}
-		if fl.asJSON {
-			for _, r := range rows {
-				doc.FrequencySweep = append(doc.FrequencySweep, estimateJSONOf(r.est))
-			}
-			return writeJSON(out, doc)
-		}
-		writeDistortionHeader(out, s)
-		writeFrequencySweep(out, rows)
-		return nil
-	}
-
-	est, err := ac.Volterra(s.nw, s.drive)
+	res, err := plan.RunDistortion(s.nw, s.planned, req)
 	if err != nil {
 		return analysisError(err)
 	}
-	doc.Estimate = estimateJSONOf(est)
-	one := s.drive
-	one.SecondToneHz = 0
-	st, err := ac.SteadyState(s.nw, one, waveSettings)
-	if err != nil {
-		return analysisError(fmt.Errorf("waveform at %.1f dBm: %w", s.levelDBm, err))
+	if res.ValidityErr != nil {
+		return analysisError(fmt.Errorf("validity limit: %w", res.ValidityErr))
 	}
-	doc.Waveform = waveformJSONOf(st)
-	doc.Cautions = append([]string{}, st.Cautions()...)
-	if note := report.TruncationNote(st); note != "" {
-		doc.Cautions = append(doc.Cautions, note)
+	if res.SweepErr != nil && len(res.Sweep) == 0 {
+		return analysisError(res.SweepErr)
 	}
-	oneEst := est.OneTone()
-	cmp := ac.Compare(oneEst, st)
-	for _, c := range cmp {
-		doc.Comparison = append(doc.Comparison, comparisonJSON{c.Order, number(c.Estimate), number(c.Waveform), number(c.DiffDB), c.Trustable})
+	if res.SweepErr != nil {
+		fmt.Fprintf(cmd.ErrOrStderr(), "qpoint: level sweep stopped: %v\n", res.SweepErr)
 	}
-	var two *ac.Steady
-	if s.drive.SecondToneHz != 0 {
-		if two, err = ac.SteadyState(s.nw, s.drive, waveSettings); err != nil {
-			return analysisError(fmt.Errorf("two-tone waveform at %.1f dBm per tone: %w", s.levelDBm, err))
-		}
-		doc.Waveform.addTwoTone(two)
-		doc.Cautions = append(doc.Cautions, two.Cautions()...)
-		if note := report.TruncationNote(two); note != "" {
-			doc.Cautions = append(doc.Cautions, note)
-		}
+	if res.TransferErr != nil {
+		return analysisError(res.TransferErr)
 	}
-	var limit *ac.Validity
-	if !fl.noLimit {
-		limit, err = ac.ValidityLimit(s.nw, one, s.levelDBm-40, s.levelDBm+40, 0.5, settings)
-		if err != nil {
-			return analysisError(fmt.Errorf("validity limit: %w", err))
-		}
-		doc.setValidity(limit)
-	}
-
-	var sweep, twoSweep []ac.LevelPoint
-	var ip *ac.Intercept
-	var ipErr error
-	var transfer *ac.Transfer
-	tss := math.NaN()
-	var compression float64
-	var compressed bool
-	if fl.sweepLevel != "" {
-		from, to, step, err := parseLevelRange("sweep-level", fl.sweepLevel, s.c.Ports[s.drive.Input].Impedance)
-		if err != nil {
-			return err
-		}
-		n := int(math.Floor((to-from)/step+1e-9)) + 1
-		if n > 2000 {
-			return inputError(fmt.Errorf("flag --sweep-level: %d levels; accepted: at most 2000", n))
-		}
-		levels := make([]float64, n)
-		for i := range levels {
-			levels[i] = from + float64(i)*step
-		}
-		bar := newProgress(cmd.ErrOrStderr(), "level sweep", n)
-		sweep, err = ac.LevelSweep(s.nw, one, levels, settings, bar.update)
-		bar.done()
-		if err != nil && len(sweep) == 0 {
-			return analysisError(err)
-		}
-		if err != nil {
-			fmt.Fprintf(cmd.ErrOrStderr(), "qpoint: level sweep stopped: %v\n", err)
-		}
-		gain := cmplx.Abs(oneEst.Linear) / oneEst.Drive.EMF
-		compression, compressed = ac.Compression(sweep, gain)
-		if compressed {
-			doc.CompressionDBm = number(compression)
-		}
-		for _, p := range sweep {
-			doc.LevelSweep = append(doc.LevelSweep, levelJSON{number(p.LevelDBm), waveformJSONOf(p.Steady)})
-		}
-		doc.Cautions = append(doc.Cautions, sweepCautions(sweep)...)
-		if transfer, tss, err = detectorTransfer(s, sweep, fl.videoBandwidth); err != nil {
-			return err
-		}
-		if transfer != nil {
-			doc.Transfer = transferJSONOf(transfer, tss)
-		}
-		if two != nil {
-			twoSweep, ip, ipErr = twoToneLevelSweep(cmd, s, waveSettings, levels, doc)
-		}
+	if res.TwoToneSweepErr != nil {
+		fmt.Fprintf(cmd.ErrOrStderr(), "qpoint: two-tone level sweep stopped: %v\n", res.TwoToneSweepErr)
 	}
 	if fl.plotsDir != "" {
-		if err := writeDistortionPlots(fl.plotsDir, s, oneEst, st, sweep, transfer, tss, twoToneFigures(two, est)...); err != nil {
+		if err := g.writeDistortionPlots(fl.plotsDir, s, res.OneTone, res.Waveform, res.Sweep, res.Transfer, res.TangentialDBm, twoToneFigures(res.TwoTone, res.Estimate)...); err != nil {
 			return err
 		}
 	}
+	out := cmd.OutOrStdout()
 	if fl.asJSON {
-		return writeJSON(out, doc)
+		return writeJSON(out, distortionDocOf(s, res))
 	}
-	writeDistortionHeader(out, s)
-	writeEstimate(out, est)
-	writeJunctionDrive(out, s, est)
-	writeContributions(out, est)
-	writeWaveform(out, st)
-	if note := report.TruncationNote(st); note != "" {
-		fmt.Fprintf(out, "  %s\n", note)
-	}
-	writeCautions(out, st.Cautions())
-	writeComparison(out, cmp, limit)
-	if two != nil {
-		writeTwoTone(out, two, est)
-		writeCautions(out, two.Cautions())
-	}
-	if len(sweep) > 0 {
-		writeLevelSweep(out, sweep, oneEst, compression, compressed)
-		writeCautions(out, sweepCautions(sweep))
-	}
-	if transfer != nil {
-		writeTransfer(out, transfer, tss)
-	}
-	if len(twoSweep) > 0 {
-		writeTwoToneSweep(out, twoSweep, ip, ipErr, est)
-	}
+	writeDistortionText(out, s, res)
 	if fl.plotsDir != "" {
 		fmt.Fprintf(out, "figures written to %s\n", fl.plotsDir)
 	}
 	return nil
 }
 
-// detectorTransfer returns the transfer curve of a detector output from
-// the level sweep, with its tangential sensitivity over the video band
-// (NaN when it cannot be found); nil when the output is not a detector's.
-func detectorTransfer(s *distortionSetup, sweep []ac.LevelPoint, videoBand string) (*ac.Transfer, float64, error) {
-	path := ac.NoiseSettings{Input: s.drive.Input, Output: s.drive.Output}
-	if len(sweep) < 3 || !ac.Detects(s.nw, path, s.drive.FrequencyHz) {
-		return nil, math.NaN(), nil
+// distortionRequest checks the waveform flags and reads them, with the
+// level sweep and the video band, into a request on the plan.
+func distortionRequest(cmd *cobra.Command, s *distortionSetup, fl *distortionFlags) (plan.DistortionRequest, error) {
+	var req plan.DistortionRequest
+	if fl.harmonics < 3 || fl.harmonics > 50 {
+		return req, inputError(fmt.Errorf("flag --harmonics: %d; accepted: 3 to 50", fl.harmonics))
 	}
-	if videoBand == "" {
-		videoBand = "2MHz"
+	if fl.samples < 4*fl.harmonics+1 || fl.samples > 65536 {
+		return req, inputError(fmt.Errorf("flag --samples: %d; accepted: at least 4 × harmonics + 1 and at most 65536", fl.samples))
 	}
-	lo, hi, err := parseBand("video-bandwidth", videoBand, defaultVideoFromHz)
+	req.Sweep = steady.Settings{Samples: fl.samples, Harmonics: fl.harmonics}
+	req.Waveform = req.Sweep
+	var err error
+	if req.Sweep.Method, req.Waveform.Method, err = fl.steady.steadyMethods(s); err != nil {
+		return req, err
+	}
+	req.TwoTone = true
+	req.Validity = !fl.noLimit
+	if fl.sweepLevel == "" {
+		return req, nil
+	}
+	from, to, step, err := parseLevelRange("sweep-level", fl.sweepLevel, s.c.Ports[s.drive.Input].Impedance)
 	if err != nil {
-		return nil, math.NaN(), err
+		return req, err
 	}
-	gamma, err := ac.VoltageSensitivity(s.nw, path, s.drive.FrequencyHz)
+	n := int(math.Floor((to-from)/step+1e-9)) + 1
+	if n > 2000 {
+		return req, inputError(fmt.Errorf("flag --sweep-level: %d levels; accepted: at most 2000", n))
+	}
+	req.Levels = make([]float64, n)
+	for i := range req.Levels {
+		req.Levels[i] = from + float64(i)*step
+	}
+	band := fl.videoBandwidth
+	if band == "" {
+		band = "2MHz"
+	}
+	lo, hi, err := parseBand("video-bandwidth", band, defaultVideoFromHz)
 	if err != nil {
-		return nil, math.NaN(), analysisError(err)
+		return req, err
 	}
-	t, err := ac.DetectorTransfer(sweep, gamma)
+	req.VideoHz = [2]float64{lo, hi}
+	req.Progress = func(stage string, n int) (func(done, total int), func()) {
+		bar := newProgress(cmd.ErrOrStderr(), stage, n)
+		return bar.update, bar.done
+	}
+	return req, nil
+}
+
+// runDistortionFrequency sweeps the estimate alone over frequency.
+func runDistortionFrequency(cmd *cobra.Command, g *fileGuard, s *distortionSetup, fl *distortionFlags) error {
+	from, to, perDec, err := parseRange("sweep-frequency", fl.sweepFrequency, circuit.Frequency, circuit.Dimensionless)
 	if err != nil {
-		return nil, math.NaN(), nil
+		return err
 	}
-	tss := math.NaN()
-	if det, err := ac.Detector(s.nw, path, s.drive.FrequencyHz, lo, hi); err == nil {
-		tss = det.TangentialDBm()
+	grid, err := ac.LogGrid(from, to, int(perDec))
+	if err != nil {
+		return inputError(fmt.Errorf("flag --sweep-frequency: %w", err))
 	}
-	return t, tss, nil
+	var rows []frequencyRow
+	err = ac.VolterraSweep(s.nw, s.drive, grid, func(e *ac.Estimate) error {
+		rows = append(rows, frequencyRow{e.Drive.FrequencyHz, e.Clone()})
+		return nil
+	})
+	if err != nil {
+		return analysisError(err)
+	}
+	if fl.plotsDir != "" {
+		if err := g.writeDistortionFrequencyPlot(fl.plotsDir, rows); err != nil {
+			return err
+		}
+	}
+	out := cmd.OutOrStdout()
+	if fl.asJSON {
+		doc := distortionDocHead(s)
+		for _, r := range rows {
+			doc.FrequencySweep = append(doc.FrequencySweep, estimateJSONOf(r.est))
+		}
+		return writeJSON(out, doc)
+	}
+	writeDistortionHeader(out, s)
+	writeFrequencySweep(out, rows)
+	return nil
+}
+
+// distortionDocHead is the JSON document's drive.
+func distortionDocHead(s *distortionSetup) *distortionJSON {
+	return &distortionJSON{Input: s.inName, Output: s.outName, Frequency: number(s.drive.FrequencyHz), LevelDBm: number(s.levelDBm)}
+}
+
+// distortionDocOf is the JSON document of a distortion run.
+func distortionDocOf(s *distortionSetup, res *plan.Distortion) *distortionJSON {
+	doc := distortionDocHead(s)
+	doc.Estimate = estimateJSONOf(res.Estimate)
+	doc.Waveform = waveformJSONOf(res.Waveform)
+	doc.Cautions = append([]string{}, res.Waveform.Cautions()...)
+	doc.Cautions = append(doc.Cautions, outsideMessages(outsideOf(res))...)
+	if note := report.TruncationNote(res.Waveform); note != "" {
+		doc.Cautions = append(doc.Cautions, note)
+	}
+	for _, c := range res.Comparison {
+		doc.Comparison = append(doc.Comparison, comparisonJSON{c.Order, number(c.Estimate), number(c.Waveform), number(c.DiffDB), c.Trustable})
+	}
+	if two := res.TwoTone; two != nil {
+		doc.Waveform.addTwoTone(two)
+		doc.Cautions = append(doc.Cautions, two.Cautions()...)
+		if note := report.TruncationNote(two); note != "" {
+			doc.Cautions = append(doc.Cautions, note)
+		}
+	}
+	if res.Validity != nil {
+		doc.setValidity(res.Validity)
+	}
+	if res.Compressed {
+		doc.CompressionDBm = number(res.CompressionDBm)
+	}
+	for _, p := range res.Sweep {
+		doc.LevelSweep = append(doc.LevelSweep, levelJSON{number(p.LevelDBm), waveformJSONOf(p.Steady)})
+	}
+	doc.Cautions = append(doc.Cautions, report.SweepCautions(res.Sweep)...)
+	if res.Transfer != nil {
+		doc.Transfer = transferJSONOf(res.Transfer, res.TangentialDBm)
+	}
+	for _, p := range res.TwoToneSweep {
+		w := waveformJSONOf(p.Steady)
+		w.addTwoTone(p.Steady)
+		doc.TwoToneSweep = append(doc.TwoToneSweep, levelJSON{number(p.LevelDBm), w})
+	}
+	if res.TwoToneSweep != nil && res.InterceptErr == nil {
+		doc.MeasuredIntercept = interceptJSONOf(res.Intercept)
+	}
+	return doc
+}
+
+// writeDistortionText prints a distortion run's tables.
+func writeDistortionText(out io.Writer, s *distortionSetup, res *plan.Distortion) {
+	writeDistortionHeader(out, s)
+	writeEstimate(out, res.Estimate)
+	writeJunctionDrive(out, s, res.Estimate)
+	writeContributions(out, res.Estimate)
+	st := res.Waveform
+	writeWaveform(out, st)
+	if note := report.TruncationNote(st); note != "" {
+		fmt.Fprintf(out, "  %s\n", note)
+	}
+	writeCautions(out, st.Cautions())
+	writeOutside(out, outsideOf(res))
+	writeComparison(out, res.Comparison, res.Validity)
+	if two := res.TwoTone; two != nil {
+		writeTwoTone(out, two, res.Estimate)
+		writeCautions(out, two.Cautions())
+	}
+	if len(res.Sweep) > 0 {
+		writeLevelSweep(out, res.Sweep, res.OneTone, res.CompressionDBm, res.Compressed)
+		writeCautions(out, report.SweepCautions(res.Sweep))
+	}
+	if res.Transfer != nil {
+		writeTransfer(out, res.Transfer, res.TangentialDBm)
+	}
+	if len(res.TwoToneSweep) > 0 {
+		writeTwoToneSweep(out, res.TwoToneSweep, res.Intercept, res.InterceptErr, res.Estimate)
+	}
 }
 
 // writeTransfer prints a detector's transfer curve and its square-law
 // range.
-func writeTransfer(w io.Writer, t *ac.Transfer, tssDBm float64) {
+func writeTransfer(w io.Writer, t *steady.Transfer, tssDBm float64) {
 	tb := &report.Table{Caption: "Detector transfer curve (waveform)", Header: []string{"input", "output DC change", "from square law"}}
 	for _, p := range t.Points {
 		tb.Add(fmt.Sprintf("%.1f dBm", p.LevelDBm), si.Format(p.Volts, "V", 4), fmt.Sprintf("%+.3f dB", p.DeviationDB))
@@ -504,7 +508,7 @@ func writeContributions(w io.Writer, e *ac.Estimate) {
 	report.ContributionTable(e).WriteText(w)
 }
 
-func writeWaveform(w io.Writer, s *ac.Steady) {
+func writeWaveform(w io.Writer, s *steady.State) {
 	t, note := report.WaveformTable(s)
 	t.WriteText(w)
 	fmt.Fprintf(w, "  %s\n", note)
@@ -513,7 +517,7 @@ func writeWaveform(w io.Writer, s *ac.Steady) {
 	}
 }
 
-func writeComparison(w io.Writer, cs []ac.Comparison, v *ac.Validity) {
+func writeComparison(w io.Writer, cs []steady.Comparison, v *steady.Validity) {
 	t, note := report.ComparisonTable(cs, v)
 	t.WriteText(w)
 	if note != "" {
@@ -522,7 +526,7 @@ func writeComparison(w io.Writer, cs []ac.Comparison, v *ac.Validity) {
 	fmt.Fprintln(w)
 }
 
-func writeLevelSweep(w io.Writer, pts []ac.LevelPoint, e *ac.Estimate, comp float64, ok bool) {
+func writeLevelSweep(w io.Writer, pts []steady.LevelPoint, e *ac.Estimate, comp float64, ok bool) {
 	report.LevelSweepTable(pts).WriteText(w)
 	if ok {
 		fmt.Fprintf(w, "  1 dB compression at %.2f dBm input (waveform)\n", comp)
@@ -606,28 +610,6 @@ func writeCautions(w io.Writer, c []string) {
 	for _, x := range c {
 		fmt.Fprintf(w, "  ! %s\n", x)
 	}
-}
-
-// sweepCautions returns, for each diode and kind of overstress met in a
-// level sweep, the lowest level at which it appears.
-func sweepCautions(pts []ac.LevelPoint) []string {
-	type key struct {
-		diode string
-		kind  ac.StressKind
-	}
-	seen := map[key]bool{}
-	var out []string
-	for _, p := range pts {
-		for _, c := range p.Steady.StressCautions() {
-			k := key{c.Diode, c.Kind}
-			if seen[k] {
-				continue
-			}
-			seen[k] = true
-			out = append(out, fmt.Sprintf("from %.1f dBm: %s", p.LevelDBm, c.Message))
-		}
-	}
-	return out
 }
 
 // writeJunctionDrive prints each junction's drive x = |v|/(n V_T) at the

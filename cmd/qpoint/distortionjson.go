@@ -5,6 +5,7 @@ import (
 	"math/cmplx"
 
 	"qpoint/ac"
+	"qpoint/ac/steady"
 )
 
 type contributionJSON struct {
@@ -59,7 +60,7 @@ type transferPointJSON struct {
 	DeviationDB number `json:"deviation_db"`
 }
 
-func transferJSONOf(t *ac.Transfer, tssDBm float64) *transferJSON {
+func transferJSONOf(t *steady.Transfer, tssDBm float64) *transferJSON {
 	j := &transferJSON{Sensitivity: number(t.SensitivityVPerW), LowSlope: number(t.LowSlope), HighSlope: number(t.HighSlope),
 		DeviationDBm: ptr(t.DeviationDBm), TangentialDBm: ptr(tssDBm), DynamicRange: ptr(t.DynamicRangeDB(tssDBm))}
 	for _, p := range t.Points {
@@ -134,7 +135,7 @@ func ptr(v float64) *number { n := number(v); return &n }
 // setValidity records the validity search: the limit when one was found
 // (or the highest level at which the estimates held, with
 // validity_limit_found false), else null with a note that says why.
-func (j *distortionJSON) setValidity(v *ac.Validity) {
+func (j *distortionJSON) setValidity(v *steady.Validity) {
 	j.ValidityLimitDBm = ptr(v.LevelDBm)
 	j.ValidityLimitFound = v.Found()
 	if !v.Found() {
@@ -177,7 +178,7 @@ func estimateJSONOf(e *ac.Estimate) *estimateJSON {
 	return j
 }
 
-func waveformJSONOf(s *ac.Steady) *waveformJSON {
+func waveformJSONOf(s *steady.State) *waveformJSON {
 	j := &waveformJSON{Method: s.Method, THDPercent: number(s.THDPercent), Iterations: s.Iterations, Residual: number(s.Residual), Diodes: []stressJSON{}}
 	for _, d := range s.Stress {
 		j.Diodes = append(j.Diodes, stressJSON{d.Name, number(d.PeakCurrent), number(d.PeakReverseVoltage), number(d.MeanPower)})

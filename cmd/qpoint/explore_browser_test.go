@@ -63,7 +63,7 @@ func TestExploreInBrowser(t *testing.T) {
 	served := make(chan error, 1)
 	serveCtx, stopServing := context.WithCancel(ctx)
 	go func() {
-		served <- runExplore(serveCtx, io.Discard, io.Discard, exploreOptions{file: file, circuitOut: saved, reportOut: reported}, func(u string) { ready <- u })
+		served <- runExplore(serveCtx, &fileGuard{}, io.Discard, io.Discard, exploreOptions{file: file, circuitOut: saved, reportOut: reported}, func(u string) { ready <- u })
 	}()
 	defer func() {
 		stopServing()

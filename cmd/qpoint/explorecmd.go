@@ -17,9 +17,7 @@ import (
 	"github.com/spf13/cobra"
 
 	"qpoint/ac/plan"
-	"qpoint/bias/circuit"
 	"qpoint/plots/explore"
-	"qpoint/plots/report"
 )
 
 // exploreOptions are the explore command's flags.
@@ -59,7 +57,7 @@ The command runs until interrupted (Ctrl-C).`,
 		Args: exactFile,
 		RunE: func(cmd *cobra.Command, args []string) error {
 			o.file = args[0]
-			return runExplore(context.Background(), cmd.OutOrStdout(), cmd.ErrOrStderr(), o, nil)
+			return runExplore(context.Background(), guardOf(cmd), cmd.OutOrStdout(), cmd.ErrOrStderr(), o, nil)
 		},
 	}
 	cmd.Flags().StringVar(&o.listen, "listen", "", "loopback address and port to serve on, e.g. 127.0.0.1:8470 (default: 127.0.0.1 and a free port)")
@@ -70,10 +68,11 @@ The command runs until interrupted (Ctrl-C).`,
 	return cmd
 }
 
-// runExplore serves the explorer for o.file until ctx is done. ready,
-// when not nil, is called with the page's URL once the server listens.
-func runExplore(ctx context.Context, out, errw io.Writer, o exploreOptions, ready func(url string)) error {
-	if _, err := loadCircuit(errw, o.file, o.sets, ""); err != nil {
+// runExplore serves the explorer for o.file until ctx is done, its files
+// guarded by g. ready, when not nil, is called with the page's URL once
+// the server listens.
+func runExplore(ctx context.Context, g *fileGuard, out, errw io.Writer, o exploreOptions, ready func(url string)) error {
+	if _, err := g.loadCircuit(errw, o.file, o.sets, ""); err != nil {
 		return err
 	}
 	src, err := os.ReadFile(o.file)
@@ -94,7 +93,7 @@ func runExplore(ctx context.Context, out, errw io.Writer, o exploreOptions, read
 	if o.reportOut == "" {
 		o.reportOut = stem + ".explored.html"
 	}
-	if err := checkOutputsEarly("", o.circuitOut, o.reportOut); err != nil {
+	if err := g.checkOutputsEarly("", o.circuitOut, o.reportOut); err != nil {
 		return err
 	}
 	addr, err := loopbackAddress(o.listen)
@@ -112,22 +111,9 @@ func runExplore(ctx context.Context, out, errw io.Writer, o exploreOptions, read
 	h := explore.Handler(s, explore.Settings{
 		Hosts:       []string{bound, "localhost:" + port},
 		CircuitPath: o.circuitOut,
-		SaveCircuit: func(data []byte) error {
-			return writeFileAtomic(o.circuitOut, func(w io.Writer) error {
-				_, err := w.Write(data)
-				return err
-			})
-		},
-		ReportPath: o.reportOut,
-		SaveReport: func(c *circuit.Circuit) error {
-			// The report is still assembled by the report command's
-			// buildReport (reportcmd.go), with the values set in c.
-			doc, err := buildReport(c, "")
-			if err != nil {
-				return err
-			}
-			return writeFileAtomic(o.reportOut, func(w io.Writer) error { return report.Write(w, doc) })
-		},
+		SaveCircuit: func(data []byte) error { return writeWhole(g, o.circuitOut, data) },
+		ReportPath:  o.reportOut,
+		SaveReport:  func(data []byte) error { return writeWhole(g, o.reportOut, data) },
 	})
 	srv := &http.Server{Handler: h, ReadHeaderTimeout: 10 * time.Second, MaxHeaderBytes: 16 << 10, ErrorLog: nil}
 	fmt.Fprintf(out, "qpoint explore: %s\n  open %s in a browser on this computer; Ctrl-C stops the server\n  the save button writes %s, the report button %s\n",
@@ -150,6 +136,14 @@ func runExplore(ctx context.Context, out, errw io.Writer, o exploreOptions, read
 	stop, cancel := context.WithTimeout(context.Background(), 5*time.Second)
 	defer cancel()
 	return srv.Shutdown(stop)
+}
+
+// writeWhole writes data to path whole or not at all.
+func writeWhole(g *fileGuard, path string, data []byte) error {
+	return g.writeFileAtomic(path, func(w io.Writer) error {
+		_, err := w.Write(data)
+		return err
+	})
 }
 
 // loopbackAddress checks --listen: a loopback address (127.0.0.0/8, ::1

@@ -71,7 +71,7 @@ func TestExploreServes(t *testing.T) {
 	var out bytes.Buffer
 	dir := t.TempDir()
 	go func() {
-		done <- runExplore(ctx, &out, io.Discard, exploreOptions{file: demoFile("limiter"),
+		done <- runExplore(ctx, &fileGuard{}, &out, io.Discard, exploreOptions{file: demoFile("limiter"),
 			circuitOut: filepath.Join(dir, "a.yaml"), reportOut: filepath.Join(dir, "a.html")}, func(u string) { ready <- u })
 	}()
 	var url string

@@ -2,6 +2,7 @@ package main
 
 import (
 	"bufio"
+	"context"
 	"errors"
 	"fmt"
 	"io"
@@ -10,44 +11,74 @@ import (
 	"path/filepath"
 	"sync"
 	"syscall"
+
+	"github.com/spf13/cobra"
 )
 
-// inputs lists the files the current command reads, so that no output is
-// ever written over one of them.
-var inputs []string
+// fileGuard holds what one run of the command knows about its files: the
+// inputs it reads, so that no output is ever written over one of them,
+// and the temporary files being written, so that an interrupt can remove
+// them (removePartials) instead of leaving them beside the outputs. Every
+// output goes through its methods. run makes one per run and hands it to
+// the commands in their context (guardOf).
+type fileGuard struct {
+	inputs []string
 
-// partials holds the temporary files writeFileAtomic is writing, so that
-// an interrupt can remove them (removePartials) instead of leaving them
-// beside the outputs.
-var partials = struct {
-	sync.Mutex
-	names map[string]bool
-}{names: map[string]bool{}}
-
-func addPartial(name string) {
-	partials.Lock()
-	partials.names[name] = true
-	partials.Unlock()
+	mu       sync.Mutex
+	partials map[string]bool
 }
 
-func dropPartial(name string) {
-	partials.Lock()
-	delete(partials.names, name)
-	partials.Unlock()
+type guardKey struct{}
+
+// withGuard returns ctx carrying g.
+func withGuard(ctx context.Context, g *fileGuard) context.Context {
+	return context.WithValue(ctx, guardKey{}, g)
+}
+
+// guardOf returns the file guard of the run cmd belongs to. A command
+// run outside newRoot's tree (a test that builds one alone) gets a guard
+// of its own, kept on the command's context from then on.
+func guardOf(cmd *cobra.Command) *fileGuard {
+	if g, ok := cmd.Context().Value(guardKey{}).(*fileGuard); ok {
+		return g
+	}
+	g := &fileGuard{}
+	cmd.SetContext(withGuard(cmd.Context(), g))
+	return g
+}
+
+// read records path as an input of the run.
+func (g *fileGuard) read(path string) {
+	g.inputs = append(g.inputs, path)
+}
+
+func (g *fileGuard) addPartial(name string) {
+	g.mu.Lock()
+	if g.partials == nil {
+		g.partials = map[string]bool{}
+	}
+	g.partials[name] = true
+	g.mu.Unlock()
+}
+
+func (g *fileGuard) dropPartial(name string) {
+	g.mu.Lock()
+	delete(g.partials, name)
+	g.mu.Unlock()
 }
 
 // removePartials deletes every temporary file still being written and
 // returns how many it removed. It runs on the way out: a write still going
 // fails at its rename, and the process exits.
-func removePartials() int {
-	partials.Lock()
-	defer partials.Unlock()
+func (g *fileGuard) removePartials() int {
+	g.mu.Lock()
+	defer g.mu.Unlock()
 	n := 0
-	for name := range partials.names {
+	for name := range g.partials {
 		if os.Remove(name) == nil {
 			n++
 		}
-		delete(partials.names, name)
+		delete(g.partials, name)
 	}
 	return n
 }
@@ -57,14 +88,14 @@ func removePartials() int {
 // with the shell's status for that signal (128 + its number). Finished
 // outputs are whole already; unfinished ones are left as they were before
 // the command ran. It returns a function that stops listening.
-func exitOnInterrupt(stderr io.Writer) (stop func()) {
+func (g *fileGuard) exitOnInterrupt(stderr io.Writer) (stop func()) {
 	ch := make(chan os.Signal, 1)
 	signal.Notify(ch, os.Interrupt, syscall.SIGTERM, syscall.SIGHUP)
 	done := make(chan struct{})
 	go func() {
 		select {
 		case sig := <-ch:
-			removePartials()
+			g.removePartials()
 			fmt.Fprintf(stderr, "\nqpoint: %v; outputs not yet written were left as they were\n", sig)
 			code := 130
 			if s, ok := sig.(syscall.Signal); ok {
@@ -92,8 +123,8 @@ func exitOnInterrupt(stderr io.Writer) (stop func()) {
 // written through, as a stream that cannot be whole or nothing; anything
 // else (a directory, a socket, a block device, a dangling link) is
 // refused.
-func writeFileAtomic(path string, write func(w io.Writer) error) (err error) {
-	if err := refuseInput(path); err != nil {
+func (g *fileGuard) writeFileAtomic(path string, write func(w io.Writer) error) (err error) {
+	if err := g.refuseInput(path); err != nil {
 		return err
 	}
 	target, through, err := outputTarget(path)
@@ -112,8 +143,8 @@ func writeFileAtomic(path string, write func(w io.Writer) error) (err error) {
 	if err != nil {
 		return inputError(fmt.Errorf("cannot write %s: %w", path, err))
 	}
-	addPartial(tmp.Name())
-	defer dropPartial(tmp.Name())
+	g.addPartial(tmp.Name())
+	defer g.dropPartial(tmp.Name())
 	// Until the rename, the temporary file goes away on every way out,
 	// a panic in write included (run recovers it, far from here).
 	renamed := false
@@ -207,13 +238,13 @@ func writeThrough(path, target string, write func(w io.Writer) error) error {
 // path), each must be a place writeFileAtomic can write (a regular file,
 // a link to one, a device or pipe, or a new name), and each one's folder
 // must be a folder or creatable. Empty paths are skipped.
-func refuseInputs(paths ...string) error {
+func (g *fileGuard) refuseInputs(paths ...string) error {
 	seen := map[string]string{}
 	for _, p := range paths {
 		if p == "" {
 			continue
 		}
-		if err := refuseInput(p); err != nil {
+		if err := g.refuseInput(p); err != nil {
 			return err
 		}
 		target, _, err := outputTarget(p)
@@ -243,8 +274,8 @@ func refuseInputs(paths ...string) error {
 // than after a long analysis or after another output was replaced. The
 // files a figure folder will hold are checked again, by name, before any
 // is written.
-func checkOutputsEarly(plotsDir string, files ...string) error {
-	if err := refuseInputs(files...); err != nil {
+func (g *fileGuard) checkOutputsEarly(plotsDir string, files ...string) error {
+	if err := g.refuseInputs(files...); err != nil {
 		return err
 	}
 	if plotsDir == "" {
@@ -277,7 +308,7 @@ func refuseFolder(dir, output string) error {
 }
 
 // refuseInput fails when path names one of the command's input files.
-func refuseInput(path string) error {
+func (g *fileGuard) refuseInput(path string) error {
 	out, err := os.Stat(path)
 	if errors.Is(err, os.ErrNotExist) {
 		return nil
@@ -285,7 +316,7 @@ func refuseInput(path string) error {
 	if err != nil {
 		return nil // let the write report it
 	}
-	for _, in := range inputs {
+	for _, in := range g.inputs {
 		if st, err := os.Stat(in); err == nil && os.SameFile(st, out) {
 			return inputError(fmt.Errorf("refusing to write %s: it is the input file; choose another output name", path))
 		}

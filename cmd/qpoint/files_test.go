@@ -112,7 +112,6 @@ func TestWriteInterrupted(t *testing.T) {
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
-			inputs = nil
 			dir := t.TempDir()
 			path := filepath.Join(dir, "out.csv")
 			if err := os.WriteFile(path, []byte(old), 0o600); err != nil {
@@ -125,7 +124,7 @@ func TestWriteInterrupted(t *testing.T) {
 						p = true
 					}
 				}()
-				err = writeFileAtomic(path, c.write)
+				err = (&fileGuard{}).writeFileAtomic(path, c.write)
 				return false
 			}()
 			if panicked != c.panic {
@@ -162,9 +161,8 @@ func TestWriteInterrupted(t *testing.T) {
 // TestWriteNoDirectory: writing into a missing directory fails, naming the
 // path, and creates nothing.
 func TestWriteNoDirectory(t *testing.T) {
-	inputs = nil
 	dir := t.TempDir()
-	err := writeFileAtomic(filepath.Join(dir, "missing", "out.csv"), func(w io.Writer) error {
+	err := (&fileGuard{}).writeFileAtomic(filepath.Join(dir, "missing", "out.csv"), func(w io.Writer) error {
 		_, err := io.WriteString(w, "a,b\n")
 		return err
 	})
@@ -308,8 +306,9 @@ func TestInterruptRemovesPartials(t *testing.T) {
 	}
 	started, release := make(chan struct{}), make(chan struct{})
 	finished := make(chan error)
+	g := &fileGuard{}
 	go func() {
-		finished <- writeFileAtomic(out, func(w io.Writer) error {
+		finished <- g.writeFileAtomic(out, func(w io.Writer) error {
 			fmt.Fprintln(w, "new, half")
 			close(started)
 			<-release
@@ -317,7 +316,7 @@ func TestInterruptRemovesPartials(t *testing.T) {
 		})
 	}()
 	<-started
-	if n := removePartials(); n != 1 {
+	if n := g.removePartials(); n != 1 {
 		t.Errorf("removed %d temporary files, want 1", n)
 	}
 	close(release)
@@ -331,5 +330,48 @@ func TestInterruptRemovesPartials(t *testing.T) {
 		if strings.HasSuffix(n, ".partial") {
 			t.Errorf("a temporary file is left: %s", n)
 		}
+	}
+}
+
+// TestGuardPerRun: the inputs a run reads are its own. A file one run
+// read is refused as that run's output, and is a fine output for the
+// next run, which did not read it; run gives every run a fresh guard.
+func TestGuardPerRun(t *testing.T) {
+	dir := t.TempDir()
+	in := filepath.Join(dir, "circuit.yaml")
+	if err := os.WriteFile(in, []byte("old\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	write := func(w io.Writer) error { _, err := io.WriteString(w, "new\n"); return err }
+	first := &fileGuard{}
+	first.read(in)
+	if err := first.writeFileAtomic(in, write); err == nil || !strings.Contains(err.Error(), "input file") {
+		t.Errorf("writing over the run's own input: error %v, want a refusal", err)
+	}
+	if got, _ := os.ReadFile(in); string(got) != "old\n" {
+		t.Errorf("the input changed to %q", got)
+	}
+	if err := (&fileGuard{}).writeFileAtomic(in, write); err != nil {
+		t.Errorf("a run that did not read the file: %v", err)
+	}
+	// Through the command: the demo circuit as its own CSV output is
+	// refused, and the next run in the same process is not affected.
+	circuitPath := filepath.Join(dir, "attenuator.yaml")
+	src, err := os.ReadFile(filepath.Join(demoDir, "attenuator.yaml"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := os.WriteFile(circuitPath, src, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	if _, stderr, code := runCLI(t, "response", circuitPath, "--points", "3", "--csv", circuitPath); code == exitOK || !strings.Contains(stderr, "input file") {
+		t.Errorf("response writing over its circuit: exit %d, %q", code, stderr)
+	}
+	out := filepath.Join(dir, "out.csv")
+	if _, stderr, code := runCLI(t, "response", circuitPath, "--points", "3", "--csv", out); code != exitOK {
+		t.Errorf("second run: exit %d, %q", code, stderr)
+	}
+	if got, _ := os.ReadFile(circuitPath); !bytes.Equal(got, src) {
+		t.Error("the circuit file changed")
 	}
 }

@@ -67,7 +67,7 @@ Exit status: 0 fitted, 1 the fit failed, 2 bad input or usage.`,
 			}
 			return nil
 		},
-		RunE: func(cmd *cobra.Command, args []string) error { return runFit(cmd.OutOrStdout(), &fl) },
+		RunE: func(cmd *cobra.Command, args []string) error { return runFit(guardOf(cmd), cmd.OutOrStdout(), &fl) },
 	}
 	f := cmd.Flags()
 	f.StringArrayVar(&fl.iv, "iv", nil, "I–V points (CSV), FILE or FILE@TEMPERATURE; repeat for several files")
@@ -96,8 +96,8 @@ type fitInput struct {
 	name     string
 }
 
-func runFit(w io.Writer, fl *fitFlags) error {
-	in, err := readFitInput(fl)
+func runFit(g *fileGuard, w io.Writer, fl *fitFlags) error {
+	in, err := readFitInput(g, fl)
 	if err != nil {
 		return err
 	}
@@ -110,7 +110,7 @@ func runFit(w io.Writer, fl *fitFlags) error {
 		return analysisError(err)
 	}
 	if fl.plotDir != "" {
-		if err := writeFigures(fl.plotDir, plots.FitFigures(r)); err != nil {
+		if err := g.writeFigures(fl.plotDir, plots.FitFigures(r)); err != nil {
 			return err
 		}
 	}
@@ -121,7 +121,7 @@ func runFit(w io.Writer, fl *fitFlags) error {
 	return nil
 }
 
-func readFitInput(fl *fitFlags) (*fitInput, error) {
+func readFitInput(g *fileGuard, fl *fitFlags) (*fitInput, error) {
 	if len(fl.iv) == 0 {
 		return nil, inputError(fmt.Errorf("fit needs I–V points: --iv FILE (a CSV with voltage and current columns); e.g. qpoint fit --iv testdata/fit/detector_iv.csv"))
 	}
@@ -149,7 +149,7 @@ func readFitInput(fl *fitFlags) (*fitInput, error) {
 		in.settings.CurrentFloor = floor
 	}
 	for _, spec := range fl.iv {
-		f, err := readMeasurementFile("--iv", spec, measured.CurrentVoltage, len(in.data.Current))
+		f, err := g.readMeasurementFile("--iv", spec, measured.CurrentVoltage, len(in.data.Current))
 		if err != nil {
 			return nil, err
 		}
@@ -157,7 +157,7 @@ func readFitInput(fl *fitFlags) (*fitInput, error) {
 		in.data.Current = append(in.data.Current, f.table.Points...)
 	}
 	for _, spec := range fl.cv {
-		f, err := readMeasurementFile("--cv", spec, measured.CapacitanceVoltage, len(in.data.Capacitance))
+		f, err := g.readMeasurementFile("--cv", spec, measured.CapacitanceVoltage, len(in.data.Capacitance))
 		if err != nil {
 			return nil, err
 		}
@@ -176,7 +176,7 @@ func readFitInput(fl *fitFlags) (*fitInput, error) {
 
 // readMeasurementFile reads FILE or FILE@TEMPERATURE and checks that it
 // holds the kind of points its flag asks for.
-func readMeasurementFile(flag, spec string, kind measured.Kind, offset int) (*fitFile, error) {
+func (g *fileGuard) readMeasurementFile(flag, spec string, kind measured.Kind, offset int) (*fitFile, error) {
 	path, tempK := spec, 0.0
 	if _, err := os.Stat(spec); err != nil {
 		if at := strings.LastIndexByte(spec, '@'); at > 0 {
@@ -187,7 +187,7 @@ func readMeasurementFile(flag, spec string, kind measured.Kind, offset int) (*fi
 			path, tempK = spec[:at], t
 		}
 	}
-	inputs = append(inputs, path)
+	g.read(path)
 	fh, err := os.Open(path)
 	if err != nil {
 		return nil, inputError(fmt.Errorf("flag %s: cannot read the measurement file: %w", flag, err))

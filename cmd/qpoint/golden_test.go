@@ -16,7 +16,7 @@ var elapsed = regexp.MustCompile(`steps in [0-9.]+[µmn]?s,`)
 
 var updateGolden = flag.Bool("update", false, "rewrite the command goldens in testdata/golden from the current output")
 
-// TestCommandGoldens holds every command's output on the four demos to
+// TestCommandGoldens holds every command's output on the five demos to
 // the bytes in testdata/golden: the tables, JSON, CSV and Touchstone
 // files and the report. A change that is meant shows here first; look at
 // the difference, then rewrite them with
@@ -27,7 +27,7 @@ func TestCommandGoldens(t *testing.T) {
 		t.Skip("every command on every demo")
 	}
 	dir := t.TempDir()
-	for _, name := range []string{"detector", "attenuator", "limiter", "mixer"} {
+	for _, name := range []string{"detector", "attenuator", "limiter", "mixer", "matched_detector"} {
 		file := filepath.Join(demoDir, name+".yaml")
 		csv := filepath.Join(dir, name+".csv")
 		ts := filepath.Join(dir, name+".s2p")

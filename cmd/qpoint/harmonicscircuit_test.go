@@ -9,6 +9,7 @@ import (
 	"testing"
 
 	"qpoint/ac"
+	"qpoint/ac/steady"
 	"qpoint/bias"
 	"qpoint/bias/circuit"
 	"qpoint/smallsignal"
@@ -31,7 +32,7 @@ func TestHarmonicsAgainstCircuit(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	st, err := ac.SteadyState(nw, ac.Drive{Input: 0, Output: ac.Output{Port: 1}, FrequencyHz: 100e6, EMF: ac.DBmToEMF(0, 50)}, ac.SteadySettings{Harmonics: 9})
+	st, err := steady.Solve(nw, ac.Drive{Input: 0, Output: ac.Output{Port: 1}, FrequencyHz: 100e6, EMF: ac.DBmToEMF(0, 50)}, steady.Settings{Harmonics: 9})
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -8,13 +8,13 @@ import (
 	"os"
 	"strconv"
 
-	"qpoint/ac"
 	"qpoint/bias/si"
 	"qpoint/plots/report"
 
 	"github.com/spf13/cobra"
 
 	"qpoint/ac/measure"
+	"qpoint/ac/steady"
 	"qpoint/bias/circuit"
 )
 
@@ -90,6 +90,7 @@ func exactWaveform(cmd *cobra.Command, args []string) error {
 }
 
 func runWaveformHarmonics(cmd *cobra.Command, path string, fl *waveformFlags) error {
+	g := guardOf(cmd)
 	var opts measure.CSVOptions
 	if fl.sampleRate != "" {
 		v, err := circuit.ParseBounded(fl.sampleRate, circuit.Frequency)
@@ -123,7 +124,7 @@ func runWaveformHarmonics(cmd *cobra.Command, path string, fl *waveformFlags) er
 	}
 	s.Harmonics = fl.harmonics
 
-	w, err := readWaveformFile(path, opts)
+	w, err := g.readWaveformFile(path, opts)
 	if err != nil {
 		return err
 	}
@@ -135,10 +136,10 @@ func runWaveformHarmonics(cmd *cobra.Command, path string, fl *waveformFlags) er
 	case err != nil:
 		return analysisError(fmt.Errorf("%s: %w", path, err))
 	}
-	var pred *ac.Steady
+	var pred *steady.State
 	if fl.circuitPath != "" {
 		k := min(fl.harmonics, 25)
-		if pred, err = predictHarmonics(cmd.ErrOrStderr(), fl, r.FundamentalHz, k); err != nil {
+		if pred, err = predictHarmonics(g, cmd.ErrOrStderr(), fl, r.FundamentalHz, k); err != nil {
 			return err
 		}
 	}
@@ -159,15 +160,15 @@ func runWaveformHarmonics(cmd *cobra.Command, path string, fl *waveformFlags) er
 
 // predictHarmonics solves the circuit's steady state at the measured
 // fundamental with the flags' (or the file's) drive.
-func predictHarmonics(warn io.Writer, fl *waveformFlags, fundamentalHz float64, k int) (*ac.Steady, error) {
-	ds, err := resolveDistortion(warn, fl.circuitPath, &distortionFlags{input: fl.input, output: fl.output, level: fl.level, sets: fl.sets,
+func predictHarmonics(g *fileGuard, warn io.Writer, fl *waveformFlags, fundamentalHz float64, k int) (*steady.State, error) {
+	ds, err := resolveDistortion(g, warn, fl.circuitPath, &distortionFlags{input: fl.input, output: fl.output, level: fl.level, sets: fl.sets,
 		frequency: strconv.FormatFloat(fundamentalHz, 'g', -1, 64) + "Hz"})
 	if err != nil {
 		return nil, err
 	}
 	d := ds.drive
 	d.SecondToneHz = 0
-	st, err := ac.SteadyState(ds.nw, d, ac.SteadySettings{Harmonics: k, Samples: max(255, 8*k+1)})
+	st, err := steady.Solve(ds.nw, d, steady.Settings{Harmonics: k, Samples: max(255, 8*k+1), Method: steadyFor(ds.nw)})
 	if err != nil {
 		return nil, analysisError(fmt.Errorf("prediction from %s at %s: %w", fl.circuitPath, si.Format(fundamentalHz, "Hz", 6), err))
 	}
@@ -176,7 +177,7 @@ func predictHarmonics(warn io.Writer, fl *waveformFlags, fundamentalHz float64, 
 
 // writePredictionComparison sets measured harmonics beside the predicted
 // ones, each relative to its own fundamental.
-func writePredictionComparison(w io.Writer, circuitPath string, r *measure.Result, p *ac.Steady) {
+func writePredictionComparison(w io.Writer, circuitPath string, r *measure.Result, p *steady.State) {
 	t := &report.Table{Caption: "Measured beside predicted (" + circuitPath + ")", Header: []string{"order", "measured", "predicted", "measured dBc", "predicted dBc", "difference"}}
 	mf, pf := 0.0, p.Output[1].Amplitude
 	for _, h := range r.Harmonics {
@@ -205,8 +206,8 @@ func writePredictionComparison(w io.Writer, circuitPath string, r *measure.Resul
 
 // readWaveformFile reads a waveform file; every failure is an input error,
 // placed as FILE:LINE:COL.
-func readWaveformFile(path string, opts measure.CSVOptions) (*measure.Waveform, error) {
-	inputs = append(inputs, path)
+func (g *fileGuard) readWaveformFile(path string, opts measure.CSVOptions) (*measure.Waveform, error) {
+	g.read(path)
 	f, err := os.Open(path)
 	if err != nil {
 		return nil, inputError(fmt.Errorf("cannot read the waveform file: %w", err))

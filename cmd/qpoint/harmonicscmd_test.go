@@ -20,7 +20,6 @@ const waveformDir = "../../testdata/waveforms"
 // with the command added here, mapping errors to exit codes as run does.
 func runHarmonicsCLI(t *testing.T, args ...string) (stdout, stderr string, code int) {
 	t.Helper()
-	inputs = nil
 	var out, errb bytes.Buffer
 	args = append([]string{"harmonics"}, args...)
 	root := newRoot(&out, &errb)

@@ -103,6 +103,8 @@ type biasJSON struct {
 	Sources     []sourceJSON    `json:"sources"`
 	Inductors   []sourceJSON    `json:"inductors"`
 	Warnings    []warningJSON   `json:"warnings"`
+	// Distributed lists the lines and blocks (omitted without them).
+	Distributed []linePartJSON `json:"distributed,omitempty"`
 	Solver      struct {
 		Strategy   string        `json:"strategy"`
 		Iterations int           `json:"iterations"`
@@ -147,6 +149,7 @@ func biasDocument(p *bias.Point) *biasJSON {
 	for _, w := range p.Warnings {
 		d.Warnings = append(d.Warnings, warningJSON{w.Part, w.Kind.String(), w.Message})
 	}
+	d.Distributed = lineParts(p.Circuit, p)
 	d.Solver.Strategy = p.Stats.Strategy.String()
 	d.Solver.Iterations = p.Stats.Iterations
 	d.Solver.Residual = number(p.Stats.Residual)

@@ -5,6 +5,7 @@
 package main
 
 import (
+	"context"
 	"errors"
 	"fmt"
 	"io"
@@ -37,34 +38,23 @@ func inputError(err error) error    { return &exitError{exitInput, err} }
 func analysisError(err error) error { return &exitError{exitAnalysis, err} }
 
 func main() {
-	tuneGC()
-	stop := exitOnInterrupt(os.Stderr)
-	code := run(os.Args[1:], os.Stdout, os.Stderr)
+	tuneGC(nil)
+	g := &fileGuard{}
+	stop := g.exitOnInterrupt(os.Stderr)
+	code := runGuarded(g, os.Args[1:], os.Stdout, os.Stderr)
 	stop()
 	os.Exit(code)
-}
-
-// gcPercent is the garbage collector's target the command runs with
-// unless the user set GOGC or GOMEMLIMIT: the heap may grow to five times
-// what is live before a collection. The collector's default (100) cost a
-// parallel study a fifth of its two-worker scaling in BENCHMARKS.md's
-// measurement (1.55 against 1.92 on the attenuator study), while switching
-// it off until 1 GiB, as earlier versions did, let `qpoint demo` peak at
-// 590 MB for no gain in speed. At 400 the demo peaks near 37 MB.
-const gcPercent = 400
-
-// tuneGC sets the collector's target to gcPercent, unless the user set
-// GOGC or GOMEMLIMIT.
-func tuneGC() {
-	if os.Getenv("GOGC") != "" || os.Getenv("GOMEMLIMIT") != "" {
-		return
-	}
-	debug.SetGCPercent(gcPercent)
 }
 
 // run executes the command line args and returns the exit code. No panic
 // escapes: one is reported as an internal error.
 func run(args []string, stdout, stderr io.Writer) (code int) {
+	return runGuarded(&fileGuard{}, args, stdout, stderr)
+}
+
+// runGuarded is run with the file guard g, which main also hands to the
+// interrupt handler.
+func runGuarded(g *fileGuard, args []string, stdout, stderr io.Writer) (code int) {
 	defer func() {
 		if r := recover(); r != nil {
 			fmt.Fprintf(stderr, "qpoint: internal error: %v\nPlease report this with the circuit file that caused it.\n", r)
@@ -75,7 +65,7 @@ func run(args []string, stdout, stderr io.Writer) (code int) {
 	stderr = &escapingWriter{w: stderr}
 	root := newRoot(out, stderr)
 	root.SetArgs(args)
-	err := root.Execute()
+	err := root.ExecuteContext(withGuard(context.Background(), g))
 	if err == nil && out.err != nil {
 		// A table or document that did not reach its reader is a
 		// failure, whatever the analysis did (a closed or full output).

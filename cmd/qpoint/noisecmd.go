@@ -17,7 +17,6 @@ import (
 	"qpoint/ac/plan"
 	"qpoint/bias"
 	"qpoint/bias/circuit"
-	"qpoint/bias/si"
 	"qpoint/plots"
 	"qpoint/plots/report"
 	"qpoint/smallsignal"
@@ -195,14 +194,15 @@ func resolveNoiseFor(c *circuit.Circuit, fl *noiseFlags, p *bias.Point) (*noiseS
 }
 
 func runNoise(cmd *cobra.Command, path string, fl *noiseFlags) error {
+	g := guardOf(cmd)
 	if fl.rows < 1 {
 		return inputError(fmt.Errorf("flag --rows: %d; accepted: 1 or more", fl.rows))
 	}
-	c, err := loadCircuit(cmd.ErrOrStderr(), path, fl.sets, fl.temperature)
+	c, err := g.loadCircuit(cmd.ErrOrStderr(), path, fl.sets, fl.temperature)
 	if err != nil {
 		return err
 	}
-	if err := checkOutputsEarly(fl.plotsDir, fl.csvPath); err != nil {
+	if err := g.checkOutputsEarly(fl.plotsDir, fl.csvPath); err != nil {
 		return err
 	}
 	s, err := resolveNoiseFor(c, fl, nil)
@@ -213,6 +213,28 @@ func runNoise(cmd *cobra.Command, path string, fl *noiseFlags) error {
 	if err != nil {
 		return analysisError(err)
 	}
+	cautionOutside(cmd.ErrOrStderr(), o.Result.Outside)
+	if err := g.writeNoiseFiles(fl, o); err != nil {
+		return err
+	}
+	out := cmd.OutOrStdout()
+	if fl.asJSON {
+		return writeJSON(out, noiseDocument(s, o))
+	}
+	writeNoiseText(out, s, o, fl.rows)
+	fmt.Fprintln(out)
+	if fl.csvPath != "" {
+		fmt.Fprintf(out, "CSV written to %s\n", fl.csvPath)
+	}
+	if fl.plotsDir != "" {
+		fmt.Fprintf(out, "figures written to %s (noise-density, noise-contributions: SVG, PNG and CSV data)\n", fl.plotsDir)
+	}
+	return nil
+}
+
+// writeNoiseFiles writes the CSV file and the figures with their data
+// the flags name, after checking every one of them.
+func (g *fileGuard) writeNoiseFiles(fl *noiseFlags, o *plan.NoiseRun) error {
 	// The figures' data go beside them.
 	tables := []struct {
 		name  string
@@ -231,33 +253,33 @@ func runNoise(cmd *cobra.Command, path string, fl *noiseFlags) error {
 		paths = append(paths, figurePaths(fl.plotsDir, figs)...)
 	}
 	// Every named output is checked before any is written.
-	if err := refuseInputs(paths...); err != nil {
+	if err := g.refuseInputs(paths...); err != nil {
 		return err
 	}
 	if fl.csvPath != "" {
-		if err := writeFileAtomic(fl.csvPath, func(w io.Writer) error { return writeNoiseCSV(w, o) }); err != nil {
+		if err := g.writeFileAtomic(fl.csvPath, func(w io.Writer) error { return writeNoiseCSV(w, o) }); err != nil {
 			return err
 		}
 	}
-	if fl.plotsDir != "" {
-		if err := os.MkdirAll(fl.plotsDir, 0o755); err != nil {
-			return inputError(fmt.Errorf("flag --plots: %w", err))
-		}
-		for _, tb := range tables {
-			if err := writeFileAtomic(filepath.Join(fl.plotsDir, tb.name), func(w io.Writer) error { return tb.write(w, o.Result) }); err != nil {
-				return err
-			}
-		}
-		if err := writeFigures(fl.plotsDir, figs); err != nil {
+	if fl.plotsDir == "" {
+		return nil
+	}
+	if err := os.MkdirAll(fl.plotsDir, 0o755); err != nil {
+		return inputError(fmt.Errorf("flag --plots: %w", err))
+	}
+	for _, tb := range tables {
+		if err := g.writeFileAtomic(filepath.Join(fl.plotsDir, tb.name), func(w io.Writer) error { return tb.write(w, o.Result) }); err != nil {
 			return err
 		}
 	}
-	out := cmd.OutOrStdout()
-	if fl.asJSON {
-		return writeJSON(out, noiseDocument(s, o))
-	}
+	return g.writeFigures(fl.plotsDir, figs)
+}
+
+// writeNoiseText prints the noise tables: density, band, sources and a
+// detector's figures.
+func writeNoiseText(out io.Writer, s *noiseSetup, o *plan.NoiseRun, rows int) {
 	writeNoiseHeader(out, s)
-	report.NoiseTable(o, fl.rows).WriteText(out)
+	report.NoiseTable(o, rows).WriteText(out)
 	for _, n := range report.NoiseNotes(o) {
 		fmt.Fprintf(out, "  %s\n", n)
 	}
@@ -272,14 +294,6 @@ func runNoise(cmd *cobra.Command, path string, fl *noiseFlags) error {
 			fmt.Fprintf(out, "  %s\n", n)
 		}
 	}
-	fmt.Fprintln(out)
-	if fl.csvPath != "" {
-		fmt.Fprintf(out, "CSV written to %s\n", fl.csvPath)
-	}
-	if fl.plotsDir != "" {
-		fmt.Fprintf(out, "figures written to %s (noise-density, noise-contributions: SVG, PNG and CSV data)\n", fl.plotsDir)
-	}
-	return nil
 }
 
 func writeNoiseHeader(w io.Writer, s *noiseSetup) {
@@ -488,57 +502,4 @@ func noiseDocument(s *noiseSetup, o *plan.NoiseRun) *noiseJSON {
 			NEP: number(det.NEP), NEPFrequency: number(det.SpotHz), VideoTopResponse: number(det.TopResponse), TangentialSensitivity: number(det.TangentialW), TangentialDBm: number(det.TangentialDBm())}
 	}
 	return d
-}
-
-// noiseSection is the noise part of the design report: the file's
-// defaults, the tables of the command, and headline cards (the noise
-// figure at the file's carrier, or a detector's NEP and tangential
-// sensitivity). A circuit without ports gets a section that says so.
-func noiseSection(c *circuit.Circuit, temperature string, p *bias.Point) (report.Section, []report.Card, error) {
-	sec := report.Section{ID: "noise", Title: "Noise"}
-	if len(c.Ports) == 0 {
-		sec.Intro = "The circuit has no ports, so no noise is shown."
-		return sec, nil, nil
-	}
-	s, err := resolveNoiseFor(c, &noiseFlags{temperature: temperature}, p)
-	if err != nil {
-		sec.Intro = "The noise analysis could not be set up: " + err.Error()
-		return sec, nil, nil
-	}
-	o, err := s.plan.Run(s.nw)
-	if err != nil {
-		return sec, nil, err
-	}
-	var intro []string
-	for _, l := range report.NoiseSetupLines(s.c, s.nw, s.plan) {
-		intro = append(intro, l[0]+": "+l[1])
-	}
-	sec.Intro = strings.Join(intro, "; ") + "."
-	for _, f := range report.NoiseFigures(o.Result) {
-		fig, err := svgOf(f)
-		if err != nil {
-			return sec, nil, analysisError(err)
-		}
-		sec.Blocks = append(sec.Blocks, report.Block{Figure: fig})
-	}
-	sec.Blocks = append(sec.Blocks, report.Block{Table: report.NoiseTable(o, 9)})
-	sec.Blocks = append(sec.Blocks, report.Block{Note: strings.Join(report.NoiseNotes(o), "; ") + "."})
-	if o.Band != nil {
-		sec.Blocks = append(sec.Blocks, report.Block{Table: report.BandTable(o)}, report.Block{Table: report.SourceTable(o)})
-	}
-	var cards []report.Card
-	if o.Detection != nil {
-		t, notes := report.DetectorTable(o)
-		sec.Blocks = append(sec.Blocks, report.Block{Table: t}, report.Block{Note: strings.Join(notes, "; ") + "."})
-		cards = append(cards,
-			report.Card{Label: "noise-equivalent power", Value: report.Density(o.Detection.NEP, "W/√Hz"), Detail: fmt.Sprintf("at %s video frequency", si.Format(o.Detection.SpotHz, "Hz", 3))},
-			report.Card{Label: "tangential sensitivity", Value: fmt.Sprintf("%.1f dBm", o.Detection.TangentialDBm()), Detail: fmt.Sprintf("at %s, video to %s", si.Format(o.Detection.CarrierHz, "Hz", 4), si.Format(o.Detection.Video.ToHz, "Hz", 3))})
-	} else if s.plan.Settings.Input >= 0 && s.plan.CarrierHz > 0 {
-		at, err := ac.Noise(s.nw, []float64{s.plan.CarrierHz}, s.plan.Settings)
-		if err == nil {
-			cards = append(cards, report.Card{Label: "noise figure", Value: report.FigureText(at.Points[0].FigureDB()),
-				Detail: fmt.Sprintf("%s → %s at %s, source at 290 K", s.plan.InputName, s.plan.OutputName, si.Format(s.plan.CarrierHz, "Hz", 4))})
-		}
-	}
-	return sec, cards, nil
 }

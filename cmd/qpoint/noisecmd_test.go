@@ -11,15 +11,12 @@ import (
 	"path/filepath"
 	"strings"
 	"testing"
-
-	"qpoint/bias/circuit"
 )
 
 // runNoiseCLI runs `qpoint noise ARGS` as run does, registering the
 // command on the root when main.go does not (yet).
 func runNoiseCLI(t *testing.T, args ...string) (stdout, stderr string, code int) {
 	t.Helper()
-	inputs = nil
 	var out, errb bytes.Buffer
 	root := newRoot(&out, &errb)
 	if c, _, err := root.Find([]string{"noise"}); err != nil || c.Name() != "noise" {
@@ -225,28 +222,6 @@ func TestNoiseFiles(t *testing.T) {
 				t.Errorf("figure %s%s: %v", name, ext, err)
 			}
 		}
-	}
-}
-
-// TestNoiseSection checks the report's noise section for the detector.
-func TestNoiseSection(t *testing.T) {
-	c, err := circuit.Load(filepath.Join(demoDir, "detector.yaml"))
-	if err != nil {
-		t.Fatal(err)
-	}
-	sec, cards, err := noiseSection(c, "", nil)
-	if err != nil {
-		t.Fatal(err)
-	}
-	if sec.ID != "noise" || len(sec.Blocks) < 4 {
-		t.Errorf("section %q with %d blocks", sec.ID, len(sec.Blocks))
-	}
-	var labels []string
-	for _, k := range cards {
-		labels = append(labels, k.Label)
-	}
-	if got := strings.Join(labels, ", "); got != "noise-equivalent power, tangential sensitivity" {
-		t.Errorf("cards %q", got)
 	}
 }
 

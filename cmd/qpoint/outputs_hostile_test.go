@@ -155,7 +155,6 @@ func TestCollidingOutputsRefusedFirst(t *testing.T) {
 // output (a full device) is a failure with a message, not exit 0
 // (issue 13, item 12).
 func TestStdoutWriteFailure(t *testing.T) {
-	inputs = nil
 	var errb strings.Builder
 	code := run([]string{"bias", filepath.Join(demoDir, "attenuator.yaml")}, &failAfter{w: io.Discard, n: 100}, &errb)
 	if code != exitAnalysis || !strings.Contains(errb.String(), "writing standard output") {

@@ -17,7 +17,7 @@ func planError(err error) error {
 	if !errors.As(err, &re) {
 		return analysisError(err)
 	}
-	if re.FromFile() {
+	if re.FromFile() || len(re.Settings) == 0 {
 		return inputError(err)
 	}
 	names := make([]string, len(re.Settings))
@@ -25,6 +25,9 @@ func planError(err error) error {
 		names[i] = "--" + s
 	}
 	if len(names) == 1 {
+		if strings.HasPrefix(re.Err.Error(), "is missing") {
+			return inputError(fmt.Errorf("flag %s %w", names[0], re.Err))
+		}
 		return inputError(fmt.Errorf("flag %s: %w", names[0], re.Err))
 	}
 	return inputError(fmt.Errorf("flags %s: %w", strings.Join(names, ", "), re.Err))

@@ -98,7 +98,7 @@ the flags, else from the file's analysis.pulse.`,
 }
 
 // pulseSetup is a resolved pulse run: the circuit at its bias point and
-// the settings, with where each setting came from for messages.
+// the plan.
 type pulseSetup struct {
 	c        *circuit.Circuit
 	p        *bias.Point
@@ -108,176 +108,75 @@ type pulseSetup struct {
 	outName  string
 	levelDBm float64
 	probeDBm float64 // NaN for no probe or the default
-	source   map[string]string
+	plan     *plan.Pulse
 }
 
 // where names the flag or file key a setting came from.
 func (s *pulseSetup) where(field string) string {
-	if w, ok := s.source[field]; ok {
+	if w := s.plan.Where(field); w != "" {
 		return w
 	}
 	return "flag --" + field
 }
 
-// resolvePulse resolves the flags and the file's defaults for a loaded
-// circuit and linearises it at p, solving the bias first when p is nil.
+// resolvePulse reads the flags into a request, resolves it on the plan,
+// and linearises the circuit at p, solving the bias first when p is nil.
 func resolvePulse(c *circuit.Circuit, fl *pulseFlags, p *bias.Point) (*pulseSetup, error) {
-	if len(c.Ports) == 0 {
-		return nil, inputError(fmt.Errorf("%s: the circuit has no ports; a pulse needs an input port (add a `ports:` list)", c.File))
-	}
-	if err := transient.Check(c); err != nil {
-		return nil, inputError(fmt.Errorf("%s: %w", c.File, err))
-	}
-	def := c.Analysis.Pulse
-	s := &pulseSetup{c: c, source: map[string]string{}, probeDBm: math.NaN()}
-	fileKey := func(key string) string { return "analysis.pulse." + key + " in " + c.File }
-	input, output := fl.input, fl.output
-	if input == "" && def.Set {
-		input = def.Input
-	}
-	if output == "" && def.Set {
-		output = def.Output
-	}
-	sp, err := plan.SignalPath(c, input, output)
-	if err != nil {
-		return nil, planError(err)
-	}
-	s.inName, s.outName = sp.InputName, sp.OutputName
-	z0 := c.Ports[sp.Input].Impedance
-
-	// Each time setting: the flag, else the file's value.
-	readTime := func(flag, text string, fromFile float64, required bool) (float64, error) {
-		if text != "" {
-			v, err := circuit.ParseBounded(text, circuit.Time)
-			if err != nil {
-				return 0, inputError(fmt.Errorf("flag --%s: %w", flag, err))
-			}
-			return v, nil
+	req := plan.PulseRequest{Input: fl.input, Output: fl.output, Pulses: fl.pulses,
+		RelativeTolerance: fl.tolerance, MaxSteps: fl.maxSteps, NoPeriod: fl.period == "none", NoProbe: fl.probe == "none"}
+	var err error
+	readTime := func(flag, text string, dst *float64) error {
+		if text == "" || text == "none" {
+			return nil
 		}
-		if def.Set && fromFile != 0 {
-			s.source[flag] = fileKey(flag)
-			return fromFile, nil
+		v, err := circuit.ParseBounded(text, circuit.Time)
+		if err != nil {
+			return inputError(fmt.Errorf("flag --%s: %w", flag, err))
 		}
-		if required {
-			return 0, inputError(fmt.Errorf("no pulse %s: give --%s (e.g. --%s 1us) or analysis.pulse.%s in the file", flag, flag, flag, flag))
-		}
-		return 0, nil
+		*dst = v
+		return nil
 	}
-	carrier := 0.0
-	switch {
-	case fl.carrier != "":
-		if carrier, err = circuit.ParseBounded(fl.carrier, circuit.Frequency); err != nil {
-			return nil, inputError(fmt.Errorf("flag --carrier: %w", err))
-		}
-	case def.Set:
-		carrier, s.source["carrier"] = def.CarrierHz, fileKey("carrier")
-	case c.Analysis.Distortion.Set:
-		carrier, s.source["carrier"] = c.Analysis.Distortion.FrequencyHz, "analysis.distortion.frequency in "+c.File
-	default:
-		return nil, inputError(fmt.Errorf("no carrier frequency: give --carrier (e.g. 3GHz) or analysis.pulse.carrier in the file"))
-	}
-	var lv circuit.Level
-	switch {
-	case fl.level != "":
-		if lv, err = circuit.ParseLevel(fl.level); err != nil {
-			return nil, inputError(fmt.Errorf("flag --level: %w", err))
-		}
-	case def.Set:
-		lv, s.source["level"] = def.Level, fileKey("level")
-	default:
-		return nil, inputError(fmt.Errorf("no pulse level: give --level (e.g. 40dBm) or analysis.pulse.level in the file"))
-	}
-	s.levelDBm = levelDBm(lv, z0)
-	width, err := readTime("width", fl.width, def.Width, true)
-	if err != nil {
-		return nil, err
-	}
-	rise, err := readTime("rise", fl.rise, def.Rise, false)
-	if err != nil {
-		return nil, err
-	}
-	fall, err := readTime("fall", fl.fall, def.Fall, false)
-	if err != nil {
-		return nil, err
-	}
-	period := 0.0
-	if fl.period != "none" {
-		if period, err = readTime("period", fl.period, def.Period, false); err != nil {
+	for _, t := range []struct {
+		flag, text string
+		dst        *float64
+	}{{"width", fl.width, &req.Width}, {"rise", fl.rise, &req.Rise}, {"fall", fl.fall, &req.Fall}, {"period", fl.period, &req.Period}, {"after", fl.after, &req.After}} {
+		if err := readTime(t.flag, t.text, t.dst); err != nil {
 			return nil, err
 		}
 	}
-	edge := math.Max(width/20, 1/carrier)
-	if rise == 0 && fl.rise == "" && (!def.Set || def.Rise == 0) {
-		rise = math.Min(edge, width)
+	if fl.after != "" && !(req.After > 0) {
+		return nil, inputError(fmt.Errorf("flag --after: %s; accepted: a positive time", fl.after))
 	}
-	if fall == 0 && fl.fall == "" && (!def.Set || def.Fall == 0) {
-		fall = math.Min(edge, width)
-	}
-	count := fl.pulses
-	switch {
-	case count < 0:
-		return nil, inputError(fmt.Errorf("flag --pulses: %d; accepted: 1 to 1000", count))
-	case count == 0 && def.Set && def.Pulses > 0 && period != 0:
-		count, s.source["count"] = def.Pulses, fileKey("pulses")
-	case count == 0 && period != 0:
-		count = 2
-	case count == 0:
-		count = 1
-	}
-	if count > 1 && period == 0 {
-		return nil, inputError(fmt.Errorf("flag --pulses: %d pulses need a period; give --period", count))
-	}
-	if _, fromFile := s.source["count"]; !fromFile {
-		s.source["count"] = "flag --pulses"
-	}
-
-	set := transient.PulseSettings{
-		Input: sp.Input, Output: sp.Output,
-		Pulse: transient.Pulse{CarrierHz: carrier, CarrierEMF: ac.DBmToEMF(s.levelDBm, z0),
-			Width: width, Rise: rise, Fall: fall, Period: period, Count: count},
-		Transient: transient.Settings{RelativeTolerance: fl.tolerance, MaxSteps: fl.maxSteps},
-	}
-	if !(fl.tolerance > 0 && fl.tolerance <= 0.1) {
-		return nil, inputError(fmt.Errorf("flag --tolerance: %g; accepted: above 0, at most 0.1 (1e-3 is the default)", fl.tolerance))
-	}
-	if fl.maxSteps < 1000 || fl.maxSteps > 1_000_000_000 {
-		return nil, inputError(fmt.Errorf("flag --max-steps: %d; accepted: 1000 to 1e9", fl.maxSteps))
-	}
-	if fl.after != "" {
-		if set.After, err = circuit.ParseBounded(fl.after, circuit.Time); err != nil {
-			return nil, inputError(fmt.Errorf("flag --after: %w", err))
-		}
-		if !(set.After > 0) {
-			return nil, inputError(fmt.Errorf("flag --after: %s; accepted: a positive time", fl.after))
+	if fl.carrier != "" {
+		if req.CarrierHz, err = circuit.ParseBounded(fl.carrier, circuit.Frequency); err != nil {
+			return nil, inputError(fmt.Errorf("flag --carrier: %w", err))
 		}
 	}
-	// The probe: none, a level, and a frequency.
-	probeHz := carrier
 	if fl.probeFrequency != "" {
-		if probeHz, err = circuit.ParseBounded(fl.probeFrequency, circuit.Frequency); err != nil {
+		if req.ProbeFrequencyHz, err = circuit.ParseBounded(fl.probeFrequency, circuit.Frequency); err != nil {
 			return nil, inputError(fmt.Errorf("flag --probe-frequency: %w", err))
 		}
 	}
-	switch fl.probe {
-	case "":
-		if fl.probeFrequency != "" {
-			s.probeDBm = transient.DefaultProbeDBm
-			set.Probe = &transient.Probe{FrequencyHz: probeHz, EMF: ac.DBmToEMF(s.probeDBm, z0)}
+	if fl.level != "" {
+		lv, err := circuit.ParseLevel(fl.level)
+		if err != nil {
+			return nil, inputError(fmt.Errorf("flag --level: %w", err))
 		}
-	case "none":
-		set.Probe = &transient.Probe{}
-	default:
-		plv, err := circuit.ParseLevel(fl.probe)
+		req.Level = &lv
+	}
+	if fl.probe != "" && fl.probe != "none" {
+		lv, err := circuit.ParseLevel(fl.probe)
 		if err != nil {
 			return nil, inputError(fmt.Errorf("flag --probe: %w; or none", err))
 		}
-		s.probeDBm = levelDBm(plv, z0)
-		set.Probe = &transient.Probe{FrequencyHz: probeHz, EMF: ac.DBmToEMF(s.probeDBm, z0)}
+		req.Probe = &lv
 	}
-	if err := set.Pulse.Check(); err != nil {
-		return nil, s.requestError(err)
+	pl, err := plan.ResolvePulse(c, req)
+	if err != nil {
+		return nil, planError(err)
 	}
-	s.settings = set
+	s := &pulseSetup{c: c, settings: pl.Settings, inName: pl.InputName, outName: pl.OutputName,
+		levelDBm: pl.LevelDBm, probeDBm: pl.ProbeDBm, plan: pl}
 	if p == nil {
 		if p, err = solveWithTemperature(c, fl.temperature); err != nil {
 			return nil, err
@@ -290,33 +189,9 @@ func resolvePulse(c *circuit.Circuit, fl *pulseFlags, p *bias.Point) (*pulseSetu
 	return s, nil
 }
 
-// levelDBm returns a level as available power behind z0: a peak voltage
-// is what the generator delivers into a matched load, half its EMF.
-func levelDBm(lv circuit.Level, z0 float64) float64 {
-	if lv.IsPower {
-		return lv.DBm
-	}
-	return ac.EMFToDBm(2*lv.PeakVolts, z0)
-}
-
-// requestError turns the library's refusal of a pulse into an input error
-// naming the flag or file key it concerns.
-func (s *pulseSetup) requestError(err error) error {
-	var re *transient.RequestError
-	if !errors.As(err, &re) {
-		return err
-	}
-	switch re.Field {
-	case "steps":
-		return inputError(fmt.Errorf("flag --max-steps: %s", re.Message))
-	case "delay":
-		return inputError(fmt.Errorf("the pulse: %s", re.Message))
-	}
-	return inputError(fmt.Errorf("%s: %s", s.where(re.Field), re.Message))
-}
-
 func runPulse(cmd *cobra.Command, path string, fl *pulseFlags) error {
-	c, err := loadCircuit(cmd.ErrOrStderr(), path, fl.sets, fl.temperature)
+	g := guardOf(cmd)
+	c, err := g.loadCircuit(cmd.ErrOrStderr(), path, fl.sets, fl.temperature)
 	if err != nil {
 		return err
 	}
@@ -324,7 +199,7 @@ func runPulse(cmd *cobra.Command, path string, fl *pulseFlags) error {
 	if err != nil {
 		return err
 	}
-	if err := refuseInputs(fl.csvPath); err != nil {
+	if err := g.refuseInputs(fl.csvPath); err != nil {
 		return err
 	}
 	out := cmd.OutOrStdout()
@@ -347,17 +222,17 @@ func runPulse(cmd *cobra.Command, path string, fl *pulseFlags) error {
 	var figs []*plots.Figure
 	if fl.plotsDir != "" {
 		figs = plots.PulseFigures(res, s.nw)
-		if err := refuseInputs(figurePaths(fl.plotsDir, figs)...); err != nil {
+		if err := g.refuseInputs(figurePaths(fl.plotsDir, figs)...); err != nil {
 			return err
 		}
 	}
 	if fl.csvPath != "" {
-		if err := writeFileAtomic(fl.csvPath, func(w io.Writer) error { return writePulseCSV(w, s, res) }); err != nil {
+		if err := g.writeFileAtomic(fl.csvPath, func(w io.Writer) error { return writePulseCSV(w, s, res) }); err != nil {
 			return err
 		}
 	}
 	if fl.plotsDir != "" {
-		if err := writeFigures(fl.plotsDir, figs); err != nil {
+		if err := g.writeFigures(fl.plotsDir, figs); err != nil {
 			return err
 		}
 	}
@@ -415,22 +290,6 @@ func writePulseHeader(w io.Writer, s *pulseSetup, res *transient.PulseResult) {
 	}
 }
 
-// dbmOf returns a power in dBm, or "—".
-func dbmOf(w float64) string {
-	if !(w > 0) || math.IsInf(w, 0) {
-		return "—"
-	}
-	return fmt.Sprintf("%.2f dBm", 10*math.Log10(w*1e3))
-}
-
-// timeOf formats a duration, or "—" for none.
-func timeOf(t float64) string {
-	if math.IsNaN(t) || math.IsInf(t, 0) {
-		return "—"
-	}
-	return si.Format(t, "s", 4)
-}
-
 // writePulseFigures prints the limiter's or the detector's figures of the
 // last pulse, with each pulse's when there are several.
 func writePulseFigures(w io.Writer, s *pulseSetup, res *transient.PulseResult) {
@@ -438,106 +297,14 @@ func writePulseFigures(w io.Writer, s *pulseSetup, res *transient.PulseResult) {
 		fmt.Fprintln(w, "The run ended before the pulse did: no figures.")
 		return
 	}
-	for _, t := range pulseTables(s, res) {
+	for _, t := range report.PulseTables(s.nw, res) {
 		t.WriteText(w)
 	}
 }
 
-// pulseTables returns the figures of the last pulse, with each pulse's
-// when there are several.
-func pulseTables(s *pulseSetup, res *transient.PulseResult) []*report.Table {
-	f := res.Figures
-	title := "Limiter figures"
-	if len(res.Pulses) > 1 {
-		title += fmt.Sprintf(" (pulse %d of %d)", f.Pulse+1, len(res.Pulses))
-	}
-	t := &report.Table{Caption: title, Header: []string{"quantity", "value", ""}}
-	if res.Kind == transient.Detector {
-		t.Caption = strings.Replace(title, "Limiter", "Detector", 1)
-		t.Add("video change at the end of the flat top", si.Format(f.Settled, "V", 4), "from the DC point's "+si.Format(res.Baseline, "V", 4))
-		if !math.IsNaN(res.SteadyShift) {
-			t.Add("steady-state DC shift", si.Format(res.SteadyShift, "V", 4), fmt.Sprintf("continuous carrier; the pulse reached %s", shareDB(f.Settled, res.SteadyShift)))
-		}
-		t.Add("rise time, 10-90 %", timeOf(f.RiseTime), "of the change towards the steady state")
-		t.Add("fall time, 90-10 %", timeOf(f.FallTime), "after the flat top")
-		return []*report.Table{t}
-	}
-	spikeNote := fmt.Sprintf("%s after the pulse's start", timeOf(f.SpikeTime-f.Start))
-	t.Add("spike leakage, peak", dbmOf(f.SpikePeak), spikeNote)
-	energy := si.Format(f.SpikeEnergy, "J", 3)
-	note := "above the flat leakage"
-	if f.SpikeEnergy == 0 {
-		energy, note = "0 J", "no spike: the peak stays within 1 dB of the flat leakage"
-	}
-	if math.IsNaN(f.SpikeEnergy) {
-		energy, note = "—", ""
-	}
-	t.Add("spike leakage, energy", energy, note)
-	t.Add("flat leakage", dbmOf(f.Flat), fmt.Sprintf("over the end of the flat top; %s below the pulse", attenuation(res.LevelDBm(s.nw), f.Flat)))
-	if res.Settings.Pulse.ProbeEMF != 0 {
-		t.Add("recovery to within 1 dB", recoveryText(f.Recovery1dB, f.Recovery1dBBound), "of the probe's loss before the pulse")
-		t.Add("recovery to within 3 dB", recoveryText(f.Recovery3dB, f.Recovery3dBBound), "")
-		t.Add("probe loss before the pulse", fmt.Sprintf("%.3f dB", res.LossBefore), fmt.Sprintf("small-signal %.3f dB", res.SmallSignalLoss))
-	} else {
-		t.Add("recovery", "—", "no probe (--probe none)")
-	}
-	tables := []*report.Table{t}
-	if len(res.Pulses) > 1 {
-		pt := &report.Table{Caption: "Each pulse", Header: []string{"pulse", "start", "spike peak", "spike energy", "flat leakage", "recovery 1 dB", "recovery 3 dB"}}
-		for _, q := range res.Pulses {
-			pt.Add(strconv.Itoa(q.Pulse+1), si.Format(q.Start, "s", 4), dbmOf(q.SpikePeak), si.Format(q.SpikeEnergy, "J", 3), dbmOf(q.Flat),
-				recoveryText(q.Recovery1dB, q.Recovery1dBBound), recoveryText(q.Recovery3dB, q.Recovery3dBBound))
-		}
-		tables = append(tables, pt)
-	}
-	return tables
-}
-
-// shareDB says how close a value came to a reference, in dB.
-func shareDB(v, ref float64) string {
-	d := 20 * math.Log10(math.Abs(v/ref))
-	if math.IsNaN(d) || math.IsInf(d, 0) {
-		return "—"
-	}
-	return fmt.Sprintf("%+.2f dB of it", d)
-}
-
-// attenuation is how far the flat leakage lies below the carrier's
-// available power.
-func attenuation(levelDBm, flatW float64) string {
-	if !(flatW > 0) {
-		return "—"
-	}
-	return fmt.Sprintf("%.1f dB", levelDBm-10*math.Log10(flatW*1e3))
-}
-
-// recoveryText formats a recovery time, marking an upper bound.
-func recoveryText(t float64, bound bool) string {
-	switch {
-	case math.IsNaN(t):
-		return "—"
-	case bound:
-		return "≤ " + si.Format(t, "s", 3)
-	}
-	return si.Format(t, "s", 4)
-}
-
 // writePulseStress prints each diode's extremes.
 func writePulseStress(w io.Writer, res *transient.PulseResult) {
-	stressTableOf(res).WriteText(w)
-}
-
-// stressTableOf returns each diode's extremes under the pulse.
-func stressTableOf(res *transient.PulseResult) *report.Table {
-	t := &report.Table{Caption: "Diodes under the pulse", Header: []string{"diode", "peak junction current", "peak reverse voltage", "mean dissipation over the pulse", "past the knee"}}
-	for _, d := range res.Diodes {
-		knee := "—"
-		if d.PastKnee > 0 {
-			knee = si.Format(d.PastKnee, "s", 3)
-		}
-		t.Add(d.Name, si.Format(d.PeakCurrent, "A", 3), si.Format(d.PeakReverseVoltage, "V", 3), si.Format(d.PulsePower, "W", 3), knee)
-	}
-	return t
+	report.PulseStressTable(res).WriteText(w)
 }
 
 // writePulseCautions prints the typed cautions' messages.
@@ -581,6 +348,7 @@ func writePulseCSV(w io.Writer, s *pulseSetup, res *transient.PulseResult) error
 // runPulseSweep repeats the run over carrier levels and prints the figures
 // against the level.
 func runPulseSweep(cmd *cobra.Command, s *pulseSetup, fl *pulseFlags) error {
+	g := guardOf(cmd)
 	z0 := s.c.Ports[s.settings.Input].Impedance
 	from, to, step, err := parseLevelRange("sweep-level", fl.sweepLevel, z0)
 	if err != nil {
@@ -612,7 +380,7 @@ func runPulseSweep(cmd *cobra.Command, s *pulseSetup, fl *pulseFlags) error {
 		}
 	}
 	if fl.plotsDir != "" {
-		if err := writeFigures(fl.plotsDir, []*plots.Figure{plots.PulseLevelSweep(pts)}); err != nil {
+		if err := g.writeFigures(fl.plotsDir, []*plots.Figure{plots.PulseLevelSweep(pts)}); err != nil {
 			return err
 		}
 	}
@@ -672,9 +440,9 @@ func writePulseSweep(w io.Writer, s *pulseSetup, pts []transient.LevelPoint) {
 		}
 		f := r.Figures
 		if detector {
-			row = append(row, si.Format(f.Settled, "V", 4), si.Format(r.SteadyShift, "V", 4), timeOf(f.RiseTime), timeOf(f.FallTime))
+			row = append(row, si.Format(f.Settled, "V", 4), si.Format(r.SteadyShift, "V", 4), report.TimeOf(f.RiseTime), report.TimeOf(f.FallTime))
 		} else {
-			row = append(row, dbmOf(f.SpikePeak), si.Format(f.SpikeEnergy, "J", 3), dbmOf(f.Flat), recoveryText(f.Recovery1dB, f.Recovery1dBBound), recoveryText(f.Recovery3dB, f.Recovery3dBBound))
+			row = append(row, report.DBmOf(f.SpikePeak), si.Format(f.SpikeEnergy, "J", 3), report.DBmOf(f.Flat), report.RecoveryText(f.Recovery1dB, f.Recovery1dBBound), report.RecoveryText(f.Recovery3dB, f.Recovery3dBBound))
 		}
 		for _, d := range r.Diodes {
 			row = append(row, si.Format(d.PeakCurrent, "A", 3))
@@ -697,55 +465,18 @@ func writePulseSweep(w io.Writer, s *pulseSetup, pts []transient.LevelPoint) {
 	fmt.Fprintf(w, "  cautions name their kinds; run one level (--level) to read them in full\n\n")
 }
 
-// pulseSection runs the file's pulse analysis for the report: its tables,
-// figures and cautions, and headline cards. A run that cannot be made is
-// a note in the section, not a failed report.
-func pulseSection(c *circuit.Circuit, temperature string, p *bias.Point) (report.Section, []report.Card, error) {
-	sec := report.Section{ID: "pulse", Title: "Under a pulse"}
-	s, err := resolvePulse(c, &pulseFlags{temperature: temperature, tolerance: 1e-3, maxSteps: 2_000_000}, p)
-	if err != nil {
-		sec.Intro = "The file's pulse could not be set up: " + err.Error()
-		return sec, nil, nil
+// requestError names the flag or file key of a request the transient
+// refused while running.
+func (s *pulseSetup) requestError(err error) error {
+	var re *transient.RequestError
+	if !errors.As(err, &re) {
+		return err
 	}
-	res, runErr := transient.RunPulse(s.nw, s.settings)
-	if res == nil {
-		sec.Intro = "The pulse run failed: " + runErr.Error()
-		return sec, nil, nil
+	switch re.Field {
+	case "steps":
+		return inputError(fmt.Errorf("flag --max-steps: %s", re.Message))
+	case "delay":
+		return inputError(fmt.Errorf("the pulse: %s", re.Message))
 	}
-	pl := res.Settings.Pulse
-	sec.Intro = fmt.Sprintf("Port %s driven by a %s carrier at %.1f dBm available, width %s, rise %s, fall %s; output at %s, read as a %s. The circuit is followed in time from its DC point (%s, %d steps).",
-		s.inName, si.Format(pl.CarrierHz, "Hz", 4), s.levelDBm, si.Format(pl.Width, "s", 3), si.Format(pl.Rise, "s", 3), si.Format(pl.Fall, "s", 3),
-		s.outName, res.Kind, res.Run.Stats.Method, res.Run.Stats.Accepted)
-	if runErr != nil {
-		sec.Blocks = append(sec.Blocks, report.Block{Note: "The run " + runErr.Error() + "; the figures are of what it reached."})
-	}
-	if len(res.Pulses) > 0 {
-		for _, t := range pulseTables(s, res) {
-			sec.Blocks = append(sec.Blocks, report.Block{Table: t})
-		}
-	}
-	sec.Blocks = append(sec.Blocks, report.Block{Table: stressTableOf(res)})
-	for _, f := range plots.PulseFigures(res, s.nw) {
-		fig, err := svgOf(f)
-		if err != nil {
-			return sec, nil, analysisError(err)
-		}
-		sec.Blocks = append(sec.Blocks, report.Block{Figure: fig})
-	}
-	var cards []report.Card
-	for _, x := range res.Cautions {
-		sec.Blocks = append(sec.Blocks, report.Block{Note: "Caution: " + x.Message})
-	}
-	f := res.Figures
-	if len(res.Pulses) > 0 {
-		if res.Kind == transient.Detector {
-			cards = append(cards, report.Card{Label: "pulse video", Value: si.Format(f.Settled, "V", 3), Detail: "rise " + timeOf(f.RiseTime) + ", fall " + timeOf(f.FallTime)})
-		} else {
-			cards = append(cards, report.Card{Label: "flat leakage", Value: dbmOf(f.Flat), Detail: fmt.Sprintf("%.1f dBm pulse; spike %s", s.levelDBm, dbmOf(f.SpikePeak))})
-			if pl.ProbeEMF != 0 {
-				cards = append(cards, report.Card{Label: "recovery", Value: recoveryText(f.Recovery1dB, f.Recovery1dBBound), Detail: "to within 1 dB of the loss before the pulse"})
-			}
-		}
-	}
-	return sec, cards, nil
+	return inputError(fmt.Errorf("%s: %s", s.where(re.Field), re.Message))
 }

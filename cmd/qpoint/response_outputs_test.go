@@ -342,7 +342,6 @@ func TestResponseJSONStreams(t *testing.T) {
 	if testing.Short() {
 		t.Skip("a 100000-point sweep")
 	}
-	inputs = nil
 	var h heapWatcher
 	var errb bytes.Buffer
 	code := run([]string{"response", filepath.Join(demoDir, "attenuator.yaml"), "--points", "100000", "--json"}, &h, &errb)

@@ -169,50 +169,22 @@ func solveWithTemperature(c *circuit.Circuit, temperature string) (*bias.Point, 
 	return p, nil
 }
 
+// responseSetup is a resolved response run: the circuit, its bias and
+// linearisation, the grid and the output format.
+type responseSetup struct {
+	c      *circuit.Circuit
+	p      *bias.Point
+	nw     *smallsignal.Network
+	grid   []float64
+	ref    []float64
+	format touchstone.Format
+}
+
 func runResponse(cmd *cobra.Command, path string, fl *responseFlags) error {
-	c, err := loadCircuit(cmd.ErrOrStderr(), path, fl.sets, fl.temperature)
+	g := guardOf(cmd)
+	s, err := resolveResponse(cmd, g, path, fl)
 	if err != nil {
 		return err
-	}
-	if err := checkOutputsEarly(fl.plotsDir, fl.csvPath, fl.touchstone); err != nil {
-		return err
-	}
-	if len(c.Ports) == 0 {
-		return inputError(fmt.Errorf("%s: the circuit has no ports; a response needs at least one (add a `ports:` list)", path))
-	}
-	for _, name := range []string{"points", "per-decade"} {
-		if f := cmd.Flags().Lookup(name); f.Changed && f.Value.String() != "" {
-			if v, _ := strconv.Atoi(f.Value.String()); v < 1 {
-				return inputError(fmt.Errorf("flag --%s: %s; accepted: a whole number of at least 1", name, f.Value.String()))
-			}
-		}
-	}
-	grid, err := sweepGrid(c, fl)
-	if err != nil {
-		return err
-	}
-	ref, err := parseReference(fl.reference, len(c.Ports))
-	if err != nil {
-		return err
-	}
-	format, err := parseTouchstoneFormat(fl.format)
-	if err != nil {
-		return err
-	}
-	p, err := solveWithTemperature(c, fl.temperature)
-	if err != nil {
-		return err
-	}
-	nw, err := smallsignal.New(p)
-	if err != nil {
-		return analysisError(err)
-	}
-	// Every named output is checked before any is written, so that a
-	// refusal leaves none behind.
-	if fl.touchstone != "" {
-		if want := touchstone.Ext(len(c.Ports)); !strings.EqualFold(filepath.Ext(fl.touchstone), want) {
-			return inputError(fmt.Errorf("flag --touchstone: %s has %d ports, so its file should end in %s (got %q)", c.Name, len(c.Ports), want, filepath.Ext(fl.touchstone)))
-		}
 	}
 	var r *ac.Response
 	out := cmd.OutOrStdout()
@@ -220,64 +192,114 @@ func runResponse(cmd *cobra.Command, path string, fl *responseFlags) error {
 		// Files, JSON and a table only: the points stream to the files
 		// and standard output, and the sweep keeps just the table's
 		// rows, whatever its length.
-		if err := refuseInputs(fl.csvPath, fl.touchstone); err != nil {
+		if err := g.refuseInputs(fl.csvPath, fl.touchstone); err != nil {
 			return err
 		}
 		var jsonOut io.Writer
 		if fl.asJSON {
 			jsonOut = out
 		}
-		if r, err = streamResponse(nw, grid, ac.Settings{Reference: ref}, c, fl, format, jsonOut); err != nil {
+		if r, err = streamResponse(g, s, fl, jsonOut); err != nil {
 			return err
 		}
 		if fl.asJSON {
 			return nil
 		}
-	} else {
-		// Figures need the whole sweep in memory: refuse one that would
-		// not fit rather than run out of it.
-		if need := sweepBytes(len(grid), len(c.Ports), len(c.Probes)); need > maxHeldSweepBytes {
-			return inputError(fmt.Errorf("flag --plots: %d points of %d ports take about %s in memory to draw, more than the %s allowed; accepted: at most %d points with --plots (files and --json stream any number)",
-				len(grid), len(c.Ports), si.Format(float64(need), "B", 2), si.Format(maxHeldSweepBytes, "B", 2), maxHeldSweepBytes/sweepBytes(1, len(c.Ports), len(c.Probes))))
-		}
-		if r, err = ac.Run(nw, grid, ac.Settings{Reference: ref}); err != nil {
-			return analysisError(err)
-		}
-		var figs []*plots.Figure
-		if fl.plotsDir != "" {
-			figs = plots.ResponseFigures(r, designFrequency(c))
-		}
-		if err := refuseInputs(append([]string{fl.csvPath, fl.touchstone}, figurePaths(fl.plotsDir, figs)...)...); err != nil {
-			return err
-		}
-		if fl.csvPath != "" {
-			if err := writeFileAtomic(fl.csvPath, func(w io.Writer) error { return writeResponseCSV(w, r) }); err != nil {
-				return err
-			}
-		}
-		if fl.touchstone != "" {
-			if err := writeFileAtomic(fl.touchstone, func(w io.Writer) error {
-				return writeTouchstone(w, c, r, format)
-			}); err != nil {
-				return err
-			}
-		}
-		if fl.plotsDir != "" {
-			if err := writeFigures(fl.plotsDir, figs); err != nil {
-				return err
-			}
-		}
+	} else if r, err = heldResponse(g, s, fl); err != nil {
+		return err
 	}
 	if fl.asJSON {
-		return writeJSON(out, responseDocument(r))
+		return writeJSON(out, responseDocument(r, s.c))
 	}
-	writeResponseTable(out, c, p, r, grid, fl.rows)
+	writeResponseTable(out, s.c, s.p, r, s.grid, fl.rows)
 	for _, x := range []struct{ what, path string }{{"CSV", fl.csvPath}, {"Touchstone", fl.touchstone}, {"figures", fl.plotsDir}} {
 		if x.path != "" {
 			fmt.Fprintf(out, "%s written to %s\n", x.what, x.path)
 		}
 	}
 	return nil
+}
+
+// resolveResponse loads the circuit, checks the flags and the outputs,
+// and solves and linearises the bias.
+func resolveResponse(cmd *cobra.Command, g *fileGuard, path string, fl *responseFlags) (*responseSetup, error) {
+	c, err := g.loadCircuit(cmd.ErrOrStderr(), path, fl.sets, fl.temperature)
+	if err != nil {
+		return nil, err
+	}
+	if err := g.checkOutputsEarly(fl.plotsDir, fl.csvPath, fl.touchstone); err != nil {
+		return nil, err
+	}
+	if len(c.Ports) == 0 {
+		return nil, inputError(fmt.Errorf("%s: the circuit has no ports; a response needs at least one (add a `ports:` list)", path))
+	}
+	for _, name := range []string{"points", "per-decade"} {
+		if f := cmd.Flags().Lookup(name); f.Changed && f.Value.String() != "" {
+			if v, _ := strconv.Atoi(f.Value.String()); v < 1 {
+				return nil, inputError(fmt.Errorf("flag --%s: %s; accepted: a whole number of at least 1", name, f.Value.String()))
+			}
+		}
+	}
+	s := &responseSetup{c: c}
+	if s.grid, err = sweepGrid(c, fl); err != nil {
+		return nil, err
+	}
+	if s.ref, err = parseReference(fl.reference, len(c.Ports)); err != nil {
+		return nil, err
+	}
+	if s.format, err = parseTouchstoneFormat(fl.format); err != nil {
+		return nil, err
+	}
+	if s.p, err = solveWithTemperature(c, fl.temperature); err != nil {
+		return nil, err
+	}
+	if s.nw, err = smallsignal.New(s.p); err != nil {
+		return nil, analysisError(err)
+	}
+	cautionOutside(cmd.ErrOrStderr(), s.nw.Outside(s.grid))
+	// Every named output is checked before any is written, so that a
+	// refusal leaves none behind.
+	if fl.touchstone != "" {
+		if want := touchstone.Ext(len(c.Ports)); !strings.EqualFold(filepath.Ext(fl.touchstone), want) {
+			return nil, inputError(fmt.Errorf("flag --touchstone: %s has %d ports, so its file should end in %s (got %q)", c.Name, len(c.Ports), want, filepath.Ext(fl.touchstone)))
+		}
+	}
+	return s, nil
+}
+
+// heldResponse runs the whole sweep in memory, as figures need, and
+// writes the files and figures.
+func heldResponse(g *fileGuard, s *responseSetup, fl *responseFlags) (*ac.Response, error) {
+	c := s.c
+	// Refuse a sweep that would not fit rather than run out of memory.
+	if need := sweepBytes(len(s.grid), len(c.Ports), len(c.Probes)); need > maxHeldSweepBytes {
+		return nil, inputError(fmt.Errorf("flag --plots: %d points of %d ports take about %s in memory to draw, more than the %s allowed; accepted: at most %d points with --plots (files and --json stream any number)",
+			len(s.grid), len(c.Ports), si.Format(float64(need), "B", 2), si.Format(maxHeldSweepBytes, "B", 2), maxHeldSweepBytes/sweepBytes(1, len(c.Ports), len(c.Probes))))
+	}
+	r, err := ac.Run(s.nw, s.grid, ac.Settings{Reference: s.ref})
+	if err != nil {
+		return nil, analysisError(err)
+	}
+	figs := plots.ResponseFigures(r, designFrequency(c))
+	if err := g.refuseInputs(append([]string{fl.csvPath, fl.touchstone}, figurePaths(fl.plotsDir, figs)...)...); err != nil {
+		return nil, err
+	}
+	if fl.csvPath != "" {
+		if err := g.writeFileAtomic(fl.csvPath, func(w io.Writer) error { return writeResponseCSV(w, r) }); err != nil {
+			return nil, err
+		}
+	}
+	if fl.touchstone != "" {
+		if err := g.writeFileAtomic(fl.touchstone, func(w io.Writer) error {
+			return writeTouchstone(w, c, r, s.format)
+		}); err != nil {
+			return nil, err
+		}
+	}
+	if err := g.writeFigures(fl.plotsDir, figs); err != nil {
+		return nil, err
+	}
+	return r, nil
 }
 
 // writeResponseTable prints the header and the response at up to rows of
@@ -294,6 +316,10 @@ func writeResponseTable(w io.Writer, c *circuit.Circuit, p *bias.Point, r *ac.Re
 	fmt.Fprintf(w, "  ports        %s\n", strings.Join(ports, ", "))
 	first, last := grid[0], grid[len(grid)-1]
 	fmt.Fprintf(w, "  sweep        %d points, %s to %s\n", len(grid), si.Format(first, "Hz", 4), si.Format(last, "Hz", 4))
+	if len(c.Distributed) > 0 {
+		fmt.Fprintf(w, "  lines        %s\n", report.LineSummary(report.LineParts(c, designFrequency(c))))
+		fmt.Fprintf(w, "  solved by    %s: %s\n", r.Stats.Engine, "lines and blocks are not G + sC, so every point is factored")
+	}
 
 	report.ResponseTable(r, rows).WriteText(w)
 	name1 := r.Ports[0].Name
@@ -370,86 +396,45 @@ func (rw *responseCSV) close() error {
 	return rw.cw.Error()
 }
 
-// streamResponse sweeps nw over grid writing every point to the CSV and
-// Touchstone files flags name as it comes, each whole or not at all, and
-// returns the response with only the points the table shows: the memory a
-// sweep takes does not grow with its length.
-func streamResponse(nw *smallsignal.Network, grid []float64, s ac.Settings, c *circuit.Circuit, fl *responseFlags, format touchstone.Format, jsonOut io.Writer) (*ac.Response, error) {
-	r := &ac.Response{Probes: c.Probes}
-	for i, p := range nw.Ports {
+// streamResponse sweeps the circuit over its grid writing every point
+// to the CSV and Touchstone files flags name, and to jsonOut when not nil,
+// as it comes, each file whole or not at all, and returns the response
+// with only the points the table shows: the memory a sweep takes does not
+// grow with its length.
+func streamResponse(g *fileGuard, s *responseSetup, fl *responseFlags, jsonOut io.Writer) (*ac.Response, error) {
+	settings := ac.Settings{Reference: s.ref}
+	r := &ac.Response{Probes: s.c.Probes}
+	for i, p := range s.nw.Ports {
 		z := p.Impedance
-		if s.Reference != nil {
-			z = s.Reference[i]
+		if s.ref != nil {
+			z = s.ref[i]
 		}
 		r.Ports = append(r.Ports, ac.PortInfo{Name: p.Name, Impedance: z})
 	}
 	keep := map[int]bool{}
-	for _, i := range report.PickRows(len(grid), fl.rows) {
+	for _, i := range report.PickRows(len(s.grid), fl.rows) {
 		keep[i] = true
 	}
 	var sweepErr error
 	sweep := func(csvOut, touchstoneOut io.Writer) error {
-		var rw *responseCSV
-		var tw *touchstone.Writer
-		var err error
-		if csvOut != nil {
-			if rw, err = newResponseCSV(csvOut, r.Ports, r.Probes); err != nil {
-				return err
-			}
-		}
-		if touchstoneOut != nil {
-			if tw, err = touchstone.NewWriter(touchstoneOut, touchstonePorts(r.Ports), format, touchstoneComment(c), len(grid)); err != nil {
-				return err
-			}
-		}
-		var jw *responseJSONWriter
-		if jsonOut != nil {
-			if jw, err = newResponseJSONWriter(jsonOut, r.Ports); err != nil {
-				return err
-			}
+		sinks, err := openResponseSinks(r, s, csvOut, touchstoneOut, jsonOut)
+		if err != nil {
+			return err
 		}
 		k := 0
 		var ws ac.Workspace
-		_, _, sweepErr = ws.Sweep(nw, grid, s, func(pt ac.Point) error {
-			if jw != nil {
-				if err := jw.write(pt, r.Probes); err != nil {
-					return err
-				}
-			}
-			if rw != nil {
-				if err := rw.write(pt); err != nil {
-					return err
-				}
-			}
-			if tw != nil {
-				if err := tw.Write(touchstone.Point{FrequencyHz: pt.FrequencyHz, S: pt.S}); err != nil {
-					return err
-				}
-			}
+		_, _, sweepErr = ws.Sweep(s.nw, s.grid, settings, func(pt ac.Point) error {
 			if keep[k] {
 				r.Points = append(r.Points, pt)
 			}
 			k++
-			return nil
+			return sinks.write(pt)
 		})
 		if sweepErr != nil {
 			return sweepErr
 		}
 		r.Stats = ws.SweepStats()
-		if jw != nil {
-			if err := jw.close(r.Stats); err != nil {
-				return err
-			}
-		}
-		if rw != nil {
-			if err := rw.close(); err != nil {
-				return err
-			}
-		}
-		if tw != nil {
-			return tw.Close()
-		}
-		return nil
+		return sinks.close(r.Stats)
 	}
 	// One file inside the other: each is renamed into place only when the
 	// whole sweep has gone into it.
@@ -457,11 +442,11 @@ func streamResponse(nw *smallsignal.Network, grid []float64, s ac.Settings, c *c
 		if fl.touchstone == "" {
 			return sweep(csvOut, nil)
 		}
-		return writeFileAtomic(fl.touchstone, func(w io.Writer) error { return sweep(csvOut, w) })
+		return g.writeFileAtomic(fl.touchstone, func(w io.Writer) error { return sweep(csvOut, w) })
 	}
 	var err error
 	if fl.csvPath != "" {
-		err = writeFileAtomic(fl.csvPath, withTouchstone)
+		err = g.writeFileAtomic(fl.csvPath, withTouchstone)
 	} else {
 		err = withTouchstone(nil)
 	}
@@ -469,6 +454,74 @@ func streamResponse(nw *smallsignal.Network, grid []float64, s ac.Settings, c *c
 		return nil, analysisError(sweepErr)
 	}
 	return r, err
+}
+
+// responseSinks are the streams a sweep's points go to as they come; a
+// nil one is not written.
+type responseSinks struct {
+	probes []string
+	csv    *responseCSV
+	ts     *touchstone.Writer
+	json   *responseJSONWriter
+}
+
+// openResponseSinks starts each stream that has a writer: its header.
+func openResponseSinks(r *ac.Response, s *responseSetup, csvOut, touchstoneOut, jsonOut io.Writer) (*responseSinks, error) {
+	k := responseSinks{probes: r.Probes}
+	var err error
+	if csvOut != nil {
+		if k.csv, err = newResponseCSV(csvOut, r.Ports, r.Probes); err != nil {
+			return nil, err
+		}
+	}
+	if touchstoneOut != nil {
+		if k.ts, err = touchstone.NewWriter(touchstoneOut, touchstonePorts(r.Ports), s.format, touchstoneComment(s.c), len(s.grid)); err != nil {
+			return nil, err
+		}
+	}
+	if jsonOut != nil {
+		if k.json, err = newResponseJSONWriter(jsonOut, r.Ports, lineParts(s.c, nil)); err != nil {
+			return nil, err
+		}
+	}
+	return &k, nil
+}
+
+// write sends one point to every stream: JSON, CSV, Touchstone.
+func (k *responseSinks) write(pt ac.Point) error {
+	if k.json != nil {
+		if err := k.json.write(pt, k.probes); err != nil {
+			return err
+		}
+	}
+	if k.csv != nil {
+		if err := k.csv.write(pt); err != nil {
+			return err
+		}
+	}
+	if k.ts != nil {
+		return k.ts.Write(touchstone.Point{FrequencyHz: pt.FrequencyHz, S: pt.S})
+	}
+	return nil
+}
+
+// close ends every stream: the JSON document's stats, the buffered CSV,
+// the Touchstone file's check of its point count.
+func (k *responseSinks) close(stats ac.Stats) error {
+	if k.json != nil {
+		if err := k.json.close(stats); err != nil {
+			return err
+		}
+	}
+	if k.csv != nil {
+		if err := k.csv.close(); err != nil {
+			return err
+		}
+	}
+	if k.ts != nil {
+		return k.ts.Close()
+	}
+	return nil
 }
 
 // complexJSON encodes a complex number as [re, im], or null when either
@@ -518,13 +571,14 @@ type portJSON struct {
 }
 
 type responseJSON struct {
-	Ports  []portJSON          `json:"ports"`
-	Points []responsePointJSON `json:"points"`
-	Solver *solverJSON         `json:"solver"`
+	Ports       []portJSON          `json:"ports"`
+	Distributed []linePartJSON      `json:"distributed,omitempty"`
+	Points      []responsePointJSON `json:"points"`
+	Solver      *solverJSON         `json:"solver"`
 }
 
-func responseDocument(r *ac.Response) *responseJSON {
-	d := &responseJSON{Solver: solverJSONOf(r.Stats)}
+func responseDocument(r *ac.Response, c *circuit.Circuit) *responseJSON {
+	d := &responseJSON{Solver: solverJSONOf(r.Stats), Distributed: lineParts(c, nil)}
 	for _, p := range r.Ports {
 		d.Ports = append(d.Ports, portJSON{p.Name, number(p.Impedance)})
 	}
@@ -568,7 +622,7 @@ type responseJSONWriter struct {
 	points int
 }
 
-func newResponseJSONWriter(w io.Writer, ports []ac.PortInfo) (*responseJSONWriter, error) {
+func newResponseJSONWriter(w io.Writer, ports []ac.PortInfo, lines []linePartJSON) (*responseJSONWriter, error) {
 	var js []portJSON
 	for _, p := range ports {
 		js = append(js, portJSON{p.Name, number(p.Impedance)})
@@ -578,7 +632,15 @@ func newResponseJSONWriter(w io.Writer, ports []ac.PortInfo) (*responseJSONWrite
 		return nil, err
 	}
 	bw := bufio.NewWriter(w)
-	fmt.Fprintf(bw, "{\n  \"ports\": %s,\n  \"points\": [", head)
+	fmt.Fprintf(bw, "{\n  \"ports\": %s,", head)
+	if len(lines) > 0 {
+		dist, err := json.MarshalIndent(lines, "  ", "  ")
+		if err != nil {
+			return nil, err
+		}
+		fmt.Fprintf(bw, "\n  \"distributed\": %s,", dist)
+	}
+	fmt.Fprintf(bw, "\n  \"points\": [")
 	return &responseJSONWriter{w: bw}, nil
 }
 
@@ -619,10 +681,12 @@ type solverJSON struct {
 	ReducedPoints int      `json:"reduced_points"`
 	LUPoints      int      `json:"lu_points"`
 	Refused       []string `json:"refused"`
+	// Elements names the lines and blocks that kept the sweep on the LU.
+	Elements []string `json:"elements,omitempty"`
 }
 
 func solverJSONOf(st ac.Stats) *solverJSON {
-	j := &solverJSON{Engine: string(st.Engine), ReducedPoints: st.Reduced, LUPoints: st.LU, Refused: []string{}}
+	j := &solverJSON{Engine: string(st.Engine), ReducedPoints: st.Reduced, LUPoints: st.LU, Refused: []string{}, Elements: st.Elements}
 	for _, e := range st.Refused {
 		j.Refused = append(j.Refused, string(e))
 	}

@@ -10,6 +10,7 @@ import (
 
 	"qpoint/ac"
 	"qpoint/ac/balance"
+	"qpoint/ac/steady"
 	"qpoint/plots"
 	"qpoint/plots/report"
 )
@@ -27,14 +28,14 @@ func addSteadyFlags(f *pflag.FlagSet, fl *steadyFlags) {
 	f.IntVar(&fl.truncationOrder, "truncation-order", 7, "starting order of the two-tone truncation (3 to 60); it grows until the top products fall below 1e-10")
 }
 
-// steadyMethods resolves the flags into the methods ac.SteadyState runs,
+// steadyMethods resolves the flags into the methods steady.Solve runs,
 // checking the request against the network and drive: search for the
 // validity limit and the one-tone level sweep, wave for the waveforms
 // reported beside the estimate. They differ only under auto with a second
 // tone: the two-tone waveform needs harmonic balance, and the one-tone
 // waveform beside it is solved the same way so that the waveform the
 // output reports has one method.
-func (fl *steadyFlags) steadyMethods(s *distortionSetup) (search, wave ac.SteadyMethod, err error) {
+func (fl *steadyFlags) steadyMethods(s *distortionSetup) (search, wave steady.Method, err error) {
 	choice, err := balance.ParseChoice(fl.method)
 	if err != nil {
 		return nil, nil, inputError(fmt.Errorf("flag --method: %w", err))
@@ -50,6 +51,9 @@ func (fl *steadyFlags) steadyMethods(s *distortionSetup) (search, wave ac.Steady
 	}
 	if fl.truncationOrder < 2 || fl.truncationOrder > 60 {
 		return nil, nil, inputError(fmt.Errorf("flag --truncation-order: %d; accepted: 2 to 60 (3 or more for the diamond)", fl.truncationOrder))
+	}
+	if choice == balance.Shooting && s.nw.HasElements() {
+		return nil, nil, inputError(fmt.Errorf("flag --method: shooting solves the circuit in time and cannot carry %s, known by S-matrices in frequency; accepted: hb or auto (harmonic balance takes them)", strings.Join(s.nw.ElementNames(), ", ")))
 	}
 	m := balance.Method{Choice: choice, Settings: balance.Settings{Truncation: tr, Order: fl.truncationOrder}}
 	w := m
@@ -77,7 +81,7 @@ type productJSON struct {
 
 // addTwoTone puts the two-tone steady state's products into the waveform
 // document.
-func (j *waveformJSON) addTwoTone(st *ac.Steady) {
+func (j *waveformJSON) addTwoTone(st *steady.State) {
 	j.IM2dBc = ptr(st.IM2dBc())
 	j.IM3dBc = ptr(st.IM3dBc())
 	j.Products = []productJSON{}
@@ -86,7 +90,7 @@ func (j *waveformJSON) addTwoTone(st *ac.Steady) {
 	}
 }
 
-func writeTwoTone(w io.Writer, st *ac.Steady, est *ac.Estimate) {
+func writeTwoTone(w io.Writer, st *steady.State, est *ac.Estimate) {
 	report.TwoToneTable(st, est).WriteText(w)
 	if note := report.TruncationNote(st); note != "" {
 		fmt.Fprintf(w, "  %s\n", note)
@@ -109,7 +113,7 @@ func writeTwoTone(w io.Writer, st *ac.Steady, est *ac.Estimate) {
 	fmt.Fprintf(w, "  waveform against estimate: %s\n", strings.Join(parts, ", "))
 }
 
-func writeTwoToneSweep(w io.Writer, pts []ac.LevelPoint, ip *ac.Intercept, ipErr error, est *ac.Estimate) {
+func writeTwoToneSweep(w io.Writer, pts []steady.LevelPoint, ip *steady.Intercept, ipErr error, est *ac.Estimate) {
 	report.TwoToneSweepTable(pts).WriteText(w)
 	if ipErr != nil {
 		fmt.Fprintf(w, "  no measured intercept: %v\n", ipErr)
@@ -138,7 +142,7 @@ type interceptJSON struct {
 	LevelsFound int     `json:"levels_used"`
 }
 
-func interceptJSONOf(ip *ac.Intercept) *interceptJSON {
+func interceptJSONOf(ip *steady.Intercept) *interceptJSON {
 	j := &interceptJSON{IIP3DBm: number(ip.IIP3DBm), Slope: number(ip.Slope), FromDBm: number(ip.FromDBm), ToDBm: number(ip.ToDBm), LevelsFound: ip.Levels}
 	if !math.IsNaN(ip.OIP3DBm) {
 		j.OIP3DBm = ptr(ip.OIP3DBm)
@@ -146,34 +150,8 @@ func interceptJSONOf(ip *ac.Intercept) *interceptJSON {
 	return j
 }
 
-// twoToneLevelSweep solves the two-tone waveform at each level, each
-// from the last, and reads the intercept from it as a bench would.
-func twoToneLevelSweep(cmd interface{ ErrOrStderr() io.Writer }, s *distortionSetup, settings ac.SteadySettings,
-	levels []float64, doc *distortionJSON) ([]ac.LevelPoint, *ac.Intercept, error) {
-	bar := newProgress(cmd.ErrOrStderr(), "two-tone sweep", len(levels))
-	pts, err := ac.LevelSweep(s.nw, s.drive, levels, settings, bar.update)
-	bar.done()
-	if err != nil {
-		fmt.Fprintf(cmd.ErrOrStderr(), "qpoint: two-tone level sweep stopped: %v\n", err)
-	}
-	z0 := 0.0
-	if s.drive.Output.Port >= 0 {
-		z0 = s.nw.Ports[s.drive.Output.Port].Impedance
-	}
-	ip, ipErr := ac.MeasuredIntercept(pts, z0)
-	for _, p := range pts {
-		w := waveformJSONOf(p.Steady)
-		w.addTwoTone(p.Steady)
-		doc.TwoToneSweep = append(doc.TwoToneSweep, levelJSON{number(p.LevelDBm), w})
-	}
-	if ipErr == nil {
-		doc.MeasuredIntercept = interceptJSONOf(ip)
-	}
-	return pts, ip, ipErr
-}
-
 // twoToneFigures is the two-tone spectrum, when there is a second tone.
-func twoToneFigures(two *ac.Steady, est *ac.Estimate) []*plots.Figure {
+func twoToneFigures(two *steady.State, est *ac.Estimate) []*plots.Figure {
 	if two == nil {
 		return nil
 	}

@@ -11,10 +11,18 @@ import (
 // TestDistortionMethodsAgree: on every demo, `distortion` gives the same
 // waveform harmonics with harmonic balance as with shooting (0.001 dB on
 // every harmonic within 120 dB of the largest), and the JSON says which
-// method ran.
+// method ran. A demo with lines, which shooting cannot carry, is refused
+// by --method shooting with a message naming harmonic balance.
 func TestDistortionMethodsAgree(t *testing.T) {
 	files, _ := filepath.Glob(filepath.Join(demoDir, "*.yaml"))
 	for _, f := range files {
+		if filepath.Base(f) == "matched_detector.yaml" {
+			_, errs, code := runCLI(t, "distortion", f, "--no-limit", "--method", "shooting")
+			if code != 2 || !strings.Contains(errs, "harmonic balance takes them") {
+				t.Errorf("%s --method shooting: exit %d, %q; want 2 and a refusal naming harmonic balance", f, code, errs)
+			}
+			continue
+		}
 		get := func(method string) (string, []float64) {
 			out, errs, code := runCLI(t, "distortion", f, "--json", "--no-limit", "--second-tone", "none", "--method", method, "--harmonics", "7")
 			if code != 0 {

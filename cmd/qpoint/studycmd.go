@@ -127,12 +127,12 @@ type studySetup struct {
 	value    float64
 }
 
-func resolveStudy(warn io.Writer, path string, fl *studyFlags) (*studySetup, error) {
-	c, err := loadCircuit(warn, path, fl.sets, "")
+func resolveStudy(g *fileGuard, warn io.Writer, path string, fl *studyFlags) (*studySetup, error) {
+	c, err := g.loadCircuit(warn, path, fl.sets, "")
 	if err != nil {
 		return nil, err
 	}
-	if err := checkOutputsEarly(fl.plotsDir, fl.csvPath); err != nil {
+	if err := g.checkOutputsEarly(fl.plotsDir, fl.csvPath); err != nil {
 		return nil, err
 	}
 	return resolveStudyFor(c, fl)
@@ -228,7 +228,8 @@ func frequencyList(flag, text string) ([]float64, error) {
 }
 
 func runStudy(cmd *cobra.Command, path string, fl *studyFlags) error {
-	s, err := resolveStudy(cmd.ErrOrStderr(), path, fl)
+	g := guardOf(cmd)
+	s, err := resolveStudy(g, cmd.ErrOrStderr(), path, fl)
 	if err != nil {
 		return err
 	}
@@ -275,16 +276,16 @@ func runStudy(cmd *cobra.Command, path string, fl *studyFlags) error {
 		}
 	}
 	// Every named output is checked before any is written.
-	if err := refuseInputs(append([]string{fl.csvPath}, figurePaths(fl.plotsDir, figs)...)...); err != nil {
+	if err := g.refuseInputs(append([]string{fl.csvPath}, figurePaths(fl.plotsDir, figs)...)...); err != nil {
 		return err
 	}
 	if fl.csvPath != "" {
-		if err := writeFileAtomic(fl.csvPath, func(w io.Writer) error { return writeStudyCSV(w, r, cols) }); err != nil {
+		if err := g.writeFileAtomic(fl.csvPath, func(w io.Writer) error { return writeStudyCSV(w, r, cols) }); err != nil {
 			return err
 		}
 	}
 	if fl.plotsDir != "" {
-		if err := writeFigures(fl.plotsDir, figs); err != nil {
+		if err := g.writeFigures(fl.plotsDir, figs); err != nil {
 			return err
 		}
 	}

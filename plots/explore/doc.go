@@ -12,7 +12,7 @@
 // A Session holds the circuit file as read, its Controls, and what the
 // last move solved, so that each Move starts from it: the bias point
 // (bias.Settings.Start), the validity limit, its waveform and how steeply
-// the estimates' error grew there (ac.ValiditySearch). A move that a
+// the estimates' error grew there (steady.ValiditySearch). A move that a
 // newer move or check makes stale is cancelled at its next waveform
 // solve. Every analysis is resolved on the plan (qpoint/ac/plan), as the
 // command line and the report resolve theirs; values are applied with

@@ -225,9 +225,11 @@ func TestStaleMoveCancelled(t *testing.T) {
 	}
 }
 
-// TestCheck: the waveform check reports its progress and sets the
-// waveform beside the estimate; its validity limit at full accuracy lies
-// within the move's resolution of the move's.
+// TestCheck: the waveform check (the report's distortion run) reports
+// its progress and sets the waveform beside the estimate, with the level
+// sweep and the detector's transfer curve; its validity limit at full
+// accuracy (ValidityLimit's climb) lies within the move's resolution of
+// the move's (ValidityNear's, at 63 samples a period).
 func TestCheck(t *testing.T) {
 	if testing.Short() {
 		t.Skip("the waveform check solves about 60 waveforms")
@@ -248,7 +250,7 @@ func TestCheck(t *testing.T) {
 	if err != nil || c.Failure != "" || c.Errors != nil {
 		t.Fatalf("%v %s %v", err, c.Failure, c.Errors)
 	}
-	for _, st := range []string{"waveform", "validity limit", "output against level", "detector transfer"} {
+	for _, st := range []string{"waveform and validity limit", "level sweep"} {
 		if stages[st] == 0 {
 			t.Errorf("no progress from stage %q: %v", st, stages)
 		}
@@ -256,6 +258,15 @@ func TestCheck(t *testing.T) {
 	for _, id := range []string{"waveform", "comparison", "stress"} {
 		if tableByID(c.Tables, id) == nil {
 			t.Errorf("no %s table", id)
+		}
+	}
+	figs := map[string]bool{}
+	for _, f := range c.Figures {
+		figs[f.ID] = true
+	}
+	for _, id := range []string{"harmonics", "level-sweep", "transfer"} {
+		if !figs[id] {
+			t.Errorf("no %s figure", id)
 		}
 	}
 	var limit float64

@@ -1,11 +1,13 @@
 package explore
 
 import (
+	"bytes"
 	"fmt"
 	"slices"
 	"strings"
 
 	"qpoint/bias/circuit"
+	"qpoint/plots/report"
 )
 
 // CircuitFile returns the circuit file with the request's values written
@@ -76,6 +78,24 @@ func (s *Session) ReportCircuit(req Request) (*circuit.Circuit, error) {
 		c.Analysis.Distortion = def
 	}
 	return &c, nil
+}
+
+// ReportFile returns the HTML report at the request's values
+// (report.Build on ReportCircuit, as `qpoint report` builds it).
+func (s *Session) ReportFile(req Request) ([]byte, error) {
+	c, err := s.ReportCircuit(req)
+	if err != nil {
+		return nil, err
+	}
+	doc, err := report.Build(c, report.Settings{})
+	if err != nil {
+		return nil, err
+	}
+	var b bytes.Buffer
+	if err := report.Write(&b, doc); err != nil {
+		return nil, err
+	}
+	return b.Bytes(), nil
 }
 
 // errorsOf joins a request's problems into one error, in a stable order.

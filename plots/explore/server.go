@@ -10,8 +10,6 @@ import (
 	"net/http"
 	"strings"
 	"sync"
-
-	"qpoint/bias/circuit"
 )
 
 //go:embed page
@@ -39,7 +37,7 @@ type Settings struct {
 	CircuitPath string
 	SaveCircuit func(data []byte) error
 	ReportPath  string
-	SaveReport  func(c *circuit.Circuit) error
+	SaveReport  func(data []byte) error
 }
 
 // Handler serves the explorer's page and its requests for session s. It
@@ -283,13 +281,13 @@ func (h *handler) saveReport(w http.ResponseWriter, r *http.Request, req Request
 		http.NotFound(w, r)
 		return
 	}
-	c, err := h.s.ReportCircuit(req)
+	data, err := h.s.ReportFile(req)
 	if err != nil {
 		writeJSON(w, http.StatusBadRequest, problem{err.Error()})
 		return
 	}
 	h.save.Lock()
-	err = h.set.SaveReport(c)
+	err = h.set.SaveReport(data)
 	h.save.Unlock()
 	if err != nil {
 		writeJSON(w, http.StatusInternalServerError, problem{err.Error()})

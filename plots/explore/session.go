@@ -14,6 +14,7 @@ import (
 
 	"qpoint/ac"
 	"qpoint/ac/plan"
+	"qpoint/ac/steady"
 	"qpoint/bias"
 	"qpoint/bias/circuit"
 	"qpoint/bias/diode"
@@ -47,7 +48,7 @@ type Session struct {
 
 	mu    sync.Mutex // one analysis at a time; guards what follows
 	last  *bias.Point
-	held  *ac.Steady
+	held  *steady.State
 	limit float64 // the last validity limit (dBm), NaN for none
 	slope float64 // how steeply the estimates' difference grew there (decades/dB)
 	fails float64 // where the estimates were seen not to hold above it; NaN for none
@@ -297,9 +298,9 @@ func (s *Session) begin(parent context.Context) (context.Context, context.Cancel
 
 // moveSteady is how a move solves the validity search's waveforms:
 // shooting at 63 samples a period (Richardson over 63 and 127), a quarter
-// of the waveform check's cost; the check repeats the search at the full
-// 255 (and TestValidityNearAgrees holds the two searches together).
-var moveSteady = ac.SteadySettings{Harmonics: 5, Samples: 63}
+// of the cost at the 255 the waveform check's search takes
+// (TestValidityNearAgrees holds the searches together).
+var moveSteady = steady.Settings{Harmonics: 5, Samples: 63}
 
 // moveResolutionDB is the width a move's validity search bisects to, and
 // moveMaxSolves the waveform solves it may spend closing its bracket:
@@ -413,7 +414,7 @@ func (s *Session) Move(ctx context.Context, req Request) (*View, error) {
 	s.last = p
 	if dist.validity != nil {
 		switch dist.validity.Outcome {
-		case ac.LimitFound, ac.HeldThroughout:
+		case steady.LimitFound, steady.HeldThroughout:
 			s.limit, s.held, s.fails = dist.validity.LevelDBm, dist.validity.Held, dist.validity.FailsDBm
 			if dist.validity.Slope > 0 {
 				s.slope = dist.validity.Slope
@@ -434,7 +435,7 @@ type part struct {
 	err      error
 	ms       float64
 	solves   int
-	validity *ac.Validity
+	validity *steady.Validity
 	refine   bool
 }
 
@@ -569,10 +570,11 @@ func (s *Session) distortion(ctx context.Context, pt *part, nw *smallsignal.Netw
 	}
 	lo := math.Max(circuit.MinLevelDBm, d.LevelDBm-100)
 	hi := math.Min(circuit.MaxLevelDBm, d.LevelDBm+40)
-	steady := moveSteady
-	steady.Start = s.held
-	v, err := ac.ValidityNear(ctx, nw, d.OneTone(), ac.ValiditySearch{GuessDBm: guess, ResolutionDB: moveResolutionDB, TolDB: 0.5,
-		LowestDBm: lo, HighestDBm: hi, Steady: steady, Slope: s.slope, MaxSolves: moveMaxSolves})
+	settings := moveSteady
+	settings.Start = s.held
+	settings.Method = plan.ForElements(nw, nil) // shooting, or harmonic balance where lines need it
+	v, err := steady.ValidityNear(ctx, nw, d.OneTone(), steady.ValiditySearch{GuessDBm: guess, ResolutionDB: moveResolutionDB, TolDB: 0.5,
+		LowestDBm: lo, HighestDBm: hi, Steady: settings, Slope: s.slope, MaxSolves: moveMaxSolves})
 	if err != nil {
 		if ctx.Err() != nil {
 			return nil // stale: the move is dropped
@@ -582,13 +584,13 @@ func (s *Session) distortion(ctx context.Context, pt *part, nw *smallsignal.Netw
 	pt.solves, pt.validity = v.Steps, v
 	card := Card{Label: "small-signal limit", Detail: fmt.Sprintf("estimates within 0.5 dB of the waveform (%d waveform solves, %.2f dB steps)", v.Steps, moveResolutionDB)}
 	switch v.Outcome {
-	case ac.LimitFound:
+	case steady.LimitFound:
 		card.Value = fmt.Sprintf("%.1f dBm", v.LevelDBm)
 		if v.FailsDBm-v.LevelDBm > moveResolutionDB+1e-9 {
 			card.Detail = fmt.Sprintf("estimates within 0.5 dB here, not at %.1f dBm; refining (%d waveform solves)", v.FailsDBm, v.Steps)
 			pt.refine = true
 		}
-	case ac.HeldThroughout:
+	case steady.HeldThroughout:
 		card.Value = fmt.Sprintf("above %.1f dBm", v.LevelDBm)
 	default:
 		card.Value, card.Detail = "not found", v.Note()

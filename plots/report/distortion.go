@@ -9,6 +9,7 @@ import (
 
 	"qpoint/ac"
 	"qpoint/ac/balance"
+	"qpoint/ac/steady"
 	"qpoint/bias/si"
 )
 
@@ -127,7 +128,7 @@ func ContributionTable(e *ac.Estimate) *Table {
 
 // StressTable gives every diode's extremes over the period: what its
 // ratings, or the breakdown knee, are to be held against.
-func StressTable(s *ac.Steady) *Table {
+func StressTable(s *steady.State) *Table {
 	t := &Table{Caption: "Diode extremes over the period (waveform)", Header: []string{"diode", "peak forward current", "peak reverse voltage", "mean power"}}
 	for _, d := range s.Stress {
 		t.Add(d.Name, si.Format(d.PeakCurrent, "A", 4), si.Format(d.PeakReverseVoltage, "V", 4), si.Format(d.MeanPower, "W", 4))
@@ -135,7 +136,7 @@ func StressTable(s *ac.Steady) *Table {
 	return t
 }
 
-func WaveformTable(s *ac.Steady) (*Table, string) {
+func WaveformTable(s *steady.State) (*Table, string) {
 	t := &Table{Caption: "Waveform (periodic steady state by " + MethodLine(s) + ")",
 		Header: []string{"order", "amplitude", "relative", "phase"}}
 	fund := s.Output[1].Amplitude
@@ -163,7 +164,7 @@ func WaveformTable(s *ac.Steady) (*Table, string) {
 	return t, fmt.Sprintf("THD %.4g %%; %d Newton iterations; %s residual %.2g", s.THDPercent, s.Iterations, ResidualName(s), s.Residual)
 }
 
-func ComparisonTable(cs []ac.Comparison, v *ac.Validity) (*Table, string) {
+func ComparisonTable(cs []steady.Comparison, v *steady.Validity) (*Table, string) {
 	t := &Table{Caption: "Estimate beside waveform", Header: []string{"product", "estimate", "waveform", "difference"}}
 	names := map[int]string{0: "DC shift", 1: "fundamental", 2: "2nd harmonic", 3: "3rd harmonic"}
 	for _, c := range cs {
@@ -187,12 +188,12 @@ func ComparisonTable(cs []ac.Comparison, v *ac.Validity) (*Table, string) {
 	return t, note
 }
 
-func LevelSweepTable(pts []ac.LevelPoint) *Table {
+func LevelSweepTable(pts []steady.LevelPoint) *Table {
 	t := &Table{Caption: "Level sweep (waveform)", Header: []string{"input", "fundamental", "2nd", "3rd", "DC shift", "THD"}}
 	for _, p := range pts {
 		o := p.Steady.Output
 		floor := "< " + si.Format(p.Steady.NoiseFloor, "V", 2)
-		cell := func(h ac.Harmonic, text string) string {
+		cell := func(h steady.Harmonic, text string) string {
 			if h.BelowFloor || o[1].BelowFloor {
 				return "below floor"
 			}
@@ -221,7 +222,7 @@ func LevelSweepTable(pts []ac.LevelPoint) *Table {
 
 // MethodLine says which method found a steady state and, for the
 // automatic choice, why.
-func MethodLine(st *ac.Steady) string {
+func MethodLine(st *steady.State) string {
 	line := st.Method
 	if r, ok := st.State.(*balance.Result); ok {
 		if r.Drive.SecondToneHz != 0 {
@@ -229,7 +230,7 @@ func MethodLine(st *ac.Steady) string {
 		} else {
 			line += fmt.Sprintf(" (%d harmonics)", r.Stats.Harmonics)
 		}
-	} else if st.Method == ac.MethodShooting {
+	} else if st.Method == steady.MethodShooting {
 		line += fmt.Sprintf(" (%d and %d samples per period)", st.Samples, 2*st.Samples+1)
 	}
 	if st.Choice != "" {
@@ -241,8 +242,8 @@ func MethodLine(st *ac.Steady) string {
 func TruncationName(r *balance.Result) string { return r.Truncation().String() }
 
 // ResidualName says what a steady state's residual measures.
-func ResidualName(st *ac.Steady) string {
-	if st.Method == ac.MethodHarmonicBalance {
+func ResidualName(st *steady.State) string {
+	if st.Method == steady.MethodHarmonicBalance {
 		return "KCL"
 	}
 	return "periodicity"
@@ -250,7 +251,7 @@ func ResidualName(st *ac.Steady) string {
 
 // TwoToneTable lists the two-tone waveform's products, strongest first
 // within each order, and sets IM2 and IM3 beside the Volterra estimate.
-func TwoToneTable(st *ac.Steady, est *ac.Estimate) *Table {
+func TwoToneTable(st *steady.State, est *ac.Estimate) *Table {
 	t := &Table{Caption: "Two-tone waveform (" + MethodLine(st) + ")",
 		Header: []string{"product", "frequency", "amplitude", "relative to f1", "phase", "estimate"}}
 	f1, _ := st.Product(1, 0)
@@ -290,7 +291,7 @@ func TwoToneTable(st *ac.Steady, est *ac.Estimate) *Table {
 
 // TwoToneSweepTable lists a two-tone level sweep and the intercept read
 // from it as a bench reads it, beside the estimate's.
-func TwoToneSweepTable(pts []ac.LevelPoint) *Table {
+func TwoToneSweepTable(pts []steady.LevelPoint) *Table {
 	t := &Table{Caption: "Two-tone level sweep (waveform)", Header: []string{"input per tone", "fundamental", "IM2", "IM3"}}
 	for _, p := range pts {
 		f1, _ := p.Steady.Product(1, 0)
@@ -303,7 +304,7 @@ func TwoToneSweepTable(pts []ac.LevelPoint) *Table {
 // largest truncation before its top products fell below the tolerance,
 // how much the reported products still moved in the last growth: a bound
 // on the truncation's error in them. Empty otherwise.
-func TruncationNote(st *ac.Steady) string {
+func TruncationNote(st *steady.State) string {
 	r, ok := st.State.(*balance.Result)
 	if !ok || r.Stats.Unsettled == 0 {
 		return ""
