@@ -5,6 +5,7 @@ import (
 	"math"
 	"math/cmplx"
 	"strconv"
+	"sync"
 
 	"qpoint/bias"
 	"qpoint/bias/circuit"
@@ -48,6 +49,40 @@ type Element struct {
 	MaxHz float64
 
 	Part *circuit.Distributed
+
+	memo *scatteringMemo // a line's S at the frequencies asked so far
+}
+
+// scatteringMemo keeps a line's S-matrices by frequency. A line's law
+// does not depend on the bias, and harmonic balance asks for the same
+// harmonics at every Newton step, so Scattering computes each once; a
+// Workspace hands the memo on to the next network of the same circuit. It
+// is safe for concurrent use, and holds at most memoSize frequencies (it
+// starts again when full, so that a long sweep does not grow it).
+type scatteringMemo struct {
+	mu sync.Mutex
+	at map[float64][]complex128
+}
+
+const memoSize = 4096
+
+func (m *scatteringMemo) get(freqHz float64, s []complex128) bool {
+	m.mu.Lock()
+	defer m.mu.Unlock()
+	v, ok := m.at[freqHz]
+	if ok {
+		copy(s, v)
+	}
+	return ok
+}
+
+func (m *scatteringMemo) put(freqHz float64, s []complex128) {
+	m.mu.Lock()
+	defer m.mu.Unlock()
+	if m.at == nil || len(m.at) >= memoSize {
+		m.at = make(map[float64][]complex128, 64)
+	}
+	m.at[freqHz] = append([]complex128(nil), s...)
 }
 
 // Ports returns the element's port count.
@@ -69,12 +104,18 @@ func (nw *Network) ElementNames() []string {
 
 // addElements numbers the circuit's distributed parts from unknown first
 // and returns the next free unknown.
-func (nw *Network) addElements(c *circuit.Circuit, first int, node func(string) (int, error)) (int, error) {
+func (nw *Network) addElements(c *circuit.Circuit, first int, node func(string) (int, error), memos map[*circuit.Distributed]*scatteringMemo) (int, error) {
 	nw.Elements = nw.Elements[:0]
 	n := first
 	for i := range c.Distributed {
 		d := &c.Distributed[i]
 		e := Element{Name: d.Name, Type: d.Type, Branch: n, Shield: -1, Line: d.Line, Block: d.Block, DC: d.DC, Part: d}
+		if d.Line != nil {
+			if e.memo = memos[d]; e.memo == nil {
+				e.memo = new(scatteringMemo)
+				memos[d] = e.memo
+			}
+		}
 		for k := range d.Terminals {
 			a, err := node(d.Terminals[k])
 			if err != nil {
@@ -149,7 +190,12 @@ func (e *Element) Scattering(freqHz float64, s []complex128) bool {
 	if e.Block != nil {
 		return e.Block.At(freqHz, s)
 	}
-	e.Line.At(freqHz).Scattering(e.References[0], s)
+	if e.memo == nil || !e.memo.get(freqHz, s) {
+		e.Line.At(freqHz).Scattering(e.References[0], s)
+		if e.memo != nil {
+			e.memo.put(freqHz, s)
+		}
+	}
 	return e.MaxHz == 0 || freqHz <= e.MaxHz
 }
 

@@ -116,6 +116,9 @@ func New(p *bias.Point) (*Network, error) {
 // use: give each goroutine its own.
 type Workspace struct {
 	network *Network
+	// memos keeps each line's S-matrices from one network to the next
+	// (scatteringMemo): a line's law does not change with the bias.
+	memos map[*circuit.Distributed]*scatteringMemo
 
 	conds, caps, diodeConds, diodeCaps, currentSources []twoTerminal
 	branches                                           []branch
@@ -236,7 +239,10 @@ func (w *Workspace) New(p *bias.Point) (*Network, error) {
 
 	nNodes := len(nw.Names)
 	nw.NodeUnknowns = nNodes
-	n, err := nw.addElements(c, nNodes+len(branches), node)
+	if w.memos == nil {
+		w.memos = map[*circuit.Distributed]*scatteringMemo{}
+	}
+	n, err := nw.addElements(c, nNodes+len(branches), node, w.memos)
 	if err != nil {
 		return nil, err
 	}

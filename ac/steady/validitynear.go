@@ -4,6 +4,7 @@ import (
 	"context"
 	"fmt"
 	"math"
+	"time"
 
 	"qpoint/ac"
 	"qpoint/smallsignal"
@@ -41,6 +42,11 @@ type ValiditySearch struct {
 	// for a caller that must answer in bounded time and refines later.
 	// Finding the bracket is never cut short.
 	MaxSolves int
+	// Budget, when positive, bounds the time the same way: once the
+	// limit is bracketed, no solve starts after Budget has passed since
+	// the search began. Unlike MaxSolves it depends on the machine; it
+	// is for an interactive caller that refines later.
+	Budget time.Duration
 	// Progress, when not nil, is called after each waveform solve with
 	// the number of solves so far.
 	Progress func(solves int)
@@ -91,6 +97,7 @@ func ValidityNear(ctx context.Context, nw *smallsignal.Network, d ac.Drive, s Va
 	if tol <= 0 {
 		tol = 0.5
 	}
+	began := time.Now()
 	z0 := nw.Ports[d.Input].Impedance
 	g := math.Min(math.Max(s.GuessDBm, s.LowestDBm), s.HighestDBm)
 	if math.IsNaN(g) {
@@ -209,7 +216,7 @@ func ValidityNear(ctx context.Context, nw *smallsignal.Network, d ac.Drive, s Va
 
 	// Close the bracket to the resolution.
 	lastWidth := math.Inf(1)
-	for w := bad.l - good.l; w > res && (s.MaxSolves <= 0 || v.Steps < s.MaxSolves); w = bad.l - good.l {
+	for w := bad.l - good.l; w > res && (s.MaxSolves <= 0 || v.Steps < s.MaxSolves) && (s.Budget <= 0 || time.Since(began) < s.Budget); w = bad.l - good.l {
 		l := crossing(good, bad, tol, s.Slope)
 		switch {
 		case math.IsNaN(l) || w > lastWidth/2:

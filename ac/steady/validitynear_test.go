@@ -5,6 +5,7 @@ import (
 	"errors"
 	"math"
 	"testing"
+	"time"
 
 	"qpoint/ac"
 )
@@ -114,5 +115,14 @@ func TestValidityNearBounded(t *testing.T) {
 	if !(cut.Steps < full.Steps) || !(cut.LevelDBm <= full.LevelDBm+0.05) || !(cut.FailsDBm >= full.FailsDBm-0.05) {
 		t.Errorf("cut at %d solves: holds at %.3f, fails at %.3f; the full search (%d solves): %.3f to %.3f",
 			cut.Steps, cut.LevelDBm, cut.FailsDBm, full.Steps, full.LevelDBm, full.FailsDBm)
+	}
+	// A budget already spent stops the search as soon as it brackets.
+	s.MaxSolves, s.Budget = 0, time.Nanosecond
+	spent, err := ValidityNear(context.Background(), nw, d, s)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if spent.Outcome != LimitFound || spent.Steps > cut.Steps || !(spent.FailsDBm > spent.LevelDBm) {
+		t.Errorf("spent budget: %d solves, %.3f to %.3f; cut at 3: %d", spent.Steps, spent.LevelDBm, spent.FailsDBm, cut.Steps)
 	}
 }

@@ -28,6 +28,7 @@ func BenchmarkMove(b *testing.B) {
 		{"attenuator", "Vctl.value"},
 		{"limiter", "temperature"},
 		{"mixer", "Vbias.value"},
+		{"matched_detector", "temperature"},
 	} {
 		for _, jump := range []bool{false, true} {
 			name := k.demo

@@ -60,7 +60,7 @@ func (s *Session) Check(ctx context.Context, req Request, progress func(Progress
 	var nw *smallsignal.Network
 	var err error
 	if len(errs) == 0 && vals.drive != nil {
-		_, nw, err = s.solve(vals.c)
+		_, nw, err = s.solve(vals.c, nil)
 	}
 	s.mu.Unlock()
 	switch {

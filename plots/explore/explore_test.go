@@ -16,7 +16,7 @@ import (
 	"qpoint/plots/report"
 )
 
-var demos = []string{"detector", "attenuator", "limiter", "mixer"}
+var demos = []string{"detector", "attenuator", "limiter", "mixer", "matched_detector"}
 
 func demoPath(name string) string {
 	return filepath.Join("..", "..", "testdata", "demo", name+".yaml")
@@ -61,7 +61,7 @@ func control(t testing.TB, s *Session, name string) Control {
 // --set prints the same table, report.BiasTables): continuation changes
 // how Newton starts, not where it ends, to the solver's tolerance.
 func TestMoveEqualsBias(t *testing.T) {
-	moves := map[string]string{"detector": "Rbias.value", "attenuator": "Vctl.value", "limiter": "temperature", "mixer": "Vbias.value"}
+	moves := map[string]string{"detector": "Rbias.value", "attenuator": "Vctl.value", "limiter": "temperature", "mixer": "Vbias.value", "matched_detector": "temperature"}
 	for _, name := range demos {
 		s := newSession(t, name)
 		vals := startValues(s)
@@ -117,7 +117,7 @@ func tableByID(ts []Table, id string) *Table {
 
 // TestMovePanels: a move of each demo draws the I–V, transmission and
 // Smith figures and the estimate, and finds a validity limit; a detector
-// output gets its sensitivity, the other demos none.
+// output (the two detector demos) gets its sensitivity, the others none.
 func TestMovePanels(t *testing.T) {
 	for _, name := range demos {
 		s := newSession(t, name)
@@ -137,7 +137,7 @@ func TestMovePanels(t *testing.T) {
 		if tableByID(v.Tables, "estimate") == nil {
 			t.Errorf("%s: no estimate", name)
 		}
-		if (tableByID(v.Tables, "detector") != nil) != (name == "detector") {
+		if (tableByID(v.Tables, "detector") != nil) != strings.HasSuffix(name, "detector") {
 			t.Errorf("%s: detector table present %v", name, tableByID(v.Tables, "detector") != nil)
 		}
 		found := false
