@@ -313,7 +313,7 @@ var moveSteady = steady.Settings{Harmonics: 5, Samples: 63}
 const (
 	moveResolutionDB = 0.25
 	moveMaxSolves    = 4
-	moveBudget       = 20 * time.Millisecond
+	moveBudget       = 12 * time.Millisecond
 )
 
 // moveNoiseTolerance is how far a move integrates a detector's video
