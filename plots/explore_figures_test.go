@@ -9,15 +9,17 @@ import (
 
 // TestOperatingPointFigure: every demo diode's I–V figure draws, names
 // its load in Thevenin form (the detector's 3.3 V behind Rbias plus the
-// video port's 100 kΩ, read off the schematic) and holds the Q point
-// inside its axes; the limiter's inductor across the pair is a held
-// voltage, drawn as a vertical line.
+// video port's 100 kΩ, read off the schematic; the matched detector's
+// lines short its anode to ground at DC) and holds the Q point inside its
+// axes; the limiter's inductor across the pair is a held voltage, drawn
+// as a vertical line.
 func TestOperatingPointFigure(t *testing.T) {
 	for _, k := range []struct{ demo, load string }{
 		{"detector", "load line, 3.3 V behind 320 kΩ"},
 		{"attenuator", "load line, 1.8 V behind 1 kΩ"},
 		{"limiter", "load line, voltage held at 0 V"},
 		{"mixer", "behind 6.7"},
+		{"matched_detector", "load line, 0 V behind 100 kΩ"},
 	} {
 		nw := demoNetwork(t, k.demo)
 		for i, q := range nw.Point.Diodes {

@@ -78,6 +78,18 @@ func (nw *Network) LoadLine(k int) (LoadLine, error) {
 			stampConductance(m, o.Junction, o.Cathode, o.G1)
 		}
 	}
+	if nw.HasElements() {
+		// Lines and blocks at DC: their DC relations' rows (real).
+		e := make([]complex128, nw.N*nw.N)
+		nw.Stamp(0, e, nw.N)
+		for i := 0; i < nw.N; i++ {
+			for j := 0; j < nw.N; j++ {
+				if v := real(e[i*nw.N+j]); v != 0 {
+					m.Set(i, j, m.At(i, j)+v)
+				}
+			}
+		}
+	}
 	if d.Junction != d.Anode {
 		// Take R_S out; the internal node then touches nothing and is
 		// pinned to zero so that the matrix stays square and regular.
