@@ -12,7 +12,8 @@
 // typed StressCautions) and, for two tones, the mixing products.
 //
 // Around it: Compare sets a Volterra estimate beside the waveform, order
-// by order; ValidityLimit finds the highest level at which they agree;
+// by order; ValidityLimit finds the highest level at which they agree,
+// and ValidityNear the same from a guess (a slider's last step), bounded;
 // LevelSweep solves a range of levels by continuation, Compression reads
 // the 1 dB point, MeasuredIntercept the third-order intercept from a
 // two-tone sweep, and DetectorTransfer a detector's transfer curve.
