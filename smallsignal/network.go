@@ -296,6 +296,9 @@ func (w *Workspace) New(p *bias.Point) (*Network, error) {
 		nw.C.Set(k, k, -br.l)
 		k++
 	}
+	if err := stampCouplings(nw, c); err != nil { // coupling.go
+		return nil, err
+	}
 	// Everything so far is linear: keep it for the time-domain solver,
 	// then add the diodes' small-signal stamps.
 	nw.GLinear = copyMatrix(nw.GLinear, nw.G)

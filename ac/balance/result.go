@@ -80,10 +80,11 @@ type Result struct {
 
 	Stats Stats
 
-	spec *spectrum
-	x    []complex128
-	emf  float64
-	n    int
+	spec       *spectrum
+	x          []complex128
+	emf        float64
+	n          int
+	generators []Generator
 }
 
 // Truncation returns the two-tone truncation the result was solved with.

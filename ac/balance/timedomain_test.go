@@ -33,7 +33,7 @@ func timeSystem(t *testing.T, name string, lambda float64) *system {
 		spec = r.spec
 		x = r.x
 	}
-	sys := newSystem(nw, newLinear(nw), spec, junctionsOf(nw), d.Input, d.EMF)
+	sys := newSystem(nw, newLinear(nw), spec, junctionsOf(nw), d.Input, d.EMF, nil)
 	sys.lambda = lambda
 	f := make([]complex128, len(x))
 	sys.residual(x, f)

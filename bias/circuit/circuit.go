@@ -181,4 +181,9 @@ type Circuit struct {
 	// (tolerance.go).
 	Tolerances      []Tolerance
 	ToleranceGroups []ToleranceGroup
+	// Transformers lists the file's transformers, whose windings are
+	// inductors among Parts, and Couplings their mutual inductances
+	// (transformer.go).
+	Transformers []Transformer
+	Couplings    []Coupling
 }

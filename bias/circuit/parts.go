@@ -95,6 +95,12 @@ func (l *loader) parts(n *yaml.Node) {
 		return
 	}
 	for i, item := range items {
+		if isTransformer(item) {
+			if !l.transformer(i, item) { // transformer.go
+				l.partsComplete = false
+			}
+			continue
+		}
 		p, complete := l.part(i, item)
 		if complete {
 			l.c.Parts = append(l.c.Parts, p)
@@ -132,16 +138,16 @@ func (l *loader) part(i int, n *yaml.Node) (p Part, complete bool) {
 		if k := misspelt(n, "type", allPartKeys()); k != "" {
 			hint = fmt.Sprintf(" (is `%s` meant to be `type`?)", k)
 		}
-		l.errorf(n, "%s has no `type`%s; accepted: type: followed by one of %s", label, hint, strings.Join(kindNames, ", "))
+		l.errorf(n, "%s has no `type`%s; accepted: type: followed by one of %s", label, hint, strings.Join(typeNames(), ", "))
 		return p, false
 	}
-	typ, ok := l.text(tn, "the type of "+label, "one of "+strings.Join(kindNames, ", "))
+	typ, ok := l.text(tn, "the type of "+label, "one of "+strings.Join(typeNames(), ", "))
 	if !ok {
 		return p, false
 	}
 	kind, ok := parseKind(typ)
 	if !ok {
-		l.errorf(tn, "unknown part type `%s`%s; accepted: %s", typ, didYouMean(typ, kindNames), strings.Join(kindNames, ", "))
+		l.errorf(tn, "unknown part type `%s`%s; accepted: %s", typ, didYouMean(typ, typeNames()), strings.Join(typeNames(), ", "))
 		return p, false
 	}
 	p.Kind = kind
