@@ -52,6 +52,11 @@ type NoiseSource struct {
 	a, b         int     // unknowns the current flows between
 }
 
+// Nodes returns the unknowns the source's current flows between
+// (smallsignal.Ground for the reference node), in the order of the
+// part's terminals.
+func (s NoiseSource) Nodes() (a, b int) { return s.a, s.b }
+
 // Density returns the source's current noise density S_i(f) in A²/Hz.
 func (s NoiseSource) Density(freqHz float64) float64 {
 	return s.White + s.Flicker/freqHz

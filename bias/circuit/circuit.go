@@ -153,6 +153,7 @@ type Analysis struct {
 	Study      StudyDefaults
 	Yield      YieldDefaults // tolerance.go
 	Pulse      PulseDefaults
+	Mixer      MixerDefaults // mixer.go
 }
 
 // Circuit is a loaded and checked circuit file. All values are in SI base
