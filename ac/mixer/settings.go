@@ -6,6 +6,7 @@ import (
 
 	"qpoint/ac"
 	"qpoint/ac/balance"
+	"qpoint/bias/si"
 	"qpoint/smallsignal"
 )
 
@@ -85,24 +86,35 @@ func (s Settings) IFHz() float64 { return math.Abs(s.RFFrequencyHz - s.LOFrequen
 // range, an IF of zero or on a multiple of f_LO/2, sideband counts out of
 // range.
 func Check(nw *smallsignal.Network, s Settings) error {
+	names := make([]string, len(nw.Ports))
+	for i, p := range nw.Ports {
+		names[i] = p.Name
+	}
+	return CheckRequest(s, names)
+}
+
+// CheckRequest is Check for a circuit whose ports are named ports, before
+// any network is built: what a front end checks to tell a bad request
+// from a failed analysis.
+func CheckRequest(s Settings, ports []string) error {
 	s = s.withDefaults()
 	for _, p := range []struct {
 		name string
 		i    int
 	}{{"lo", s.LO}, {"rf", s.RF}, {"if", s.IF}} {
-		if p.i < 0 || p.i >= len(nw.Ports) {
-			return settingErr(p.name, "port %d: the circuit has %d ports", p.i+1, len(nw.Ports))
+		if p.i < 0 || p.i >= len(ports) {
+			return settingErr(p.name, "port %d: the circuit has %d ports", p.i+1, len(ports))
 		}
 	}
 	if s.LO == s.RF {
-		return settingErr("rf", "the RF and the LO are both on port %s; accepted: two different ports (a diplexer belongs in the circuit)", nw.Ports[s.LO].Name)
+		return settingErr("rf", "the RF and the LO are both on port %s; accepted: two different ports (a diplexer belongs in the circuit)", ports[s.LO])
 	}
 	if s.IF == s.LO || s.IF == s.RF {
 		other := "LO"
 		if s.IF == s.RF {
 			other = "RF"
 		}
-		return settingErr("if", "the IF and the %s are both on port %s; accepted: a port of its own for the IF", other, nw.Ports[s.IF].Name)
+		return settingErr("if", "the IF and the %s are both on port %s; accepted: a port of its own for the IF", other, ports[s.IF])
 	}
 	if err := ac.CheckFrequency(s.LOFrequencyHz); err != nil {
 		return settingErr("lo-frequency", "%v", err)
@@ -116,14 +128,14 @@ func Check(nw *smallsignal.Network, s Settings) error {
 	fIF := s.IFHz()
 	tol := collisionRel * math.Max(s.LOFrequencyHz, s.RFFrequencyHz)
 	if fIF <= tol {
-		return settingErr("rf-frequency", "the RF (%.9g Hz) equals the LO: the IF would be 0 Hz; accepted: an RF away from the LO by the IF", s.RFFrequencyHz)
+		return settingErr("rf-frequency", "the RF (%s) equals the LO: the IF would be 0 Hz; accepted: an RF away from the LO by the IF", si.Format(s.RFFrequencyHz, "Hz", 9))
 	}
 	if m := math.Round(2 * fIF / s.LOFrequencyHz); m >= 1 && math.Abs(fIF-m*s.LOFrequencyHz/2) <= tol {
 		what := fmt.Sprintf("%g times the LO frequency", m/2)
 		if int(m)%2 == 0 {
 			what = fmt.Sprintf("the LO's harmonic %d", int(m)/2)
 		}
-		return settingErr("rf-frequency", "the IF (%.9g Hz) falls on %s, so that the IF and its mirror share every sideband; accepted: an IF that is no multiple of half the LO frequency", fIF, what)
+		return settingErr("rf-frequency", "the IF (%s) falls on %s, so that the IF and its mirror share every sideband; accepted: an IF that is no multiple of half the LO frequency", si.Format(fIF, "Hz", 9), what)
 	}
 	if s.Sidebands < 1 || s.Sidebands > s.MaxSidebands || s.MaxSidebands > 512 {
 		return settingErr("sidebands", "%d sidebands each side, at most %d; accepted: 1 to 512", s.Sidebands, s.MaxSidebands)

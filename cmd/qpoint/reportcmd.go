@@ -27,7 +27,8 @@ func newReportCmd() *cobra.Command {
 		Use:   "report FILE -o REPORT.html",
 		Short: "Write one self-contained HTML design report",
 		Long: `report runs every analysis the circuit file's defaults ask for — bias,
-small-signal response, distortion, the study and a pulse — and writes one HTML page
+small-signal response, distortion, the study, a mixer under its LO and a pulse —
+and writes one HTML page
 with the circuit summary, Q-point and small-signal tables, response figures
 (gain and phase, impedance, Smith chart, group delay), distortion tables and
 figures, the study's figures and every caution. The page carries its figures
@@ -191,7 +192,9 @@ func buildReport(c *circuit.Circuit, temperature string) (*report.Document, erro
 	// Noise.
 	if nsec, ncards, err := noiseSection(c, temperature, p); err == nil {
 		doc.Sections = append(doc.Sections, nsec)
-		doc.Cards = append(doc.Cards, ncards...)
+		if !c.Analysis.Mixer.Set { // a mixer's noise figure is the pumped one
+			doc.Cards = append(doc.Cards, ncards...)
+		}
 	} else {
 		doc.Sections = append(doc.Sections, report.Section{ID: "noise", Title: "Noise", Intro: "The noise analysis could not run: " + err.Error()})
 	}
@@ -206,6 +209,16 @@ func buildReport(c *circuit.Circuit, temperature string) (*report.Document, erro
 	}
 	if len(c.Tolerances) > 0 {
 		sec, cards, err := yieldSection(c, temperature) // yieldcmd.go
+		if err != nil {
+			return nil, err
+		}
+		doc.Sections = append(doc.Sections, sec)
+		doc.Cards = append(doc.Cards, cards...)
+	}
+
+	// Mixer, only when the file asks for one (mixercmd.go).
+	if c.Analysis.Mixer.Set {
+		sec, cards, err := mixerSection(c, temperature, p)
 		if err != nil {
 			return nil, err
 		}

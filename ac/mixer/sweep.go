@@ -1,0 +1,43 @@
+package mixer
+
+import (
+	"qpoint/ac"
+	"qpoint/smallsignal"
+)
+
+// LevelPoint is the mixer at one LO level.
+type LevelPoint struct {
+	LevelDBm float64 // the LO generator's available power
+	// Result is the analysis at this level; nil when it failed, and
+	// present beside a *BreakdownError, which Err then holds.
+	Result *Result
+	Err    error
+}
+
+// SweepLO analyses the mixer at each LO level (available power in dBm at
+// the LO port, in the order given), each pump continuing from the last
+// that converged, as a designer chooses the drive on the curve of
+// conversion loss against LO power. s.LOEMF is ignored. progress, when
+// not nil, is called after each level.
+func SweepLO(nw *smallsignal.Network, s Settings, levelsDBm []float64, progress func(done, total int)) []LevelPoint {
+	out := make([]LevelPoint, len(levelsDBm))
+	z0 := 0.0
+	if s.LO >= 0 && s.LO < len(nw.Ports) {
+		z0 = nw.Ports[s.LO].Impedance
+	}
+	var prev *Result
+	for i, dbm := range levelsDBm {
+		t := s
+		t.LOEMF = ac.DBmToEMF(dbm, z0)
+		t.Start = prev
+		r, err := Analyze(nw, t)
+		out[i] = LevelPoint{LevelDBm: dbm, Result: r, Err: err}
+		if r != nil {
+			prev = r
+		}
+		if progress != nil {
+			progress(i+1, len(levelsDBm))
+		}
+	}
+	return out
+}
