@@ -35,7 +35,7 @@ type Mixer struct {
 	LOLevelDBm             float64 // the LO generator's available power
 }
 
-// mixerSettings names each setting of the request after the file's key.
+// mixerKeys names each setting of the request after the file's key.
 var mixerKeys = map[string]string{"lo": "lo", "rf": "rf", "if": "if", "lo-frequency": "lo_frequency", "rf-frequency": "rf_frequency", "lo-level": "lo_level"}
 
 // ResolveMixer resolves a mixer analysis: the request's values first,
@@ -134,7 +134,16 @@ func ResolveMixer(c *circuit.Circuit, r MixerRequest) (*Mixer, error) {
 	if err := mixer.CheckRequest(s, names); err != nil {
 		var se *mixer.SettingError
 		if errors.As(err, &se) {
-			return nil, where(se.Setting, errors.New(se.Message))
+			setting := se.Setting
+			// Two ports on one: blame the one the request named, when
+			// the other came from the file.
+			others := map[string][]string{"rf": {"lo"}, "if": {"lo", "rf"}}[setting]
+			for _, o := range others {
+				if !given[setting] && given[o] {
+					setting = o
+				}
+			}
+			return nil, where(setting, errors.New(se.Message))
 		}
 		return nil, err
 	}
