@@ -13,6 +13,7 @@ import (
 	"github.com/spf13/cobra"
 
 	"qpoint/ac/study"
+	"qpoint/ac/plan"
 	"qpoint/ac/yield"
 	"qpoint/bias/circuit"
 	"qpoint/plots"
@@ -229,6 +230,15 @@ func resolveYield(c *circuit.Circuit, fl *yieldFlags, observe bool) (*yield.Sett
 		}
 		a.Drive = d.drive
 		a.DistortionHz = []float64{d.drive.FrequencyHz}
+	}
+	for _, t := range s.Targets {
+		if t.Measure.NeedsMixer() && a.Mixer == nil {
+			m, err := plan.ResolveMixer(c, plan.MixerRequest{})
+			if err != nil {
+				return nil, planError(err)
+			}
+			a.Mixer = &m.Settings
+		}
 	}
 	for _, t := range s.Targets {
 		if t.Measure.NeedsDrive() && a.Drive.EMF == 0 {
