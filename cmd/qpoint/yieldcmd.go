@@ -12,8 +12,8 @@ import (
 
 	"github.com/spf13/cobra"
 
-	"qpoint/ac/study"
 	"qpoint/ac/plan"
+	"qpoint/ac/study"
 	"qpoint/ac/yield"
 	"qpoint/bias/circuit"
 	"qpoint/plots"
