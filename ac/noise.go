@@ -58,6 +58,11 @@ type NoiseSource struct {
 	element *smallsignal.Element
 }
 
+// Nodes returns the unknowns the source's current flows between
+// (smallsignal.Ground for the reference node), in the order of the
+// part's terminals.
+func (s NoiseSource) Nodes() (a, b int) { return s.a, s.b }
+
 // Density returns the source's current noise density S_i(f) in A²/Hz;
 // zero for a line or measured block, whose noise is a correlation matrix
 // of sources in its own rows (smallsignal.Element.NoiseCorrelation).
