@@ -22,7 +22,9 @@ func stampCouplings(nw *Network, c *circuit.Circuit) error {
 		return nil
 	}
 	branch := map[string]int{}
-	for k := nw.NodeUnknowns; k < nw.N; k++ {
+	// The branch currents' names; the unknowns of lines and blocks,
+	// after them, are named later (finishElements).
+	for k := nw.NodeUnknowns; k < min(nw.N, len(nw.Names)); k++ {
 		branch[nw.Names[k]] = k
 	}
 	value := map[string]float64{}

@@ -1,46 +1,11 @@
 package mixer
 
 import (
-	"os"
-	"path/filepath"
 	"testing"
 
-	"qpoint/bias"
-	"qpoint/bias/circuit"
+	"qpoint/ac/internal/fixture"
 	"qpoint/smallsignal"
 )
-
-// network loads a circuit from YAML text and linearises it at its bias.
-func network(tb testing.TB, src string) *smallsignal.Network {
-	tb.Helper()
-	c, err := circuit.Parse("test.yaml", []byte(src))
-	if err != nil {
-		tb.Fatal(err)
-	}
-	return linearise(tb, c)
-}
-
-func linearise(tb testing.TB, c *circuit.Circuit) *smallsignal.Network {
-	tb.Helper()
-	p, err := bias.Solve(c, bias.Settings{})
-	if err != nil {
-		tb.Fatal(err)
-	}
-	nw, err := smallsignal.New(p)
-	if err != nil {
-		tb.Fatal(err)
-	}
-	return nw
-}
-
-func demoFile(tb testing.TB, name string) string {
-	tb.Helper()
-	data, err := os.ReadFile(filepath.Join("..", "..", "testdata", "demo", name+".yaml"))
-	if err != nil {
-		tb.Fatal(err)
-	}
-	return string(data)
-}
 
 // portIndex returns the index of the named port.
 func portIndex(tb testing.TB, nw *smallsignal.Network, name string) int {
@@ -72,3 +37,9 @@ func besselI(k int, x float64) float64 {
 	}
 	return sum
 }
+
+var (
+	network   = fixture.Network
+	linearise = fixture.Linearise
+	demoFile  = fixture.Demo
+)
