@@ -313,7 +313,14 @@ func distortionSection(nw *smallsignal.Network, d *plan.Drive) (Section, []Card,
 		sec.Blocks = append(sec.Blocks, Block{Figure: fig})
 	}
 	if !est.Balanced(ac.HD2) {
-		cards = append(cards, Card{Label: "second harmonic", Value: fmt.Sprintf("%.1f dBc", est.HD2dBc()), Detail: fmt.Sprintf("at %.0f dBm, %s", d.LevelDBm, si.Format(d.Drive.FrequencyHz, "Hz", 4))})
+		card := Card{Label: "second harmonic", Value: fmt.Sprintf("%.1f dBc", est.HD2dBc()), Detail: fmt.Sprintf("at %.0f dBm, %s", d.LevelDBm, si.Format(d.Drive.FrequencyHz, "Hz", 4))}
+		// Past the small-signal limit the estimate is not the figure to
+		// quote: the waveform's is.
+		if limit != nil && limit.Outcome == steady.LimitFound && d.LevelDBm > limit.LevelDBm && len(st.Output) > 2 && st.Output[1].Amplitude > 0 {
+			card.Value = fmt.Sprintf("%.1f dBc", 20*math.Log10(st.Output[2].Amplitude/st.Output[1].Amplitude))
+			card.Detail += fmt.Sprintf(", from the waveform: the level is past the small-signal limit, where the estimate (%.1f dBc) no longer holds", est.HD2dBc())
+		}
+		cards = append(cards, card)
 	}
 	if limit != nil {
 		switch limit.Outcome {
