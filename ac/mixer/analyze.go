@@ -243,6 +243,12 @@ func (r *Result) noise(nw *smallsignal.Network, cv *conversion, f *figures, sRF,
 			if src.Port == s.IF && sb == sIF {
 				continue // the next stage's own noise
 			}
+			if src.Correlated() {
+				// A line or block, by Twiss's theorem at each sideband:
+				// thermal, so uncorrelated between sidebands.
+				d += src.OutputAt(cv.omega[sb]/(2*math.Pi), tr[sb])
+				continue
+			}
 			d += white * sq(transfer(sb, a, b))
 		}
 		if src.Port == s.RF {

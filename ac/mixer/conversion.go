@@ -66,6 +66,9 @@ func newConversion(nw *smallsignal.Network, s Settings, waves []pumped, K int) (
 				a[i*n+j] = complex(g.Data[i*g.Stride+j], w*c.Data[i*c.Stride+j])
 			}
 		}
+		// Lines and measured blocks: their rows at this sideband (the
+		// conjugate of the positive frequency's below zero).
+		nw.Stamp(w, a, n)
 		if err := lu.Factor(); err != nil {
 			return nil, fmt.Errorf("the linear network is singular at the sideband %+d (%.6g Hz): %w", k, math.Abs(w)/(2*math.Pi), err)
 		}

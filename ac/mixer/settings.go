@@ -3,7 +3,6 @@ package mixer
 import (
 	"fmt"
 	"math"
-	"strings"
 
 	"qpoint/ac"
 	"qpoint/ac/balance"
@@ -87,13 +86,6 @@ func (s Settings) IFHz() float64 { return math.Abs(s.RFFrequencyHz - s.LOFrequen
 // range, an IF of zero or on a multiple of f_LO/2, sideband counts out of
 // range.
 func Check(nw *smallsignal.Network, s Settings) error {
-	if len(nw.Elements) > 0 {
-		var parts []string
-		for _, e := range nw.Elements {
-			parts = append(parts, e.Name)
-		}
-		return &ElementsError{Elements: parts}
-	}
 	names := make([]string, len(nw.Ports))
 	for i, p := range nw.Ports {
 		names[i] = p.Name
@@ -149,16 +141,4 @@ func CheckRequest(s Settings, ports []string) error {
 		return settingErr("sidebands", "%d sidebands each side, at most %d; accepted: 1 to 512", s.Sidebands, s.MaxSidebands)
 	}
 	return nil
-}
-
-// ElementsError is the mixer analysis's refusal of a circuit with lines
-// or measured blocks: its conversion matrices are built from G + jωC at
-// each sideband, and these parts, known by their S-matrices, would be
-// left out. Response, noise, distortion and harmonic balance take them.
-type ElementsError struct {
-	Elements []string
-}
-
-func (e *ElementsError) Error() string {
-	return fmt.Sprintf("the mixer analysis does not yet take lines or measured blocks (%s): its sideband matrices would leave them out; response, noise, distortion and harmonic balance take them", strings.Join(e.Elements, ", "))
 }

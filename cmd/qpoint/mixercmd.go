@@ -168,10 +168,6 @@ func runMixer(cmd *cobra.Command, path string, fl *mixerFlags) error {
 		return runMixerSweep(cmd, s, fl, levels)
 	}
 	res, runErr := mixer.Analyze(s.nw, s.plan.Settings)
-	var ee *mixer.ElementsError
-	if errors.As(runErr, &ee) {
-		return inputError(fmt.Errorf("%s: %w", path, runErr))
-	}
 	if res == nil {
 		return analysisError(runErr)
 	}
