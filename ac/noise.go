@@ -58,6 +58,11 @@ type NoiseSource struct {
 	element *smallsignal.Element
 }
 
+// Nodes returns the unknowns the source's current flows between
+// (smallsignal.Ground for the reference node), in the order of the
+// part's terminals.
+func (s NoiseSource) Nodes() (a, b int) { return s.a, s.b }
+
 // Density returns the source's current noise density S_i(f) in A²/Hz;
 // zero for a line or measured block, whose noise is a correlation matrix
 // of sources in its own rows (smallsignal.Element.NoiseCorrelation).
@@ -74,15 +79,45 @@ func (s NoiseSource) output(hz float64, z []complex128, corr []complex128) float
 	if e == nil {
 		return s.Density(hz) * sqAbs(at(z, s.a)-at(z, s.b))
 	}
+	return s.elementOutput(hz, false, z, corr)
+}
+
+// elementOutput is zᵀ C z̄ over a line's or block's rows, C its
+// correlation at hz (conjugated when conj), in the buffer corr.
+func (s NoiseSource) elementOutput(hz float64, conj bool, z, corr []complex128) float64 {
+	e := s.element
 	p := e.Ports()
 	e.NoiseCorrelation(hz, s.TemperatureK, corr[:p*p])
 	var sum complex128
 	for k := 0; k < p; k++ {
 		for l := 0; l < p; l++ {
-			sum += z[e.Branch+k] * corr[k*p+l] * cmplx.Conj(z[e.Branch+l])
+			c := corr[k*p+l]
+			if conj {
+				c = cmplx.Conj(c)
+			}
+			sum += z[e.Branch+k] * c * cmplx.Conj(z[e.Branch+l])
 		}
 	}
 	return math.Max(real(sum), 0)
+}
+
+// Correlated reports whether the source is a line's or a measured
+// block's: correlated sources in its rows rather than one current
+// (OutputAt takes both).
+func (s NoiseSource) Correlated() bool { return s.element != nil }
+
+// OutputAt returns the source's output noise density for the transfer z
+// (z_k: the output's response to a unit current injected at unknown k)
+// at freqHz, which may be negative: a sideband below zero, where the
+// network's rows and a line's correlation are the conjugates of those at
+// |freqHz|.
+func (s NoiseSource) OutputAt(freqHz float64, z []complex128) float64 {
+	f := math.Abs(freqHz)
+	e := s.element
+	if e == nil {
+		return s.Density(f) * sqAbs(at(z, s.a)-at(z, s.b))
+	}
+	return s.elementOutput(f, freqHz < 0, z, make([]complex128, e.Ports()*e.Ports()))
 }
 
 // Label names the source for a reader: "D1 junction (shot)".

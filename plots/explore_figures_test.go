@@ -18,7 +18,7 @@ func TestOperatingPointFigure(t *testing.T) {
 		{"detector", "load line, 3.3 V behind 320 kΩ"},
 		{"attenuator", "load line, 1.8 V behind 1 kΩ"},
 		{"limiter", "load line, voltage held at 0 V"},
-		{"mixer", "behind 6.7"},
+		{"mixer", "behind 698."},
 		{"matched_detector", "load line, 0 V behind 100 kΩ"},
 	} {
 		nw := demoNetwork(t, k.demo)

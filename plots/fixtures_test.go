@@ -21,7 +21,11 @@ import (
 
 func demoCircuit(t *testing.T, name string) *circuit.Circuit {
 	t.Helper()
-	c, err := circuit.Load("../testdata/demo/" + name + ".yaml")
+	path := "../testdata/demo/" + name + ".yaml"
+	if name == balancedPair {
+		path = "../testdata/fixtures/" + name + ".yaml"
+	}
+	c, err := circuit.Load(path)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -74,11 +78,15 @@ func detectorAtAnode(t *testing.T) *distortionCase {
 	return distortionFixture(t, "detector", ac.Output{Port: -1, Node: "anode"}, 2.45e9, -30)
 }
 
-// mixerDistortion drives the single-balanced mixer demo's RF port and
-// observes the IF port, where its symmetry cancels the even orders and
-// the DC shift.
+// balancedPair is a matched pair of diodes in series with the signal at
+// their midpoint (the mixer demo before it had its LO balun), kept as a
+// fixture whose symmetry cancels the even orders.
+const balancedPair = "balanced_pair"
+
+// mixerDistortion drives the balanced pair's RF port and observes its IF
+// port, where its symmetry cancels the even orders and the DC shift.
 func mixerDistortion(t *testing.T) *distortionCase {
-	return distortionFixture(t, "mixer", ac.Output{Port: 2}, 1.9e9, -20)
+	return distortionFixture(t, balancedPair, ac.Output{Port: 2}, 1.9e9, -20)
 }
 
 func distortionFixture(t *testing.T, demo string, out ac.Output, hz, dBm float64) *distortionCase {

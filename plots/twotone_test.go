@@ -28,7 +28,7 @@ func TestTwoToneSpectrum(t *testing.T) {
 		golden bool
 	}{
 		{"detector", ac.Output{Port: 1}, 2.45e9, 2.46e9, -20, true},
-		{"mixer", ac.Output{Port: 2}, 1.9e9, 1.91e9, -20, false},
+		{balancedPair, ac.Output{Port: 2}, 1.9e9, 1.91e9, -20, false},
 	} {
 		nw := demoNetwork(t, c.demo)
 		d := ac.Drive{Input: 0, Output: c.out, FrequencyHz: c.f1, SecondToneHz: c.f2, EMF: ac.DBmToEMF(c.dBm, nw.Ports[0].Impedance)}

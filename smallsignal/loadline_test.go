@@ -87,8 +87,9 @@ func TestLoadLineDemos(t *testing.T) {
 
 // TestLoadLineOtherDiode: in the mixer's bias chain Vbias - Rtop - Dtop -
 // Dbottom - Rbottom the upper diode sees the lower one linearised: R_th =
-// Rtop + Rbottom + R_S + 1/g_d of Dbottom (the mid node's other paths are
-// open at DC: Crf, Cif, the IF port behind its DC block).
+// Rtop + Rbottom + R_S + 1/g_d of Dbottom (the midpoint's other paths are
+// open at DC: the traps' capacitors, the IF port behind its DC block; the
+// balun's windings reach the diodes only through Ca and Cb).
 func TestLoadLineOtherDiode(t *testing.T) {
 	nw := demoNetwork(t, "mixer")
 	l, err := nw.LoadLine(0)
@@ -96,7 +97,7 @@ func TestLoadLineOtherDiode(t *testing.T) {
 		t.Fatal(err)
 	}
 	lower := nw.Diodes[1]
-	want := 3.3e3 + 3.3e3 + lower.SeriesResistance + 1/lower.G1
+	want := 330 + 330 + lower.SeriesResistance + 1/lower.G1
 	if r := 1 / l.Conductance; math.Abs(r-want) > 1e-9*want {
 		t.Errorf("R_th %.12g Ω, want %.12g Ω", r, want)
 	}

@@ -311,6 +311,9 @@ func (w *Workspace) New(p *bias.Point) (*Network, error) {
 		nw.C.Set(k, k, -br.l)
 		k++
 	}
+	if err := stampCouplings(nw, c); err != nil { // coupling.go
+		return nil, err
+	}
 	nw.finishElements(p)
 	// Everything so far is linear: keep it for the time-domain solver,
 	// then add the diodes' small-signal stamps.

@@ -26,7 +26,7 @@ func TestJacobianDifferences(t *testing.T) {
 			spec = oneTone(6, 2.45e9, 2)
 		}
 		n := nw.N
-		sys := newSystem(nw, newLinear(nw), spec, junctionsOf(nw), 0, 0.1)
+		sys := newSystem(nw, newLinear(nw), spec, junctionsOf(nw), 0, 0.1, nil)
 		sys.lambda = 1
 		L := n * len(spec.products)
 		x := make([]complex128, L)
@@ -63,7 +63,7 @@ func TestJacobianDifferences(t *testing.T) {
 				xm[e] = x[e] - complex(h, 0)*dx[e]
 			}
 			fp, fm := make([]complex128, L), make([]complex128, L)
-			other := newSystem(nw, newLinear(nw), spec, junctionsOf(nw), 0, 0.1)
+			other := newSystem(nw, newLinear(nw), spec, junctionsOf(nw), 0, 0.1, nil)
 			other.lambda = 1
 			other.residual(xp, fp)
 			other.residual(xm, fm)

@@ -87,10 +87,11 @@ type Result struct {
 	// the largest signal phasor.
 	Outside []smallsignal.OutsideRange
 
-	spec *spectrum
-	x    []complex128
-	emf  float64
-	n    int
+	spec       *spectrum
+	x          []complex128
+	emf        float64
+	n          int
+	generators []Generator
 }
 
 // Truncation returns the two-tone truncation the result was solved with.

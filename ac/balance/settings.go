@@ -49,6 +49,12 @@ type Settings struct {
 	// a nearby level: the solve continues from it instead of from the DC
 	// point.
 	Start *Result
+	// Generators adds, for one tone, further sinusoidal generators at
+	// harmonics of the drive's frequency, each behind its port's
+	// reference impedance (generators.go): a local oscillator and a
+	// signal at commensurate frequencies solved as one periodic steady
+	// state.
+	Generators []Generator
 }
 
 // LinearSolver chooses how each Newton step is solved.

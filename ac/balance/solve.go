@@ -202,6 +202,9 @@ func (sv *solver) check() error {
 			return fmt.Errorf("%d harmonics do not hold the %d reported; solve with at least %d", s.Harmonics, report, report)
 		}
 	}
+	if err := checkGenerators(nw, d, s); err != nil {
+		return err
+	}
 	if s.Oversample < 1 || s.Oversample > 64 {
 		return fmt.Errorf("oversampling %d; accepted: 1 to 64", s.Oversample)
 	}
@@ -236,7 +239,7 @@ func (sv *solver) maxOrder() int {
 func (sv *solver) initialSpectrum() (*spectrum, error) {
 	d, s := sv.d, sv.s
 	if d.SecondToneHz == 0 {
-		k := max(s.Harmonics, sv.report())
+		k := max(s.Harmonics, sv.report(), highestGenerator(s.Generators))
 		if st := sv.start(); st != nil && !s.FixedHarmonics {
 			k = max(k, st.spec.order)
 		}
@@ -271,6 +274,9 @@ func (sv *solver) start() *Result {
 		return nil
 	}
 	if sv.d.SecondToneHz != 0 && st.spec.trunc != sv.s.Truncation {
+		return nil
+	}
+	if !sameGenerators(st.generators, sv.s.Generators) {
 		return nil
 	}
 	return st
@@ -316,7 +322,7 @@ func remap(from, to *spectrum, x []complex128, n int) []complex128 {
 // 1, halving a step that fails and doubling one that succeeds, each start
 // predicted by the secant through the last two solutions.
 func (sv *solver) continuation(spec *spectrum, x []complex128, lam0 float64) (*system, []complex128, error) {
-	sys := newSystem(sv.nw, sv.lin, spec, sv.js, sv.d.Input, sv.d.EMF)
+	sys := newSystem(sv.nw, sv.lin, spec, sv.js, sv.d.Input, sv.d.EMF, sv.s.Generators)
 	sys.lambda = 1
 	try := append([]complex128(nil), x...)
 	ok, err := sv.newton(sys, try)
@@ -766,7 +772,7 @@ func (sv *solver) refineGrid(sys *system, x []complex128) (*system, []complex128
 	for range 3 {
 		finer := *sys.spec
 		finer.samples *= 2
-		check := newSystem(sv.nw, sv.lin, &finer, sv.js, sv.d.Input, sv.d.EMF)
+		check := newSystem(sv.nw, sv.lin, &finer, sv.js, sv.d.Input, sv.d.EMF, sv.s.Generators)
 		check.lambda = 1
 		f := make([]complex128, len(x))
 		here, _ := sys.residual(x, f)
@@ -823,7 +829,7 @@ func outputVector(nw *smallsignal.Network, o ac.Output) ([]float64, error) {
 func (sv *solver) result(sys *system, x []complex128) *Result {
 	nw, spec, n := sv.nw, sys.spec, sv.nw.N
 	e, _ := outputVector(nw, sv.d.Output)
-	r := &Result{Drive: sv.d, spec: spec, x: x, emf: sv.d.EMF, n: n}
+	r := &Result{Drive: sv.d, spec: spec, x: x, emf: sv.d.EMF, n: n, generators: sv.s.Generators}
 	report := sv.report()
 	dcOut := 0.0
 	for i, v := range e {
@@ -888,7 +894,7 @@ func (sv *solver) result(sys *system, x []complex128) *Result {
 		junctions[d] = append([]float64(nil), j.v...)
 	}
 	r.Stress = steady.Stress(nw, currents, terminals, junctions)
-	scale := sv.d.EMF
+	scale := math.Max(sv.d.EMF, largestGenerator(sv.s.Generators))
 	for _, v := range nw.Bias[:nw.NodeUnknowns] {
 		scale = math.Max(scale, math.Abs(v))
 	}

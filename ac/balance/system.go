@@ -52,7 +52,7 @@ const (
 	absRel = 1e-13
 )
 
-func newSystem(nw *smallsignal.Network, lin *linear, spec *spectrum, js []*junction, input int, emf float64) *system {
+func newSystem(nw *smallsignal.Network, lin *linear, spec *spectrum, js []*junction, input int, emf float64, gens []Generator) *system {
 	n, P := nw.N, len(spec.products)
 	sys := &system{nw: nw, n: n, lin: lin, spec: spec, grid: newGrid(spec), js: js}
 	lin.setFrequencies(spec)
@@ -76,6 +76,7 @@ func newSystem(nw *smallsignal.Network, lin *linear, spec *spectrum, js []*junct
 			sys.signal[k*n+port.Return] -= norton
 		}
 	}
+	stampGenerators(sys.signal, nw, spec, gens)
 	sys.weight = make([]float64, n*P)
 	sys.scale = make([]float64, n*P)
 	sys.rounding = make([]float64, n)

@@ -3,17 +3,23 @@ package plan
 import (
 	"math"
 	"math/cmplx"
+	"path/filepath"
 	"testing"
 
 	"qpoint/ac/balance"
 	"qpoint/ac/steady"
 	"qpoint/bias"
+	"qpoint/bias/circuit"
 	"qpoint/smallsignal"
 )
 
 func linearised(t *testing.T, name string) (*Drive, *smallsignal.Network) {
 	t.Helper()
-	c := demo(t, name)
+	return linearisedCircuit(t, demo(t, name))
+}
+
+func linearisedCircuit(t *testing.T, c *circuit.Circuit) (*Drive, *smallsignal.Network) {
+	t.Helper()
 	d, err := ResolveDrive(c, DriveRequest{})
 	if err != nil {
 		t.Fatal(err)
@@ -94,13 +100,17 @@ func TestRunDistortionDetector(t *testing.T) {
 	}
 }
 
-// TestRunDistortionTwoTones: on the mixer demo's two-tone drive the run
-// solves the two-tone waveform and sweeps both tones only when asked,
-// and measures an intercept from that sweep.
+// TestRunDistortionTwoTones: on a balanced pair's two-tone drive (a
+// test fixture) the run solves the two-tone waveform and sweeps both
+// tones only when asked, and measures an intercept from that sweep.
 func TestRunDistortionTwoTones(t *testing.T) {
-	d, nw := linearised(t, "mixer")
+	c, err := circuit.Load(filepath.Join("..", "..", "testdata", "fixtures", "balanced_pair.yaml"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	d, nw := linearisedCircuit(t, c)
 	if d.SecondToneHz == 0 {
-		t.Fatal("the mixer demo's drive has no second tone")
+		t.Fatal("the balanced pair's drive has no second tone")
 	}
 	levels := []float64{-40, -35, -30}
 	one, err := RunDistortion(nw, d, DistortionRequest{Levels: levels})

@@ -218,6 +218,17 @@ func ResolveStudy(c *circuit.Circuit, r StudyRequest) (*Study, error) {
 		}
 		st.Settings.Detector = &study.DetectorSettings{VideoFromHz: band[0], VideoToHz: band[1]}
 	}
+	// The mixer, when a measure needs it or the file has one: its figures
+	// at each step, at the file's LO drive.
+	if m := st.Measure; m != nil && m.NeedsMixer() || c.Analysis.Mixer.Set {
+		mx, err := ResolveMixer(c, MixerRequest{})
+		switch {
+		case err == nil:
+			st.Settings.Mixer = &mx.Settings
+		case st.Measure != nil && st.Measure.NeedsMixer():
+			return nil, err
+		}
+	}
 	st.Settings.Workers = r.Workers
 	return st, nil
 }

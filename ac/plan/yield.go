@@ -161,6 +161,15 @@ func ResolveYield(c *circuit.Circuit, r YieldRequest) (*yield.Settings, error) {
 			return nil, requestErr("level", "target %s needs a signal level (e.g. -30dBm)", t.Text)
 		}
 	}
+	for _, t := range s.Targets {
+		if t.Measure.NeedsMixer() && a.Mixer == nil {
+			m, err := ResolveMixer(c, MixerRequest{})
+			if err != nil {
+				return nil, err
+			}
+			a.Mixer = &m.Settings
+		}
+	}
 	if needPath || r.VideoBandHz != [2]float64{} {
 		band := r.VideoBandHz
 		if band == [2]float64{} {

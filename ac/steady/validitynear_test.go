@@ -14,13 +14,13 @@ import (
 // analysis.distortion give them.
 var demoDrives = []struct {
 	name    string
-	out     int // output port
+	in, out int // input and output ports
 	hz, dBm float64
 }{
-	{"detector", 1, 2.45e9, -30},
-	{"attenuator", 1, 900e6, -10},
-	{"limiter", 1, 5.8e9, 0},
-	{"mixer", 2, 1.9e9, -20},
+	{"detector", 0, 1, 2.45e9, -30},
+	{"attenuator", 0, 1, 900e6, -10},
+	{"limiter", 0, 1, 5.8e9, 0},
+	{"mixer", 1, 0, 1.8e9, -15},
 }
 
 // TestValidityNearAgrees: searched outward from the file's level,
@@ -33,7 +33,7 @@ func TestValidityNearAgrees(t *testing.T) {
 	s := Settings{Harmonics: 5, Samples: 63}
 	for _, k := range demoDrives {
 		nw := network(t, demo(t, k.name))
-		d := ac.Drive{Input: 0, Output: ac.Output{Port: k.out}, FrequencyHz: k.hz}
+		d := ac.Drive{Input: k.in, Output: ac.Output{Port: k.out}, FrequencyHz: k.hz}
 		ref, err := ValidityLimit(nw, d, k.dBm-40, k.dBm+40, 0.5, s)
 		if err != nil {
 			t.Fatal(err)

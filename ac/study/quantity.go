@@ -22,6 +22,9 @@ import (
 //	sensitivity                 output DC per available input power, V/W (@f of the distortion)
 //	nep                         detector noise-equivalent power, W/√Hz
 //	tss                         detector tangential sensitivity, dBm
+//	conversion_loss             a mixer's conversion loss under its LO, dB
+//	mixer_noise_figure          a mixer's noise figure (single sideband), dB
+//	lo_power                    the LO power a mixer absorbs, dBm
 //	current.D, voltage.D, dynamic_resistance.D, junction_capacitance.D,
 //	video_resistance.D          a diode's Q point
 //	current_sensitivity.D, voltage_sensitivity.D                   (@f)
@@ -70,6 +73,7 @@ const (
 	needDrive
 	needNoise
 	needDetector
+	needMixer
 )
 
 var measures = map[string]measureSpec{
@@ -88,6 +92,9 @@ var measures = map[string]measureSpec{
 	"sensitivity":          {unit: "V/W", q: circuit.Dimensionless, freq: distortionFrequency, polar: true, needs: needDrive},
 	"nep":                  {unit: "W/√Hz", q: circuit.Dimensionless, needs: needDetector},
 	"tss":                  {unit: "dBm", q: circuit.Dimensionless, needs: needDetector},
+	"conversion_loss":      {unit: "dB", q: circuit.Dimensionless, needs: needMixer},
+	"mixer_noise_figure":   {unit: "dB", q: circuit.Dimensionless, needs: needMixer},
+	"lo_power":             {unit: "dBm", q: circuit.Dimensionless, needs: needMixer},
 	"current":              {unit: "A", q: circuit.Current, needPart: true},
 	"voltage":              {unit: "V", q: circuit.Voltage, needPart: true},
 	"dynamic_resistance":   {unit: "ohm", q: circuit.Resistance, needPart: true},
@@ -181,6 +188,10 @@ func (m *Measure) NeedsNoise() bool { return m.spec.needs == needNoise }
 // NeedsDetector reports whether the measure needs the detector figures
 // (Settings.Detector).
 func (m *Measure) NeedsDetector() bool { return m.spec.needs == needDetector }
+
+// NeedsMixer reports whether the measure needs the mixer analysis
+// (Settings.Mixer).
+func (m *Measure) NeedsMixer() bool { return m.spec.needs == needMixer }
 
 // AtDistortion reports whether the measure's @F picks a distortion
 // frequency rather than a study frequency.
@@ -296,6 +307,20 @@ func (m *Measure) Of(st *Step, freqs []float64, probes []string) (float64, error
 			return math.NaN(), fmt.Errorf("%s: the study computes no noise figure", m.Text)
 		}
 		return st.NoiseFigureDB[fi], nil
+	case "conversion_loss", "mixer_noise_figure", "lo_power":
+		switch {
+		case st.Mixer == nil:
+			return math.NaN(), fmt.Errorf("%s: the study analyses no mixer; give the file an analysis.mixer", m.Text)
+		case st.Mixer.Err != nil:
+			return math.NaN(), fmt.Errorf("%s: %w", m.Text, st.Mixer.Err)
+		case st.Mixer.Breakdown:
+			return math.NaN(), fmt.Errorf("%s: the LO drive takes a diode past its breakdown knee at this step", m.Text)
+		case m.Name == "conversion_loss":
+			return st.Mixer.ConversionLossDB, nil
+		case m.Name == "mixer_noise_figure":
+			return st.Mixer.NoiseFigureSSBDB, nil
+		}
+		return st.Mixer.LOAbsorbedDBm, nil
 	case "nep", "tss":
 		switch {
 		case st.Detection == nil:

@@ -11,6 +11,7 @@ import (
 	"sync/atomic"
 
 	"qpoint/ac"
+	"qpoint/ac/mixer"
 	"qpoint/bias"
 	"qpoint/bias/circuit"
 	"qpoint/smallsignal"
@@ -81,6 +82,10 @@ type Settings struct {
 	// and tangential sensitivity (ac.Detector) with the carrier at the
 	// first distortion frequency.
 	Detector *DetectorSettings
+	// Mixer, when not nil, analyses the mixer under its LO at each step
+	// (ac/mixer): conversion loss, noise figure and the LO power it
+	// takes, so that the bias that suits a given LO drive is a study.
+	Mixer *mixer.Settings
 	// Workers running steps in parallel; zero means all cores. No more
 	// run than there are chains of steps to share out.
 	Workers int
@@ -176,6 +181,8 @@ type Step struct {
 	// Detection holds the detector figures, when asked for
 	// (Settings.Detector).
 	Detection *Detection
+	// Mixer holds the mixer's figures, when asked for (Settings.Mixer).
+	Mixer *MixerFigures
 
 	Err error // non-nil when this step could not be solved
 
@@ -443,6 +450,9 @@ func analyse(cc *circuit.Circuit, temp float64, freqs []float64, s Settings, pre
 		default:
 			*st.Detection = Detection{Detects: true, NEP: det.NEP, TangentialDBm: det.TangentialDBm()}
 		}
+	}
+	if s.Mixer != nil {
+		st.Mixer = mixerFigures(nw, *s.Mixer) // mixer.go
 	}
 	return p
 }

@@ -193,6 +193,9 @@ func plan(s *Settings) (study.Settings, error) {
 		if m.NeedsDetector() && p.Detector == nil {
 			return p, fmt.Errorf("target %s needs the detector's video band (Analysis.Detector)", m.Text)
 		}
+		if m.NeedsMixer() && p.Mixer == nil {
+			return p, fmt.Errorf("target %s needs the mixer's settings (Analysis.Mixer)", m.Text)
+		}
 	}
 	return p, nil
 }

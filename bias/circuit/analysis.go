@@ -7,7 +7,7 @@ import (
 )
 
 var (
-	analysisKeys   = []string{"response", "distortion", "study", "yield", "pulse"}
+	analysisKeys   = []string{"response", "distortion", "study", "yield", "pulse", "mixer"}
 	responseKeys   = []string{"from", "to", "per_decade", "points"}
 	distortionKeys = []string{"input", "output", "frequency", "level", "second_tone"}
 	studyKeys      = []string{"vary", "from", "to", "steps", "log"}
@@ -38,6 +38,9 @@ func (l *loader) analysis(n *yaml.Node) {
 	}
 	if e, ok := f["pulse"]; ok {
 		l.pulse(e.val)
+	}
+	if e, ok := f["mixer"]; ok {
+		l.mixer(e.val) // mixer.go
 	}
 }
 

@@ -153,6 +153,7 @@ type Analysis struct {
 	Study      StudyDefaults
 	Yield      YieldDefaults // tolerance.go
 	Pulse      PulseDefaults
+	Mixer      MixerDefaults // mixer.go
 }
 
 // Circuit is a loaded and checked circuit file. All values are in SI base
@@ -184,4 +185,9 @@ type Circuit struct {
 	// Distributed lists the transmission lines, microstrip lines and
 	// S-parameter blocks, in file order (distributed.go).
 	Distributed []Distributed
+	// Transformers lists the file's transformers, whose windings are
+	// inductors among Parts, and Couplings their mutual inductances
+	// (transformer.go).
+	Transformers []Transformer
+	Couplings    []Coupling
 }

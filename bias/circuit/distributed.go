@@ -77,7 +77,7 @@ var (
 
 // partTypeNames lists every part type, for messages.
 func partTypeNames() []string {
-	return append(append([]string(nil), kindNames...), distributedTypes...)
+	return append(append(append([]string(nil), kindNames...), distributedTypes...), TransformerType)
 }
 
 // distributedState is what the loader keeps about distributed parts

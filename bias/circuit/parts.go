@@ -95,6 +95,12 @@ func (l *loader) parts(n *yaml.Node) {
 		return
 	}
 	for i, item := range items {
+		if isTransformer(item) {
+			if !l.transformer(i, item) { // transformer.go
+				l.partsComplete = false
+			}
+			continue
+		}
 		if l.distributedPart(i, item) {
 			continue
 		}

@@ -28,7 +28,7 @@ func newDemoCmd() *cobra.Command {
 		Short: "Run every built-in demo circuit and write a design report for each",
 		Long: `demo runs the analyses on the circuits built into qpoint — a low-barrier
 detector with a bias resistor, a current-controlled shunt-diode attenuator,
-an anti-parallel limiter and a two-diode mixer bias network — prints each
+an anti-parallel limiter and a single-balanced diode mixer — prints each
 one's operating point and response, and writes a full HTML report for each
 into a folder (qpoint-demo by default) with an index page.
 

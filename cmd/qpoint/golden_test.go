@@ -54,6 +54,23 @@ func TestCommandGoldens(t *testing.T) {
 			ts = strings.TrimSuffix(ts, ".s2p") + ".s3p"
 			runs[2].args[5] = ts
 			runs[2].files[1] = ts
+			// And it is a mixer under its LO.
+			runs = append(runs,
+				struct {
+					golden string
+					args   []string
+					files  []string
+				}{"mixer.txt", []string{"mixer", file}, nil},
+				struct {
+					golden string
+					args   []string
+					files  []string
+				}{"mixer.json", []string{"mixer", file, "--json"}, nil},
+				struct {
+					golden string
+					args   []string
+					files  []string
+				}{"mixer-sweep.txt", []string{"mixer", file, "--sweep-lo-level", "-10dBm:12dBm:2dB"}, nil})
 		}
 		for _, r := range runs {
 			out, errs, code := runCLI(t, r.args...)

@@ -235,6 +235,6 @@ them, and let the parts' ratings and your local practice govern.`,
 		},
 	})
 	root.AddCommand(newBiasCmd(), newResponseCmd(), newDistortionCmd(), newStudyCmd(), newNoiseCmd(), newReportCmd(), newHarmonicsCmd(), newDemoCmd())
-	root.AddCommand(newFitCmd(), newYieldCmd(), newPulseCmd(), newExploreCmd())
+	root.AddCommand(newFitCmd(), newYieldCmd(), newPulseCmd(), newMixerCmd(), newExploreCmd())
 	return root
 }

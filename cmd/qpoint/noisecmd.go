@@ -74,7 +74,7 @@ noise-equivalent power and the tangential sensitivity in the video band
 (--video-bandwidth, default 1 Hz to 2 MHz); the default sweep is then that
 video band. Noise is that of the network linearised at its DC bias point:
 a mixer's conversion noise, with a local oscillator pumping the diodes,
-is not computed here.`,
+is qpoint mixer's.`,
 		Example: `  qpoint noise testdata/demo/attenuator.yaml
   qpoint noise testdata/demo/detector.yaml --video-bandwidth 10MHz
   qpoint noise detector.yaml --carrier 915MHz --video-bandwidth 100Hz:1MHz --json

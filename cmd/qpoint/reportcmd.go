@@ -17,10 +17,11 @@ func newReportCmd() *cobra.Command {
 		Use:   "report FILE -o REPORT.html",
 		Short: "Write one self-contained HTML design report",
 		Long: `report runs every analysis the circuit file's defaults ask for — bias,
-small-signal response, distortion, the study and a pulse — and writes one HTML page
-with the circuit summary, Q-point and small-signal tables, response figures
-(gain and phase, impedance, Smith chart, group delay), distortion tables and
-figures, the study's figures and every caution. The page carries its figures
+small-signal response, distortion, the study, a mixer under its LO and a
+pulse — and writes one HTML page with the circuit summary, Q-point and
+small-signal tables, response figures (gain and phase, impedance, Smith
+chart, group delay), distortion tables and figures, the study's figures,
+the mixer's figures against its LO drive and every caution. The page carries its figures
 inline and fetches nothing: mail it, archive it, print it.`,
 		Example: `  qpoint report testdata/demo/detector.yaml -o detector.html
   qpoint report mixer.yaml -o mixer-85C.html --temperature 85C`,

@@ -8,6 +8,7 @@ import (
 	"strings"
 
 	"qpoint/ac"
+	"qpoint/ac/mixer"
 	"qpoint/ac/plan"
 	"qpoint/ac/steady"
 	"qpoint/ac/study"
@@ -204,7 +205,9 @@ func Build(c *circuit.Circuit, settings Settings) (*Document, error) {
 	// Noise.
 	if nsec, ncards, err := noiseSection(c, nw); err == nil {
 		doc.Sections = append(doc.Sections, nsec)
-		doc.Cards = append(doc.Cards, ncards...)
+		if !c.Analysis.Mixer.Set { // a mixer's noise figure is the pumped one
+			doc.Cards = append(doc.Cards, ncards...)
+		}
 	} else {
 		doc.Sections = append(doc.Sections, Section{ID: "noise", Title: "Noise", Intro: "The noise analysis could not run: " + err.Error()})
 	}
@@ -219,6 +222,16 @@ func Build(c *circuit.Circuit, settings Settings) (*Document, error) {
 	}
 	if len(c.Tolerances) > 0 {
 		sec, cards, err := yieldSection(c, settings.TemperatureK)
+		if err != nil {
+			return nil, err
+		}
+		doc.Sections = append(doc.Sections, sec)
+		doc.Cards = append(doc.Cards, cards...)
+	}
+
+	// Mixer, only when the file asks for one.
+	if c.Analysis.Mixer.Set {
+		sec, cards, err := mixerSection(c, nw)
 		if err != nil {
 			return nil, err
 		}
@@ -300,7 +313,14 @@ func distortionSection(nw *smallsignal.Network, d *plan.Drive) (Section, []Card,
 		sec.Blocks = append(sec.Blocks, Block{Figure: fig})
 	}
 	if !est.Balanced(ac.HD2) {
-		cards = append(cards, Card{Label: "second harmonic", Value: fmt.Sprintf("%.1f dBc", est.HD2dBc()), Detail: fmt.Sprintf("at %.0f dBm, %s", d.LevelDBm, si.Format(d.Drive.FrequencyHz, "Hz", 4))})
+		card := Card{Label: "second harmonic", Value: fmt.Sprintf("%.1f dBc", est.HD2dBc()), Detail: fmt.Sprintf("at %.0f dBm, %s", d.LevelDBm, si.Format(d.Drive.FrequencyHz, "Hz", 4))}
+		// Past the small-signal limit the estimate is not the figure to
+		// quote: the waveform's is.
+		if limit != nil && limit.Outcome == steady.LimitFound && d.LevelDBm > limit.LevelDBm && len(st.Output) > 2 && st.Output[1].Amplitude > 0 {
+			card.Value = fmt.Sprintf("%.1f dBc", 20*math.Log10(st.Output[2].Amplitude/st.Output[1].Amplitude))
+			card.Detail += fmt.Sprintf(", from the waveform: the level is past the small-signal limit, where the estimate (%.1f dBc) no longer holds", est.HD2dBc())
+		}
+		cards = append(cards, card)
 	}
 	if limit != nil {
 		switch limit.Outcome {
@@ -572,4 +592,40 @@ func pulseSection(c *circuit.Circuit, nw *smallsignal.Network) (Section, []Card,
 		}
 	}
 	return sec, cards, nil
+}
+
+// mixerSection is the file's mixer analysis under its LO: conversion,
+// ports, the LO, the diodes, noise, cautions and the sweep of LO drive.
+func mixerSection(c *circuit.Circuit, nw *smallsignal.Network) (Section, []Card, error) {
+	sec := Section{ID: "mixer", Title: "Mixer under its LO"}
+	m, err := plan.ResolveMixer(c, plan.MixerRequest{CheckShooting: true})
+	if err != nil {
+		sec.Intro = "The file's mixer analysis could not be set up: " + err.Error()
+		return sec, nil, nil
+	}
+	res, err := mixer.Analyze(nw, m.Settings)
+	if res == nil || err != nil {
+		why := "no result"
+		if err != nil {
+			why = err.Error()
+		}
+		sec.Intro = "The mixer analysis failed: " + why
+		return sec, nil, nil
+	}
+	lines := MixerSetupLines(nw, m)
+	sec.Intro = fmt.Sprintf("LO: %s. RF: %s. IF: %s. The %s.", lines[0][1], lines[1][1], lines[2][1], MixerMethodLine(res))
+	for _, t := range []*Table{MixerTable(res), MixerPortTable(nw, m, res), MixerLOTable(m, res),
+		MixerDiodeTable(res), MixerNoiseTable(res, 6)} {
+		sec.Blocks = append(sec.Blocks, Block{Table: t})
+	}
+	for _, msg := range MixerCautionMessages(res) {
+		sec.Blocks = append(sec.Blocks, Block{Note: "Caution: " + msg})
+	}
+	pts := mixer.SweepLO(nw, m.Settings, plan.DefaultMixerLevels(m.LOLevelDBm), nil)
+	fig, err := SVGOf(plots.MixerLevelSweep(pts, m.LOLevelDBm))
+	if err != nil {
+		return sec, nil, err
+	}
+	sec.Blocks = append(sec.Blocks, Block{Figure: fig}, Block{Table: MixerSweepTable(pts)})
+	return sec, MixerCards(m, res), nil
 }

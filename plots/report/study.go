@@ -92,6 +92,19 @@ func StudyColumns(r *study.Result) []StudyColumn {
 			StudyColumn{"dc_shift_V" + ftag, "DC shift" + tag, "V", func(st *study.Step) float64 { return st.Distortion[di].DCShift }},
 			StudyColumn{"sensitivity_V/W" + ftag, "sensitivity V/W" + tag, "", func(st *study.Step) float64 { return st.Distortion[di].Sensitivity }})
 	}
+	if r.Settings.Mixer != nil {
+		mx := func(st *study.Step) study.MixerFigures {
+			if st.Mixer == nil || st.Mixer.Breakdown {
+				nan := math.NaN()
+				return study.MixerFigures{ConversionLossDB: nan, NoiseFigureSSBDB: nan, LOAbsorbedDBm: nan}
+			}
+			return *st.Mixer
+		}
+		cols = append(cols,
+			StudyColumn{"conversion_loss_dB", "conversion loss dB", "", func(st *study.Step) float64 { return mx(st).ConversionLossDB }},
+			StudyColumn{"mixer_noise_figure_dB", "mixer NF dB", "", func(st *study.Step) float64 { return mx(st).NoiseFigureSSBDB }},
+			StudyColumn{"lo_power_dBm", "LO absorbed dBm", "", func(st *study.Step) float64 { return mx(st).LOAbsorbedDBm }})
+	}
 	if r.Settings.Detector != nil {
 		cols = append(cols,
 			StudyColumn{"nep_W/rtHz", "NEP", "W/√Hz", func(st *study.Step) float64 { return Detection(st).NEP }},

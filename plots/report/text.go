@@ -36,8 +36,8 @@ func numericColumn(rows [][]string, i int) bool {
 
 // WriteText writes the table as plain text for a terminal: the caption
 // after a blank line, then the header, a rule and the rows, two spaces in;
-// the first column left-aligned (names), the others right-aligned
-// (values), three spaces apart.
+// the first column left-aligned (names), the numeric ones right-aligned
+// (values) and the others, text, left-aligned, three spaces apart.
 func (t *Table) WriteText(w io.Writer) {
 	widths := make([]int, len(t.Header))
 	for _, row := range append([][]string{t.Header}, t.Rows...) {
@@ -58,10 +58,13 @@ func (t *Table) WriteText(w io.Writer) {
 				break
 			}
 			pad := strings.Repeat(" ", widths[i]-utf8.RuneCountInString(c))
-			if i == 0 {
+			switch {
+			case i == 0:
 				b.WriteString(c + pad)
-			} else {
+			case t.numeric(i):
 				b.WriteString("   " + pad + c)
+			default:
+				b.WriteString("   " + c + pad)
 			}
 		}
 		fmt.Fprintln(w, strings.TrimRight(b.String(), " "))
