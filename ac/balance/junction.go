@@ -3,7 +3,7 @@ package balance
 import (
 	"math"
 
-	"github.com/mjibson/go-dsp/fft"
+	"gonum.org/v1/gonum/dsp/fourier"
 
 	"qpoint/bias/diode"
 	"qpoint/smallsignal"
@@ -56,18 +56,21 @@ func (j *junction) stamp(f []complex128, k, n int, i complex128) {
 }
 
 // grid moves between phasors and samples on the artificial time grid
-// with go-dsp's FFT. Real signals are transformed two at a time, as the
+// with gonum's FFT, planned once for the grid's size and run in place (a
+// transform that allocated its output made most of a pumped mixer's
+// garbage). Real signals are transformed two at a time, as the
 // real and imaginary parts of one complex transform; the second is scaled
 // by a power of two to the size of the first, since the transform's
 // rounding follows the larger of the two (a junction's current in amperes
 // beside its charge in coulombs would lose ten digits of the charge).
 type grid struct {
 	s   *spectrum
+	fft *fourier.CmplxFFT
 	buf []complex128
 }
 
 func newGrid(s *spectrum) *grid {
-	return &grid{s: s, buf: make([]complex128, s.samples)}
+	return &grid{s: s, fft: fourier.NewCmplxFFT(s.samples), buf: make([]complex128, s.samples)}
 }
 
 // toTime returns the samples of the real signals whose phasors at the
@@ -102,7 +105,7 @@ func (g *grid) toTime(p1, p2 []complex128, x1, x2 []float64) {
 		z[pr.a] += conj(za)
 		z[S-pr.a] += conj(zm)
 	}
-	out := fft.FFT(z)
+	out := g.fft.Coefficients(z, z)
 	for s := range x1 {
 		x1[s] = real(out[s])
 		if x2 != nil {
@@ -154,7 +157,7 @@ func (g *grid) toPhasors(x1, x2 []float64, p1, p2 []complex128) {
 	for s := range z {
 		z[s] = complex(x1[s], scale*x2[s])
 	}
-	w := fft.FFT(z)
+	w := g.fft.Coefficients(z, z)
 	inv := 1 / float64(S)
 	defer func() {
 		if m2 == 0 {
@@ -185,7 +188,7 @@ func (g *grid) coefficients(x1, x2 []float64, c1, c2 []complex128) {
 	for s := range z {
 		z[s] = complex(x1[s], scale*x2[s])
 	}
-	w := fft.FFT(z)
+	w := g.fft.Coefficients(z, z)
 	inv := 1 / float64(S)
 	if m2 == 0 {
 		defer clear(c2)

@@ -27,13 +27,54 @@ import (
 // serves circuits of modest size.
 type timePreconditioner struct {
 	n, S     int
-	lu       []denseLU   // A_s = G(t_s) + C(t_s)/h
-	prev     [][]float64 // B_s = C(t_s)/h, row-major n×n
+	lu       []denseLU // A_s = G(t_s) + C(t_s)/h
+	// B_s = C(t_s)/h, kept sparse: the lumped capacitances' entries
+	// (compressed rows of the linear part, each over h) and each
+	// junction's capacitance over h at every sample. Dense, it was an
+	// n×n matrix a sample, as much memory again as the factors, and its
+	// products scanned every entry.
+	rowPtr, cols []int
+	cOverH       []float64
+	junctions    []timeJunction
 	segments [][2]int    // first and last sample of each segment
 	cycle    denseLU     // the segment states' cyclic system
 	rt       [][]float64 // work: r(t_s) per unknown
 	xt       [][]float64 // work: dx(t_s) per unknown
 	tmp      []float64
+}
+
+// timeJunction is one junction's share of B_s: its capacitance over h at
+// every sample, between unknowns a and b (either may be ground, -1).
+type timeJunction struct {
+	a, b int
+	c    []float64
+}
+
+// mulPrev sets y = B_s x.
+func (tp *timePreconditioner) mulPrev(s int, x, y []float64) {
+	for i := 0; i < tp.n; i++ {
+		var sum float64
+		for e := tp.rowPtr[i]; e < tp.rowPtr[i+1]; e++ {
+			sum += tp.cOverH[e] * x[tp.cols[e]]
+		}
+		y[i] = sum
+	}
+	for _, j := range tp.junctions {
+		c := j.c[s]
+		var v float64
+		if j.a >= 0 {
+			v = x[j.a]
+		}
+		if j.b >= 0 {
+			v -= x[j.b]
+		}
+		if j.a >= 0 {
+			y[j.a] += c * v
+		}
+		if j.b >= 0 {
+			y[j.b] -= c * v
+		}
+	}
 }
 
 // timeDomainLimit is the largest network the time-domain preconditioner
@@ -59,47 +100,55 @@ func (sys *system) factorTime() error {
 	n, S := sys.n, sys.spec.samples
 	tp := sys.tpre
 	if tp == nil || tp.S != S {
-		tp = &timePreconditioner{n: n, S: S, lu: make([]denseLU, S), prev: make([][]float64, S),
+		tp = &timePreconditioner{n: n, S: S, lu: make([]denseLU, S),
 			rt: make([][]float64, n), xt: make([][]float64, n), tmp: make([]float64, n)}
 		for s := range tp.lu {
 			tp.lu[s] = newDenseLU(n)
-			tp.prev[s] = make([]float64, n*n)
 		}
 		for i := range tp.rt {
 			tp.rt[i] = make([]float64, S)
 			tp.xt[i] = make([]float64, S)
 		}
+		tp.junctions = make([]timeJunction, len(sys.js))
+		for k, jn := range sys.js {
+			tp.junctions[k] = timeJunction{a: jn.a, b: jn.b, c: make([]float64, S)}
+		}
 		sys.tpre = tp
 	}
 	h := 2 * math.Pi / (sys.spec.wGrid * float64(S))
 	lin := sys.lin
+	tp.rowPtr, tp.cols = lin.rowPtr, lin.cols
+	if len(tp.cOverH) != len(lin.c) {
+		tp.cOverH = make([]float64, len(lin.c))
+	}
+	for e, c := range lin.c {
+		tp.cOverH[e] = c / h
+	}
+	for k, jn := range sys.js {
+		for s := range S {
+			tp.junctions[k].c[s] = jn.c[s] / h
+		}
+	}
 	for s := 0; s < S; s++ {
-		a, b := tp.lu[s].a, tp.prev[s]
+		a := tp.lu[s].a
 		clear(a)
-		clear(b)
 		for i := 0; i < n; i++ {
 			for e := lin.rowPtr[i]; e < lin.rowPtr[i+1]; e++ {
-				j := lin.cols[e]
-				a[i*n+j] += lin.g[e] + lin.c[e]/h
-				b[i*n+j] += lin.c[e] / h
+				a[i*n+lin.cols[e]] += lin.g[e] + lin.c[e]/h
 			}
 		}
 		for _, jn := range sys.js {
-			g, c := jn.g[s], jn.c[s]/h
-			stamp := func(m []float64, v float64) {
-				if jn.a >= 0 {
-					m[jn.a*n+jn.a] += v
-				}
-				if jn.b >= 0 {
-					m[jn.b*n+jn.b] += v
-				}
-				if jn.a >= 0 && jn.b >= 0 {
-					m[jn.a*n+jn.b] -= v
-					m[jn.b*n+jn.a] -= v
-				}
+			v := jn.g[s] + jn.c[s]/h
+			if jn.a >= 0 {
+				a[jn.a*n+jn.a] += v
 			}
-			stamp(a, g+c)
-			stamp(b, c)
+			if jn.b >= 0 {
+				a[jn.b*n+jn.b] += v
+			}
+			if jn.a >= 0 && jn.b >= 0 {
+				a[jn.a*n+jn.b] -= v
+				a[jn.b*n+jn.a] -= v
+			}
 		}
 		if err := tp.lu[s].factor(); err != nil {
 			return err
@@ -125,7 +174,7 @@ func (sys *system) factorTime() error {
 				for i := 0; i < n; i++ {
 					col[i] = phi[i*n+j]
 				}
-				mulVec(tp.prev[(s+S-1)%S], col, next, n)
+				tp.mulPrev((s+S-1)%S, col, next)
 				tp.lu[s].solve(next)
 				for i := 0; i < n; i++ {
 					phi[i*n+j] = next[i]
@@ -174,7 +223,7 @@ func (tp *timePreconditioner) propagate(first, last int, x []float64) {
 	n, S := tp.n, tp.S
 	v := tp.tmp
 	for s := first; s <= last; s++ {
-		mulVec(tp.prev[(s+S-1)%S], x, v, n)
+		tp.mulPrev((s+S-1)%S, x, v)
 		for i := 0; i < n; i++ {
 			v[i] += tp.rt[i][s]
 		}
@@ -236,19 +285,6 @@ func (sys *system) preconditionTime(r []complex128) {
 	}
 	for i := 0; i < n; i++ {
 		r[i] = complex(real(r[i]), dcIm[i])
-	}
-}
-
-func mulVec(m, x, y []float64, n int) {
-	for i := 0; i < n; i++ {
-		var s float64
-		row := m[i*n : (i+1)*n]
-		for j, v := range row {
-			if v != 0 {
-				s += v * x[j]
-			}
-		}
-		y[i] = s
 	}
 }
 
