@@ -2,6 +2,8 @@ package mixer
 
 import (
 	"errors"
+	"runtime"
+	"sync"
 
 	"qpoint/ac"
 	"qpoint/smallsignal"
@@ -21,32 +23,67 @@ type LevelPoint struct {
 // the curve of conversion loss against LO power. Each pump starts from
 // the DC point, which on the demo costs less than half of continuing
 // from the last level (whose spectrum and grid it would inherit: 4.1 s
-// against 9.4 s for twelve levels, BenchmarkDemoSweep); a pump that
-// fails from there is tried again continuing from the last level that
+// against 9.4 s for twelve levels, BenchmarkDemoSweep); the levels are
+// therefore independent and run side by side, one per processor
+// (GOMAXPROCS). A pump that fails from the DC point is tried again,
+// afterwards and in order, continuing from the nearest lower level that
 // converged. s.LOEMF and s.Start are ignored. progress, when not nil, is
-// called after each level.
+// called after each level (from one goroutine at a time).
 func SweepLO(nw *smallsignal.Network, s Settings, levelsDBm []float64, progress func(done, total int)) []LevelPoint {
 	out := make([]LevelPoint, len(levelsDBm))
 	z0 := 0.0
 	if s.LO >= 0 && s.LO < len(nw.Ports) {
 		z0 = nw.Ports[s.LO].Impedance
 	}
-	var prev *Result
-	for i, dbm := range levelsDBm {
+	at := func(i int, start *Result) {
 		t := s
-		t.LOEMF = ac.DBmToEMF(dbm, z0)
-		t.Start = nil
+		t.LOEMF = ac.DBmToEMF(levelsDBm[i], z0)
+		t.Start = start
 		r, err := Analyze(nw, t)
-		if r == nil && prev != nil && !isRequest(err) {
-			t.Start = prev
-			r, err = Analyze(nw, t)
+		out[i] = LevelPoint{LevelDBm: levelsDBm[i], Result: r, Err: err}
+	}
+	var (
+		mu   sync.Mutex
+		done int
+		wg   sync.WaitGroup
+	)
+	next := make(chan int)
+	for range min(runtime.GOMAXPROCS(0), len(levelsDBm)) {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			for i := range next {
+				at(i, nil)
+				if out[i].Result == nil && !isRequest(out[i].Err) {
+					continue // counted when retried
+				}
+				mu.Lock()
+				done++
+				if progress != nil {
+					progress(done, len(levelsDBm))
+				}
+				mu.Unlock()
+			}
+		}()
+	}
+	for i := range levelsDBm {
+		next <- i
+	}
+	close(next)
+	wg.Wait()
+	var prev *Result
+	for i := range out {
+		if out[i].Result == nil && !isRequest(out[i].Err) {
+			if prev != nil {
+				at(i, prev)
+			}
+			done++
+			if progress != nil {
+				progress(done, len(levelsDBm))
+			}
 		}
-		out[i] = LevelPoint{LevelDBm: dbm, Result: r, Err: err}
-		if r != nil {
-			prev = r
-		}
-		if progress != nil {
-			progress(i+1, len(levelsDBm))
+		if out[i].Result != nil {
+			prev = out[i].Result
 		}
 	}
 	return out
