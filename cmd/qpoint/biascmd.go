@@ -11,6 +11,7 @@ import (
 	"qpoint/bias/circuit"
 	"qpoint/bias/si"
 	"qpoint/plots/report"
+	"qpoint/plots/results"
 )
 
 func newBiasCmd() *cobra.Command {
@@ -51,7 +52,7 @@ was tried), 2 bad input or usage.`,
 				return analysisError(err)
 			}
 			if asJSON {
-				return writeJSON(cmd.OutOrStdout(), biasDocument(p))
+				return results.Write(cmd.OutOrStdout(), results.BiasOf(p))
 			}
 			writeBias(cmd.OutOrStdout(), p)
 			return nil

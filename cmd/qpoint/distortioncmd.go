@@ -20,6 +20,7 @@ import (
 	"qpoint/bias/circuit"
 	"qpoint/bias/si"
 	"qpoint/plots/report"
+	"qpoint/plots/results"
 	"qpoint/smallsignal"
 )
 
@@ -272,7 +273,7 @@ func runDistortion(cmd *cobra.Command, path string, fl *distortionFlags) error {
 	}
 	out := cmd.OutOrStdout()
 	if fl.asJSON {
-		return writeJSON(out, distortionDocOf(s, res))
+		return results.Write(out, results.DistortionOf(s.planned, res))
 	}
 	writeDistortionText(out, s, res)
 	if fl.plotsDir != "" {
@@ -355,64 +356,15 @@ func runDistortionFrequency(cmd *cobra.Command, g *fileGuard, s *distortionSetup
 	}
 	out := cmd.OutOrStdout()
 	if fl.asJSON {
-		doc := distortionDocHead(s)
+		doc := results.DistortionHead(s.planned)
 		for _, r := range rows {
-			doc.FrequencySweep = append(doc.FrequencySweep, estimateJSONOf(r.est))
+			doc.FrequencySweep = append(doc.FrequencySweep, results.EstimateOf(r.est))
 		}
-		return writeJSON(out, doc)
+		return results.Write(out, doc)
 	}
 	writeDistortionHeader(out, s)
 	writeFrequencySweep(out, rows)
 	return nil
-}
-
-// distortionDocHead is the JSON document's drive.
-func distortionDocHead(s *distortionSetup) *distortionJSON {
-	return &distortionJSON{Input: s.inName, Output: s.outName, Frequency: number(s.drive.FrequencyHz), LevelDBm: number(s.levelDBm)}
-}
-
-// distortionDocOf is the JSON document of a distortion run.
-func distortionDocOf(s *distortionSetup, res *plan.Distortion) *distortionJSON {
-	doc := distortionDocHead(s)
-	doc.Estimate = estimateJSONOf(res.Estimate)
-	doc.Waveform = waveformJSONOf(res.Waveform)
-	doc.Cautions = append([]string{}, res.Waveform.Cautions()...)
-	doc.Cautions = append(doc.Cautions, outsideMessages(outsideOf(res))...)
-	if note := report.TruncationNote(res.Waveform); note != "" {
-		doc.Cautions = append(doc.Cautions, note)
-	}
-	for _, c := range res.Comparison {
-		doc.Comparison = append(doc.Comparison, comparisonJSON{c.Order, number(c.Estimate), number(c.Waveform), number(c.DiffDB), c.Trustable})
-	}
-	if two := res.TwoTone; two != nil {
-		doc.Waveform.addTwoTone(two)
-		doc.Cautions = append(doc.Cautions, two.Cautions()...)
-		if note := report.TruncationNote(two); note != "" {
-			doc.Cautions = append(doc.Cautions, note)
-		}
-	}
-	if res.Validity != nil {
-		doc.setValidity(res.Validity)
-	}
-	if res.Compressed {
-		doc.CompressionDBm = number(res.CompressionDBm)
-	}
-	for _, p := range res.Sweep {
-		doc.LevelSweep = append(doc.LevelSweep, levelJSON{number(p.LevelDBm), waveformJSONOf(p.Steady)})
-	}
-	doc.Cautions = append(doc.Cautions, report.SweepCautions(res.Sweep)...)
-	if res.Transfer != nil {
-		doc.Transfer = transferJSONOf(res.Transfer, res.TangentialDBm)
-	}
-	for _, p := range res.TwoToneSweep {
-		w := waveformJSONOf(p.Steady)
-		w.addTwoTone(p.Steady)
-		doc.TwoToneSweep = append(doc.TwoToneSweep, levelJSON{number(p.LevelDBm), w})
-	}
-	if res.TwoToneSweep != nil && res.InterceptErr == nil {
-		doc.MeasuredIntercept = interceptJSONOf(res.Intercept)
-	}
-	return doc
 }
 
 // writeDistortionText prints a distortion run's tables.
@@ -427,7 +379,7 @@ func writeDistortionText(out io.Writer, s *distortionSetup, res *plan.Distortion
 		fmt.Fprintf(out, "  %s\n", note)
 	}
 	writeCautions(out, st.Cautions())
-	writeOutside(out, outsideOf(res))
+	report.WriteOutside(out, outsideOf(res))
 	writeComparison(out, res.Comparison, res.Validity)
 	if two := res.TwoTone; two != nil {
 		writeTwoTone(out, two, res.Estimate)

@@ -10,6 +10,7 @@ import (
 
 	"qpoint/bias/si"
 	"qpoint/plots/report"
+	"qpoint/plots/results"
 
 	"github.com/spf13/cobra"
 
@@ -145,11 +146,11 @@ func runWaveformHarmonics(cmd *cobra.Command, path string, fl *waveformFlags) er
 	}
 	out := cmd.OutOrStdout()
 	if fl.asJSON {
-		doc := waveformHarmonicsDocument(path, w, r)
+		doc := results.HarmonicsOf(path, w, r)
 		if pred != nil {
-			doc.Prediction = waveformJSONOf(pred)
+			doc.Prediction = results.WaveformOf(pred)
 		}
-		return writeJSON(out, doc)
+		return results.Write(out, doc)
 	}
 	writeWaveformHarmonics(out, path, w, r)
 	if pred != nil {
@@ -292,50 +293,4 @@ func waveformDB(v float64) string {
 		return "—"
 	}
 	return strconv.FormatFloat(v, 'f', 2, 64)
-}
-
-type waveformHarmonicJSON struct {
-	Order     int    `json:"order"`
-	Frequency number `json:"frequency"`
-	Amplitude number `json:"amplitude"`
-	Phase     number `json:"phase"`
-	DBc       number `json:"dbc"`
-}
-
-type waveformHarmonicsJSON struct {
-	File                  string                 `json:"file"`
-	Samples               int                    `json:"samples"`
-	SampleRate            number                 `json:"sample_rate"`
-	StartTime             number                 `json:"start_time"`
-	Window                string                 `json:"window"`
-	Fundamental           number                 `json:"fundamental"`
-	FundamentalSearched   bool                   `json:"fundamental_searched"`
-	Periods               number                 `json:"periods"`
-	Harmonics             []waveformHarmonicJSON `json:"harmonics"`
-	THDPercent            number                 `json:"thd_percent"`
-	THDdB                 number                 `json:"thd_db"`
-	SINADdB               number                 `json:"sinad_db"`
-	NoiseAndDistortionRMS number                 `json:"noise_and_distortion_rms"`
-	NoiseRMS              number                 `json:"noise_rms"`
-	NoiseDensity          number                 `json:"noise_density"`
-	Prediction            *waveformJSON          `json:"prediction,omitempty"`
-	// SampleRateUncertainty is the relative uncertainty of the sample
-	// rate from the time column's resolution (0 when given outright).
-	SampleRateUncertainty number `json:"sample_rate_uncertainty"`
-}
-
-func waveformHarmonicsDocument(path string, w *measure.Waveform, r *measure.Result) *waveformHarmonicsJSON {
-	d := &waveformHarmonicsJSON{
-		File: path, Samples: r.Samples, SampleRate: number(r.SampleRateHz), StartTime: number(w.StartS),
-		Window: r.Window.String(), Fundamental: number(r.FundamentalHz), FundamentalSearched: r.Searched,
-		Periods: number(r.Periods), THDPercent: number(r.THDPercent), THDdB: number(r.THDdB),
-		SINADdB: number(r.SINADdB), NoiseAndDistortionRMS: number(r.NoiseDistortionRMS),
-		NoiseRMS: number(r.NoiseRMS), NoiseDensity: number(r.NoiseDensity),
-		SampleRateUncertainty: number(w.RateUncertainty),
-	}
-	for _, h := range r.Harmonics {
-		d.Harmonics = append(d.Harmonics, waveformHarmonicJSON{Order: h.Order, Frequency: number(h.FrequencyHz),
-			Amplitude: number(h.AmplitudeV), Phase: number(h.PhaseDeg), DBc: number(h.DBc)})
-	}
-	return d
 }

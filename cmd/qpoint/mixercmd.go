@@ -13,6 +13,7 @@ import (
 	"qpoint/bias/circuit"
 	"qpoint/plots"
 	"qpoint/plots/report"
+	"qpoint/plots/results"
 	"qpoint/smallsignal"
 )
 
@@ -183,7 +184,7 @@ func runMixer(cmd *cobra.Command, path string, fl *mixerFlags) error {
 		}
 	}
 	if fl.asJSON {
-		return writeJSON(out, mixerDocument(s, res))
+		return results.Write(out, results.MixerOf(s.p, s.plan, res))
 	}
 	writeMixerHeader(out, s, res)
 	for _, t := range []*report.Table{report.MixerTable(res), report.MixerPortTable(s.nw, s.plan, res), report.MixerLOTable(s.plan, res),
@@ -245,7 +246,7 @@ func runMixerSweep(cmd *cobra.Command, s *mixerSetup, fl *mixerFlags, levels []f
 	}
 	out := cmd.OutOrStdout()
 	if fl.asJSON {
-		if err := writeJSON(out, mixerSweepDocument(s, pts)); err != nil {
+		if err := results.Write(out, results.MixerSweepOf(s.p, s.plan, pts)); err != nil {
 			return err
 		}
 	} else {

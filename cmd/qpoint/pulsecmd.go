@@ -1,7 +1,6 @@
 package main
 
 import (
-	"encoding/csv"
 	"errors"
 	"fmt"
 	"io"
@@ -19,6 +18,7 @@ import (
 	"qpoint/bias/si"
 	"qpoint/plots"
 	"qpoint/plots/report"
+	"qpoint/plots/results"
 	"qpoint/smallsignal"
 )
 
@@ -227,7 +227,7 @@ func runPulse(cmd *cobra.Command, path string, fl *pulseFlags) error {
 		}
 	}
 	if fl.csvPath != "" {
-		if err := g.writeFileAtomic(fl.csvPath, func(w io.Writer) error { return writePulseCSV(w, s, res) }); err != nil {
+		if err := g.writeFileAtomic(fl.csvPath, func(w io.Writer) error { return results.WritePulseCSV(w, s.plan, res) }); err != nil {
 			return err
 		}
 	}
@@ -237,7 +237,7 @@ func runPulse(cmd *cobra.Command, path string, fl *pulseFlags) error {
 		}
 	}
 	if fl.asJSON {
-		if err := writeJSON(out, pulseJSONOf(s, res, runErr)); err != nil {
+		if err := results.Write(out, results.PulseOf(s.c, s.plan, res, runErr)); err != nil {
 			return err
 		}
 	} else {
@@ -319,32 +319,6 @@ func writePulseCautions(w io.Writer, cs []transient.Caution) {
 	fmt.Fprintln(w)
 }
 
-// writePulseCSV writes every point of the run: time, the generator's EMF,
-// the output, and each diode's junction current and voltage.
-func writePulseCSV(w io.Writer, s *pulseSetup, res *transient.PulseResult) error {
-	cw := csv.NewWriter(w)
-	header := []string{"time_s", "emf_V", "output_" + s.outName + "_V"}
-	for _, d := range res.Run.Diodes {
-		header = append(header, d.Name+"_current_A", d.Name+"_junction_V")
-	}
-	if err := cw.Write(header); err != nil {
-		return err
-	}
-	g := func(v float64) string { return strconv.FormatFloat(v, 'g', -1, 64) }
-	row := make([]string, 0, len(header))
-	for i, t := range res.Run.Times {
-		row = append(row[:0], g(t), g(res.Run.EMF[i]), g(res.Output[i]))
-		for _, d := range res.Run.Diodes {
-			row = append(row, g(d.Current[i]), g(d.Junction[i]))
-		}
-		if err := cw.Write(row); err != nil {
-			return err
-		}
-	}
-	cw.Flush()
-	return cw.Error()
-}
-
 // runPulseSweep repeats the run over carrier levels and prints the figures
 // against the level.
 func runPulseSweep(cmd *cobra.Command, s *pulseSetup, fl *pulseFlags) error {
@@ -386,11 +360,11 @@ func runPulseSweep(cmd *cobra.Command, s *pulseSetup, fl *pulseFlags) error {
 	}
 	out := cmd.OutOrStdout()
 	if fl.asJSON {
-		doc := pulseJSONHeader(s)
+		doc := results.PulseHead(s.plan)
 		for _, p := range pts {
-			doc.LevelSweep = append(doc.LevelSweep, pulseLevelJSONOf(p))
+			doc.LevelSweep = append(doc.LevelSweep, results.PulseLevelOf(p))
 		}
-		if err := writeJSON(out, doc); err != nil {
+		if err := results.Write(out, doc); err != nil {
 			return err
 		}
 	} else {

@@ -71,25 +71,6 @@ func (fl *steadyFlags) steadyMethods(s *distortionSetup) (search, wave steady.Me
 	return m, w, nil
 }
 
-// productJSON is one mixing product of the two-tone waveform.
-type productJSON struct {
-	Orders    [2]int `json:"orders"`
-	Frequency number `json:"frequency"`
-	Amplitude number `json:"amplitude"`
-	Phase     number `json:"phase"`
-}
-
-// addTwoTone puts the two-tone steady state's products into the waveform
-// document.
-func (j *waveformJSON) addTwoTone(st *steady.State) {
-	j.IM2dBc = ptr(st.IM2dBc())
-	j.IM3dBc = ptr(st.IM3dBc())
-	j.Products = []productJSON{}
-	for _, p := range st.Products {
-		j.Products = append(j.Products, productJSON{p.Orders, number(p.FrequencyHz), number(p.Amplitude), number(p.PhaseDeg)})
-	}
-}
-
 func writeTwoTone(w io.Writer, st *steady.State, est *ac.Estimate) {
 	report.TwoToneTable(st, est).WriteText(w)
 	if note := report.TruncationNote(st); note != "" {
@@ -130,24 +111,6 @@ func writeTwoToneSweep(w io.Writer, pts []steady.LevelPoint, ip *steady.Intercep
 		fmt.Fprintf(w, ", OIP3 %.2f dBm", o)
 	}
 	fmt.Fprintln(w)
-}
-
-// interceptJSON is the measured-style intercept of a two-tone sweep.
-type interceptJSON struct {
-	IIP3DBm     number  `json:"iip3_dbm"`
-	OIP3DBm     *number `json:"oip3_dbm"`
-	Slope       number  `json:"im3_slope_db_per_db"`
-	FromDBm     number  `json:"from_dbm"`
-	ToDBm       number  `json:"to_dbm"`
-	LevelsFound int     `json:"levels_used"`
-}
-
-func interceptJSONOf(ip *steady.Intercept) *interceptJSON {
-	j := &interceptJSON{IIP3DBm: number(ip.IIP3DBm), Slope: number(ip.Slope), FromDBm: number(ip.FromDBm), ToDBm: number(ip.ToDBm), LevelsFound: ip.Levels}
-	if !math.IsNaN(ip.OIP3DBm) {
-		j.OIP3DBm = ptr(ip.OIP3DBm)
-	}
-	return j
 }
 
 // twoToneFigures is the two-tone spectrum, when there is a second tone.

@@ -1,12 +1,10 @@
 package main
 
 import (
-	"encoding/csv"
 	"errors"
 	"fmt"
 	"io"
 	"math"
-	"strconv"
 	"strings"
 	"time"
 
@@ -18,6 +16,7 @@ import (
 	"qpoint/bias/circuit"
 	"qpoint/plots"
 	"qpoint/plots/report"
+	"qpoint/plots/results"
 )
 
 type studyFlags struct {
@@ -125,6 +124,7 @@ type studySetup struct {
 	measure  *study.Measure
 	goal     string // "target", "maximize", "minimize" or ""
 	value    float64
+	planned  *plan.Study
 }
 
 func resolveStudy(g *fileGuard, warn io.Writer, path string, fl *studyFlags) (*studySetup, error) {
@@ -202,7 +202,7 @@ func resolveStudyFor(c *circuit.Circuit, fl *studyFlags) (*studySetup, error) {
 	if err != nil {
 		return nil, planError(err)
 	}
-	s := &studySetup{c: c, settings: st.Settings, measure: st.Measure, value: st.Value}
+	s := &studySetup{c: c, settings: st.Settings, measure: st.Measure, value: st.Value, planned: st}
 	s.goal = map[plan.GoalKind]string{plan.Target: "target", plan.Maximize: "maximize", plan.Minimize: "minimize"}[st.Goal]
 	return s, nil
 }
@@ -280,7 +280,7 @@ func runStudy(cmd *cobra.Command, path string, fl *studyFlags) error {
 		return err
 	}
 	if fl.csvPath != "" {
-		if err := g.writeFileAtomic(fl.csvPath, func(w io.Writer) error { return writeStudyCSV(w, r, cols) }); err != nil {
+		if err := g.writeFileAtomic(fl.csvPath, func(w io.Writer) error { return results.WriteStudyCSV(w, r, cols) }); err != nil {
 			return err
 		}
 	}
@@ -291,7 +291,7 @@ func runStudy(cmd *cobra.Command, path string, fl *studyFlags) error {
 	}
 	out := cmd.OutOrStdout()
 	if fl.asJSON {
-		return writeJSON(out, studyDocument(r, cols, s, sol))
+		return results.Write(out, results.StudyOf(r, cols, s.planned, sol))
 	}
 	writeStudyTable(out, r, cols, elapsed, failed)
 	if sol != nil {
@@ -303,39 +303,6 @@ func runStudy(cmd *cobra.Command, path string, fl *studyFlags) error {
 		}
 	}
 	return nil
-}
-
-func writeStudyCSV(w io.Writer, r *study.Result, cols []report.StudyColumn) error {
-	cw := csv.NewWriter(w)
-	var header []string
-	for _, c := range cols {
-		header = append(header, c.Key)
-	}
-	header = append(header, "newton_iterations", "error")
-	if err := cw.Write(header); err != nil {
-		return err
-	}
-	for i := range r.Steps {
-		st := &r.Steps[i]
-		var row []string
-		for k, c := range cols {
-			if st.Err != nil && k >= report.AxisCount(r) {
-				row = append(row, "")
-				continue
-			}
-			row = append(row, strconv.FormatFloat(c.Get(st), 'g', -1, 64))
-		}
-		e := ""
-		if st.Err != nil {
-			e = st.Err.Error()
-		}
-		row = append(row, strconv.Itoa(st.Iterations), e)
-		if err := cw.Write(row); err != nil {
-			return err
-		}
-	}
-	cw.Flush()
-	return cw.Error()
 }
 
 func writeStudyTable(w io.Writer, r *study.Result, cols []report.StudyColumn, elapsed time.Duration, failed int) {

@@ -1,12 +1,9 @@
 package main
 
 import (
-	"encoding/csv"
 	"errors"
 	"fmt"
 	"io"
-	"math"
-	"strconv"
 	"strings"
 
 	"github.com/spf13/cobra"
@@ -16,6 +13,7 @@ import (
 	"qpoint/bias/circuit"
 	"qpoint/plots"
 	"qpoint/plots/report"
+	"qpoint/plots/results"
 )
 
 type yieldFlags struct {
@@ -178,7 +176,7 @@ func runYield(cmd *cobra.Command, path string, fl *yieldFlags) error {
 		return err
 	}
 	if fl.csvPath != "" {
-		if err := g.writeFileAtomic(fl.csvPath, func(w io.Writer) error { return writeYieldCSV(w, r) }); err != nil {
+		if err := g.writeFileAtomic(fl.csvPath, func(w io.Writer) error { return results.WriteYieldCSV(w, r) }); err != nil {
 			return err
 		}
 	}
@@ -189,7 +187,7 @@ func runYield(cmd *cobra.Command, path string, fl *yieldFlags) error {
 	}
 	out := cmd.OutOrStdout()
 	if fl.asJSON {
-		return writeJSON(out, yieldDocument(r))
+		return results.Write(out, results.YieldOf(r))
 	}
 	writeYield(out, r)
 	for _, x := range []struct{ what, path string }{{"CSV", fl.csvPath}, {"figures", fl.plotsDir}} {
@@ -229,61 +227,4 @@ func writeYield(w io.Writer, r *yield.Result) {
 		}
 	}
 	fmt.Fprintln(w)
-}
-
-// writeYieldCSV writes one row per run: the drawn values, each target's
-// reading at each temperature and its worst, and whether the run passed.
-func writeYieldCSV(w io.Writer, r *yield.Result) error {
-	cw := csv.NewWriter(w)
-	c := r.Circuit
-	header := []string{"run"}
-	for _, t := range c.Tolerances {
-		header = append(header, t.Name+"_"+report.UnitOrNumber(t.Quantity.Unit()))
-	}
-	multi := len(r.TemperaturesK) > 1
-	for _, ts := range r.Targets {
-		u := report.UnitOrNumber(ts.Target.Measure.Unit)
-		if multi {
-			for _, k := range r.TemperaturesK {
-				header = append(header, fmt.Sprintf("%s_%s@%gK", ts.Target.Text, u, k))
-			}
-		}
-		header = append(header, ts.Target.Text+"_"+u)
-	}
-	header = append(header, "passed", "error")
-	if err := cw.Write(header); err != nil {
-		return err
-	}
-	g := func(v float64) string {
-		if math.IsNaN(v) {
-			return ""
-		}
-		return strconv.FormatFloat(v, 'g', -1, 64)
-	}
-	nk := len(r.TemperaturesK)
-	for i := range r.Runs {
-		run := &r.Runs[i]
-		row := []string{strconv.Itoa(run.Index)}
-		for _, v := range run.Values {
-			row = append(row, g(v))
-		}
-		for t := range r.Targets {
-			if multi {
-				for k := 0; k < nk; k++ {
-					row = append(row, g(run.Readings[t*nk+k]))
-				}
-			}
-			row = append(row, g(run.Worst[t]))
-		}
-		e := ""
-		if run.Err != nil {
-			e = run.Err.Error()
-		}
-		row = append(row, strconv.FormatBool(run.Passed), e)
-		if err := cw.Write(row); err != nil {
-			return err
-		}
-	}
-	cw.Flush()
-	return cw.Error()
 }
