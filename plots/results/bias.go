@@ -95,20 +95,20 @@ type Attempt struct {
 }
 
 type Bias struct {
-	Circuit     string          `json:"circuit"`
-	File        string          `json:"file"`
-	Temperature Number          `json:"temperature"`
-	Nodes       OrderedNumbers  `json:"nodes"`
-	Diodes      []BiasDiode `json:"diodes"`
-	Sources     []Source    `json:"sources"`
-	Inductors   []Source    `json:"inductors"`
-	Warnings    []Warning   `json:"warnings"`
+	Circuit     string         `json:"circuit"`
+	File        string         `json:"file"`
+	Temperature Number         `json:"temperature"`
+	Nodes       OrderedNumbers `json:"nodes"`
+	Diodes      []BiasDiode    `json:"diodes"`
+	Sources     []Source       `json:"sources"`
+	Inductors   []Source       `json:"inductors"`
+	Warnings    []Warning      `json:"warnings"`
 	// Distributed lists the lines and blocks (omitted without them).
 	Distributed []LinePart `json:"distributed,omitempty"`
 	Solver      struct {
-		Strategy   string        `json:"strategy"`
-		Iterations int           `json:"iterations"`
-		Residual   Number        `json:"residual"`
+		Strategy   string    `json:"strategy"`
+		Iterations int       `json:"iterations"`
+		Residual   Number    `json:"residual"`
 		Attempts   []Attempt `json:"attempts"`
 	} `json:"solver"`
 }

@@ -11,29 +11,29 @@ import (
 )
 
 type Contribution struct {
-	Product string      `json:"product"`
-	Diode   string      `json:"diode"`
-	Source  string      `json:"source"`
+	Product string  `json:"product"`
+	Diode   string  `json:"diode"`
+	Source  string  `json:"source"`
 	Phasor  Complex `json:"phasor"`
-	Percent Number      `json:"percent"`
+	Percent Number  `json:"percent"`
 }
 
 type Estimate struct {
-	Frequency     Number             `json:"frequency"`
-	Fundamental   Number             `json:"fundamental"`
-	Linear        Number             `json:"fundamental_linear"`
-	GainChangeDB  Number             `json:"gain_change_db"`
-	PhaseChange   Number             `json:"phase_change_deg"`
-	AMPM          Number             `json:"am_pm_deg_per_db"`
+	Frequency     Number         `json:"frequency"`
+	Fundamental   Number         `json:"fundamental"`
+	Linear        Number         `json:"fundamental_linear"`
+	GainChangeDB  Number         `json:"gain_change_db"`
+	PhaseChange   Number         `json:"phase_change_deg"`
+	AMPM          Number         `json:"am_pm_deg_per_db"`
 	Series1dB     *SeriesStep    `json:"series_1db,omitempty"`
-	HD2dBc        Number             `json:"hd2_dbc"`
-	HD3dBc        Number             `json:"hd3_dbc"`
-	DCShift       Number             `json:"dc_shift"`
-	IM2dBc        *Number            `json:"im2_dbc,omitempty"`
-	IM3dBc        *Number            `json:"im3_dbc,omitempty"`
-	IIP3dBm       *Number            `json:"iip3_dbm,omitempty"`
-	OIP3dBm       *Number            `json:"oip3_dbm,omitempty"`
-	IIP2dBm       *Number            `json:"iip2_dbm,omitempty"`
+	HD2dBc        Number         `json:"hd2_dbc"`
+	HD3dBc        Number         `json:"hd3_dbc"`
+	DCShift       Number         `json:"dc_shift"`
+	IM2dBc        *Number        `json:"im2_dbc,omitempty"`
+	IM3dBc        *Number        `json:"im3_dbc,omitempty"`
+	IIP3dBm       *Number        `json:"iip3_dbm,omitempty"`
+	OIP3dBm       *Number        `json:"oip3_dbm,omitempty"`
+	IIP2dBm       *Number        `json:"iip2_dbm,omitempty"`
 	Contributions []Contribution `json:"contributions"`
 }
 
@@ -47,13 +47,13 @@ type SeriesStep struct {
 // Transfer is a detector's transfer curve: output DC change against
 // available input power, with its deviation from square law.
 type Transfer struct {
-	Sensitivity   Number              `json:"sensitivity"`
+	Sensitivity   Number          `json:"sensitivity"`
 	Points        []TransferPoint `json:"points"`
-	LowSlope      Number              `json:"low_slope"`
-	HighSlope     Number              `json:"high_slope"`
-	DeviationDBm  *Number             `json:"deviation_1db_dbm"`
-	TangentialDBm *Number             `json:"tangential_sensitivity_dbm"`
-	DynamicRange  *Number             `json:"dynamic_range_db"`
+	LowSlope      Number          `json:"low_slope"`
+	HighSlope     Number          `json:"high_slope"`
+	DeviationDBm  *Number         `json:"deviation_1db_dbm"`
+	TangentialDBm *Number         `json:"tangential_sensitivity_dbm"`
+	DynamicRange  *Number         `json:"dynamic_range_db"`
 }
 
 type TransferPoint struct {
@@ -88,14 +88,14 @@ type Stress struct {
 }
 
 type Waveform struct {
-	Method     string         `json:"method"`
+	Method     string     `json:"method"`
 	Diodes     []Stress   `json:"diodes"`
 	Harmonics  []Harmonic `json:"harmonics"`
-	THDPercent Number         `json:"thd_percent"`
-	Iterations int            `json:"iterations"`
-	Residual   Number         `json:"residual"`
-	IM2dBc     *Number        `json:"im2_dbc,omitempty"`
-	IM3dBc     *Number        `json:"im3_dbc,omitempty"`
+	THDPercent Number     `json:"thd_percent"`
+	Iterations int        `json:"iterations"`
+	Residual   Number     `json:"residual"`
+	IM2dBc     *Number    `json:"im2_dbc,omitempty"`
+	IM3dBc     *Number    `json:"im3_dbc,omitempty"`
 	Products   []Product  `json:"products,omitempty"`
 }
 
@@ -108,28 +108,28 @@ type Comparison struct {
 }
 
 type Level struct {
-	LevelDBm Number        `json:"level_dbm"`
+	LevelDBm Number    `json:"level_dbm"`
 	Waveform *Waveform `json:"waveform"`
 }
 
 type Distortion struct {
-	Input              string           `json:"input"`
-	Output             string           `json:"output"`
-	Frequency          Number           `json:"frequency"`
-	LevelDBm           Number           `json:"level_dbm"`
+	Input              string       `json:"input"`
+	Output             string       `json:"output"`
+	Frequency          Number       `json:"frequency"`
+	LevelDBm           Number       `json:"level_dbm"`
 	Estimate           *Estimate    `json:"estimate,omitempty"`
 	Waveform           *Waveform    `json:"waveform,omitempty"`
 	Comparison         []Comparison `json:"comparison,omitempty"`
-	ValidityLimitDBm   *Number          `json:"validity_limit_dbm,omitempty"`
-	ValidityLimitFound bool             `json:"validity_limit_found,omitempty"`
-	ValidityNote       string           `json:"validity_note,omitempty"`
+	ValidityLimitDBm   *Number      `json:"validity_limit_dbm,omitempty"`
+	ValidityLimitFound bool         `json:"validity_limit_found,omitempty"`
+	ValidityNote       string       `json:"validity_note,omitempty"`
 	LevelSweep         []Level      `json:"level_sweep,omitempty"`
-	CompressionDBm     Number           `json:"compression_dbm,omitempty"`
+	CompressionDBm     Number       `json:"compression_dbm,omitempty"`
 	TwoToneSweep       []Level      `json:"two_tone_sweep,omitempty"`
 	MeasuredIntercept  *Intercept   `json:"measured_intercept,omitempty"`
 	Transfer           *Transfer    `json:"transfer,omitempty"`
 	FrequencySweep     []*Estimate  `json:"frequency_sweep,omitempty"`
-	Cautions           []string         `json:"cautions,omitempty"`
+	Cautions           []string     `json:"cautions,omitempty"`
 }
 
 func ptr(v float64) *Number { n := Number(v); return &n }

@@ -71,10 +71,10 @@ type FitPoint struct {
 }
 
 type Fit struct {
-	Name         string               `json:"name"`
+	Name         string           `json:"name"`
 	Model        FitModel         `json:"model"`
-	ResidualRMS  Number               `json:"residual_rms"`
-	Points       int                  `json:"points"`
+	ResidualRMS  Number           `json:"residual_rms"`
+	Points       int              `json:"points"`
 	Cautions     []FitCaution     `json:"cautions"`
 	Correlations []FitCorrelation `json:"correlations"`
 	Residuals    struct {
@@ -87,7 +87,7 @@ type Fit struct {
 		Breakdown   int `json:"breakdown"`
 		Capacitance int `json:"capacitance"`
 	} `json:"point_counts"`
-	Temperatures []Number      `json:"temperatures"`
+	Temperatures []Number  `json:"temperatures"`
 	Files        []FitFile `json:"files"`
 	Fitted       struct {
 		Forward     []FitPoint `json:"forward"`

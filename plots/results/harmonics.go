@@ -11,22 +11,22 @@ type CaptureHarmonic struct {
 }
 
 type Harmonics struct {
-	File                  string                 `json:"file"`
-	Samples               int                    `json:"samples"`
-	SampleRate            Number                 `json:"sample_rate"`
-	StartTime             Number                 `json:"start_time"`
-	Window                string                 `json:"window"`
-	Fundamental           Number                 `json:"fundamental"`
-	FundamentalSearched   bool                   `json:"fundamental_searched"`
-	Periods               Number                 `json:"periods"`
+	File                  string            `json:"file"`
+	Samples               int               `json:"samples"`
+	SampleRate            Number            `json:"sample_rate"`
+	StartTime             Number            `json:"start_time"`
+	Window                string            `json:"window"`
+	Fundamental           Number            `json:"fundamental"`
+	FundamentalSearched   bool              `json:"fundamental_searched"`
+	Periods               Number            `json:"periods"`
 	Harmonics             []CaptureHarmonic `json:"harmonics"`
-	THDPercent            Number                 `json:"thd_percent"`
-	THDdB                 Number                 `json:"thd_db"`
-	SINADdB               Number                 `json:"sinad_db"`
-	NoiseAndDistortionRMS Number                 `json:"noise_and_distortion_rms"`
-	NoiseRMS              Number                 `json:"noise_rms"`
-	NoiseDensity          Number                 `json:"noise_density"`
-	Prediction            *Waveform          `json:"prediction,omitempty"`
+	THDPercent            Number            `json:"thd_percent"`
+	THDdB                 Number            `json:"thd_db"`
+	SINADdB               Number            `json:"sinad_db"`
+	NoiseAndDistortionRMS Number            `json:"noise_and_distortion_rms"`
+	NoiseRMS              Number            `json:"noise_rms"`
+	NoiseDensity          Number            `json:"noise_density"`
+	Prediction            *Waveform         `json:"prediction,omitempty"`
 	// SampleRateUncertainty is the relative uncertainty of the sample
 	// rate from the time column's resolution (0 when given outright).
 	SampleRateUncertainty Number `json:"sample_rate_uncertainty"`

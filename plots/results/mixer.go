@@ -18,27 +18,27 @@ type Mixer struct {
 	File        string `json:"file"`
 	Temperature Number `json:"temperature"`
 	LO          struct {
-		Port           string      `json:"port"`
-		Frequency      Number      `json:"frequency"`
-		LevelDBm       Number      `json:"level_dbm"`
-		AvailablePower Number      `json:"available_power"`
-		AbsorbedPower  Number      `json:"absorbed_power"`
+		Port           string  `json:"port"`
+		Frequency      Number  `json:"frequency"`
+		LevelDBm       Number  `json:"level_dbm"`
+		AvailablePower Number  `json:"available_power"`
+		AbsorbedPower  Number  `json:"absorbed_power"`
 		InputImpedance Complex `json:"input_impedance"`
-		LeakageToRF    Number      `json:"leakage_to_rf"`
-		LeakageToIF    Number      `json:"leakage_to_if"`
-		ToRFIsolation  Number      `json:"to_rf_isolation_db"`
-		ToIFIsolation  Number      `json:"to_if_isolation_db"`
+		LeakageToRF    Number  `json:"leakage_to_rf"`
+		LeakageToIF    Number  `json:"leakage_to_if"`
+		ToRFIsolation  Number  `json:"to_rf_isolation_db"`
+		ToIFIsolation  Number  `json:"to_if_isolation_db"`
 	} `json:"lo"`
 	RF struct {
-		Port                string      `json:"port"`
-		Frequency           Number      `json:"frequency"`
+		Port                string  `json:"port"`
+		Frequency           Number  `json:"frequency"`
 		InputImpedance      Complex `json:"input_impedance"`
-		ImageFrequency      Number      `json:"image_frequency"`
+		ImageFrequency      Number  `json:"image_frequency"`
 		ImageInputImpedance Complex `json:"image_input_impedance"`
 	} `json:"rf"`
 	IF struct {
-		Port            string      `json:"port"`
-		Frequency       Number      `json:"frequency"`
+		Port            string  `json:"port"`
+		Frequency       Number  `json:"frequency"`
 		OutputImpedance Complex `json:"output_impedance"`
 	} `json:"if"`
 	MixerFigures
@@ -56,11 +56,11 @@ type Mixer struct {
 
 // MixerFigures are the figures of one LO level.
 type MixerFigures struct {
-	ConversionLossDB      Number             `json:"conversion_loss_db"`
-	ImageConversionLossDB Number             `json:"image_conversion_loss_db"`
-	UpconversionLossDB    Number             `json:"upconversion_loss_db"`
-	NoiseFigureSSBDB      Number             `json:"noise_figure_ssb_db"`
-	NoiseFigureDSBDB      Number             `json:"noise_figure_dsb_db"`
+	ConversionLossDB      Number         `json:"conversion_loss_db"`
+	ImageConversionLossDB Number         `json:"image_conversion_loss_db"`
+	UpconversionLossDB    Number         `json:"upconversion_loss_db"`
+	NoiseFigureSSBDB      Number         `json:"noise_figure_ssb_db"`
+	NoiseFigureDSBDB      Number         `json:"noise_figure_dsb_db"`
 	Noise                 MixerNoise     `json:"noise"`
 	Diodes                []MixerDiode   `json:"diodes"`
 	Cautions              []MixerCaution `json:"cautions"`
@@ -167,13 +167,13 @@ type MixerSweep struct {
 }
 
 type MixerLevel struct {
-	LevelDBm          Number      `json:"level_dbm"`
-	Error             string      `json:"error,omitempty"`
-	AbsorbedPower     Number      `json:"absorbed_power"`
+	LevelDBm          Number  `json:"level_dbm"`
+	Error             string  `json:"error,omitempty"`
+	AbsorbedPower     Number  `json:"absorbed_power"`
 	LOInputImpedance  Complex `json:"lo_input_impedance"`
 	RFInputImpedance  Complex `json:"rf_input_impedance"`
 	IFOutputImpedance Complex `json:"if_output_impedance"`
-	ToRFIsolation     Number      `json:"lo_to_rf_isolation_db"`
+	ToRFIsolation     Number  `json:"lo_to_rf_isolation_db"`
 	*MixerFigures
 }
 

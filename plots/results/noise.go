@@ -116,14 +116,14 @@ type NoiseSource struct {
 }
 
 type NoisePoint struct {
-	Frequency        Number      `json:"frequency"`
-	OutputDensity    Number      `json:"output_density"` // V/√Hz
-	InputReferred    *Number     `json:"input_referred,omitempty"`
-	NoiseFigureDB    *Number     `json:"noise_figure_db,omitempty"`
-	Gain             Complex `json:"gain"`
-	NEP              *Number     `json:"nep,omitempty"`               // W/√Hz
-	VideoSensitivity *Number     `json:"video_sensitivity,omitempty"` // V/W, |γ(f)|
-	Contributions    []Number    `json:"contributions"`               // V²/Hz, one per source
+	Frequency        Number   `json:"frequency"`
+	OutputDensity    Number   `json:"output_density"` // V/√Hz
+	InputReferred    *Number  `json:"input_referred,omitempty"`
+	NoiseFigureDB    *Number  `json:"noise_figure_db,omitempty"`
+	Gain             Complex  `json:"gain"`
+	NEP              *Number  `json:"nep,omitempty"`               // W/√Hz
+	VideoSensitivity *Number  `json:"video_sensitivity,omitempty"` // V/W, |γ(f)|
+	Contributions    []Number `json:"contributions"`               // V²/Hz, one per source
 }
 
 type NoiseBand struct {
@@ -150,12 +150,12 @@ type Detector struct {
 }
 
 type Noise struct {
-	Circuit     string            `json:"circuit"`
-	File        string            `json:"file"`
-	Temperature Number            `json:"temperature"`
-	Input       *string           `json:"input"`
-	Output      string            `json:"output"`
-	OutputPort  bool              `json:"output_is_port"`
+	Circuit     string        `json:"circuit"`
+	File        string        `json:"file"`
+	Temperature Number        `json:"temperature"`
+	Input       *string       `json:"input"`
+	Output      string        `json:"output"`
+	OutputPort  bool          `json:"output_is_port"`
 	Sources     []NoiseSource `json:"sources"`
 	Points      []NoisePoint  `json:"points"`
 	Band        *NoiseBand    `json:"band,omitempty"`

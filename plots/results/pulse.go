@@ -17,17 +17,17 @@ import (
 // width, steps, the leakage and recovery figures, rise_time, fall_time,
 // diodes, envelope) and more.
 type Pulse struct {
-	Input    string     `json:"input"`
-	Output   string     `json:"output"`
-	Kind     string     `json:"kind,omitempty"`
-	Carrier  Number     `json:"carrier"`
-	LevelDBm Number     `json:"level_dbm"`
-	Width    Number     `json:"width"`
-	Rise     Number     `json:"rise"`
-	Fall     Number     `json:"fall"`
-	Period   Number     `json:"period"`
-	Pulses   int        `json:"pulses"`
-	Start    Number     `json:"start"`
+	Input    string `json:"input"`
+	Output   string `json:"output"`
+	Kind     string `json:"kind,omitempty"`
+	Carrier  Number `json:"carrier"`
+	LevelDBm Number `json:"level_dbm"`
+	Width    Number `json:"width"`
+	Rise     Number `json:"rise"`
+	Fall     Number `json:"fall"`
+	Period   Number `json:"period"`
+	Pulses   int    `json:"pulses"`
+	Start    Number `json:"start"`
 	Probe    *Probe `json:"probe"`
 
 	Steps  *Steps       `json:"steps,omitempty"`
@@ -132,20 +132,20 @@ type Stopped struct {
 }
 
 type PulseLevel struct {
-	LevelDBm        Number             `json:"level_dbm"`
-	SpikeLeakageDBm Number             `json:"spike_leakage_dbm"`
-	SpikeEnergy     Number             `json:"spike_energy"`
-	FlatLeakageDBm  Number             `json:"flat_leakage_dbm"`
-	Recovery1dB     Number             `json:"recovery_time_1db"`
-	Recovery3dB     Number             `json:"recovery_time_3db"`
-	RiseTime        Number             `json:"rise_time"`
-	FallTime        Number             `json:"fall_time"`
-	SettledOutput   Number             `json:"settled_output"`
-	SteadyDCShift   Number             `json:"steady_dc_shift"`
+	LevelDBm        Number         `json:"level_dbm"`
+	SpikeLeakageDBm Number         `json:"spike_leakage_dbm"`
+	SpikeEnergy     Number         `json:"spike_energy"`
+	FlatLeakageDBm  Number         `json:"flat_leakage_dbm"`
+	Recovery1dB     Number         `json:"recovery_time_1db"`
+	Recovery3dB     Number         `json:"recovery_time_3db"`
+	RiseTime        Number         `json:"rise_time"`
+	FallTime        Number         `json:"fall_time"`
+	SettledOutput   Number         `json:"settled_output"`
+	SteadyDCShift   Number         `json:"steady_dc_shift"`
 	Steps           *Steps         `json:"steps,omitempty"`
 	Diodes          []PulseDiode   `json:"diodes"`
 	Cautions        []PulseCaution `json:"cautions"`
-	Error           string             `json:"error,omitempty"`
+	Error           string         `json:"error,omitempty"`
 }
 
 // waveformJSONPoints is the most points of the output waveform --json

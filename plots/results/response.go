@@ -115,11 +115,11 @@ func (o OrderedComplex) MarshalJSON() ([]byte, error) {
 }
 
 type ResponsePoint struct {
-	Frequency      Number          `json:"frequency"`
-	S              [][]Complex `json:"s"`
-	InputImpedance []Complex   `json:"input_impedance"`
-	Probes         OrderedComplex  `json:"probes"`
-	GroupDelay     Number          `json:"group_delay"`
+	Frequency      Number         `json:"frequency"`
+	S              [][]Complex    `json:"s"`
+	InputImpedance []Complex      `json:"input_impedance"`
+	Probes         OrderedComplex `json:"probes"`
+	GroupDelay     Number         `json:"group_delay"`
 }
 
 type Port struct {

@@ -23,27 +23,27 @@ type StudyDiode struct {
 }
 
 type StudyResponse struct {
-	Frequency      Number          `json:"frequency"`
-	S              [][]Complex `json:"s"`
-	InputImpedance []Complex   `json:"input_impedance"`
-	Probes         OrderedComplex  `json:"probes"`
+	Frequency      Number         `json:"frequency"`
+	S              [][]Complex    `json:"s"`
+	InputImpedance []Complex      `json:"input_impedance"`
+	Probes         OrderedComplex `json:"probes"`
 }
 
 type StudyStep struct {
-	Values      []Number              `json:"values"`
-	Iterations  int                   `json:"iterations"`
+	Values      []Number          `json:"values"`
+	Iterations  int               `json:"iterations"`
 	Diodes      []StudyDiode      `json:"diodes"`
 	Responses   []StudyResponse   `json:"responses"`
 	Distortion  []StudyDistortion `json:"distortion,omitempty"`
-	NoiseFigure []Number              `json:"noise_figure_db,omitempty"`
-	NEP         *Number               `json:"nep,omitempty"`
-	TSSdBm      *Number               `json:"tangential_sensitivity_dbm,omitempty"`
-	HD2dBc      *Number               `json:"hd2_dbc,omitempty"`
-	HD3dBc      *Number               `json:"hd3_dbc,omitempty"`
-	DCShift     *Number               `json:"dc_shift,omitempty"`
-	Sensitivity *Number               `json:"sensitivity,omitempty"`
+	NoiseFigure []Number          `json:"noise_figure_db,omitempty"`
+	NEP         *Number           `json:"nep,omitempty"`
+	TSSdBm      *Number           `json:"tangential_sensitivity_dbm,omitempty"`
+	HD2dBc      *Number           `json:"hd2_dbc,omitempty"`
+	HD3dBc      *Number           `json:"hd3_dbc,omitempty"`
+	DCShift     *Number           `json:"dc_shift,omitempty"`
+	Sensitivity *Number           `json:"sensitivity,omitempty"`
 	Warnings    []Warning         `json:"warnings"`
-	Error       string                `json:"error,omitempty"`
+	Error       string            `json:"error,omitempty"`
 }
 
 type StudyDistortion struct {
@@ -71,12 +71,12 @@ type Solution struct {
 }
 
 type Study struct {
-	Vary     []string        `json:"vary"`
-	Shape    [2]int          `json:"shape"`
-	Newton   int             `json:"newton_iterations"`
+	Vary     []string    `json:"vary"`
+	Shape    [2]int      `json:"shape"`
+	Newton   int         `json:"newton_iterations"`
 	Steps    []StudyStep `json:"steps"`
 	Solution *Solution   `json:"solution,omitempty"`
-	Columns  []string        `json:"columns"`
+	Columns  []string    `json:"columns"`
 }
 
 func StudyOf(r *study.Result, cols []report.StudyColumn, s *plan.Study, sol *study.Solution) *Study {

@@ -13,12 +13,12 @@ import (
 
 // Yield is `yield --json`, the contract's shape with more keys.
 type Yield struct {
-	Runs          int                    `json:"runs"`
-	Seed          uint64                 `json:"seed"`
-	Passed        int                    `json:"passed"`
-	Yield         Number                 `json:"yield"`
-	Interval95    [2]Number              `json:"interval_95"`
-	Temperatures  []Number               `json:"temperatures"`
+	Runs          int                `json:"runs"`
+	Seed          uint64             `json:"seed"`
+	Passed        int                `json:"passed"`
+	Yield         Number             `json:"yield"`
+	Interval95    [2]Number          `json:"interval_95"`
+	Temperatures  []Number           `json:"temperatures"`
 	Targets       []YieldTarget      `json:"targets"`
 	Sensitivities []YieldSensitivity `json:"sensitivities"`
 	Groups        []YieldGroup       `json:"groups"`
@@ -28,20 +28,20 @@ type Yield struct {
 }
 
 type YieldTarget struct {
-	Target       string           `json:"target"`
-	Unit         string           `json:"unit"`
-	Limit        *Number          `json:"limit"` // null for a target without one
-	Bound        string           `json:"bound"` // "above", "below" or "none"
-	Mean         Number           `json:"mean"`
-	Std          Number           `json:"std"`
-	LinearStd    Number           `json:"linear_std"`
-	Min          Number           `json:"min"`
-	Max          Number           `json:"max"`
-	Quantiles    OrderedNumbers   `json:"quantiles"`
-	PassFraction Number           `json:"pass_fraction"`
-	Nominal      Number           `json:"nominal"`
-	Readings     int              `json:"readings"`
-	Corner       *YieldCorner `json:"corner,omitempty"`
+	Target       string         `json:"target"`
+	Unit         string         `json:"unit"`
+	Limit        *Number        `json:"limit"` // null for a target without one
+	Bound        string         `json:"bound"` // "above", "below" or "none"
+	Mean         Number         `json:"mean"`
+	Std          Number         `json:"std"`
+	LinearStd    Number         `json:"linear_std"`
+	Min          Number         `json:"min"`
+	Max          Number         `json:"max"`
+	Quantiles    OrderedNumbers `json:"quantiles"`
+	PassFraction Number         `json:"pass_fraction"`
+	Nominal      Number         `json:"nominal"`
+	Readings     int            `json:"readings"`
+	Corner       *YieldCorner   `json:"corner,omitempty"`
 }
 
 type YieldCorner struct {
