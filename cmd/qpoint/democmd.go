@@ -65,7 +65,7 @@ start your own.`,
 					return analysisError(err)
 				}
 				fmt.Fprintf(w, "\n════ %s ════\n", base)
-				writeBias(w, p)
+				report.WriteBias(w, p)
 				if err := demoResponse(w, c, p); err != nil {
 					return err
 				}

@@ -6,16 +6,9 @@ import (
 
 	"qpoint/ac/plan"
 	"qpoint/ac/steady"
-	"qpoint/bias"
 	"qpoint/plots/report"
 	"qpoint/smallsignal"
 )
-
-// lineTable is the bias command's table of lines and blocks, nil for a
-// circuit without them.
-func lineTable(p *bias.Point) *report.Table {
-	return report.LineTable(report.LineParts(p.Circuit, plan.DesignFrequency(p.Circuit)), p)
-}
 
 // cautionOutside says on warn, as the loader's cautions are said, where an
 // analysis asked for a block or microstrip outside its data or models.

@@ -3,7 +3,6 @@ package main
 import (
 	"errors"
 	"fmt"
-	"io"
 
 	"github.com/spf13/cobra"
 
@@ -186,12 +185,12 @@ func runMixer(cmd *cobra.Command, path string, fl *mixerFlags) error {
 	if fl.asJSON {
 		return results.Write(out, results.MixerOf(s.p, s.plan, res))
 	}
-	writeMixerHeader(out, s, res)
+	report.WriteMixerHeader(out, s.nw, s.plan, res)
 	for _, t := range []*report.Table{report.MixerTable(res), report.MixerPortTable(s.nw, s.plan, res), report.MixerLOTable(s.plan, res),
 		report.MixerDiodeTable(res), report.MixerNoiseTable(res, 6)} {
 		t.WriteText(out)
 	}
-	writeCautions(out, report.MixerCautionMessages(res))
+	report.WriteCautions(out, report.MixerCautionMessages(res))
 	if fl.plotsDir != "" {
 		fmt.Fprintf(out, "\nfigure written to %s\n", fl.plotsDir)
 	}
@@ -211,20 +210,6 @@ func portIndexOf(c *circuit.Circuit, flag, file string) int {
 		}
 	}
 	return -1
-}
-
-// writeMixerHeader prints what was run.
-func writeMixerHeader(w io.Writer, s *mixerSetup, res *mixer.Result) {
-	fmt.Fprintf(w, "%s\n", s.c.Name)
-	fmt.Fprintf(w, "  file         %s\n", s.c.File)
-	writeOverrides(w, s.c)
-	fmt.Fprintf(w, "  bias         %s\n", report.BiasLine(s.p))
-	for _, l := range report.MixerSetupLines(s.nw, s.plan) {
-		fmt.Fprintf(w, "  %-12s %s\n", l[0], l[1])
-	}
-	if res != nil {
-		fmt.Fprintf(w, "  method       %s\n", report.MixerMethodLine(res))
-	}
 }
 
 // runMixerSweep repeats the analysis over LO levels.
@@ -250,7 +235,7 @@ func runMixerSweep(cmd *cobra.Command, s *mixerSetup, fl *mixerFlags, levels []f
 			return err
 		}
 	} else {
-		writeMixerHeader(out, s, nil)
+		report.WriteMixerHeader(out, s.nw, s.plan, nil)
 		report.MixerSweepTable(pts).WriteText(out)
 		fmt.Fprintf(out, "  cautions name their kinds; run one level (--lo-level) to read them in full\n")
 		if fl.plotsDir != "" {

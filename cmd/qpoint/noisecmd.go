@@ -218,7 +218,7 @@ func runNoise(cmd *cobra.Command, path string, fl *noiseFlags) error {
 	if fl.asJSON {
 		return results.Write(out, results.NoiseOf(s.c, o))
 	}
-	writeNoiseText(out, s, o, fl.rows)
+	report.WriteNoise(out, s.nw, o, fl.rows)
 	fmt.Fprintln(out)
 	if fl.csvPath != "" {
 		fmt.Fprintf(out, "CSV written to %s\n", fl.csvPath)
@@ -270,35 +270,4 @@ func (g *fileGuard) writeNoiseFiles(fl *noiseFlags, o *plan.NoiseRun) error {
 		}
 	}
 	return g.writeFigures(fl.plotsDir, figs)
-}
-
-// writeNoiseText prints the noise tables: density, band, sources and a
-// detector's figures.
-func writeNoiseText(out io.Writer, s *noiseSetup, o *plan.NoiseRun, rows int) {
-	writeNoiseHeader(out, s)
-	report.NoiseTable(o, rows).WriteText(out)
-	for _, n := range report.NoiseNotes(o) {
-		fmt.Fprintf(out, "  %s\n", n)
-	}
-	if o.Band != nil {
-		report.BandTable(o).WriteText(out)
-		report.SourceTable(o).WriteText(out)
-	}
-	if o.Detection != nil {
-		t, notes := report.DetectorTable(o)
-		t.WriteText(out)
-		for _, n := range notes {
-			fmt.Fprintf(out, "  %s\n", n)
-		}
-	}
-}
-
-func writeNoiseHeader(w io.Writer, s *noiseSetup) {
-	fmt.Fprintf(w, "%s\n", s.c.Name)
-	fmt.Fprintf(w, "  file         %s\n", s.c.File)
-	writeOverrides(w, s.c)
-	fmt.Fprintf(w, "  bias         %s\n", report.BiasLine(s.p))
-	for _, line := range report.NoiseSetupLines(s.c, s.nw, s.plan) {
-		fmt.Fprintf(w, "  %-12s %s\n", line[0], line[1])
-	}
 }

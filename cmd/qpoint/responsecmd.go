@@ -208,7 +208,7 @@ func runResponse(cmd *cobra.Command, path string, fl *responseFlags) error {
 	if fl.asJSON {
 		return results.Write(out, results.ResponseOf(r, s.c))
 	}
-	writeResponseTable(out, s.c, s.p, r, s.grid, fl.rows)
+	report.WriteResponse(out, s.c, s.p, r, s.grid, fl.rows)
 	for _, x := range []struct{ what, path string }{{"CSV", fl.csvPath}, {"Touchstone", fl.touchstone}, {"figures", fl.plotsDir}} {
 		if x.path != "" {
 			fmt.Fprintf(out, "%s written to %s\n", x.what, x.path)
@@ -297,33 +297,6 @@ func heldResponse(g *fileGuard, s *responseSetup, fl *responseFlags) (*ac.Respon
 		return nil, err
 	}
 	return r, nil
-}
-
-// writeResponseTable prints the header and the response at up to rows of
-// the sweep's frequencies grid; r holds either every point or just those
-// rows (streamResponse).
-func writeResponseTable(w io.Writer, c *circuit.Circuit, p *bias.Point, r *ac.Response, grid []float64, rows int) {
-	fmt.Fprintf(w, "%s\n", c.Name)
-	fmt.Fprintf(w, "  file         %s\n", c.File)
-	fmt.Fprintf(w, "  bias         %s\n", report.BiasLine(p))
-	var ports []string
-	for _, port := range r.Ports {
-		ports = append(ports, fmt.Sprintf("%s (%s)", port.Name, si.Format(port.Impedance, "Ω", 4)))
-	}
-	fmt.Fprintf(w, "  ports        %s\n", strings.Join(ports, ", "))
-	first, last := grid[0], grid[len(grid)-1]
-	fmt.Fprintf(w, "  sweep        %d points, %s to %s\n", len(grid), si.Format(first, "Hz", 4), si.Format(last, "Hz", 4))
-	if len(c.Distributed) > 0 {
-		fmt.Fprintf(w, "  lines        %s\n", report.LineSummary(report.LineParts(c, designFrequency(c))))
-		fmt.Fprintf(w, "  solved by    %s: %s\n", r.Stats.Engine, "lines and blocks are not G + sC, so every point is factored")
-	}
-
-	report.ResponseTable(r, rows).WriteText(w)
-	name1 := r.Ports[0].Name
-	if len(r.Probes) > 0 {
-		fmt.Fprintf(w, "  probes: node voltage for a 1 V (peak) EMF behind port %s's reference impedance, in dB re 1 V\n", name1)
-	}
-	fmt.Fprintln(w)
 }
 
 // streamResponse sweeps the circuit over its grid writing every point

@@ -4,7 +4,6 @@ import (
 	"errors"
 	"fmt"
 	"io"
-	"math"
 	"strings"
 	"time"
 
@@ -271,7 +270,7 @@ func runStudy(cmd *cobra.Command, path string, fl *studyFlags) error {
 	cols := report.StudyColumns(r)
 	var figs []*plots.Figure
 	if fl.plotsDir != "" {
-		if figs, err = studyPlots(r, fl.show, solutionMarks(s, sol)...); err != nil {
+		if figs, err = studyPlots(r, fl.show, report.SolutionMarks(s.planned, sol)...); err != nil {
 			return err
 		}
 	}
@@ -293,9 +292,9 @@ func runStudy(cmd *cobra.Command, path string, fl *studyFlags) error {
 	if fl.asJSON {
 		return results.Write(out, results.StudyOf(r, cols, s.planned, sol))
 	}
-	writeStudyTable(out, r, cols, elapsed, failed)
+	report.WriteStudy(out, r, cols, elapsed, failed)
 	if sol != nil {
-		writeSolution(out, s, r, sol)
+		report.WriteSolution(out, s.planned, r, sol)
 	}
 	for _, x := range []struct{ what, path string }{{"CSV", fl.csvPath}, {"figures", fl.plotsDir}} {
 		if x.path != "" {
@@ -303,81 +302,6 @@ func runStudy(cmd *cobra.Command, path string, fl *studyFlags) error {
 		}
 	}
 	return nil
-}
-
-func writeStudyTable(w io.Writer, r *study.Result, cols []report.StudyColumn, elapsed time.Duration, failed int) {
-	c := r.Circuit
-	fmt.Fprintf(w, "%s\n", c.Name)
-	fmt.Fprintf(w, "  file         %s\n", c.File)
-	writeOverrides(w, c)
-	what := r.Settings.Axis.Vary.Text
-	if r.Settings.Second != nil {
-		n2, _ := report.AxisHeader(r.Settings.Second, r.Settings.SecondIsFrequency)
-		what += " × " + n2
-	}
-	fmt.Fprintf(w, "  study        %s, %d steps in %s, %d Newton iterations\n", what, len(r.Steps), elapsed.Round(time.Millisecond), r.Newton)
-	if failed > 0 {
-		fmt.Fprintf(w, "  ! %d steps could not be solved; their rows are blank\n", failed)
-	}
-	report.StudyTable(r, cols).WriteText(w)
-	warned := map[string]bool{}
-	for i := range r.Steps {
-		for _, x := range r.Steps[i].Warnings {
-			key := x.Part + x.Kind.String()
-			if !warned[key] {
-				warned[key] = true
-				fmt.Fprintf(w, "  ! %s at %s = %s: %s\n", x.Part, r.Settings.Axis.Vary.Text, report.FormatCell(r.Steps[i].Values[0], r.Settings.Axis.Vary.Quantity.Unit()), x.Message)
-			}
-		}
-	}
-	fmt.Fprintln(w)
-}
-
-func writeSolution(w io.Writer, s *studySetup, r *study.Result, sol *study.Solution) {
-	unit := r.Settings.Axis.Vary.Quantity.Unit()
-	what := r.Settings.Axis.Vary.Text
-	switch s.goal {
-	case "target":
-		fmt.Fprintf(w, "Target %s = %g %s\n", s.measure.Text, s.value, s.measure.Unit)
-		fmt.Fprintf(w, "  met at %s = %s (bracket %s to %s, tolerance %s, %d refinements); %s there is %.6g %s\n",
-			what, report.FormatCell(sol.Value, unit), report.FormatCell(sol.Bracket[0], unit), report.FormatCell(sol.Bracket[1], unit),
-			report.FormatDifference(sol.Tolerance, unit), sol.Iterations, s.measure.Text, sol.Measure, s.measure.Unit)
-	default:
-		of := s.measure.Text
-		if sol.OnMagnitude {
-			of = "|" + of + "| (its sign is the polarity; --signed uses the signed value)"
-		}
-		fmt.Fprintf(w, "%s of %s\n", map[string]string{"maximize": "Largest", "minimize": "Smallest"}[s.goal], of)
-		fmt.Fprintf(w, "  %.6g %s at %s = %s (searched %s to %s, tolerance %s)\n", sol.Measure, s.measure.Unit, what,
-			report.FormatCell(sol.Value, unit), report.FormatCell(sol.Bracket[0], unit), report.FormatCell(sol.Bracket[1], unit), report.FormatDifference(sol.Tolerance, unit))
-		if sol.AtEdge {
-			fmt.Fprintf(w, "  ! the best value lies at the end of the range; widen it to see whether it improves further\n")
-		}
-	}
-	fmt.Fprintln(w)
-}
-
-// solutionMarks marks a target's or optimum's solution on the study
-// figure.
-func solutionMarks(s *studySetup, sol *study.Solution) []plots.StudyMark {
-	if sol == nil || s.measure == nil {
-		return nil
-	}
-	mk := plots.StudyMark{Measure: s.measure, X: sol.Value, Y: sol.Measure, Target: math.NaN()}
-	val := report.FormatMeasure(sol.Measure, s.measure.Unit)
-	switch s.goal {
-	case "target":
-		mk.Target = s.value
-		mk.Label = "target met\n" + val
-	case "maximize":
-		mk.Label = "largest\n" + val
-	default:
-		mk.Label = "smallest\n" + val
-	}
-	if sol.OnMagnitude {
-		mk.Label = strings.Replace(mk.Label, "\n", " magnitude\n", 1)
-	}
-	return []plots.StudyMark{mk}
 }
 
 // maxWorkers bounds --workers: far more than any machine's cores, and few

@@ -189,42 +189,11 @@ func runYield(cmd *cobra.Command, path string, fl *yieldFlags) error {
 	if fl.asJSON {
 		return results.Write(out, results.YieldOf(r))
 	}
-	writeYield(out, r)
+	report.WriteYield(out, r)
 	for _, x := range []struct{ what, path string }{{"CSV", fl.csvPath}, {"figures", fl.plotsDir}} {
 		if x.path != "" {
 			fmt.Fprintf(out, "%s written to %s\n", x.what, x.path)
 		}
 	}
 	return nil
-}
-
-func writeYield(w io.Writer, r *yield.Result) {
-	c := r.Circuit
-	fmt.Fprintf(w, "%s\n", c.Name)
-	fmt.Fprintf(w, "  file         %s\n", c.File)
-	writeOverrides(w, c)
-	fmt.Fprintf(w, "  runs         %d, seed %d, %d workers, in %s\n", len(r.Runs), r.Settings.Seed, r.Stats.Workers, r.Stats.Runtime.Round(1e6))
-	fmt.Fprintf(w, "  temperatures %s\n", report.TemperatureList(r.TemperaturesK))
-	fmt.Fprintf(w, "  tolerances   %d values, %d groups; %d analyses, %d Newton iterations\n",
-		len(c.Tolerances), len(c.ToleranceGroups), r.Stats.Evaluations, r.Stats.NewtonIterations)
-	limited := false
-	for _, t := range r.Settings.Targets {
-		limited = limited || t.Bound != yield.Observe
-	}
-	if limited {
-		fmt.Fprintf(w, "\nYield %s: %d of %d runs meet every target (95 %% interval %s to %s, Wilson score)\n",
-			report.PercentOf(r.Yield), r.Passed, len(r.Runs), report.PercentOf(r.Interval[0]), report.PercentOf(r.Interval[1]))
-	}
-	report.YieldTargetTable(r).WriteText(w)
-	report.YieldShareTable(r).WriteText(w)
-	if len(r.Corners) > 0 {
-		report.YieldCornerTable(r).WriteText(w)
-	}
-	if len(r.Cautions) > 0 {
-		fmt.Fprintln(w)
-		for _, x := range r.Cautions {
-			fmt.Fprintf(w, "  ! %s\n", x.Message)
-		}
-	}
-	fmt.Fprintln(w)
 }
