@@ -5,7 +5,6 @@ import (
 	"io"
 	"math"
 	"os"
-	"strings"
 	"time"
 
 	"github.com/schollz/progressbar/v3"
@@ -165,73 +164,6 @@ func distortionDrive(c *circuit.Circuit, fl *distortionFlags) (*distortionSetup,
 	return &distortionSetup{planned: d, c: c, drive: d.Drive, inName: d.InputName, outName: d.OutputName, levelDBm: d.LevelDBm}, nil
 }
 
-// parseRange reads FROM:TO:STEP.
-func parseRange(flag, s string, q circuit.Quantity, stepQ circuit.Quantity) (from, to, step float64, err error) {
-	parts := strings.Split(s, ":")
-	if len(parts) != 3 {
-		return 0, 0, 0, inputError(fmt.Errorf("flag --%s: `%s` is not FROM:TO:STEP; e.g. -50dBm:0dBm:1dB", flag, s))
-	}
-	read := func(t string, q circuit.Quantity) (float64, error) {
-		if q == circuit.Dimensionless {
-			t = strings.TrimSuffix(strings.TrimSuffix(t, "dBm"), "dB")
-		}
-		return circuit.ParseBounded(strings.TrimSpace(t), q)
-	}
-	if from, err = read(parts[0], q); err == nil {
-		if to, err = read(parts[1], q); err == nil {
-			step, err = read(parts[2], stepQ)
-		}
-	}
-	if err != nil {
-		return 0, 0, 0, inputError(fmt.Errorf("flag --%s: %w", flag, err))
-	}
-	if !(step > 0) || !(to > from) {
-		return 0, 0, 0, inputError(fmt.Errorf("flag --%s: `%s` must rise from FROM to TO with a positive STEP", flag, s))
-	}
-	return from, to, step, nil
-}
-
-// parseLevelRange reads a level sweep FROM:TO:STEP: each end a power
-// (-50dBm, or a bare number in dBm) or a peak voltage into a matched load
-// (10mV, as --level takes it), the step in dB. It returns the ends in dBm
-// of available power behind z0.
-func parseLevelRange(flag, s string, z0 float64) (from, to, step float64, err error) {
-	const example = "e.g. -50dBm:0dBm:1dB or 1mV:300mV:1dB"
-	parts := strings.Split(s, ":")
-	if len(parts) != 3 {
-		return 0, 0, 0, inputError(fmt.Errorf("flag --%s: `%s` is not FROM:TO:STEP; %s", flag, s, example))
-	}
-	level := func(t string) (float64, error) {
-		t = strings.TrimSpace(t)
-		if v, err := circuit.ParseBounded(t, circuit.Dimensionless); err == nil {
-			return v, nil // a bare number is dBm
-		}
-		lv, err := circuit.ParseLevel(t)
-		if err != nil {
-			return 0, err
-		}
-		if lv.IsPower {
-			return lv.DBm, nil
-		}
-		return ac.EMFToDBm(2*lv.PeakVolts, z0), nil
-	}
-	if from, err = level(parts[0]); err == nil {
-		if to, err = level(parts[1]); err == nil {
-			step, err = circuit.ParseBounded(strings.TrimSpace(strings.TrimSuffix(strings.TrimSpace(parts[2]), "dB")), circuit.Dimensionless)
-		}
-	}
-	if err != nil {
-		return 0, 0, 0, inputError(fmt.Errorf("flag --%s: %w; %s", flag, err, example))
-	}
-	if !(step > 0) || !(to > from) {
-		return 0, 0, 0, inputError(fmt.Errorf("flag --%s: `%s` must rise from FROM to TO with a positive STEP in dB; %s", flag, s, example))
-	}
-	if from < -200 || to > 90 {
-		return 0, 0, 0, inputError(fmt.Errorf("flag --%s: `%s` spans %.1f to %.1f dBm; accepted: levels within -200 to +90 dBm", flag, s, from, to))
-	}
-	return from, to, step, nil
-}
-
 func runDistortion(cmd *cobra.Command, path string, fl *distortionFlags) error {
 	g := guardOf(cmd)
 	s, err := resolveDistortion(g, cmd.ErrOrStderr(), path, fl)
@@ -301,9 +233,9 @@ func distortionRequest(cmd *cobra.Command, s *distortionSetup, fl *distortionFla
 	if fl.sweepLevel == "" {
 		return req, nil
 	}
-	from, to, step, err := parseLevelRange("sweep-level", fl.sweepLevel, s.c.Ports[s.drive.Input].Impedance)
+	from, to, step, err := plan.ParseLevelRange("sweep-level", fl.sweepLevel, s.c.Ports[s.drive.Input].Impedance)
 	if err != nil {
-		return req, err
+		return req, planError(err)
 	}
 	n := int(math.Floor((to-from)/step+1e-9)) + 1
 	if n > 2000 {
@@ -317,9 +249,9 @@ func distortionRequest(cmd *cobra.Command, s *distortionSetup, fl *distortionFla
 	if band == "" {
 		band = "2MHz"
 	}
-	lo, hi, err := parseBand("video-bandwidth", band, defaultVideoFromHz)
+	lo, hi, err := plan.ParseBand("video-bandwidth", band, plan.DefaultVideoFromHz)
 	if err != nil {
-		return req, err
+		return req, planError(err)
 	}
 	req.VideoHz = [2]float64{lo, hi}
 	req.Progress = func(stage string, n int) (func(done, total int), func()) {
@@ -331,9 +263,9 @@ func distortionRequest(cmd *cobra.Command, s *distortionSetup, fl *distortionFla
 
 // runDistortionFrequency sweeps the estimate alone over frequency.
 func runDistortionFrequency(cmd *cobra.Command, g *fileGuard, s *distortionSetup, fl *distortionFlags) error {
-	from, to, perDec, err := parseRange("sweep-frequency", fl.sweepFrequency, circuit.Frequency, circuit.Dimensionless)
+	from, to, perDec, err := plan.ParseRange("sweep-frequency", fl.sweepFrequency, circuit.Frequency, circuit.Dimensionless)
 	if err != nil {
-		return err
+		return planError(err)
 	}
 	grid, err := ac.LogGrid(from, to, int(perDec))
 	if err != nil {

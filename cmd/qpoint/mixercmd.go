@@ -150,9 +150,9 @@ func runMixer(cmd *cobra.Command, path string, fl *mixerFlags) error {
 		if i := portIndexOf(c, fl.lo, c.Analysis.Mixer.LO); i >= 0 {
 			z0 = c.Ports[i].Impedance
 		}
-		from, to, step, err := parseLevelRange("sweep-lo-level", fl.sweepLOLevel, z0)
+		from, to, step, err := plan.ParseLevelRange("sweep-lo-level", fl.sweepLOLevel, z0)
 		if err != nil {
-			return err
+			return planError(err)
 		}
 		if levels, err = plan.MixerLevels(from, to, step); err != nil {
 			return planError(err)

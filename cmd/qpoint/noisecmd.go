@@ -5,7 +5,6 @@ import (
 	"io"
 	"os"
 	"path/filepath"
-	"strings"
 
 	"github.com/spf13/cobra"
 
@@ -109,41 +108,6 @@ type noiseSetup struct {
 	plan *plan.Noise
 }
 
-// parseBand reads LOW:HIGH, or HIGH alone when lowDefault is positive.
-func parseBand(flag, s string, lowDefault float64) (lo, hi float64, err error) {
-	parts := strings.Split(s, ":")
-	example := "LOW:HIGH, e.g. 800MHz:1GHz"
-	if lowDefault > 0 {
-		example = "HIGH or LOW:HIGH, e.g. 2MHz or 10Hz:2MHz"
-	}
-	bad := func(e error) (float64, float64, error) {
-		if e != nil {
-			return 0, 0, inputError(fmt.Errorf("flag --%s: %w; accepted: %s", flag, e, example))
-		}
-		return 0, 0, inputError(fmt.Errorf("flag --%s: `%s` is not a rising band; accepted: %s within 1 mHz to 1 THz", flag, s, example))
-	}
-	switch {
-	case len(parts) == 1 && lowDefault > 0:
-		lo = lowDefault
-		if hi, err = circuit.ParseBounded(strings.TrimSpace(parts[0]), circuit.Frequency); err != nil {
-			return bad(err)
-		}
-	case len(parts) == 2:
-		if lo, err = circuit.ParseBounded(strings.TrimSpace(parts[0]), circuit.Frequency); err != nil {
-			return bad(err)
-		}
-		if hi, err = circuit.ParseBounded(strings.TrimSpace(parts[1]), circuit.Frequency); err != nil {
-			return bad(err)
-		}
-	default:
-		return bad(nil)
-	}
-	if !(hi > lo) || ac.CheckFrequency(lo) != nil || ac.CheckFrequency(hi) != nil {
-		return bad(nil)
-	}
-	return lo, hi, nil
-}
-
 // resolveNoiseFor reads the flags into a request, solves the bias (when p
 // is nil) and linearises it, and resolves the plan.
 func resolveNoiseFor(c *circuit.Circuit, fl *noiseFlags, p *bias.Point) (*noiseSetup, error) {
@@ -158,16 +122,16 @@ func resolveNoiseFor(c *circuit.Circuit, fl *noiseFlags, p *bias.Point) (*noiseS
 		}
 	}
 	if fl.videoBandwidth != "" {
-		lo, hi, err := parseBand("video-bandwidth", fl.videoBandwidth, plan.DefaultVideoFromHz)
+		lo, hi, err := plan.ParseBand("video-bandwidth", fl.videoBandwidth, plan.DefaultVideoFromHz)
 		if err != nil {
-			return nil, err
+			return nil, planError(err)
 		}
 		req.VideoBandHz = [2]float64{lo, hi}
 	}
 	if fl.bandwidth != "" {
-		lo, hi, err := parseBand("bandwidth", fl.bandwidth, 0)
+		lo, hi, err := plan.ParseBand("bandwidth", fl.bandwidth, 0)
 		if err != nil {
-			return nil, err
+			return nil, planError(err)
 		}
 		req.BandHz = [2]float64{lo, hi}
 	}

@@ -259,9 +259,9 @@ func runPulse(cmd *cobra.Command, path string, fl *pulseFlags) error {
 func runPulseSweep(cmd *cobra.Command, s *pulseSetup, fl *pulseFlags) error {
 	g := guardOf(cmd)
 	z0 := s.c.Ports[s.settings.Input].Impedance
-	from, to, step, err := parseLevelRange("sweep-level", fl.sweepLevel, z0)
+	from, to, step, err := plan.ParseLevelRange("sweep-level", fl.sweepLevel, z0)
 	if err != nil {
-		return err
+		return planError(err)
 	}
 	n := int(math.Floor((to-from)/step+1e-9)) + 1
 	if n > 200 {

@@ -10,6 +10,7 @@ import (
 	"github.com/spf13/cobra"
 
 	"qpoint/ac"
+	"qpoint/ac/plan"
 	"qpoint/ac/touchstone"
 	"qpoint/bias"
 	"qpoint/bias/circuit"
@@ -18,13 +19,6 @@ import (
 	"qpoint/plots/report"
 	"qpoint/plots/results"
 	"qpoint/smallsignal"
-)
-
-// Defaults when neither flags nor the file's analysis section give a sweep.
-const (
-	defaultFromHz    = 1e6
-	defaultToHz      = 10e9
-	defaultPerDecade = 20
 )
 
 type responseFlags struct {
@@ -79,75 +73,6 @@ else 1 MHz to 10 GHz at 20 points per decade.`,
 	f.StringVar(&fl.plotsDir, "plots", "", "write the response figures (SVG and PNG) into this directory")
 	f.IntVar(&fl.rows, "rows", 9, "rows in the printed table")
 	return cmd
-}
-
-// sweepGrid resolves the frequency grid from flags, then the file, then
-// the defaults.
-func sweepGrid(c *circuit.Circuit, fl *responseFlags) ([]float64, error) {
-	from, to := defaultFromHz, defaultToHz
-	perDecade, points := defaultPerDecade, 0
-	if r := c.Analysis.Response; r.Set {
-		from, to = r.FromHz, r.ToHz
-		perDecade, points = r.PerDecade, r.Points
-	}
-	if fl.from != "" {
-		v, err := circuit.ParseBounded(fl.from, circuit.Frequency)
-		if err != nil {
-			return nil, inputError(fmt.Errorf("flag --from: %w", err))
-		}
-		from = v
-	}
-	if fl.to != "" {
-		v, err := circuit.ParseBounded(fl.to, circuit.Frequency)
-		if err != nil {
-			return nil, inputError(fmt.Errorf("flag --to: %w", err))
-		}
-		to = v
-	}
-	if fl.perDecade != 0 && fl.points != 0 {
-		return nil, inputError(fmt.Errorf("flags --per-decade and --points: give one grid, not both"))
-	}
-	if fl.perDecade != 0 {
-		perDecade, points = fl.perDecade, 0
-	}
-	if fl.points != 0 {
-		perDecade, points = 0, fl.points
-	}
-	var grid []float64
-	var err error
-	if points > 0 {
-		grid, err = ac.LinearGrid(from, to, points)
-	} else {
-		grid, err = ac.LogGrid(from, to, perDecade)
-	}
-	if err != nil {
-		return nil, inputError(fmt.Errorf("flags --from/--to/--per-decade/--points: %w; accepted: 1mHz to 1THz, rising, at least one point", err))
-	}
-	return grid, nil
-}
-
-func parseReference(s string, ports int) ([]float64, error) {
-	if s == "" {
-		return nil, nil
-	}
-	parts := strings.Split(s, ",")
-	var z []float64
-	for _, p := range parts {
-		v, err := circuit.ParseBounded(strings.TrimSpace(p), circuit.Resistance)
-		if err != nil || !(v > 0) {
-			return nil, inputError(fmt.Errorf("flag --reference: `%s` is not a positive resistance; accepted: ohms, one value or one per port, e.g. 50 or 50,75", p))
-		}
-		z = append(z, v)
-	}
-	if len(z) == 1 {
-		for len(z) < ports {
-			z = append(z, z[0])
-		}
-	}
-	if len(z) != ports {
-		return nil, inputError(fmt.Errorf("flag --reference: %d impedances for %d ports; accepted: one value for all ports or one per port", len(z), ports))
-	}
-	return z, nil
 }
 
 func solveWithTemperature(c *circuit.Circuit, temperature string) (*bias.Point, error) {
@@ -238,11 +163,15 @@ func resolveResponse(cmd *cobra.Command, g *fileGuard, path string, fl *response
 		}
 	}
 	s := &responseSetup{c: c}
-	if s.grid, err = sweepGrid(c, fl); err != nil {
+	grid, err := gridRequest(fl.from, fl.to, fl.perDecade, fl.points)
+	if err != nil {
 		return nil, err
 	}
-	if s.ref, err = parseReference(fl.reference, len(c.Ports)); err != nil {
-		return nil, err
+	if s.grid, err = plan.ResponseGrid(c, grid); err != nil {
+		return nil, planError(err)
+	}
+	if s.ref, err = plan.ParseReference(fl.reference, len(c.Ports)); err != nil {
+		return nil, planError(err)
 	}
 	if s.format, err = parseTouchstoneFormat(fl.format); err != nil {
 		return nil, err

@@ -4,12 +4,10 @@ import (
 	"errors"
 	"fmt"
 	"io"
-	"strings"
 	"time"
 
 	"github.com/spf13/cobra"
 
-	"qpoint/ac"
 	"qpoint/ac/plan"
 	"qpoint/ac/study"
 	"qpoint/bias/circuit"
@@ -157,11 +155,11 @@ func resolveStudyFor(c *circuit.Circuit, fl *studyFlags) (*studySetup, error) {
 		req.Second = &plan.AxisRequest{Vary: fl.vary2, From: fl.from2, To: fl.to2, Steps: fl.steps2, Log: fl.log2}
 	}
 	var err error
-	if req.FrequenciesHz, err = frequencyList("frequencies", fl.frequencies); err != nil {
-		return nil, err
+	if req.FrequenciesHz, err = plan.ParseFrequencies("frequencies", fl.frequencies); err != nil {
+		return nil, planError(err)
 	}
-	if req.DistortionHz, err = frequencyList("frequency", fl.distortionFrequency); err != nil {
-		return nil, err
+	if req.DistortionHz, err = plan.ParseFrequencies("frequency", fl.distortionFrequency); err != nil {
+		return nil, planError(err)
 	}
 	if fl.level != "" {
 		lv, err := circuit.ParseLevel(fl.level)
@@ -171,9 +169,9 @@ func resolveStudyFor(c *circuit.Circuit, fl *studyFlags) (*studySetup, error) {
 		req.Level = &lv
 	}
 	if fl.videoBandwidth != "" {
-		lo, hi, err := parseBand("video-bandwidth", fl.videoBandwidth, plan.DefaultVideoFromHz)
+		lo, hi, err := plan.ParseBand("video-bandwidth", fl.videoBandwidth, plan.DefaultVideoFromHz)
 		if err != nil {
-			return nil, err
+			return nil, planError(err)
 		}
 		req.VideoBandHz = [2]float64{lo, hi}
 	}
@@ -204,26 +202,6 @@ func resolveStudyFor(c *circuit.Circuit, fl *studyFlags) (*studySetup, error) {
 	s := &studySetup{c: c, settings: st.Settings, measure: st.Measure, value: st.Value, planned: st}
 	s.goal = map[plan.GoalKind]string{plan.Target: "target", plan.Maximize: "maximize", plan.Minimize: "minimize"}[st.Goal]
 	return s, nil
-}
-
-// frequencyList reads a comma-separated list of frequencies given to flag;
-// nil for none.
-func frequencyList(flag, text string) ([]float64, error) {
-	if text == "" {
-		return nil, nil
-	}
-	var out []float64
-	for _, t := range strings.Split(text, ",") {
-		f, err := circuit.ParseBounded(strings.TrimSpace(t), circuit.Frequency)
-		if err == nil {
-			err = ac.CheckFrequency(f)
-		}
-		if err != nil {
-			return nil, inputError(fmt.Errorf("flag --%s: %w", flag, err))
-		}
-		out = append(out, f)
-	}
-	return out, nil
 }
 
 func runStudy(cmd *cobra.Command, path string, fl *studyFlags) error {

@@ -131,9 +131,9 @@ func resolveYield(c *circuit.Circuit, fl *yieldFlags, observe bool) (*yield.Sett
 		req.Level = &lv
 	}
 	if fl.videoBandwidth != "" {
-		lo, hi, err := parseBand("video-bandwidth", fl.videoBandwidth, plan.DefaultVideoFromHz)
+		lo, hi, err := plan.ParseBand("video-bandwidth", fl.videoBandwidth, plan.DefaultVideoFromHz)
 		if err != nil {
-			return nil, err
+			return nil, planError(err)
 		}
 		req.VideoBandHz = [2]float64{lo, hi}
 	}
