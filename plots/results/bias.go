@@ -56,6 +56,7 @@ func (o OrderedNumbers) MarshalJSON() ([]byte, error) {
 	return b.Bytes(), nil
 }
 
+// BiasDiode is one diode of the bias document: its Q point, small-signal values and rating fractions.
 type BiasDiode struct {
 	Name                 string `json:"name"`
 	Model                string `json:"model"`
@@ -76,24 +77,28 @@ type BiasDiode struct {
 	InBreakdown bool `json:"in_breakdown"`
 }
 
+// Source is a DC source's or an inductor's current, flowing into its plus (or to) terminal.
 type Source struct {
 	Name    string `json:"name"`
 	Kind    string `json:"kind"`
 	Current Number `json:"current"`
 }
 
+// Warning is one of the bias point's typed warnings.
 type Warning struct {
 	Part    string `json:"part"`
 	Kind    string `json:"kind"`
 	Message string `json:"message"`
 }
 
+// Attempt is one strategy the DC solver tried.
 type Attempt struct {
 	Strategy   string `json:"strategy"`
 	Iterations int    `json:"iterations"`
 	Error      string `json:"error,omitempty"`
 }
 
+// Bias is `bias --json`: node voltages, diode Q points, source currents, warnings and the solver's record.
 type Bias struct {
 	Circuit     string         `json:"circuit"`
 	File        string         `json:"file"`
@@ -113,6 +118,7 @@ type Bias struct {
 	} `json:"solver"`
 }
 
+// BiasOf returns the bias document of p.
 func BiasOf(p *bias.Point) *Bias {
 	d := &Bias{
 		Circuit:     p.Circuit.Name,

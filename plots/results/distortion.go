@@ -10,6 +10,7 @@ import (
 	"qpoint/plots/report"
 )
 
+// Contribution is one nonlinearity's share of a distortion product.
 type Contribution struct {
 	Product string  `json:"product"`
 	Diode   string  `json:"diode"`
@@ -18,6 +19,7 @@ type Contribution struct {
 	Percent Number  `json:"percent"`
 }
 
+// Estimate is the Volterra estimate of a distortion run.
 type Estimate struct {
 	Frequency     Number         `json:"frequency"`
 	Fundamental   Number         `json:"fundamental"`
@@ -56,12 +58,14 @@ type Transfer struct {
 	DynamicRange  *Number         `json:"dynamic_range_db"`
 }
 
+// TransferPoint is one level of a detector's transfer curve.
 type TransferPoint struct {
 	LevelDBm    Number `json:"level_dbm"`
 	Volts       Number `json:"output"`
 	DeviationDB Number `json:"deviation_db"`
 }
 
+// TransferOf returns the transfer curve t with the tangential sensitivity tssDBm.
 func TransferOf(t *steady.Transfer, tssDBm float64) *Transfer {
 	j := &Transfer{Sensitivity: Number(t.SensitivityVPerW), LowSlope: Number(t.LowSlope), HighSlope: Number(t.HighSlope),
 		DeviationDBm: ptr(t.DeviationDBm), TangentialDBm: ptr(tssDBm), DynamicRange: ptr(t.DynamicRangeDB(tssDBm))}
@@ -71,6 +75,7 @@ func TransferOf(t *steady.Transfer, tssDBm float64) *Transfer {
 	return j
 }
 
+// Harmonic is one harmonic of the steady-state waveform at the output.
 type Harmonic struct {
 	Order     int     `json:"order"`
 	Amplitude Number  `json:"amplitude"`
@@ -87,6 +92,7 @@ type Stress struct {
 	MeanPower          Number `json:"mean_power"`
 }
 
+// Waveform is the periodic steady state at the output: harmonics, THD, stress and method.
 type Waveform struct {
 	Method     string     `json:"method"`
 	Diodes     []Stress   `json:"diodes"`
@@ -99,6 +105,7 @@ type Waveform struct {
 	Products   []Product  `json:"products,omitempty"`
 }
 
+// Comparison sets the estimate beside the waveform for one product.
 type Comparison struct {
 	Order     int    `json:"order"`
 	Estimate  Number `json:"estimate"`
@@ -107,11 +114,13 @@ type Comparison struct {
 	Trustable bool   `json:"above_floor"`
 }
 
+// Level is one level of a level sweep.
 type Level struct {
 	LevelDBm Number    `json:"level_dbm"`
 	Waveform *Waveform `json:"waveform"`
 }
 
+// Distortion is `distortion --json`.
 type Distortion struct {
 	Input              string       `json:"input"`
 	Output             string       `json:"output"`
@@ -145,6 +154,7 @@ func (j *Distortion) setValidity(v *steady.Validity) {
 	}
 }
 
+// EstimateOf returns the document's form of the estimate e.
 func EstimateOf(e *ac.Estimate) *Estimate {
 	j := &Estimate{
 		Frequency:    Number(e.Drive.FrequencyHz),
@@ -180,6 +190,7 @@ func EstimateOf(e *ac.Estimate) *Estimate {
 	return j
 }
 
+// WaveformOf returns the document's form of the steady state s.
 func WaveformOf(s *steady.State) *Waveform {
 	j := &Waveform{Method: s.Method, THDPercent: Number(s.THDPercent), Iterations: s.Iterations, Residual: Number(s.Residual), Diodes: []Stress{}}
 	for _, d := range s.Stress {
@@ -224,6 +235,7 @@ type Intercept struct {
 	LevelsFound int     `json:"levels_used"`
 }
 
+// InterceptOf returns the intercept measured on the two-tone waveforms.
 func InterceptOf(ip *steady.Intercept) *Intercept {
 	j := &Intercept{IIP3DBm: Number(ip.IIP3DBm), Slope: Number(ip.Slope), FromDBm: Number(ip.FromDBm), ToDBm: Number(ip.ToDBm), LevelsFound: ip.Levels}
 	if !math.IsNaN(ip.OIP3DBm) {

@@ -8,6 +8,7 @@ import (
 	"qpoint/plots/report"
 )
 
+// FitValue is one fitted model value with its standard error.
 type FitValue struct {
 	Value  Number `json:"value"`
 	Error  Number `json:"error"`
@@ -41,11 +42,13 @@ func (m FitModel) MarshalJSON() ([]byte, error) {
 	return b.Bytes(), nil
 }
 
+// FitCorrelation is the correlation of two fitted values.
 type FitCorrelation struct {
 	Values      [2]string `json:"values"`
 	Coefficient Number    `json:"coefficient"`
 }
 
+// FitCaution is a caution of the file reader or of the fit, placed in its file.
 type FitCaution struct {
 	Kind    string `json:"kind"`
 	Value   string `json:"value,omitempty"`
@@ -54,12 +57,14 @@ type FitCaution struct {
 	Message string `json:"message"`
 }
 
+// FitFile is one measurement file read for a fit.
 type FitFile struct {
 	File   string `json:"file"`
 	Kind   string `json:"kind"`
 	Points int    `json:"points"`
 }
 
+// FitPoint is one measured point with the model's value and the residual.
 type FitPoint struct {
 	File        string `json:"file,omitempty"`
 	Line        int    `json:"line,omitempty"`
@@ -70,6 +75,7 @@ type FitPoint struct {
 	Residual    Number `json:"residual"`
 }
 
+// Fit is `fit --json`: the model, residuals, correlations, points and cautions.
 type Fit struct {
 	Name         string           `json:"name"`
 	Model        FitModel         `json:"model"`

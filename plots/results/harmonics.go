@@ -2,6 +2,7 @@ package results
 
 import "qpoint/ac/measure"
 
+// CaptureHarmonic is one harmonic measured on a captured waveform.
 type CaptureHarmonic struct {
 	Order     int    `json:"order"`
 	Frequency Number `json:"frequency"`
@@ -10,6 +11,7 @@ type CaptureHarmonic struct {
 	DBc       Number `json:"dbc"`
 }
 
+// Harmonics is `harmonics --json`: the capture's fundamental, harmonics, THD and SINAD.
 type Harmonics struct {
 	File                  string            `json:"file"`
 	Samples               int               `json:"samples"`
@@ -32,6 +34,7 @@ type Harmonics struct {
 	SampleRateUncertainty Number `json:"sample_rate_uncertainty"`
 }
 
+// HarmonicsOf returns the document of the waveform w read from path and its analysis r.
 func HarmonicsOf(path string, w *measure.Waveform, r *measure.Result) *Harmonics {
 	d := &Harmonics{
 		File: path, Samples: r.Samples, SampleRate: Number(r.SampleRateHz), StartTime: Number(w.StartS),

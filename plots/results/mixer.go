@@ -66,6 +66,7 @@ type MixerFigures struct {
 	Cautions              []MixerCaution `json:"cautions"`
 }
 
+// MixerNoise is the mixer's noise figures under the LO.
 type MixerNoise struct {
 	OutputDensity Number `json:"output_density"`
 	Contributions []struct {
@@ -75,6 +76,7 @@ type MixerNoise struct {
 	} `json:"contributions"`
 }
 
+// MixerDiode is one diode's currents and voltages under the LO.
 type MixerDiode struct {
 	Name               string `json:"name"`
 	DCCurrent          Number `json:"dc_current"`
@@ -84,6 +86,7 @@ type MixerDiode struct {
 	BreakdownFraction  Number `json:"breakdown_fraction"`
 }
 
+// MixerCaution is one of the mixer analysis's typed cautions.
 type MixerCaution struct {
 	Kind    string `json:"kind"`
 	Part    string `json:"part,omitempty"`
@@ -125,6 +128,7 @@ func mixerHeaderOf(p *bias.Point, m *plan.Mixer) *Mixer {
 	return d
 }
 
+// MixerOf returns `mixer --json` for the mixer m at the bias point p.
 func MixerOf(p *bias.Point, m *plan.Mixer, r *mixer.Result) *Mixer {
 	d := mixerHeaderOf(p, m)
 	d.LO.AvailablePower, d.LO.AbsorbedPower = Number(r.LO.AvailableW), Number(r.LO.AbsorbedW)
@@ -166,6 +170,7 @@ type MixerSweep struct {
 	LevelSweep []MixerLevel `json:"level_sweep"`
 }
 
+// MixerLevel is one LO level of a sweep.
 type MixerLevel struct {
 	LevelDBm          Number  `json:"level_dbm"`
 	Error             string  `json:"error,omitempty"`
@@ -177,6 +182,7 @@ type MixerLevel struct {
 	*MixerFigures
 }
 
+// MixerSweepOf returns `mixer --json` over the LO levels pts.
 func MixerSweepOf(p *bias.Point, m *plan.Mixer, pts []mixer.LevelPoint) *MixerSweep {
 	h := mixerHeaderOf(p, m)
 	d := &MixerSweep{Circuit: h.Circuit, File: h.File, Temperature: h.Temperature, LevelSweep: []MixerLevel{}}

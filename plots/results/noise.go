@@ -105,6 +105,7 @@ func WriteNoiseContributionsCSV(w io.Writer, r *ac.NoiseResult) error {
 	return cw.Error()
 }
 
+// NoiseSource is one noise source of the circuit.
 type NoiseSource struct {
 	Name        string `json:"name"`
 	Where       string `json:"where"`
@@ -115,6 +116,7 @@ type NoiseSource struct {
 	Flicker     Number `json:"flicker"` // A², S = flicker / f
 }
 
+// NoisePoint is the noise at one frequency, with each source's contribution.
 type NoisePoint struct {
 	Frequency        Number   `json:"frequency"`
 	OutputDensity    Number   `json:"output_density"` // V/√Hz
@@ -126,6 +128,7 @@ type NoisePoint struct {
 	Contributions    []Number `json:"contributions"`               // V²/Hz, one per source
 }
 
+// NoiseBand is the noise integrated over a band.
 type NoiseBand struct {
 	From                 Number   `json:"from"`
 	To                   Number   `json:"to"`
@@ -136,6 +139,7 @@ type NoiseBand struct {
 	PerDecade            int      `json:"per_decade"`
 }
 
+// Detector is a detector's sensitivity limit: NEP and tangential sensitivity.
 type Detector struct {
 	Carrier               Number `json:"carrier"`
 	VoltageSensitivity    Number `json:"voltage_sensitivity"` // V/W
@@ -149,6 +153,7 @@ type Detector struct {
 	TangentialDBm         Number `json:"tangential_sensitivity_dbm"`
 }
 
+// Noise is `noise --json`.
 type Noise struct {
 	Circuit     string        `json:"circuit"`
 	File        string        `json:"file"`
@@ -162,6 +167,7 @@ type Noise struct {
 	Detector    *Detector     `json:"detector,omitempty"`
 }
 
+// NoiseOf returns the noise document of the run o on the circuit c.
 func NoiseOf(c *circuit.Circuit, o *plan.NoiseRun) *Noise {
 	r := o.Result
 	d := &Noise{Circuit: c.Name, File: c.File, Temperature: Number(r.TemperatureK), Output: o.Plan.OutputName,

@@ -63,16 +63,19 @@ type Pulse struct {
 	LevelSweep []PulseLevel   `json:"level_sweep,omitempty"`
 }
 
+// Probe is a limiter's probe tone.
 type Probe struct {
 	Frequency Number `json:"frequency"`
 	LevelDBm  Number `json:"level_dbm"`
 }
 
+// Steps counts a transient run's accepted and rejected steps.
 type Steps struct {
 	Accepted int `json:"accepted"`
 	Rejected int `json:"rejected"`
 }
 
+// PulseSolver is the transient solver's record.
 type PulseSolver struct {
 	Method           string `json:"method"`
 	Damping          string `json:"damping"`
@@ -85,6 +88,7 @@ type PulseSolver struct {
 	Runtime          Number `json:"runtime"`
 }
 
+// PulseDiode is one diode's extremes under the pulse.
 type PulseDiode struct {
 	Name               string `json:"name"`
 	PeakCurrent        Number `json:"peak_current"`
@@ -94,6 +98,7 @@ type PulseDiode struct {
 	PastKnee           Number `json:"past_knee"`
 }
 
+// PulseFigures is the figures of one pulse of a train.
 type PulseFigures struct {
 	Pulse           int    `json:"pulse"`
 	Start           Number `json:"start"`
@@ -108,6 +113,7 @@ type PulseFigures struct {
 	FallTime        Number `json:"fall_time"`
 }
 
+// PulseEnergy is the energy account of a run.
 type PulseEnergy struct {
 	Source     Number `json:"source"`
 	Generator  Number `json:"generator"`
@@ -117,6 +123,7 @@ type PulseEnergy struct {
 	Imbalance  Number `json:"imbalance"`
 }
 
+// PulseCaution is one of the pulse run's typed cautions.
 type PulseCaution struct {
 	Kind    string `json:"kind"`
 	Part    string `json:"part,omitempty"`
@@ -125,12 +132,14 @@ type PulseCaution struct {
 	Message string `json:"message"`
 }
 
+// Stopped says why a run ended early.
 type Stopped struct {
 	At     Number `json:"at"`
 	Want   Number `json:"want"`
 	Reason string `json:"reason"`
 }
 
+// PulseLevel is one carrier level of a pulse sweep.
 type PulseLevel struct {
 	LevelDBm        Number         `json:"level_dbm"`
 	SpikeLeakageDBm Number         `json:"spike_leakage_dbm"`

@@ -93,6 +93,7 @@ func (c Complex) MarshalJSON() ([]byte, error) {
 	return []byte("[" + strconv.FormatFloat(re, 'g', -1, 64) + "," + strconv.FormatFloat(im, 'g', -1, 64) + "]"), nil
 }
 
+// OrderedComplex is a JSON object of complex numbers that keeps its keys in the order given.
 type OrderedComplex struct {
 	keys   []string
 	values []Complex
@@ -114,6 +115,7 @@ func (o OrderedComplex) MarshalJSON() ([]byte, error) {
 	return []byte(b.String()), nil
 }
 
+// ResponsePoint is the response at one frequency.
 type ResponsePoint struct {
 	Frequency      Number         `json:"frequency"`
 	S              [][]Complex    `json:"s"`
@@ -122,11 +124,13 @@ type ResponsePoint struct {
 	GroupDelay     Number         `json:"group_delay"`
 }
 
+// Port is a port and its reference impedance.
 type Port struct {
 	Name      string `json:"name"`
 	Impedance Number `json:"impedance"`
 }
 
+// Response is `response --json`.
 type Response struct {
 	Ports       []Port          `json:"ports"`
 	Distributed []LinePart      `json:"distributed,omitempty"`
@@ -134,6 +138,7 @@ type Response struct {
 	Solver      *Solver         `json:"solver"`
 }
 
+// ResponseOf returns the response document of r, swept on circuit c.
 func ResponseOf(r *ac.Response, c *circuit.Circuit) *Response {
 	d := &Response{Solver: SolverOf(r.Stats), Distributed: LinePartsOf(c, nil)}
 	for _, p := range r.Ports {
@@ -179,6 +184,7 @@ type ResponseWriter struct {
 	points int
 }
 
+// NewResponseWriter starts the response document on w; its Write adds a point and Close ends it.
 func NewResponseWriter(w io.Writer, ports []ac.PortInfo, lines []LinePart) (*ResponseWriter, error) {
 	var js []Port
 	for _, p := range ports {
@@ -242,6 +248,7 @@ type Solver struct {
 	Elements []string `json:"elements,omitempty"`
 }
 
+// SolverOf returns which engine solved a sweep's points.
 func SolverOf(st ac.Stats) *Solver {
 	j := &Solver{Engine: string(st.Engine), ReducedPoints: st.Reduced, LUPoints: st.LU, Refused: []string{}, Elements: st.Elements}
 	for _, e := range st.Refused {

@@ -10,6 +10,7 @@ import (
 	"qpoint/plots/report"
 )
 
+// StudyDiode is one diode's values at a step.
 type StudyDiode struct {
 	Name                 string   `json:"name"`
 	Current              Number   `json:"current"`
@@ -22,6 +23,7 @@ type StudyDiode struct {
 	VoltageSensitivity   []Number `json:"voltage_sensitivity"`
 }
 
+// StudyResponse is the response at one frequency of a step.
 type StudyResponse struct {
 	Frequency      Number         `json:"frequency"`
 	S              [][]Complex    `json:"s"`
@@ -29,6 +31,7 @@ type StudyResponse struct {
 	Probes         OrderedComplex `json:"probes"`
 }
 
+// StudyStep is one step of a study.
 type StudyStep struct {
 	Values      []Number          `json:"values"`
 	Iterations  int               `json:"iterations"`
@@ -46,6 +49,7 @@ type StudyStep struct {
 	Error       string            `json:"error,omitempty"`
 }
 
+// StudyDistortion is the distortion estimate at one frequency of a step.
 type StudyDistortion struct {
 	Frequency   Number `json:"frequency"`
 	Fundamental Number `json:"fundamental"`
@@ -55,6 +59,7 @@ type StudyDistortion struct {
 	Sensitivity Number `json:"sensitivity"`
 }
 
+// Solution is the target, maximum or minimum a study found.
 type Solution struct {
 	Goal       string    `json:"goal"`
 	Measure    string    `json:"measure"`
@@ -70,6 +75,7 @@ type Solution struct {
 	OnMagnitude bool `json:"on_magnitude,omitempty"`
 }
 
+// Study is `study --json`.
 type Study struct {
 	Vary     []string    `json:"vary"`
 	Shape    [2]int      `json:"shape"`
@@ -79,6 +85,7 @@ type Study struct {
 	Columns  []string    `json:"columns"`
 }
 
+// StudyOf returns the study document of r with its columns, the plan s and its solution sol (nil without a goal).
 func StudyOf(r *study.Result, cols []report.StudyColumn, s *plan.Study, sol *study.Solution) *Study {
 	d := &Study{Vary: []string{r.Settings.Axis.Vary.Text}, Shape: r.Shape, Newton: r.Newton}
 	if r.Settings.Second != nil {
@@ -150,6 +157,8 @@ func StudyOf(r *study.Result, cols []report.StudyColumn, s *plan.Study, sol *stu
 	}
 	return d
 }
+
+// WriteStudyCSV writes one row per step of r with the columns cols.
 func WriteStudyCSV(w io.Writer, r *study.Result, cols []report.StudyColumn) error {
 	cw := csv.NewWriter(w)
 	var header []string

@@ -27,6 +27,7 @@ type Yield struct {
 	Stats         YieldStats         `json:"stats"`
 }
 
+// YieldTarget is one target's statistics over the runs.
 type YieldTarget struct {
 	Target       string         `json:"target"`
 	Unit         string         `json:"unit"`
@@ -44,6 +45,7 @@ type YieldTarget struct {
 	Corner       *YieldCorner   `json:"corner,omitempty"`
 }
 
+// YieldCorner is the worst-case corner of a target.
 type YieldCorner struct {
 	Reading Number         `json:"reading"`
 	Passes  bool           `json:"passes"`
@@ -51,6 +53,7 @@ type YieldCorner struct {
 	Error   string         `json:"error,omitempty"`
 }
 
+// YieldSensitivity is one value's share of a target's variance.
 type YieldSensitivity struct {
 	Value        string `json:"value"`
 	Target       string `json:"target"`
@@ -60,12 +63,14 @@ type YieldSensitivity struct {
 	Contribution Number `json:"contribution"`
 }
 
+// YieldGroup is a tolerance group.
 type YieldGroup struct {
 	Group  string `json:"group"`
 	Target string `json:"target"`
 	Share  Number `json:"share"`
 }
 
+// YieldTolerance is one toleranced value.
 type YieldTolerance struct {
 	Value        string  `json:"value"`
 	Nominal      Number  `json:"nominal"`
@@ -75,6 +80,7 @@ type YieldTolerance struct {
 	Group        *string `json:"group"`
 }
 
+// YieldCaution is one of the yield run's typed cautions.
 type YieldCaution struct {
 	Kind    string `json:"kind"`
 	Part    string `json:"part,omitempty"`
@@ -82,6 +88,7 @@ type YieldCaution struct {
 	Message string `json:"message"`
 }
 
+// YieldStats is the yield run's record.
 type YieldStats struct {
 	Failed           int    `json:"failed"`
 	Redrawn          int    `json:"redrawn"`
@@ -93,6 +100,7 @@ type YieldStats struct {
 	Seconds          Number `json:"seconds"`
 }
 
+// YieldOf returns `yield --json` of r.
 func YieldOf(r *yield.Result) *Yield {
 	c := r.Circuit
 	d := &Yield{Runs: len(r.Runs), Seed: r.Settings.Seed, Passed: r.Passed, Yield: Number(r.Yield),
