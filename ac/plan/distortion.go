@@ -193,3 +193,13 @@ func transferOf(nw *smallsignal.Network, d *Drive, sweep []steady.LevelPoint, vi
 	}
 	return t, tss, nil
 }
+
+// Outside returns the range cautions of a distortion run: the
+// waveform's (harmonic balance sees every product it solved), else the
+// estimate's.
+func (d *Distortion) Outside() []smallsignal.OutsideRange {
+	if d.Waveform != nil && len(d.Waveform.Outside) > 0 {
+		return d.Waveform.Outside
+	}
+	return d.Estimate.Outside
+}

@@ -9,8 +9,8 @@ import (
 
 	"qpoint/bias"
 	"qpoint/bias/circuit"
-	"qpoint/bias/si"
 	"qpoint/plots/report"
+	"qpoint/plots/results"
 )
 
 func newBiasCmd() *cobra.Command {
@@ -51,9 +51,9 @@ was tried), 2 bad input or usage.`,
 				return analysisError(err)
 			}
 			if asJSON {
-				return writeJSON(cmd.OutOrStdout(), biasDocument(p))
+				return results.Write(cmd.OutOrStdout(), results.BiasOf(p))
 			}
-			writeBias(cmd.OutOrStdout(), p)
+			report.WriteBias(cmd.OutOrStdout(), p)
 			return nil
 		},
 	}
@@ -112,39 +112,4 @@ func (g *fileGuard) loadCircuit(warn io.Writer, path string, sets []string, temp
 		}
 	}
 	return c, nil
-}
-
-// writeOverrides prints the header line of the --set values, if any.
-func writeOverrides(w io.Writer, c *circuit.Circuit) {
-	if l := report.OverridesLine(c); l != "" {
-		fmt.Fprintf(w, "  set          %s\n", l)
-	}
-}
-
-// writeBias prints the operating point as tables.
-func writeBias(w io.Writer, p *bias.Point) {
-	c := p.Circuit
-	fmt.Fprintf(w, "%s\n", c.Name)
-	fmt.Fprintf(w, "  file         %s\n", c.File)
-	writeOverrides(w, c)
-	fmt.Fprintf(w, "  temperature  %.2f °C (%.2f K)\n", report.Celsius(p.TemperatureK), p.TemperatureK)
-	fmt.Fprintf(w, "  solved by    %s in %s; largest current imbalance %s\n",
-		p.Stats.Strategy, report.Plural(p.Stats.Iterations, "iteration"), si.Format(p.Stats.Residual, "A", 2))
-
-	for _, t := range report.BiasTables(p) {
-		t.WriteText(w)
-	}
-	if t := lineTable(p); t != nil {
-		t.WriteText(w)
-	}
-
-	header := "\nCautions\n"
-	for _, x := range p.Warnings {
-		if x.Kind == bias.Wiring {
-			continue // said on standard error when the file loaded
-		}
-		fmt.Fprintf(w, "%s  ! %s: %s\n", header, x.Part, x.Message)
-		header = ""
-	}
-	fmt.Fprintln(w)
 }

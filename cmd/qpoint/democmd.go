@@ -15,6 +15,7 @@ import (
 
 	"qpoint"
 	"qpoint/ac"
+	"qpoint/ac/plan"
 	"qpoint/bias"
 	"qpoint/bias/circuit"
 	"qpoint/plots/report"
@@ -65,7 +66,7 @@ start your own.`,
 					return analysisError(err)
 				}
 				fmt.Fprintf(w, "\n════ %s ════\n", base)
-				writeBias(w, p)
+				report.WriteBias(w, p)
 				if err := demoResponse(w, c, p); err != nil {
 					return err
 				}
@@ -97,7 +98,7 @@ func demoResponse(w io.Writer, c *circuit.Circuit, p *bias.Point) error {
 	if len(c.Ports) == 0 {
 		return nil
 	}
-	grid, err := sweepGrid(c, &responseFlags{})
+	grid, err := plan.ResponseGrid(c, plan.Grid{})
 	if err != nil {
 		return err
 	}

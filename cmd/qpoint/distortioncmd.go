@@ -4,9 +4,7 @@ import (
 	"fmt"
 	"io"
 	"math"
-	"math/cmplx"
 	"os"
-	"strings"
 	"time"
 
 	"github.com/schollz/progressbar/v3"
@@ -18,8 +16,8 @@ import (
 	"qpoint/ac/steady"
 	"qpoint/bias"
 	"qpoint/bias/circuit"
-	"qpoint/bias/si"
 	"qpoint/plots/report"
+	"qpoint/plots/results"
 	"qpoint/smallsignal"
 )
 
@@ -166,73 +164,6 @@ func distortionDrive(c *circuit.Circuit, fl *distortionFlags) (*distortionSetup,
 	return &distortionSetup{planned: d, c: c, drive: d.Drive, inName: d.InputName, outName: d.OutputName, levelDBm: d.LevelDBm}, nil
 }
 
-// parseRange reads FROM:TO:STEP.
-func parseRange(flag, s string, q circuit.Quantity, stepQ circuit.Quantity) (from, to, step float64, err error) {
-	parts := strings.Split(s, ":")
-	if len(parts) != 3 {
-		return 0, 0, 0, inputError(fmt.Errorf("flag --%s: `%s` is not FROM:TO:STEP; e.g. -50dBm:0dBm:1dB", flag, s))
-	}
-	read := func(t string, q circuit.Quantity) (float64, error) {
-		if q == circuit.Dimensionless {
-			t = strings.TrimSuffix(strings.TrimSuffix(t, "dBm"), "dB")
-		}
-		return circuit.ParseBounded(strings.TrimSpace(t), q)
-	}
-	if from, err = read(parts[0], q); err == nil {
-		if to, err = read(parts[1], q); err == nil {
-			step, err = read(parts[2], stepQ)
-		}
-	}
-	if err != nil {
-		return 0, 0, 0, inputError(fmt.Errorf("flag --%s: %w", flag, err))
-	}
-	if !(step > 0) || !(to > from) {
-		return 0, 0, 0, inputError(fmt.Errorf("flag --%s: `%s` must rise from FROM to TO with a positive STEP", flag, s))
-	}
-	return from, to, step, nil
-}
-
-// parseLevelRange reads a level sweep FROM:TO:STEP: each end a power
-// (-50dBm, or a bare number in dBm) or a peak voltage into a matched load
-// (10mV, as --level takes it), the step in dB. It returns the ends in dBm
-// of available power behind z0.
-func parseLevelRange(flag, s string, z0 float64) (from, to, step float64, err error) {
-	const example = "e.g. -50dBm:0dBm:1dB or 1mV:300mV:1dB"
-	parts := strings.Split(s, ":")
-	if len(parts) != 3 {
-		return 0, 0, 0, inputError(fmt.Errorf("flag --%s: `%s` is not FROM:TO:STEP; %s", flag, s, example))
-	}
-	level := func(t string) (float64, error) {
-		t = strings.TrimSpace(t)
-		if v, err := circuit.ParseBounded(t, circuit.Dimensionless); err == nil {
-			return v, nil // a bare number is dBm
-		}
-		lv, err := circuit.ParseLevel(t)
-		if err != nil {
-			return 0, err
-		}
-		if lv.IsPower {
-			return lv.DBm, nil
-		}
-		return ac.EMFToDBm(2*lv.PeakVolts, z0), nil
-	}
-	if from, err = level(parts[0]); err == nil {
-		if to, err = level(parts[1]); err == nil {
-			step, err = circuit.ParseBounded(strings.TrimSpace(strings.TrimSuffix(strings.TrimSpace(parts[2]), "dB")), circuit.Dimensionless)
-		}
-	}
-	if err != nil {
-		return 0, 0, 0, inputError(fmt.Errorf("flag --%s: %w; %s", flag, err, example))
-	}
-	if !(step > 0) || !(to > from) {
-		return 0, 0, 0, inputError(fmt.Errorf("flag --%s: `%s` must rise from FROM to TO with a positive STEP in dB; %s", flag, s, example))
-	}
-	if from < -200 || to > 90 {
-		return 0, 0, 0, inputError(fmt.Errorf("flag --%s: `%s` spans %.1f to %.1f dBm; accepted: levels within -200 to +90 dBm", flag, s, from, to))
-	}
-	return from, to, step, nil
-}
-
 func runDistortion(cmd *cobra.Command, path string, fl *distortionFlags) error {
 	g := guardOf(cmd)
 	s, err := resolveDistortion(g, cmd.ErrOrStderr(), path, fl)
@@ -266,15 +197,15 @@ func runDistortion(cmd *cobra.Command, path string, fl *distortionFlags) error {
 		fmt.Fprintf(cmd.ErrOrStderr(), "qpoint: two-tone level sweep stopped: %v\n", res.TwoToneSweepErr)
 	}
 	if fl.plotsDir != "" {
-		if err := g.writeDistortionPlots(fl.plotsDir, s, res.OneTone, res.Waveform, res.Sweep, res.Transfer, res.TangentialDBm, twoToneFigures(res.TwoTone, res.Estimate)...); err != nil {
+		if err := g.writeDistortionPlots(fl.plotsDir, s, res.OneTone, res.Waveform, res.Sweep, res.Transfer, res.TangentialDBm, report.TwoToneFigures(res.TwoTone, res.Estimate)...); err != nil {
 			return err
 		}
 	}
 	out := cmd.OutOrStdout()
 	if fl.asJSON {
-		return writeJSON(out, distortionDocOf(s, res))
+		return results.Write(out, results.DistortionOf(s.planned, res))
 	}
-	writeDistortionText(out, s, res)
+	report.WriteDistortion(out, s.nw, s.planned, res)
 	if fl.plotsDir != "" {
 		fmt.Fprintf(out, "figures written to %s\n", fl.plotsDir)
 	}
@@ -302,9 +233,9 @@ func distortionRequest(cmd *cobra.Command, s *distortionSetup, fl *distortionFla
 	if fl.sweepLevel == "" {
 		return req, nil
 	}
-	from, to, step, err := parseLevelRange("sweep-level", fl.sweepLevel, s.c.Ports[s.drive.Input].Impedance)
+	from, to, step, err := plan.ParseLevelRange("sweep-level", fl.sweepLevel, s.c.Ports[s.drive.Input].Impedance)
 	if err != nil {
-		return req, err
+		return req, planError(err)
 	}
 	n := int(math.Floor((to-from)/step+1e-9)) + 1
 	if n > 2000 {
@@ -318,9 +249,9 @@ func distortionRequest(cmd *cobra.Command, s *distortionSetup, fl *distortionFla
 	if band == "" {
 		band = "2MHz"
 	}
-	lo, hi, err := parseBand("video-bandwidth", band, defaultVideoFromHz)
+	lo, hi, err := plan.ParseBand("video-bandwidth", band, plan.DefaultVideoFromHz)
 	if err != nil {
-		return req, err
+		return req, planError(err)
 	}
 	req.VideoHz = [2]float64{lo, hi}
 	req.Progress = func(stage string, n int) (func(done, total int), func()) {
@@ -332,17 +263,17 @@ func distortionRequest(cmd *cobra.Command, s *distortionSetup, fl *distortionFla
 
 // runDistortionFrequency sweeps the estimate alone over frequency.
 func runDistortionFrequency(cmd *cobra.Command, g *fileGuard, s *distortionSetup, fl *distortionFlags) error {
-	from, to, perDec, err := parseRange("sweep-frequency", fl.sweepFrequency, circuit.Frequency, circuit.Dimensionless)
+	from, to, perDec, err := plan.ParseRange("sweep-frequency", fl.sweepFrequency, circuit.Frequency, circuit.Dimensionless)
 	if err != nil {
-		return err
+		return planError(err)
 	}
 	grid, err := ac.LogGrid(from, to, int(perDec))
 	if err != nil {
 		return inputError(fmt.Errorf("flag --sweep-frequency: %w", err))
 	}
-	var rows []frequencyRow
+	var rows []report.FrequencyRow
 	err = ac.VolterraSweep(s.nw, s.drive, grid, func(e *ac.Estimate) error {
-		rows = append(rows, frequencyRow{e.Drive.FrequencyHz, e.Clone()})
+		rows = append(rows, report.FrequencyRow{FrequencyHz: e.Drive.FrequencyHz, Estimate: e.Clone()})
 		return nil
 	})
 	if err != nil {
@@ -355,211 +286,15 @@ func runDistortionFrequency(cmd *cobra.Command, g *fileGuard, s *distortionSetup
 	}
 	out := cmd.OutOrStdout()
 	if fl.asJSON {
-		doc := distortionDocHead(s)
+		doc := results.DistortionHead(s.planned)
 		for _, r := range rows {
-			doc.FrequencySweep = append(doc.FrequencySweep, estimateJSONOf(r.est))
+			doc.FrequencySweep = append(doc.FrequencySweep, results.EstimateOf(r.Estimate))
 		}
-		return writeJSON(out, doc)
+		return results.Write(out, doc)
 	}
-	writeDistortionHeader(out, s)
-	writeFrequencySweep(out, rows)
+	report.WriteDistortionHeader(out, s.nw, s.planned)
+	report.WriteFrequencySweep(out, rows)
 	return nil
-}
-
-// distortionDocHead is the JSON document's drive.
-func distortionDocHead(s *distortionSetup) *distortionJSON {
-	return &distortionJSON{Input: s.inName, Output: s.outName, Frequency: number(s.drive.FrequencyHz), LevelDBm: number(s.levelDBm)}
-}
-
-// distortionDocOf is the JSON document of a distortion run.
-func distortionDocOf(s *distortionSetup, res *plan.Distortion) *distortionJSON {
-	doc := distortionDocHead(s)
-	doc.Estimate = estimateJSONOf(res.Estimate)
-	doc.Waveform = waveformJSONOf(res.Waveform)
-	doc.Cautions = append([]string{}, res.Waveform.Cautions()...)
-	doc.Cautions = append(doc.Cautions, outsideMessages(outsideOf(res))...)
-	if note := report.TruncationNote(res.Waveform); note != "" {
-		doc.Cautions = append(doc.Cautions, note)
-	}
-	for _, c := range res.Comparison {
-		doc.Comparison = append(doc.Comparison, comparisonJSON{c.Order, number(c.Estimate), number(c.Waveform), number(c.DiffDB), c.Trustable})
-	}
-	if two := res.TwoTone; two != nil {
-		doc.Waveform.addTwoTone(two)
-		doc.Cautions = append(doc.Cautions, two.Cautions()...)
-		if note := report.TruncationNote(two); note != "" {
-			doc.Cautions = append(doc.Cautions, note)
-		}
-	}
-	if res.Validity != nil {
-		doc.setValidity(res.Validity)
-	}
-	if res.Compressed {
-		doc.CompressionDBm = number(res.CompressionDBm)
-	}
-	for _, p := range res.Sweep {
-		doc.LevelSweep = append(doc.LevelSweep, levelJSON{number(p.LevelDBm), waveformJSONOf(p.Steady)})
-	}
-	doc.Cautions = append(doc.Cautions, report.SweepCautions(res.Sweep)...)
-	if res.Transfer != nil {
-		doc.Transfer = transferJSONOf(res.Transfer, res.TangentialDBm)
-	}
-	for _, p := range res.TwoToneSweep {
-		w := waveformJSONOf(p.Steady)
-		w.addTwoTone(p.Steady)
-		doc.TwoToneSweep = append(doc.TwoToneSweep, levelJSON{number(p.LevelDBm), w})
-	}
-	if res.TwoToneSweep != nil && res.InterceptErr == nil {
-		doc.MeasuredIntercept = interceptJSONOf(res.Intercept)
-	}
-	return doc
-}
-
-// writeDistortionText prints a distortion run's tables.
-func writeDistortionText(out io.Writer, s *distortionSetup, res *plan.Distortion) {
-	writeDistortionHeader(out, s)
-	writeEstimate(out, res.Estimate)
-	writeJunctionDrive(out, s, res.Estimate)
-	writeContributions(out, res.Estimate)
-	st := res.Waveform
-	writeWaveform(out, st)
-	if note := report.TruncationNote(st); note != "" {
-		fmt.Fprintf(out, "  %s\n", note)
-	}
-	writeCautions(out, st.Cautions())
-	writeOutside(out, outsideOf(res))
-	writeComparison(out, res.Comparison, res.Validity)
-	if two := res.TwoTone; two != nil {
-		writeTwoTone(out, two, res.Estimate)
-		writeCautions(out, two.Cautions())
-	}
-	if len(res.Sweep) > 0 {
-		writeLevelSweep(out, res.Sweep, res.OneTone, res.CompressionDBm, res.Compressed)
-		writeCautions(out, report.SweepCautions(res.Sweep))
-	}
-	if res.Transfer != nil {
-		writeTransfer(out, res.Transfer, res.TangentialDBm)
-	}
-	if len(res.TwoToneSweep) > 0 {
-		writeTwoToneSweep(out, res.TwoToneSweep, res.Intercept, res.InterceptErr, res.Estimate)
-	}
-}
-
-// writeTransfer prints a detector's transfer curve and its square-law
-// range.
-func writeTransfer(w io.Writer, t *steady.Transfer, tssDBm float64) {
-	tb := &report.Table{Caption: "Detector transfer curve (waveform)", Header: []string{"input", "output DC change", "from square law"}}
-	for _, p := range t.Points {
-		tb.Add(fmt.Sprintf("%.1f dBm", p.LevelDBm), si.Format(p.Volts, "V", 4), fmt.Sprintf("%+.3f dB", p.DeviationDB))
-	}
-	tb.WriteText(w)
-	fmt.Fprintf(w, "  square law V = γP with γ = %s (small-signal voltage sensitivity)\n", si.Format(t.SensitivityVPerW, "V/W", 4))
-	fmt.Fprintf(w, "  log-log slope %.3f at the lowest level, %.3f at the highest (1: square law, 0.5: linear detection)\n", t.LowSlope, t.HighSlope)
-	if math.IsNaN(t.DeviationDBm) {
-		fmt.Fprintf(w, "  within 1 dB of square law over the whole sweep, or beyond it from the lowest level\n")
-	} else {
-		fmt.Fprintf(w, "  1 dB from square law at %.2f dBm input\n", t.DeviationDBm)
-	}
-	if !math.IsNaN(tssDBm) {
-		fmt.Fprintf(w, "  tangential sensitivity %.2f dBm", tssDBm)
-		if dr := t.DynamicRangeDB(tssDBm); !math.IsNaN(dr) {
-			fmt.Fprintf(w, "; square-law dynamic range %.1f dB", dr)
-		}
-		fmt.Fprintln(w)
-		if len(t.Points) > 0 && t.Points[0].LevelDBm > tssDBm {
-			fmt.Fprintf(w, "  the sweep starts above the tangential sensitivity; start below %.0f dBm to see the whole range\n", math.Floor(tssDBm))
-		}
-	}
-	fmt.Fprintln(w)
-}
-
-type frequencyRow struct {
-	f   float64
-	est *ac.Estimate
-}
-
-func writeDistortionHeader(w io.Writer, s *distortionSetup) {
-	fmt.Fprintf(w, "%s\n", s.c.Name)
-	fmt.Fprintf(w, "  file         %s\n", s.c.File)
-	writeOverrides(w, s.c)
-	fmt.Fprintf(w, "  bias         %s\n", report.BiasLine(s.p))
-	z0 := s.c.Ports[s.drive.Input].Impedance
-	fmt.Fprintf(w, "  drive        port %s, %s, %.2f dBm available (EMF %s peak behind %s)\n", s.inName,
-		si.Format(s.drive.FrequencyHz, "Hz", 6), s.levelDBm, si.Format(s.drive.EMF, "V", 4), si.Format(z0, "Ω", 4))
-	if s.drive.SecondToneHz != 0 {
-		fmt.Fprintf(w, "               second tone %s at the same level\n", si.Format(s.drive.SecondToneHz, "Hz", 6))
-	}
-	kind := "node"
-	if s.drive.Output.Port >= 0 {
-		kind = "port"
-	}
-	fmt.Fprintf(w, "  output       %s %s\n", kind, s.outName)
-}
-
-func writeEstimate(w io.Writer, e *ac.Estimate) {
-	t, notes := report.EstimateTable(e)
-	t.WriteText(w)
-	for _, n := range notes {
-		fmt.Fprintf(w, "  %s\n", n)
-	}
-}
-
-func writeContributions(w io.Writer, e *ac.Estimate) {
-	report.ContributionTable(e).WriteText(w)
-}
-
-func writeWaveform(w io.Writer, s *steady.State) {
-	t, note := report.WaveformTable(s)
-	t.WriteText(w)
-	fmt.Fprintf(w, "  %s\n", note)
-	if len(s.Stress) > 0 {
-		report.StressTable(s).WriteText(w)
-	}
-}
-
-func writeComparison(w io.Writer, cs []steady.Comparison, v *steady.Validity) {
-	t, note := report.ComparisonTable(cs, v)
-	t.WriteText(w)
-	if note != "" {
-		fmt.Fprintf(w, "  %s\n", note)
-	}
-	fmt.Fprintln(w)
-}
-
-func writeLevelSweep(w io.Writer, pts []steady.LevelPoint, e *ac.Estimate, comp float64, ok bool) {
-	report.LevelSweepTable(pts).WriteText(w)
-	if ok {
-		fmt.Fprintf(w, "  1 dB compression at %.2f dBm input (waveform)\n", comp)
-	} else {
-		fmt.Fprintf(w, "  no 1 dB compression within the sweep (waveform)\n")
-	}
-	if e != nil {
-		if l, compress := e.GainStepDBm(1); !math.IsNaN(l) {
-			kind := "compression"
-			if !compress {
-				kind = "expansion"
-			}
-			fmt.Fprintf(w, "  1 dB %s at %.2f dBm input (third-order series estimate)\n", kind, l)
-		}
-	}
-	fmt.Fprintln(w)
-}
-
-func writeFrequencySweep(w io.Writer, rows []frequencyRow) {
-	t := &report.Table{Caption: "Volterra estimate across frequency", Header: []string{"frequency", "fundamental", "HD2", "HD3", "DC shift"}}
-	two := len(rows) > 0 && rows[0].est.Drive.SecondToneHz != 0
-	if two {
-		t.Header = append(t.Header, "IM3", "IIP3")
-	}
-	for _, r := range rows {
-		cells := []string{si.Format(r.f, "Hz", 4), si.Format(cmplx.Abs(r.est.Fundamental), "V", 4), report.DBc(r.est.HD2dBc()), report.DBc(r.est.HD3dBc()), si.Format(r.est.DCShift, "V", 4)}
-		if two {
-			cells = append(cells, report.DBc(r.est.IM3dBc()), fmt.Sprintf("%.2f dBm", r.est.IIP3dBm()))
-		}
-		t.Add(cells...)
-	}
-	t.WriteText(w)
-	fmt.Fprintln(w)
 }
 
 // progress draws a bar with the count, rate and time left on standard
@@ -598,31 +333,5 @@ func (p *progress) update(done, total int) {
 func (p *progress) done() {
 	if p.bar != nil {
 		_ = p.bar.Finish()
-	}
-}
-
-// writeCautions prints each caution as its own marked line.
-func writeCautions(w io.Writer, c []string) {
-	if len(c) == 0 {
-		return
-	}
-	fmt.Fprintf(w, "\nCautions (model estimates: the part may be damaged here)\n")
-	for _, x := range c {
-		fmt.Fprintf(w, "  ! %s\n", x)
-	}
-}
-
-// writeJunctionDrive prints each junction's drive x = |v|/(n V_T) at the
-// fundamental: below about 0.1 the junction runs weakly nonlinear and the
-// estimate holds; near 1 and above it does not.
-func writeJunctionDrive(w io.Writer, s *distortionSetup, e *ac.Estimate) {
-	var parts []string
-	for k, d := range s.nw.Diodes {
-		if k < len(e.Junctions) {
-			parts = append(parts, fmt.Sprintf("%s %.3g", d.Name, cmplx.Abs(e.Junctions[k])/d.Device.NVT()))
-		}
-	}
-	if len(parts) > 0 {
-		fmt.Fprintf(w, "  junction drive x = |v|/(n V_T) at f1: %s\n", strings.Join(parts, ", "))
 	}
 }

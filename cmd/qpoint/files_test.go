@@ -14,6 +14,7 @@ import (
 	"qpoint/ac/touchstone"
 	"qpoint/bias"
 	"qpoint/bias/circuit"
+	"qpoint/plots/results"
 	"qpoint/smallsignal"
 )
 
@@ -96,10 +97,10 @@ func TestWriteInterrupted(t *testing.T) {
 			return errors.New("the sweep failed at 3 GHz")
 		}, errors.New("the sweep failed at 3 GHz"), false},
 		{"writer fails after 100 bytes", func(w io.Writer) error {
-			return writeResponseCSV(&failAfter{w, 100}, r)
+			return results.WriteResponseCSV(&failAfter{w, 100}, r)
 		}, errDiskFull, false},
 		{"writer fails after 20 kB", func(w io.Writer) error {
-			return writeResponseCSV(&failAfter{w, 20 << 10}, r)
+			return results.WriteResponseCSV(&failAfter{w, 20 << 10}, r)
 		}, errDiskFull, false},
 		{"Touchstone writer fails after 1 kB", func(w io.Writer) error {
 			return writeTouchstone(&failAfter{w, 1 << 10}, &circuit.Circuit{}, r, touchstone.FormatRI)
@@ -108,7 +109,7 @@ func TestWriteInterrupted(t *testing.T) {
 			io.WriteString(w, big)
 			panic("index out of range (simulated)")
 		}, nil, true},
-		{"complete write", func(w io.Writer) error { return writeResponseCSV(w, r) }, nil, false},
+		{"complete write", func(w io.Writer) error { return results.WriteResponseCSV(w, r) }, nil, false},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
@@ -142,7 +143,7 @@ func TestWriteInterrupted(t *testing.T) {
 					t.Fatalf("write failed: %v", err)
 				}
 				var want bytes.Buffer
-				writeResponseCSV(&want, r)
+				results.WriteResponseCSV(&want, r)
 				if !bytes.Equal(got, want.Bytes()) {
 					t.Errorf("the new file holds %d bytes, want the %d written", len(got), want.Len())
 				}

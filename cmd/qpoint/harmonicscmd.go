@@ -4,12 +4,12 @@ import (
 	"errors"
 	"fmt"
 	"io"
-	"math"
 	"os"
 	"strconv"
 
 	"qpoint/bias/si"
 	"qpoint/plots/report"
+	"qpoint/plots/results"
 
 	"github.com/spf13/cobra"
 
@@ -145,15 +145,15 @@ func runWaveformHarmonics(cmd *cobra.Command, path string, fl *waveformFlags) er
 	}
 	out := cmd.OutOrStdout()
 	if fl.asJSON {
-		doc := waveformHarmonicsDocument(path, w, r)
+		doc := results.HarmonicsOf(path, w, r)
 		if pred != nil {
-			doc.Prediction = waveformJSONOf(pred)
+			doc.Prediction = results.WaveformOf(pred)
 		}
-		return writeJSON(out, doc)
+		return results.Write(out, doc)
 	}
-	writeWaveformHarmonics(out, path, w, r)
+	report.WriteHarmonics(out, path, w, r)
 	if pred != nil {
-		writePredictionComparison(out, fl.circuitPath, r, pred)
+		report.WritePredictionComparison(out, fl.circuitPath, r, pred)
 	}
 	return nil
 }
@@ -173,35 +173,6 @@ func predictHarmonics(g *fileGuard, warn io.Writer, fl *waveformFlags, fundament
 		return nil, analysisError(fmt.Errorf("prediction from %s at %s: %w", fl.circuitPath, si.Format(fundamentalHz, "Hz", 6), err))
 	}
 	return st, nil
-}
-
-// writePredictionComparison sets measured harmonics beside the predicted
-// ones, each relative to its own fundamental.
-func writePredictionComparison(w io.Writer, circuitPath string, r *measure.Result, p *steady.State) {
-	t := &report.Table{Caption: "Measured beside predicted (" + circuitPath + ")", Header: []string{"order", "measured", "predicted", "measured dBc", "predicted dBc", "difference"}}
-	mf, pf := 0.0, p.Output[1].Amplitude
-	for _, h := range r.Harmonics {
-		if h.Order == 1 {
-			mf = h.AmplitudeV
-		}
-	}
-	for _, h := range r.Harmonics {
-		if h.Order < 1 || h.Order >= len(p.Output) || !h.Present {
-			continue
-		}
-		pa := p.Output[h.Order].Amplitude
-		md, pd := 20*math.Log10(h.AmplitudeV/mf), 20*math.Log10(pa/pf)
-		diff := fmt.Sprintf("%+.2f dB", md-pd)
-		if md < -150 || pd < -150 {
-			diff = "—"
-		}
-		if h.Order == 1 {
-			diff = fmt.Sprintf("%+.2f dB", 20*math.Log10(h.AmplitudeV/pa))
-		}
-		t.Add(strconv.Itoa(h.Order), si.Format(h.AmplitudeV, "V", 4), si.Format(pa, "V", 4), report.WaveDBc(md), report.WaveDBc(pd), diff)
-	}
-	t.WriteText(w)
-	fmt.Fprintf(w, "  the fundamental's row compares absolute amplitudes; the others compare levels relative to each fundamental\n")
 }
 
 // readWaveformFile reads a waveform file; every failure is an input error,
@@ -226,116 +197,4 @@ func (g *fileGuard) readWaveformFile(path string, opts measure.CSVOptions) (*mea
 		return nil, inputError(fmt.Errorf("%s: %w", path, err))
 	}
 	return w, nil
-}
-
-func writeWaveformHarmonics(w io.Writer, path string, wf *measure.Waveform, r *measure.Result) {
-	fmt.Fprintf(w, "%s\n", path)
-	fmt.Fprintf(w, "  samples      %d at %s (%s from %s)\n", r.Samples, si.Format(r.SampleRateHz, "Hz", 6),
-		si.Format(wf.DurationS(), "s", 4), si.Format(wf.StartS, "s", 4))
-	how := "given"
-	if r.Searched {
-		how = "found by spectral search and fit"
-	}
-	fmt.Fprintf(w, "  fundamental  %s, %s; %.2f periods captured\n", si.Format(r.FundamentalHz, "Hz", 7), how, r.Periods)
-	fmt.Fprintf(w, "  window       %s\n", r.Window)
-	if u := wf.RateUncertainty; u > measure.RateUncertaintyLimit {
-		fmt.Fprintf(w, "  ! caution: the time stamps start at %s, where float64 resolves only %s, %.2g of the %s step: the sample rate and every frequency here can be off by %.2g (%s at the fundamental); subtract the offset from the time column\n",
-			si.Format(wf.StartS, "s", 4), si.Format(u*(float64(r.Samples-1)/r.SampleRateHz), "s", 2),
-			u*float64(r.Samples-1), si.Format(1/r.SampleRateHz, "s", 3), u, si.Format(u*r.FundamentalHz, "Hz", 2))
-	}
-
-	t := &report.Table{Caption: "Harmonics", Header: []string{"order", "frequency", "amplitude", "dBc", "phase °"}}
-	absent := 0
-	for _, h := range r.Harmonics {
-		order := strconv.Itoa(h.Order)
-		if h.Order == 0 {
-			t.Add("DC", si.Format(0, "Hz", 4), si.Format(h.AmplitudeV, "V", 5), "", "")
-			continue
-		}
-		if !h.Present {
-			absent++
-			t.Add(order, si.Format(h.FrequencyHz, "Hz", 6), "above fs/2", "", "")
-			continue
-		}
-		t.Add(order, si.Format(h.FrequencyHz, "Hz", 6), si.Format(h.AmplitudeV, "V", 5),
-			waveformDB(h.DBc), strconv.FormatFloat(h.PhaseDeg, 'f', 2, 64))
-	}
-	t.WriteText(w)
-	fmt.Fprintln(w)
-	last := len(r.Harmonics) - 1 - absent
-	if math.IsNaN(r.THDPercent) {
-		fmt.Fprintf(w, "  total harmonic distortion   — (no harmonic from the 2nd up lies below fs/2)\n")
-	} else {
-		fmt.Fprintf(w, "  total harmonic distortion   %s %% (%s dB), orders 2 to %d\n",
-			strconv.FormatFloat(r.THDPercent, 'g', 4, 64), waveformDB(r.THDdB), last)
-	}
-	fmt.Fprintf(w, "  SINAD                       %s dB\n", waveformDB(r.SINADdB))
-	fmt.Fprintf(w, "  noise and distortion        %s rms\n", si.Format(r.NoiseDistortionRMS, "V", 4))
-	fmt.Fprintf(w, "  %-27s %s rms", fmt.Sprintf("left after orders 0 to %d", last), si.Format(r.NoiseRMS, "V", 4))
-	if !math.IsNaN(r.NoiseDensity) {
-		fmt.Fprintf(w, "; floor %s/√Hz", si.Format(r.NoiseDensity, "V", 3))
-	}
-	fmt.Fprintln(w)
-	if absent > 0 {
-		fmt.Fprintf(w, "  orders %d to %d lie above half the sample rate (%s) and are not measured\n",
-			last+1, len(r.Harmonics)-1, si.Format(r.SampleRateHz/2, "Hz", 4))
-	}
-	fmt.Fprintln(w)
-}
-
-// waveformDB prints a level in dB with two decimals.
-func waveformDB(v float64) string {
-	switch {
-	case math.IsInf(v, -1):
-		return "-∞"
-	case math.IsNaN(v) || math.IsInf(v, 1):
-		return "—"
-	}
-	return strconv.FormatFloat(v, 'f', 2, 64)
-}
-
-type waveformHarmonicJSON struct {
-	Order     int    `json:"order"`
-	Frequency number `json:"frequency"`
-	Amplitude number `json:"amplitude"`
-	Phase     number `json:"phase"`
-	DBc       number `json:"dbc"`
-}
-
-type waveformHarmonicsJSON struct {
-	File                  string                 `json:"file"`
-	Samples               int                    `json:"samples"`
-	SampleRate            number                 `json:"sample_rate"`
-	StartTime             number                 `json:"start_time"`
-	Window                string                 `json:"window"`
-	Fundamental           number                 `json:"fundamental"`
-	FundamentalSearched   bool                   `json:"fundamental_searched"`
-	Periods               number                 `json:"periods"`
-	Harmonics             []waveformHarmonicJSON `json:"harmonics"`
-	THDPercent            number                 `json:"thd_percent"`
-	THDdB                 number                 `json:"thd_db"`
-	SINADdB               number                 `json:"sinad_db"`
-	NoiseAndDistortionRMS number                 `json:"noise_and_distortion_rms"`
-	NoiseRMS              number                 `json:"noise_rms"`
-	NoiseDensity          number                 `json:"noise_density"`
-	Prediction            *waveformJSON          `json:"prediction,omitempty"`
-	// SampleRateUncertainty is the relative uncertainty of the sample
-	// rate from the time column's resolution (0 when given outright).
-	SampleRateUncertainty number `json:"sample_rate_uncertainty"`
-}
-
-func waveformHarmonicsDocument(path string, w *measure.Waveform, r *measure.Result) *waveformHarmonicsJSON {
-	d := &waveformHarmonicsJSON{
-		File: path, Samples: r.Samples, SampleRate: number(r.SampleRateHz), StartTime: number(w.StartS),
-		Window: r.Window.String(), Fundamental: number(r.FundamentalHz), FundamentalSearched: r.Searched,
-		Periods: number(r.Periods), THDPercent: number(r.THDPercent), THDdB: number(r.THDdB),
-		SINADdB: number(r.SINADdB), NoiseAndDistortionRMS: number(r.NoiseDistortionRMS),
-		NoiseRMS: number(r.NoiseRMS), NoiseDensity: number(r.NoiseDensity),
-		SampleRateUncertainty: number(w.RateUncertainty),
-	}
-	for _, h := range r.Harmonics {
-		d.Harmonics = append(d.Harmonics, waveformHarmonicJSON{Order: h.Order, Frequency: number(h.FrequencyHz),
-			Amplitude: number(h.AmplitudeV), Phase: number(h.PhaseDeg), DBc: number(h.DBc)})
-	}
-	return d
 }

@@ -3,7 +3,6 @@ package main
 import (
 	"errors"
 	"fmt"
-	"io"
 
 	"github.com/spf13/cobra"
 
@@ -13,6 +12,7 @@ import (
 	"qpoint/bias/circuit"
 	"qpoint/plots"
 	"qpoint/plots/report"
+	"qpoint/plots/results"
 	"qpoint/smallsignal"
 )
 
@@ -150,9 +150,9 @@ func runMixer(cmd *cobra.Command, path string, fl *mixerFlags) error {
 		if i := portIndexOf(c, fl.lo, c.Analysis.Mixer.LO); i >= 0 {
 			z0 = c.Ports[i].Impedance
 		}
-		from, to, step, err := parseLevelRange("sweep-lo-level", fl.sweepLOLevel, z0)
+		from, to, step, err := plan.ParseLevelRange("sweep-lo-level", fl.sweepLOLevel, z0)
 		if err != nil {
-			return err
+			return planError(err)
 		}
 		if levels, err = plan.MixerLevels(from, to, step); err != nil {
 			return planError(err)
@@ -183,14 +183,14 @@ func runMixer(cmd *cobra.Command, path string, fl *mixerFlags) error {
 		}
 	}
 	if fl.asJSON {
-		return writeJSON(out, mixerDocument(s, res))
+		return results.Write(out, results.MixerOf(s.p, s.plan, res))
 	}
-	writeMixerHeader(out, s, res)
+	report.WriteMixerHeader(out, s.nw, s.plan, res)
 	for _, t := range []*report.Table{report.MixerTable(res), report.MixerPortTable(s.nw, s.plan, res), report.MixerLOTable(s.plan, res),
 		report.MixerDiodeTable(res), report.MixerNoiseTable(res, 6)} {
 		t.WriteText(out)
 	}
-	writeCautions(out, report.MixerCautionMessages(res))
+	report.WriteCautions(out, report.MixerCautionMessages(res))
 	if fl.plotsDir != "" {
 		fmt.Fprintf(out, "\nfigure written to %s\n", fl.plotsDir)
 	}
@@ -212,20 +212,6 @@ func portIndexOf(c *circuit.Circuit, flag, file string) int {
 	return -1
 }
 
-// writeMixerHeader prints what was run.
-func writeMixerHeader(w io.Writer, s *mixerSetup, res *mixer.Result) {
-	fmt.Fprintf(w, "%s\n", s.c.Name)
-	fmt.Fprintf(w, "  file         %s\n", s.c.File)
-	writeOverrides(w, s.c)
-	fmt.Fprintf(w, "  bias         %s\n", report.BiasLine(s.p))
-	for _, l := range report.MixerSetupLines(s.nw, s.plan) {
-		fmt.Fprintf(w, "  %-12s %s\n", l[0], l[1])
-	}
-	if res != nil {
-		fmt.Fprintf(w, "  method       %s\n", report.MixerMethodLine(res))
-	}
-}
-
 // runMixerSweep repeats the analysis over LO levels.
 func runMixerSweep(cmd *cobra.Command, s *mixerSetup, fl *mixerFlags, levels []float64) error {
 	g := guardOf(cmd)
@@ -245,11 +231,11 @@ func runMixerSweep(cmd *cobra.Command, s *mixerSetup, fl *mixerFlags, levels []f
 	}
 	out := cmd.OutOrStdout()
 	if fl.asJSON {
-		if err := writeJSON(out, mixerSweepDocument(s, pts)); err != nil {
+		if err := results.Write(out, results.MixerSweepOf(s.p, s.plan, pts)); err != nil {
 			return err
 		}
 	} else {
-		writeMixerHeader(out, s, nil)
+		report.WriteMixerHeader(out, s.nw, s.plan, nil)
 		report.MixerSweepTable(pts).WriteText(out)
 		fmt.Fprintf(out, "  cautions name their kinds; run one level (--lo-level) to read them in full\n")
 		if fl.plotsDir != "" {

@@ -1,15 +1,10 @@
 package main
 
 import (
-	"encoding/csv"
 	"fmt"
 	"io"
-	"math"
-	"math/cmplx"
 	"os"
 	"path/filepath"
-	"strconv"
-	"strings"
 
 	"github.com/spf13/cobra"
 
@@ -19,6 +14,7 @@ import (
 	"qpoint/bias/circuit"
 	"qpoint/plots"
 	"qpoint/plots/report"
+	"qpoint/plots/results"
 	"qpoint/smallsignal"
 )
 
@@ -112,41 +108,6 @@ type noiseSetup struct {
 	plan *plan.Noise
 }
 
-// parseBand reads LOW:HIGH, or HIGH alone when lowDefault is positive.
-func parseBand(flag, s string, lowDefault float64) (lo, hi float64, err error) {
-	parts := strings.Split(s, ":")
-	example := "LOW:HIGH, e.g. 800MHz:1GHz"
-	if lowDefault > 0 {
-		example = "HIGH or LOW:HIGH, e.g. 2MHz or 10Hz:2MHz"
-	}
-	bad := func(e error) (float64, float64, error) {
-		if e != nil {
-			return 0, 0, inputError(fmt.Errorf("flag --%s: %w; accepted: %s", flag, e, example))
-		}
-		return 0, 0, inputError(fmt.Errorf("flag --%s: `%s` is not a rising band; accepted: %s within 1 mHz to 1 THz", flag, s, example))
-	}
-	switch {
-	case len(parts) == 1 && lowDefault > 0:
-		lo = lowDefault
-		if hi, err = circuit.ParseBounded(strings.TrimSpace(parts[0]), circuit.Frequency); err != nil {
-			return bad(err)
-		}
-	case len(parts) == 2:
-		if lo, err = circuit.ParseBounded(strings.TrimSpace(parts[0]), circuit.Frequency); err != nil {
-			return bad(err)
-		}
-		if hi, err = circuit.ParseBounded(strings.TrimSpace(parts[1]), circuit.Frequency); err != nil {
-			return bad(err)
-		}
-	default:
-		return bad(nil)
-	}
-	if !(hi > lo) || ac.CheckFrequency(lo) != nil || ac.CheckFrequency(hi) != nil {
-		return bad(nil)
-	}
-	return lo, hi, nil
-}
-
 // resolveNoiseFor reads the flags into a request, solves the bias (when p
 // is nil) and linearises it, and resolves the plan.
 func resolveNoiseFor(c *circuit.Circuit, fl *noiseFlags, p *bias.Point) (*noiseSetup, error) {
@@ -161,16 +122,16 @@ func resolveNoiseFor(c *circuit.Circuit, fl *noiseFlags, p *bias.Point) (*noiseS
 		}
 	}
 	if fl.videoBandwidth != "" {
-		lo, hi, err := parseBand("video-bandwidth", fl.videoBandwidth, plan.DefaultVideoFromHz)
+		lo, hi, err := plan.ParseBand("video-bandwidth", fl.videoBandwidth, plan.DefaultVideoFromHz)
 		if err != nil {
-			return nil, err
+			return nil, planError(err)
 		}
 		req.VideoBandHz = [2]float64{lo, hi}
 	}
 	if fl.bandwidth != "" {
-		lo, hi, err := parseBand("bandwidth", fl.bandwidth, 0)
+		lo, hi, err := plan.ParseBand("bandwidth", fl.bandwidth, 0)
 		if err != nil {
-			return nil, err
+			return nil, planError(err)
 		}
 		req.BandHz = [2]float64{lo, hi}
 	}
@@ -219,9 +180,9 @@ func runNoise(cmd *cobra.Command, path string, fl *noiseFlags) error {
 	}
 	out := cmd.OutOrStdout()
 	if fl.asJSON {
-		return writeJSON(out, noiseDocument(s, o))
+		return results.Write(out, results.NoiseOf(s.c, o))
 	}
-	writeNoiseText(out, s, o, fl.rows)
+	report.WriteNoise(out, s.nw, o, fl.rows)
 	fmt.Fprintln(out)
 	if fl.csvPath != "" {
 		fmt.Fprintf(out, "CSV written to %s\n", fl.csvPath)
@@ -240,8 +201,8 @@ func (g *fileGuard) writeNoiseFiles(fl *noiseFlags, o *plan.NoiseRun) error {
 		name  string
 		write func(io.Writer, *ac.NoiseResult) error
 	}{
-		{"noise-density.csv", writeNoiseDensityCSV},
-		{"noise-contributions.csv", writeNoiseContributionsCSV},
+		{"noise-density.csv", results.WriteNoiseDensityCSV},
+		{"noise-contributions.csv", results.WriteNoiseContributionsCSV},
 	}
 	paths := []string{fl.csvPath}
 	var figs []*plots.Figure
@@ -257,7 +218,7 @@ func (g *fileGuard) writeNoiseFiles(fl *noiseFlags, o *plan.NoiseRun) error {
 		return err
 	}
 	if fl.csvPath != "" {
-		if err := g.writeFileAtomic(fl.csvPath, func(w io.Writer) error { return writeNoiseCSV(w, o) }); err != nil {
+		if err := g.writeFileAtomic(fl.csvPath, func(w io.Writer) error { return results.WriteNoiseCSV(w, o) }); err != nil {
 			return err
 		}
 	}
@@ -273,233 +234,4 @@ func (g *fileGuard) writeNoiseFiles(fl *noiseFlags, o *plan.NoiseRun) error {
 		}
 	}
 	return g.writeFigures(fl.plotsDir, figs)
-}
-
-// writeNoiseText prints the noise tables: density, band, sources and a
-// detector's figures.
-func writeNoiseText(out io.Writer, s *noiseSetup, o *plan.NoiseRun, rows int) {
-	writeNoiseHeader(out, s)
-	report.NoiseTable(o, rows).WriteText(out)
-	for _, n := range report.NoiseNotes(o) {
-		fmt.Fprintf(out, "  %s\n", n)
-	}
-	if o.Band != nil {
-		report.BandTable(o).WriteText(out)
-		report.SourceTable(o).WriteText(out)
-	}
-	if o.Detection != nil {
-		t, notes := report.DetectorTable(o)
-		t.WriteText(out)
-		for _, n := range notes {
-			fmt.Fprintf(out, "  %s\n", n)
-		}
-	}
-}
-
-func writeNoiseHeader(w io.Writer, s *noiseSetup) {
-	fmt.Fprintf(w, "%s\n", s.c.Name)
-	fmt.Fprintf(w, "  file         %s\n", s.c.File)
-	writeOverrides(w, s.c)
-	fmt.Fprintf(w, "  bias         %s\n", report.BiasLine(s.p))
-	for _, line := range report.NoiseSetupLines(s.c, s.nw, s.plan) {
-		fmt.Fprintf(w, "  %-12s %s\n", line[0], line[1])
-	}
-}
-
-// sourceKey is a source's name for CSV headers and JSON.
-func sourceKey(src ac.NoiseSource) string {
-	parts := []string{src.Name, src.Where, string(src.Kind)}
-	if src.Where == ac.InTermination {
-		parts = []string{"port", src.Name, string(src.Kind)}
-	}
-	if src.Where == ac.InResistor {
-		parts = []string{src.Name, string(src.Kind)}
-	}
-	return strings.ReplaceAll(strings.Join(parts, "_"), " ", "_")
-}
-
-// writeNoiseCSV writes one row per frequency: densities, noise figure and
-// each source's contribution, with a header naming each column's unit.
-func writeNoiseCSV(w io.Writer, o *plan.NoiseRun) error {
-	r := o.Result
-	cw := csv.NewWriter(w)
-	header := []string{"frequency_Hz", "output_noise_V_per_rtHz", "input_referred_V_per_rtHz", "noise_figure_dB"}
-	if o.Detection != nil {
-		header = append(header, "nep_W_per_rtHz")
-	}
-	for _, src := range r.Sources {
-		header = append(header, sourceKey(src)+"_V2_per_Hz")
-	}
-	if err := cw.Write(header); err != nil {
-		return err
-	}
-	for i, pt := range r.Points {
-		row := []string{csvNumber(pt.FrequencyHz), csvNumber(pt.Density()), csvNumber(pt.InputReferred()), csvNumber(pt.FigureDB())}
-		if o.Detection != nil {
-			row = append(row, csvNumber(o.NEP(i)))
-		}
-		for _, c := range pt.Contributions {
-			row = append(row, csvNumber(c))
-		}
-		if err := cw.Write(row); err != nil {
-			return err
-		}
-	}
-	cw.Flush()
-	return cw.Error()
-}
-
-// csvNumber writes v in full precision, empty when it has no value.
-func csvNumber(v float64) string {
-	if math.IsNaN(v) || math.IsInf(v, 0) {
-		return ""
-	}
-	return strconv.FormatFloat(v, 'g', -1, 64)
-}
-
-// writeNoiseDensityCSV writes the data of the density figure.
-func writeNoiseDensityCSV(w io.Writer, r *ac.NoiseResult) error {
-	cw := csv.NewWriter(w)
-	if err := cw.Write([]string{"frequency_Hz", "output_noise_V_per_rtHz", "input_referred_V_per_rtHz", "noise_figure_dB"}); err != nil {
-		return err
-	}
-	for _, pt := range r.Points {
-		if err := cw.Write([]string{csvNumber(pt.FrequencyHz), csvNumber(pt.Density()), csvNumber(pt.InputReferred()), csvNumber(pt.FigureDB())}); err != nil {
-			return err
-		}
-	}
-	cw.Flush()
-	return cw.Error()
-}
-
-// writeNoiseContributionsCSV writes the data of the stacked-contributions
-// figure: each source's output density, V²/Hz, in file order, so that
-// cumulative sums across a row stack to the total.
-func writeNoiseContributionsCSV(w io.Writer, r *ac.NoiseResult) error {
-	cw := csv.NewWriter(w)
-	header := []string{"frequency_Hz"}
-	for _, src := range r.Sources {
-		header = append(header, sourceKey(src)+"_V2_per_Hz")
-	}
-	if err := cw.Write(append(header, "total_V2_per_Hz")); err != nil {
-		return err
-	}
-	for _, pt := range r.Points {
-		row := []string{csvNumber(pt.FrequencyHz)}
-		for _, c := range pt.Contributions {
-			row = append(row, csvNumber(c))
-		}
-		if err := cw.Write(append(row, csvNumber(pt.Total))); err != nil {
-			return err
-		}
-	}
-	cw.Flush()
-	return cw.Error()
-}
-
-type noiseSourceJSON struct {
-	Name        string `json:"name"`
-	Where       string `json:"where"`
-	Kind        string `json:"kind"`
-	Role        string `json:"role"`
-	Temperature number `json:"temperature,omitempty"`
-	White       number `json:"white"`   // A²/Hz
-	Flicker     number `json:"flicker"` // A², S = flicker / f
-}
-
-type noisePointJSON struct {
-	Frequency        number      `json:"frequency"`
-	OutputDensity    number      `json:"output_density"` // V/√Hz
-	InputReferred    *number     `json:"input_referred,omitempty"`
-	NoiseFigureDB    *number     `json:"noise_figure_db,omitempty"`
-	Gain             complexJSON `json:"gain"`
-	NEP              *number     `json:"nep,omitempty"`               // W/√Hz
-	VideoSensitivity *number     `json:"video_sensitivity,omitempty"` // V/W, |γ(f)|
-	Contributions    []number    `json:"contributions"`               // V²/Hz, one per source
-}
-
-type noiseBandJSON struct {
-	From                 number   `json:"from"`
-	To                   number   `json:"to"`
-	OutputRMS            number   `json:"output_rms"`
-	InputReferredRMS     *number  `json:"input_referred_rms,omitempty"`
-	AverageNoiseFigureDB *number  `json:"average_noise_figure_db,omitempty"`
-	Contributions        []number `json:"contributions"` // V², one per source
-	PerDecade            int      `json:"per_decade"`
-}
-
-type detectorJSON struct {
-	Carrier               number `json:"carrier"`
-	VoltageSensitivity    number `json:"voltage_sensitivity"` // V/W
-	VideoFrom             number `json:"video_from"`
-	VideoTo               number `json:"video_to"`
-	VideoNoiseRMS         number `json:"video_noise_rms"`
-	NEP                   number `json:"nep"` // W/√Hz at nep_frequency
-	NEPFrequency          number `json:"nep_frequency"`
-	VideoTopResponse      number `json:"video_top_response"` // |γ(f_top)/γ(0)|
-	TangentialSensitivity number `json:"tangential_sensitivity"`
-	TangentialDBm         number `json:"tangential_sensitivity_dbm"`
-}
-
-type noiseJSON struct {
-	Circuit     string            `json:"circuit"`
-	File        string            `json:"file"`
-	Temperature number            `json:"temperature"`
-	Input       *string           `json:"input"`
-	Output      string            `json:"output"`
-	OutputPort  bool              `json:"output_is_port"`
-	Sources     []noiseSourceJSON `json:"sources"`
-	Points      []noisePointJSON  `json:"points"`
-	Band        *noiseBandJSON    `json:"band,omitempty"`
-	Detector    *detectorJSON     `json:"detector,omitempty"`
-}
-
-func noiseDocument(s *noiseSetup, o *plan.NoiseRun) *noiseJSON {
-	r := o.Result
-	d := &noiseJSON{Circuit: s.c.Name, File: s.c.File, Temperature: number(r.TemperatureK), Output: s.plan.OutputName,
-		OutputPort: r.Settings.Output.Port >= 0, Sources: []noiseSourceJSON{}, Points: []noisePointJSON{}}
-	if r.Settings.Input >= 0 {
-		name := s.plan.InputName
-		d.Input = &name
-	}
-	for _, src := range r.Sources {
-		j := noiseSourceJSON{Name: src.Name, Where: src.Where, Kind: string(src.Kind), Role: report.NoiseRole(r, src),
-			White: number(src.White), Flicker: number(src.Flicker)}
-		if src.Kind == ac.ThermalNoise {
-			j.Temperature = number(src.TemperatureK)
-		}
-		d.Sources = append(d.Sources, j)
-	}
-	for i, pt := range r.Points {
-		j := noisePointJSON{Frequency: number(pt.FrequencyHz), OutputDensity: number(pt.Density()), Gain: complexJSON(pt.Gain),
-			Contributions: make([]number, len(pt.Contributions))}
-		if r.Settings.Input >= 0 {
-			j.InputReferred, j.NoiseFigureDB = ptr(pt.InputReferred()), ptr(pt.FigureDB())
-		}
-		if o.Detection != nil {
-			j.NEP = ptr(o.NEP(i))
-			j.VideoSensitivity = ptr(cmplx.Abs(o.Video[i]))
-		}
-		for k, c := range pt.Contributions {
-			j.Contributions[k] = number(c)
-		}
-		d.Points = append(d.Points, j)
-	}
-	if b := o.Band; b != nil {
-		j := &noiseBandJSON{From: number(b.FromHz), To: number(b.ToHz), OutputRMS: number(b.RMS()), PerDecade: b.PerDecade,
-			Contributions: make([]number, len(b.Contributions))}
-		if r.Settings.Input >= 0 {
-			j.InputReferredRMS, j.AverageNoiseFigureDB = ptr(b.InputReferredRMS()), ptr(10*math.Log10(b.AverageFactor()))
-		}
-		for k, c := range b.Contributions {
-			j.Contributions[k] = number(c)
-		}
-		d.Band = j
-	}
-	if det := o.Detection; det != nil {
-		d.Detector = &detectorJSON{Carrier: number(det.CarrierHz), VoltageSensitivity: number(det.Sensitivity),
-			VideoFrom: number(det.Video.FromHz), VideoTo: number(det.Video.ToHz), VideoNoiseRMS: number(det.Video.RMS()),
-			NEP: number(det.NEP), NEPFrequency: number(det.SpotHz), VideoTopResponse: number(det.TopResponse), TangentialSensitivity: number(det.TangentialW), TangentialDBm: number(det.TangentialDBm())}
-	}
-	return d
 }

@@ -93,12 +93,12 @@ func (g *fileGuard) writeDistortionPlots(dir string, s *distortionSetup, e *ac.E
 	return g.writeFigures(dir, append(figs, extra...))
 }
 
-func (g *fileGuard) writeDistortionFrequencyPlot(dir string, rows []frequencyRow) error {
+func (g *fileGuard) writeDistortionFrequencyPlot(dir string, rows []report.FrequencyRow) error {
 	var f []float64
 	var est []*ac.Estimate
 	for _, r := range rows {
-		f = append(f, r.f)
-		est = append(est, r.est)
+		f = append(f, r.FrequencyHz)
+		est = append(est, r.Estimate)
 	}
 	return g.writeFigures(dir, []*plots.Figure{plots.DistortionVsFrequency(f, est)})
 }

@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"strings"
 
+	"qpoint/ac"
 	"qpoint/ac/plan"
 	"qpoint/bias/circuit"
 )
@@ -36,16 +37,23 @@ func planError(err error) error {
 // gridRequest reads the grid flags into a plan request.
 func gridRequest(from, to string, perDecade, points int) (plan.Grid, error) {
 	g := plan.Grid{PerDecade: perDecade, Points: points}
-	var err error
-	if from != "" {
-		if g.FromHz, err = circuit.ParseBounded(from, circuit.Frequency); err != nil {
-			return g, inputError(fmt.Errorf("flag --from: %w", err))
+	// A zero in the request means "the file's": a zero given here is
+	// refused, not taken as no value.
+	for _, f := range []struct {
+		flag, text string
+		dst        *float64
+	}{{"from", from, &g.FromHz}, {"to", to, &g.ToHz}} {
+		if f.text == "" {
+			continue
 		}
-	}
-	if to != "" {
-		if g.ToHz, err = circuit.ParseBounded(to, circuit.Frequency); err != nil {
-			return g, inputError(fmt.Errorf("flag --to: %w", err))
+		v, err := circuit.ParseBounded(f.text, circuit.Frequency)
+		if err == nil {
+			err = ac.CheckFrequency(v)
 		}
+		if err != nil {
+			return g, inputError(fmt.Errorf("flag --%s: %w", f.flag, err))
+		}
+		*f.dst = v
 	}
 	return g, nil
 }

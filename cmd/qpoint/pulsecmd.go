@@ -1,24 +1,20 @@
 package main
 
 import (
-	"encoding/csv"
 	"errors"
 	"fmt"
 	"io"
 	"math"
-	"strconv"
-	"strings"
 
 	"github.com/spf13/cobra"
 
-	"qpoint/ac"
 	"qpoint/ac/plan"
 	"qpoint/ac/transient"
 	"qpoint/bias"
 	"qpoint/bias/circuit"
-	"qpoint/bias/si"
 	"qpoint/plots"
 	"qpoint/plots/report"
+	"qpoint/plots/results"
 	"qpoint/smallsignal"
 )
 
@@ -227,7 +223,7 @@ func runPulse(cmd *cobra.Command, path string, fl *pulseFlags) error {
 		}
 	}
 	if fl.csvPath != "" {
-		if err := g.writeFileAtomic(fl.csvPath, func(w io.Writer) error { return writePulseCSV(w, s, res) }); err != nil {
+		if err := g.writeFileAtomic(fl.csvPath, func(w io.Writer) error { return results.WritePulseCSV(w, s.plan, res) }); err != nil {
 			return err
 		}
 	}
@@ -237,14 +233,14 @@ func runPulse(cmd *cobra.Command, path string, fl *pulseFlags) error {
 		}
 	}
 	if fl.asJSON {
-		if err := writeJSON(out, pulseJSONOf(s, res, runErr)); err != nil {
+		if err := results.Write(out, results.PulseOf(s.c, s.plan, res, runErr)); err != nil {
 			return err
 		}
 	} else {
-		writePulseHeader(out, s, res)
-		writePulseFigures(out, s, res)
-		writePulseStress(out, res)
-		writePulseCautions(out, res.Cautions)
+		report.WritePulseHeader(out, s.nw, s.plan, res)
+		report.WritePulseFigures(out, s.nw, res)
+		report.WritePulseStress(out, res)
+		report.WritePulseCautions(out, res.Cautions)
 		if fl.plotsDir != "" {
 			fmt.Fprintf(out, "figures written to %s\n", fl.plotsDir)
 		}
@@ -258,101 +254,14 @@ func runPulse(cmd *cobra.Command, path string, fl *pulseFlags) error {
 	return nil
 }
 
-// writePulseHeader prints what was run.
-func writePulseHeader(w io.Writer, s *pulseSetup, res *transient.PulseResult) {
-	p := res.Settings.Pulse
-	z0 := s.c.Ports[s.settings.Input].Impedance
-	fmt.Fprintf(w, "%s\n", s.c.Name)
-	fmt.Fprintf(w, "  file         %s\n", s.c.File)
-	writeOverrides(w, s.c)
-	fmt.Fprintf(w, "  bias         %s\n", report.BiasLine(s.p))
-	fmt.Fprintf(w, "  pulse        port %s, %s carrier at %.2f dBm available (EMF %s peak behind %s)\n", s.inName,
-		si.Format(p.CarrierHz, "Hz", 6), s.levelDBm, si.Format(p.CarrierEMF, "V", 4), si.Format(z0, "Ω", 4))
-	train := "a single pulse"
-	if p.Period > 0 {
-		train = fmt.Sprintf("%d pulses every %s", max(p.Count, 1), si.Format(p.Period, "s", 4))
-	}
-	fmt.Fprintf(w, "               width %s (50 %% points), rise %s, fall %s (10-90 %%), %s starting at %s\n",
-		si.Format(p.Width, "s", 4), si.Format(p.Rise, "s", 3), si.Format(p.Fall, "s", 3), train, si.Format(p.Start(0), "s", 3))
-	if p.ProbeEMF != 0 {
-		fmt.Fprintf(w, "  probe        %.1f dBm at %s, for the recovery\n", ac.EMFToDBm(p.ProbeEMF, z0), si.Format(p.ProbeHz, "Hz", 6))
-	}
-	kind := "node"
-	if s.settings.Output.Port >= 0 {
-		kind = fmt.Sprintf("port, %s", si.Format(s.c.Ports[s.settings.Output.Port].Impedance, "Ω", 4))
-	}
-	fmt.Fprintf(w, "  output       %s (%s), read as a %s\n", s.outName, kind, res.Kind)
-	if r := res.Run; r != nil && len(r.Times) > 0 {
-		st := r.Stats
-		fmt.Fprintf(w, "  run          %s from 0 to %s: %d steps (%d rejected, %d fallbacks), %.2f Newton iterations per stage, %.2f s; energy account closes to %.1e\n",
-			st.Method, si.Format(r.Times[len(r.Times)-1], "s", 4), st.Accepted, st.Rejected, st.Fallbacks,
-			float64(st.NewtonIterations)/math.Max(1, float64(2*(st.Accepted+st.Rejected))), st.Runtime.Seconds(), r.Energy.Imbalance)
-	}
-}
-
-// writePulseFigures prints the limiter's or the detector's figures of the
-// last pulse, with each pulse's when there are several.
-func writePulseFigures(w io.Writer, s *pulseSetup, res *transient.PulseResult) {
-	if len(res.Pulses) == 0 {
-		fmt.Fprintln(w, "The run ended before the pulse did: no figures.")
-		return
-	}
-	for _, t := range report.PulseTables(s.nw, res) {
-		t.WriteText(w)
-	}
-}
-
-// writePulseStress prints each diode's extremes.
-func writePulseStress(w io.Writer, res *transient.PulseResult) {
-	report.PulseStressTable(res).WriteText(w)
-}
-
-// writePulseCautions prints the typed cautions' messages.
-func writePulseCautions(w io.Writer, cs []transient.Caution) {
-	if len(cs) == 0 {
-		return
-	}
-	fmt.Fprintf(w, "\nCautions\n")
-	for _, c := range cs {
-		fmt.Fprintf(w, "  ! %s\n", c.Message)
-	}
-	fmt.Fprintln(w)
-}
-
-// writePulseCSV writes every point of the run: time, the generator's EMF,
-// the output, and each diode's junction current and voltage.
-func writePulseCSV(w io.Writer, s *pulseSetup, res *transient.PulseResult) error {
-	cw := csv.NewWriter(w)
-	header := []string{"time_s", "emf_V", "output_" + s.outName + "_V"}
-	for _, d := range res.Run.Diodes {
-		header = append(header, d.Name+"_current_A", d.Name+"_junction_V")
-	}
-	if err := cw.Write(header); err != nil {
-		return err
-	}
-	g := func(v float64) string { return strconv.FormatFloat(v, 'g', -1, 64) }
-	row := make([]string, 0, len(header))
-	for i, t := range res.Run.Times {
-		row = append(row[:0], g(t), g(res.Run.EMF[i]), g(res.Output[i]))
-		for _, d := range res.Run.Diodes {
-			row = append(row, g(d.Current[i]), g(d.Junction[i]))
-		}
-		if err := cw.Write(row); err != nil {
-			return err
-		}
-	}
-	cw.Flush()
-	return cw.Error()
-}
-
 // runPulseSweep repeats the run over carrier levels and prints the figures
 // against the level.
 func runPulseSweep(cmd *cobra.Command, s *pulseSetup, fl *pulseFlags) error {
 	g := guardOf(cmd)
 	z0 := s.c.Ports[s.settings.Input].Impedance
-	from, to, step, err := parseLevelRange("sweep-level", fl.sweepLevel, z0)
+	from, to, step, err := plan.ParseLevelRange("sweep-level", fl.sweepLevel, z0)
 	if err != nil {
-		return err
+		return planError(err)
 	}
 	n := int(math.Floor((to-from)/step+1e-9)) + 1
 	if n > 200 {
@@ -386,15 +295,15 @@ func runPulseSweep(cmd *cobra.Command, s *pulseSetup, fl *pulseFlags) error {
 	}
 	out := cmd.OutOrStdout()
 	if fl.asJSON {
-		doc := pulseJSONHeader(s)
+		doc := results.PulseHead(s.plan)
 		for _, p := range pts {
-			doc.LevelSweep = append(doc.LevelSweep, pulseLevelJSONOf(p))
+			doc.LevelSweep = append(doc.LevelSweep, results.PulseLevelOf(p))
 		}
-		if err := writeJSON(out, doc); err != nil {
+		if err := results.Write(out, doc); err != nil {
 			return err
 		}
 	} else {
-		writePulseSweep(out, s, pts)
+		report.WritePulseSweep(out, s.nw, s.plan, pts)
 		if fl.plotsDir != "" {
 			fmt.Fprintf(out, "figures written to %s\n", fl.plotsDir)
 		}
@@ -403,66 +312,6 @@ func runPulseSweep(cmd *cobra.Command, s *pulseSetup, fl *pulseFlags) error {
 		return analysisError(fmt.Errorf("%d of %d levels did not run to the end; their rows show what they reached", len(pts)-ok, len(pts)))
 	}
 	return nil
-}
-
-// writePulseSweep prints the figures against the carrier level.
-func writePulseSweep(w io.Writer, s *pulseSetup, pts []transient.LevelPoint) {
-	p := s.settings.Pulse
-	fmt.Fprintf(w, "%s\n", s.c.Name)
-	fmt.Fprintf(w, "  file         %s\n", s.c.File)
-	writeOverrides(w, s.c)
-	fmt.Fprintf(w, "  bias         %s\n", report.BiasLine(s.p))
-	fmt.Fprintf(w, "  pulse        port %s, %s carrier, width %s, rise %s, fall %s; output %s\n\n", s.inName,
-		si.Format(p.CarrierHz, "Hz", 6), si.Format(p.Width, "s", 4), si.Format(p.Rise, "s", 3), si.Format(p.Fall, "s", 3), s.outName)
-	if len(pts) == 0 || pts[0].Result == nil {
-		return
-	}
-	detector := pts[0].Result.Kind == transient.Detector
-	header := []string{"level", "spike peak", "spike energy", "flat leakage", "recovery 1 dB", "recovery 3 dB"}
-	title := "Limiter figures against the carrier level"
-	if detector {
-		header = []string{"level", "video change", "steady-state shift", "rise 10-90 %", "fall 90-10 %"}
-		title = "Detector figures against the carrier level"
-	}
-	if r := pts[0].Result; r != nil {
-		for _, d := range r.Diodes {
-			header = append(header, d.Name+" peak current")
-		}
-	}
-	header = append(header, "steps", "cautions")
-	t := &report.Table{Caption: title, Header: header}
-	for _, pt := range pts {
-		r := pt.Result
-		row := []string{fmt.Sprintf("%.1f dBm", pt.LevelDBm)}
-		if r == nil {
-			t.Add(append(row, pt.Err.Error())...)
-			continue
-		}
-		f := r.Figures
-		if detector {
-			row = append(row, si.Format(f.Settled, "V", 4), si.Format(r.SteadyShift, "V", 4), report.TimeOf(f.RiseTime), report.TimeOf(f.FallTime))
-		} else {
-			row = append(row, report.DBmOf(f.SpikePeak), si.Format(f.SpikeEnergy, "J", 3), report.DBmOf(f.Flat), report.RecoveryText(f.Recovery1dB, f.Recovery1dBBound), report.RecoveryText(f.Recovery3dB, f.Recovery3dBBound))
-		}
-		for _, d := range r.Diodes {
-			row = append(row, si.Format(d.PeakCurrent, "A", 3))
-		}
-		kinds := map[string]bool{}
-		var names []string
-		for _, c := range r.Cautions {
-			if k := c.Kind.String(); !kinds[k] {
-				kinds[k] = true
-				names = append(names, k)
-			}
-		}
-		if pt.Err != nil {
-			names = append(names, "stopped")
-		}
-		row = append(row, strconv.Itoa(r.Run.Stats.Accepted), strings.Join(names, ", "))
-		t.Add(row...)
-	}
-	t.WriteText(w)
-	fmt.Fprintf(w, "  cautions name their kinds; run one level (--level) to read them in full\n\n")
 }
 
 // requestError names the flag or file key of a request the transient

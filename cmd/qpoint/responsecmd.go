@@ -1,12 +1,8 @@
 package main
 
 import (
-	"bufio"
-	"encoding/csv"
-	"encoding/json"
 	"fmt"
 	"io"
-	"math"
 	"path/filepath"
 	"strconv"
 	"strings"
@@ -14,20 +10,15 @@ import (
 	"github.com/spf13/cobra"
 
 	"qpoint/ac"
+	"qpoint/ac/plan"
 	"qpoint/ac/touchstone"
 	"qpoint/bias"
 	"qpoint/bias/circuit"
 	"qpoint/bias/si"
 	"qpoint/plots"
 	"qpoint/plots/report"
+	"qpoint/plots/results"
 	"qpoint/smallsignal"
-)
-
-// Defaults when neither flags nor the file's analysis section give a sweep.
-const (
-	defaultFromHz    = 1e6
-	defaultToHz      = 10e9
-	defaultPerDecade = 20
 )
 
 type responseFlags struct {
@@ -82,75 +73,6 @@ else 1 MHz to 10 GHz at 20 points per decade.`,
 	f.StringVar(&fl.plotsDir, "plots", "", "write the response figures (SVG and PNG) into this directory")
 	f.IntVar(&fl.rows, "rows", 9, "rows in the printed table")
 	return cmd
-}
-
-// sweepGrid resolves the frequency grid from flags, then the file, then
-// the defaults.
-func sweepGrid(c *circuit.Circuit, fl *responseFlags) ([]float64, error) {
-	from, to := defaultFromHz, defaultToHz
-	perDecade, points := defaultPerDecade, 0
-	if r := c.Analysis.Response; r.Set {
-		from, to = r.FromHz, r.ToHz
-		perDecade, points = r.PerDecade, r.Points
-	}
-	if fl.from != "" {
-		v, err := circuit.ParseBounded(fl.from, circuit.Frequency)
-		if err != nil {
-			return nil, inputError(fmt.Errorf("flag --from: %w", err))
-		}
-		from = v
-	}
-	if fl.to != "" {
-		v, err := circuit.ParseBounded(fl.to, circuit.Frequency)
-		if err != nil {
-			return nil, inputError(fmt.Errorf("flag --to: %w", err))
-		}
-		to = v
-	}
-	if fl.perDecade != 0 && fl.points != 0 {
-		return nil, inputError(fmt.Errorf("flags --per-decade and --points: give one grid, not both"))
-	}
-	if fl.perDecade != 0 {
-		perDecade, points = fl.perDecade, 0
-	}
-	if fl.points != 0 {
-		perDecade, points = 0, fl.points
-	}
-	var grid []float64
-	var err error
-	if points > 0 {
-		grid, err = ac.LinearGrid(from, to, points)
-	} else {
-		grid, err = ac.LogGrid(from, to, perDecade)
-	}
-	if err != nil {
-		return nil, inputError(fmt.Errorf("flags --from/--to/--per-decade/--points: %w; accepted: 1mHz to 1THz, rising, at least one point", err))
-	}
-	return grid, nil
-}
-
-func parseReference(s string, ports int) ([]float64, error) {
-	if s == "" {
-		return nil, nil
-	}
-	parts := strings.Split(s, ",")
-	var z []float64
-	for _, p := range parts {
-		v, err := circuit.ParseBounded(strings.TrimSpace(p), circuit.Resistance)
-		if err != nil || !(v > 0) {
-			return nil, inputError(fmt.Errorf("flag --reference: `%s` is not a positive resistance; accepted: ohms, one value or one per port, e.g. 50 or 50,75", p))
-		}
-		z = append(z, v)
-	}
-	if len(z) == 1 {
-		for len(z) < ports {
-			z = append(z, z[0])
-		}
-	}
-	if len(z) != ports {
-		return nil, inputError(fmt.Errorf("flag --reference: %d impedances for %d ports; accepted: one value for all ports or one per port", len(z), ports))
-	}
-	return z, nil
 }
 
 func solveWithTemperature(c *circuit.Circuit, temperature string) (*bias.Point, error) {
@@ -209,9 +131,9 @@ func runResponse(cmd *cobra.Command, path string, fl *responseFlags) error {
 		return err
 	}
 	if fl.asJSON {
-		return writeJSON(out, responseDocument(r, s.c))
+		return results.Write(out, results.ResponseOf(r, s.c))
 	}
-	writeResponseTable(out, s.c, s.p, r, s.grid, fl.rows)
+	report.WriteResponse(out, s.c, s.p, r, s.grid, fl.rows)
 	for _, x := range []struct{ what, path string }{{"CSV", fl.csvPath}, {"Touchstone", fl.touchstone}, {"figures", fl.plotsDir}} {
 		if x.path != "" {
 			fmt.Fprintf(out, "%s written to %s\n", x.what, x.path)
@@ -241,11 +163,15 @@ func resolveResponse(cmd *cobra.Command, g *fileGuard, path string, fl *response
 		}
 	}
 	s := &responseSetup{c: c}
-	if s.grid, err = sweepGrid(c, fl); err != nil {
+	grid, err := gridRequest(fl.from, fl.to, fl.perDecade, fl.points)
+	if err != nil {
 		return nil, err
 	}
-	if s.ref, err = parseReference(fl.reference, len(c.Ports)); err != nil {
-		return nil, err
+	if s.grid, err = plan.ResponseGrid(c, grid); err != nil {
+		return nil, planError(err)
+	}
+	if s.ref, err = plan.ParseReference(fl.reference, len(c.Ports)); err != nil {
+		return nil, planError(err)
 	}
 	if s.format, err = parseTouchstoneFormat(fl.format); err != nil {
 		return nil, err
@@ -285,7 +211,7 @@ func heldResponse(g *fileGuard, s *responseSetup, fl *responseFlags) (*ac.Respon
 		return nil, err
 	}
 	if fl.csvPath != "" {
-		if err := g.writeFileAtomic(fl.csvPath, func(w io.Writer) error { return writeResponseCSV(w, r) }); err != nil {
+		if err := g.writeFileAtomic(fl.csvPath, func(w io.Writer) error { return results.WriteResponseCSV(w, r) }); err != nil {
 			return nil, err
 		}
 	}
@@ -300,100 +226,6 @@ func heldResponse(g *fileGuard, s *responseSetup, fl *responseFlags) (*ac.Respon
 		return nil, err
 	}
 	return r, nil
-}
-
-// writeResponseTable prints the header and the response at up to rows of
-// the sweep's frequencies grid; r holds either every point or just those
-// rows (streamResponse).
-func writeResponseTable(w io.Writer, c *circuit.Circuit, p *bias.Point, r *ac.Response, grid []float64, rows int) {
-	fmt.Fprintf(w, "%s\n", c.Name)
-	fmt.Fprintf(w, "  file         %s\n", c.File)
-	fmt.Fprintf(w, "  bias         %s\n", report.BiasLine(p))
-	var ports []string
-	for _, port := range r.Ports {
-		ports = append(ports, fmt.Sprintf("%s (%s)", port.Name, si.Format(port.Impedance, "Ω", 4)))
-	}
-	fmt.Fprintf(w, "  ports        %s\n", strings.Join(ports, ", "))
-	first, last := grid[0], grid[len(grid)-1]
-	fmt.Fprintf(w, "  sweep        %d points, %s to %s\n", len(grid), si.Format(first, "Hz", 4), si.Format(last, "Hz", 4))
-	if len(c.Distributed) > 0 {
-		fmt.Fprintf(w, "  lines        %s\n", report.LineSummary(report.LineParts(c, designFrequency(c))))
-		fmt.Fprintf(w, "  solved by    %s: %s\n", r.Stats.Engine, "lines and blocks are not G + sC, so every point is factored")
-	}
-
-	report.ResponseTable(r, rows).WriteText(w)
-	name1 := r.Ports[0].Name
-	if len(r.Probes) > 0 {
-		fmt.Fprintf(w, "  probes: node voltage for a 1 V (peak) EMF behind port %s's reference impedance, in dB re 1 V\n", name1)
-	}
-	fmt.Fprintln(w)
-}
-
-// writeResponseCSV writes one row per frequency with a header naming each
-// column and its unit.
-func writeResponseCSV(w io.Writer, r *ac.Response) error {
-	rw, err := newResponseCSV(w, r.Ports, r.Probes)
-	if err != nil {
-		return err
-	}
-	for _, pt := range r.Points {
-		if err := rw.write(pt); err != nil {
-			return err
-		}
-	}
-	return rw.close()
-}
-
-// responseCSV writes a response as CSV a point at a time.
-type responseCSV struct {
-	cw  *csv.Writer
-	row []string
-}
-
-// newResponseCSV writes the Header: the frequency, each S-parameter's
-// parts, each port's input impedance, each probe's voltage and the group
-// delay, with units.
-func newResponseCSV(w io.Writer, ports []ac.PortInfo, probes []string) (*responseCSV, error) {
-	cw := csv.NewWriter(w)
-	header := []string{"frequency_Hz"}
-	n := len(ports)
-	for i := 0; i < n; i++ {
-		for j := 0; j < n; j++ {
-			header = append(header, fmt.Sprintf("S%d%d_re", i+1, j+1), fmt.Sprintf("S%d%d_im", i+1, j+1))
-		}
-	}
-	for i := 0; i < n; i++ {
-		header = append(header, fmt.Sprintf("Zin%d_re_ohm", i+1), fmt.Sprintf("Zin%d_im_ohm", i+1))
-	}
-	for _, p := range probes {
-		header = append(header, fmt.Sprintf("probe_%s_re_V", p), fmt.Sprintf("probe_%s_im_V", p))
-	}
-	header = append(header, "group_delay_s")
-	return &responseCSV{cw: cw}, cw.Write(header)
-}
-
-func (rw *responseCSV) write(pt ac.Point) error {
-	g := func(v float64) string { return strconv.FormatFloat(v, 'g', -1, 64) }
-	row := append(rw.row[:0], g(pt.FrequencyHz))
-	for i := range pt.S {
-		for _, s := range pt.S[i] {
-			row = append(row, g(real(s)), g(imag(s)))
-		}
-	}
-	for _, z := range pt.InputImpedance {
-		row = append(row, g(real(z)), g(imag(z)))
-	}
-	for _, v := range pt.Probes {
-		row = append(row, g(real(v)), g(imag(v)))
-	}
-	row = append(row, g(pt.GroupDelay))
-	rw.row = row
-	return rw.cw.Write(row)
-}
-
-func (rw *responseCSV) close() error {
-	rw.cw.Flush()
-	return rw.cw.Error()
 }
 
 // streamResponse sweeps the circuit over its grid writing every point
@@ -460,9 +292,9 @@ func streamResponse(g *fileGuard, s *responseSetup, fl *responseFlags, jsonOut i
 // nil one is not written.
 type responseSinks struct {
 	probes []string
-	csv    *responseCSV
+	csv    *results.ResponseCSV
 	ts     *touchstone.Writer
-	json   *responseJSONWriter
+	json   *results.ResponseWriter
 }
 
 // openResponseSinks starts each stream that has a writer: its header.
@@ -470,7 +302,7 @@ func openResponseSinks(r *ac.Response, s *responseSetup, csvOut, touchstoneOut, 
 	k := responseSinks{probes: r.Probes}
 	var err error
 	if csvOut != nil {
-		if k.csv, err = newResponseCSV(csvOut, r.Ports, r.Probes); err != nil {
+		if k.csv, err = results.NewResponseCSV(csvOut, r.Ports, r.Probes); err != nil {
 			return nil, err
 		}
 	}
@@ -480,7 +312,7 @@ func openResponseSinks(r *ac.Response, s *responseSetup, csvOut, touchstoneOut, 
 		}
 	}
 	if jsonOut != nil {
-		if k.json, err = newResponseJSONWriter(jsonOut, r.Ports, lineParts(s.c, nil)); err != nil {
+		if k.json, err = results.NewResponseWriter(jsonOut, r.Ports, results.LinePartsOf(s.c, nil)); err != nil {
 			return nil, err
 		}
 	}
@@ -490,12 +322,12 @@ func openResponseSinks(r *ac.Response, s *responseSetup, csvOut, touchstoneOut, 
 // write sends one point to every stream: JSON, CSV, Touchstone.
 func (k *responseSinks) write(pt ac.Point) error {
 	if k.json != nil {
-		if err := k.json.write(pt, k.probes); err != nil {
+		if err := k.json.Write(pt, k.probes); err != nil {
 			return err
 		}
 	}
 	if k.csv != nil {
-		if err := k.csv.write(pt); err != nil {
+		if err := k.csv.Write(pt); err != nil {
 			return err
 		}
 	}
@@ -509,12 +341,12 @@ func (k *responseSinks) write(pt ac.Point) error {
 // the Touchstone file's check of its point count.
 func (k *responseSinks) close(stats ac.Stats) error {
 	if k.json != nil {
-		if err := k.json.close(stats); err != nil {
+		if err := k.json.Close(stats); err != nil {
 			return err
 		}
 	}
 	if k.csv != nil {
-		if err := k.csv.close(); err != nil {
+		if err := k.csv.Close(); err != nil {
 			return err
 		}
 	}
@@ -522,175 +354,6 @@ func (k *responseSinks) close(stats ac.Stats) error {
 		return k.ts.Close()
 	}
 	return nil
-}
-
-// complexJSON encodes a complex number as [re, im], or null when either
-// part is not finite.
-type complexJSON complex128
-
-func (c complexJSON) MarshalJSON() ([]byte, error) {
-	re, im := real(c), imag(c)
-	if math.IsNaN(re) || math.IsInf(re, 0) || math.IsNaN(im) || math.IsInf(im, 0) {
-		return []byte("null"), nil
-	}
-	return []byte("[" + strconv.FormatFloat(re, 'g', -1, 64) + "," + strconv.FormatFloat(im, 'g', -1, 64) + "]"), nil
-}
-
-type orderedComplex struct {
-	keys   []string
-	values []complexJSON
-}
-
-func (o orderedComplex) MarshalJSON() ([]byte, error) {
-	var b strings.Builder
-	b.WriteByte('{')
-	for i, k := range o.keys {
-		if i > 0 {
-			b.WriteByte(',')
-		}
-		b.WriteString(strconv.Quote(k))
-		b.WriteByte(':')
-		v, _ := o.values[i].MarshalJSON()
-		b.Write(v)
-	}
-	b.WriteByte('}')
-	return []byte(b.String()), nil
-}
-
-type responsePointJSON struct {
-	Frequency      number          `json:"frequency"`
-	S              [][]complexJSON `json:"s"`
-	InputImpedance []complexJSON   `json:"input_impedance"`
-	Probes         orderedComplex  `json:"probes"`
-	GroupDelay     number          `json:"group_delay"`
-}
-
-type portJSON struct {
-	Name      string `json:"name"`
-	Impedance number `json:"impedance"`
-}
-
-type responseJSON struct {
-	Ports       []portJSON          `json:"ports"`
-	Distributed []linePartJSON      `json:"distributed,omitempty"`
-	Points      []responsePointJSON `json:"points"`
-	Solver      *solverJSON         `json:"solver"`
-}
-
-func responseDocument(r *ac.Response, c *circuit.Circuit) *responseJSON {
-	d := &responseJSON{Solver: solverJSONOf(r.Stats), Distributed: lineParts(c, nil)}
-	for _, p := range r.Ports {
-		d.Ports = append(d.Ports, portJSON{p.Name, number(p.Impedance)})
-	}
-	for _, pt := range r.Points {
-		j := responsePointJSON{Frequency: number(pt.FrequencyHz), GroupDelay: number(pt.GroupDelay)}
-		j.S, j.InputImpedance, j.Probes = networkJSON(pt.S, pt.InputImpedance, r.Probes, pt.Probes)
-		d.Points = append(d.Points, j)
-	}
-	return d
-}
-
-// networkJSON converts an S-matrix, input impedances and probe voltages to
-// their JSON forms.
-func networkJSON(s [][]complex128, zin []complex128, probeNames []string, probes []complex128) ([][]complexJSON, []complexJSON, orderedComplex) {
-	var js [][]complexJSON
-	for _, row := range s {
-		var jr []complexJSON
-		for _, v := range row {
-			jr = append(jr, complexJSON(v))
-		}
-		js = append(js, jr)
-	}
-	var jz []complexJSON
-	for _, z := range zin {
-		jz = append(jz, complexJSON(z))
-	}
-	var jp orderedComplex
-	for k, name := range probeNames {
-		if k < len(probes) {
-			jp.keys = append(jp.keys, name)
-			jp.values = append(jp.values, complexJSON(probes[k]))
-		}
-	}
-	return js, jz, jp
-}
-
-// responseJSONWriter writes the response document a point at a time, the
-// same document responseDocument builds whole.
-type responseJSONWriter struct {
-	w      *bufio.Writer
-	points int
-}
-
-func newResponseJSONWriter(w io.Writer, ports []ac.PortInfo, lines []linePartJSON) (*responseJSONWriter, error) {
-	var js []portJSON
-	for _, p := range ports {
-		js = append(js, portJSON{p.Name, number(p.Impedance)})
-	}
-	head, err := json.MarshalIndent(js, "  ", "  ")
-	if err != nil {
-		return nil, err
-	}
-	bw := bufio.NewWriter(w)
-	fmt.Fprintf(bw, "{\n  \"ports\": %s,", head)
-	if len(lines) > 0 {
-		dist, err := json.MarshalIndent(lines, "  ", "  ")
-		if err != nil {
-			return nil, err
-		}
-		fmt.Fprintf(bw, "\n  \"distributed\": %s,", dist)
-	}
-	fmt.Fprintf(bw, "\n  \"points\": [")
-	return &responseJSONWriter{w: bw}, nil
-}
-
-func (jw *responseJSONWriter) write(pt ac.Point, probes []string) error {
-	j := responsePointJSON{Frequency: number(pt.FrequencyHz), GroupDelay: number(pt.GroupDelay)}
-	j.S, j.InputImpedance, j.Probes = networkJSON(pt.S, pt.InputImpedance, probes, pt.Probes)
-	b, err := json.MarshalIndent(j, "    ", "  ")
-	if err != nil {
-		return err
-	}
-	sep := ",\n    "
-	if jw.points == 0 {
-		sep = "\n    "
-	}
-	jw.points++
-	jw.w.WriteString(sep)
-	_, err = jw.w.Write(b)
-	return err
-}
-
-func (jw *responseJSONWriter) close(st ac.Stats) error {
-	if jw.points > 0 {
-		jw.w.WriteString("\n  ")
-	}
-	solver, err := json.MarshalIndent(solverJSONOf(st), "  ", "  ")
-	if err != nil {
-		return err
-	}
-	fmt.Fprintf(jw.w, "],\n  \"solver\": %s\n}\n", solver)
-	return jw.w.Flush()
-}
-
-// solverJSON says which engine solved a sweep's points: "LU" or the
-// reduction form, the points each took, and the forms tried and refused
-// by their accuracy check.
-type solverJSON struct {
-	Engine        string   `json:"engine"`
-	ReducedPoints int      `json:"reduced_points"`
-	LUPoints      int      `json:"lu_points"`
-	Refused       []string `json:"refused"`
-	// Elements names the lines and blocks that kept the sweep on the LU.
-	Elements []string `json:"elements,omitempty"`
-}
-
-func solverJSONOf(st ac.Stats) *solverJSON {
-	j := &solverJSON{Engine: string(st.Engine), ReducedPoints: st.Reduced, LUPoints: st.LU, Refused: []string{}, Elements: st.Elements}
-	for _, e := range st.Refused {
-		j.Refused = append(j.Refused, string(e))
-	}
-	return j
 }
 
 // maxHeldSweepBytes bounds the memory a sweep held whole (for figures)

@@ -2,17 +2,12 @@ package main
 
 import (
 	"fmt"
-	"io"
-	"math"
 	"strings"
 
 	"github.com/spf13/pflag"
 
-	"qpoint/ac"
 	"qpoint/ac/balance"
 	"qpoint/ac/steady"
-	"qpoint/plots"
-	"qpoint/plots/report"
 )
 
 // steadyFlags choose how distortion solves the steady state.
@@ -69,91 +64,4 @@ func (fl *steadyFlags) steadyMethods(s *distortionSetup) (search, wave steady.Me
 		}
 	}
 	return m, w, nil
-}
-
-// productJSON is one mixing product of the two-tone waveform.
-type productJSON struct {
-	Orders    [2]int `json:"orders"`
-	Frequency number `json:"frequency"`
-	Amplitude number `json:"amplitude"`
-	Phase     number `json:"phase"`
-}
-
-// addTwoTone puts the two-tone steady state's products into the waveform
-// document.
-func (j *waveformJSON) addTwoTone(st *steady.State) {
-	j.IM2dBc = ptr(st.IM2dBc())
-	j.IM3dBc = ptr(st.IM3dBc())
-	j.Products = []productJSON{}
-	for _, p := range st.Products {
-		j.Products = append(j.Products, productJSON{p.Orders, number(p.FrequencyHz), number(p.Amplitude), number(p.PhaseDeg)})
-	}
-}
-
-func writeTwoTone(w io.Writer, st *steady.State, est *ac.Estimate) {
-	report.TwoToneTable(st, est).WriteText(w)
-	if note := report.TruncationNote(st); note != "" {
-		fmt.Fprintf(w, "  %s\n", note)
-	}
-	var parts []string
-	for _, c := range []struct {
-		name     string
-		m, n     int
-		product  ac.Product
-		waveform float64
-		estimate float64
-	}{{"IM3", 2, -1, ac.IM3, st.IM3dBc(), est.IM3dBc()}, {"IM2", -1, 1, ac.IM2Diff, st.IM2dBc(), est.IM2dBc()}} {
-		p, ok := st.Product(c.m, c.n)
-		if !ok || est.Balanced(c.product) || p.Amplitude <= st.NoiseFloor {
-			parts = append(parts, c.name+" not compared (cancelled by symmetry or below the floor)")
-			continue
-		}
-		parts = append(parts, fmt.Sprintf("%s %+.3f dB", c.name, c.waveform-c.estimate))
-	}
-	fmt.Fprintf(w, "  waveform against estimate: %s\n", strings.Join(parts, ", "))
-}
-
-func writeTwoToneSweep(w io.Writer, pts []steady.LevelPoint, ip *steady.Intercept, ipErr error, est *ac.Estimate) {
-	report.TwoToneSweepTable(pts).WriteText(w)
-	if ipErr != nil {
-		fmt.Fprintf(w, "  no measured intercept: %v\n", ipErr)
-		return
-	}
-	fmt.Fprintf(w, "  measured intercept: IIP3 %.2f dBm", ip.IIP3DBm)
-	if !math.IsNaN(ip.OIP3DBm) {
-		fmt.Fprintf(w, ", OIP3 %.2f dBm", ip.OIP3DBm)
-	}
-	fmt.Fprintf(w, " (lines of slope 1 and 3 through %.1f to %.1f dBm, %d levels; IM3 rises %.3f dB/dB there)\n",
-		ip.FromDBm, ip.ToDBm, ip.Levels, ip.Slope)
-	fmt.Fprintf(w, "  estimate:           IIP3 %.2f dBm", est.IIP3dBm())
-	if o, ok := est.OIP3dBm(); ok {
-		fmt.Fprintf(w, ", OIP3 %.2f dBm", o)
-	}
-	fmt.Fprintln(w)
-}
-
-// interceptJSON is the measured-style intercept of a two-tone sweep.
-type interceptJSON struct {
-	IIP3DBm     number  `json:"iip3_dbm"`
-	OIP3DBm     *number `json:"oip3_dbm"`
-	Slope       number  `json:"im3_slope_db_per_db"`
-	FromDBm     number  `json:"from_dbm"`
-	ToDBm       number  `json:"to_dbm"`
-	LevelsFound int     `json:"levels_used"`
-}
-
-func interceptJSONOf(ip *steady.Intercept) *interceptJSON {
-	j := &interceptJSON{IIP3DBm: number(ip.IIP3DBm), Slope: number(ip.Slope), FromDBm: number(ip.FromDBm), ToDBm: number(ip.ToDBm), LevelsFound: ip.Levels}
-	if !math.IsNaN(ip.OIP3DBm) {
-		j.OIP3DBm = ptr(ip.OIP3DBm)
-	}
-	return j
-}
-
-// twoToneFigures is the two-tone spectrum, when there is a second tone.
-func twoToneFigures(two *steady.State, est *ac.Estimate) []*plots.Figure {
-	if two == nil {
-		return nil
-	}
-	return []*plots.Figure{plots.TwoToneSpectrum(two, est)}
 }

@@ -1,23 +1,19 @@
 package main
 
 import (
-	"encoding/csv"
 	"errors"
 	"fmt"
 	"io"
-	"math"
-	"strconv"
-	"strings"
 	"time"
 
 	"github.com/spf13/cobra"
 
-	"qpoint/ac"
 	"qpoint/ac/plan"
 	"qpoint/ac/study"
 	"qpoint/bias/circuit"
 	"qpoint/plots"
 	"qpoint/plots/report"
+	"qpoint/plots/results"
 )
 
 type studyFlags struct {
@@ -125,6 +121,7 @@ type studySetup struct {
 	measure  *study.Measure
 	goal     string // "target", "maximize", "minimize" or ""
 	value    float64
+	planned  *plan.Study
 }
 
 func resolveStudy(g *fileGuard, warn io.Writer, path string, fl *studyFlags) (*studySetup, error) {
@@ -158,11 +155,11 @@ func resolveStudyFor(c *circuit.Circuit, fl *studyFlags) (*studySetup, error) {
 		req.Second = &plan.AxisRequest{Vary: fl.vary2, From: fl.from2, To: fl.to2, Steps: fl.steps2, Log: fl.log2}
 	}
 	var err error
-	if req.FrequenciesHz, err = frequencyList("frequencies", fl.frequencies); err != nil {
-		return nil, err
+	if req.FrequenciesHz, err = plan.ParseFrequencies("frequencies", fl.frequencies); err != nil {
+		return nil, planError(err)
 	}
-	if req.DistortionHz, err = frequencyList("frequency", fl.distortionFrequency); err != nil {
-		return nil, err
+	if req.DistortionHz, err = plan.ParseFrequencies("frequency", fl.distortionFrequency); err != nil {
+		return nil, planError(err)
 	}
 	if fl.level != "" {
 		lv, err := circuit.ParseLevel(fl.level)
@@ -172,9 +169,9 @@ func resolveStudyFor(c *circuit.Circuit, fl *studyFlags) (*studySetup, error) {
 		req.Level = &lv
 	}
 	if fl.videoBandwidth != "" {
-		lo, hi, err := parseBand("video-bandwidth", fl.videoBandwidth, plan.DefaultVideoFromHz)
+		lo, hi, err := plan.ParseBand("video-bandwidth", fl.videoBandwidth, plan.DefaultVideoFromHz)
 		if err != nil {
-			return nil, err
+			return nil, planError(err)
 		}
 		req.VideoBandHz = [2]float64{lo, hi}
 	}
@@ -202,29 +199,9 @@ func resolveStudyFor(c *circuit.Circuit, fl *studyFlags) (*studySetup, error) {
 	if err != nil {
 		return nil, planError(err)
 	}
-	s := &studySetup{c: c, settings: st.Settings, measure: st.Measure, value: st.Value}
+	s := &studySetup{c: c, settings: st.Settings, measure: st.Measure, value: st.Value, planned: st}
 	s.goal = map[plan.GoalKind]string{plan.Target: "target", plan.Maximize: "maximize", plan.Minimize: "minimize"}[st.Goal]
 	return s, nil
-}
-
-// frequencyList reads a comma-separated list of frequencies given to flag;
-// nil for none.
-func frequencyList(flag, text string) ([]float64, error) {
-	if text == "" {
-		return nil, nil
-	}
-	var out []float64
-	for _, t := range strings.Split(text, ",") {
-		f, err := circuit.ParseBounded(strings.TrimSpace(t), circuit.Frequency)
-		if err == nil {
-			err = ac.CheckFrequency(f)
-		}
-		if err != nil {
-			return nil, inputError(fmt.Errorf("flag --%s: %w", flag, err))
-		}
-		out = append(out, f)
-	}
-	return out, nil
 }
 
 func runStudy(cmd *cobra.Command, path string, fl *studyFlags) error {
@@ -271,7 +248,7 @@ func runStudy(cmd *cobra.Command, path string, fl *studyFlags) error {
 	cols := report.StudyColumns(r)
 	var figs []*plots.Figure
 	if fl.plotsDir != "" {
-		if figs, err = studyPlots(r, fl.show, solutionMarks(s, sol)...); err != nil {
+		if figs, err = studyPlots(r, fl.show, report.SolutionMarks(s.planned, sol)...); err != nil {
 			return err
 		}
 	}
@@ -280,7 +257,7 @@ func runStudy(cmd *cobra.Command, path string, fl *studyFlags) error {
 		return err
 	}
 	if fl.csvPath != "" {
-		if err := g.writeFileAtomic(fl.csvPath, func(w io.Writer) error { return writeStudyCSV(w, r, cols) }); err != nil {
+		if err := g.writeFileAtomic(fl.csvPath, func(w io.Writer) error { return results.WriteStudyCSV(w, r, cols) }); err != nil {
 			return err
 		}
 	}
@@ -291,11 +268,11 @@ func runStudy(cmd *cobra.Command, path string, fl *studyFlags) error {
 	}
 	out := cmd.OutOrStdout()
 	if fl.asJSON {
-		return writeJSON(out, studyDocument(r, cols, s, sol))
+		return results.Write(out, results.StudyOf(r, cols, s.planned, sol))
 	}
-	writeStudyTable(out, r, cols, elapsed, failed)
+	report.WriteStudy(out, r, cols, elapsed, failed)
 	if sol != nil {
-		writeSolution(out, s, r, sol)
+		report.WriteSolution(out, s.planned, r, sol)
 	}
 	for _, x := range []struct{ what, path string }{{"CSV", fl.csvPath}, {"figures", fl.plotsDir}} {
 		if x.path != "" {
@@ -303,114 +280,6 @@ func runStudy(cmd *cobra.Command, path string, fl *studyFlags) error {
 		}
 	}
 	return nil
-}
-
-func writeStudyCSV(w io.Writer, r *study.Result, cols []report.StudyColumn) error {
-	cw := csv.NewWriter(w)
-	var header []string
-	for _, c := range cols {
-		header = append(header, c.Key)
-	}
-	header = append(header, "newton_iterations", "error")
-	if err := cw.Write(header); err != nil {
-		return err
-	}
-	for i := range r.Steps {
-		st := &r.Steps[i]
-		var row []string
-		for k, c := range cols {
-			if st.Err != nil && k >= report.AxisCount(r) {
-				row = append(row, "")
-				continue
-			}
-			row = append(row, strconv.FormatFloat(c.Get(st), 'g', -1, 64))
-		}
-		e := ""
-		if st.Err != nil {
-			e = st.Err.Error()
-		}
-		row = append(row, strconv.Itoa(st.Iterations), e)
-		if err := cw.Write(row); err != nil {
-			return err
-		}
-	}
-	cw.Flush()
-	return cw.Error()
-}
-
-func writeStudyTable(w io.Writer, r *study.Result, cols []report.StudyColumn, elapsed time.Duration, failed int) {
-	c := r.Circuit
-	fmt.Fprintf(w, "%s\n", c.Name)
-	fmt.Fprintf(w, "  file         %s\n", c.File)
-	writeOverrides(w, c)
-	what := r.Settings.Axis.Vary.Text
-	if r.Settings.Second != nil {
-		n2, _ := report.AxisHeader(r.Settings.Second, r.Settings.SecondIsFrequency)
-		what += " × " + n2
-	}
-	fmt.Fprintf(w, "  study        %s, %d steps in %s, %d Newton iterations\n", what, len(r.Steps), elapsed.Round(time.Millisecond), r.Newton)
-	if failed > 0 {
-		fmt.Fprintf(w, "  ! %d steps could not be solved; their rows are blank\n", failed)
-	}
-	report.StudyTable(r, cols).WriteText(w)
-	warned := map[string]bool{}
-	for i := range r.Steps {
-		for _, x := range r.Steps[i].Warnings {
-			key := x.Part + x.Kind.String()
-			if !warned[key] {
-				warned[key] = true
-				fmt.Fprintf(w, "  ! %s at %s = %s: %s\n", x.Part, r.Settings.Axis.Vary.Text, report.FormatCell(r.Steps[i].Values[0], r.Settings.Axis.Vary.Quantity.Unit()), x.Message)
-			}
-		}
-	}
-	fmt.Fprintln(w)
-}
-
-func writeSolution(w io.Writer, s *studySetup, r *study.Result, sol *study.Solution) {
-	unit := r.Settings.Axis.Vary.Quantity.Unit()
-	what := r.Settings.Axis.Vary.Text
-	switch s.goal {
-	case "target":
-		fmt.Fprintf(w, "Target %s = %g %s\n", s.measure.Text, s.value, s.measure.Unit)
-		fmt.Fprintf(w, "  met at %s = %s (bracket %s to %s, tolerance %s, %d refinements); %s there is %.6g %s\n",
-			what, report.FormatCell(sol.Value, unit), report.FormatCell(sol.Bracket[0], unit), report.FormatCell(sol.Bracket[1], unit),
-			report.FormatDifference(sol.Tolerance, unit), sol.Iterations, s.measure.Text, sol.Measure, s.measure.Unit)
-	default:
-		of := s.measure.Text
-		if sol.OnMagnitude {
-			of = "|" + of + "| (its sign is the polarity; --signed uses the signed value)"
-		}
-		fmt.Fprintf(w, "%s of %s\n", map[string]string{"maximize": "Largest", "minimize": "Smallest"}[s.goal], of)
-		fmt.Fprintf(w, "  %.6g %s at %s = %s (searched %s to %s, tolerance %s)\n", sol.Measure, s.measure.Unit, what,
-			report.FormatCell(sol.Value, unit), report.FormatCell(sol.Bracket[0], unit), report.FormatCell(sol.Bracket[1], unit), report.FormatDifference(sol.Tolerance, unit))
-		if sol.AtEdge {
-			fmt.Fprintf(w, "  ! the best value lies at the end of the range; widen it to see whether it improves further\n")
-		}
-	}
-	fmt.Fprintln(w)
-}
-
-// solutionMarks marks a target's or optimum's solution on the study
-// figure.
-func solutionMarks(s *studySetup, sol *study.Solution) []plots.StudyMark {
-	if sol == nil || s.measure == nil {
-		return nil
-	}
-	mk := plots.StudyMark{Measure: s.measure, X: sol.Value, Y: sol.Measure, Target: math.NaN()}
-	val := report.FormatMeasure(sol.Measure, s.measure.Unit)
-	switch s.goal {
-	case "target":
-		mk.Target = s.value
-		mk.Label = "target met\n" + val
-	case "maximize":
-		mk.Label = "largest\n" + val
-	default:
-		mk.Label = "smallest\n" + val
-	}
-	if sol.OnMagnitude {
-		mk.Label = strings.Replace(mk.Label, "\n", " magnitude\n", 1)
-	}
-	return []plots.StudyMark{mk}
 }
 
 // maxWorkers bounds --workers: far more than any machine's cores, and few

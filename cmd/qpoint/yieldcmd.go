@@ -1,12 +1,9 @@
 package main
 
 import (
-	"encoding/csv"
 	"errors"
 	"fmt"
 	"io"
-	"math"
-	"strconv"
 	"strings"
 
 	"github.com/spf13/cobra"
@@ -16,6 +13,7 @@ import (
 	"qpoint/bias/circuit"
 	"qpoint/plots"
 	"qpoint/plots/report"
+	"qpoint/plots/results"
 )
 
 type yieldFlags struct {
@@ -133,9 +131,9 @@ func resolveYield(c *circuit.Circuit, fl *yieldFlags, observe bool) (*yield.Sett
 		req.Level = &lv
 	}
 	if fl.videoBandwidth != "" {
-		lo, hi, err := parseBand("video-bandwidth", fl.videoBandwidth, plan.DefaultVideoFromHz)
+		lo, hi, err := plan.ParseBand("video-bandwidth", fl.videoBandwidth, plan.DefaultVideoFromHz)
 		if err != nil {
-			return nil, err
+			return nil, planError(err)
 		}
 		req.VideoBandHz = [2]float64{lo, hi}
 	}
@@ -178,7 +176,7 @@ func runYield(cmd *cobra.Command, path string, fl *yieldFlags) error {
 		return err
 	}
 	if fl.csvPath != "" {
-		if err := g.writeFileAtomic(fl.csvPath, func(w io.Writer) error { return writeYieldCSV(w, r) }); err != nil {
+		if err := g.writeFileAtomic(fl.csvPath, func(w io.Writer) error { return results.WriteYieldCSV(w, r) }); err != nil {
 			return err
 		}
 	}
@@ -189,101 +187,13 @@ func runYield(cmd *cobra.Command, path string, fl *yieldFlags) error {
 	}
 	out := cmd.OutOrStdout()
 	if fl.asJSON {
-		return writeJSON(out, yieldDocument(r))
+		return results.Write(out, results.YieldOf(r))
 	}
-	writeYield(out, r)
+	report.WriteYield(out, r)
 	for _, x := range []struct{ what, path string }{{"CSV", fl.csvPath}, {"figures", fl.plotsDir}} {
 		if x.path != "" {
 			fmt.Fprintf(out, "%s written to %s\n", x.what, x.path)
 		}
 	}
 	return nil
-}
-
-func writeYield(w io.Writer, r *yield.Result) {
-	c := r.Circuit
-	fmt.Fprintf(w, "%s\n", c.Name)
-	fmt.Fprintf(w, "  file         %s\n", c.File)
-	writeOverrides(w, c)
-	fmt.Fprintf(w, "  runs         %d, seed %d, %d workers, in %s\n", len(r.Runs), r.Settings.Seed, r.Stats.Workers, r.Stats.Runtime.Round(1e6))
-	fmt.Fprintf(w, "  temperatures %s\n", report.TemperatureList(r.TemperaturesK))
-	fmt.Fprintf(w, "  tolerances   %d values, %d groups; %d analyses, %d Newton iterations\n",
-		len(c.Tolerances), len(c.ToleranceGroups), r.Stats.Evaluations, r.Stats.NewtonIterations)
-	limited := false
-	for _, t := range r.Settings.Targets {
-		limited = limited || t.Bound != yield.Observe
-	}
-	if limited {
-		fmt.Fprintf(w, "\nYield %s: %d of %d runs meet every target (95 %% interval %s to %s, Wilson score)\n",
-			report.PercentOf(r.Yield), r.Passed, len(r.Runs), report.PercentOf(r.Interval[0]), report.PercentOf(r.Interval[1]))
-	}
-	report.YieldTargetTable(r).WriteText(w)
-	report.YieldShareTable(r).WriteText(w)
-	if len(r.Corners) > 0 {
-		report.YieldCornerTable(r).WriteText(w)
-	}
-	if len(r.Cautions) > 0 {
-		fmt.Fprintln(w)
-		for _, x := range r.Cautions {
-			fmt.Fprintf(w, "  ! %s\n", x.Message)
-		}
-	}
-	fmt.Fprintln(w)
-}
-
-// writeYieldCSV writes one row per run: the drawn values, each target's
-// reading at each temperature and its worst, and whether the run passed.
-func writeYieldCSV(w io.Writer, r *yield.Result) error {
-	cw := csv.NewWriter(w)
-	c := r.Circuit
-	header := []string{"run"}
-	for _, t := range c.Tolerances {
-		header = append(header, t.Name+"_"+report.UnitOrNumber(t.Quantity.Unit()))
-	}
-	multi := len(r.TemperaturesK) > 1
-	for _, ts := range r.Targets {
-		u := report.UnitOrNumber(ts.Target.Measure.Unit)
-		if multi {
-			for _, k := range r.TemperaturesK {
-				header = append(header, fmt.Sprintf("%s_%s@%gK", ts.Target.Text, u, k))
-			}
-		}
-		header = append(header, ts.Target.Text+"_"+u)
-	}
-	header = append(header, "passed", "error")
-	if err := cw.Write(header); err != nil {
-		return err
-	}
-	g := func(v float64) string {
-		if math.IsNaN(v) {
-			return ""
-		}
-		return strconv.FormatFloat(v, 'g', -1, 64)
-	}
-	nk := len(r.TemperaturesK)
-	for i := range r.Runs {
-		run := &r.Runs[i]
-		row := []string{strconv.Itoa(run.Index)}
-		for _, v := range run.Values {
-			row = append(row, g(v))
-		}
-		for t := range r.Targets {
-			if multi {
-				for k := 0; k < nk; k++ {
-					row = append(row, g(run.Readings[t*nk+k]))
-				}
-			}
-			row = append(row, g(run.Worst[t]))
-		}
-		e := ""
-		if run.Err != nil {
-			e = run.Err.Error()
-		}
-		row = append(row, strconv.FormatBool(run.Passed), e)
-		if err := cw.Write(row); err != nil {
-			return err
-		}
-	}
-	cw.Flush()
-	return cw.Error()
 }

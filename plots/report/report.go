@@ -6,6 +6,12 @@
 //
 // The package is presentation only: callers fill a Document with
 // formatted tables, figures as SVG and notes; Write renders it.
+//
+// The same tables are the command line's text output: each analysis has a
+// writer that prints what its command prints (WriteBias, WriteResponse,
+// WriteDistortion, WriteNoise, WriteStudy, WriteYield, WritePulseHeader,
+// WriteMixerHeader, WriteHarmonics, WriteFit with WriteModelBlock), from
+// the network and the plan's resolved values.
 package report
 
 import (
