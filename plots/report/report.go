@@ -95,7 +95,16 @@ func Write(w io.Writer, d *Document) error {
 
 var page = template.Must(template.New("page").Funcs(template.FuncMap{
 	"svg":   func(f *Figure) template.HTML { return inlineSVG(f.SVG) },
-	"right": func(t *Table, i int) bool { return t.numeric(i) },
+	// right lists which of t's columns are right-aligned, once a table
+	// (a cell-by-cell decision reads the whole column for every cell).
+	"right": func(t *Table) []bool {
+		out := make([]bool, len(t.Header))
+		for i := range out {
+			out[i] = t.numeric(i)
+		}
+		return out
+	},
+	"at": func(b []bool, i int) bool { return i < len(b) && b[i] },
 }).Parse(pageHTML))
 
 // The look is our own: a quiet slate and teal scheme, system fonts, and a
@@ -159,9 +168,9 @@ footer { max-width:980px; margin:0 auto; padding:1rem; color:var(--muted); font-
 {{range .Sections}}<section id="{{.ID}}">
 <h2>{{.Title}}</h2>
 {{if .Intro}}<p class="intro">{{.Intro}}</p>{{end}}
-{{range .Blocks}}{{if .Table}}{{$t := .Table}}<div class="tablewrap"><table>{{if $t.Caption}}<caption>{{$t.Caption}}</caption>{{end}}
-<thead><tr>{{range $i, $h := $t.Header}}<th{{if right $t $i}} class="num"{{end}}>{{$h}}</th>{{end}}</tr></thead>
-<tbody>{{range $t.Rows}}<tr>{{range $i, $c := .}}<td{{if right $t $i}} class="num"{{end}}>{{$c}}</td>{{end}}</tr>
+{{range .Blocks}}{{if .Table}}{{$t := .Table}}{{$num := right $t}}<div class="tablewrap"><table>{{if $t.Caption}}<caption>{{$t.Caption}}</caption>{{end}}
+<thead><tr>{{range $i, $h := $t.Header}}<th{{if at $num $i}} class="num"{{end}}>{{$h}}</th>{{end}}</tr></thead>
+<tbody>{{range $t.Rows}}<tr>{{range $i, $c := .}}<td{{if at $num $i}} class="num"{{end}}>{{$c}}</td>{{end}}</tr>
 {{end}}</tbody></table></div>
 {{else if .Figure}}<figure>{{svg .Figure}}{{if .Figure.Caption}}<figcaption>{{.Figure.Caption}}</figcaption>{{end}}</figure>
 {{else if .Note}}<p class="note">{{.Note}}</p>
