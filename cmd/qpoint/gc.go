@@ -11,18 +11,21 @@ import (
 // set GOGC or GOMEMLIMIT. The collector's default target (100 %) cost a
 // parallel study a fifth of its two-worker scaling in BENCHMARKS.md's
 // measurement (1.55 against 1.92 on the attenuator study) and `qpoint
-// demo` half again its time (5.9 s against 3.7 s), so the heap may grow
-// to five times what is live (gcPercent). Unbounded, that let the demo
-// peak at 91 MB; switching the collector off until 1 GiB, as earlier
+// demo` half again its time (5.9 s against 3.7 s), so a small heap may
+// grow to five times what is live (gcPercent). Unbounded, that let the
+// demo peak at 91 MB; switching the collector off until 1 GiB, as earlier
 // versions did, let it peak at 590 MB for no gain in speed. So the target
 // is bounded: the heap may always grow to heapFloor, and beyond it to
-// heapFactor times what was live at the last collection (boundHeap). The
-// demo then peaks near 53 MB at the same speed, and a run whose live heap
-// is large collects as it would at a target of 200 %, never more often.
+// heapFactor times what was live at the last collection (boundHeap): a
+// run whose live heap is large collects as it would at the default
+// target, never more often. A factor of three let the demo with its
+// mixer peak at 61-67 MB; two gave 56 MB and a 2000-step attenuator
+// study 109-111 MB instead of 139-143 MB, both at the same speed
+// (BENCHMARKS.md).
 const (
 	gcPercent  = 400
 	heapFloor  = 40 << 20
-	heapFactor = 3
+	heapFactor = 2
 )
 
 // tuneGC sets the collector's target and its bound, unless the user set

@@ -94,7 +94,7 @@ func Write(w io.Writer, d *Document) error {
 }
 
 var page = template.Must(template.New("page").Funcs(template.FuncMap{
-	"svg":   func(f *Figure) template.HTML { return inlineSVG(f.SVG) },
+	"svg": func(f *Figure) template.HTML { return inlineSVG(f.SVG) },
 	// right lists which of t's columns are right-aligned, once a table
 	// (a cell-by-cell decision reads the whole column for every cell).
 	"right": func(t *Table) []bool {
