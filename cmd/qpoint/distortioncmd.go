@@ -197,7 +197,7 @@ func runDistortion(cmd *cobra.Command, path string, fl *distortionFlags) error {
 		fmt.Fprintf(cmd.ErrOrStderr(), "qpoint: two-tone level sweep stopped: %v\n", res.TwoToneSweepErr)
 	}
 	if fl.plotsDir != "" {
-		if err := g.writeDistortionPlots(fl.plotsDir, s, res.OneTone, res.Waveform, res.Sweep, res.Transfer, res.TangentialDBm, report.TwoToneFigures(res.TwoTone, res.Estimate)...); err != nil {
+		if err := g.writeFigures(fl.plotsDir, report.DistortionRunFigures(res)); err != nil {
 			return err
 		}
 	}
@@ -280,7 +280,7 @@ func runDistortionFrequency(cmd *cobra.Command, g *fileGuard, s *distortionSetup
 		return analysisError(err)
 	}
 	if fl.plotsDir != "" {
-		if err := g.writeDistortionFrequencyPlot(fl.plotsDir, rows); err != nil {
+		if err := g.writeFigures(fl.plotsDir, report.FrequencySweepFigures(rows)); err != nil {
 			return err
 		}
 	}

@@ -18,13 +18,6 @@ import (
 	"qpoint/smallsignal"
 )
 
-// Detector defaults: the video band a tangential sensitivity is quoted in
-// when the command line gives none, and its low edge.
-const (
-	defaultVideoToHz   = 2e6
-	defaultVideoFromHz = 1
-)
-
 type noiseFlags struct {
 	input, output     string
 	from, to          string
