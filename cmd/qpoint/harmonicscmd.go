@@ -14,6 +14,7 @@ import (
 	"github.com/spf13/cobra"
 
 	"qpoint/ac/measure"
+	"qpoint/ac/plan"
 	"qpoint/ac/steady"
 	"qpoint/bias/circuit"
 )
@@ -168,7 +169,7 @@ func predictHarmonics(g *fileGuard, warn io.Writer, fl *waveformFlags, fundament
 	}
 	d := ds.drive
 	d.SecondToneHz = 0
-	st, err := steady.Solve(ds.nw, d, steady.Settings{Harmonics: k, Samples: max(255, 8*k+1), Method: steadyFor(ds.nw)})
+	st, err := steady.Solve(ds.nw, d, steady.Settings{Harmonics: k, Samples: max(255, 8*k+1), Method: plan.ForElements(ds.nw, nil)})
 	if err != nil {
 		return nil, analysisError(fmt.Errorf("prediction from %s at %s: %w", fl.circuitPath, si.Format(fundamentalHz, "Hz", 6), err))
 	}
