@@ -4,18 +4,15 @@ import (
 	"fmt"
 	"io"
 	"math"
-	"os"
-	"time"
 
-	"github.com/schollz/progressbar/v3"
 	"github.com/spf13/cobra"
-	"golang.org/x/term"
 
 	"qpoint/ac"
 	"qpoint/ac/plan"
 	"qpoint/ac/steady"
 	"qpoint/bias"
 	"qpoint/bias/circuit"
+	"qpoint/internal/output"
 	"qpoint/plots/report"
 	"qpoint/plots/results"
 	"qpoint/smallsignal"
@@ -255,8 +252,8 @@ func distortionRequest(cmd *cobra.Command, s *distortionSetup, fl *distortionFla
 	}
 	req.VideoHz = [2]float64{lo, hi}
 	req.Progress = func(stage string, n int) (func(done, total int), func()) {
-		bar := newProgress(cmd.ErrOrStderr(), stage, n)
-		return bar.update, bar.done
+		bar := output.NewProgress(cmd.ErrOrStderr(), stage, n)
+		return bar.Update, bar.Done
 	}
 	return req, nil
 }
@@ -295,43 +292,4 @@ func runDistortionFrequency(cmd *cobra.Command, g *fileGuard, s *distortionSetup
 	report.WriteDistortionHeader(out, s.nw, s.planned)
 	report.WriteFrequencySweep(out, rows)
 	return nil
-}
-
-// progress draws a bar with the count, rate and time left on standard
-// error when it is a terminal (golang.org/x/term), and nothing otherwise,
-// so that logs and pipes stay clean. The bar is schollz/progressbar's.
-type progress struct {
-	bar *progressbar.ProgressBar
-}
-
-func newProgress(w io.Writer, label string, total int) *progress {
-	f, ok := w.(*os.File)
-	if !ok || !term.IsTerminal(int(f.Fd())) || total <= 1 {
-		return &progress{}
-	}
-	return &progress{bar: progressbar.NewOptions(total,
-		progressbar.OptionSetWriter(w),
-		progressbar.OptionSetDescription(label),
-		progressbar.OptionShowCount(),
-		progressbar.OptionSetPredictTime(true),
-		progressbar.OptionSetWidth(30),
-		progressbar.OptionThrottle(100*time.Millisecond),
-		progressbar.OptionClearOnFinish(),
-		progressbar.OptionSetTheme(progressbar.Theme{Saucer: "█", SaucerPadding: "·", BarStart: "[", BarEnd: "]"}),
-	)}
-}
-
-// update shows done steps of total; it may be called from any goroutine
-// that holds the caller's lock, as study progress is.
-func (p *progress) update(done, total int) {
-	if p.bar != nil {
-		_ = p.bar.Set(done)
-	}
-}
-
-// done removes the bar.
-func (p *progress) done() {
-	if p.bar != nil {
-		_ = p.bar.Finish()
-	}
 }

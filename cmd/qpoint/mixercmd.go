@@ -10,6 +10,7 @@ import (
 	"qpoint/ac/plan"
 	"qpoint/bias"
 	"qpoint/bias/circuit"
+	"qpoint/internal/output"
 	"qpoint/plots"
 	"qpoint/plots/report"
 	"qpoint/plots/results"
@@ -215,9 +216,9 @@ func portIndexOf(c *circuit.Circuit, flag, file string) int {
 // runMixerSweep repeats the analysis over LO levels.
 func runMixerSweep(cmd *cobra.Command, s *mixerSetup, fl *mixerFlags, levels []float64) error {
 	g := guardOf(cmd)
-	bar := newProgress(cmd.ErrOrStderr(), "LO level sweep", len(levels))
-	pts := mixer.SweepLO(s.nw, s.plan.Settings, levels, bar.update)
-	bar.done()
+	bar := output.NewProgress(cmd.ErrOrStderr(), "LO level sweep", len(levels))
+	pts := mixer.SweepLO(s.nw, s.plan.Settings, levels, bar.Update)
+	bar.Done()
 	failed := 0
 	for _, p := range pts {
 		if p.Result == nil {

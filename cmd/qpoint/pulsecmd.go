@@ -12,6 +12,7 @@ import (
 	"qpoint/ac/transient"
 	"qpoint/bias"
 	"qpoint/bias/circuit"
+	"qpoint/internal/output"
 	"qpoint/plots"
 	"qpoint/plots/report"
 	"qpoint/plots/results"
@@ -274,9 +275,9 @@ func runPulseSweep(cmd *cobra.Command, s *pulseSetup, fl *pulseFlags) error {
 	if fl.csvPath != "" {
 		return inputError(fmt.Errorf("flag --csv: a level sweep keeps no waveform; run one level for it"))
 	}
-	bar := newProgress(cmd.ErrOrStderr(), "pulse level sweep", n)
-	pts := transient.SweepLevel(s.nw, s.settings, levels, 0, bar.update)
-	bar.done()
+	bar := output.NewProgress(cmd.ErrOrStderr(), "pulse level sweep", n)
+	pts := transient.SweepLevel(s.nw, s.settings, levels, 0, bar.Update)
+	bar.Done()
 	ok := 0
 	for _, p := range pts {
 		if p.Err == nil {

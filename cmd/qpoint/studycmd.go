@@ -11,6 +11,7 @@ import (
 	"qpoint/ac/plan"
 	"qpoint/ac/study"
 	"qpoint/bias/circuit"
+	"qpoint/internal/output"
 	"qpoint/plots"
 	"qpoint/plots/report"
 	"qpoint/plots/results"
@@ -214,11 +215,11 @@ func runStudy(cmd *cobra.Command, path string, fl *studyFlags) error {
 	if s.settings.Second != nil {
 		total *= len(s.settings.Second.Values)
 	}
-	bar := newProgress(cmd.ErrOrStderr(), "study", total)
-	s.settings.Progress = bar.update
+	bar := output.NewProgress(cmd.ErrOrStderr(), "study", total)
+	s.settings.Progress = bar.Update
 	begin := time.Now()
 	r, err := study.Run(s.c, s.settings)
-	bar.done()
+	bar.Done()
 	if err != nil {
 		return inputError(err)
 	}

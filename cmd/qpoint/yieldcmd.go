@@ -11,6 +11,7 @@ import (
 	"qpoint/ac/plan"
 	"qpoint/ac/yield"
 	"qpoint/bias/circuit"
+	"qpoint/internal/output"
 	"qpoint/plots"
 	"qpoint/plots/report"
 	"qpoint/plots/results"
@@ -158,10 +159,10 @@ func runYield(cmd *cobra.Command, path string, fl *yieldFlags) error {
 	if err != nil {
 		return err
 	}
-	bar := newProgress(cmd.ErrOrStderr(), "yield", s.Runs)
-	s.Progress = bar.update
+	bar := output.NewProgress(cmd.ErrOrStderr(), "yield", s.Runs)
+	s.Progress = bar.Update
 	r, err := yield.Run(c, *s)
-	bar.done()
+	bar.Done()
 	if err != nil {
 		return analysisError(err)
 	}
