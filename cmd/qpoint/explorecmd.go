@@ -7,10 +7,7 @@ import (
 	"net"
 	"net/http"
 	"os"
-	"os/exec"
 	"path/filepath"
-	"runtime"
-	"strconv"
 	"strings"
 	"time"
 
@@ -96,9 +93,9 @@ func runExplore(ctx context.Context, g *fileGuard, out, errw io.Writer, o explor
 	if err := g.checkOutputsEarly("", o.circuitOut, o.reportOut); err != nil {
 		return err
 	}
-	addr, err := loopbackAddress(o.listen)
+	addr, err := explore.LoopbackAddress(o.listen)
 	if err != nil {
-		return err
+		return inputError(fmt.Errorf("flag --listen: %w", err))
 	}
 	ln, err := net.Listen("tcp", addr)
 	if err != nil {
@@ -106,10 +103,9 @@ func runExplore(ctx context.Context, g *fileGuard, out, errw io.Writer, o explor
 	}
 	defer ln.Close()
 	bound := ln.Addr().String()
-	_, port, _ := net.SplitHostPort(bound)
 	url := "http://" + bound + "/"
 	h := explore.Handler(s, explore.Settings{
-		Hosts:       []string{bound, "localhost:" + port},
+		Hosts:       explore.Hosts(bound),
 		CircuitPath: o.circuitOut,
 		SaveCircuit: func(data []byte) error { return writeWhole(g, o.circuitOut, data) },
 		ReportPath:  o.reportOut,
@@ -119,7 +115,7 @@ func runExplore(ctx context.Context, g *fileGuard, out, errw io.Writer, o explor
 	fmt.Fprintf(out, "qpoint explore: %s\n  open %s in a browser on this computer; Ctrl-C stops the server\n  the save button writes %s, the report button %s\n",
 		o.file, url, o.circuitOut, o.reportOut)
 	if o.open {
-		if err := openBrowser(url); err != nil {
+		if err := explore.OpenBrowser(url); err != nil {
 			fmt.Fprintf(errw, "qpoint: could not start a browser (%v); open %s yourself\n", err, url)
 		}
 	}
@@ -144,46 +140,4 @@ func writeWhole(g *fileGuard, path string, data []byte) error {
 		_, err := w.Write(data)
 		return err
 	})
-}
-
-// loopbackAddress checks --listen: a loopback address (127.0.0.0/8, ::1
-// or localhost) and a port, 127.0.0.1 and a free port when not given.
-func loopbackAddress(s string) (string, error) {
-	const accepted = "accepted: a loopback address and port such as 127.0.0.1:8470, [::1]:8470 or localhost:8470 (port 0 picks a free one)"
-	if s == "" {
-		return "127.0.0.1:0", nil
-	}
-	host, port, err := net.SplitHostPort(s)
-	if err != nil {
-		return "", inputError(fmt.Errorf("flag --listen: %q is not HOST:PORT; %s", s, accepted))
-	}
-	if p, err := strconv.Atoi(port); err != nil || p < 0 || p > 65535 {
-		return "", inputError(fmt.Errorf("flag --listen: port %q is not a number from 0 to 65535; %s", port, accepted))
-	}
-	if strings.EqualFold(host, "localhost") {
-		host = "127.0.0.1"
-	}
-	ip := net.ParseIP(host)
-	if ip == nil || !ip.IsLoopback() {
-		return "", inputError(fmt.Errorf("flag --listen: %q is not a loopback address; the explorer serves this computer only; %s", host, accepted))
-	}
-	return net.JoinHostPort(ip.String(), port), nil
-}
-
-// openBrowser asks the desktop to open url in the user's browser.
-func openBrowser(url string) error {
-	var c *exec.Cmd
-	switch runtime.GOOS {
-	case "darwin":
-		c = exec.Command("open", url)
-	case "windows":
-		c = exec.Command("rundll32", "url.dll,FileProtocolHandler", url)
-	default:
-		c = exec.Command("xdg-open", url)
-	}
-	if err := c.Start(); err != nil {
-		return err
-	}
-	go c.Wait()
-	return nil
 }
