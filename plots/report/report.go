@@ -20,6 +20,9 @@ import (
 	"html/template"
 	"io"
 	"regexp"
+
+	"qpoint/ac"
+	"qpoint/bias"
 )
 
 // Document is a whole report.
@@ -30,6 +33,12 @@ type Document struct {
 	Cautions []string // shown prominently near the top
 	Sections []Section
 	Footer   []string
+	// Point is the operating point the report was built at, and Response
+	// its small-signal response over the file's grid (nil for a circuit
+	// without ports): a front end that prints a summary beside the page
+	// takes them from here.
+	Point    *bias.Point
+	Response *ac.Response
 }
 
 // Card is a headline figure: a label, a value and a line of context.
