@@ -3,7 +3,6 @@ package main
 import (
 	"fmt"
 	"io"
-	"math"
 
 	"github.com/spf13/cobra"
 
@@ -230,17 +229,8 @@ func distortionRequest(cmd *cobra.Command, s *distortionSetup, fl *distortionFla
 	if fl.sweepLevel == "" {
 		return req, nil
 	}
-	from, to, step, err := plan.ParseLevelRange("sweep-level", fl.sweepLevel, s.c.Ports[s.drive.Input].Impedance)
-	if err != nil {
+	if req.Levels, err = plan.ParseLevels("sweep-level", fl.sweepLevel, s.c.Ports[s.drive.Input].Impedance, 2000); err != nil {
 		return req, planError(err)
-	}
-	n := int(math.Floor((to-from)/step+1e-9)) + 1
-	if n > 2000 {
-		return req, inputError(fmt.Errorf("flag --sweep-level: %d levels; accepted: at most 2000", n))
-	}
-	req.Levels = make([]float64, n)
-	for i := range req.Levels {
-		req.Levels[i] = from + float64(i)*step
 	}
 	band := fl.videoBandwidth
 	if band == "" {

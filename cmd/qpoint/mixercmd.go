@@ -146,16 +146,7 @@ func runMixer(cmd *cobra.Command, path string, fl *mixerFlags) error {
 	}
 	var levels []float64
 	if fl.sweepLOLevel != "" {
-		// The LO port's impedance reads a level given in volts.
-		z0 := 50.0
-		if i := portIndexOf(c, fl.lo, c.Analysis.Mixer.LO); i >= 0 {
-			z0 = c.Ports[i].Impedance
-		}
-		from, to, step, err := plan.ParseLevelRange("sweep-lo-level", fl.sweepLOLevel, z0)
-		if err != nil {
-			return planError(err)
-		}
-		if levels, err = plan.MixerLevels(from, to, step); err != nil {
+		if levels, err = plan.ParseMixerLevels(c, "sweep-lo-level", fl.lo, fl.sweepLOLevel); err != nil {
 			return planError(err)
 		}
 		fl.noShooting = true // a check per level would double the sweep's time
@@ -196,21 +187,6 @@ func runMixer(cmd *cobra.Command, path string, fl *mixerFlags) error {
 		fmt.Fprintf(out, "\nfigure written to %s\n", fl.plotsDir)
 	}
 	return nil
-}
-
-// portIndexOf returns the index of the port named by the flag, else by
-// the file, or -1.
-func portIndexOf(c *circuit.Circuit, flag, file string) int {
-	name := flag
-	if name == "" {
-		name = file
-	}
-	for i, p := range c.Ports {
-		if p.Name == name {
-			return i
-		}
-	}
-	return -1
 }
 
 // runMixerSweep repeats the analysis over LO levels.

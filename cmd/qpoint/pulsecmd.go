@@ -4,7 +4,6 @@ import (
 	"errors"
 	"fmt"
 	"io"
-	"math"
 
 	"github.com/spf13/cobra"
 
@@ -260,22 +259,14 @@ func runPulse(cmd *cobra.Command, path string, fl *pulseFlags) error {
 func runPulseSweep(cmd *cobra.Command, s *pulseSetup, fl *pulseFlags) error {
 	g := guardOf(cmd)
 	z0 := s.c.Ports[s.settings.Input].Impedance
-	from, to, step, err := plan.ParseLevelRange("sweep-level", fl.sweepLevel, z0)
+	levels, err := plan.ParseLevels("sweep-level", fl.sweepLevel, z0, 200)
 	if err != nil {
 		return planError(err)
-	}
-	n := int(math.Floor((to-from)/step+1e-9)) + 1
-	if n > 200 {
-		return inputError(fmt.Errorf("flag --sweep-level: %d levels; accepted: at most 200", n))
-	}
-	levels := make([]float64, n)
-	for i := range levels {
-		levels[i] = from + float64(i)*step
 	}
 	if fl.csvPath != "" {
 		return inputError(fmt.Errorf("flag --csv: a level sweep keeps no waveform; run one level for it"))
 	}
-	bar := output.NewProgress(cmd.ErrOrStderr(), "pulse level sweep", n)
+	bar := output.NewProgress(cmd.ErrOrStderr(), "pulse level sweep", len(levels))
 	pts := transient.SweepLevel(s.nw, s.settings, levels, 0, bar.Update)
 	bar.Done()
 	ok := 0

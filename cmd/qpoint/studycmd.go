@@ -119,9 +119,6 @@ worker count. Defaults come from the file's analysis.study.`,
 type studySetup struct {
 	c        *circuit.Circuit
 	settings study.Settings
-	measure  *study.Measure
-	goal     string // "target", "maximize", "minimize" or ""
-	value    float64
 	planned  *plan.Study
 }
 
@@ -200,9 +197,7 @@ func resolveStudyFor(c *circuit.Circuit, fl *studyFlags) (*studySetup, error) {
 	if err != nil {
 		return nil, planError(err)
 	}
-	s := &studySetup{c: c, settings: st.Settings, measure: st.Measure, value: st.Value, planned: st}
-	s.goal = map[plan.GoalKind]string{plan.Target: "target", plan.Maximize: "maximize", plan.Minimize: "minimize"}[st.Goal]
-	return s, nil
+	return &studySetup{c: c, settings: st.Settings, planned: st}, nil
 }
 
 func runStudy(cmd *cobra.Command, path string, fl *studyFlags) error {
@@ -233,18 +228,9 @@ func runStudy(cmd *cobra.Command, path string, fl *studyFlags) error {
 	if failed == len(r.Steps) {
 		return analysisError(fmt.Errorf("no step of the study could be solved: %w", r.Steps[0].Err))
 	}
-	var sol *study.Solution
-	switch s.goal {
-	case "target":
-		sol, err = study.FindTarget(r, s.measure, s.value, fl.tolerance)
-		if errors.Is(err, study.ErrNoCrossing) {
-			return inputError(fmt.Errorf("flag --target: %w", err))
-		}
-	case "maximize", "minimize":
-		sol, err = study.Optimize(r, s.measure, s.goal == "maximize", fl.tolerance)
-	}
+	sol, err := s.planned.Solve(r, fl.tolerance)
 	if err != nil {
-		return analysisError(err)
+		return planError(err)
 	}
 	cols := report.StudyColumns(r)
 	var figs []*plots.Figure

@@ -4,7 +4,6 @@ import (
 	"errors"
 	"fmt"
 	"io"
-	"strings"
 
 	"github.com/spf13/cobra"
 
@@ -100,21 +99,9 @@ func resolveYield(c *circuit.Circuit, fl *yieldFlags, observe bool) (*yield.Sett
 		req.Seed = &seed
 	}
 	if fl.temperatureRange != "" {
-		a, b, ok := strings.Cut(fl.temperatureRange, ":")
-		const accepted = "LOW:HIGH, e.g. -40C:85C"
-		if !ok {
-			return nil, inputError(fmt.Errorf("flag --temperature-range: `%s` is not LOW:HIGH; accepted: %s", fl.temperatureRange, accepted))
-		}
-		lo, err := circuit.ParseBounded(strings.TrimSpace(a), circuit.Temperature)
+		lo, hi, err := plan.ParseTemperatureRange("temperature-range", fl.temperatureRange)
 		if err != nil {
-			return nil, inputError(fmt.Errorf("flag --temperature-range: %w", err))
-		}
-		hi, err := circuit.ParseBounded(strings.TrimSpace(b), circuit.Temperature)
-		if err != nil {
-			return nil, inputError(fmt.Errorf("flag --temperature-range: %w", err))
-		}
-		if !(lo < hi) {
-			return nil, inputError(fmt.Errorf("flag --temperature-range: `%s` does not rise; accepted: %s", fl.temperatureRange, accepted))
+			return nil, planError(err)
 		}
 		req.TemperatureRangeK = &[2]float64{lo, hi}
 	}
