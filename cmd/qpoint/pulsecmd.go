@@ -107,14 +107,6 @@ type pulseSetup struct {
 	plan     *plan.Pulse
 }
 
-// where names the flag or file key a setting came from.
-func (s *pulseSetup) where(field string) string {
-	if w := s.plan.Where(field); w != "" {
-		return w
-	}
-	return "flag --" + field
-}
-
 // resolvePulse reads the flags into a request, resolves it on the plan,
 // and linearises the circuit at p, solving the bias first when p is nil.
 func resolvePulse(c *circuit.Circuit, fl *pulseFlags, p *bias.Point) (*pulseSetup, error) {
@@ -209,11 +201,8 @@ func runPulse(cmd *cobra.Command, path string, fl *pulseFlags) error {
 	case errors.As(runErr, &stopped) && res != nil:
 		// What it reached is still shown; the exit status says it failed.
 	case res == nil:
-		var re *transient.RequestError
-		if errors.As(runErr, &re) {
-			return s.requestError(runErr)
-		}
-		return analysisError(runErr)
+		// A refused request names its flag or key; else the run failed.
+		return planError(s.plan.RequestError(runErr))
 	}
 	var figs []*plots.Figure
 	if fl.plotsDir != "" {
@@ -276,7 +265,7 @@ func runPulseSweep(cmd *cobra.Command, s *pulseSetup, fl *pulseFlags) error {
 		} else {
 			var re *transient.RequestError
 			if errors.As(p.Err, &re) {
-				return s.requestError(p.Err)
+				return planError(s.plan.RequestError(p.Err))
 			}
 		}
 	}
@@ -304,20 +293,4 @@ func runPulseSweep(cmd *cobra.Command, s *pulseSetup, fl *pulseFlags) error {
 		return analysisError(fmt.Errorf("%d of %d levels did not run to the end; their rows show what they reached", len(pts)-ok, len(pts)))
 	}
 	return nil
-}
-
-// requestError names the flag or file key of a request the transient
-// refused while running.
-func (s *pulseSetup) requestError(err error) error {
-	var re *transient.RequestError
-	if !errors.As(err, &re) {
-		return err
-	}
-	switch re.Field {
-	case "steps":
-		return inputError(fmt.Errorf("flag --max-steps: %s", re.Message))
-	case "delay":
-		return inputError(fmt.Errorf("the pulse: %s", re.Message))
-	}
-	return inputError(fmt.Errorf("%s: %s", s.where(re.Field), re.Message))
 }
