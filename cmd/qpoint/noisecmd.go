@@ -8,7 +8,6 @@ import (
 
 	"github.com/spf13/cobra"
 
-	"qpoint/ac"
 	"qpoint/ac/plan"
 	"qpoint/bias"
 	"qpoint/bias/circuit"
@@ -190,19 +189,13 @@ func runNoise(cmd *cobra.Command, path string, fl *noiseFlags) error {
 // the flags name, after checking every one of them.
 func (g *fileGuard) writeNoiseFiles(fl *noiseFlags, o *plan.NoiseRun) error {
 	// The figures' data go beside them.
-	tables := []struct {
-		name  string
-		write func(io.Writer, *ac.NoiseResult) error
-	}{
-		{"noise-density.csv", results.WriteNoiseDensityCSV},
-		{"noise-contributions.csv", results.WriteNoiseContributionsCSV},
-	}
+	tables := results.NoiseFigureData
 	paths := []string{fl.csvPath}
 	var figs []*plots.Figure
 	if fl.plotsDir != "" {
 		figs = report.NoiseFigures(o.Result)
 		for _, tb := range tables {
-			paths = append(paths, filepath.Join(fl.plotsDir, tb.name))
+			paths = append(paths, filepath.Join(fl.plotsDir, tb.Name))
 		}
 		paths = append(paths, figurePaths(fl.plotsDir, figs)...)
 	}
@@ -222,7 +215,7 @@ func (g *fileGuard) writeNoiseFiles(fl *noiseFlags, o *plan.NoiseRun) error {
 		return inputError(fmt.Errorf("flag --plots: %w", err))
 	}
 	for _, tb := range tables {
-		if err := g.writeFileAtomic(filepath.Join(fl.plotsDir, tb.name), func(w io.Writer) error { return tb.write(w, o.Result) }); err != nil {
+		if err := g.writeFileAtomic(filepath.Join(fl.plotsDir, tb.Name), func(w io.Writer) error { return tb.Write(w, o.Result) }); err != nil {
 			return err
 		}
 	}
