@@ -131,26 +131,16 @@ func resolveDistortionFor(c *circuit.Circuit, fl *distortionFlags, p *bias.Point
 // on the plan, without solving anything.
 func distortionDrive(c *circuit.Circuit, fl *distortionFlags) (*distortionSetup, error) {
 	req := plan.DriveRequest{Input: fl.input, Output: fl.output}
+	if err := quantityFlag("frequency", fl.frequency, circuit.Frequency, &req.FrequencyHz); err != nil {
+		return nil, err
+	}
 	var err error
-	if fl.frequency != "" {
-		if req.FrequencyHz, err = circuit.ParseBounded(fl.frequency, circuit.Frequency); err != nil {
-			return nil, inputError(fmt.Errorf("flag --frequency: %w", err))
-		}
+	if req.Level, err = levelFlag("level", fl.level); err != nil {
+		return nil, err
 	}
-	if fl.level != "" {
-		lv, err := circuit.ParseLevel(fl.level)
-		if err != nil {
-			return nil, inputError(fmt.Errorf("flag --level: %w", err))
-		}
-		req.Level = &lv
-	}
-	switch fl.secondTone {
-	case "":
-	case "none":
-		req.DropSecondTone = true
-	default:
-		if req.SecondToneHz, err = circuit.ParseBounded(fl.secondTone, circuit.Frequency); err != nil {
-			return nil, inputError(fmt.Errorf("flag --second-tone: %w", err))
+	if req.DropSecondTone = fl.secondTone == "none"; !req.DropSecondTone {
+		if err := quantityFlag("second-tone", fl.secondTone, circuit.Frequency, &req.SecondToneHz); err != nil {
+			return nil, err
 		}
 	}
 	d, err := plan.ResolveDrive(c, req)

@@ -112,12 +112,8 @@ func readFitInput(g *fileGuard, fl *fitFlags) (*report.FitInput, error) {
 		return nil, inputError(fmt.Errorf("flag --temperature: %w", err))
 	}
 	in.Settings.TemperatureK = tk
-	if fl.measuredAt != "" {
-		t0, err := circuit.ParseBounded(fl.measuredAt, circuit.Temperature)
-		if err != nil {
-			return nil, inputError(fmt.Errorf("flag --measured-at: %w", err))
-		}
-		in.Settings.MeasuredAtK = t0
+	if err := quantityFlag("measured-at", fl.measuredAt, circuit.Temperature, &in.Settings.MeasuredAtK); err != nil {
+		return nil, err
 	}
 	if fl.floor != "" {
 		floor, err := circuit.ParseBounded(fl.floor, circuit.Current)

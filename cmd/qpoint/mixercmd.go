@@ -98,23 +98,15 @@ type mixerSetup struct {
 // solves the bias (when p is nil) and linearises it.
 func resolveMixer(c *circuit.Circuit, fl *mixerFlags, p *bias.Point) (*mixerSetup, error) {
 	req := plan.MixerRequest{LO: fl.lo, RF: fl.rf, IF: fl.ifPort, Sidebands: fl.sidebands, CheckShooting: !fl.noShooting}
-	var err error
-	for _, f := range []struct {
-		name, text string
-		to         *float64
-	}{{"lo-frequency", fl.loFrequency, &req.LOFrequencyHz}, {"rf-frequency", fl.rfFrequency, &req.RFFrequencyHz}} {
-		if f.text != "" {
-			if *f.to, err = circuit.ParseBounded(f.text, circuit.Frequency); err != nil {
-				return nil, inputError(fmt.Errorf("flag --%s: %w", f.name, err))
-			}
-		}
+	if err := quantityFlag("lo-frequency", fl.loFrequency, circuit.Frequency, &req.LOFrequencyHz); err != nil {
+		return nil, err
 	}
-	if fl.loLevel != "" {
-		lv, err := circuit.ParseLevel(fl.loLevel)
-		if err != nil {
-			return nil, inputError(fmt.Errorf("flag --lo-level: %w", err))
-		}
-		req.LOLevel = &lv
+	if err := quantityFlag("rf-frequency", fl.rfFrequency, circuit.Frequency, &req.RFFrequencyHz); err != nil {
+		return nil, err
+	}
+	var err error
+	if req.LOLevel, err = levelFlag("lo-level", fl.loLevel); err != nil {
+		return nil, err
 	}
 	if fl.sidebands < 0 || fl.sidebands > 512 {
 		return nil, inputError(fmt.Errorf("flag --sidebands: %d; accepted: 1 to 512", fl.sidebands))

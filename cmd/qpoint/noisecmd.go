@@ -108,10 +108,8 @@ func resolveNoiseFor(c *circuit.Circuit, fl *noiseFlags, p *bias.Point) (*noiseS
 	if req.Grid, err = gridRequest(fl.from, fl.to, fl.perDecade, fl.points); err != nil {
 		return nil, err
 	}
-	if fl.carrier != "" {
-		if req.CarrierHz, err = circuit.ParseBounded(fl.carrier, circuit.Frequency); err != nil {
-			return nil, inputError(fmt.Errorf("flag --carrier: %w", err))
-		}
+	if err := quantityFlag("carrier", fl.carrier, circuit.Frequency, &req.CarrierHz); err != nil {
+		return nil, err
 	}
 	if fl.videoBandwidth != "" {
 		lo, hi, err := plan.ParseBand("video-bandwidth", fl.videoBandwidth, plan.DefaultVideoFromHz)

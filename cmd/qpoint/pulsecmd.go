@@ -112,45 +112,29 @@ type pulseSetup struct {
 func resolvePulse(c *circuit.Circuit, fl *pulseFlags, p *bias.Point) (*pulseSetup, error) {
 	req := plan.PulseRequest{Input: fl.input, Output: fl.output, Pulses: fl.pulses,
 		RelativeTolerance: fl.tolerance, MaxSteps: fl.maxSteps, NoPeriod: fl.period == "none", NoProbe: fl.probe == "none"}
-	var err error
-	readTime := func(flag, text string, dst *float64) error {
-		if text == "" || text == "none" {
-			return nil
-		}
-		v, err := circuit.ParseBounded(text, circuit.Time)
-		if err != nil {
-			return inputError(fmt.Errorf("flag --%s: %w", flag, err))
-		}
-		*dst = v
-		return nil
-	}
 	for _, t := range []struct {
 		flag, text string
 		dst        *float64
 	}{{"width", fl.width, &req.Width}, {"rise", fl.rise, &req.Rise}, {"fall", fl.fall, &req.Fall}, {"period", fl.period, &req.Period}, {"after", fl.after, &req.After}} {
-		if err := readTime(t.flag, t.text, t.dst); err != nil {
+		if t.text == "none" {
+			continue
+		}
+		if err := quantityFlag(t.flag, t.text, circuit.Time, t.dst); err != nil {
 			return nil, err
 		}
 	}
 	if fl.after != "" && !(req.After > 0) {
 		return nil, inputError(fmt.Errorf("flag --after: %s; accepted: a positive time", fl.after))
 	}
-	if fl.carrier != "" {
-		if req.CarrierHz, err = circuit.ParseBounded(fl.carrier, circuit.Frequency); err != nil {
-			return nil, inputError(fmt.Errorf("flag --carrier: %w", err))
-		}
+	if err := quantityFlag("carrier", fl.carrier, circuit.Frequency, &req.CarrierHz); err != nil {
+		return nil, err
 	}
-	if fl.probeFrequency != "" {
-		if req.ProbeFrequencyHz, err = circuit.ParseBounded(fl.probeFrequency, circuit.Frequency); err != nil {
-			return nil, inputError(fmt.Errorf("flag --probe-frequency: %w", err))
-		}
+	if err := quantityFlag("probe-frequency", fl.probeFrequency, circuit.Frequency, &req.ProbeFrequencyHz); err != nil {
+		return nil, err
 	}
-	if fl.level != "" {
-		lv, err := circuit.ParseLevel(fl.level)
-		if err != nil {
-			return nil, inputError(fmt.Errorf("flag --level: %w", err))
-		}
-		req.Level = &lv
+	var err error
+	if req.Level, err = levelFlag("level", fl.level); err != nil {
+		return nil, err
 	}
 	if fl.probe != "" && fl.probe != "none" {
 		lv, err := circuit.ParseLevel(fl.probe)

@@ -77,12 +77,8 @@ else 1 MHz to 10 GHz at 20 points per decade.`,
 
 func solveWithTemperature(c *circuit.Circuit, temperature string) (*bias.Point, error) {
 	var s bias.Settings
-	if temperature != "" {
-		tk, err := circuit.ParseBounded(temperature, circuit.Temperature)
-		if err != nil {
-			return nil, inputError(fmt.Errorf("flag --temperature: %w", err))
-		}
-		s.TemperatureK = tk
+	if err := quantityFlag("temperature", temperature, circuit.Temperature, &s.TemperatureK); err != nil {
+		return nil, err
 	}
 	p, err := bias.Solve(c, s)
 	if err != nil {

@@ -159,12 +159,8 @@ func resolveStudyFor(c *circuit.Circuit, fl *studyFlags) (*studySetup, error) {
 	if req.DistortionHz, err = plan.ParseFrequencies("frequency", fl.distortionFrequency); err != nil {
 		return nil, planError(err)
 	}
-	if fl.level != "" {
-		lv, err := circuit.ParseLevel(fl.level)
-		if err != nil {
-			return nil, inputError(fmt.Errorf("flag --level: %w", err))
-		}
-		req.Level = &lv
+	if req.Level, err = levelFlag("level", fl.level); err != nil {
+		return nil, err
 	}
 	if fl.videoBandwidth != "" {
 		lo, hi, err := plan.ParseBand("video-bandwidth", fl.videoBandwidth, plan.DefaultVideoFromHz)

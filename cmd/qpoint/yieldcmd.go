@@ -105,18 +105,12 @@ func resolveYield(c *circuit.Circuit, fl *yieldFlags, observe bool) (*yield.Sett
 		}
 		req.TemperatureRangeK = &[2]float64{lo, hi}
 	}
-	var err error
-	if fl.frequency != "" {
-		if req.FrequencyHz, err = circuit.ParseBounded(fl.frequency, circuit.Frequency); err != nil {
-			return nil, inputError(fmt.Errorf("flag --frequency: %w", err))
-		}
+	if err := quantityFlag("frequency", fl.frequency, circuit.Frequency, &req.FrequencyHz); err != nil {
+		return nil, err
 	}
-	if fl.level != "" {
-		lv, err := circuit.ParseLevel(fl.level)
-		if err != nil {
-			return nil, inputError(fmt.Errorf("flag --level: %w", err))
-		}
-		req.Level = &lv
+	var err error
+	if req.Level, err = levelFlag("level", fl.level); err != nil {
+		return nil, err
 	}
 	if fl.videoBandwidth != "" {
 		lo, hi, err := plan.ParseBand("video-bandwidth", fl.videoBandwidth, plan.DefaultVideoFromHz)
