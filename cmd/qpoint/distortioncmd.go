@@ -192,9 +192,7 @@ func runDistortion(cmd *cobra.Command, path string, fl *distortionFlags) error {
 		return results.Write(out, results.DistortionOf(s.planned, res))
 	}
 	report.WriteDistortion(out, s.nw, s.planned, res)
-	if fl.plotsDir != "" {
-		fmt.Fprintf(out, "figures written to %s\n", fl.plotsDir)
-	}
+	writtenTo(out, "figures", fl.plotsDir)
 	return nil
 }
 

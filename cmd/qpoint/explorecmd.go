@@ -2,14 +2,13 @@ package main
 
 import (
 	"context"
+	"errors"
 	"fmt"
 	"io"
 	"net"
-	"net/http"
 	"os"
 	"path/filepath"
 	"strings"
-	"time"
 
 	"github.com/spf13/cobra"
 
@@ -111,7 +110,6 @@ func runExplore(ctx context.Context, g *fileGuard, out, errw io.Writer, o explor
 		ReportPath:  o.reportOut,
 		SaveReport:  func(data []byte) error { return writeWhole(g, o.reportOut, data) },
 	})
-	srv := &http.Server{Handler: h, ReadHeaderTimeout: 10 * time.Second, MaxHeaderBytes: 16 << 10, ErrorLog: nil}
 	fmt.Fprintf(out, "qpoint explore: %s\n  open %s in a browser on this computer; Ctrl-C stops the server\n  the save button writes %s, the report button %s\n",
 		o.file, url, o.circuitOut, o.reportOut)
 	if o.open {
@@ -122,16 +120,11 @@ func runExplore(ctx context.Context, g *fileGuard, out, errw io.Writer, o explor
 	if ready != nil {
 		ready(url)
 	}
-	served := make(chan error, 1)
-	go func() { served <- srv.Serve(ln) }()
-	select {
-	case err := <-served:
-		return analysisError(fmt.Errorf("the server stopped: %w", err))
-	case <-ctx.Done():
+	err = explore.Serve(ctx, ln, h)
+	if errors.Is(err, explore.ErrStopped) {
+		return analysisError(err)
 	}
-	stop, cancel := context.WithTimeout(context.Background(), 5*time.Second)
-	defer cancel()
-	return srv.Shutdown(stop)
+	return err
 }
 
 // writeWhole writes data to path whole or not at all.

@@ -174,9 +174,7 @@ func runNoise(cmd *cobra.Command, path string, fl *noiseFlags) error {
 	}
 	report.WriteNoise(out, s.nw, o, fl.rows)
 	fmt.Fprintln(out)
-	if fl.csvPath != "" {
-		fmt.Fprintf(out, "CSV written to %s\n", fl.csvPath)
-	}
+	writtenTo(out, "CSV", fl.csvPath)
 	if fl.plotsDir != "" {
 		fmt.Fprintf(out, "figures written to %s (noise-density, noise-contributions: SVG, PNG and CSV data)\n", fl.plotsDir)
 	}

@@ -20,6 +20,16 @@ func parseTouchstoneFormat(s string) (touchstone.Format, error) {
 	return f, nil
 }
 
+// writtenTo says on out which files a run wrote: pairs are a kind of
+// output and its path, and an output with no path is not mentioned.
+func writtenTo(out io.Writer, pairs ...string) {
+	for i := 0; i+1 < len(pairs); i += 2 {
+		if pairs[i+1] != "" {
+			fmt.Fprintf(out, "%s written to %s\n", pairs[i], pairs[i+1])
+		}
+	}
+}
+
 // figurePaths returns the files writeFigures would write.
 func figurePaths(dir string, figs []*plots.Figure) []string {
 	return plots.Files(dir, figs)

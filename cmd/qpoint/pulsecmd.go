@@ -214,12 +214,7 @@ func runPulse(cmd *cobra.Command, path string, fl *pulseFlags) error {
 		report.WritePulseFigures(out, s.nw, res)
 		report.WritePulseStress(out, res)
 		report.WritePulseCautions(out, res.Cautions)
-		if fl.plotsDir != "" {
-			fmt.Fprintf(out, "figures written to %s\n", fl.plotsDir)
-		}
-		if fl.csvPath != "" {
-			fmt.Fprintf(out, "waveform written to %s\n", fl.csvPath)
-		}
+		writtenTo(out, "figures", fl.plotsDir, "waveform", fl.csvPath)
 	}
 	if runErr != nil {
 		return analysisError(fmt.Errorf("the run %w; the figures above are of what it reached", runErr))
@@ -269,9 +264,7 @@ func runPulseSweep(cmd *cobra.Command, s *pulseSetup, fl *pulseFlags) error {
 		}
 	} else {
 		report.WritePulseSweep(out, s.nw, s.plan, pts)
-		if fl.plotsDir != "" {
-			fmt.Fprintf(out, "figures written to %s\n", fl.plotsDir)
-		}
+		writtenTo(out, "figures", fl.plotsDir)
 	}
 	if ok < len(pts) {
 		return analysisError(fmt.Errorf("%d of %d levels did not run to the end; their rows show what they reached", len(pts)-ok, len(pts)))

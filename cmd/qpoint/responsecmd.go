@@ -130,11 +130,7 @@ func runResponse(cmd *cobra.Command, path string, fl *responseFlags) error {
 		return results.Write(out, results.ResponseOf(r, s.c))
 	}
 	report.WriteResponse(out, s.c, s.p, r, s.grid, fl.rows)
-	for _, x := range []struct{ what, path string }{{"CSV", fl.csvPath}, {"Touchstone", fl.touchstone}, {"figures", fl.plotsDir}} {
-		if x.path != "" {
-			fmt.Fprintf(out, "%s written to %s\n", x.what, x.path)
-		}
-	}
+	writtenTo(out, "CSV", fl.csvPath, "Touchstone", fl.touchstone, "figures", fl.plotsDir)
 	return nil
 }
 

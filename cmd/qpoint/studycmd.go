@@ -257,11 +257,7 @@ func runStudy(cmd *cobra.Command, path string, fl *studyFlags) error {
 	if sol != nil {
 		report.WriteSolution(out, s.planned, r, sol)
 	}
-	for _, x := range []struct{ what, path string }{{"CSV", fl.csvPath}, {"figures", fl.plotsDir}} {
-		if x.path != "" {
-			fmt.Fprintf(out, "%s written to %s\n", x.what, x.path)
-		}
-	}
+	writtenTo(out, "CSV", fl.csvPath, "figures", fl.plotsDir)
 	return nil
 }
 

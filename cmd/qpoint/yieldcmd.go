@@ -172,10 +172,6 @@ func runYield(cmd *cobra.Command, path string, fl *yieldFlags) error {
 		return results.Write(out, results.YieldOf(r))
 	}
 	report.WriteYield(out, r)
-	for _, x := range []struct{ what, path string }{{"CSV", fl.csvPath}, {"figures", fl.plotsDir}} {
-		if x.path != "" {
-			fmt.Fprintf(out, "%s written to %s\n", x.what, x.path)
-		}
-	}
+	writtenTo(out, "CSV", fl.csvPath, "figures", fl.plotsDir)
 	return nil
 }

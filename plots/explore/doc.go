@@ -30,5 +30,6 @@
 // command hands it the two writers, to paths fixed before it starts.
 // LoopbackAddress checks the address it is to listen on (this computer
 // only) and Hosts gives the host names it then answers to; OpenBrowser
-// starts the desktop's browser on the page.
+// starts the desktop's browser on the page; Serve runs the server until
+// its context ends.
 package explore

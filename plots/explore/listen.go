@@ -1,12 +1,16 @@
 package explore
 
 import (
+	"context"
+	"errors"
 	"fmt"
 	"net"
+	"net/http"
 	"os/exec"
 	"runtime"
 	"strconv"
 	"strings"
+	"time"
 )
 
 // LoopbackAddress checks an address to serve on: a loopback address
@@ -58,4 +62,25 @@ func OpenBrowser(url string) error {
 	}
 	go c.Wait()
 	return nil
+}
+
+// ErrStopped is the error of a server that stopped by itself.
+var ErrStopped = errors.New("the server stopped")
+
+// Serve serves h on ln until ctx is done, then shuts the server down,
+// letting requests in flight finish for up to five seconds. A server that
+// stops by itself returns ErrStopped, wrapped with the cause. Headers
+// must come within ten seconds and 16 kB.
+func Serve(ctx context.Context, ln net.Listener, h http.Handler) error {
+	srv := &http.Server{Handler: h, ReadHeaderTimeout: 10 * time.Second, MaxHeaderBytes: 16 << 10}
+	served := make(chan error, 1)
+	go func() { served <- srv.Serve(ln) }()
+	select {
+	case err := <-served:
+		return fmt.Errorf("%w: %w", ErrStopped, err)
+	case <-ctx.Done():
+	}
+	stop, cancel := context.WithTimeout(context.Background(), 5*time.Second)
+	defer cancel()
+	return srv.Shutdown(stop)
 }
