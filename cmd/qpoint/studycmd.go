@@ -202,11 +202,7 @@ func runStudy(cmd *cobra.Command, path string, fl *studyFlags) error {
 	if err != nil {
 		return err
 	}
-	total := len(s.settings.Axis.Values)
-	if s.settings.Second != nil {
-		total *= len(s.settings.Second.Values)
-	}
-	bar := output.NewProgress(cmd.ErrOrStderr(), "study", total)
+	bar := output.NewProgress(cmd.ErrOrStderr(), "study", s.settings.Total())
 	s.settings.Progress = bar.Update
 	begin := time.Now()
 	r, err := study.Run(s.c, s.settings)
@@ -215,12 +211,7 @@ func runStudy(cmd *cobra.Command, path string, fl *studyFlags) error {
 		return inputError(err)
 	}
 	elapsed := time.Since(begin)
-	failed := 0
-	for _, st := range r.Steps {
-		if st.Err != nil {
-			failed++
-		}
-	}
+	failed := r.Failed()
 	if failed == len(r.Steps) {
 		return analysisError(fmt.Errorf("no step of the study could be solved: %w", r.Steps[0].Err))
 	}
