@@ -261,13 +261,8 @@ func runDistortionFrequency(cmd *cobra.Command, g *fileGuard, s *distortionSetup
 	}
 	out := cmd.OutOrStdout()
 	if fl.asJSON {
-		doc := results.DistortionHead(s.planned)
-		for _, r := range rows {
-			doc.FrequencySweep = append(doc.FrequencySweep, results.EstimateOf(r.Estimate))
-		}
-		return results.Write(out, doc)
+		return results.Write(out, results.DistortionFrequencyOf(s.planned, rows))
 	}
-	report.WriteDistortionHeader(out, s.nw, s.planned)
-	report.WriteFrequencySweep(out, rows)
+	report.WriteDistortionFrequency(out, s.nw, s.planned, rows)
 	return nil
 }

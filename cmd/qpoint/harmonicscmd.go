@@ -145,11 +145,7 @@ func runWaveformHarmonics(cmd *cobra.Command, path string, fl *waveformFlags) er
 	}
 	out := cmd.OutOrStdout()
 	if fl.asJSON {
-		doc := results.HarmonicsOf(path, w, r)
-		if pred != nil {
-			doc.Prediction = results.WaveformOf(pred)
-		}
-		return results.Write(out, doc)
+		return results.Write(out, results.HarmonicsOf(path, w, r, pred))
 	}
 	report.WriteHarmonics(out, path, w, r)
 	if pred != nil {

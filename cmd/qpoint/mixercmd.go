@@ -169,12 +169,7 @@ func runMixer(cmd *cobra.Command, path string, fl *mixerFlags) error {
 	if fl.asJSON {
 		return results.Write(out, results.MixerOf(s.p, s.plan, res))
 	}
-	report.WriteMixerHeader(out, s.nw, s.plan, res)
-	for _, t := range []*report.Table{report.MixerTable(res), report.MixerPortTable(s.nw, s.plan, res), report.MixerLOTable(s.plan, res),
-		report.MixerDiodeTable(res), report.MixerNoiseTable(res, 6)} {
-		t.WriteText(out)
-	}
-	report.WriteCautions(out, report.MixerCautionMessages(res))
+	report.WriteMixer(out, s.nw, s.plan, res)
 	if fl.plotsDir != "" {
 		fmt.Fprintf(out, "\nfigure written to %s\n", fl.plotsDir)
 	}
@@ -204,9 +199,7 @@ func runMixerSweep(cmd *cobra.Command, s *mixerSetup, fl *mixerFlags, levels []f
 			return err
 		}
 	} else {
-		report.WriteMixerHeader(out, s.nw, s.plan, nil)
-		report.MixerSweepTable(pts).WriteText(out)
-		fmt.Fprintf(out, "  cautions name their kinds; run one level (--lo-level) to read them in full\n")
+		report.WriteMixerSweep(out, s.nw, s.plan, pts)
 		if fl.plotsDir != "" {
 			fmt.Fprintf(out, "\nfigure written to %s\n", fl.plotsDir)
 		}

@@ -210,10 +210,7 @@ func runPulse(cmd *cobra.Command, path string, fl *pulseFlags) error {
 			return err
 		}
 	} else {
-		report.WritePulseHeader(out, s.nw, s.plan, res)
-		report.WritePulseFigures(out, s.nw, res)
-		report.WritePulseStress(out, res)
-		report.WritePulseCautions(out, res.Cautions)
+		report.WritePulse(out, s.nw, s.plan, res)
 		writtenTo(out, "figures", fl.plotsDir, "waveform", fl.csvPath)
 	}
 	if runErr != nil {
@@ -255,11 +252,7 @@ func runPulseSweep(cmd *cobra.Command, s *pulseSetup, fl *pulseFlags) error {
 	}
 	out := cmd.OutOrStdout()
 	if fl.asJSON {
-		doc := results.PulseHead(s.plan)
-		for _, p := range pts {
-			doc.LevelSweep = append(doc.LevelSweep, results.PulseLevelOf(p))
-		}
-		if err := results.Write(out, doc); err != nil {
+		if err := results.Write(out, results.PulseSweepOf(s.plan, pts)); err != nil {
 			return err
 		}
 	} else {

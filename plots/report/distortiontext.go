@@ -237,3 +237,10 @@ func TwoToneFigures(two *steady.State, est *ac.Estimate) []*plots.Figure {
 	}
 	return []*plots.Figure{plots.TwoToneSpectrum(two, est)}
 }
+
+// WriteDistortionFrequency writes the estimate swept over frequency as
+// text: the drive and a row per frequency.
+func WriteDistortionFrequency(w io.Writer, nw *smallsignal.Network, d *plan.Drive, rows []FrequencyRow) {
+	WriteDistortionHeader(w, nw, d)
+	WriteFrequencySweep(w, rows)
+}

@@ -134,3 +134,12 @@ func WritePulseSweep(w io.Writer, nw *smallsignal.Network, pl *plan.Pulse, pts [
 	t.WriteText(w)
 	fmt.Fprintf(w, "  cautions name their kinds; run one level (--level) to read them in full\n\n")
 }
+
+// WritePulse writes a pulse run as text: the header, the figures, the
+// diodes' stress and the cautions.
+func WritePulse(w io.Writer, nw *smallsignal.Network, pl *plan.Pulse, res *transient.PulseResult) {
+	WritePulseHeader(w, nw, pl, res)
+	WritePulseFigures(w, nw, res)
+	WritePulseStress(w, res)
+	WritePulseCautions(w, res.Cautions)
+}
