@@ -13,6 +13,7 @@ import (
 	"runtime/debug"
 	"strings"
 
+	"qpoint/internal/gctune"
 	"qpoint/internal/output"
 
 	"github.com/spf13/cobra"
@@ -38,7 +39,7 @@ func inputError(err error) error    { return &exitError{exitInput, err} }
 func analysisError(err error) error { return &exitError{exitAnalysis, err} }
 
 func main() {
-	tuneGC(nil)
+	gctune.Apply(nil)
 	g := &fileGuard{}
 	stop := g.exitOnInterrupt(os.Stderr)
 	code := runGuarded(g, os.Args[1:], os.Stdout, os.Stderr)
