@@ -239,6 +239,8 @@ type FitCaution struct {
 	Message           string
 }
 
+// Text is the caution as printed: placed at its file and line when it has
+// them.
 func (c FitCaution) Text() string {
 	if c.File != "" && c.Line > 0 {
 		return fmt.Sprintf("%s:%d: %s", c.File, c.Line, strings.TrimPrefix(c.Message, fmt.Sprintf("line %d: ", c.Line)))

@@ -9,7 +9,8 @@ import (
 	"qpoint/smallsignal"
 )
 
-// writeMixerHeader prints what was run.
+// WriteMixerHeader writes what a mixer run drives: the circuit, its bias,
+// ports, LO and RF; res, when not nil, adds the method that solved it.
 func WriteMixerHeader(w io.Writer, nw *smallsignal.Network, m *plan.Mixer, res *mixer.Result) {
 	fmt.Fprintf(w, "%s\n", nw.Point.Circuit.Name)
 	fmt.Fprintf(w, "  file         %s\n", nw.Point.Circuit.File)
