@@ -86,14 +86,11 @@ Settings come from the flags, else from the file's analysis.distortion.`,
 
 // distortionSetup is a resolved distortion run.
 type distortionSetup struct {
-	planned  *plan.Drive
-	c        *circuit.Circuit
-	p        *bias.Point
-	nw       *smallsignal.Network
-	drive    ac.Drive
-	inName   string
-	outName  string
-	levelDBm float64
+	planned *plan.Drive
+	c       *circuit.Circuit
+	p       *bias.Point
+	nw      *smallsignal.Network
+	drive   ac.Drive
 }
 
 func resolveDistortion(g *fileGuard, warn io.Writer, path string, fl *distortionFlags) (*distortionSetup, error) {
@@ -147,7 +144,7 @@ func distortionDrive(c *circuit.Circuit, fl *distortionFlags) (*distortionSetup,
 	if err != nil {
 		return nil, planError(err)
 	}
-	return &distortionSetup{planned: d, c: c, drive: d.Drive, inName: d.InputName, outName: d.OutputName, levelDBm: d.LevelDBm}, nil
+	return &distortionSetup{planned: d, c: c, drive: d.Drive}, nil
 }
 
 func runDistortion(cmd *cobra.Command, path string, fl *distortionFlags) error {

@@ -1,14 +1,13 @@
 package main
 
 import (
+	"cmp"
 	"context"
 	"errors"
 	"fmt"
 	"io"
 	"net"
 	"os"
-	"path/filepath"
-	"strings"
 
 	"github.com/spf13/cobra"
 
@@ -82,13 +81,8 @@ func runExplore(ctx context.Context, g *fileGuard, out, errw io.Writer, o explor
 		}
 		return inputError(err)
 	}
-	stem := strings.TrimSuffix(o.file, filepath.Ext(o.file))
-	if o.circuitOut == "" {
-		o.circuitOut = stem + ".explored.yaml"
-	}
-	if o.reportOut == "" {
-		o.reportOut = stem + ".explored.html"
-	}
+	circuitOut, reportOut := explore.SavePaths(o.file)
+	o.circuitOut, o.reportOut = cmp.Or(o.circuitOut, circuitOut), cmp.Or(o.reportOut, reportOut)
 	if err := g.checkOutputsEarly("", o.circuitOut, o.reportOut); err != nil {
 		return err
 	}

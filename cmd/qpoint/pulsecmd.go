@@ -100,10 +100,6 @@ type pulseSetup struct {
 	p        *bias.Point
 	nw       *smallsignal.Network
 	settings transient.PulseSettings
-	inName   string
-	outName  string
-	levelDBm float64
-	probeDBm float64 // NaN for no probe or the default
 	plan     *plan.Pulse
 }
 
@@ -147,8 +143,7 @@ func resolvePulse(c *circuit.Circuit, fl *pulseFlags, p *bias.Point) (*pulseSetu
 	if err != nil {
 		return nil, planError(err)
 	}
-	s := &pulseSetup{c: c, settings: pl.Settings, inName: pl.InputName, outName: pl.OutputName,
-		levelDBm: pl.LevelDBm, probeDBm: pl.ProbeDBm, plan: pl}
+	s := &pulseSetup{c: c, settings: pl.Settings, plan: pl}
 	if p == nil {
 		if p, err = solveWithTemperature(c, fl.temperature); err != nil {
 			return nil, err

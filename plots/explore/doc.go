@@ -31,5 +31,6 @@
 // LoopbackAddress checks the address it is to listen on (this computer
 // only) and Hosts gives the host names it then answers to; OpenBrowser
 // starts the desktop's browser on the page; Serve runs the server until
-// its context ends.
+// its context ends; SavePaths names the files the save buttons write
+// unless told otherwise.
 package explore

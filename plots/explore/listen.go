@@ -7,6 +7,7 @@ import (
 	"net"
 	"net/http"
 	"os/exec"
+	"path/filepath"
 	"runtime"
 	"strconv"
 	"strings"
@@ -83,4 +84,12 @@ func Serve(ctx context.Context, ln net.Listener, h http.Handler) error {
 	stop, cancel := context.WithTimeout(context.Background(), 5*time.Second)
 	defer cancel()
 	return srv.Shutdown(stop)
+}
+
+// SavePaths are the files the save buttons write unless told otherwise:
+// the circuit file's name with .explored.yaml and .explored.html, beside
+// it and never the file itself.
+func SavePaths(file string) (circuitPath, reportPath string) {
+	stem := strings.TrimSuffix(file, filepath.Ext(file))
+	return stem + ".explored.yaml", stem + ".explored.html"
 }
