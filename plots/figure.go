@@ -3,6 +3,7 @@ package plots
 import (
 	"fmt"
 	"io"
+	"path/filepath"
 	"strings"
 
 	"gonum.org/v1/plot"
@@ -178,4 +179,19 @@ func Write(w io.Writer, format string, f *Figure) (err error) {
 		return fmt.Errorf("plots: writing figure %q as %s: %w", f.Name, format, err)
 	}
 	return nil
+}
+
+// Formats are the files a figure is written as, each by Write.
+var Formats = []string{"svg", "png"}
+
+// Files returns the files figs are written to in dir: each figure's
+// Name with each of Formats as its extension, in that order.
+func Files(dir string, figs []*Figure) []string {
+	var paths []string
+	for _, f := range figs {
+		for _, format := range Formats {
+			paths = append(paths, filepath.Join(dir, f.Name+"."+format))
+		}
+	}
+	return paths
 }

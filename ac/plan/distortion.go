@@ -137,6 +137,19 @@ func ForElements(nw *smallsignal.Network, m steady.Method) steady.Method {
 	return m
 }
 
+// MaxPredictedHarmonic is the highest harmonic PredictHarmonics solves.
+const MaxPredictedHarmonic = 25
+
+// PredictHarmonics solves the steady state of nw under drive's first tone
+// alone to the given harmonic (at most MaxPredictedHarmonic), as a
+// capture at the drive's frequency is set beside it; harmonic balance
+// when the network holds lines or blocks (ForElements).
+func PredictHarmonics(nw *smallsignal.Network, drive ac.Drive, harmonics int) (*steady.State, error) {
+	k := min(harmonics, MaxPredictedHarmonic)
+	drive.SecondToneHz = 0
+	return steady.Solve(nw, drive, steady.Settings{Harmonics: k, Samples: max(255, 8*k+1), Method: ForElements(nw, nil)})
+}
+
 // WaveformError is a waveform at the drive's level that could not be
 // solved.
 type WaveformError struct {

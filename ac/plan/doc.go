@@ -11,6 +11,13 @@
 // *RequestError naming the setting at fault, which a front end reports as
 // bad input; anything else is an analysis failure.
 //
+// Front ends share more than the defaults: the texts of ranges, bands,
+// lists and levels (ParseRange, ParseLevels, ParseBand, ParseFrequencies,
+// ParseTemperatureRange, ParseMixerLevels), the steady-state method
+// request (SteadyMethods), a distortion run (RunDistortion), the waveform
+// a capture is set beside (PredictHarmonics) and a study's goal
+// (Study.Solve).
+//
 // The path every front end takes:
 //
 //	path, err := plan.SignalPath(c, "", "")          // the file's input and output, else the first and last ports

@@ -153,6 +153,28 @@ func ResolveMixer(c *circuit.Circuit, r MixerRequest) (*Mixer, error) {
 
 const mixerExample = "analysis: {mixer: {lo: lo, lo_frequency: 2.4GHz, lo_level: 7dBm, rf: rf, rf_frequency: 2.45GHz, if: if}}"
 
+// ParseMixerLevels reads a sweep of LO levels FROM:TO:STEP given to
+// setting (ParseLevelRange) and lists them (MixerLevels). A level in
+// volts is read behind the LO port's impedance: the port lo names, else
+// the file's analysis.mixer, else 50 Ω.
+func ParseMixerLevels(c *circuit.Circuit, setting, lo, s string) ([]float64, error) {
+	if lo == "" {
+		lo = c.Analysis.Mixer.LO
+	}
+	z0 := 50.0
+	for _, p := range c.Ports {
+		if p.Name == lo {
+			z0 = p.Impedance
+			break
+		}
+	}
+	from, to, step, err := ParseLevelRange(setting, s, z0)
+	if err != nil {
+		return nil, err
+	}
+	return MixerLevels(from, to, step)
+}
+
 // MixerLevels returns the LO levels of a sweep from fromDBm to toDBm in
 // steps of stepDBm, the ends included; at most 200.
 func MixerLevels(fromDBm, toDBm, stepDBm float64) ([]float64, error) {

@@ -5,6 +5,7 @@ package plan
 // setting the text was given to.
 
 import (
+	"math"
 	"strings"
 
 	"qpoint/ac"
@@ -76,6 +77,45 @@ func ParseLevelRange(setting, s string, z0 float64) (from, to, step float64, err
 		return 0, 0, 0, requestErr(setting, "`%s` spans %.1f to %.1f dBm; accepted: levels within -200 to +90 dBm", s, from, to)
 	}
 	return from, to, step, nil
+}
+
+// ParseLevels reads a level sweep as ParseLevelRange does and lists its
+// levels in dBm, from FROM by STEP up to TO; more than most levels is
+// refused.
+func ParseLevels(setting, s string, z0 float64, most int) ([]float64, error) {
+	from, to, step, err := ParseLevelRange(setting, s, z0)
+	if err != nil {
+		return nil, err
+	}
+	n := int(math.Floor((to-from)/step+1e-9)) + 1
+	if n > most {
+		return nil, requestErr(setting, "%d levels; accepted: at most %d", n, most)
+	}
+	levels := make([]float64, n)
+	for i := range levels {
+		levels[i] = from + float64(i)*step
+	}
+	return levels, nil
+}
+
+// ParseTemperatureRange reads an operating range LOW:HIGH, each end a
+// temperature (-40C, 358K), rising; it returns the ends in kelvin.
+func ParseTemperatureRange(setting, s string) (lo, hi float64, err error) {
+	const accepted = "LOW:HIGH, e.g. -40C:85C"
+	a, b, ok := strings.Cut(s, ":")
+	if !ok {
+		return 0, 0, requestErr(setting, "`%s` is not LOW:HIGH; accepted: %s", s, accepted)
+	}
+	if lo, err = circuit.ParseBounded(strings.TrimSpace(a), circuit.Temperature); err == nil {
+		hi, err = circuit.ParseBounded(strings.TrimSpace(b), circuit.Temperature)
+	}
+	if err != nil {
+		return 0, 0, requestErr(setting, "%w", err)
+	}
+	if !(lo < hi) {
+		return 0, 0, requestErr(setting, "`%s` does not rise; accepted: %s", s, accepted)
+	}
+	return lo, hi, nil
 }
 
 // ParseBand reads LOW:HIGH, or HIGH alone when lowDefault is positive.

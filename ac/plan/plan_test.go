@@ -158,3 +158,26 @@ func TestResolveNoiseDetector(t *testing.T) {
 		}
 	}
 }
+
+func TestParseLevels(t *testing.T) {
+	got, err := ParseLevels("sweep-level", "-10dBm:-8dBm:0.5dB", 50, 10)
+	if err != nil || len(got) != 5 || got[0] != -10 || got[4] != -8 {
+		t.Errorf("ParseLevels = %v, %v; want -10 to -8 dBm in 5 levels", got, err)
+	}
+	if _, err := ParseLevels("sweep-level", "-10dBm:10dBm:1dB", 50, 10); err == nil || !strings.Contains(err.Error(), "21 levels; accepted: at most 10") {
+		t.Errorf("too many levels: %v", err)
+	}
+}
+
+func TestParseTemperatureRange(t *testing.T) {
+	lo, hi, err := ParseTemperatureRange("temperature-range", "-40C:85C")
+	if err != nil || math.Abs(lo-233.15) > 1e-9 || math.Abs(hi-358.15) > 1e-9 {
+		t.Errorf("ParseTemperatureRange = %v, %v, %v", lo, hi, err)
+	}
+	for _, s := range []string{"85C", "85C:-40C", "hot:cold"} {
+		var re *RequestError
+		if _, _, err := ParseTemperatureRange("temperature-range", s); !errors.As(err, &re) || re.Settings[0] != "temperature-range" {
+			t.Errorf("%q: %v, want a RequestError of temperature-range", s, err)
+		}
+	}
+}

@@ -45,6 +45,28 @@ type Pulse struct {
 // gave it.
 func (p *Pulse) Where(setting string) string { return p.Sources[setting] }
 
+// RequestError returns the transient's refusal of a run it was given
+// (*transient.RequestError), found only while running, as a *RequestError
+// of the setting at fault: max-steps for the step budget, the file's key
+// when the file gave the value, else the request's setting. Other errors
+// pass unchanged.
+func (p *Pulse) RequestError(err error) error {
+	var re *transient.RequestError
+	if !errors.As(err, &re) {
+		return err
+	}
+	switch re.Field {
+	case "steps":
+		return &RequestError{Settings: []string{"max-steps"}, Err: errors.New(re.Message)}
+	case "delay":
+		return &RequestError{Err: fmt.Errorf("the pulse: %s", re.Message)}
+	}
+	if w := p.Where(re.Field); w != "" {
+		return &RequestError{Err: fmt.Errorf("%s: %s", w, re.Message)}
+	}
+	return &RequestError{Settings: []string{re.Field}, Err: errors.New(re.Message)}
+}
+
 // levelDBmAt returns a level as available power behind z0: a peak voltage
 // is what the generator delivers into a matched load, half its EMF.
 func levelDBmAt(lv circuit.Level, z0 float64) float64 {

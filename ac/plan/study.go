@@ -1,6 +1,7 @@
 package plan
 
 import (
+	"errors"
 	"slices"
 	"strings"
 
@@ -66,6 +67,24 @@ type Study struct {
 	Goal     GoalKind
 	Measure  *study.Measure // nil without a goal
 	Value    float64        // a target's value
+}
+
+// Solve finds the study's goal in r, to tolerance relative to the range:
+// where the measure meets the target's value, or its maximum or minimum;
+// nil without a goal. A target the measure never meets is a
+// *RequestError of the target.
+func (s *Study) Solve(r *study.Result, tolerance float64) (*study.Solution, error) {
+	switch s.Goal {
+	case Target:
+		sol, err := study.FindTarget(r, s.Measure, s.Value, tolerance)
+		if errors.Is(err, study.ErrNoCrossing) {
+			return nil, &RequestError{Settings: []string{"target"}, Err: err}
+		}
+		return sol, err
+	case Maximize, Minimize:
+		return study.Optimize(r, s.Measure, s.Goal == Maximize, tolerance)
+	}
+	return nil, nil
 }
 
 // maxGridPoints bounds a two-axis study's grid.

@@ -101,6 +101,16 @@ type DetectorSettings struct {
 	VideoFromHz, VideoToHz float64
 }
 
+// Total is the number of steps the settings make: the first axis's
+// values, times the second's when there is one.
+func (s *Settings) Total() int {
+	n := len(s.Axis.Values)
+	if s.Second != nil {
+		n *= len(s.Second.Values)
+	}
+	return n
+}
+
 // DistortionFrequencies returns the frequencies at which the study
 // estimates distortion: DistortionHz, else the drive's frequency; none
 // without a drive.
@@ -205,6 +215,17 @@ type Result struct {
 
 // At returns the step at (i, j).
 func (r *Result) At(i, j int) *Step { return &r.Steps[j*r.Shape[0]+i] }
+
+// Failed counts the steps that could not be solved.
+func (r *Result) Failed() int {
+	n := 0
+	for _, st := range r.Steps {
+		if st.Err != nil {
+			n++
+		}
+	}
+	return n
+}
 
 // FirstSolved returns the first step, in grid order, that solved, or nil
 // if none did.

@@ -25,8 +25,9 @@ import (
 // over the serial runs' and, as a control, the
 // cores a trivially parallel busy loop gets right after (cores-free): on
 // a machine others are using, the scaling cannot exceed it. The garbage
-// collector is set as the command sets it (tuneGC in cmd/qpoint) unless
-// GOGC or GOMEMLIMIT is in the environment.
+// collector is set as the command set it before internal/gctune bounded
+// it (off until a 1 GiB heap) unless GOGC or GOMEMLIMIT is in the
+// environment.
 func BenchmarkYield(b *testing.B) {
 	if os.Getenv("GOGC") == "" && os.Getenv("GOMEMLIMIT") == "" {
 		defer debug.SetGCPercent(debug.SetGCPercent(-1))

@@ -7,7 +7,6 @@ import (
 
 	"github.com/spf13/cobra"
 
-	"qpoint/bias"
 	"qpoint/bias/circuit"
 	"qpoint/plots/report"
 	"qpoint/plots/results"
@@ -38,17 +37,9 @@ was tried), 2 bad input or usage.`,
 			if err != nil {
 				return err
 			}
-			var s bias.Settings
-			if temperature != "" {
-				tk, err := circuit.ParseBounded(temperature, circuit.Temperature)
-				if err != nil {
-					return inputError(fmt.Errorf("flag --temperature: %w", err))
-				}
-				s.TemperatureK = tk
-			}
-			p, err := bias.Solve(c, s)
+			p, err := solveWithTemperature(c, temperature)
 			if err != nil {
-				return analysisError(err)
+				return err
 			}
 			if asJSON {
 				return results.Write(cmd.OutOrStdout(), results.BiasOf(p))

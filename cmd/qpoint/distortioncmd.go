@@ -3,19 +3,15 @@ package main
 import (
 	"fmt"
 	"io"
-	"math"
-	"os"
-	"time"
 
-	"github.com/schollz/progressbar/v3"
 	"github.com/spf13/cobra"
-	"golang.org/x/term"
 
 	"qpoint/ac"
 	"qpoint/ac/plan"
 	"qpoint/ac/steady"
 	"qpoint/bias"
 	"qpoint/bias/circuit"
+	"qpoint/internal/output"
 	"qpoint/plots/report"
 	"qpoint/plots/results"
 	"qpoint/smallsignal"
@@ -90,14 +86,11 @@ Settings come from the flags, else from the file's analysis.distortion.`,
 
 // distortionSetup is a resolved distortion run.
 type distortionSetup struct {
-	planned  *plan.Drive
-	c        *circuit.Circuit
-	p        *bias.Point
-	nw       *smallsignal.Network
-	drive    ac.Drive
-	inName   string
-	outName  string
-	levelDBm float64
+	planned *plan.Drive
+	c       *circuit.Circuit
+	p       *bias.Point
+	nw      *smallsignal.Network
+	drive   ac.Drive
 }
 
 func resolveDistortion(g *fileGuard, warn io.Writer, path string, fl *distortionFlags) (*distortionSetup, error) {
@@ -135,33 +128,23 @@ func resolveDistortionFor(c *circuit.Circuit, fl *distortionFlags, p *bias.Point
 // on the plan, without solving anything.
 func distortionDrive(c *circuit.Circuit, fl *distortionFlags) (*distortionSetup, error) {
 	req := plan.DriveRequest{Input: fl.input, Output: fl.output}
+	if err := quantityFlag("frequency", fl.frequency, circuit.Frequency, &req.FrequencyHz); err != nil {
+		return nil, err
+	}
 	var err error
-	if fl.frequency != "" {
-		if req.FrequencyHz, err = circuit.ParseBounded(fl.frequency, circuit.Frequency); err != nil {
-			return nil, inputError(fmt.Errorf("flag --frequency: %w", err))
-		}
+	if req.Level, err = levelFlag("level", fl.level); err != nil {
+		return nil, err
 	}
-	if fl.level != "" {
-		lv, err := circuit.ParseLevel(fl.level)
-		if err != nil {
-			return nil, inputError(fmt.Errorf("flag --level: %w", err))
-		}
-		req.Level = &lv
-	}
-	switch fl.secondTone {
-	case "":
-	case "none":
-		req.DropSecondTone = true
-	default:
-		if req.SecondToneHz, err = circuit.ParseBounded(fl.secondTone, circuit.Frequency); err != nil {
-			return nil, inputError(fmt.Errorf("flag --second-tone: %w", err))
+	if req.DropSecondTone = fl.secondTone == "none"; !req.DropSecondTone {
+		if err := quantityFlag("second-tone", fl.secondTone, circuit.Frequency, &req.SecondToneHz); err != nil {
+			return nil, err
 		}
 	}
 	d, err := plan.ResolveDrive(c, req)
 	if err != nil {
 		return nil, planError(err)
 	}
-	return &distortionSetup{planned: d, c: c, drive: d.Drive, inName: d.InputName, outName: d.OutputName, levelDBm: d.LevelDBm}, nil
+	return &distortionSetup{planned: d, c: c, drive: d.Drive}, nil
 }
 
 func runDistortion(cmd *cobra.Command, path string, fl *distortionFlags) error {
@@ -197,7 +180,7 @@ func runDistortion(cmd *cobra.Command, path string, fl *distortionFlags) error {
 		fmt.Fprintf(cmd.ErrOrStderr(), "qpoint: two-tone level sweep stopped: %v\n", res.TwoToneSweepErr)
 	}
 	if fl.plotsDir != "" {
-		if err := g.writeDistortionPlots(fl.plotsDir, s, res.OneTone, res.Waveform, res.Sweep, res.Transfer, res.TangentialDBm, report.TwoToneFigures(res.TwoTone, res.Estimate)...); err != nil {
+		if err := g.writeFigures(fl.plotsDir, report.DistortionRunFigures(res)); err != nil {
 			return err
 		}
 	}
@@ -206,9 +189,7 @@ func runDistortion(cmd *cobra.Command, path string, fl *distortionFlags) error {
 		return results.Write(out, results.DistortionOf(s.planned, res))
 	}
 	report.WriteDistortion(out, s.nw, s.planned, res)
-	if fl.plotsDir != "" {
-		fmt.Fprintf(out, "figures written to %s\n", fl.plotsDir)
-	}
+	writtenTo(out, "figures", fl.plotsDir)
 	return nil
 }
 
@@ -233,17 +214,8 @@ func distortionRequest(cmd *cobra.Command, s *distortionSetup, fl *distortionFla
 	if fl.sweepLevel == "" {
 		return req, nil
 	}
-	from, to, step, err := plan.ParseLevelRange("sweep-level", fl.sweepLevel, s.c.Ports[s.drive.Input].Impedance)
-	if err != nil {
+	if req.Levels, err = plan.ParseLevels("sweep-level", fl.sweepLevel, s.c.Ports[s.drive.Input].Impedance, 2000); err != nil {
 		return req, planError(err)
-	}
-	n := int(math.Floor((to-from)/step+1e-9)) + 1
-	if n > 2000 {
-		return req, inputError(fmt.Errorf("flag --sweep-level: %d levels; accepted: at most 2000", n))
-	}
-	req.Levels = make([]float64, n)
-	for i := range req.Levels {
-		req.Levels[i] = from + float64(i)*step
 	}
 	band := fl.videoBandwidth
 	if band == "" {
@@ -255,8 +227,8 @@ func distortionRequest(cmd *cobra.Command, s *distortionSetup, fl *distortionFla
 	}
 	req.VideoHz = [2]float64{lo, hi}
 	req.Progress = func(stage string, n int) (func(done, total int), func()) {
-		bar := newProgress(cmd.ErrOrStderr(), stage, n)
-		return bar.update, bar.done
+		bar := output.NewProgress(cmd.ErrOrStderr(), stage, n)
+		return bar.Update, bar.Done
 	}
 	return req, nil
 }
@@ -280,58 +252,14 @@ func runDistortionFrequency(cmd *cobra.Command, g *fileGuard, s *distortionSetup
 		return analysisError(err)
 	}
 	if fl.plotsDir != "" {
-		if err := g.writeDistortionFrequencyPlot(fl.plotsDir, rows); err != nil {
+		if err := g.writeFigures(fl.plotsDir, report.FrequencySweepFigures(rows)); err != nil {
 			return err
 		}
 	}
 	out := cmd.OutOrStdout()
 	if fl.asJSON {
-		doc := results.DistortionHead(s.planned)
-		for _, r := range rows {
-			doc.FrequencySweep = append(doc.FrequencySweep, results.EstimateOf(r.Estimate))
-		}
-		return results.Write(out, doc)
+		return results.Write(out, results.DistortionFrequencyOf(s.planned, rows))
 	}
-	report.WriteDistortionHeader(out, s.nw, s.planned)
-	report.WriteFrequencySweep(out, rows)
+	report.WriteDistortionFrequency(out, s.nw, s.planned, rows)
 	return nil
-}
-
-// progress draws a bar with the count, rate and time left on standard
-// error when it is a terminal (golang.org/x/term), and nothing otherwise,
-// so that logs and pipes stay clean. The bar is schollz/progressbar's.
-type progress struct {
-	bar *progressbar.ProgressBar
-}
-
-func newProgress(w io.Writer, label string, total int) *progress {
-	f, ok := w.(*os.File)
-	if !ok || !term.IsTerminal(int(f.Fd())) || total <= 1 {
-		return &progress{}
-	}
-	return &progress{bar: progressbar.NewOptions(total,
-		progressbar.OptionSetWriter(w),
-		progressbar.OptionSetDescription(label),
-		progressbar.OptionShowCount(),
-		progressbar.OptionSetPredictTime(true),
-		progressbar.OptionSetWidth(30),
-		progressbar.OptionThrottle(100*time.Millisecond),
-		progressbar.OptionClearOnFinish(),
-		progressbar.OptionSetTheme(progressbar.Theme{Saucer: "█", SaucerPadding: "·", BarStart: "[", BarEnd: "]"}),
-	)}
-}
-
-// update shows done steps of total; it may be called from any goroutine
-// that holds the caller's lock, as study progress is.
-func (p *progress) update(done, total int) {
-	if p.bar != nil {
-		_ = p.bar.Set(done)
-	}
-}
-
-// done removes the bar.
-func (p *progress) done() {
-	if p.bar != nil {
-		_ = p.bar.Finish()
-	}
 }

@@ -1,18 +1,13 @@
 package main
 
 import (
+	"cmp"
 	"context"
+	"errors"
 	"fmt"
 	"io"
 	"net"
-	"net/http"
 	"os"
-	"os/exec"
-	"path/filepath"
-	"runtime"
-	"strconv"
-	"strings"
-	"time"
 
 	"github.com/spf13/cobra"
 
@@ -86,19 +81,14 @@ func runExplore(ctx context.Context, g *fileGuard, out, errw io.Writer, o explor
 		}
 		return inputError(err)
 	}
-	stem := strings.TrimSuffix(o.file, filepath.Ext(o.file))
-	if o.circuitOut == "" {
-		o.circuitOut = stem + ".explored.yaml"
-	}
-	if o.reportOut == "" {
-		o.reportOut = stem + ".explored.html"
-	}
+	circuitOut, reportOut := explore.SavePaths(o.file)
+	o.circuitOut, o.reportOut = cmp.Or(o.circuitOut, circuitOut), cmp.Or(o.reportOut, reportOut)
 	if err := g.checkOutputsEarly("", o.circuitOut, o.reportOut); err != nil {
 		return err
 	}
-	addr, err := loopbackAddress(o.listen)
+	addr, err := explore.LoopbackAddress(o.listen)
 	if err != nil {
-		return err
+		return inputError(fmt.Errorf("flag --listen: %w", err))
 	}
 	ln, err := net.Listen("tcp", addr)
 	if err != nil {
@@ -106,36 +96,29 @@ func runExplore(ctx context.Context, g *fileGuard, out, errw io.Writer, o explor
 	}
 	defer ln.Close()
 	bound := ln.Addr().String()
-	_, port, _ := net.SplitHostPort(bound)
 	url := "http://" + bound + "/"
 	h := explore.Handler(s, explore.Settings{
-		Hosts:       []string{bound, "localhost:" + port},
+		Hosts:       explore.Hosts(bound),
 		CircuitPath: o.circuitOut,
 		SaveCircuit: func(data []byte) error { return writeWhole(g, o.circuitOut, data) },
 		ReportPath:  o.reportOut,
 		SaveReport:  func(data []byte) error { return writeWhole(g, o.reportOut, data) },
 	})
-	srv := &http.Server{Handler: h, ReadHeaderTimeout: 10 * time.Second, MaxHeaderBytes: 16 << 10, ErrorLog: nil}
 	fmt.Fprintf(out, "qpoint explore: %s\n  open %s in a browser on this computer; Ctrl-C stops the server\n  the save button writes %s, the report button %s\n",
 		o.file, url, o.circuitOut, o.reportOut)
 	if o.open {
-		if err := openBrowser(url); err != nil {
+		if err := explore.OpenBrowser(url); err != nil {
 			fmt.Fprintf(errw, "qpoint: could not start a browser (%v); open %s yourself\n", err, url)
 		}
 	}
 	if ready != nil {
 		ready(url)
 	}
-	served := make(chan error, 1)
-	go func() { served <- srv.Serve(ln) }()
-	select {
-	case err := <-served:
-		return analysisError(fmt.Errorf("the server stopped: %w", err))
-	case <-ctx.Done():
+	err = explore.Serve(ctx, ln, h)
+	if errors.Is(err, explore.ErrStopped) {
+		return analysisError(err)
 	}
-	stop, cancel := context.WithTimeout(context.Background(), 5*time.Second)
-	defer cancel()
-	return srv.Shutdown(stop)
+	return err
 }
 
 // writeWhole writes data to path whole or not at all.
@@ -144,46 +127,4 @@ func writeWhole(g *fileGuard, path string, data []byte) error {
 		_, err := w.Write(data)
 		return err
 	})
-}
-
-// loopbackAddress checks --listen: a loopback address (127.0.0.0/8, ::1
-// or localhost) and a port, 127.0.0.1 and a free port when not given.
-func loopbackAddress(s string) (string, error) {
-	const accepted = "accepted: a loopback address and port such as 127.0.0.1:8470, [::1]:8470 or localhost:8470 (port 0 picks a free one)"
-	if s == "" {
-		return "127.0.0.1:0", nil
-	}
-	host, port, err := net.SplitHostPort(s)
-	if err != nil {
-		return "", inputError(fmt.Errorf("flag --listen: %q is not HOST:PORT; %s", s, accepted))
-	}
-	if p, err := strconv.Atoi(port); err != nil || p < 0 || p > 65535 {
-		return "", inputError(fmt.Errorf("flag --listen: port %q is not a number from 0 to 65535; %s", port, accepted))
-	}
-	if strings.EqualFold(host, "localhost") {
-		host = "127.0.0.1"
-	}
-	ip := net.ParseIP(host)
-	if ip == nil || !ip.IsLoopback() {
-		return "", inputError(fmt.Errorf("flag --listen: %q is not a loopback address; the explorer serves this computer only; %s", host, accepted))
-	}
-	return net.JoinHostPort(ip.String(), port), nil
-}
-
-// openBrowser asks the desktop to open url in the user's browser.
-func openBrowser(url string) error {
-	var c *exec.Cmd
-	switch runtime.GOOS {
-	case "darwin":
-		c = exec.Command("open", url)
-	case "windows":
-		c = exec.Command("rundll32", "url.dll,FileProtocolHandler", url)
-	default:
-		c = exec.Command("xdg-open", url)
-	}
-	if err := c.Start(); err != nil {
-		return err
-	}
-	go c.Wait()
-	return nil
 }

@@ -1,7 +1,6 @@
 package main
 
 import (
-	"bufio"
 	"context"
 	"errors"
 	"fmt"
@@ -9,8 +8,9 @@ import (
 	"os"
 	"os/signal"
 	"path/filepath"
-	"sync"
 	"syscall"
+
+	"qpoint/internal/output"
 
 	"github.com/spf13/cobra"
 )
@@ -22,10 +22,8 @@ import (
 // output goes through its methods. run makes one per run and hands it to
 // the commands in their context (guardOf).
 type fileGuard struct {
-	inputs []string
-
-	mu       sync.Mutex
-	partials map[string]bool
+	inputs   []string
+	partials output.Partials
 }
 
 type guardKey struct{}
@@ -52,36 +50,10 @@ func (g *fileGuard) read(path string) {
 	g.inputs = append(g.inputs, path)
 }
 
-func (g *fileGuard) addPartial(name string) {
-	g.mu.Lock()
-	if g.partials == nil {
-		g.partials = map[string]bool{}
-	}
-	g.partials[name] = true
-	g.mu.Unlock()
-}
-
-func (g *fileGuard) dropPartial(name string) {
-	g.mu.Lock()
-	delete(g.partials, name)
-	g.mu.Unlock()
-}
-
 // removePartials deletes every temporary file still being written and
 // returns how many it removed. It runs on the way out: a write still going
 // fails at its rename, and the process exits.
-func (g *fileGuard) removePartials() int {
-	g.mu.Lock()
-	defer g.mu.Unlock()
-	n := 0
-	for name := range g.partials {
-		if os.Remove(name) == nil {
-			n++
-		}
-		delete(g.partials, name)
-	}
-	return n
-}
+func (g *fileGuard) removePartials() int { return g.partials.Remove() }
 
 // exitOnInterrupt makes an interrupt (Ctrl-C), a termination request or a
 // hang-up (the terminal closed) remove the temporary files of outputs not yet finished, say so, and exit
@@ -111,125 +83,23 @@ func (g *fileGuard) exitOnInterrupt(stderr io.Writer) (stop func()) {
 	}
 }
 
-// writeFileAtomic writes a whole file or nothing: the content goes to a
-// temporary file in the same directory, which is synced and renamed over
-// path only when write succeeded. A write that fails or panics leaves any
-// old file at path untouched and removes the temporary file. A file
-// replaced keeps its permission bits; a new one gets 0644.
-//
-// Only a regular file is ever replaced. A symbolic link is followed and
-// its target written (atomically, when the target is a regular file); a
-// character device or a named pipe (/dev/null, /dev/stdout, a FIFO) is
-// written through, as a stream that cannot be whole or nothing; anything
-// else (a directory, a socket, a block device, a dangling link) is
-// refused.
-func (g *fileGuard) writeFileAtomic(path string, write func(w io.Writer) error) (err error) {
+// writeFileAtomic writes a whole file or nothing (output.WriteFile), and
+// refuses an input of the run. A refusal of the path is bad input.
+func (g *fileGuard) writeFileAtomic(path string, write func(w io.Writer) error) error {
 	if err := g.refuseInput(path); err != nil {
 		return err
 	}
-	target, through, err := outputTarget(path)
-	if err != nil {
-		return err
-	}
-	if through {
-		return writeThrough(path, target, write)
-	}
-	mode := os.FileMode(0o644)
-	if st, err := os.Stat(target); err == nil {
-		mode = st.Mode().Perm()
-	}
-	dir := filepath.Dir(target)
-	tmp, err := os.CreateTemp(dir, "."+filepath.Base(target)+".*.partial")
-	if err != nil {
-		return inputError(fmt.Errorf("cannot write %s: %w", path, err))
-	}
-	g.addPartial(tmp.Name())
-	defer g.dropPartial(tmp.Name())
-	// Until the rename, the temporary file goes away on every way out,
-	// a panic in write included (run recovers it, far from here).
-	renamed := false
-	defer func() {
-		if !renamed {
-			tmp.Close()
-			os.Remove(tmp.Name())
-		}
-	}()
-	bw := bufio.NewWriter(tmp)
-	if err := write(bw); err != nil {
-		return fmt.Errorf("writing %s: %w", path, err)
-	}
-	if err := bw.Flush(); err != nil {
-		return fmt.Errorf("writing %s: %w", path, err)
-	}
-	if err := tmp.Sync(); err != nil {
-		return fmt.Errorf("writing %s: %w", path, err)
-	}
-	if err := tmp.Close(); err != nil {
-		return fmt.Errorf("writing %s: %w", path, err)
-	}
-	if err := os.Chmod(tmp.Name(), mode); err != nil {
-		return fmt.Errorf("writing %s: %w", path, err)
-	}
-	if err := os.Rename(tmp.Name(), target); err != nil {
-		return fmt.Errorf("writing %s: %w", path, err)
-	}
-	renamed = true
-	return nil
+	return pathError(output.WriteFile(path, &g.partials, write))
 }
 
-// outputTarget returns the file an output named path goes to: path itself,
-// or the target of the symbolic link it names, and whether that is a
-// device or pipe to write through rather than replace. It refuses what
-// may not be written.
-func outputTarget(path string) (target string, through bool, err error) {
-	st, err := os.Lstat(path)
-	if errors.Is(err, os.ErrNotExist) {
-		return path, false, nil
+// pathError makes output's refusal of a path (*output.PathError) bad
+// input; other errors pass unchanged.
+func pathError(err error) error {
+	var pe *output.PathError
+	if errors.As(err, &pe) {
+		return inputError(err)
 	}
-	if err != nil {
-		return "", false, inputError(fmt.Errorf("cannot write %s: %w", path, err))
-	}
-	target = path
-	if st.Mode()&os.ModeSymlink != 0 {
-		resolved, err := filepath.EvalSymlinks(path)
-		if err != nil {
-			return "", false, inputError(fmt.Errorf("refusing to write %s: it is a symbolic link whose target cannot be reached (%v); accepted: a regular file, a link to one, or a device such as /dev/null", path, err))
-		}
-		target = resolved
-		if st, err = os.Stat(resolved); err != nil {
-			return "", false, inputError(fmt.Errorf("cannot write %s: %w", path, err))
-		}
-	}
-	switch m := st.Mode(); {
-	case m.IsRegular():
-		return target, false, nil
-	case m&os.ModeCharDevice != 0, m&os.ModeNamedPipe != 0:
-		return target, true, nil
-	case m.IsDir():
-		return "", false, inputError(fmt.Errorf("refusing to write %s: it is a directory; accepted: a file name", path))
-	default:
-		return "", false, inputError(fmt.Errorf("refusing to write %s: it is a %v, not a regular file; accepted: a regular file, a link to one, or a character device or named pipe to write through", path, m.Type()))
-	}
-}
-
-// writeThrough writes to an existing device or named pipe as a stream.
-func writeThrough(path, target string, write func(w io.Writer) error) error {
-	f, err := os.OpenFile(target, os.O_WRONLY, 0)
-	if err != nil {
-		return fmt.Errorf("cannot write %s: %w", path, err)
-	}
-	bw := bufio.NewWriter(f)
-	err = write(bw)
-	if err == nil {
-		err = bw.Flush()
-	}
-	if cerr := f.Close(); err == nil {
-		err = cerr
-	}
-	if err != nil {
-		return fmt.Errorf("writing %s: %w", path, err)
-	}
-	return nil
+	return err
 }
 
 // refuseInputs checks a command's outputs before it writes any (or
@@ -247,9 +117,9 @@ func (g *fileGuard) refuseInputs(paths ...string) error {
 		if err := g.refuseInput(p); err != nil {
 			return err
 		}
-		target, _, err := outputTarget(p)
+		target, _, err := output.Target(p)
 		if err != nil {
-			return err
+			return inputError(err)
 		}
 		key, err := filepath.Abs(target)
 		if err != nil {
@@ -262,8 +132,8 @@ func (g *fileGuard) refuseInputs(paths ...string) error {
 			return inputError(fmt.Errorf("refusing to write %s twice: %s and %s name the same file; choose different output names", target, first, p))
 		}
 		seen[key] = p
-		if err := refuseFolder(filepath.Dir(target), p); err != nil {
-			return err
+		if err := output.CheckFolder(filepath.Dir(target), p); err != nil {
+			return inputError(err)
 		}
 	}
 	return nil
@@ -284,27 +154,7 @@ func (g *fileGuard) checkOutputsEarly(plotsDir string, files ...string) error {
 	if st, err := os.Stat(plotsDir); err == nil && !st.IsDir() {
 		return inputError(fmt.Errorf("flag --plots: %s is not a directory; accepted: a folder, existing or new", plotsDir))
 	}
-	return refuseFolder(plotsDir, plotsDir)
-}
-
-// refuseFolder fails when dir, the folder an output goes to, exists as
-// something other than a folder, or lies under such a thing.
-func refuseFolder(dir, output string) error {
-	for d := dir; ; d = filepath.Dir(d) {
-		st, err := os.Stat(d)
-		if err == nil {
-			if !st.IsDir() {
-				return inputError(fmt.Errorf("cannot write %s: %s is not a directory", output, d))
-			}
-			return nil
-		}
-		if !errors.Is(err, os.ErrNotExist) {
-			return inputError(fmt.Errorf("cannot write %s: %w", output, err))
-		}
-		if parent := filepath.Dir(d); parent == d {
-			return nil
-		}
-	}
+	return pathError(output.CheckFolder(plotsDir, plotsDir))
 }
 
 // refuseInput fails when path names one of the command's input files.

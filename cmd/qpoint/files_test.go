@@ -103,7 +103,7 @@ func TestWriteInterrupted(t *testing.T) {
 			return results.WriteResponseCSV(&failAfter{w, 20 << 10}, r)
 		}, errDiskFull, false},
 		{"Touchstone writer fails after 1 kB", func(w io.Writer) error {
-			return writeTouchstone(&failAfter{w, 1 << 10}, &circuit.Circuit{}, r, touchstone.FormatRI)
+			return results.WriteTouchstone(&failAfter{w, 1 << 10}, &circuit.Circuit{}, r, touchstone.FormatRI)
 		}, errDiskFull, false},
 		{"generator panics midway", func(w io.Writer) error {
 			io.WriteString(w, big)

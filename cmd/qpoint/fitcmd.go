@@ -5,7 +5,6 @@ import (
 	"fmt"
 	"io"
 	"os"
-	"path/filepath"
 	"strings"
 
 	"github.com/spf13/cobra"
@@ -113,12 +112,8 @@ func readFitInput(g *fileGuard, fl *fitFlags) (*report.FitInput, error) {
 		return nil, inputError(fmt.Errorf("flag --temperature: %w", err))
 	}
 	in.Settings.TemperatureK = tk
-	if fl.measuredAt != "" {
-		t0, err := circuit.ParseBounded(fl.measuredAt, circuit.Temperature)
-		if err != nil {
-			return nil, inputError(fmt.Errorf("flag --measured-at: %w", err))
-		}
-		in.Settings.MeasuredAtK = t0
+	if err := quantityFlag("measured-at", fl.measuredAt, circuit.Temperature, &in.Settings.MeasuredAtK); err != nil {
+		return nil, err
 	}
 	if fl.floor != "" {
 		floor, err := circuit.ParseBounded(fl.floor, circuit.Current)
@@ -130,41 +125,38 @@ func readFitInput(g *fileGuard, fl *fitFlags) (*report.FitInput, error) {
 		}
 		in.Settings.CurrentFloor = floor
 	}
-	for _, spec := range fl.iv {
-		f, err := g.readMeasurementFile("--iv", spec, measured.CurrentVoltage, len(in.Data.Current))
-		if err != nil {
-			return nil, err
+	for _, f := range []struct {
+		flag  string
+		specs []string
+		kind  measured.Kind
+	}{{"--iv", fl.iv, measured.CurrentVoltage}, {"--cv", fl.cv, measured.CapacitanceVoltage}} {
+		for _, spec := range f.specs {
+			path, t, err := g.readMeasurementFile(f.flag, spec, f.kind)
+			if err != nil {
+				return nil, err
+			}
+			in.Add(path, t)
 		}
-		in.IV = append(in.IV, *f)
-		in.Data.Current = append(in.Data.Current, f.Table.Points...)
-	}
-	for _, spec := range fl.cv {
-		f, err := g.readMeasurementFile("--cv", spec, measured.CapacitanceVoltage, len(in.Data.Capacitance))
-		if err != nil {
-			return nil, err
-		}
-		in.CV = append(in.CV, *f)
-		in.Data.Capacitance = append(in.Data.Capacitance, f.Table.Points...)
 	}
 	in.Name = fl.name
 	if in.Name == "" {
-		in.Name = modelName(in.IV[0].Path)
+		in.Name = report.ModelName(in.IV[0].Path)
 	}
-	if err := checkModelName(in.Name); err != nil {
-		return nil, err
+	if err := report.CheckModelName(in.Name); err != nil {
+		return nil, inputError(fmt.Errorf("flag --name %q: %w", in.Name, err))
 	}
 	return in, nil
 }
 
 // readMeasurementFile reads FILE or FILE@TEMPERATURE and checks that it
 // holds the kind of points its flag asks for.
-func (g *fileGuard) readMeasurementFile(flag, spec string, kind measured.Kind, offset int) (*report.FitFile, error) {
+func (g *fileGuard) readMeasurementFile(flag, spec string, kind measured.Kind) (string, *measured.Table, error) {
 	path, tempK := spec, 0.0
 	if _, err := os.Stat(spec); err != nil {
 		if at := strings.LastIndexByte(spec, '@'); at > 0 {
 			t, perr := circuit.ParseBounded(spec[at+1:], circuit.Temperature)
 			if perr != nil {
-				return nil, inputError(fmt.Errorf("flag %s %s: after @ %w", flag, spec, perr))
+				return "", nil, inputError(fmt.Errorf("flag %s %s: after @ %w", flag, spec, perr))
 			}
 			path, tempK = spec[:at], t
 		}
@@ -172,60 +164,29 @@ func (g *fileGuard) readMeasurementFile(flag, spec string, kind measured.Kind, o
 	g.read(path)
 	fh, err := os.Open(path)
 	if err != nil {
-		return nil, inputError(fmt.Errorf("flag %s: cannot read the measurement file: %w", flag, err))
+		return "", nil, inputError(fmt.Errorf("flag %s: cannot read the measurement file: %w", flag, err))
 	}
 	defer fh.Close()
 	t, err := measured.Read(fh)
 	var pe *measured.ParseError
 	switch {
 	case errors.As(err, &pe):
-		return nil, inputError(fmt.Errorf("%s:%d:%d: %s", path, pe.Line, pe.Column, pe.Msg))
+		return "", nil, inputError(fmt.Errorf("%s:%d:%d: %s", path, pe.Line, pe.Column, pe.Msg))
 	case err != nil:
-		return nil, inputError(fmt.Errorf("%s: %w", path, err))
+		return "", nil, inputError(fmt.Errorf("%s: %w", path, err))
 	}
 	if t.Kind != kind {
 		other := map[measured.Kind]string{measured.CurrentVoltage: "--iv", measured.CapacitanceVoltage: "--cv"}[t.Kind]
-		return nil, inputError(fmt.Errorf("%s:%d:1: an %s file given as %s; accepted: I–V files (voltage, current) with --iv and C–V files (voltage, capacitance) with --cv; give it as %s",
+		return "", nil, inputError(fmt.Errorf("%s:%d:1: an %s file given as %s; accepted: I–V files (voltage, current) with --iv and C–V files (voltage, capacitance) with --cv; give it as %s",
 			path, t.HeaderLine, t.Kind, flag, other))
 	}
 	if tempK > 0 {
 		if t.HasTemperature {
-			return nil, inputError(fmt.Errorf("flag %s %s: the file has a temperature column, so @%s cannot apply; accepted: FILE@TEMPERATURE only for a file without one", flag, spec, spec[strings.LastIndexByte(spec, '@')+1:]))
+			return "", nil, inputError(fmt.Errorf("flag %s %s: the file has a temperature column, so @%s cannot apply; accepted: FILE@TEMPERATURE only for a file without one", flag, spec, spec[strings.LastIndexByte(spec, '@')+1:]))
 		}
 		for i := range t.Points {
 			t.Points[i].TemperatureK = tempK
 		}
 	}
-	return &report.FitFile{Path: path, Table: t, Offset: offset}, nil
-}
-
-// modelName makes a model name from a file name: its stem in lower case,
-// other characters than letters and digits turned into underscores.
-func modelName(path string) string {
-	stem := strings.TrimSuffix(filepath.Base(path), filepath.Ext(path))
-	var b strings.Builder
-	for _, r := range strings.ToLower(stem) {
-		if (r >= 'a' && r <= 'z') || (r >= '0' && r <= '9') {
-			b.WriteRune(r)
-		} else {
-			b.WriteByte('_')
-		}
-	}
-	name := strings.Trim(b.String(), "_")
-	if name == "" || (name[0] >= '0' && name[0] <= '9') || name == circuit.Ground {
-		name = "fitted_" + name
-	}
-	return strings.TrimSuffix(name, "_")
-}
-
-func checkModelName(name string) error {
-	for _, r := range name {
-		if !(r == '_' || r == '-' || (r >= 'a' && r <= 'z') || (r >= 'A' && r <= 'Z') || (r >= '0' && r <= '9')) {
-			return inputError(fmt.Errorf("flag --name %q: accepted: letters, digits, - and _ (a YAML key that needs no quotes)", name))
-		}
-	}
-	if name == "" || len(name) > 100 || name == circuit.Ground {
-		return inputError(fmt.Errorf("flag --name %q: accepted: a name of 1 to 100 letters, digits, - and _, other than %s", name, circuit.Ground))
-	}
-	return nil
+	return path, t, nil
 }

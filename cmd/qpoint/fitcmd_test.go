@@ -270,17 +270,3 @@ func TestFitUsageErrors(t *testing.T) {
 		}
 	}
 }
-
-func TestModelName(t *testing.T) {
-	for in, want := range map[string]string{
-		"testdata/fit/detector_iv.csv": "detector_iv",
-		"Bench 3 (hot).CSV":            "bench_3__hot",
-		"2024-05-01.csv":               "fitted_2024_05_01",
-		"gnd.csv":                      "fitted_gnd",
-		"+++.csv":                      "fitted",
-	} {
-		if got := modelName(in); got != want {
-			t.Errorf("modelName(%q) = %q, want %q", in, got, want)
-		}
-	}
-}

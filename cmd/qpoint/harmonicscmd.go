@@ -14,6 +14,7 @@ import (
 	"github.com/spf13/cobra"
 
 	"qpoint/ac/measure"
+	"qpoint/ac/plan"
 	"qpoint/ac/steady"
 	"qpoint/bias/circuit"
 )
@@ -138,18 +139,13 @@ func runWaveformHarmonics(cmd *cobra.Command, path string, fl *waveformFlags) er
 	}
 	var pred *steady.State
 	if fl.circuitPath != "" {
-		k := min(fl.harmonics, 25)
-		if pred, err = predictHarmonics(g, cmd.ErrOrStderr(), fl, r.FundamentalHz, k); err != nil {
+		if pred, err = predictHarmonics(g, cmd.ErrOrStderr(), fl, r.FundamentalHz); err != nil {
 			return err
 		}
 	}
 	out := cmd.OutOrStdout()
 	if fl.asJSON {
-		doc := results.HarmonicsOf(path, w, r)
-		if pred != nil {
-			doc.Prediction = results.WaveformOf(pred)
-		}
-		return results.Write(out, doc)
+		return results.Write(out, results.HarmonicsOf(path, w, r, pred))
 	}
 	report.WriteHarmonics(out, path, w, r)
 	if pred != nil {
@@ -160,15 +156,13 @@ func runWaveformHarmonics(cmd *cobra.Command, path string, fl *waveformFlags) er
 
 // predictHarmonics solves the circuit's steady state at the measured
 // fundamental with the flags' (or the file's) drive.
-func predictHarmonics(g *fileGuard, warn io.Writer, fl *waveformFlags, fundamentalHz float64, k int) (*steady.State, error) {
+func predictHarmonics(g *fileGuard, warn io.Writer, fl *waveformFlags, fundamentalHz float64) (*steady.State, error) {
 	ds, err := resolveDistortion(g, warn, fl.circuitPath, &distortionFlags{input: fl.input, output: fl.output, level: fl.level, sets: fl.sets,
 		frequency: strconv.FormatFloat(fundamentalHz, 'g', -1, 64) + "Hz"})
 	if err != nil {
 		return nil, err
 	}
-	d := ds.drive
-	d.SecondToneHz = 0
-	st, err := steady.Solve(ds.nw, d, steady.Settings{Harmonics: k, Samples: max(255, 8*k+1), Method: steadyFor(ds.nw)})
+	st, err := plan.PredictHarmonics(ds.nw, ds.drive, fl.harmonics)
 	if err != nil {
 		return nil, analysisError(fmt.Errorf("prediction from %s at %s: %w", fl.circuitPath, si.Format(fundamentalHz, "Hz", 6), err))
 	}

@@ -12,8 +12,9 @@ import (
 	"os"
 	"runtime/debug"
 	"strings"
-	"unicode"
-	"unicode/utf8"
+
+	"qpoint/internal/gctune"
+	"qpoint/internal/output"
 
 	"github.com/spf13/cobra"
 )
@@ -38,7 +39,7 @@ func inputError(err error) error    { return &exitError{exitInput, err} }
 func analysisError(err error) error { return &exitError{exitAnalysis, err} }
 
 func main() {
-	tuneGC(nil)
+	gctune.Apply(nil)
 	g := &fileGuard{}
 	stop := g.exitOnInterrupt(os.Stderr)
 	code := runGuarded(g, os.Args[1:], os.Stdout, os.Stderr)
@@ -61,15 +62,15 @@ func runGuarded(g *fileGuard, args []string, stdout, stderr io.Writer) (code int
 			code = exitAnalysis
 		}
 	}()
-	out := &checkedWriter{w: &escapingWriter{w: stdout}}
-	stderr = &escapingWriter{w: stderr}
+	out := &output.Checked{W: &output.Escaping{W: stdout}}
+	stderr = &output.Escaping{W: stderr}
 	root := newRoot(out, stderr)
 	root.SetArgs(args)
 	err := root.ExecuteContext(withGuard(context.Background(), g))
-	if err == nil && out.err != nil {
+	if err == nil && out.Err != nil {
 		// A table or document that did not reach its reader is a
 		// failure, whatever the analysis did (a closed or full output).
-		err = analysisError(fmt.Errorf("writing standard output: %w", out.err))
+		err = analysisError(fmt.Errorf("writing standard output: %w", out.Err))
 	}
 	if err == nil {
 		return exitOK
@@ -122,77 +123,6 @@ func version() string {
 		}
 	}
 	return v + ", " + info.GoVersion
-}
-
-// checkedWriter passes writes on and keeps the first error, so that a
-// command printing many lines with fmt.Fprintf cannot lose one unseen.
-type checkedWriter struct {
-	w   io.Writer
-	err error
-}
-
-func (c *checkedWriter) Write(p []byte) (int, error) {
-	if c.err != nil {
-		return 0, c.err
-	}
-	n, err := c.w.Write(p)
-	if err != nil {
-		c.err = err
-	}
-	return n, err
-}
-
-// escapingWriter passes text on with control characters and bidirectional
-// overrides written as visible escapes (\x07, \u202e): a name in a circuit
-// file or a flag can hold them (YAML's "\e[2J" is an escape sequence), and
-// printed raw they would act on the terminal or hide what a line says.
-// Tabs and line breaks pass unchanged. A character split between two
-// writes is held until the next.
-type escapingWriter struct {
-	w     io.Writer
-	carry []byte
-	buf   []byte
-}
-
-func (e *escapingWriter) Write(p []byte) (int, error) {
-	data := p
-	if len(e.carry) > 0 {
-		data = append(e.carry, p...)
-		e.carry = nil
-	}
-	out := e.buf[:0]
-	for i := 0; i < len(data); {
-		r, size := utf8.DecodeRune(data[i:])
-		if r == utf8.RuneError && size <= 1 && !utf8.FullRune(data[i:]) {
-			e.carry = append([]byte(nil), data[i:]...)
-			break
-		}
-		if hidden(r) && !(size == 1 && r == utf8.RuneError && data[i] >= 0x80) {
-			if r < 0x100 {
-				out = fmt.Appendf(out, "\\x%02x", r)
-			} else {
-				out = fmt.Appendf(out, "\\u%04x", r)
-			}
-		} else {
-			out = append(out, data[i:i+size]...)
-		}
-		i += size
-	}
-	e.buf = out
-	if _, err := e.w.Write(out); err != nil {
-		return 0, err
-	}
-	return len(p), nil
-}
-
-// hidden reports whether r is a control character other than tab and line
-// feed, or a character that reorders or hides text (Unicode's format
-// characters: bidirectional overrides, zero-width spaces and joiners).
-func hidden(r rune) bool {
-	if r == '\t' || r == '\n' {
-		return false
-	}
-	return unicode.IsControl(r) || unicode.Is(unicode.Cf, r)
 }
 
 func newRoot(stdout, stderr io.Writer) *cobra.Command {

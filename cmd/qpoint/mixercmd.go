@@ -10,6 +10,7 @@ import (
 	"qpoint/ac/plan"
 	"qpoint/bias"
 	"qpoint/bias/circuit"
+	"qpoint/internal/output"
 	"qpoint/plots"
 	"qpoint/plots/report"
 	"qpoint/plots/results"
@@ -97,23 +98,15 @@ type mixerSetup struct {
 // solves the bias (when p is nil) and linearises it.
 func resolveMixer(c *circuit.Circuit, fl *mixerFlags, p *bias.Point) (*mixerSetup, error) {
 	req := plan.MixerRequest{LO: fl.lo, RF: fl.rf, IF: fl.ifPort, Sidebands: fl.sidebands, CheckShooting: !fl.noShooting}
-	var err error
-	for _, f := range []struct {
-		name, text string
-		to         *float64
-	}{{"lo-frequency", fl.loFrequency, &req.LOFrequencyHz}, {"rf-frequency", fl.rfFrequency, &req.RFFrequencyHz}} {
-		if f.text != "" {
-			if *f.to, err = circuit.ParseBounded(f.text, circuit.Frequency); err != nil {
-				return nil, inputError(fmt.Errorf("flag --%s: %w", f.name, err))
-			}
-		}
+	if err := quantityFlag("lo-frequency", fl.loFrequency, circuit.Frequency, &req.LOFrequencyHz); err != nil {
+		return nil, err
 	}
-	if fl.loLevel != "" {
-		lv, err := circuit.ParseLevel(fl.loLevel)
-		if err != nil {
-			return nil, inputError(fmt.Errorf("flag --lo-level: %w", err))
-		}
-		req.LOLevel = &lv
+	if err := quantityFlag("rf-frequency", fl.rfFrequency, circuit.Frequency, &req.RFFrequencyHz); err != nil {
+		return nil, err
+	}
+	var err error
+	if req.LOLevel, err = levelFlag("lo-level", fl.loLevel); err != nil {
+		return nil, err
 	}
 	if fl.sidebands < 0 || fl.sidebands > 512 {
 		return nil, inputError(fmt.Errorf("flag --sidebands: %d; accepted: 1 to 512", fl.sidebands))
@@ -145,16 +138,7 @@ func runMixer(cmd *cobra.Command, path string, fl *mixerFlags) error {
 	}
 	var levels []float64
 	if fl.sweepLOLevel != "" {
-		// The LO port's impedance reads a level given in volts.
-		z0 := 50.0
-		if i := portIndexOf(c, fl.lo, c.Analysis.Mixer.LO); i >= 0 {
-			z0 = c.Ports[i].Impedance
-		}
-		from, to, step, err := plan.ParseLevelRange("sweep-lo-level", fl.sweepLOLevel, z0)
-		if err != nil {
-			return planError(err)
-		}
-		if levels, err = plan.MixerLevels(from, to, step); err != nil {
+		if levels, err = plan.ParseMixerLevels(c, "sweep-lo-level", fl.lo, fl.sweepLOLevel); err != nil {
 			return planError(err)
 		}
 		fl.noShooting = true // a check per level would double the sweep's time
@@ -185,39 +169,19 @@ func runMixer(cmd *cobra.Command, path string, fl *mixerFlags) error {
 	if fl.asJSON {
 		return results.Write(out, results.MixerOf(s.p, s.plan, res))
 	}
-	report.WriteMixerHeader(out, s.nw, s.plan, res)
-	for _, t := range []*report.Table{report.MixerTable(res), report.MixerPortTable(s.nw, s.plan, res), report.MixerLOTable(s.plan, res),
-		report.MixerDiodeTable(res), report.MixerNoiseTable(res, 6)} {
-		t.WriteText(out)
-	}
-	report.WriteCautions(out, report.MixerCautionMessages(res))
+	report.WriteMixer(out, s.nw, s.plan, res)
 	if fl.plotsDir != "" {
 		fmt.Fprintf(out, "\nfigure written to %s\n", fl.plotsDir)
 	}
 	return nil
 }
 
-// portIndexOf returns the index of the port named by the flag, else by
-// the file, or -1.
-func portIndexOf(c *circuit.Circuit, flag, file string) int {
-	name := flag
-	if name == "" {
-		name = file
-	}
-	for i, p := range c.Ports {
-		if p.Name == name {
-			return i
-		}
-	}
-	return -1
-}
-
 // runMixerSweep repeats the analysis over LO levels.
 func runMixerSweep(cmd *cobra.Command, s *mixerSetup, fl *mixerFlags, levels []float64) error {
 	g := guardOf(cmd)
-	bar := newProgress(cmd.ErrOrStderr(), "LO level sweep", len(levels))
-	pts := mixer.SweepLO(s.nw, s.plan.Settings, levels, bar.update)
-	bar.done()
+	bar := output.NewProgress(cmd.ErrOrStderr(), "LO level sweep", len(levels))
+	pts := mixer.SweepLO(s.nw, s.plan.Settings, levels, bar.Update)
+	bar.Done()
 	failed := 0
 	for _, p := range pts {
 		if p.Result == nil {
@@ -235,9 +199,7 @@ func runMixerSweep(cmd *cobra.Command, s *mixerSetup, fl *mixerFlags, levels []f
 			return err
 		}
 	} else {
-		report.WriteMixerHeader(out, s.nw, s.plan, nil)
-		report.MixerSweepTable(pts).WriteText(out)
-		fmt.Fprintf(out, "  cautions name their kinds; run one level (--lo-level) to read them in full\n")
+		report.WriteMixerSweep(out, s.nw, s.plan, pts)
 		if fl.plotsDir != "" {
 			fmt.Fprintf(out, "\nfigure written to %s\n", fl.plotsDir)
 		}

@@ -8,7 +8,6 @@ import (
 
 	"github.com/spf13/cobra"
 
-	"qpoint/ac"
 	"qpoint/ac/plan"
 	"qpoint/bias"
 	"qpoint/bias/circuit"
@@ -16,13 +15,6 @@ import (
 	"qpoint/plots/report"
 	"qpoint/plots/results"
 	"qpoint/smallsignal"
-)
-
-// Detector defaults: the video band a tangential sensitivity is quoted in
-// when the command line gives none, and its low edge.
-const (
-	defaultVideoToHz   = 2e6
-	defaultVideoFromHz = 1
 )
 
 type noiseFlags struct {
@@ -116,10 +108,8 @@ func resolveNoiseFor(c *circuit.Circuit, fl *noiseFlags, p *bias.Point) (*noiseS
 	if req.Grid, err = gridRequest(fl.from, fl.to, fl.perDecade, fl.points); err != nil {
 		return nil, err
 	}
-	if fl.carrier != "" {
-		if req.CarrierHz, err = circuit.ParseBounded(fl.carrier, circuit.Frequency); err != nil {
-			return nil, inputError(fmt.Errorf("flag --carrier: %w", err))
-		}
+	if err := quantityFlag("carrier", fl.carrier, circuit.Frequency, &req.CarrierHz); err != nil {
+		return nil, err
 	}
 	if fl.videoBandwidth != "" {
 		lo, hi, err := plan.ParseBand("video-bandwidth", fl.videoBandwidth, plan.DefaultVideoFromHz)
@@ -184,9 +174,7 @@ func runNoise(cmd *cobra.Command, path string, fl *noiseFlags) error {
 	}
 	report.WriteNoise(out, s.nw, o, fl.rows)
 	fmt.Fprintln(out)
-	if fl.csvPath != "" {
-		fmt.Fprintf(out, "CSV written to %s\n", fl.csvPath)
-	}
+	writtenTo(out, "CSV", fl.csvPath)
 	if fl.plotsDir != "" {
 		fmt.Fprintf(out, "figures written to %s (noise-density, noise-contributions: SVG, PNG and CSV data)\n", fl.plotsDir)
 	}
@@ -197,19 +185,13 @@ func runNoise(cmd *cobra.Command, path string, fl *noiseFlags) error {
 // the flags name, after checking every one of them.
 func (g *fileGuard) writeNoiseFiles(fl *noiseFlags, o *plan.NoiseRun) error {
 	// The figures' data go beside them.
-	tables := []struct {
-		name  string
-		write func(io.Writer, *ac.NoiseResult) error
-	}{
-		{"noise-density.csv", results.WriteNoiseDensityCSV},
-		{"noise-contributions.csv", results.WriteNoiseContributionsCSV},
-	}
+	tables := results.NoiseFigureData
 	paths := []string{fl.csvPath}
 	var figs []*plots.Figure
 	if fl.plotsDir != "" {
 		figs = report.NoiseFigures(o.Result)
 		for _, tb := range tables {
-			paths = append(paths, filepath.Join(fl.plotsDir, tb.name))
+			paths = append(paths, filepath.Join(fl.plotsDir, tb.Name))
 		}
 		paths = append(paths, figurePaths(fl.plotsDir, figs)...)
 	}
@@ -229,7 +211,7 @@ func (g *fileGuard) writeNoiseFiles(fl *noiseFlags, o *plan.NoiseRun) error {
 		return inputError(fmt.Errorf("flag --plots: %w", err))
 	}
 	for _, tb := range tables {
-		if err := g.writeFileAtomic(filepath.Join(fl.plotsDir, tb.name), func(w io.Writer) error { return tb.write(w, o.Result) }); err != nil {
+		if err := g.writeFileAtomic(filepath.Join(fl.plotsDir, tb.Name), func(w io.Writer) error { return tb.Write(w, o.Result) }); err != nil {
 			return err
 		}
 	}

@@ -34,6 +34,33 @@ func planError(err error) error {
 	return inputError(fmt.Errorf("flags %s: %w", strings.Join(names, ", "), re.Err))
 }
 
+// quantityFlag reads text, the value of the flag named flag, as a
+// quantity q into dst, when it is given.
+func quantityFlag(flag, text string, q circuit.Quantity, dst *float64) error {
+	if text == "" {
+		return nil
+	}
+	v, err := circuit.ParseBounded(text, q)
+	if err != nil {
+		return inputError(fmt.Errorf("flag --%s: %w", flag, err))
+	}
+	*dst = v
+	return nil
+}
+
+// levelFlag reads text, the value of the flag named flag, as a signal
+// level: nil when it is not given.
+func levelFlag(flag, text string) (*circuit.Level, error) {
+	if text == "" {
+		return nil, nil
+	}
+	lv, err := circuit.ParseLevel(text)
+	if err != nil {
+		return nil, inputError(fmt.Errorf("flag --%s: %w", flag, err))
+	}
+	return &lv, nil
+}
+
 // gridRequest reads the grid flags into a plan request.
 func gridRequest(from, to string, perDecade, points int) (plan.Grid, error) {
 	g := plan.Grid{PerDecade: perDecade, Points: points}

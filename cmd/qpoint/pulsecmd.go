@@ -4,7 +4,6 @@ import (
 	"errors"
 	"fmt"
 	"io"
-	"math"
 
 	"github.com/spf13/cobra"
 
@@ -12,6 +11,7 @@ import (
 	"qpoint/ac/transient"
 	"qpoint/bias"
 	"qpoint/bias/circuit"
+	"qpoint/internal/output"
 	"qpoint/plots"
 	"qpoint/plots/report"
 	"qpoint/plots/results"
@@ -100,19 +100,7 @@ type pulseSetup struct {
 	p        *bias.Point
 	nw       *smallsignal.Network
 	settings transient.PulseSettings
-	inName   string
-	outName  string
-	levelDBm float64
-	probeDBm float64 // NaN for no probe or the default
 	plan     *plan.Pulse
-}
-
-// where names the flag or file key a setting came from.
-func (s *pulseSetup) where(field string) string {
-	if w := s.plan.Where(field); w != "" {
-		return w
-	}
-	return "flag --" + field
 }
 
 // resolvePulse reads the flags into a request, resolves it on the plan,
@@ -120,45 +108,29 @@ func (s *pulseSetup) where(field string) string {
 func resolvePulse(c *circuit.Circuit, fl *pulseFlags, p *bias.Point) (*pulseSetup, error) {
 	req := plan.PulseRequest{Input: fl.input, Output: fl.output, Pulses: fl.pulses,
 		RelativeTolerance: fl.tolerance, MaxSteps: fl.maxSteps, NoPeriod: fl.period == "none", NoProbe: fl.probe == "none"}
-	var err error
-	readTime := func(flag, text string, dst *float64) error {
-		if text == "" || text == "none" {
-			return nil
-		}
-		v, err := circuit.ParseBounded(text, circuit.Time)
-		if err != nil {
-			return inputError(fmt.Errorf("flag --%s: %w", flag, err))
-		}
-		*dst = v
-		return nil
-	}
 	for _, t := range []struct {
 		flag, text string
 		dst        *float64
 	}{{"width", fl.width, &req.Width}, {"rise", fl.rise, &req.Rise}, {"fall", fl.fall, &req.Fall}, {"period", fl.period, &req.Period}, {"after", fl.after, &req.After}} {
-		if err := readTime(t.flag, t.text, t.dst); err != nil {
+		if t.text == "none" {
+			continue
+		}
+		if err := quantityFlag(t.flag, t.text, circuit.Time, t.dst); err != nil {
 			return nil, err
 		}
 	}
 	if fl.after != "" && !(req.After > 0) {
 		return nil, inputError(fmt.Errorf("flag --after: %s; accepted: a positive time", fl.after))
 	}
-	if fl.carrier != "" {
-		if req.CarrierHz, err = circuit.ParseBounded(fl.carrier, circuit.Frequency); err != nil {
-			return nil, inputError(fmt.Errorf("flag --carrier: %w", err))
-		}
+	if err := quantityFlag("carrier", fl.carrier, circuit.Frequency, &req.CarrierHz); err != nil {
+		return nil, err
 	}
-	if fl.probeFrequency != "" {
-		if req.ProbeFrequencyHz, err = circuit.ParseBounded(fl.probeFrequency, circuit.Frequency); err != nil {
-			return nil, inputError(fmt.Errorf("flag --probe-frequency: %w", err))
-		}
+	if err := quantityFlag("probe-frequency", fl.probeFrequency, circuit.Frequency, &req.ProbeFrequencyHz); err != nil {
+		return nil, err
 	}
-	if fl.level != "" {
-		lv, err := circuit.ParseLevel(fl.level)
-		if err != nil {
-			return nil, inputError(fmt.Errorf("flag --level: %w", err))
-		}
-		req.Level = &lv
+	var err error
+	if req.Level, err = levelFlag("level", fl.level); err != nil {
+		return nil, err
 	}
 	if fl.probe != "" && fl.probe != "none" {
 		lv, err := circuit.ParseLevel(fl.probe)
@@ -171,8 +143,7 @@ func resolvePulse(c *circuit.Circuit, fl *pulseFlags, p *bias.Point) (*pulseSetu
 	if err != nil {
 		return nil, planError(err)
 	}
-	s := &pulseSetup{c: c, settings: pl.Settings, inName: pl.InputName, outName: pl.OutputName,
-		levelDBm: pl.LevelDBm, probeDBm: pl.ProbeDBm, plan: pl}
+	s := &pulseSetup{c: c, settings: pl.Settings, plan: pl}
 	if p == nil {
 		if p, err = solveWithTemperature(c, fl.temperature); err != nil {
 			return nil, err
@@ -209,11 +180,8 @@ func runPulse(cmd *cobra.Command, path string, fl *pulseFlags) error {
 	case errors.As(runErr, &stopped) && res != nil:
 		// What it reached is still shown; the exit status says it failed.
 	case res == nil:
-		var re *transient.RequestError
-		if errors.As(runErr, &re) {
-			return s.requestError(runErr)
-		}
-		return analysisError(runErr)
+		// A refused request names its flag or key; else the run failed.
+		return planError(s.plan.RequestError(runErr))
 	}
 	var figs []*plots.Figure
 	if fl.plotsDir != "" {
@@ -237,16 +205,8 @@ func runPulse(cmd *cobra.Command, path string, fl *pulseFlags) error {
 			return err
 		}
 	} else {
-		report.WritePulseHeader(out, s.nw, s.plan, res)
-		report.WritePulseFigures(out, s.nw, res)
-		report.WritePulseStress(out, res)
-		report.WritePulseCautions(out, res.Cautions)
-		if fl.plotsDir != "" {
-			fmt.Fprintf(out, "figures written to %s\n", fl.plotsDir)
-		}
-		if fl.csvPath != "" {
-			fmt.Fprintf(out, "waveform written to %s\n", fl.csvPath)
-		}
+		report.WritePulse(out, s.nw, s.plan, res)
+		writtenTo(out, "figures", fl.plotsDir, "waveform", fl.csvPath)
 	}
 	if runErr != nil {
 		return analysisError(fmt.Errorf("the run %w; the figures above are of what it reached", runErr))
@@ -259,24 +219,16 @@ func runPulse(cmd *cobra.Command, path string, fl *pulseFlags) error {
 func runPulseSweep(cmd *cobra.Command, s *pulseSetup, fl *pulseFlags) error {
 	g := guardOf(cmd)
 	z0 := s.c.Ports[s.settings.Input].Impedance
-	from, to, step, err := plan.ParseLevelRange("sweep-level", fl.sweepLevel, z0)
+	levels, err := plan.ParseLevels("sweep-level", fl.sweepLevel, z0, 200)
 	if err != nil {
 		return planError(err)
-	}
-	n := int(math.Floor((to-from)/step+1e-9)) + 1
-	if n > 200 {
-		return inputError(fmt.Errorf("flag --sweep-level: %d levels; accepted: at most 200", n))
-	}
-	levels := make([]float64, n)
-	for i := range levels {
-		levels[i] = from + float64(i)*step
 	}
 	if fl.csvPath != "" {
 		return inputError(fmt.Errorf("flag --csv: a level sweep keeps no waveform; run one level for it"))
 	}
-	bar := newProgress(cmd.ErrOrStderr(), "pulse level sweep", n)
-	pts := transient.SweepLevel(s.nw, s.settings, levels, 0, bar.update)
-	bar.done()
+	bar := output.NewProgress(cmd.ErrOrStderr(), "pulse level sweep", len(levels))
+	pts := transient.SweepLevel(s.nw, s.settings, levels, 0, bar.Update)
+	bar.Done()
 	ok := 0
 	for _, p := range pts {
 		if p.Err == nil {
@@ -284,7 +236,7 @@ func runPulseSweep(cmd *cobra.Command, s *pulseSetup, fl *pulseFlags) error {
 		} else {
 			var re *transient.RequestError
 			if errors.As(p.Err, &re) {
-				return s.requestError(p.Err)
+				return planError(s.plan.RequestError(p.Err))
 			}
 		}
 	}
@@ -295,37 +247,15 @@ func runPulseSweep(cmd *cobra.Command, s *pulseSetup, fl *pulseFlags) error {
 	}
 	out := cmd.OutOrStdout()
 	if fl.asJSON {
-		doc := results.PulseHead(s.plan)
-		for _, p := range pts {
-			doc.LevelSweep = append(doc.LevelSweep, results.PulseLevelOf(p))
-		}
-		if err := results.Write(out, doc); err != nil {
+		if err := results.Write(out, results.PulseSweepOf(s.plan, pts)); err != nil {
 			return err
 		}
 	} else {
 		report.WritePulseSweep(out, s.nw, s.plan, pts)
-		if fl.plotsDir != "" {
-			fmt.Fprintf(out, "figures written to %s\n", fl.plotsDir)
-		}
+		writtenTo(out, "figures", fl.plotsDir)
 	}
 	if ok < len(pts) {
 		return analysisError(fmt.Errorf("%d of %d levels did not run to the end; their rows show what they reached", len(pts)-ok, len(pts)))
 	}
 	return nil
-}
-
-// requestError names the flag or file key of a request the transient
-// refused while running.
-func (s *pulseSetup) requestError(err error) error {
-	var re *transient.RequestError
-	if !errors.As(err, &re) {
-		return err
-	}
-	switch re.Field {
-	case "steps":
-		return inputError(fmt.Errorf("flag --max-steps: %s", re.Message))
-	case "delay":
-		return inputError(fmt.Errorf("the pulse: %s", re.Message))
-	}
-	return inputError(fmt.Errorf("%s: %s", s.where(re.Field), re.Message))
 }

@@ -60,12 +60,8 @@ inline and fetches nothing: mail it, archive it, print it.`,
 // requests is bad input, anything else an analysis failure.
 func buildReport(c *circuit.Circuit, temperature string) (*report.Document, error) {
 	var s report.Settings
-	if temperature != "" {
-		tk, err := circuit.ParseBounded(temperature, circuit.Temperature)
-		if err != nil {
-			return nil, inputError(fmt.Errorf("flag --temperature: %w", err))
-		}
-		s.TemperatureK = tk
+	if err := quantityFlag("temperature", temperature, circuit.Temperature, &s.TemperatureK); err != nil {
+		return nil, err
 	}
 	doc, err := report.Build(c, s)
 	if err != nil {

@@ -77,12 +77,8 @@ else 1 MHz to 10 GHz at 20 points per decade.`,
 
 func solveWithTemperature(c *circuit.Circuit, temperature string) (*bias.Point, error) {
 	var s bias.Settings
-	if temperature != "" {
-		tk, err := circuit.ParseBounded(temperature, circuit.Temperature)
-		if err != nil {
-			return nil, inputError(fmt.Errorf("flag --temperature: %w", err))
-		}
-		s.TemperatureK = tk
+	if err := quantityFlag("temperature", temperature, circuit.Temperature, &s.TemperatureK); err != nil {
+		return nil, err
 	}
 	p, err := bias.Solve(c, s)
 	if err != nil {
@@ -134,11 +130,7 @@ func runResponse(cmd *cobra.Command, path string, fl *responseFlags) error {
 		return results.Write(out, results.ResponseOf(r, s.c))
 	}
 	report.WriteResponse(out, s.c, s.p, r, s.grid, fl.rows)
-	for _, x := range []struct{ what, path string }{{"CSV", fl.csvPath}, {"Touchstone", fl.touchstone}, {"figures", fl.plotsDir}} {
-		if x.path != "" {
-			fmt.Fprintf(out, "%s written to %s\n", x.what, x.path)
-		}
-	}
+	writtenTo(out, "CSV", fl.csvPath, "Touchstone", fl.touchstone, "figures", fl.plotsDir)
 	return nil
 }
 
@@ -198,15 +190,15 @@ func resolveResponse(cmd *cobra.Command, g *fileGuard, path string, fl *response
 func heldResponse(g *fileGuard, s *responseSetup, fl *responseFlags) (*ac.Response, error) {
 	c := s.c
 	// Refuse a sweep that would not fit rather than run out of memory.
-	if need := sweepBytes(len(s.grid), len(c.Ports), len(c.Probes)); need > maxHeldSweepBytes {
+	if need := results.HeldSweepBytes(len(s.grid), len(c.Ports), len(c.Probes)); need > results.MaxHeldSweepBytes {
 		return nil, inputError(fmt.Errorf("flag --plots: %d points of %d ports take about %s in memory to draw, more than the %s allowed; accepted: at most %d points with --plots (files and --json stream any number)",
-			len(s.grid), len(c.Ports), si.Format(float64(need), "B", 2), si.Format(maxHeldSweepBytes, "B", 2), maxHeldSweepBytes/sweepBytes(1, len(c.Ports), len(c.Probes))))
+			len(s.grid), len(c.Ports), si.Format(float64(need), "B", 2), si.Format(results.MaxHeldSweepBytes, "B", 2), results.MaxHeldSweepBytes/results.HeldSweepBytes(1, len(c.Ports), len(c.Probes))))
 	}
 	r, err := ac.Run(s.nw, s.grid, ac.Settings{Reference: s.ref})
 	if err != nil {
 		return nil, analysisError(err)
 	}
-	figs := plots.ResponseFigures(r, designFrequency(c))
+	figs := plots.ResponseFigures(r, plan.DesignFrequency(c))
 	if err := g.refuseInputs(append([]string{fl.csvPath, fl.touchstone}, figurePaths(fl.plotsDir, figs)...)...); err != nil {
 		return nil, err
 	}
@@ -217,7 +209,7 @@ func heldResponse(g *fileGuard, s *responseSetup, fl *responseFlags) (*ac.Respon
 	}
 	if fl.touchstone != "" {
 		if err := g.writeFileAtomic(fl.touchstone, func(w io.Writer) error {
-			return writeTouchstone(w, c, r, s.format)
+			return results.WriteTouchstone(w, c, r, s.format)
 		}); err != nil {
 			return nil, err
 		}
@@ -231,42 +223,21 @@ func heldResponse(g *fileGuard, s *responseSetup, fl *responseFlags) (*ac.Respon
 // streamResponse sweeps the circuit over its grid writing every point
 // to the CSV and Touchstone files flags name, and to jsonOut when not nil,
 // as it comes, each file whole or not at all, and returns the response
-// with only the points the table shows: the memory a sweep takes does not
-// grow with its length.
+// with only the points the table shows (results.ResponseStream).
 func streamResponse(g *fileGuard, s *responseSetup, fl *responseFlags, jsonOut io.Writer) (*ac.Response, error) {
-	settings := ac.Settings{Reference: s.ref}
-	r := &ac.Response{Probes: s.c.Probes}
-	for i, p := range s.nw.Ports {
-		z := p.Impedance
-		if s.ref != nil {
-			z = s.ref[i]
-		}
-		r.Ports = append(r.Ports, ac.PortInfo{Name: p.Name, Impedance: z})
-	}
-	keep := map[int]bool{}
-	for _, i := range report.PickRows(len(s.grid), fl.rows) {
-		keep[i] = true
-	}
+	var r *ac.Response
 	var sweepErr error
 	sweep := func(csvOut, touchstoneOut io.Writer) error {
-		sinks, err := openResponseSinks(r, s, csvOut, touchstoneOut, jsonOut)
+		st, err := results.NewResponseStream(s.c, s.nw, s.grid, s.ref,
+			results.ResponseOutputs{CSV: csvOut, Touchstone: touchstoneOut, JSON: jsonOut, Format: s.format, Rows: fl.rows})
 		if err != nil {
 			return err
 		}
-		k := 0
-		var ws ac.Workspace
-		_, _, sweepErr = ws.Sweep(s.nw, s.grid, settings, func(pt ac.Point) error {
-			if keep[k] {
-				r.Points = append(r.Points, pt)
-			}
-			k++
-			return sinks.write(pt)
-		})
-		if sweepErr != nil {
+		if sweepErr = st.Sweep(); sweepErr != nil {
 			return sweepErr
 		}
-		r.Stats = ws.SweepStats()
-		return sinks.close(r.Stats)
+		r = st.Response()
+		return st.Close()
 	}
 	// One file inside the other: each is renamed into place only when the
 	// whole sweep has gone into it.
@@ -286,85 +257,4 @@ func streamResponse(g *fileGuard, s *responseSetup, fl *responseFlags, jsonOut i
 		return nil, analysisError(sweepErr)
 	}
 	return r, err
-}
-
-// responseSinks are the streams a sweep's points go to as they come; a
-// nil one is not written.
-type responseSinks struct {
-	probes []string
-	csv    *results.ResponseCSV
-	ts     *touchstone.Writer
-	json   *results.ResponseWriter
-}
-
-// openResponseSinks starts each stream that has a writer: its header.
-func openResponseSinks(r *ac.Response, s *responseSetup, csvOut, touchstoneOut, jsonOut io.Writer) (*responseSinks, error) {
-	k := responseSinks{probes: r.Probes}
-	var err error
-	if csvOut != nil {
-		if k.csv, err = results.NewResponseCSV(csvOut, r.Ports, r.Probes); err != nil {
-			return nil, err
-		}
-	}
-	if touchstoneOut != nil {
-		if k.ts, err = touchstone.NewWriter(touchstoneOut, touchstonePorts(r.Ports), s.format, touchstoneComment(s.c), len(s.grid)); err != nil {
-			return nil, err
-		}
-	}
-	if jsonOut != nil {
-		if k.json, err = results.NewResponseWriter(jsonOut, r.Ports, results.LinePartsOf(s.c, nil)); err != nil {
-			return nil, err
-		}
-	}
-	return &k, nil
-}
-
-// write sends one point to every stream: JSON, CSV, Touchstone.
-func (k *responseSinks) write(pt ac.Point) error {
-	if k.json != nil {
-		if err := k.json.Write(pt, k.probes); err != nil {
-			return err
-		}
-	}
-	if k.csv != nil {
-		if err := k.csv.Write(pt); err != nil {
-			return err
-		}
-	}
-	if k.ts != nil {
-		return k.ts.Write(touchstone.Point{FrequencyHz: pt.FrequencyHz, S: pt.S})
-	}
-	return nil
-}
-
-// close ends every stream: the JSON document's stats, the buffered CSV,
-// the Touchstone file's check of its point count.
-func (k *responseSinks) close(stats ac.Stats) error {
-	if k.json != nil {
-		if err := k.json.Close(stats); err != nil {
-			return err
-		}
-	}
-	if k.csv != nil {
-		if err := k.csv.Close(); err != nil {
-			return err
-		}
-	}
-	if k.ts != nil {
-		return k.ts.Close()
-	}
-	return nil
-}
-
-// maxHeldSweepBytes bounds the memory a sweep held whole (for figures)
-// may take, so that every documented input stays within about 1 GB.
-const maxHeldSweepBytes = 400 << 20
-
-// sweepBytes estimates the memory of points held sweep points of a
-// network with the given ports and probes: the S-matrix, the input
-// impedances and probe voltages (16 bytes each), their slice headers and
-// the point itself, and what the figures derive from each.
-func sweepBytes(points, ports, probes int) int {
-	perPoint := 16*(ports*ports+ports+probes) + 24*(ports+3) + 64 + 200
-	return points * perPoint
 }

@@ -11,6 +11,7 @@ import (
 	"qpoint/ac/plan"
 	"qpoint/ac/study"
 	"qpoint/bias/circuit"
+	"qpoint/internal/output"
 	"qpoint/plots"
 	"qpoint/plots/report"
 	"qpoint/plots/results"
@@ -118,9 +119,6 @@ worker count. Defaults come from the file's analysis.study.`,
 type studySetup struct {
 	c        *circuit.Circuit
 	settings study.Settings
-	measure  *study.Measure
-	goal     string // "target", "maximize", "minimize" or ""
-	value    float64
 	planned  *plan.Study
 }
 
@@ -161,12 +159,8 @@ func resolveStudyFor(c *circuit.Circuit, fl *studyFlags) (*studySetup, error) {
 	if req.DistortionHz, err = plan.ParseFrequencies("frequency", fl.distortionFrequency); err != nil {
 		return nil, planError(err)
 	}
-	if fl.level != "" {
-		lv, err := circuit.ParseLevel(fl.level)
-		if err != nil {
-			return nil, inputError(fmt.Errorf("flag --level: %w", err))
-		}
-		req.Level = &lv
+	if req.Level, err = levelFlag("level", fl.level); err != nil {
+		return nil, err
 	}
 	if fl.videoBandwidth != "" {
 		lo, hi, err := plan.ParseBand("video-bandwidth", fl.videoBandwidth, plan.DefaultVideoFromHz)
@@ -199,9 +193,7 @@ func resolveStudyFor(c *circuit.Circuit, fl *studyFlags) (*studySetup, error) {
 	if err != nil {
 		return nil, planError(err)
 	}
-	s := &studySetup{c: c, settings: st.Settings, measure: st.Measure, value: st.Value, planned: st}
-	s.goal = map[plan.GoalKind]string{plan.Target: "target", plan.Maximize: "maximize", plan.Minimize: "minimize"}[st.Goal]
-	return s, nil
+	return &studySetup{c: c, settings: st.Settings, planned: st}, nil
 }
 
 func runStudy(cmd *cobra.Command, path string, fl *studyFlags) error {
@@ -210,40 +202,22 @@ func runStudy(cmd *cobra.Command, path string, fl *studyFlags) error {
 	if err != nil {
 		return err
 	}
-	total := len(s.settings.Axis.Values)
-	if s.settings.Second != nil {
-		total *= len(s.settings.Second.Values)
-	}
-	bar := newProgress(cmd.ErrOrStderr(), "study", total)
-	s.settings.Progress = bar.update
+	bar := output.NewProgress(cmd.ErrOrStderr(), "study", s.settings.Total())
+	s.settings.Progress = bar.Update
 	begin := time.Now()
 	r, err := study.Run(s.c, s.settings)
-	bar.done()
+	bar.Done()
 	if err != nil {
 		return inputError(err)
 	}
 	elapsed := time.Since(begin)
-	failed := 0
-	for _, st := range r.Steps {
-		if st.Err != nil {
-			failed++
-		}
-	}
+	failed := r.Failed()
 	if failed == len(r.Steps) {
 		return analysisError(fmt.Errorf("no step of the study could be solved: %w", r.Steps[0].Err))
 	}
-	var sol *study.Solution
-	switch s.goal {
-	case "target":
-		sol, err = study.FindTarget(r, s.measure, s.value, fl.tolerance)
-		if errors.Is(err, study.ErrNoCrossing) {
-			return inputError(fmt.Errorf("flag --target: %w", err))
-		}
-	case "maximize", "minimize":
-		sol, err = study.Optimize(r, s.measure, s.goal == "maximize", fl.tolerance)
-	}
+	sol, err := s.planned.Solve(r, fl.tolerance)
 	if err != nil {
-		return analysisError(err)
+		return planError(err)
 	}
 	cols := report.StudyColumns(r)
 	var figs []*plots.Figure
@@ -274,11 +248,7 @@ func runStudy(cmd *cobra.Command, path string, fl *studyFlags) error {
 	if sol != nil {
 		report.WriteSolution(out, s.planned, r, sol)
 	}
-	for _, x := range []struct{ what, path string }{{"CSV", fl.csvPath}, {"figures", fl.plotsDir}} {
-		if x.path != "" {
-			fmt.Fprintf(out, "%s written to %s\n", x.what, x.path)
-		}
-	}
+	writtenTo(out, "CSV", fl.csvPath, "figures", fl.plotsDir)
 	return nil
 }
 

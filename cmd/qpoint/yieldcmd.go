@@ -4,13 +4,13 @@ import (
 	"errors"
 	"fmt"
 	"io"
-	"strings"
 
 	"github.com/spf13/cobra"
 
 	"qpoint/ac/plan"
 	"qpoint/ac/yield"
 	"qpoint/bias/circuit"
+	"qpoint/internal/output"
 	"qpoint/plots"
 	"qpoint/plots/report"
 	"qpoint/plots/results"
@@ -99,36 +99,18 @@ func resolveYield(c *circuit.Circuit, fl *yieldFlags, observe bool) (*yield.Sett
 		req.Seed = &seed
 	}
 	if fl.temperatureRange != "" {
-		a, b, ok := strings.Cut(fl.temperatureRange, ":")
-		const accepted = "LOW:HIGH, e.g. -40C:85C"
-		if !ok {
-			return nil, inputError(fmt.Errorf("flag --temperature-range: `%s` is not LOW:HIGH; accepted: %s", fl.temperatureRange, accepted))
-		}
-		lo, err := circuit.ParseBounded(strings.TrimSpace(a), circuit.Temperature)
+		lo, hi, err := plan.ParseTemperatureRange("temperature-range", fl.temperatureRange)
 		if err != nil {
-			return nil, inputError(fmt.Errorf("flag --temperature-range: %w", err))
-		}
-		hi, err := circuit.ParseBounded(strings.TrimSpace(b), circuit.Temperature)
-		if err != nil {
-			return nil, inputError(fmt.Errorf("flag --temperature-range: %w", err))
-		}
-		if !(lo < hi) {
-			return nil, inputError(fmt.Errorf("flag --temperature-range: `%s` does not rise; accepted: %s", fl.temperatureRange, accepted))
+			return nil, planError(err)
 		}
 		req.TemperatureRangeK = &[2]float64{lo, hi}
 	}
-	var err error
-	if fl.frequency != "" {
-		if req.FrequencyHz, err = circuit.ParseBounded(fl.frequency, circuit.Frequency); err != nil {
-			return nil, inputError(fmt.Errorf("flag --frequency: %w", err))
-		}
+	if err := quantityFlag("frequency", fl.frequency, circuit.Frequency, &req.FrequencyHz); err != nil {
+		return nil, err
 	}
-	if fl.level != "" {
-		lv, err := circuit.ParseLevel(fl.level)
-		if err != nil {
-			return nil, inputError(fmt.Errorf("flag --level: %w", err))
-		}
-		req.Level = &lv
+	var err error
+	if req.Level, err = levelFlag("level", fl.level); err != nil {
+		return nil, err
 	}
 	if fl.videoBandwidth != "" {
 		lo, hi, err := plan.ParseBand("video-bandwidth", fl.videoBandwidth, plan.DefaultVideoFromHz)
@@ -158,10 +140,10 @@ func runYield(cmd *cobra.Command, path string, fl *yieldFlags) error {
 	if err != nil {
 		return err
 	}
-	bar := newProgress(cmd.ErrOrStderr(), "yield", s.Runs)
-	s.Progress = bar.update
+	bar := output.NewProgress(cmd.ErrOrStderr(), "yield", s.Runs)
+	s.Progress = bar.Update
 	r, err := yield.Run(c, *s)
-	bar.done()
+	bar.Done()
 	if err != nil {
 		return analysisError(err)
 	}
@@ -190,10 +172,6 @@ func runYield(cmd *cobra.Command, path string, fl *yieldFlags) error {
 		return results.Write(out, results.YieldOf(r))
 	}
 	report.WriteYield(out, r)
-	for _, x := range []struct{ what, path string }{{"CSV", fl.csvPath}, {"figures", fl.plotsDir}} {
-		if x.path != "" {
-			fmt.Fprintf(out, "%s written to %s\n", x.what, x.path)
-		}
-	}
+	writtenTo(out, "CSV", fl.csvPath, "figures", fl.plotsDir)
 	return nil
 }

@@ -28,4 +28,9 @@
 // within MaxBody, and sends a content security policy under which the
 // page can reach nothing but its server. It reads and writes no file: the
 // command hands it the two writers, to paths fixed before it starts.
+// LoopbackAddress checks the address it is to listen on (this computer
+// only) and Hosts gives the host names it then answers to; OpenBrowser
+// starts the desktop's browser on the page; Serve runs the server until
+// its context ends; SavePaths names the files the save buttons write
+// unless told otherwise.
 package explore

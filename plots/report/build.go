@@ -52,6 +52,7 @@ func SweepCautions(pts []steady.LevelPoint) []string {
 	return out
 }
 
+// SVGOf renders f as an SVG figure for the page.
 func SVGOf(f *plots.Figure) (*Figure, error) {
 	var b bytes.Buffer
 	if err := plots.Write(&b, "svg", f); err != nil {
@@ -81,6 +82,7 @@ func Build(c *circuit.Circuit, settings Settings) (*Document, error) {
 		return nil, err
 	}
 	doc := &Document{
+		Point:    p,
 		Title:    c.Name,
 		Subtitle: fmt.Sprintf("%s · %.2f °C · bias by %s in %s", c.File, Celsius(p.TemperatureK), p.Stats.Strategy, Plural(p.Stats.Iterations, "iteration")),
 		Footer: []string{
@@ -177,6 +179,7 @@ func Build(c *circuit.Circuit, settings Settings) (*Document, error) {
 	if err != nil {
 		return nil, err
 	}
+	doc.Response = r
 	for _, o := range r.Outside {
 		doc.Cautions = append(doc.Cautions, o.Message())
 	}

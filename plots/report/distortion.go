@@ -13,6 +13,8 @@ import (
 	"qpoint/bias/si"
 )
 
+// DBc prints a level relative to the carrier in dBc, to a tenth, or a
+// dash when it has no finite value.
 func DBc(v float64) string {
 	if math.IsNaN(v) || math.IsInf(v, 0) {
 		return "—"
@@ -94,6 +96,8 @@ func GainChange(db float64) string {
 	return "0 dB"
 }
 
+// ContributionTable lists, for each product of the estimate, which diode
+// and which nonlinearity (current or charge) supplies it and its share.
 func ContributionTable(e *ac.Estimate) *Table {
 	t := &Table{Caption: "Where the distortion comes from", Header: []string{"product", "diode", "nonlinearity", "phasor at output", "share"}}
 	byProduct := map[ac.Product][]ac.Contribution{}
@@ -136,6 +140,8 @@ func StressTable(s *steady.State) *Table {
 	return t
 }
 
+// WaveformTable lists the waveform's harmonics at the output, and
+// returns a note of its THD and the solver's iterations and residual.
 func WaveformTable(s *steady.State) (*Table, string) {
 	t := &Table{Caption: "Waveform (periodic steady state by " + MethodLine(s) + ")",
 		Header: []string{"order", "amplitude", "relative", "phase"}}
@@ -164,6 +170,8 @@ func WaveformTable(s *steady.State) (*Table, string) {
 	return t, fmt.Sprintf("THD %.4g %%; %d Newton iterations; %s residual %.2g", s.THDPercent, s.Iterations, ResidualName(s), s.Residual)
 }
 
+// ComparisonTable sets the estimate beside the waveform product by
+// product, with the difference, and returns a note on the validity limit.
 func ComparisonTable(cs []steady.Comparison, v *steady.Validity) (*Table, string) {
 	t := &Table{Caption: "Estimate beside waveform", Header: []string{"product", "estimate", "waveform", "difference"}}
 	names := map[int]string{0: "DC shift", 1: "fundamental", 2: "2nd harmonic", 3: "3rd harmonic"}
@@ -188,6 +196,8 @@ func ComparisonTable(cs []steady.Comparison, v *steady.Validity) (*Table, string
 	return t, note
 }
 
+// LevelSweepTable lists the waveform's fundamental, harmonics, DC shift
+// and THD at each level of a sweep.
 func LevelSweepTable(pts []steady.LevelPoint) *Table {
 	t := &Table{Caption: "Level sweep (waveform)", Header: []string{"input", "fundamental", "2nd", "3rd", "DC shift", "THD"}}
 	for _, p := range pts {
@@ -239,6 +249,7 @@ func MethodLine(st *steady.State) string {
 	return line
 }
 
+// TruncationName names the two-tone truncation a balance kept.
 func TruncationName(r *balance.Result) string { return r.Truncation().String() }
 
 // ResidualName says what a steady state's residual measures.

@@ -15,7 +15,8 @@ import (
 	"qpoint/smallsignal"
 )
 
-// writeDistortionText prints a distortion run's tables.
+// WriteDistortion writes a distortion run as text: the drive, the
+// estimate, the waveform beside it, the validity limit, sweeps and cautions.
 func WriteDistortion(out io.Writer, nw *smallsignal.Network, d *plan.Drive, res *plan.Distortion) {
 	WriteDistortionHeader(out, nw, d)
 	writeEstimate(out, res.Estimate)
@@ -73,11 +74,14 @@ func writeTransfer(w io.Writer, t *steady.Transfer, tssDBm float64) {
 	fmt.Fprintln(w)
 }
 
+// FrequencyRow is the estimate at one frequency of a sweep.
 type FrequencyRow struct {
 	FrequencyHz float64
 	Estimate    *ac.Estimate
 }
 
+// WriteDistortionHeader writes what a distortion run drives: the circuit,
+// its file and values set, the ports, the frequency and level.
 func WriteDistortionHeader(w io.Writer, nw *smallsignal.Network, d *plan.Drive) {
 	fmt.Fprintf(w, "%s\n", nw.Point.Circuit.Name)
 	fmt.Fprintf(w, "  file         %s\n", nw.Point.Circuit.File)
@@ -145,6 +149,8 @@ func writeLevelSweep(w io.Writer, pts []steady.LevelPoint, e *ac.Estimate, comp 
 	fmt.Fprintln(w)
 }
 
+// WriteFrequencySweep writes the estimate's fundamental, HD2, HD3 and
+// DC shift (and the two-tone products) at each frequency of a sweep.
 func WriteFrequencySweep(w io.Writer, rows []FrequencyRow) {
 	t := &Table{Caption: "Volterra estimate across frequency", Header: []string{"frequency", "fundamental", "HD2", "HD3", "DC shift"}}
 	two := len(rows) > 0 && rows[0].Estimate.Drive.SecondToneHz != 0
@@ -236,4 +242,11 @@ func TwoToneFigures(two *steady.State, est *ac.Estimate) []*plots.Figure {
 		return nil
 	}
 	return []*plots.Figure{plots.TwoToneSpectrum(two, est)}
+}
+
+// WriteDistortionFrequency writes the estimate swept over frequency as
+// text: the drive and a row per frequency.
+func WriteDistortionFrequency(w io.Writer, nw *smallsignal.Network, d *plan.Drive, rows []FrequencyRow) {
+	WriteDistortionHeader(w, nw, d)
+	WriteFrequencySweep(w, rows)
 }

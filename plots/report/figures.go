@@ -5,6 +5,7 @@ import (
 	"strings"
 
 	"qpoint/ac"
+	"qpoint/ac/plan"
 	"qpoint/ac/steady"
 	"qpoint/ac/study"
 	"qpoint/bias/circuit"
@@ -20,6 +21,29 @@ func DistortionFigures(e *ac.Estimate, st *steady.State, sweep []steady.LevelPoi
 		figs = append(figs, plots.LevelSweep(sweep, e, comp, compressed))
 	}
 	return figs
+}
+
+// DistortionRunFigures returns the figures of a distortion run: the
+// harmonic spectrum, with a level sweep the output against level and a
+// detector's transfer curve, and with a second tone its spectrum.
+func DistortionRunFigures(res *plan.Distortion) []*plots.Figure {
+	figs := DistortionFigures(res.OneTone, res.Waveform, res.Sweep, res.CompressionDBm, res.Compressed)
+	if res.Transfer != nil {
+		figs = append(figs, plots.DetectorTransfer(res.Transfer, res.TangentialDBm))
+	}
+	return append(figs, TwoToneFigures(res.TwoTone, res.Estimate)...)
+}
+
+// FrequencySweepFigures returns the figure of the estimate swept over
+// frequency.
+func FrequencySweepFigures(rows []FrequencyRow) []*plots.Figure {
+	var f []float64
+	var est []*ac.Estimate
+	for _, r := range rows {
+		f = append(f, r.FrequencyHz)
+		est = append(est, r.Estimate)
+	}
+	return []*plots.Figure{plots.DistortionVsFrequency(f, est)}
 }
 
 // StudyFigures returns the study's curves (one varied quantity) or a heat

@@ -4,9 +4,11 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"path/filepath"
 	"strconv"
 	"strings"
 
+	"qpoint/bias/circuit"
 	"qpoint/bias/diode"
 	"qpoint/bias/extract"
 	"qpoint/bias/measured"
@@ -26,6 +28,54 @@ type FitInput struct {
 	IV, CV   []FitFile
 	Settings extract.Settings
 	Name     string
+}
+
+// Add puts a measurement file's points into the fit's data, after the
+// points of the files of its kind added before it.
+func (in *FitInput) Add(path string, t *measured.Table) {
+	if t.Kind == measured.CapacitanceVoltage {
+		in.CV = append(in.CV, FitFile{Path: path, Table: t, Offset: len(in.Data.Capacitance)})
+		in.Data.Capacitance = append(in.Data.Capacitance, t.Points...)
+		return
+	}
+	in.IV = append(in.IV, FitFile{Path: path, Table: t, Offset: len(in.Data.Current)})
+	in.Data.Current = append(in.Data.Current, t.Points...)
+}
+
+// ModelName makes a model name from a file name: its stem in lower case,
+// other characters than letters and digits turned into underscores, and
+// fitted_ before a name that would not do as one (empty, starting with a
+// digit, or the ground node's).
+func ModelName(path string) string {
+	stem := strings.TrimSuffix(filepath.Base(path), filepath.Ext(path))
+	var b strings.Builder
+	for _, r := range strings.ToLower(stem) {
+		if (r >= 'a' && r <= 'z') || (r >= '0' && r <= '9') {
+			b.WriteRune(r)
+		} else {
+			b.WriteByte('_')
+		}
+	}
+	name := strings.Trim(b.String(), "_")
+	if name == "" || (name[0] >= '0' && name[0] <= '9') || name == circuit.Ground {
+		name = "fitted_" + name
+	}
+	return strings.TrimSuffix(name, "_")
+}
+
+// CheckModelName fails when name cannot head the diode_models block
+// WriteModelBlock writes: a YAML key that needs no quotes, of 1 to 100
+// letters, digits, - and _, other than the ground node's name.
+func CheckModelName(name string) error {
+	for _, r := range name {
+		if !(r == '_' || r == '-' || (r >= 'a' && r <= 'z') || (r >= 'A' && r <= 'Z') || (r >= '0' && r <= '9')) {
+			return fmt.Errorf("accepted: letters, digits, - and _ (a YAML key that needs no quotes)")
+		}
+	}
+	if name == "" || len(name) > 100 || name == circuit.Ground {
+		return fmt.Errorf("accepted: a name of 1 to 100 letters, digits, - and _, other than %s", circuit.Ground)
+	}
+	return nil
 }
 
 // Locate returns the file and line of point index of a set, or the
@@ -75,6 +125,8 @@ func tableUnit(v extract.Value) string {
 	return v.Unit
 }
 
+// WriteFit writes the fit as text: the files, the fitted values with
+// their standard errors, correlations, cautions and the model block.
 func WriteFit(w io.Writer, in *FitInput, r *extract.Result) {
 	fmt.Fprintf(w, "Diode model fitted to %s\n", pointSummary(r))
 	for _, f := range in.IV {
@@ -187,6 +239,8 @@ type FitCaution struct {
 	Message           string
 }
 
+// Text is the caution as printed: placed at its file and line when it has
+// them.
 func (c FitCaution) Text() string {
 	if c.File != "" && c.Line > 0 {
 		return fmt.Sprintf("%s:%d: %s", c.File, c.Line, strings.TrimPrefix(c.Message, fmt.Sprintf("line %d: ", c.Line)))

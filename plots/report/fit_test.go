@@ -2,6 +2,7 @@ package report
 
 import (
 	"math"
+	"strings"
 	"testing"
 
 	"qpoint/bias/circuit"
@@ -35,6 +36,28 @@ func TestYAMLValue(t *testing.T) {
 		back, err := circuit.ParseValue(got, c.q)
 		if err != nil || math.Abs(back-c.v) > 0.5*math.Pow10(-c.digits+1)*math.Abs(c.v) {
 			t.Errorf("%q reads back as %g (%v), written from %g", got, back, err, c.v)
+		}
+	}
+}
+
+func TestModelName(t *testing.T) {
+	for in, want := range map[string]string{
+		"testdata/fit/detector_iv.csv": "detector_iv",
+		"Bench 3 (hot).CSV":            "bench_3__hot",
+		"2024-05-01.csv":               "fitted_2024_05_01",
+		"gnd.csv":                      "fitted_gnd",
+		"+++.csv":                      "fitted",
+	} {
+		if got := ModelName(in); got != want {
+			t.Errorf("ModelName(%q) = %q, want %q", in, got, want)
+		}
+	}
+}
+
+func TestCheckModelName(t *testing.T) {
+	for name, ok := range map[string]bool{"detector_iv": true, "hsms-2850": true, "": false, "gnd": false, "a b": false, "ü": false, strings.Repeat("x", 101): false} {
+		if err := CheckModelName(name); (err == nil) != ok {
+			t.Errorf("CheckModelName(%q) = %v, want ok %v", name, err, ok)
 		}
 	}
 }

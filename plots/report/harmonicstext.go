@@ -40,6 +40,8 @@ func WritePredictionComparison(w io.Writer, circuitPath string, r *measure.Resul
 	fmt.Fprintf(w, "  the fundamental's row compares absolute amplitudes; the others compare levels relative to each fundamental\n")
 }
 
+// WriteHarmonics writes a captured waveform's analysis as text: the
+// samples, window, fundamental, each harmonic, THD, SINAD and noise.
 func WriteHarmonics(w io.Writer, path string, wf *measure.Waveform, r *measure.Result) {
 	fmt.Fprintf(w, "%s\n", path)
 	fmt.Fprintf(w, "  samples      %d at %s (%s from %s)\n", r.Samples, si.Format(r.SampleRateHz, "Hz", 6),

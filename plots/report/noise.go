@@ -109,6 +109,8 @@ func Density(v float64, unit string) string {
 	return si.Format(v, unit, 4)
 }
 
+// FigureText prints a noise figure in dB to two decimals, ∞ for no
+// signal, or a dash.
 func FigureText(db float64) string {
 	if math.IsNaN(db) {
 		return "—"
@@ -122,6 +124,7 @@ func FigureText(db float64) string {
 	return strconv.FormatFloat(db, 'f', 2, 64) + " dB"
 }
 
+// ShareText prints a fraction as a percentage to a tenth, or a dash.
 func ShareText(f float64) string {
 	if math.IsNaN(f) {
 		return "—"
@@ -129,7 +132,7 @@ func ShareText(f float64) string {
 	return strconv.FormatFloat(100*f, 'f', 1, 64) + " %"
 }
 
-// Largest returns the label and share of the Largest of contributions.
+// Largest returns the label and share of the largest of contributions.
 func Largest(sources []ac.NoiseSource, contributions []float64, total float64) string {
 	k := 0
 	for i, c := range contributions {
@@ -143,6 +146,8 @@ func Largest(sources []ac.NoiseSource, contributions []float64, total float64) s
 	return fmt.Sprintf("%s %s", sources[k].Label(), ShareText(contributions[k]/total))
 }
 
+// NoiseTable lists the output noise density, the input-referred noise and
+// the noise figure at up to rows frequencies of the sweep.
 func NoiseTable(o *plan.NoiseRun, rows int) *Table {
 	r := o.Result
 	hasInput := r.Settings.Input >= 0
@@ -169,6 +174,7 @@ func NoiseTable(o *plan.NoiseRun, rows int) *Table {
 	return t
 }
 
+// NoiseNotes say what the noise table's columns are referred to.
 func NoiseNotes(o *plan.NoiseRun) []string {
 	notes := []string{"output noise: every source as operated, each port's termination at its noise temperature"}
 	if o.Detection != nil {
@@ -181,6 +187,8 @@ func NoiseNotes(o *plan.NoiseRun) []string {
 	return append(notes, "small-signal noise at the DC bias point: no large signal (a mixer's local oscillator) pumps the diodes")
 }
 
+// BandTable lists the noise integrated over the band: at the output and,
+// with an input, referred to it, with the band's average noise figure.
 func BandTable(o *plan.NoiseRun) *Table {
 	b := o.Band
 	t := &Table{Caption: fmt.Sprintf("Integrated from %s to %s", si.Format(b.FromHz, "Hz", 4), si.Format(b.ToHz, "Hz", 4)), Header: []string{"quantity", "value"}}
@@ -206,6 +214,8 @@ func NoiseRole(r *ac.NoiseResult, src ac.NoiseSource) string {
 	return "circuit"
 }
 
+// SourceTable lists each noise source with its share of the integrated
+// output noise power.
 func SourceTable(o *plan.NoiseRun) *Table {
 	b := o.Band
 	t := &Table{Caption: "Where the noise comes from (share of the integrated output noise power)",
@@ -230,6 +240,8 @@ func SourceTable(o *plan.NoiseRun) *Table {
 	return t
 }
 
+// DetectorTable lists a detector's sensitivity, noise-equivalent power
+// and tangential sensitivity, and returns notes on how they were found.
 func DetectorTable(o *plan.NoiseRun) (*Table, []string) {
 	d := o.Detection
 	t := &Table{Caption: "Detector sensitivity", Header: []string{"quantity", "value"}}

@@ -8,7 +8,7 @@ import (
 	"qpoint/smallsignal"
 )
 
-// writeNoiseText prints the noise tables: density, band, sources and a
+// WriteNoise writes the noise tables: density, band, sources and a
 // detector's figures.
 func WriteNoise(out io.Writer, nw *smallsignal.Network, o *plan.NoiseRun, rows int) {
 	writeNoiseHeader(out, nw, o.Plan)

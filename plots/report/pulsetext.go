@@ -14,7 +14,8 @@ import (
 	"qpoint/smallsignal"
 )
 
-// writePulseHeader prints what was run.
+// WritePulseHeader writes what a pulse run drives: the circuit, its bias,
+// the carrier and pulse shape, the probe, the output, and the run's steps.
 func WritePulseHeader(w io.Writer, nw *smallsignal.Network, pl *plan.Pulse, res *transient.PulseResult) {
 	p := res.Settings.Pulse
 	z0 := nw.Point.Circuit.Ports[pl.Settings.Input].Impedance
@@ -46,7 +47,7 @@ func WritePulseHeader(w io.Writer, nw *smallsignal.Network, pl *plan.Pulse, res 
 	}
 }
 
-// writePulseFigures prints the limiter's or the detector's figures of the
+// WritePulseFigures writes the limiter's or the detector's figures of the
 // last pulse, with each pulse's when there are several.
 func WritePulseFigures(w io.Writer, nw *smallsignal.Network, res *transient.PulseResult) {
 	if len(res.Pulses) == 0 {
@@ -75,7 +76,7 @@ func WritePulseCautions(w io.Writer, cs []transient.Caution) {
 	fmt.Fprintln(w)
 }
 
-// writePulseSweep prints the figures against the carrier level.
+// WritePulseSweep writes the figures against the carrier level.
 func WritePulseSweep(w io.Writer, nw *smallsignal.Network, pl *plan.Pulse, pts []transient.LevelPoint) {
 	p := pl.Settings.Pulse
 	fmt.Fprintf(w, "%s\n", nw.Point.Circuit.Name)
@@ -133,4 +134,13 @@ func WritePulseSweep(w io.Writer, nw *smallsignal.Network, pl *plan.Pulse, pts [
 	}
 	t.WriteText(w)
 	fmt.Fprintf(w, "  cautions name their kinds; run one level (--level) to read them in full\n\n")
+}
+
+// WritePulse writes a pulse run as text: the header, the figures, the
+// diodes' stress and the cautions.
+func WritePulse(w io.Writer, nw *smallsignal.Network, pl *plan.Pulse, res *transient.PulseResult) {
+	WritePulseHeader(w, nw, pl, res)
+	WritePulseFigures(w, nw, res)
+	WritePulseStress(w, res)
+	WritePulseCautions(w, res.Cautions)
 }

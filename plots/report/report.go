@@ -4,14 +4,18 @@
 // scroll within the page width) and prints cleanly (sections avoid page
 // breaks inside figures and tables).
 //
-// The package is presentation only: callers fill a Document with
-// formatted tables, figures as SVG and notes; Write renders it.
+// Build runs the analyses a circuit file asks for and fills a Document
+// with formatted tables, figures as SVG and notes; Write renders it.
+// WriteIndex writes a page that links several reports.
 //
 // The same tables are the command line's text output: each analysis has a
 // writer that prints what its command prints (WriteBias, WriteResponse,
-// WriteDistortion, WriteNoise, WriteStudy, WriteYield, WritePulseHeader,
-// WriteMixerHeader, WriteHarmonics, WriteFit with WriteModelBlock), from
-// the network and the plan's resolved values.
+// WriteDistortion, WriteDistortionFrequency, WriteNoise, WriteStudy,
+// WriteYield, WritePulse, WritePulseSweep, WriteMixer, WriteMixerSweep,
+// WriteHarmonics, WriteFit with WriteModelBlock), from the network and the
+// plan's resolved values, and the figures a command draws come from here
+// too (ResponseTable's companions: DistortionRunFigures, NoiseFigures,
+// StudyFigures, YieldFigures, ...).
 package report
 
 import (
@@ -20,6 +24,9 @@ import (
 	"html/template"
 	"io"
 	"regexp"
+
+	"qpoint/ac"
+	"qpoint/bias"
 )
 
 // Document is a whole report.
@@ -30,6 +37,12 @@ type Document struct {
 	Cautions []string // shown prominently near the top
 	Sections []Section
 	Footer   []string
+	// Point is the operating point the report was built at, and Response
+	// its small-signal response over the file's grid (nil for a circuit
+	// without ports): a front end that prints a summary beside the page
+	// takes them from here.
+	Point    *bias.Point
+	Response *ac.Response
 }
 
 // Card is a headline figure: a label, a value and a line of context.

@@ -30,10 +30,14 @@ func PickRows(total, n int) []int {
 	return idx
 }
 
+// DB is |x| in decibels.
 func DB(x complex128) float64 { return 20 * math.Log10(cmplx.Abs(x)) }
 
+// Degrees is the phase of x in degrees.
 func Degrees(x complex128) float64 { return cmplx.Phase(x) * 180 / math.Pi }
 
+// FormatDB prints decibels to two decimals: -∞ for nothing, "< -200"
+// below numerical noise, a dash for no value.
 func FormatDB(v float64) string {
 	if math.IsInf(v, -1) {
 		return "-∞"
@@ -49,6 +53,8 @@ func FormatDB(v float64) string {
 	return strconv.FormatFloat(v, 'f', 2, 64)
 }
 
+// FormatImpedance prints an impedance as R + jX, or "open" when it is
+// infinite.
 func FormatImpedance(z complex128) string {
 	if cmplx.IsInf(z) || cmplx.IsNaN(z) {
 		return "open"

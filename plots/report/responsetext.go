@@ -12,9 +12,9 @@ import (
 	"qpoint/bias/si"
 )
 
-// WriteResponse prints the header and the response at up to rows of
-// the sweep's frequencies grid; r holds either every point or just those
-// rows (streamResponse).
+// WriteResponse writes the header and the response at up to rows of the
+// sweep's frequencies grid; r holds either every point or just those rows
+// (PickRows, as a streamed sweep keeps them).
 func WriteResponse(w io.Writer, c *circuit.Circuit, p *bias.Point, r *ac.Response, grid []float64, rows int) {
 	fmt.Fprintf(w, "%s\n", c.Name)
 	fmt.Fprintf(w, "  file         %s\n", c.File)

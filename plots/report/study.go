@@ -19,6 +19,8 @@ type StudyColumn struct {
 	Get   func(st *study.Step) float64
 }
 
+// AxisHeader returns the name and unit of a study axis's column, or
+// frequency's.
 func AxisHeader(a *study.Axis, frequency bool) (string, string) {
 	if frequency {
 		return "frequency", "Hz"
@@ -26,6 +28,9 @@ func AxisHeader(a *study.Axis, frequency bool) (string, string) {
 	return a.Vary.Text, a.Vary.Quantity.Unit()
 }
 
+// StudyColumns are the columns a study's table, CSV and JSON hold: the
+// varied values, then each diode's Q point, the response, distortion and
+// detector figures that were found.
 func StudyColumns(r *study.Result) []StudyColumn {
 	var cols []StudyColumn
 	name, unit := AxisHeader(&r.Settings.Axis, false)
@@ -122,6 +127,7 @@ func Detection(st *study.Step) study.Detection {
 	return *st.Detection
 }
 
+// UnitOrNumber is a unit for a column name: "1" for a plain number.
 func UnitOrNumber(u string) string {
 	if u == "" {
 		return "1"
@@ -129,6 +135,7 @@ func UnitOrNumber(u string) string {
 	return u
 }
 
+// AxisCount is the number of varied quantities in a study: 1 or 2.
 func AxisCount(r *study.Result) int {
 	if r.Settings.Second != nil {
 		return 2
@@ -136,6 +143,8 @@ func AxisCount(r *study.Result) int {
 	return 1
 }
 
+// FormatCell prints a study value in its unit: temperatures in °C,
+// others with SI prefixes, plain numbers to two decimals.
 func FormatCell(v float64, unit string) string {
 	if unit == "" {
 		if math.IsNaN(v) || math.IsInf(v, 0) {
@@ -178,6 +187,7 @@ func FormatDifference(v float64, unit string) string {
 	return FormatCell(v, unit)
 }
 
+// StudyTable is a study's table: a row per step, the columns cols.
 func StudyTable(r *study.Result, cols []StudyColumn) *Table {
 	t := &Table{Caption: "Study"}
 	for _, col := range cols {

@@ -12,6 +12,8 @@ import (
 	"qpoint/plots"
 )
 
+// WriteStudy writes a study as text: the circuit, what was varied in how
+// many steps and how long, the steps that failed, and the table.
 func WriteStudy(w io.Writer, r *study.Result, cols []StudyColumn, elapsed time.Duration, failed int) {
 	c := r.Circuit
 	fmt.Fprintf(w, "%s\n", c.Name)
@@ -40,6 +42,7 @@ func WriteStudy(w io.Writer, r *study.Result, cols []StudyColumn, elapsed time.D
 	fmt.Fprintln(w)
 }
 
+// WriteSolution writes where a study met its target, or its optimum.
 func WriteSolution(w io.Writer, s *plan.Study, r *study.Result, sol *study.Solution) {
 	unit := r.Settings.Axis.Vary.Quantity.Unit()
 	what := r.Settings.Axis.Vary.Text

@@ -42,6 +42,8 @@ func PercentOf(f float64) string {
 	return strconv.FormatFloat(100*f, 'f', 2, 64) + " %"
 }
 
+// YieldTargetTable lists each target's spread: nominal, mean, standard
+// deviation beside its first-order estimate, quantiles and runs meeting it.
 func YieldTargetTable(r *yield.Result) *Table {
 	t := &Table{Caption: "Targets (each run's worst reading over the temperatures)",
 		Header: []string{"target", "nominal", "mean", "std dev", "first-order std dev", "0.1 %", "99.9 %", "runs meeting it"}}
@@ -108,6 +110,8 @@ func YieldShareTable(r *yield.Result) *Table {
 	return t
 }
 
+// YieldCornerTable lists each target's worst-case corner beside its
+// nominal value and worst run.
 func YieldCornerTable(r *yield.Result) *Table {
 	t := &Table{Caption: "Worst-case corners (each value at its band's end or 3 σ, the way that worsens the target)",
 		Header: []string{"target", "limit", "nominal", "corner", "worst run", "corner meets it"}}

@@ -7,6 +7,8 @@ import (
 	"qpoint/ac/yield"
 )
 
+// WriteYield writes a yield run as text: the runs, the yield with its
+// confidence interval, the targets, sensitivities, corners and cautions.
 func WriteYield(w io.Writer, r *yield.Result) {
 	c := r.Circuit
 	fmt.Fprintf(w, "%s\n", c.Name)

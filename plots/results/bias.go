@@ -28,6 +28,7 @@ type OrderedNumbers struct {
 	values []Number
 }
 
+// Set adds key k with the value v after the keys set before.
 func (o *OrderedNumbers) Set(k string, v float64) {
 	o.keys = append(o.keys, k)
 	o.values = append(o.values, Number(v))

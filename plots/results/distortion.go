@@ -292,3 +292,13 @@ func DistortionOf(d *plan.Drive, res *plan.Distortion) *Distortion {
 	}
 	return doc
 }
+
+// DistortionFrequencyOf is the JSON document of the estimate swept over
+// frequency: the drive and an estimate per frequency.
+func DistortionFrequencyOf(d *plan.Drive, rows []report.FrequencyRow) *Distortion {
+	doc := DistortionHead(d)
+	for _, r := range rows {
+		doc.FrequencySweep = append(doc.FrequencySweep, EstimateOf(r.Estimate))
+	}
+	return doc
+}

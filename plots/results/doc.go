@@ -11,6 +11,8 @@
 // non-finite value as null; OrderedNumbers keeps keys in file order.
 // A long sweep streams: ResponseWriter writes the response document and
 // ResponseCSV its CSV a point at a time, the same bytes as the whole
-// document; WriteNoiseCSV, WriteStudyCSV, WriteYieldCSV and WritePulseCSV
-// write the other analyses' rows.
+// document; ResponseStream sends a sweep's points to its CSV, Touchstone
+// (WriteTouchstone for a whole response) and JSON outputs as they come.
+// WriteNoiseCSV, WriteStudyCSV, WriteYieldCSV and WritePulseCSV write the
+// other analyses' rows.
 package results

@@ -1,6 +1,9 @@
 package results
 
-import "qpoint/ac/measure"
+import (
+	"qpoint/ac/measure"
+	"qpoint/ac/steady"
+)
 
 // CaptureHarmonic is one harmonic measured on a captured waveform.
 type CaptureHarmonic struct {
@@ -34,8 +37,10 @@ type Harmonics struct {
 	SampleRateUncertainty Number `json:"sample_rate_uncertainty"`
 }
 
-// HarmonicsOf returns the document of the waveform w read from path and its analysis r.
-func HarmonicsOf(path string, w *measure.Waveform, r *measure.Result) *Harmonics {
+// HarmonicsOf returns the document of the waveform w read from path and
+// its analysis r, with the circuit's predicted waveform when pred is not
+// nil.
+func HarmonicsOf(path string, w *measure.Waveform, r *measure.Result, pred *steady.State) *Harmonics {
 	d := &Harmonics{
 		File: path, Samples: r.Samples, SampleRate: Number(r.SampleRateHz), StartTime: Number(w.StartS),
 		Window: r.Window.String(), Fundamental: Number(r.FundamentalHz), FundamentalSearched: r.Searched,
@@ -47,6 +52,9 @@ func HarmonicsOf(path string, w *measure.Waveform, r *measure.Result) *Harmonics
 	for _, h := range r.Harmonics {
 		d.Harmonics = append(d.Harmonics, CaptureHarmonic{Order: h.Order, Frequency: Number(h.FrequencyHz),
 			Amplitude: Number(h.AmplitudeV), Phase: Number(h.PhaseDeg), DBc: Number(h.DBc)})
+	}
+	if pred != nil {
+		d.Prediction = WaveformOf(pred)
 	}
 	return d
 }

@@ -65,6 +65,20 @@ func csvNumber(v float64) string {
 	return strconv.FormatFloat(v, 'g', -1, 64)
 }
 
+// NoiseData is a CSV file of a noise figure's data: its name, beside the
+// figures, and what writes it.
+type NoiseData struct {
+	Name  string
+	Write func(io.Writer, *ac.NoiseResult) error
+}
+
+// NoiseFigureData are the data files the noise figures carry: the density
+// and the contributions.
+var NoiseFigureData = []NoiseData{
+	{"noise-density.csv", WriteNoiseDensityCSV},
+	{"noise-contributions.csv", WriteNoiseContributionsCSV},
+}
+
 // WriteNoiseDensityCSV writes the data of the density figure.
 func WriteNoiseDensityCSV(w io.Writer, r *ac.NoiseResult) error {
 	cw := csv.NewWriter(w)

@@ -322,3 +322,13 @@ func WritePulseCSV(w io.Writer, pl *plan.Pulse, res *transient.PulseResult) erro
 	cw.Flush()
 	return cw.Error()
 }
+
+// PulseSweepOf is the JSON document of a pulse run repeated over carrier
+// levels: the plan and a row per level.
+func PulseSweepOf(pl *plan.Pulse, pts []transient.LevelPoint) *Pulse {
+	doc := PulseHead(pl)
+	for _, p := range pts {
+		doc.LevelSweep = append(doc.LevelSweep, PulseLevelOf(p))
+	}
+	return doc
+}
