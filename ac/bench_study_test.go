@@ -39,7 +39,7 @@ import (
 // cores the parallel runs actually got, and, as a control, the cores a
 // trivially parallel busy loop gets right after (cores-free): on a machine
 // others are using, the scaling cannot exceed it. The garbage collector is
-// set as the command set it before internal/gctune bounded it (collect
+// set as the command set it before cmd/qpoint/gc.go bounded it (collect
 // only near a 1 GiB heap) unless GOGC or GOMEMLIMIT is in the environment.
 func BenchmarkStudy(b *testing.B) {
 	if os.Getenv("GOGC") == "" && os.Getenv("GOMEMLIMIT") == "" {

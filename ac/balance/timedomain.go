@@ -26,8 +26,8 @@ import (
 // It costs O(S n³) to set up and O(S n²) to apply, for S samples, so it
 // serves circuits of modest size.
 type timePreconditioner struct {
-	n, S     int
-	lu       []denseLU // A_s = G(t_s) + C(t_s)/h
+	n, S int
+	lu   []denseLU // A_s = G(t_s) + C(t_s)/h
 	// B_s = C(t_s)/h, kept sparse: the lumped capacitances' entries
 	// (compressed rows of the linear part, each over h) and each
 	// junction's capacitance over h at every sample. Dense, it was an
@@ -36,11 +36,11 @@ type timePreconditioner struct {
 	rowPtr, cols []int
 	cOverH       []float64
 	junctions    []timeJunction
-	segments [][2]int    // first and last sample of each segment
-	cycle    denseLU     // the segment states' cyclic system
-	rt       [][]float64 // work: r(t_s) per unknown
-	xt       [][]float64 // work: dx(t_s) per unknown
-	tmp      []float64
+	segments     [][2]int    // first and last sample of each segment
+	cycle        denseLU     // the segment states' cyclic system
+	rt           [][]float64 // work: r(t_s) per unknown
+	xt           [][]float64 // work: dx(t_s) per unknown
+	tmp          []float64
 }
 
 // timeJunction is one junction's share of B_s: its capacitance over h at

@@ -25,7 +25,7 @@ import (
 // over the serial runs' and, as a control, the
 // cores a trivially parallel busy loop gets right after (cores-free): on
 // a machine others are using, the scaling cannot exceed it. The garbage
-// collector is set as the command set it before internal/gctune bounded
+// collector is set as the command set it before cmd/qpoint/gc.go bounded
 // it (off until a 1 GiB heap) unless GOGC or GOMEMLIMIT is in the
 // environment.
 func BenchmarkYield(b *testing.B) {

@@ -11,7 +11,7 @@ import (
 	"qpoint/ac/steady"
 	"qpoint/bias"
 	"qpoint/bias/circuit"
-	"qpoint/internal/output"
+	"qpoint/plots/output"
 	"qpoint/plots/report"
 	"qpoint/plots/results"
 	"qpoint/smallsignal"

@@ -10,7 +10,7 @@ import (
 	"path/filepath"
 	"syscall"
 
-	"qpoint/internal/output"
+	"qpoint/plots/output"
 
 	"github.com/spf13/cobra"
 )

@@ -13,8 +13,7 @@ import (
 	"runtime/debug"
 	"strings"
 
-	"qpoint/internal/gctune"
-	"qpoint/internal/output"
+	"qpoint/plots/output"
 
 	"github.com/spf13/cobra"
 )
@@ -39,7 +38,7 @@ func inputError(err error) error    { return &exitError{exitInput, err} }
 func analysisError(err error) error { return &exitError{exitAnalysis, err} }
 
 func main() {
-	gctune.Apply(nil)
+	tuneGC(nil)
 	g := &fileGuard{}
 	stop := g.exitOnInterrupt(os.Stderr)
 	code := runGuarded(g, os.Args[1:], os.Stdout, os.Stderr)

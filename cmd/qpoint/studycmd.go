@@ -11,8 +11,8 @@ import (
 	"qpoint/ac/plan"
 	"qpoint/ac/study"
 	"qpoint/bias/circuit"
-	"qpoint/internal/output"
 	"qpoint/plots"
+	"qpoint/plots/output"
 	"qpoint/plots/report"
 	"qpoint/plots/results"
 )

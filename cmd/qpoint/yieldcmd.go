@@ -10,8 +10,8 @@ import (
 	"qpoint/ac/plan"
 	"qpoint/ac/yield"
 	"qpoint/bias/circuit"
-	"qpoint/internal/output"
 	"qpoint/plots"
+	"qpoint/plots/output"
 	"qpoint/plots/report"
 	"qpoint/plots/results"
 )

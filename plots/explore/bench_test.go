@@ -20,7 +20,7 @@ import (
 //
 //	go test -run '^$' -bench Move -benchtime 200x ./plots/explore/
 func BenchmarkMove(b *testing.B) {
-	// The command runs the collector at 400 % (internal/gctune); so
+	// The command runs the collector at 400 % (cmd/qpoint/gc.go); so
 	// does the benchmark, to measure the server as it runs.
 	defer debug.SetGCPercent(debug.SetGCPercent(400))
 	for _, k := range []struct{ demo, control string }{

@@ -1,8 +1,4 @@
-// Package gctune sets the garbage collector as the qpoint command runs
-// it: a high target for small heaps, bounded by a multiple of the heap
-// live at the last collection (Apply). The command applies it at start;
-// a benchmark that measures the command's speed can apply it too.
-package gctune
+package main
 
 import (
 	"os"
@@ -32,10 +28,10 @@ const (
 	heapFactor = 2
 )
 
-// Apply sets the collector's target and its bound, unless the user set
-// GOGC or GOMEMLIMIT. Closing stop ends the bound's updates (the command
-// never does; a test does).
-func Apply(stop <-chan struct{}) {
+// tuneGC sets the collector's target and its bound, unless the user set
+// GOGC or GOMEMLIMIT. Closing stop ends the bound's updates (main never
+// does; a test does).
+func tuneGC(stop <-chan struct{}) {
 	if os.Getenv("GOGC") != "" || os.Getenv("GOMEMLIMIT") != "" {
 		return
 	}

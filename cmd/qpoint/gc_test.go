@@ -1,4 +1,4 @@
-package gctune
+package main
 
 import (
 	"math"
@@ -8,7 +8,7 @@ import (
 	"time"
 )
 
-// TestHeapBound: after Apply the memory limit starts at heapFloor and,
+// TestHeapBound: after tuneGC the memory limit starts at heapFloor and,
 // once a collection finds more live than heapFloor/heapFactor, follows
 // heapFactor times the live heap, so a large run is never held to the
 // floor (which would make the collector run without pause).
@@ -19,9 +19,9 @@ func TestHeapBound(t *testing.T) {
 	defer debug.SetMemoryLimit(debug.SetMemoryLimit(math.MaxInt64))
 	stop := make(chan struct{})
 	defer close(stop)
-	Apply(stop)
+	tuneGC(stop)
 	if got := debug.SetMemoryLimit(-1); got < heapFloor {
-		t.Fatalf("limit %d after Apply, want at least the floor %d", got, heapFloor)
+		t.Fatalf("limit %d after tuneGC, want at least the floor %d", got, heapFloor)
 	}
 	keep := make([]byte, 60<<20) // live: 60 MiB, above the floor
 	for i := range keep {
