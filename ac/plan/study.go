@@ -337,6 +337,33 @@ func exampleOf(q circuit.Quantity) string {
 	return "1.5"
 }
 
+// ParseGoal reads a study's goal from the three ways of asking for one,
+// at most one of them given: a target MEASURE=VALUE (see ParseTarget), a
+// measure to maximize, or one to minimize. It fills r's Goal, MeasureText
+// and TargetText; with none given r is left without a goal.
+func ParseGoal(r *StudyRequest, target, maximize, minimize string) error {
+	given := 0
+	for _, g := range []string{target, maximize, minimize} {
+		if g != "" {
+			given++
+		}
+	}
+	if given > 1 {
+		return requestErr("target,maximize,minimize", "give one at a time")
+	}
+	var err error
+	switch {
+	case target != "":
+		r.Goal = Target
+		r.MeasureText, r.TargetText, err = ParseTarget(target)
+	case maximize != "":
+		r.Goal, r.MeasureText = Maximize, maximize
+	case minimize != "":
+		r.Goal, r.MeasureText = Minimize, minimize
+	}
+	return err
+}
+
 // ParseTarget splits a target written MEASURE=VALUE into the measure and
 // the value; a frequency may follow the value (`s21=-10dB@900MHz`) and
 // then belongs to the measure (`s21@900MHz`, `-10dB`).

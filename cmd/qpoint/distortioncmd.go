@@ -112,14 +112,8 @@ func resolveDistortionFor(c *circuit.Circuit, fl *distortionFlags, p *bias.Point
 	if err != nil {
 		return nil, err
 	}
-	if p == nil {
-		if p, err = solveWithTemperature(c, fl.temperature); err != nil {
-			return nil, err
-		}
-	}
-	s.p = p
-	if s.nw, err = smallsignal.New(p); err != nil {
-		return nil, analysisError(err)
+	if s.p, s.nw, err = linearise(c, fl.temperature, p); err != nil {
+		return nil, err
 	}
 	return s, nil
 }
@@ -221,11 +215,9 @@ func distortionRequest(cmd *cobra.Command, s *distortionSetup, fl *distortionFla
 	if band == "" {
 		band = "2MHz"
 	}
-	lo, hi, err := plan.ParseBand("video-bandwidth", band, plan.DefaultVideoFromHz)
-	if err != nil {
-		return req, planError(err)
+	if err := videoBandFlag(band, &req.VideoHz); err != nil {
+		return req, err
 	}
-	req.VideoHz = [2]float64{lo, hi}
 	req.Progress = func(stage string, n int) (func(done, total int), func()) {
 		bar := output.NewProgress(cmd.ErrOrStderr(), stage, n)
 		return bar.Update, bar.Done

@@ -7,7 +7,6 @@ import (
 	"io"
 	"os"
 	"os/signal"
-	"path/filepath"
 	"syscall"
 
 	"qpoint/plots/output"
@@ -109,34 +108,12 @@ func pathError(err error) error {
 // a link to one, a device or pipe, or a new name), and each one's folder
 // must be a folder or creatable. Empty paths are skipped.
 func (g *fileGuard) refuseInputs(paths ...string) error {
-	seen := map[string]string{}
 	for _, p := range paths {
-		if p == "" {
-			continue
-		}
 		if err := g.refuseInput(p); err != nil {
 			return err
 		}
-		target, _, err := output.Target(p)
-		if err != nil {
-			return inputError(err)
-		}
-		key, err := filepath.Abs(target)
-		if err != nil {
-			key = filepath.Clean(target)
-		}
-		if first, ok := seen[key]; ok {
-			if first == p {
-				return inputError(fmt.Errorf("refusing to write %s twice: two outputs (a flag and a figure, or two flags) name it; choose different output names", p))
-			}
-			return inputError(fmt.Errorf("refusing to write %s twice: %s and %s name the same file; choose different output names", target, first, p))
-		}
-		seen[key] = p
-		if err := output.CheckFolder(filepath.Dir(target), p); err != nil {
-			return inputError(err)
-		}
 	}
-	return nil
+	return pathError(output.Check(paths...))
 }
 
 // checkOutputsEarly checks a command's named files and its figure folder

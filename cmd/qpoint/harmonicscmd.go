@@ -93,33 +93,25 @@ func exactWaveform(cmd *cobra.Command, args []string) error {
 func runWaveformHarmonics(cmd *cobra.Command, path string, fl *waveformFlags) error {
 	g := guardOf(cmd)
 	var opts measure.CSVOptions
-	if fl.sampleRate != "" {
-		v, err := circuit.ParseBounded(fl.sampleRate, circuit.Frequency)
-		if err != nil {
-			return inputError(fmt.Errorf("flag --sample-rate: %w", err))
-		}
-		if !(v >= measure.MinSampleRateHz && v <= measure.MaxSampleRateHz) {
-			return inputError(fmt.Errorf("flag --sample-rate: %s; accepted: %s to %s", si.Format(v, "Hz", 4),
-				si.Format(measure.MinSampleRateHz, "Hz", 3), si.Format(measure.MaxSampleRateHz, "Hz", 3)))
-		}
-		opts.SampleRateHz = v
-	}
 	var s measure.Settings
+	if err := quantityFlag("sample-rate", fl.sampleRate, circuit.Frequency, &opts.SampleRateHz); err != nil {
+		return err
+	}
+	if v := opts.SampleRateHz; fl.sampleRate != "" && !(v >= measure.MinSampleRateHz && v <= measure.MaxSampleRateHz) {
+		return inputError(fmt.Errorf("flag --sample-rate: %s; accepted: %s to %s", si.Format(v, "Hz", 4),
+			si.Format(measure.MinSampleRateHz, "Hz", 3), si.Format(measure.MaxSampleRateHz, "Hz", 3)))
+	}
+	if err := quantityFlag("fundamental", fl.fundamental, circuit.Frequency, &s.FundamentalHz); err != nil {
+		return err
+	}
+	if fl.fundamental != "" && !(s.FundamentalHz > 0) {
+		return inputError(fmt.Errorf("flag --fundamental: %s; accepted: a positive frequency, e.g. 10kHz", fl.fundamental))
+	}
 	win, err := measure.ParseWindow(fl.window)
 	if err != nil {
 		return inputError(fmt.Errorf("flag --window: %w", err))
 	}
 	s.Window = win
-	if fl.fundamental != "" {
-		v, err := circuit.ParseBounded(fl.fundamental, circuit.Frequency)
-		if err != nil {
-			return inputError(fmt.Errorf("flag --fundamental: %w", err))
-		}
-		if !(v > 0) {
-			return inputError(fmt.Errorf("flag --fundamental: %s; accepted: a positive frequency, e.g. 10kHz", fl.fundamental))
-		}
-		s.FundamentalHz = v
-	}
 	if fl.harmonics < 1 || fl.harmonics > measure.MaxHarmonics {
 		return inputError(fmt.Errorf("flag --harmonics: %d; accepted: 1 to %d", fl.harmonics, measure.MaxHarmonics))
 	}

@@ -115,14 +115,8 @@ func resolveMixer(c *circuit.Circuit, fl *mixerFlags, p *bias.Point) (*mixerSetu
 	if s.plan, err = plan.ResolveMixer(c, req); err != nil {
 		return nil, planError(err)
 	}
-	if p == nil {
-		if p, err = solveWithTemperature(c, fl.temperature); err != nil {
-			return nil, err
-		}
-	}
-	s.p = p
-	if s.nw, err = smallsignal.New(p); err != nil {
-		return nil, analysisError(err)
+	if s.p, s.nw, err = linearise(c, fl.temperature, p); err != nil {
+		return nil, err
 	}
 	return s, nil
 }

@@ -111,12 +111,8 @@ func resolveNoiseFor(c *circuit.Circuit, fl *noiseFlags, p *bias.Point) (*noiseS
 	if err := quantityFlag("carrier", fl.carrier, circuit.Frequency, &req.CarrierHz); err != nil {
 		return nil, err
 	}
-	if fl.videoBandwidth != "" {
-		lo, hi, err := plan.ParseBand("video-bandwidth", fl.videoBandwidth, plan.DefaultVideoFromHz)
-		if err != nil {
-			return nil, planError(err)
-		}
-		req.VideoBandHz = [2]float64{lo, hi}
+	if err := videoBandFlag(fl.videoBandwidth, &req.VideoBandHz); err != nil {
+		return nil, err
 	}
 	if fl.bandwidth != "" {
 		lo, hi, err := plan.ParseBand("bandwidth", fl.bandwidth, 0)
@@ -129,14 +125,9 @@ func resolveNoiseFor(c *circuit.Circuit, fl *noiseFlags, p *bias.Point) (*noiseS
 	if _, err := plan.SignalPath(c, fl.input, fl.output); err != nil {
 		return nil, planError(err)
 	}
-	if p == nil {
-		if p, err = solveWithTemperature(c, fl.temperature); err != nil {
-			return nil, err
-		}
-	}
-	s := &noiseSetup{c: c, p: p}
-	if s.nw, err = smallsignal.New(p); err != nil {
-		return nil, analysisError(err)
+	s := &noiseSetup{c: c}
+	if s.p, s.nw, err = linearise(c, fl.temperature, p); err != nil {
+		return nil, err
 	}
 	if s.plan, err = plan.ResolveNoise(c, s.nw, req); err != nil {
 		return nil, planError(err)
@@ -199,10 +190,8 @@ func (g *fileGuard) writeNoiseFiles(fl *noiseFlags, o *plan.NoiseRun) error {
 	if err := g.refuseInputs(paths...); err != nil {
 		return err
 	}
-	if fl.csvPath != "" {
-		if err := g.writeFileAtomic(fl.csvPath, func(w io.Writer) error { return results.WriteNoiseCSV(w, o) }); err != nil {
-			return err
-		}
+	if err := g.writeIfNamed(fl.csvPath, func(w io.Writer) error { return results.WriteNoiseCSV(w, o) }); err != nil {
+		return err
 	}
 	if fl.plotsDir == "" {
 		return nil

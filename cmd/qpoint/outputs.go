@@ -38,6 +38,9 @@ func figurePaths(dir string, figs []*plots.Figure) []string {
 // writeFigures writes each figure as SVG and PNG into dir, creating it.
 // A figure that would overwrite an input stops it before any is written.
 func (g *fileGuard) writeFigures(dir string, figs []*plots.Figure) error {
+	if dir == "" {
+		return nil
+	}
 	if err := g.refuseInputs(figurePaths(dir, figs)...); err != nil {
 		return err
 	}
@@ -53,6 +56,15 @@ func (g *fileGuard) writeFigures(dir string, figs []*plots.Figure) error {
 		}
 	}
 	return nil
+}
+
+// writeIfNamed writes the file path names, if it names one (see
+// writeFileAtomic).
+func (g *fileGuard) writeIfNamed(path string, write func(io.Writer) error) error {
+	if path == "" {
+		return nil
+	}
+	return g.writeFileAtomic(path, write)
 }
 
 // studyPlots returns the figures --plots writes for a study.

@@ -48,6 +48,20 @@ func quantityFlag(flag, text string, q circuit.Quantity, dst *float64) error {
 	return nil
 }
 
+// videoBandFlag reads --video-bandwidth, HIGH or LOW:HIGH, into dst when
+// it is given.
+func videoBandFlag(text string, dst *[2]float64) error {
+	if text == "" {
+		return nil
+	}
+	lo, hi, err := plan.ParseBand("video-bandwidth", text, plan.DefaultVideoFromHz)
+	if err != nil {
+		return planError(err)
+	}
+	*dst = [2]float64{lo, hi}
+	return nil
+}
+
 // levelFlag reads text, the value of the flag named flag, as a signal
 // level: nil when it is not given.
 func levelFlag(flag, text string) (*circuit.Level, error) {

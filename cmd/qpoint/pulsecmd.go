@@ -144,14 +144,8 @@ func resolvePulse(c *circuit.Circuit, fl *pulseFlags, p *bias.Point) (*pulseSetu
 		return nil, planError(err)
 	}
 	s := &pulseSetup{c: c, settings: pl.Settings, plan: pl}
-	if p == nil {
-		if p, err = solveWithTemperature(c, fl.temperature); err != nil {
-			return nil, err
-		}
-	}
-	s.p = p
-	if s.nw, err = smallsignal.New(p); err != nil {
-		return nil, analysisError(err)
+	if s.p, s.nw, err = linearise(c, fl.temperature, p); err != nil {
+		return nil, err
 	}
 	return s, nil
 }
@@ -190,15 +184,11 @@ func runPulse(cmd *cobra.Command, path string, fl *pulseFlags) error {
 			return err
 		}
 	}
-	if fl.csvPath != "" {
-		if err := g.writeFileAtomic(fl.csvPath, func(w io.Writer) error { return results.WritePulseCSV(w, s.plan, res) }); err != nil {
-			return err
-		}
+	if err := g.writeIfNamed(fl.csvPath, func(w io.Writer) error { return results.WritePulseCSV(w, s.plan, res) }); err != nil {
+		return err
 	}
-	if fl.plotsDir != "" {
-		if err := g.writeFigures(fl.plotsDir, figs); err != nil {
-			return err
-		}
+	if err := g.writeFigures(fl.plotsDir, figs); err != nil {
+		return err
 	}
 	if fl.asJSON {
 		if err := results.Write(out, results.PulseOf(s.c, s.plan, res, runErr)); err != nil {

@@ -87,6 +87,22 @@ func solveWithTemperature(c *circuit.Circuit, temperature string) (*bias.Point, 
 	return p, nil
 }
 
+// linearise solves c's bias at the flag's temperature, unless p is already
+// that point, and linearises it there.
+func linearise(c *circuit.Circuit, temperature string, p *bias.Point) (*bias.Point, *smallsignal.Network, error) {
+	var err error
+	if p == nil {
+		if p, err = solveWithTemperature(c, temperature); err != nil {
+			return nil, nil, err
+		}
+	}
+	nw, err := smallsignal.New(p)
+	if err != nil {
+		return nil, nil, analysisError(err)
+	}
+	return p, nw, nil
+}
+
 // responseSetup is a resolved response run: the circuit, its bias and
 // linearisation, the grid and the output format.
 type responseSetup struct {
@@ -168,11 +184,8 @@ func resolveResponse(cmd *cobra.Command, g *fileGuard, path string, fl *response
 	if s.format, err = parseTouchstoneFormat(fl.format); err != nil {
 		return nil, err
 	}
-	if s.p, err = solveWithTemperature(c, fl.temperature); err != nil {
+	if s.p, s.nw, err = linearise(c, fl.temperature, nil); err != nil {
 		return nil, err
-	}
-	if s.nw, err = smallsignal.New(s.p); err != nil {
-		return nil, analysisError(err)
 	}
 	cautionOutside(cmd.ErrOrStderr(), s.nw.Outside(s.grid))
 	// Every named output is checked before any is written, so that a
@@ -202,10 +215,8 @@ func heldResponse(g *fileGuard, s *responseSetup, fl *responseFlags) (*ac.Respon
 	if err := g.refuseInputs(append([]string{fl.csvPath, fl.touchstone}, figurePaths(fl.plotsDir, figs)...)...); err != nil {
 		return nil, err
 	}
-	if fl.csvPath != "" {
-		if err := g.writeFileAtomic(fl.csvPath, func(w io.Writer) error { return results.WriteResponseCSV(w, r) }); err != nil {
-			return nil, err
-		}
+	if err := g.writeIfNamed(fl.csvPath, func(w io.Writer) error { return results.WriteResponseCSV(w, r) }); err != nil {
+		return nil, err
 	}
 	if fl.touchstone != "" {
 		if err := g.writeFileAtomic(fl.touchstone, func(w io.Writer) error {

@@ -1,7 +1,6 @@
 package main
 
 import (
-	"errors"
 	"fmt"
 	"io"
 	"time"
@@ -162,32 +161,11 @@ func resolveStudyFor(c *circuit.Circuit, fl *studyFlags) (*studySetup, error) {
 	if req.Level, err = levelFlag("level", fl.level); err != nil {
 		return nil, err
 	}
-	if fl.videoBandwidth != "" {
-		lo, hi, err := plan.ParseBand("video-bandwidth", fl.videoBandwidth, plan.DefaultVideoFromHz)
-		if err != nil {
-			return nil, planError(err)
-		}
-		req.VideoBandHz = [2]float64{lo, hi}
+	if err := videoBandFlag(fl.videoBandwidth, &req.VideoBandHz); err != nil {
+		return nil, err
 	}
-	goals := 0
-	for _, g := range []string{fl.target, fl.maximize, fl.minimize} {
-		if g != "" {
-			goals++
-		}
-	}
-	if goals > 1 {
-		return nil, inputError(errors.New("flags --target, --maximize and --minimize: give one at a time"))
-	}
-	switch {
-	case fl.target != "":
-		req.Goal = plan.Target
-		if req.MeasureText, req.TargetText, err = plan.ParseTarget(fl.target); err != nil {
-			return nil, planError(err)
-		}
-	case fl.maximize != "":
-		req.Goal, req.MeasureText = plan.Maximize, fl.maximize
-	case fl.minimize != "":
-		req.Goal, req.MeasureText = plan.Minimize, fl.minimize
+	if err := plan.ParseGoal(&req, fl.target, fl.maximize, fl.minimize); err != nil {
+		return nil, planError(err)
 	}
 	st, err := plan.ResolveStudy(c, req)
 	if err != nil {
@@ -230,15 +208,11 @@ func runStudy(cmd *cobra.Command, path string, fl *studyFlags) error {
 	if err := g.refuseInputs(append([]string{fl.csvPath}, figurePaths(fl.plotsDir, figs)...)...); err != nil {
 		return err
 	}
-	if fl.csvPath != "" {
-		if err := g.writeFileAtomic(fl.csvPath, func(w io.Writer) error { return results.WriteStudyCSV(w, r, cols) }); err != nil {
-			return err
-		}
+	if err := g.writeIfNamed(fl.csvPath, func(w io.Writer) error { return results.WriteStudyCSV(w, r, cols) }); err != nil {
+		return err
 	}
-	if fl.plotsDir != "" {
-		if err := g.writeFigures(fl.plotsDir, figs); err != nil {
-			return err
-		}
+	if err := g.writeFigures(fl.plotsDir, figs); err != nil {
+		return err
 	}
 	out := cmd.OutOrStdout()
 	if fl.asJSON {

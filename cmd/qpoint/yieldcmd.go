@@ -112,12 +112,8 @@ func resolveYield(c *circuit.Circuit, fl *yieldFlags, observe bool) (*yield.Sett
 	if req.Level, err = levelFlag("level", fl.level); err != nil {
 		return nil, err
 	}
-	if fl.videoBandwidth != "" {
-		lo, hi, err := plan.ParseBand("video-bandwidth", fl.videoBandwidth, plan.DefaultVideoFromHz)
-		if err != nil {
-			return nil, planError(err)
-		}
-		req.VideoBandHz = [2]float64{lo, hi}
+	if err := videoBandFlag(fl.videoBandwidth, &req.VideoBandHz); err != nil {
+		return nil, err
 	}
 	s, err := plan.ResolveYield(c, req)
 	if err != nil {
@@ -157,15 +153,11 @@ func runYield(cmd *cobra.Command, path string, fl *yieldFlags) error {
 	if err := g.refuseInputs(append([]string{fl.csvPath}, figurePaths(fl.plotsDir, figs)...)...); err != nil {
 		return err
 	}
-	if fl.csvPath != "" {
-		if err := g.writeFileAtomic(fl.csvPath, func(w io.Writer) error { return results.WriteYieldCSV(w, r) }); err != nil {
-			return err
-		}
+	if err := g.writeIfNamed(fl.csvPath, func(w io.Writer) error { return results.WriteYieldCSV(w, r) }); err != nil {
+		return err
 	}
-	if fl.plotsDir != "" {
-		if err := g.writeFigures(fl.plotsDir, figs); err != nil {
-			return err
-		}
+	if err := g.writeFigures(fl.plotsDir, figs); err != nil {
+		return err
 	}
 	out := cmd.OutOrStdout()
 	if fl.asJSON {

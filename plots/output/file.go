@@ -184,6 +184,39 @@ func writeThrough(path, target string, write func(w io.Writer) error) error {
 	return nil
 }
 
+// Check checks, before anything is written, the outputs a run will write
+// (empty names are skipped): each may be written (Target), into a folder
+// that may hold it (CheckFolder), and no two name the same file, through
+// links or different spellings. It returns the first refusal as a
+// *PathError.
+func Check(paths ...string) error {
+	seen := map[string]string{}
+	for _, p := range paths {
+		if p == "" {
+			continue
+		}
+		target, _, err := Target(p)
+		if err != nil {
+			return err
+		}
+		key, err := filepath.Abs(target)
+		if err != nil {
+			key = filepath.Clean(target)
+		}
+		if first, ok := seen[key]; ok {
+			if first == p {
+				return pathErr("refusing to write %s twice: two outputs (a flag and a figure, or two flags) name it; choose different output names", p)
+			}
+			return pathErr("refusing to write %s twice: %s and %s name the same file; choose different output names", target, first, p)
+		}
+		seen[key] = p
+		if err := CheckFolder(filepath.Dir(target), p); err != nil {
+			return err
+		}
+	}
+	return nil
+}
+
 // CheckFolder fails, with a *PathError, when dir, the folder output goes
 // to, exists as something other than a folder, or lies under such a
 // thing. A folder not yet there is fine: WriteFile's caller makes it.

@@ -110,3 +110,37 @@ func TestChecked(t *testing.T) {
 type failing struct{}
 
 func (failing) Write([]byte) (int, error) { return 0, errors.New("closed") }
+
+// TestCheck: two outputs naming one file, directly or through a link or
+// another spelling, are refused naming both; a folder that is a file is
+// refused; distinct new names and empty ones pass.
+func TestCheck(t *testing.T) {
+	dir := t.TempDir()
+	a := filepath.Join(dir, "a.csv")
+	if err := os.WriteFile(a, nil, 0o600); err != nil {
+		t.Fatal(err)
+	}
+	link := filepath.Join(dir, "link.csv")
+	if err := os.Symlink(a, link); err != nil {
+		t.Fatal(err)
+	}
+	var pe *PathError
+	for _, c := range []struct {
+		paths []string
+		want  string // "" for no refusal
+	}{
+		{[]string{a, "", filepath.Join(dir, "b.csv")}, ""},
+		{[]string{a, a}, "two outputs"},
+		{[]string{a, link}, "name the same file"},
+		{[]string{a, dir + "/./a.csv"}, "name the same file"},
+		{[]string{filepath.Join(a, "fig.svg")}, "not a directory"},
+	} {
+		err := Check(c.paths...)
+		switch {
+		case c.want == "" && err != nil:
+			t.Errorf("%v: %v", c.paths, err)
+		case c.want != "" && (!errors.As(err, &pe) || !strings.Contains(err.Error(), c.want)):
+			t.Errorf("%v: %v, want a PathError saying %q", c.paths, err, c.want)
+		}
+	}
+}
