@@ -17,15 +17,16 @@ import (
 // versions did, let it peak at 590 MB for no gain in speed. So the target
 // is bounded: the heap may always grow to heapFloor, and beyond it to
 // heapFactor times what was live at the last collection (boundHeap): a
-// run whose live heap is large collects as it would at the default
-// target, never more often. A factor of three let the demo with its
-// mixer peak at 61-67 MB; two gave 56 MB and a 2000-step attenuator
-// study 109-111 MB instead of 139-143 MB, both at the same speed
-// (BENCHMARKS.md).
+// run whose live heap is large collects a little more often than at the
+// default target. A factor of three let the demo with its mixer peak at
+// 61-67 MB; two at 55-61 MB; 1.75 at 55-56 MB, at the same speed (three
+// alternating runs each, 11.2-11.7 s), and a 2000-step attenuator study
+// at 102 MB instead of 102-110 MB (two) and 139-143 MB (three), also at
+// the same speed (BENCHMARKS.md).
 const (
 	gcPercent  = 400
 	heapFloor  = 40 << 20
-	heapFactor = 2
+	heapFactor = 1.75
 )
 
 // tuneGC sets the collector's target and its bound, unless the user set
@@ -67,5 +68,5 @@ func boundHeap(stop <-chan struct{}) {
 
 // heapBound is the memory limit for a live heap of live bytes.
 func heapBound(live uint64) int64 {
-	return max(heapFloor, heapFactor*int64(live))
+	return max(heapFloor, int64(heapFactor*float64(live)))
 }
