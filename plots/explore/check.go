@@ -9,8 +9,10 @@ import (
 	"time"
 
 	"qpoint/ac/balance"
+	"qpoint/ac/mixer"
 	"qpoint/ac/plan"
 	"qpoint/ac/steady"
+	"qpoint/bias/circuit"
 	"qpoint/plots"
 	"qpoint/plots/report"
 	"qpoint/smallsignal"
@@ -42,7 +44,9 @@ type CheckView struct {
 // drive beside the estimate, with every diode's stress; the validity
 // limit; the output against level from 30 dB below the drive to 20 dB
 // above; a detector's transfer curve; and, when the drive has a second
-// tone, the waveform under both tones at the drive's level.
+// tone, the waveform under both tones at the drive's level; and, for a
+// file with a mixer analysis, the mixer under its LO as the report shows
+// it (conversion loss, ports, LO, diodes, noise, the shooting check).
 // progress is called as the stages go. A newer move or check makes it
 // stale: Check then returns ctx's error at once, and the run it started,
 // which takes no context, ends in the background without being shown.
@@ -100,12 +104,13 @@ func (s *Session) Check(ctx context.Context, req Request, progress func(Progress
 	type result struct {
 		res *plan.Distortion
 		err error
+		mx  *mixerRun
 	}
 	done := make(chan result, 1)
 	go func() {
 		defer func() {
 			if p := recover(); p != nil {
-				done <- result{nil, fmt.Errorf("internal error: %v", p)}
+				done <- result{err: fmt.Errorf("internal error: %v", p)}
 			}
 		}()
 		res, err := plan.RunDistortion(nw, d, r)
@@ -115,7 +120,12 @@ func (s *Session) Check(ctx context.Context, req Request, progress func(Progress
 				err = &plan.WaveformError{What: "two-tone waveform", LevelDBm: d.LevelDBm, Err: err}
 			}
 		}
-		done <- result{res, err}
+		var mx *mixerRun
+		if vals.c.Analysis.Mixer.Set {
+			tell(Progress{Stage: "mixer under its LO"})
+			mx = runMixer(vals.c, nw)
+		}
+		done <- result{res, err, mx}
 	}()
 	var got result
 	select {
@@ -126,6 +136,7 @@ func (s *Session) Check(ctx context.Context, req Request, progress func(Progress
 	if err := s.checkView(out, d, got.res, got.err); err != nil {
 		out.Failure = err.Error()
 	}
+	got.mx.view(out)
 	out.Seconds = time.Since(t0).Seconds()
 	return out, nil
 }
@@ -202,4 +213,44 @@ func (s *Session) checkView(out *CheckView, d *plan.Drive, res *plan.Distortion,
 		out.Notes = append(out.Notes, fmt.Sprintf("No diode passes a rating or its breakdown knee at %.1f dBm.", d.LevelDBm))
 	}
 	return nil
+}
+
+// mixerRun is the mixer under its LO at the check's values.
+type mixerRun struct {
+	nw   *smallsignal.Network
+	plan *plan.Mixer
+	res  *mixer.Result
+	err  error
+}
+
+// runMixer analyses the file's mixer at nw, with the shooting check, as
+// the report does. A pump past a breakdown knee is analysed and shown
+// with its caution.
+func runMixer(c *circuit.Circuit, nw *smallsignal.Network) *mixerRun {
+	m, err := plan.ResolveMixer(c, plan.MixerRequest{CheckShooting: true, AllowBreakdown: true})
+	if err != nil {
+		return &mixerRun{err: err}
+	}
+	r, err := mixer.Analyze(nw, m.Settings)
+	return &mixerRun{nw: nw, plan: m, res: r, err: err}
+}
+
+// view adds the mixer's cards, tables and cautions to out; a failed
+// analysis is a note.
+func (m *mixerRun) view(out *CheckView) {
+	switch {
+	case m == nil:
+		return
+	case m.res == nil:
+		out.Notes = append(out.Notes, "The mixer under its LO could not be analysed: "+m.err.Error())
+		return
+	}
+	for _, c := range report.MixerCards(m.plan, m.res) {
+		out.Cards = append(out.Cards, Card{Label: c.Label, Value: c.Value, Detail: c.Detail})
+	}
+	out.Tables = append(out.Tables, table("mixer", report.MixerTable(m.res)), table("mixer-ports", report.MixerPortTable(m.nw, m.plan, m.res)),
+		table("mixer-lo", report.MixerLOTable(m.plan, m.res)), table("mixer-diodes", report.MixerDiodeTable(m.res)),
+		table("mixer-noise", report.MixerNoiseTable(m.res, 6)))
+	out.Notes = append(out.Notes, "The mixer: "+report.MixerMethodLine(m.res)+".")
+	out.Cautions = append(out.Cautions, report.MixerCautionMessages(m.res)...)
 }

@@ -11,9 +11,12 @@ import (
 	"testing"
 	"time"
 
+	"qpoint/ac/mixer"
+	"qpoint/ac/plan"
 	"qpoint/bias"
 	"qpoint/bias/circuit"
 	"qpoint/plots/report"
+	"qpoint/smallsignal"
 )
 
 var demos = []string{"detector", "attenuator", "limiter", "mixer", "matched_detector"}
@@ -277,6 +280,77 @@ func TestCheck(t *testing.T) {
 	}
 	if math.Abs(limit-moveLimit) > moveResolutionDB+0.05 {
 		t.Errorf("full-accuracy limit %.2f dBm, the move's %.2f dBm (cards %v)", limit, moveLimit, v.Cards)
+	}
+}
+
+// TestCheckMixer: on a file with a mixer analysis the check adds the
+// mixer under its LO, and at a moved bias (Vbias 1.5 V) its conversion
+// loss is the one the mixer analysis gives for the file with that value
+// set (plan.ResolveMixer and mixer.Analyze on the loaded circuit, as
+// `qpoint mixer --set Vbias.value=1.5V` runs them); the detector demo,
+// without one, gets no mixer tables.
+func TestCheckMixer(t *testing.T) {
+	if testing.Short() {
+		t.Skip("the waveform check and a pumped mixer")
+	}
+	s := newSession(t, "mixer")
+	vals := startValues(s)
+	vals["Vbias.value"] = "1.5"
+	stages := map[string]bool{}
+	c, err := s.Check(context.Background(), Request{Values: vals}, func(p Progress) { stages[p.Stage] = true })
+	if err != nil || c.Failure != "" || c.Errors != nil {
+		t.Fatalf("%v %s %v", err, c.Failure, c.Errors)
+	}
+	if !stages["mixer under its LO"] {
+		t.Errorf("no progress from the mixer stage: %v", stages)
+	}
+	for _, id := range []string{"mixer", "mixer-ports", "mixer-lo", "mixer-diodes", "mixer-noise"} {
+		if tableByID(c.Tables, id) == nil {
+			t.Errorf("no %s table", id)
+		}
+	}
+	shown := ""
+	for _, cd := range c.Cards {
+		if cd.Label == "conversion loss" {
+			shown = cd.Value
+		}
+	}
+
+	file, err := circuit.Load(demoPath("mixer"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	cc, err := file.WithOverride("Vbias.value=1.5V")
+	if err != nil {
+		t.Fatal(err)
+	}
+	p, err := bias.Solve(cc, bias.Settings{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	nw, err := smallsignal.New(p)
+	if err != nil {
+		t.Fatal(err)
+	}
+	m, err := plan.ResolveMixer(cc, plan.MixerRequest{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	r, err := mixer.Analyze(nw, m.Settings)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if want := report.FigureText(r.ConversionLossDB); shown != want {
+		t.Errorf("conversion loss at Vbias 1.5 V: the check shows %q, the mixer analysis gives %q", shown, want)
+	}
+
+	d := newSession(t, "detector")
+	dc, err := d.Check(context.Background(), Request{Values: startValues(d)}, nil)
+	if err != nil || dc.Failure != "" {
+		t.Fatalf("%v %s", err, dc.Failure)
+	}
+	if tableByID(dc.Tables, "mixer") != nil {
+		t.Error("the detector's check shows a mixer table")
 	}
 }
 
