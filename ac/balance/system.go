@@ -39,6 +39,9 @@ type system struct {
 
 	pre  *preconditioner
 	tpre *timePreconditioner
+	// tpreAge counts the Newton steps tpre has served since it was set
+	// up, and tpreIters is the GMRES iterations of the last of them.
+	tpreAge, tpreIters int
 }
 
 // Tolerances of the balance: an equation holds when its error is within
