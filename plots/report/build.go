@@ -5,6 +5,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"slices"
 	"strings"
 
 	"qpoint/ac"
@@ -195,15 +196,32 @@ func Build(c *circuit.Circuit, settings Settings) (*Document, error) {
 	sec.Blocks = append(sec.Blocks, Block{Table: ResponseTable(r, 9)})
 	doc.Sections = append(doc.Sections, sec)
 
-	// Distortion.
-	if d, err := plan.ResolveDrive(c, plan.DriveRequest{}); err == nil {
-		sec, cards, err := distortionSection(nw, d)
-		if err != nil {
-			return nil, err
-		}
-		doc.Sections = append(doc.Sections, sec)
-		doc.Cards = append(doc.Cards, cards...)
+	// Distortion: its waveforms run on one core, so they run beside the
+	// sections after it (whose studies and sweeps take what cores there
+	// are) and take their place in the document when done. The analyses
+	// only read nw.
+	type distortionDone struct {
+		sec   Section
+		cards []Card
+		err   error
 	}
+	distortion := make(chan distortionDone, 1)
+	at := len(doc.Sections)
+	if d, err := plan.ResolveDrive(c, plan.DriveRequest{}); err == nil {
+		go func() {
+			sec, cards, err := distortionSection(nw, d)
+			distortion <- distortionDone{sec, cards, err}
+			close(distortion)
+		}()
+	} else {
+		close(distortion)
+	}
+	cardsAt := len(doc.Cards)
+	defer func() {
+		// Wait for it on every return, so that no analysis outlives Build.
+		for range distortion {
+		}
+	}()
 
 	// Noise.
 	if nsec, ncards, err := noiseSection(c, nw); err == nil {
@@ -250,6 +268,13 @@ func Build(c *circuit.Circuit, settings Settings) (*Document, error) {
 		}
 		doc.Sections = append(doc.Sections, sec)
 		doc.Cards = append(doc.Cards, cards...)
+	}
+	if dd, ok := <-distortion; ok {
+		if dd.err != nil {
+			return nil, dd.err
+		}
+		doc.Sections = slices.Insert(doc.Sections, at, dd.sec)
+		doc.Cards = slices.Insert(doc.Cards, cardsAt, dd.cards...)
 	}
 	return doc, nil
 }
