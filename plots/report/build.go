@@ -279,6 +279,21 @@ func Build(c *circuit.Circuit, settings Settings) (*Document, error) {
 	return doc, nil
 }
 
+// detectorFigures returns a detector's voltage sensitivity and its
+// tangential sensitivity over the default video band: the distortion
+// run's, when it found them (the same computation), else computed here.
+func detectorFigures(nw *smallsignal.Network, path ac.NoiseSettings, carrierHz float64, res *plan.Distortion) (gamma, tss float64, err error) {
+	if !math.IsNaN(res.TangentialDBm) {
+		gamma, err = ac.VoltageSensitivity(nw, path, carrierHz)
+		return gamma, res.TangentialDBm, err
+	}
+	det, err := ac.Detector(nw, path, carrierHz, plan.DefaultVideoFromHz, plan.DefaultVideoToHz)
+	if err != nil {
+		return 0, 0, err
+	}
+	return det.Sensitivity, det.TangentialDBm(), nil
+}
+
 // distortionSection is the Volterra estimate beside the waveform at the
 // drive d, the validity limit, a level sweep and, for a detector, its
 // transfer curve.
@@ -367,22 +382,22 @@ func distortionSection(nw *smallsignal.Network, d *plan.Drive) (Section, []Card,
 	// sensitivity to beyond square law.
 	path := ac.NoiseSettings{Input: d.Drive.Input, Output: d.Drive.Output}
 	if ac.Detects(nw, path, d.Drive.FrequencyHz) {
-		if det, err := ac.Detector(nw, path, d.Drive.FrequencyHz, plan.DefaultVideoFromHz, plan.DefaultVideoToHz); err == nil {
+		if gamma, tss, err := detectorFigures(nw, path, d.Drive.FrequencyHz, res); err == nil {
 			var levels []float64
-			for l := math.Floor(det.TangentialDBm()/2)*2 - 10; l <= 10+1e-9; l += 2 {
+			for l := math.Floor(tss/2)*2 - 10; l <= 10+1e-9; l += 2 {
 				levels = append(levels, l)
 			}
 			tsweep, _ := steady.LevelSweep(nw, one, levels, settings, nil)
-			if t, err := steady.DetectorTransfer(tsweep, det.Sensitivity); err == nil {
-				fig, err := SVGOf(plots.DetectorTransfer(t, det.TangentialDBm()))
+			if t, err := steady.DetectorTransfer(tsweep, gamma); err == nil {
+				fig, err := SVGOf(plots.DetectorTransfer(t, tss))
 				if err != nil {
 					return sec, nil, err
 				}
 				sec.Blocks = append(sec.Blocks, Block{Note: "Detector transfer curve, from the waveform at each level, with the tangential sensitivity over a 1 Hz to 2 MHz video band."},
 					Block{Figure: fig})
 				if !math.IsNaN(t.DeviationDBm) {
-					cards = append(cards, Card{Label: "square-law range", Value: fmt.Sprintf("%.1f dB", t.DynamicRangeDB(det.TangentialDBm())),
-						Detail: fmt.Sprintf("tangential sensitivity %.1f dBm to 1 dB deviation at %.1f dBm", det.TangentialDBm(), t.DeviationDBm)})
+					cards = append(cards, Card{Label: "square-law range", Value: fmt.Sprintf("%.1f dB", t.DynamicRangeDB(tss)),
+						Detail: fmt.Sprintf("tangential sensitivity %.1f dBm to 1 dB deviation at %.1f dBm", tss, t.DeviationDBm)})
 				}
 			}
 		}
