@@ -6,8 +6,10 @@
 // that a failed or interrupted write leaves any old file untouched;
 // Partials knows the temporary files still being written, for an
 // interrupt to remove. Target says what an output path may be (a regular
-// file, a link to one, a device or pipe written through) and CheckFolder
-// whether its folder can hold it; their refusals are *PathError.
+// file, a link to one, a device or pipe written through), CheckFolder
+// whether its folder can hold it, and Check all of a run's outputs at
+// once before any is written (no two on one file); their refusals are
+// *PathError.
 // Escaping shows control characters and bidirectional overrides as
 // escapes; Checked keeps a writer's first error. Progress draws a bar on
 // a terminal and nothing elsewhere.
