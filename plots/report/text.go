@@ -15,7 +15,7 @@ func (t *Table) numeric(i int) bool {
 	if t.Align != nil {
 		return i < len(t.Align) && t.Align[i]
 	}
-	return i > 0 && numericColumn(t.Rows, i)
+	return numericColumn(t.Rows, i)
 }
 
 // numericColumn reports whether most cells of column i read as numbers.
@@ -36,8 +36,9 @@ func numericColumn(rows [][]string, i int) bool {
 
 // WriteText writes the table as plain text for a terminal: the caption
 // after a blank line, then the header, a rule and the rows, two spaces in;
-// the first column left-aligned (names), the numeric ones right-aligned
-// (values) and the others, text, left-aligned, three spaces apart.
+// numeric columns right-aligned (values, and a first column of numbers
+// such as frequencies) and the others, text and names, left-aligned,
+// three spaces apart.
 func (t *Table) WriteText(w io.Writer) {
 	widths := make([]int, len(t.Header))
 	for _, row := range append([][]string{t.Header}, t.Rows...) {
@@ -66,6 +67,8 @@ func (t *Table) WriteText(w io.Writer) {
 			}
 			pad := strings.Repeat(" ", widths[i]-utf8.RuneCountInString(c))
 			switch {
+			case i == 0 && numeric[0]:
+				b.WriteString(pad + c)
 			case i == 0:
 				b.WriteString(c + pad)
 			case numeric[i]:
