@@ -15,6 +15,40 @@ type Output struct {
 	Node string
 }
 
+// Unknowns returns the unknowns of nw whose difference is the output
+// voltage, x[plus] - x[minus]: a port's node and return, or the named
+// node and -1; either is -1 where it is the reference node.
+func (o Output) Unknowns(nw *smallsignal.Network) (plus, minus int, err error) {
+	if o.Port >= 0 {
+		if o.Port >= len(nw.Ports) {
+			return -1, -1, fmt.Errorf("output port %d: the circuit has %d ports", o.Port+1, len(nw.Ports))
+		}
+		p := nw.Ports[o.Port]
+		return p.Node, p.Return, nil
+	}
+	i, ok := nw.Nodes[o.Node]
+	if !ok {
+		return -1, -1, fmt.Errorf("output node %q is not in the circuit", o.Node)
+	}
+	return i, -1, nil
+}
+
+// OutputVector returns e with the output voltage eᵀx (see Unknowns).
+func OutputVector[T float64 | complex128](nw *smallsignal.Network, o Output) ([]T, error) {
+	plus, minus, err := o.Unknowns(nw)
+	if err != nil {
+		return nil, err
+	}
+	e := make([]T, nw.N)
+	if plus >= 0 {
+		e[plus] = 1
+	}
+	if minus >= 0 {
+		e[minus] = -1
+	}
+	return e, nil
+}
+
 // Drive describes the signal: port Input's generator, of EMF amplitude EMF
 // (peak volts per tone) behind the port's reference impedance, at
 // FrequencyHz, and optionally a second tone of the same EMF at SecondToneHz.
@@ -540,24 +574,18 @@ func (ws *Workspace) volterraWith(nw *smallsignal.Network, d Drive, sys solver) 
 	if nw.HasElements() {
 		est.Outside = nw.Outside(productFrequencies(nil, d))
 	}
+	plus, minus, err := d.Output.Unknowns(nw)
+	if err != nil {
+		return nil, err
+	}
+	if plus >= 0 {
+		v.out[plus] = 1
+	}
+	if minus >= 0 {
+		v.out[minus] = -1
+	}
 	if d.Output.Port >= 0 {
-		if d.Output.Port >= len(nw.Ports) {
-			return nil, fmt.Errorf("output port %d: the circuit has %d ports", d.Output.Port+1, len(nw.Ports))
-		}
-		p := nw.Ports[d.Output.Port]
-		if p.Node >= 0 {
-			v.out[p.Node] = 1
-		}
-		if p.Return >= 0 {
-			v.out[p.Return] = -1
-		}
-		est.outputZ0 = p.Impedance
-	} else {
-		i, ok := nw.Nodes[d.Output.Node]
-		if !ok {
-			return nil, fmt.Errorf("output node %q is not in the circuit", d.Output.Node)
-		}
-		v.out[i] = 1
+		est.outputZ0 = nw.Ports[d.Output.Port].Impedance
 	}
 
 	w1 := 2 * math.Pi * d.FrequencyHz

@@ -170,7 +170,7 @@ func (sv *solver) check() error {
 	if d.Input < 0 || d.Input >= len(nw.Ports) {
 		return fmt.Errorf("input port %d: the circuit has %d ports", d.Input+1, len(nw.Ports))
 	}
-	if _, err := outputVector(nw, d.Output); err != nil {
+	if _, err := ac.OutputVector[float64](nw, d.Output); err != nil {
 		return err
 	}
 	if !(d.EMF >= 0) || math.IsInf(d.EMF, 0) {
@@ -834,35 +834,11 @@ func describe(s *spectrum) string {
 	return fmt.Sprintf("a %s truncation of order %d", s.trunc, s.order)
 }
 
-// outputVector returns e with output voltage Σ e_i x_i.
-func outputVector(nw *smallsignal.Network, o ac.Output) ([]float64, error) {
-	e := make([]float64, nw.N)
-	if o.Port >= 0 {
-		if o.Port >= len(nw.Ports) {
-			return nil, fmt.Errorf("output port %d: the circuit has %d ports", o.Port+1, len(nw.Ports))
-		}
-		p := nw.Ports[o.Port]
-		if p.Node >= 0 {
-			e[p.Node] = 1
-		}
-		if p.Return >= 0 {
-			e[p.Return] = -1
-		}
-		return e, nil
-	}
-	i, ok := nw.Nodes[o.Node]
-	if !ok {
-		return nil, fmt.Errorf("output node %q is not in the circuit", o.Node)
-	}
-	e[i] = 1
-	return e, nil
-}
-
 // result assembles the Result from the converged phasors (the junctions
 // hold their last evaluation, at x).
 func (sv *solver) result(sys *system, x []complex128) *Result {
 	nw, spec, n := sv.nw, sys.spec, sv.nw.N
-	e, _ := outputVector(nw, sv.d.Output)
+	e, _ := ac.OutputVector[float64](nw, sv.d.Output)
 	r := &Result{Drive: sv.d, spec: spec, x: x, emf: sv.d.EMF, n: n, generators: sv.s.Generators}
 	report := sv.report()
 	dcOut := 0.0

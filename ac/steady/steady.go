@@ -193,7 +193,7 @@ func Solve(nw *smallsignal.Network, d ac.Drive, s Settings) (*State, error) {
 	if maxIter == 0 {
 		maxIter = 15
 	}
-	out, err := outputVector(nw, d.Output)
+	out, err := ac.OutputVector[complex128](nw, d.Output)
 	if err != nil {
 		return nil, err
 	}
@@ -238,30 +238,6 @@ func Solve(nw *smallsignal.Network, d ac.Drive, s Settings) (*State, error) {
 		res.DiodeCurrents = append(res.DiodeCurrents, richardson(harmonics(coarse.currents[j], k), harmonics(fine.currents[j], k), n, 2*n+1))
 	}
 	return res, nil
-}
-
-// outputVector returns e_out with output voltage e_outᵀ x.
-func outputVector(nw *smallsignal.Network, o ac.Output) ([]complex128, error) {
-	e := make([]complex128, nw.N)
-	if o.Port >= 0 {
-		if o.Port >= len(nw.Ports) {
-			return nil, fmt.Errorf("output port %d: the circuit has %d ports", o.Port+1, len(nw.Ports))
-		}
-		p := nw.Ports[o.Port]
-		if p.Node >= 0 {
-			e[p.Node] = 1
-		}
-		if p.Return >= 0 {
-			e[p.Return] = -1
-		}
-		return e, nil
-	}
-	i, ok := nw.Nodes[o.Node]
-	if !ok {
-		return nil, fmt.Errorf("output node %q is not in the circuit", o.Node)
-	}
-	e[i] = 1
-	return e, nil
 }
 
 // harmonics returns orders 0..k of one period of samples.

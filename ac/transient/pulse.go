@@ -449,21 +449,14 @@ func tailWindow(t, y []float64, omega, a, b float64) (float64, complex128) {
 // outputNodes returns the unknowns the output is read across (-1 for the
 // reference node).
 func outputNodes(nw *smallsignal.Network, o ac.Output) (int, int, error) {
-	if o.Port >= 0 {
-		if o.Port >= len(nw.Ports) {
-			return 0, 0, fmt.Errorf("transient: output port %d: the circuit has %d ports", o.Port+1, len(nw.Ports))
-		}
-		pt := nw.Ports[o.Port]
-		if pt.Node < 0 {
-			return 0, 0, fmt.Errorf("transient: output port %s sits on the reference node", pt.Name)
-		}
-		return pt.Node, pt.Return, nil
+	plus, minus, err := o.Unknowns(nw)
+	if err != nil {
+		return 0, 0, fmt.Errorf("transient: %w", err)
 	}
-	i, ok := nw.Nodes[o.Node]
-	if !ok {
-		return 0, 0, fmt.Errorf("transient: output node %q is not in the circuit", o.Node)
+	if o.Port >= 0 && plus < 0 {
+		return 0, 0, fmt.Errorf("transient: output port %s sits on the reference node", nw.Ports[o.Port].Name)
 	}
-	return i, -1, nil
+	return plus, minus, nil
 }
 
 // probeStart returns the state at t = 0 with the probe E_p cos(ωt) on in
