@@ -34,10 +34,14 @@ func (o *OrderedNumbers) Set(k string, v float64) {
 	o.values = append(o.values, Number(v))
 }
 
-func (o OrderedNumbers) MarshalJSON() ([]byte, error) {
+func (o OrderedNumbers) MarshalJSON() ([]byte, error) { return marshalOrdered(o.keys, o.values) }
+
+// marshalOrdered writes a JSON object of the keys and values in their
+// order.
+func marshalOrdered[T any](keys []string, values []T) ([]byte, error) {
 	var b bytes.Buffer
 	b.WriteByte('{')
-	for i, k := range o.keys {
+	for i, k := range keys {
 		if i > 0 {
 			b.WriteByte(',')
 		}
@@ -45,7 +49,7 @@ func (o OrderedNumbers) MarshalJSON() ([]byte, error) {
 		if err != nil {
 			return nil, err
 		}
-		val, err := o.values[i].MarshalJSON()
+		val, err := json.Marshal(values[i])
 		if err != nil {
 			return nil, err
 		}

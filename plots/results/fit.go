@@ -1,9 +1,6 @@
 package results
 
 import (
-	"bytes"
-	"encoding/json"
-
 	"qpoint/bias/extract"
 	"qpoint/plots/report"
 )
@@ -22,25 +19,7 @@ type FitModel struct {
 	values []FitValue
 }
 
-func (m FitModel) MarshalJSON() ([]byte, error) {
-	var b bytes.Buffer
-	b.WriteByte('{')
-	for i, k := range m.keys {
-		if i > 0 {
-			b.WriteByte(',')
-		}
-		key, _ := json.Marshal(k)
-		val, err := json.Marshal(m.values[i])
-		if err != nil {
-			return nil, err
-		}
-		b.Write(key)
-		b.WriteByte(':')
-		b.Write(val)
-	}
-	b.WriteByte('}')
-	return b.Bytes(), nil
-}
+func (m FitModel) MarshalJSON() ([]byte, error) { return marshalOrdered(m.keys, m.values) }
 
 // FitCorrelation is the correlation of two fitted values.
 type FitCorrelation struct {
